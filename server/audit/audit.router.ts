@@ -1,0 +1,13 @@
+import { Router } from "express";
+import { AuditQuerySchema } from "#shared/schemas/users.ts";
+import { requireRole } from "../core/auth.ts";
+import type { AuditService } from "./audit.service.ts";
+
+export function auditRouter(audit: AuditService): Router {
+  const r = Router();
+  r.get("/audit", requireRole("admin"), async (req, res) => {
+    const query = AuditQuerySchema.parse(req.query);
+    res.json(await audit.list(query));
+  });
+  return r;
+}

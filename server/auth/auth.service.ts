@@ -1,0 +1,140 @@
+import type { User } from "#shared/schemas/auth.ts";
+import { AppError } from "../core/app-error.ts";
+import type { Actor } from "../core/types.ts";
+import type { Db } from "../db/knex.ts";
+import type { AuditService } from "../audit/audit.service.ts";
+import type { Mailer } from "../mail/mail.service.ts";
+import { transactionalMail } from "../mail/mail.layout.ts";
+import {
+  findInvitationByTokenHash,
+  findPasswordReset,
+  findUserByEmail,
+  findUserById,
+  insertPasswordReset,
+  insertUser,
+  markInvitationAccepted,
+  markPasswordResetUsed,
+  updateUser,
+  type UserRecord,
+} from "../users/users.repository.ts";
+import { assertPasswordAcceptable, burnVerify, hashPassword, hashToken, newToken, verifyPassword } from "./passwords.ts";
+import type { SessionRepository } from "./session.repository.ts";
+
+export const RESET_TTL_MS = 60 * 60 * 1000;
+
+const publicUser = (u: UserRecord): User => ({ id: u.id, email: u.email, name: u.name, role: u.role });
+
+const invalid = () => new AppError("invalid_credentials", "That e-mail address and password do not match an active account.", 401);
+
+export function createAuthService(deps: {
+  db: Db;
+  audit: AuditService;
+  mailer: Mailer;
+  sessions: SessionRepository;
+  publicUrl: string;
+  now?: () => Date;
+}) {
+  const { db, audit, mailer, sessions, publicUrl } = deps;
+  const now = deps.now ?? (() => new Date());
+
+  return {
+    /** Checks an e-mail and password; the same error for an unknown address, a wrong password and a disabled account. */
+    async verifyCredentials(email: string, password: string, actor: Actor): Promise<User> {
+      const user = await findUserByEmail(db, email);
+      const ok = user ? await verifyPassword(user.passwordHash, password) : await burnVerify(password);
+      if (!user || !ok || user.disabledAt) {
+        await audit.record({ action: "sign_in_failed", actor, actorEmail: email, detail: { reason: !user ? "unknown" : !ok ? "password" : "disabled" } });
+        throw invalid();
+      }
+      return publicUser(user);
+    },
+
+    async recordSignIn(user: User, actor: Actor): Promise<void> {
+      await updateUser(db, user.id, { lastSignInAt: now() });
+      await audit.record({ action: "sign_in", actor: { ...actor, user } });
+    },
+
+    async recordSignOut(actor: Actor): Promise<void> {
+      if (actor.user) await audit.record({ action: "sign_out", actor });
+    },
+
+    /** The user a session names, or null when gone or disabled (which ends the session). */
+    async sessionUser(id: number): Promise<User | null> {
+      const u = await findUserById(db, id);
+      return u && !u.disabledAt ? publicUser(u) : null;
+    },
+
+    async describeInvitation(token: string): Promise<{ email: string; role: User["role"] }> {
+      const inv = await findInvitationByTokenHash(db, hashToken(token));
+      if (!inv || inv.revokedAt) throw new AppError("invitation_invalid", "This invitation link is not valid. Ask for a new one.", 404);
+      if (inv.acceptedAt) throw new AppError("invitation_used", "This invitation has already been used. Sign in instead.", 410);
+      if (inv.expiresAt <= now()) throw new AppError("invitation_expired", "This invitation has expired. Ask for a new one.", 410);
+      return { email: inv.email, role: inv.role };
+    },
+
+    async acceptInvitation(token: string, input: { name: string; password: string }, actor: Actor): Promise<User> {
+      const passwordHash = await (async () => {
+        const inv = await findInvitationByTokenHash(db, hashToken(token));
+        assertPasswordAcceptable(input.password, inv?.email);
+        return hashPassword(input.password);
+      })();
+      return db.transaction(async (trx) => {
+        const inv = await findInvitationByTokenHash(trx, hashToken(token), true);
+        if (!inv || inv.revokedAt) throw new AppError("invitation_invalid", "This invitation link is not valid. Ask for a new one.", 404);
+        if (inv.acceptedAt) throw new AppError("invitation_used", "This invitation has already been used. Sign in instead.", 410);
+        if (inv.expiresAt <= now()) throw new AppError("invitation_expired", "This invitation has expired. Ask for a new one.", 410);
+        if (await findUserByEmail(trx, inv.email)) {
+          throw new AppError("account_exists", "An account with this address already exists. Sign in instead.", 409);
+        }
+        const id = await insertUser(trx, { email: inv.email, name: input.name, role: inv.role, passwordHash });
+        await markInvitationAccepted(trx, inv.id);
+        const user: User = { id, email: inv.email, name: input.name, role: inv.role };
+        await audit.record({ action: "invitation_accepted", actor: { ...actor, user }, target: { type: "user", id, label: inv.email } }, trx);
+        return user;
+      });
+    },
+
+    /** Always answers the same; sends a link only to an active account. */
+    async requestPasswordReset(email: string, actor: Actor): Promise<void> {
+      const user = await findUserByEmail(db, email);
+      await audit.record({ action: "password_reset_requested", actor, actorEmail: email, detail: { known: Boolean(user && !user.disabledAt) } });
+      if (!user || user.disabledAt) return;
+      const token = newToken();
+      await insertPasswordReset(db, { userId: user.id, tokenHash: hashToken(token), expiresAt: new Date(now().getTime() + RESET_TTL_MS) });
+      const url = `${publicUrl}/reset-password/${token}`;
+      const body = transactionalMail({
+        heading: "Reset your Plumbline password",
+        paragraphs: [
+          `Someone asked to reset the password of the Plumbline account ${user.email}.`,
+          "The link below works once, for one hour. Setting a new password signs you out everywhere else.",
+          "If you did not ask for this, ignore this message; your password stays as it is.",
+        ],
+        action: { label: "Choose a new password", url },
+        footer: "Plumbline site office. You receive this because a reset was requested for your account.",
+      });
+      await mailer.send({ to: user.email, subject: "Reset your Plumbline password", ...body });
+    },
+
+    async resetPassword(token: string, password: string, actor: Actor): Promise<User> {
+      const passwordHash = await hashPassword(password);
+      const user = await db.transaction(async (trx) => {
+        const reset = await findPasswordReset(trx, hashToken(token));
+        if (!reset || reset.usedAt || reset.expiresAt <= now()) {
+          throw new AppError("reset_invalid", "This reset link has expired or was already used. Ask for a new one.", 410);
+        }
+        const u = await findUserById(trx, reset.userId);
+        if (!u || u.disabledAt) throw new AppError("reset_invalid", "This reset link has expired or was already used. Ask for a new one.", 410);
+        assertPasswordAcceptable(password, u.email);
+        await updateUser(trx, u.id, { passwordHash });
+        await markPasswordResetUsed(trx, reset.id, u.id);
+        await audit.record({ action: "password_reset", actor: { ...actor, user: publicUser(u) }, target: { type: "user", id: u.id, label: u.email } }, trx);
+        return publicUser(u);
+      });
+      await sessions.destroyForUser(user.id);
+      return user;
+    },
+
+    endSessionsOf: (userId: number) => sessions.destroyForUser(userId),
+  };
+}
+export type AuthService = ReturnType<typeof createAuthService>;

@@ -1,0 +1,31 @@
+import { Router } from "express";
+import { IdParamSchema } from "#shared/schemas/common.ts";
+import { OutboxQuerySchema } from "#shared/schemas/outbox.ts";
+import { notFound, AppError } from "../core/app-error.ts";
+import { requireStaff } from "../core/auth.ts";
+import type { OutboxService } from "./mail.service.ts";
+
+export function outboxRouter(outbox: OutboxService, mailMode: "local" | "smtp"): Router {
+  const r = Router();
+  r.use("/outbox", requireStaff(), (_req, _res, next) => {
+    if (mailMode !== "local") return next(new AppError("not_local_mail", "The outbox exists only in local mail mode.", 404));
+    next();
+  });
+  r.get("/outbox", async (req, res) => {
+    const query = OutboxQuerySchema.parse(req.query);
+    res.json(await outbox.list(query));
+  });
+  r.get("/outbox/:id", async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const m = await outbox.get(id);
+    if (!m) throw notFound("That message");
+    res.json(m);
+  });
+  r.get("/outbox/:id/raw", async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const raw = await outbox.raw(id);
+    if (!raw) throw notFound("That message");
+    res.type("message/rfc822").send(raw);
+  });
+  return r;
+}

@@ -1,0 +1,44 @@
+import type { Knex } from "knex";
+import { hashPassword, verifyPassword } from "../auth/passwords.ts";
+import { DEMO_USERS } from "./demo-users.ts";
+
+export const DEMO_PROJECT_SLUG = "aldermere-phase-2";
+
+/**
+ * Seeds the invented demo scenario (DESIGN.md). Idempotent: rows that exist are left as
+ * they are, so a second run changes nothing.
+ */
+export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ created: string[] }> {
+  const created: string[] = [];
+  for (const u of DEMO_USERS) {
+    const existing = await db("users").where({ email: u.email }).first();
+    if (!existing) {
+      await db("users").insert({ email: u.email, name: u.name, role: u.role, password_hash: await hashPassword(opts.password) });
+      created.push(`user ${u.email}`);
+    } else if (!(await verifyPassword(existing.password_hash, opts.password))) {
+      // DEMO_PASSWORD changed since the last seed: the printed sign-ins must work.
+      await db("users").where({ id: existing.id }).update({ password_hash: await hashPassword(opts.password) });
+      created.push(`password of ${u.email}`);
+    }
+  }
+  if (!(await db("projects").where({ slug: DEMO_PROJECT_SLUG }).first())) {
+    await db("projects").insert({
+      slug: DEMO_PROJECT_SLUG,
+      name: "Aldermere Campus, Phase 2",
+      operator_name: "Kestrel Colocation",
+      location_label: "Aldermere Campus (an invented site)",
+      time_zone: "Europe/London",
+      description:
+        "Phase 2 adds Hall 2A (48 racks, 480 kW IT), the high-density suite HD-1 (20 racks at up to 25 kW, 500 kW) and, in a later stage, Hall 2B (48 racks, 480 kW), with the chiller, generator, fuel and UPS plant that serves them.",
+      postal_address: "Kestrel Colocation, 1 Example Way, Aldermere, AL1 0XX (invented address)",
+      currency: "GBP",
+      tolerance_working_days: 5,
+      behind_working_days: 15,
+      weekend_days: "[6,7]",
+      holidays: JSON.stringify(["2026-01-01", "2026-04-03", "2026-04-06", "2026-05-04", "2026-05-25", "2026-08-31", "2026-12-25", "2026-12-28", "2027-01-01", "2027-03-26", "2027-03-29", "2027-05-03", "2027-05-31", "2027-08-30", "2027-12-27", "2027-12-28"]),
+      visits_offered: true,
+    });
+    created.push(`project ${DEMO_PROJECT_SLUG}`);
+  }
+  return { created };
+}

@@ -1,0 +1,193 @@
+import type { Knex } from "knex";
+import type { Role } from "#shared/schemas/common.ts";
+import type { InvitationRow, UserRow } from "#shared/schemas/users.ts";
+
+type Q = Knex | Knex.Transaction;
+
+export interface UserRecord {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  passwordHash: string;
+  disabledAt: Date | null;
+  lastSignInAt: Date | null;
+  createdAt: Date;
+}
+
+function toUser(r: Record<string, unknown>): UserRecord {
+  return {
+    id: Number(r.id),
+    email: String(r.email),
+    name: String(r.name),
+    role: r.role as Role,
+    passwordHash: String(r.password_hash),
+    disabledAt: (r.disabled_at as Date | null) ?? null,
+    lastSignInAt: (r.last_sign_in_at as Date | null) ?? null,
+    createdAt: r.created_at as Date,
+  };
+}
+
+export function toUserRow(u: UserRecord): UserRow {
+  return {
+    id: u.id,
+    email: u.email,
+    name: u.name,
+    role: u.role,
+    disabled: u.disabledAt !== null,
+    lastSignInAt: u.lastSignInAt?.toISOString() ?? null,
+    createdAt: u.createdAt.toISOString(),
+  };
+}
+
+export async function findUserByEmail(q: Q, email: string): Promise<UserRecord | null> {
+  const r = await q("users").where({ email }).first();
+  return r ? toUser(r) : null;
+}
+
+export async function findUserById(q: Q, id: number): Promise<UserRecord | null> {
+  const r = await q("users").where({ id }).first();
+  return r ? toUser(r) : null;
+}
+
+export async function listUsers(q: Q): Promise<UserRecord[]> {
+  const rows = await q("users").orderBy([{ column: "role" }, { column: "email" }]);
+  return rows.map(toUser);
+}
+
+export async function insertUser(q: Q, u: { email: string; name: string; role: Role; passwordHash: string }): Promise<number> {
+  const [id] = await q("users").insert({ email: u.email, name: u.name, role: u.role, password_hash: u.passwordHash });
+  return Number(id);
+}
+
+export async function updateUser(
+  q: Q,
+  id: number,
+  patch: Partial<{ role: Role; disabledAt: Date | null; passwordHash: string; lastSignInAt: Date; name: string }>,
+): Promise<void> {
+  const row: Record<string, unknown> = { updated_at: new Date() };
+  if (patch.role !== undefined) row.role = patch.role;
+  if (patch.disabledAt !== undefined) row.disabled_at = patch.disabledAt;
+  if (patch.passwordHash !== undefined) row.password_hash = patch.passwordHash;
+  if (patch.lastSignInAt !== undefined) row.last_sign_in_at = patch.lastSignInAt;
+  if (patch.name !== undefined) row.name = patch.name;
+  await q("users").where({ id }).update(row);
+}
+
+export async function countActiveAdmins(q: Q): Promise<number> {
+  const r = await q("users").where({ role: "admin" }).whereNull("disabled_at").count({ n: "*" }).first();
+  return Number(r?.n ?? 0);
+}
+
+// Invitations
+
+export interface InvitationRecord {
+  id: number;
+  email: string;
+  role: Role;
+  tokenHash: string;
+  invitedBy: number | null;
+  expiresAt: Date;
+  acceptedAt: Date | null;
+  revokedAt: Date | null;
+  createdAt: Date;
+}
+
+function toInvitation(r: Record<string, unknown>): InvitationRecord {
+  return {
+    id: Number(r.id),
+    email: String(r.email),
+    role: r.role as Role,
+    tokenHash: String(r.token_hash),
+    invitedBy: r.invited_by == null ? null : Number(r.invited_by),
+    expiresAt: r.expires_at as Date,
+    acceptedAt: (r.accepted_at as Date | null) ?? null,
+    revokedAt: (r.revoked_at as Date | null) ?? null,
+    createdAt: r.created_at as Date,
+  };
+}
+
+export async function insertInvitation(
+  q: Q,
+  i: { email: string; role: Role; tokenHash: string; invitedBy: number; expiresAt: Date },
+): Promise<number> {
+  const [id] = await q("invitations").insert({
+    email: i.email,
+    role: i.role,
+    token_hash: i.tokenHash,
+    invited_by: i.invitedBy,
+    expires_at: i.expiresAt,
+  });
+  return Number(id);
+}
+
+export async function findInvitationByTokenHash(q: Q, tokenHash: string, forUpdate = false): Promise<InvitationRecord | null> {
+  const query = q("invitations").where({ token_hash: tokenHash }).first();
+  if (forUpdate) query.forUpdate();
+  const r = await query;
+  return r ? toInvitation(r) : null;
+}
+
+export async function markInvitationAccepted(q: Q, id: number): Promise<void> {
+  await q("invitations").where({ id }).update({ accepted_at: new Date() });
+}
+
+/** Older open invitations of an address stop working when a new one is sent. */
+export async function revokeOpenInvitations(q: Q, email: string): Promise<void> {
+  await q("invitations").where({ email }).whereNull("accepted_at").whereNull("revoked_at").update({ revoked_at: new Date() });
+}
+
+export async function deleteInvitation(q: Q, id: number): Promise<void> {
+  await q("invitations").where({ id }).delete();
+}
+
+export async function listInvitations(q: Q, now: Date): Promise<InvitationRow[]> {
+  const rows = await q("invitations as i")
+    .leftJoin("users as u", "u.id", "i.invited_by")
+    .select("i.*", "u.email as inviter_email")
+    .orderBy("i.created_at", "desc")
+    .limit(200);
+  return rows.map((r: Record<string, unknown>) => {
+    const inv = toInvitation(r);
+    const status: InvitationRow["status"] = inv.acceptedAt
+      ? "accepted"
+      : inv.revokedAt
+        ? "revoked"
+        : inv.expiresAt <= now
+          ? "expired"
+          : "pending";
+    return {
+      id: inv.id,
+      email: inv.email,
+      role: inv.role,
+      invitedBy: (r.inviter_email as string | null) ?? null,
+      createdAt: inv.createdAt.toISOString(),
+      expiresAt: inv.expiresAt.toISOString(),
+      status,
+    };
+  });
+}
+
+// Password resets
+
+export interface ResetRecord {
+  id: number;
+  userId: number;
+  expiresAt: Date;
+  usedAt: Date | null;
+}
+
+export async function insertPasswordReset(q: Q, r: { userId: number; tokenHash: string; expiresAt: Date }): Promise<void> {
+  await q("password_resets").insert({ user_id: r.userId, token_hash: r.tokenHash, expires_at: r.expiresAt });
+}
+
+export async function findPasswordReset(q: Q, tokenHash: string): Promise<ResetRecord | null> {
+  const r = await q("password_resets").where({ token_hash: tokenHash }).forUpdate().first();
+  return r ? { id: Number(r.id), userId: Number(r.user_id), expiresAt: r.expires_at, usedAt: r.used_at ?? null } : null;
+}
+
+export async function markPasswordResetUsed(q: Q, id: number, userId: number): Promise<void> {
+  await q("password_resets").where({ id }).update({ used_at: new Date() });
+  // One reset ends every other outstanding link of the same user too.
+  await q("password_resets").where({ user_id: userId }).whereNull("used_at").update({ used_at: new Date() });
+}

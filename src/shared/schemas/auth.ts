@@ -1,0 +1,36 @@
+import { z } from "zod";
+import { EmailSchema, RoleSchema } from "./common.ts";
+
+export const LoginInputSchema = z.strictObject({
+  email: EmailSchema,
+  password: z.string({ error: "is required" }).min(1, "is required").max(1000),
+});
+export type LoginInput = z.infer<typeof LoginInputSchema>;
+
+export const PASSWORD_MIN_LENGTH = 12;
+/** Length only; the server also refuses passwords on a list of common ones. */
+export const NewPasswordSchema = z
+  .string({ error: "is required" })
+  .min(PASSWORD_MIN_LENGTH, `must be at least ${PASSWORD_MIN_LENGTH} characters`)
+  .max(200, "must be at most 200 characters");
+
+export const AcceptInvitationInputSchema = z.strictObject({
+  name: z.string({ error: "is required" }).trim().min(1, "is required").max(200),
+  password: NewPasswordSchema,
+});
+export type AcceptInvitationInput = z.infer<typeof AcceptInvitationInputSchema>;
+
+export const ResetRequestInputSchema = z.strictObject({ email: EmailSchema });
+export const ResetPasswordInputSchema = z.strictObject({ password: NewPasswordSchema });
+
+export const TokenParamSchema = z.strictObject({
+  token: z.string().regex(/^[A-Za-z0-9_-]{20,100}$/, "is not a valid link"),
+});
+
+export const UserSchema = z.object({
+  id: z.number(),
+  email: z.string(),
+  name: z.string(),
+  role: RoleSchema,
+});
+export type User = z.infer<typeof UserSchema>;

@@ -1,0 +1,31 @@
+import { z } from "zod";
+
+export const RoleSchema = z.enum(["admin", "lead", "marketing", "investor"]);
+export type Role = z.infer<typeof RoleSchema>;
+export const STAFF_ROLES = ["admin", "lead", "marketing"] as const satisfies readonly Role[];
+
+export const AudienceSchema = z.enum(["public", "investor", "internal"]);
+export type Audience = z.infer<typeof AudienceSchema>;
+
+export const IdParamSchema = z.strictObject({ id: z.coerce.number().int().positive() });
+
+export const EmailSchema = z
+  .string({ error: "is required" })
+  .trim()
+  .toLowerCase()
+  .max(254, "is too long")
+  .pipe(z.email({ error: "is not a valid e-mail address" }));
+
+/** A calendar date, `YYYY-MM-DD`, that exists on the calendar. */
+export const CalendarDateSchema = z
+  .string()
+  .regex(/^\d{4}-\d{2}-\d{2}$/, "must be a date as YYYY-MM-DD")
+  .refine((s) => {
+    const [y, m, d] = s.split("-").map(Number) as [number, number, number];
+    const t = new Date(Date.UTC(y, m - 1, d));
+    return t.getUTCFullYear() === y && t.getUTCMonth() === m - 1 && t.getUTCDate() === d;
+  }, "is not a real calendar date");
+
+export interface ApiErrorBody {
+  error: { code: string; message: string; fields?: Record<string, string> };
+}
