@@ -1,7 +1,9 @@
 import type { Request, RequestHandler, Response } from "express";
 import { Router } from "express";
 import rateLimit from "express-rate-limit";
-import type { PassportStatic } from "passport";
+import type { createPassport } from "./passport.ts";
+
+type Authenticator = ReturnType<typeof createPassport>;
 import {
   AcceptInvitationInputSchema,
   LoginInputSchema,
@@ -17,15 +19,15 @@ import type { RateLimitRepository } from "../rate-limit/rate-limit.repository.ts
 import type { AuthService } from "./auth.service.ts";
 
 function logIn(req: Request, user: User): Promise<void> {
-  return new Promise((resolve, reject) => {
+  return new Promise<void>((resolve, reject) => {
     // passport regenerates the session id here (fixation); keep the CSRF token with it.
-    req.login(user, { keepSessionInfo: true }, (err) => (err ? reject(err) : resolve()));
+    req.login(user, { keepSessionInfo: true } as Parameters<Request["login"]>[1], (err) => (err ? reject(err) : resolve()));
   }).then(() => {
     req.session.signedInAt = Date.now();
   });
 }
 
-function authenticate(passport: PassportStatic, req: Request, res: Response): Promise<User> {
+function authenticate(passport: Authenticator, req: Request, res: Response): Promise<User> {
   return new Promise((resolve, reject) => {
     const handler = passport.authenticate("local", { session: false }, (err: unknown, user: User | false) => {
       if (err) return reject(err);
@@ -38,7 +40,7 @@ function authenticate(passport: PassportStatic, req: Request, res: Response): Pr
 
 export function authRouter(deps: {
   auth: AuthService;
-  passport: PassportStatic;
+  passport: Authenticator;
   limits: { perIp: number; perAccount: number; windowMs: number };
   stores: { ip: RateLimitRepository; account: RateLimitRepository };
 }): Router {

@@ -1,13 +1,14 @@
 import { createHash, randomBytes } from "node:crypto";
 import { createRequire } from "node:module";
-import { Algorithm, hash, verify } from "@node-rs/argon2";
+import { hash, verify } from "@node-rs/argon2";
 import { AppError } from "../core/app-error.ts";
 
 const require = createRequire(import.meta.url);
 const commonPasswords = require("fxa-common-password-list") as { test(p: string): boolean };
 
 // OWASP's password storage cheat sheet lists argon2id with m=19 MiB, t=2, p=1 as a minimum.
-const OPTIONS = { algorithm: Algorithm.Argon2id, memoryCost: 19_456, timeCost: 2, parallelism: 1 };
+// algorithm 2 = Argon2id (the package's const enum cannot be read under isolatedModules).
+const OPTIONS = { algorithm: 2 as const, memoryCost: 19_456, timeCost: 2, parallelism: 1 };
 
 export const hashPassword = (password: string) => hash(password, OPTIONS);
 

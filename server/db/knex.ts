@@ -6,7 +6,9 @@ export type Db = Knex;
  * Connection options shared by the app, scripts and tests. Calendar dates stay
  * `YYYY-MM-DD` strings end to end; instants are UTC DATETIME(3).
  */
-export function connectionFromUrl(url: string, overrides: { database?: string | null } = {}): Knex.MySql2ConnectionConfig {
+type ConnectionOptions = Omit<Knex.MySql2ConnectionConfig, "dateStrings"> & { dateStrings: string[] };
+
+export function connectionFromUrl(url: string, overrides: { database?: string | null } = {}): ConnectionOptions {
   const u = new URL(url);
   const database = overrides.database === null ? undefined : (overrides.database ?? decodeURIComponent(u.pathname.replace(/^\//, "")));
   return {
@@ -26,7 +28,7 @@ export function connectionFromUrl(url: string, overrides: { database?: string | 
 export function createDb(url: string, pool: { min?: number; max?: number } = {}): Knex {
   return knexFactory({
     client: "mysql2",
-    connection: connectionFromUrl(url),
+    connection: connectionFromUrl(url) as unknown as Knex.MySql2ConnectionConfig,
     pool: { min: pool.min ?? 0, max: pool.max ?? 10 },
     acquireConnectionTimeout: 5000,
   });
@@ -37,7 +39,7 @@ export async function ensureDatabase(url: string): Promise<void> {
   const conn = connectionFromUrl(url);
   const name = conn.database;
   if (!name) throw new Error("DATABASE_URL names no database");
-  const admin = knexFactory({ client: "mysql2", connection: connectionFromUrl(url, { database: null }), pool: { min: 0, max: 1 } });
+  const admin = knexFactory({ client: "mysql2", connection: connectionFromUrl(url, { database: null }) as unknown as Knex.MySql2ConnectionConfig, pool: { min: 0, max: 1 } });
   try {
     await admin.raw("CREATE DATABASE IF NOT EXISTS ?? CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci", [name]);
   } finally {
@@ -47,9 +49,9 @@ export async function ensureDatabase(url: string): Promise<void> {
 
 export async function dropDatabase(url: string): Promise<void> {
   const conn = connectionFromUrl(url);
-  const admin = knexFactory({ client: "mysql2", connection: connectionFromUrl(url, { database: null }), pool: { min: 0, max: 1 } });
+  const admin = knexFactory({ client: "mysql2", connection: connectionFromUrl(url, { database: null }) as unknown as Knex.MySql2ConnectionConfig, pool: { min: 0, max: 1 } });
   try {
-    await admin.raw("DROP DATABASE IF EXISTS ??", [conn.database]);
+    await admin.raw("DROP DATABASE IF EXISTS ??", [conn.database ?? ""]);
   } finally {
     await admin.destroy();
   }

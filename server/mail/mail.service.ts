@@ -1,4 +1,4 @@
-import nodemailer, { type Transporter } from "nodemailer";
+import nodemailer, { type Transporter, type TransportOptions } from "nodemailer";
 import type { Logger } from "../core/logger.ts";
 import type { Db } from "../db/knex.ts";
 import { findMessage, findRaw, listMessages } from "./mail.repository.ts";
@@ -21,7 +21,7 @@ export interface Mailer {
 export function createMailer(opts: { smtpUrl: string; from: string; mode: "local" | "smtp"; logger: Logger }): Mailer {
   const transport: Transporter =
     opts.mode === "local"
-      ? nodemailer.createTransport({ url: opts.smtpUrl, ignoreTLS: true, pool: true, maxConnections: 4 } as nodemailer.TransportOptions)
+      ? nodemailer.createTransport({ url: opts.smtpUrl, ignoreTLS: true, pool: true, maxConnections: 4 } as TransportOptions)
       : nodemailer.createTransport(opts.smtpUrl);
   return {
     mode: opts.mode,

@@ -1,0 +1,86 @@
+import { Link, NavLink, Outlet } from "react-router-dom";
+import type { Role } from "#shared/schemas/common.ts";
+import { Logo } from "../../components/ui/logo.tsx";
+import { useLogout, useMe } from "../../features/auth/api.ts";
+import { RequireRole } from "../../features/auth/components/require-role.tsx";
+import { ROLE_LABEL } from "../../lib/format.ts";
+
+export interface AreaLink {
+  to: string;
+  label: string;
+  end?: boolean;
+  roles?: Role[];
+}
+
+function AccountBar() {
+  const me = useMe();
+  const logout = useLogout();
+  if (!me.data) return null;
+  return (
+    <div className="flex flex-wrap items-center gap-3 text-sm">
+      <span>
+        <span className="font-medium">{me.data.name}</span> <span className="text-ink-faint">· {ROLE_LABEL[me.data.role]}</span>
+      </span>
+      <button type="button" className="underline underline-offset-4" onClick={() => logout.mutate(undefined, { onSettled: () => window.location.assign("/sign-in") })}>
+        Sign out
+      </button>
+    </div>
+  );
+}
+
+function AreaNav({ links }: { links: AreaLink[] }) {
+  const me = useMe();
+  const role = me.data?.role;
+  return (
+    <nav aria-label="Sections" className="-mx-4 overflow-x-auto px-4 md:mx-0 md:px-0">
+      <ul className="flex gap-1 md:flex-col md:gap-0.5">
+        {links
+          .filter((l) => !l.roles || (role && l.roles.includes(role)))
+          .map((l) => (
+            <li key={l.to}>
+              <NavLink
+                to={l.to}
+                end={l.end}
+                className={({ isActive }) =>
+                  `block whitespace-nowrap border-l-0 px-3 py-2 text-sm md:border-l-4 ${isActive ? "border-b-2 border-accent font-semibold md:border-b-0 md:bg-sheet" : "border-transparent text-ink-soft hover:text-ink"}`
+                }
+              >
+                {l.label}
+              </NavLink>
+            </li>
+          ))}
+      </ul>
+    </nav>
+  );
+}
+
+/** The frame of the site office and the investor room: guarded by role, sections at the side. */
+export function AreaLayout({ name, roles, links }: { name: string; roles: Role[]; links: AreaLink[] }) {
+  return (
+    <div className="flex min-h-screen flex-col">
+      <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:bg-sheet focus:p-2">
+        Skip to content
+      </a>
+      <header className="border-b-2 border-ink bg-paper">
+        <div className="mx-auto flex max-w-7xl flex-wrap items-center justify-between gap-3 px-4 py-3">
+          <div className="flex items-center gap-3">
+            <Link to="/" aria-label="Public progress site">
+              <Logo />
+            </Link>
+            <span aria-hidden className="h-5 w-px bg-rule-strong" />
+            <span className="label-caps text-ink">{name}</span>
+          </div>
+          <AccountBar />
+        </div>
+      </header>
+      <RequireRole roles={roles} area={name.toLowerCase()}>
+        <div className="mx-auto grid w-full max-w-7xl flex-1 gap-6 px-4 py-6 md:grid-cols-[13rem_1fr]">
+          <AreaNav links={links} />
+          <main id="main" className="min-w-0">
+            <Outlet />
+          </main>
+        </div>
+      </RequireRole>
+    </div>
+  );
+}

@@ -1,0 +1,38 @@
+import { Link, NavLink, Outlet } from "react-router-dom";
+import { Logo } from "../../components/ui/logo.tsx";
+import { useMe, homeFor } from "../../features/auth/api.ts";
+
+export function PublicLayout() {
+  const me = useMe();
+  return (
+    <div className="flex min-h-screen flex-col">
+      <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:bg-sheet focus:p-2">
+        Skip to content
+      </a>
+      <header className="border-b border-rule bg-paper">
+        <div className="mx-auto flex max-w-5xl items-center justify-between gap-4 px-4 py-3">
+          <Link to="/" aria-label="Plumbline home">
+            <Logo className="text-lg" />
+          </Link>
+          <nav aria-label="Account" className="text-sm">
+            {me.data ? (
+              <NavLink to={homeFor(me.data)} className="font-medium underline underline-offset-4">
+                {me.data.role === "investor" ? "Investor room" : "Site office"}
+              </NavLink>
+            ) : (
+              <NavLink to="/sign-in" className="font-medium underline underline-offset-4">
+                Sign in
+              </NavLink>
+            )}
+          </nav>
+        </div>
+      </header>
+      <main id="main" className="flex-1">
+        <Outlet />
+      </main>
+      <footer className="border-t border-rule">
+        <div className="mx-auto max-w-5xl px-4 py-6 text-xs text-ink-faint">Published with Plumbline. Engineering figures on these pages are indicative; design and operation are for qualified engineers under local codes.</div>
+      </footer>
+    </div>
+  );
+}

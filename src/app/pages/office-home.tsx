@@ -1,0 +1,37 @@
+import { Link } from "react-router-dom";
+import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { useMe } from "../../features/auth/api.ts";
+import { useProjects } from "../../features/projects/api.ts";
+
+export function OfficeHomePage() {
+  const me = useMe();
+  const projects = useProjects();
+  return (
+    <>
+      <PageHeader sheet="Site office · Overview" title={`Good to see you, ${me.data?.name.split(" ")[0] ?? ""}`} description="Keep the record of each build in one place: programme, updates, photographs and the people who follow them." />
+      <div className="grid gap-4 lg:grid-cols-2">
+        <Sheet label="Projects" title="Builds in this site office">
+          <ul className="divide-y divide-rule">
+            {(projects.data ?? []).map((p) => (
+              <li key={p.id} className="py-2">
+                <p className="font-medium">{p.name}</p>
+                <p className="text-sm text-ink-soft">
+                  {p.operatorName} · <Link className="underline underline-offset-4" to={`/projects/${p.slug}`}>public page</Link> ·{" "}
+                  <Link className="underline underline-offset-4" to={`/investors/projects/${p.slug}`}>investor view</Link>
+                </p>
+              </li>
+            ))}
+          </ul>
+        </Sheet>
+        <Sheet label="Mail" title="Outbox">
+          <p className="text-sm text-ink-soft">Mail goes to the local sink in this set-up; read each message as the recipient would see it.</p>
+          <p className="mt-3">
+            <Link to="/office/outbox" className="font-medium text-accent underline underline-offset-4">
+              Open the outbox
+            </Link>
+          </p>
+        </Sheet>
+      </div>
+    </>
+  );
+}

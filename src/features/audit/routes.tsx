@@ -1,0 +1,58 @@
+import { createColumnHelper, getCoreRowModel, useReactTable } from "@tanstack/react-table";
+import { useSearchParams } from "react-router-dom";
+import type { AuditEvent } from "#shared/schemas/users.ts";
+import { DataTable } from "../../components/ui/data-table.tsx";
+import { SelectField } from "../../components/ui/field.tsx";
+import { Notice, PageHeader, Spinner } from "../../components/ui/sheet.tsx";
+import { formatInstant } from "../../lib/format.ts";
+import { useAudit } from "./api.ts";
+
+const ACTIONS: Record<string, string> = {
+  sign_in: "Signed in",
+  sign_in_failed: "Sign-in refused",
+  sign_out: "Signed out",
+  invitation_sent: "Invitation sent",
+  invitation_accepted: "Invitation accepted",
+  password_reset_requested: "Reset requested",
+  password_reset: "Password reset",
+  role_changed: "Role changed",
+  user_disabled: "Account disabled",
+  user_enabled: "Account enabled",
+};
+
+const col = createColumnHelper<AuditEvent>();
+const columns = [
+  col.accessor("at", { header: "When", cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
+  col.accessor("action", { header: "What", cell: (c) => ACTIONS[c.getValue()] ?? c.getValue() }),
+  col.accessor("actorEmail", { header: "Who", cell: (c) => <span className="break-all">{c.getValue() ?? "—"}</span> }),
+  col.accessor("targetLabel", { header: "Concerning", cell: (c) => <span className="break-all">{c.getValue() ?? "—"}</span> }),
+  col.accessor("ip", { header: "From", cell: (c) => <span className="font-mono text-xs">{c.getValue() ?? "—"}</span> }),
+  col.accessor("detail", {
+    header: "Detail",
+    cell: (c) => {
+      const d = c.getValue();
+      return d ? <span className="text-xs text-ink-soft">{Object.entries(d).map(([k, v]) => `${k}: ${String(v)}`).join(" · ")}</span> : null;
+    },
+  }),
+];
+
+export function AuditPage() {
+  const [params, setParams] = useSearchParams();
+  const action = params.get("action") ?? "";
+  const audit = useAudit({ action: action || undefined });
+  const table = useReactTable({ data: audit.data ?? [], columns, getCoreRowModel: getCoreRowModel() });
+  return (
+    <>
+      <PageHeader sheet="Site office · Audit log" title="Audit log" description="Sign-ins, invitations, resets and account changes: who, when and from which address. Newest first." />
+      <div className="mb-4 max-w-xs">
+        <SelectField
+          label="Show"
+          value={action}
+          onChange={(e) => setParams(e.target.value ? { action: e.target.value } : {})}
+          options={[{ value: "", label: "Every kind of event" }, ...Object.entries(ACTIONS).map(([value, label]) => ({ value, label }))]}
+        />
+      </div>
+      {audit.isPending ? <Spinner /> : audit.isError ? <Notice tone="error">{audit.error.message}</Notice> : <DataTable table={table} caption="Audit events" empty="No events of this kind." />}
+    </>
+  );
+}

@@ -1,0 +1,171 @@
+import { zodResolver } from "@hookform/resolvers/zod";
+import { useQuery } from "@tanstack/react-query";
+import { useState } from "react";
+import { useForm } from "react-hook-form";
+import { Link, useNavigate, useParams, useSearchParams } from "react-router-dom";
+import { z } from "zod";
+import { LoginInputSchema, NewPasswordSchema, ResetRequestInputSchema, type LoginInput } from "#shared/schemas/auth.ts";
+import { Button } from "../../components/ui/button.tsx";
+import { TextField } from "../../components/ui/field.tsx";
+import { Notice, Spinner } from "../../components/ui/sheet.tsx";
+import { ApiError } from "../../lib/api-client.ts";
+import { applyFieldErrors, ROLE_LABEL } from "../../lib/format.ts";
+import { homeFor, invitationQueryOptions, useAcceptInvitation, useLogin, useRequestReset, useResetPassword } from "./api.ts";
+
+function AuthCard({ title, lead, children }: { title: string; lead?: string; children: React.ReactNode }) {
+  return (
+    <div className="mx-auto w-full max-w-md px-4 py-10 sm:py-16">
+      <div className="border border-rule bg-sheet">
+        <div className="border-b-2 border-ink px-5 py-4">
+          <p className="label-caps">Plumbline</p>
+          <h1 className="text-xl font-semibold">{title}</h1>
+          {lead ? <p className="mt-1 text-sm text-ink-soft">{lead}</p> : null}
+        </div>
+        <div className="px-5 py-5">{children}</div>
+      </div>
+    </div>
+  );
+}
+
+/** Only same-site paths are followed after sign-in. */
+function safeNext(next: string | null): string | null {
+  return next && next.startsWith("/") && !next.startsWith("//") ? next : null;
+}
+
+export function SignInPage() {
+  const [params] = useSearchParams();
+  const navigate = useNavigate();
+  const login = useLogin();
+  const form = useForm<LoginInput>({ resolver: zodResolver(LoginInputSchema), defaultValues: { email: "", password: "" } });
+  const onSubmit = form.handleSubmit(async (values) => {
+    try {
+      const { user } = await login.mutateAsync(values);
+      navigate(safeNext(params.get("next")) ?? homeFor(user), { replace: true });
+    } catch (e) {
+      if (e instanceof ApiError && Object.keys(e.fields).length) applyFieldErrors(e.fields, form.setError);
+    }
+  });
+  const err = login.error instanceof ApiError && !Object.keys(login.error.fields).length ? login.error : null;
+  return (
+    <AuthCard title="Sign in" lead="For the operator's staff and invited investors. Accounts are by invitation only.">
+      <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
+        {err ? (
+          <Notice tone="error" title={err.code === "rate_limited" ? "Too many attempts" : "Not signed in"}>
+            {err.message}
+          </Notice>
+        ) : null}
+        <TextField label="E-mail address" type="email" autoComplete="username" error={form.formState.errors.email?.message} {...form.register("email")} />
+        <TextField label="Password" type="password" autoComplete="current-password" error={form.formState.errors.password?.message} {...form.register("password")} />
+        <Button type="submit" variant="primary" busy={login.isPending}>
+          Sign in
+        </Button>
+        <p className="text-sm">
+          <Link to="/forgot-password" className="text-accent underline underline-offset-4">
+            Forgotten your password?
+          </Link>
+        </p>
+      </form>
+    </AuthCard>
+  );
+}
+
+const AcceptFormSchema = z
+  .object({ name: z.string().trim().min(1, "is required").max(200), password: NewPasswordSchema, confirm: z.string() })
+  .refine((v) => v.password === v.confirm, { path: ["confirm"], message: "does not match the password" });
+
+export function AcceptInvitationPage() {
+  const { token = "" } = useParams();
+  const navigate = useNavigate();
+  const invitation = useQuery(invitationQueryOptions(token));
+  const accept = useAcceptInvitation(token);
+  const form = useForm<z.infer<typeof AcceptFormSchema>>({ resolver: zodResolver(AcceptFormSchema), defaultValues: { name: "", password: "", confirm: "" } });
+  if (invitation.isPending) return <Spinner label="Opening your invitation" />;
+  if (invitation.isError) {
+    return (
+      <AuthCard title="This invitation cannot be used">
+        <Notice tone="error">{invitation.error.message}</Notice>
+        <p className="mt-4 text-sm">
+          <Link to="/sign-in" className="text-accent underline underline-offset-4">
+            Go to sign-in
+          </Link>
+        </p>
+      </AuthCard>
+    );
+  }
+  const onSubmit = form.handleSubmit(async ({ name, password }) => {
+    try {
+      const { user } = await accept.mutateAsync({ name, password });
+      navigate(homeFor(user), { replace: true });
+    } catch (e) {
+      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { password: e.message }, form.setError);
+    }
+  });
+  return (
+    <AuthCard title="Accept your invitation" lead={`${invitation.data.email} · ${ROLE_LABEL[invitation.data.role]}`}>
+      <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
+        <TextField label="Your name" autoComplete="name" error={form.formState.errors.name?.message} {...form.register("name")} />
+        <TextField label="Choose a password" type="password" autoComplete="new-password" hint="At least 12 characters; common passwords are refused. A short sentence works well." error={form.formState.errors.password?.message} {...form.register("password")} />
+        <TextField label="The same password again" type="password" autoComplete="new-password" error={form.formState.errors.confirm?.message} {...form.register("confirm")} />
+        <Button type="submit" variant="primary" busy={accept.isPending}>
+          Create my account
+        </Button>
+      </form>
+    </AuthCard>
+  );
+}
+
+export function ForgotPasswordPage() {
+  const request = useRequestReset();
+  const [sent, setSent] = useState<string | null>(null);
+  const form = useForm<{ email: string }>({ resolver: zodResolver(ResetRequestInputSchema), defaultValues: { email: "" } });
+  const onSubmit = form.handleSubmit(async (v) => {
+    try {
+      const r = await request.mutateAsync(v);
+      setSent(r.message);
+    } catch (e) {
+      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { email: e.message }, form.setError);
+    }
+  });
+  return (
+    <AuthCard title="Reset your password" lead="We will e-mail a link that works once, for one hour.">
+      {sent ? (
+        <Notice title="Check your e-mail">{sent}</Notice>
+      ) : (
+        <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
+          <TextField label="E-mail address" type="email" autoComplete="username" error={form.formState.errors.email?.message} {...form.register("email")} />
+          <Button type="submit" variant="primary" busy={request.isPending}>
+            Send the link
+          </Button>
+        </form>
+      )}
+    </AuthCard>
+  );
+}
+
+const ResetFormSchema = z.object({ password: NewPasswordSchema, confirm: z.string() }).refine((v) => v.password === v.confirm, { path: ["confirm"], message: "does not match the password" });
+
+export function ResetPasswordPage() {
+  const { token = "" } = useParams();
+  const navigate = useNavigate();
+  const reset = useResetPassword(token);
+  const form = useForm<z.infer<typeof ResetFormSchema>>({ resolver: zodResolver(ResetFormSchema), defaultValues: { password: "", confirm: "" } });
+  const onSubmit = form.handleSubmit(async ({ password }) => {
+    try {
+      const { user } = await reset.mutateAsync({ password });
+      navigate(homeFor(user), { replace: true });
+    } catch (e) {
+      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { password: e.message }, form.setError);
+    }
+  });
+  return (
+    <AuthCard title="Choose a new password" lead="Setting it signs you out on every other device.">
+      <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
+        <TextField label="New password" type="password" autoComplete="new-password" hint="At least 12 characters; common passwords are refused." error={form.formState.errors.password?.message} {...form.register("password")} />
+        <TextField label="The same password again" type="password" autoComplete="new-password" error={form.formState.errors.confirm?.message} {...form.register("confirm")} />
+        <Button type="submit" variant="primary" busy={reset.isPending}>
+          Set the password
+        </Button>
+      </form>
+    </AuthCard>
+  );
+}

@@ -1,0 +1,148 @@
+import { zodResolver } from "@hookform/resolvers/zod";
+import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
+import { useMemo, useState } from "react";
+import { useForm } from "react-hook-form";
+import { toast } from "sonner";
+import { RoleSchema } from "#shared/schemas/common.ts";
+import { InviteInputSchema, type InvitationRow, type InviteInput, type UserRow } from "#shared/schemas/users.ts";
+import { Button } from "../../components/ui/button.tsx";
+import { DataTable } from "../../components/ui/data-table.tsx";
+import { SelectField, TextField } from "../../components/ui/field.tsx";
+import { PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { ApiError } from "../../lib/api-client.ts";
+import { applyFieldErrors, formatInstant, ROLE_LABEL } from "../../lib/format.ts";
+import { useInvitations, useInvite, useUpdateUser, useUsers } from "./api.ts";
+
+const roleOptions = RoleSchema.options.map((r) => ({ value: r, label: ROLE_LABEL[r] }));
+
+function InviteForm() {
+  const invite = useInvite();
+  const form = useForm<InviteInput>({ resolver: zodResolver(InviteInputSchema), defaultValues: { email: "", role: "marketing" } });
+  const onSubmit = form.handleSubmit(async (v) => {
+    try {
+      await invite.mutateAsync(v);
+      toast.success(`Invitation sent to ${v.email}`);
+      form.reset({ email: "", role: v.role });
+    } catch (e) {
+      if (e instanceof ApiError && Object.keys(e.fields).length) applyFieldErrors(e.fields, form.setError);
+    }
+  });
+  return (
+    <form onSubmit={onSubmit} noValidate className="grid gap-3 sm:grid-cols-[1fr_12rem_auto] sm:items-end">
+      <TextField label="E-mail address to invite" type="email" error={form.formState.errors.email?.message} {...form.register("email")} />
+      <SelectField label="Role" options={roleOptions} error={form.formState.errors.role?.message} {...form.register("role")} />
+      <Button type="submit" variant="primary" busy={invite.isPending}>
+        Send invitation
+      </Button>
+    </form>
+  );
+}
+
+const col = createColumnHelper<UserRow>();
+
+function UsersTable({ users }: { users: UserRow[] }) {
+  const update = useUpdateUser();
+  const [sorting, setSorting] = useState<SortingState>([]);
+  const columns = useMemo(
+    () => [
+      col.accessor("name", { header: "Name", cell: (c) => <span className="font-medium">{c.getValue()}</span> }),
+      col.accessor("email", { header: "E-mail", cell: (c) => <span className="break-all">{c.getValue()}</span> }),
+      col.accessor("role", {
+        header: "Role",
+        cell: (c) => (
+          <label className="block">
+            <span className="sr-only">Role of {c.row.original.email}</span>
+            <select
+              className="rounded-sm border border-rule-strong bg-sheet px-2 py-1"
+              value={c.getValue()}
+              onChange={(e) => update.mutate({ id: c.row.original.id, role: e.target.value as UserRow["role"] }, { onSuccess: () => toast.success("Role changed") })}
+            >
+              {roleOptions.map((o) => (
+                <option key={o.value} value={o.value}>
+                  {o.label}
+                </option>
+              ))}
+            </select>
+          </label>
+        ),
+      }),
+      col.accessor("disabled", {
+        header: "Status",
+        cell: (c) =>
+          c.getValue() ? (
+            <span className="inline-flex items-center gap-1 text-bad">
+              <span aria-hidden>■</span> Disabled
+            </span>
+          ) : (
+            <span className="inline-flex items-center gap-1 text-good">
+              <span aria-hidden>●</span> Active
+            </span>
+          ),
+      }),
+      col.accessor("lastSignInAt", { header: "Last sign-in", cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
+      col.display({
+        id: "actions",
+        header: "",
+        cell: (c) => {
+          const u = c.row.original;
+          return (
+            <Button
+              size="sm"
+              variant={u.disabled ? "secondary" : "danger"}
+              onClick={() => {
+                if (!u.disabled && !window.confirm(`Disable ${u.email}? They are signed out at once.`)) return;
+                update.mutate({ id: u.id, disabled: !u.disabled }, { onSuccess: () => toast.success(u.disabled ? "Account enabled" : "Account disabled and signed out") });
+              }}
+            >
+              {u.disabled ? "Enable" : "Disable"}
+            </Button>
+          );
+        },
+      }),
+    ],
+    [update],
+  );
+  const table = useReactTable({ data: users, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  return <DataTable table={table} caption="Users of the site office and investor room" />;
+}
+
+const icol = createColumnHelper<InvitationRow>();
+const invitationColumns = [
+  icol.accessor("email", { header: "Invited address" }),
+  icol.accessor("role", { header: "Role", cell: (c) => ROLE_LABEL[c.getValue()] }),
+  icol.accessor("status", { header: "State", cell: (c) => ({ pending: "◌ Waiting", accepted: "● Accepted", expired: "✕ Expired", revoked: "— Replaced" })[c.getValue()] }),
+  icol.accessor("invitedBy", { header: "By" }),
+  icol.accessor("expiresAt", { header: "Link expires", cell: (c) => formatInstant(c.getValue()) }),
+];
+
+function InvitationsTable({ rows }: { rows: InvitationRow[] }) {
+  const table = useReactTable({ data: rows, columns: invitationColumns, getCoreRowModel: getCoreRowModel() });
+  return <DataTable table={table} caption="Invitations" empty="No invitations sent yet." />;
+}
+
+export function UsersPage() {
+  const users = useUsers();
+  const invitations = useInvitations();
+  return (
+    <>
+      <PageHeader sheet="Site office · Users" title="Users" description="Accounts exist by invitation only. Changing a role or disabling an account takes effect at once." />
+      <div className="flex flex-col gap-6">
+        <Sheet label="Invite" title="Invite someone">
+          <InviteForm />
+        </Sheet>
+        <section aria-labelledby="users-h">
+          <h2 id="users-h" className="mb-2 text-lg font-semibold">
+            Accounts
+          </h2>
+          {users.isPending ? <Spinner /> : users.isError ? <p role="alert">{users.error.message}</p> : <UsersTable users={users.data} />}
+        </section>
+        <section aria-labelledby="inv-h">
+          <h2 id="inv-h" className="mb-2 text-lg font-semibold">
+            Invitations
+          </h2>
+          {invitations.isPending ? <Spinner /> : invitations.isError ? <p role="alert">{invitations.error.message}</p> : <InvitationsTable rows={invitations.data} />}
+        </section>
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,79 @@
+import type { ApiErrorBody } from "#shared/schemas/common.ts";
+
+/** An error answer from the API, in the fixed shape, as a typed exception. */
+export class ApiError extends Error {
+  constructor(
+    public readonly status: number,
+    public readonly code: string,
+    message: string,
+    public readonly fields: Record<string, string> = {},
+    public readonly body: unknown = null,
+  ) {
+    super(message);
+    this.name = "ApiError";
+  }
+}
+
+let csrfToken: string | null = null;
+let csrfPromise: Promise<string> | null = null;
+
+async function fetchCsrf(): Promise<string> {
+  csrfPromise ??= fetch("/api/auth/csrf", { credentials: "same-origin" })
+    .then((r) => r.json() as Promise<{ token: string }>)
+    .then((b) => {
+      csrfToken = b.token;
+      return b.token;
+    })
+    .finally(() => {
+      csrfPromise = null;
+    });
+  return csrfPromise;
+}
+
+/** Forget the token, e.g. after sign-out, when the server starts a new session. */
+export function resetCsrf(): void {
+  csrfToken = null;
+}
+
+type Method = "GET" | "POST" | "PATCH" | "PUT" | "DELETE";
+
+async function send<T>(method: Method, path: string, body?: unknown, retried = false): Promise<T> {
+  const headers: Record<string, string> = { Accept: "application/json" };
+  const isForm = typeof FormData !== "undefined" && body instanceof FormData;
+  if (body !== undefined && !isForm) headers["Content-Type"] = "application/json";
+  if (method !== "GET") headers["X-CSRF-Token"] = csrfToken ?? (await fetchCsrf());
+  const res = await fetch(path, {
+    method,
+    headers,
+    credentials: "same-origin",
+    body: body === undefined ? undefined : isForm ? (body as FormData) : JSON.stringify(body),
+  });
+  if (res.status === 204) return undefined as T;
+  const type = res.headers.get("content-type") ?? "";
+  const payload: unknown = type.includes("json") ? await res.json() : await res.text();
+  if (!res.ok) {
+    const err = (payload as ApiErrorBody | null)?.error;
+    if (res.status === 403 && err?.code === "csrf" && !retried) {
+      csrfToken = null;
+      return send<T>(method, path, body, true);
+    }
+    throw new ApiError(res.status, err?.code ?? "http_error", err?.message ?? `The server answered ${res.status}.`, err?.fields ?? {}, payload);
+  }
+  return payload as T;
+}
+
+export const api = {
+  get: <T>(path: string) => send<T>("GET", path),
+  post: <T>(path: string, body?: unknown) => send<T>("POST", path, body ?? {}),
+  patch: <T>(path: string, body: unknown) => send<T>("PATCH", path, body),
+  put: <T>(path: string, body: unknown) => send<T>("PUT", path, body),
+  delete: <T>(path: string) => send<T>("DELETE", path),
+};
+
+/** Query string from an object, skipping empty values. */
+export function qs(params: Record<string, string | number | boolean | undefined | null>): string {
+  const u = new URLSearchParams();
+  for (const [k, v] of Object.entries(params)) if (v !== undefined && v !== null && v !== "") u.set(k, String(v));
+  const s = u.toString();
+  return s ? `?${s}` : "";
+}

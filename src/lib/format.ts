@@ -1,0 +1,22 @@
+const dateFmt = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
+
+/** `YYYY-MM-DD` → "3 Mar 2027". Calendar dates are not instants: formatted in UTC so they never shift. */
+export function formatDate(d: string | null | undefined): string {
+  if (!d) return "—";
+  const [y, m, day] = d.slice(0, 10).split("-").map(Number) as [number, number, number];
+  return dateFmt.format(new Date(Date.UTC(y, m - 1, day)));
+}
+
+/** An instant in a named time zone (the project's), with the zone shown. */
+export function formatInstant(iso: string | null | undefined, timeZone = "Europe/London"): string {
+  if (!iso) return "—";
+  // dateStyle/timeStyle cannot be combined with timeZoneName, so the fields are spelled out.
+  return new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit", timeZone, timeZoneName: "short" }).format(new Date(iso));
+}
+
+export const ROLE_LABEL = { admin: "Administrator", lead: "Project lead", marketing: "Marketing", investor: "Investor" } as const;
+
+/** Applies a server's field errors to a react-hook-form form. */
+export function applyFieldErrors(fields: Record<string, string>, setError: (name: never, e: { message: string }) => void): void {
+  for (const [name, message] of Object.entries(fields)) setError(name as never, { message });
+}

@@ -1,0 +1,120 @@
+import type { AddressInfo } from "node:net";
+import { createServer, type Server } from "node:http";
+import { inject } from "vitest";
+import request from "supertest";
+import type TestAgent from "supertest/lib/agent.js";
+import { pino } from "pino";
+import { createApp, type PlumblineApp } from "../../server/app.ts";
+import { loadConfig, type Config } from "../../server/config.ts";
+import { createDb, type Db } from "../../server/db/knex.ts";
+import { createMailer, type Mailer } from "../../server/mail/mail.service.ts";
+import { startMailSink, type MailSink } from "../../server/mail/mail.sink.ts";
+import { hashPassword } from "../../server/auth/passwords.ts";
+import type { Role } from "../../src/shared/schemas/common.ts";
+
+export const DEMO_PASSWORD = process.env.DEMO_PASSWORD || "plumbline-demo";
+export const DEMO = {
+  admin: "admin@kestrel.example",
+  lead: "lead@kestrel.example",
+  marketing: "marketing@kestrel.example",
+  investor: "investor@harbourfund.example",
+} as const;
+
+export interface TestApp {
+  plumbline: PlumblineApp;
+  db: Db;
+  config: Config;
+  mailer: Mailer;
+  sink: MailSink;
+  /** Set when started with `listen: true` (browser tests). */
+  baseUrl: string | null;
+  close(): Promise<void>;
+}
+
+/** The real app over the test project's MariaDB and a real SMTP sink on a free port. */
+export async function startTestApp(env: Record<string, string> = {}, opts: { listen?: boolean } = {}): Promise<TestApp> {
+  const databaseUrl = inject("databaseUrl");
+  const config = loadConfig({
+    NODE_ENV: "test",
+    SESSION_SECRET: "test-secret-not-for-production-0123456789",
+    LOGIN_LIMIT_PER_IP: "100000",
+    LOGIN_LIMIT_PER_ACCOUNT: "100000",
+    LOG_LEVEL: "silent",
+    PUBLIC_URL: "http://plumbline.test",
+    SMTP_SINK_PORT: "0",
+    ...env,
+    DATABASE_URL: databaseUrl,
+  });
+  const logger = pino({ level: config.LOG_LEVEL });
+  const db = createDb(databaseUrl);
+  const sink = await startMailSink({ db, logger, host: "127.0.0.1", port: 0 });
+  const mailer = createMailer({ smtpUrl: `smtp://127.0.0.1:${sink.port}`, from: config.MAIL_FROM, mode: "local", logger });
+  const plumbline = createApp({ db, config, logger, mailer });
+  let server: Server | null = null;
+  let baseUrl: string | null = null;
+  if (opts.listen) {
+    server = createServer(plumbline.app);
+    await new Promise<void>((resolve) => server!.listen(0, "127.0.0.1", () => resolve()));
+    baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  }
+  return {
+    plumbline,
+    db,
+    config,
+    mailer,
+    sink,
+    baseUrl,
+    async close() {
+      if (server) await new Promise<void>((resolve) => server!.close(() => resolve()));
+      plumbline.close();
+      mailer.close();
+      await sink.close();
+      await db.destroy();
+    },
+  };
+}
+
+export type Agent = InstanceType<typeof TestAgent>;
+
+/** A cookie-keeping client that has fetched its CSRF token; `csrf` goes in X-CSRF-Token. */
+export async function newClient(t: TestApp): Promise<{ agent: Agent; csrf: string }> {
+  const agent = request.agent(t.plumbline.app);
+  const res = await agent.get("/api/auth/csrf").expect(200);
+  return { agent, csrf: res.body.token as string };
+}
+
+export async function signIn(t: TestApp, email: string, password = DEMO_PASSWORD) {
+  const c = await newClient(t);
+  await c.agent.post("/api/auth/login").set("X-CSRF-Token", c.csrf).send({ email, password }).expect(200);
+  return c;
+}
+
+let seq = 0;
+/** A fresh user of its own for tests that change or disable accounts. */
+export async function createUser(t: TestApp, role: Role, password = "a-long-test-password-42") {
+  seq += 1;
+  const email = `${role}-${Date.now().toString(36)}-${seq}@test.example`;
+  const [id] = await t.db("users").insert({ email, name: `Test ${role} ${seq}`, role, password_hash: await hashPassword(password) });
+  return { id: Number(id), email, password, role };
+}
+
+/** Waits until the sink has stored a message for `to` newer than `afterId`. */
+export async function waitForMail(t: TestApp, to: string, afterId = 0, timeoutMs = 5000) {
+  const started = Date.now();
+  for (;;) {
+    const row = await t.db("mail_messages as m")
+      .join("mail_recipients as r", "r.message_id", "m.id")
+      .where("r.address", to.toLowerCase())
+      .andWhere("m.id", ">", afterId)
+      .orderBy("m.id", "desc")
+      .first("m.id", "m.text", "m.html", "m.subject");
+    if (row) return { id: Number(row.id), text: String(row.text), html: String(row.html), subject: String(row.subject) };
+    if (Date.now() - started > timeoutMs) throw new Error(`no mail for ${to} within ${timeoutMs} ms`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
+
+export async function lastMailId(t: TestApp): Promise<number> {
+  const r = await t.db("mail_messages").max({ id: "id" }).first();
+  return Number(r?.id ?? 0);
+}

@@ -1,0 +1,19 @@
+import { defineConfig } from "vite";
+import react from "@vitejs/plugin-react";
+import tailwindcss from "@tailwindcss/vite";
+
+export default defineConfig({
+  plugins: [react(), tailwindcss()],
+  server: {
+    proxy: {
+      "/api": `http://127.0.0.1:${process.env.API_PORT ?? "3001"}`,
+      "/feed": `http://127.0.0.1:${process.env.API_PORT ?? "3001"}`,
+      "/media": `http://127.0.0.1:${process.env.API_PORT ?? "3001"}`,
+    },
+  },
+  build: {
+    outDir: "dist",
+    sourcemap: true,
+    chunkSizeWarningLimit: 900,
+  },
+});
