@@ -34,7 +34,7 @@ export default defineConfig({
           name: "client",
           include: ["tests/client/**/*.test.tsx"],
           environment: "jsdom",
-          setupFiles: ["tests/setup/fail-on-console-error.ts"],
+          setupFiles: ["tests/setup/fail-on-console-error.ts", "tests/setup/client-cleanup.ts"],
         },
       },
       {
