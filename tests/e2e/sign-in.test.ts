@@ -71,12 +71,12 @@ describe("signing in through the form, as each demo user", () => {
       await page.waitForURL(/\/office\/users$/);
       await page.getByRole("heading", { name: "Users", level: 1 }).waitFor();
       // The table has loaded, with the admin's own last sign-in shown.
-      await page.getByRole("cell", { name: DEMO.admin }).waitFor();
+      await page.getByRole("cell", { name: DEMO.admin, exact: true }).waitFor();
       await page.getByText("Active").first().waitFor();
       await page.getByRole("link", { name: "Audit log" }).click();
       await page.getByRole("cell", { name: "Signed in" }).first().waitFor();
       await page.getByRole("link", { name: "Users" }).click();
-      await page.getByRole("cell", { name: DEMO.admin }).waitFor();
+      await page.getByRole("cell", { name: DEMO.admin, exact: true }).waitFor();
       await screenshot(page, "office-users");
       expect(await page.getByRole("alert").count()).toBe(0);
       expect(errors).toEqual([]);
