@@ -157,3 +157,35 @@ describe("ending sessions", () => {
     expect(res.body.error.code).toBe("self_lockout");
   });
 });
+
+describe("session lifetimes and cookies", () => {
+  it("a sign-in older than the absolute lifetime ends, however active", async () => {
+    const u = await createUser(t, "marketing");
+    const c = await signIn(t, u.email, u.password);
+    await c.agent.get("/api/auth/me").expect(200);
+    const row = await t.db("sessions").where({ user_id: u.id }).first();
+    const sess = JSON.parse(row.sess);
+    sess.signedInAt = Date.now() - (t.config.SESSION_ABSOLUTE_HOURS * 3_600_000 + 60_000);
+    await t.db("sessions").where({ sid: row.sid }).update({ sess: JSON.stringify(sess) });
+    await c.agent.get("/api/auth/me").expect(401);
+  });
+
+  it("a session idle longer than the idle lifetime is gone", async () => {
+    const u = await createUser(t, "lead");
+    const c = await signIn(t, u.email, u.password);
+    await t.db("sessions").where({ user_id: u.id }).update({ expires_at: new Date(Date.now() - 1000) });
+    await c.agent.get("/api/auth/me").expect(401);
+  });
+
+  it("behind a trusted HTTPS proxy the cookie is Secure; over plain HTTP it is not", async () => {
+    const proxied = await startTestApp({ TRUST_PROXY: "true" });
+    try {
+      const overHttps = await request(proxied.plumbline.app).get("/api/auth/csrf").set("X-Forwarded-Proto", "https");
+      expect(String(overHttps.headers["set-cookie"])).toMatch(/;\s*Secure/i);
+      const overHttp = await request(proxied.plumbline.app).get("/api/auth/csrf");
+      expect(String(overHttp.headers["set-cookie"])).not.toMatch(/;\s*Secure/i);
+    } finally {
+      await proxied.close();
+    }
+  });
+});

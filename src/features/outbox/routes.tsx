@@ -1,10 +1,34 @@
+import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
 import { useState } from "react";
 import { Link, useParams, useSearchParams } from "react-router-dom";
+import type { OutboxMessage } from "#shared/schemas/outbox.ts";
+import { DataTable } from "../../components/ui/data-table.tsx";
 import { Button } from "../../components/ui/button.tsx";
 import { TextField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
 import { formatInstant } from "../../lib/format.ts";
 import { useOutbox, useOutboxMessage } from "./api.ts";
+
+const col = createColumnHelper<OutboxMessage>();
+const columns = [
+  col.accessor("receivedAt", { header: "Received", cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
+  col.accessor("subject", {
+    header: "Subject",
+    cell: (c) => (
+      <Link to={`/office/outbox/${c.row.original.id}`} className="font-medium underline underline-offset-4">
+        {c.getValue() || "(no subject)"}
+      </Link>
+    ),
+  }),
+  col.accessor("to", { header: "To", cell: (c) => <span className="break-all">{c.getValue()}</span> }),
+  col.accessor("from", { header: "From", cell: (c) => <span className="break-all text-ink-soft">{c.getValue()}</span> }),
+];
+
+function OutboxTable({ rows }: { rows: OutboxMessage[] }) {
+  const [sorting, setSorting] = useState<SortingState>([]);
+  const table = useReactTable({ data: rows, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  return <DataTable table={table} caption="Messages, newest first" />;
+}
 
 export function OutboxPage() {
   const [params, setParams] = useSearchParams();
@@ -42,19 +66,7 @@ export function OutboxPage() {
       ) : list.data.length === 0 ? (
         <Notice>No messages{to ? ` to ${to}` : ""} yet.</Notice>
       ) : (
-        <ul className="divide-y divide-rule border border-rule bg-sheet" aria-label="Messages, newest first">
-          {list.data.map((m) => (
-            <li key={m.id}>
-              <Link to={`/office/outbox/${m.id}`} className="grid gap-1 px-4 py-3 hover:bg-paper sm:grid-cols-[1fr_auto]">
-                <span className="min-w-0">
-                  <span className="block truncate font-medium">{m.subject || "(no subject)"}</span>
-                  <span className="block truncate text-sm text-ink-soft">to {m.to}</span>
-                </span>
-                <span className="tabular text-sm text-ink-faint">{formatInstant(m.receivedAt)}</span>
-              </Link>
-            </li>
-          ))}
-        </ul>
+        <OutboxTable rows={list.data} />
       )}
     </>
   );
