@@ -1,0 +1,309 @@
+/**
+ * Image derivative benchmark: the whole derivative set of a 24-megapixel JPEG made by
+ * Plumbline's pipeline and by ImageMagick's best one-decode pipeline, side by side.
+ *
+ *   npx tsx tests/bench/images.bench.ts [--runs 3] [--keep]
+ *
+ * Prints wall times (median of the runs), their ratio, the bytes of each set, the SSIM of
+ * every output against a reference downscale and the peak resident memory of each process.
+ * A benchmark, not a test: it asserts nothing and never fails on a missed target; it says
+ * which targets were met.
+ */
+import { execFileSync, spawn } from "node:child_process";
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from "node:fs";
+import { availableParallelism, cpus, tmpdir } from "node:os";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import sharp from "sharp";
+import { ssim } from "ssim.js";
+import { DEFAULT_FORMATS, DEFAULT_WIDTHS, ENCODER_SETTINGS, makeDerivatives, planWidths } from "../../server/media/media.pipeline.ts";
+import { makePatternedImage } from "../helpers/images.ts";
+
+const THIS_FILE = fileURLToPath(import.meta.url);
+const WIDTH = 6000;
+const HEIGHT = 4000;
+
+/**
+ * ImageMagick's settings: common web settings (AVIF 60 on libheif's scale, WebP 80 at
+ * libwebp's default method 4, JPEG 82 progressive 4:2:0 with libjpeg-turbo). ImageMagick 6
+ * has no AVIF speed control, so libheif's default encoder speed is used.
+ */
+const MAGICK_SETTINGS = {
+  avif: ["-quality", "60"],
+  webp: ["-quality", "80", "-define", "webp:method=4"],
+  jpeg: ["-quality", "82", "-sampling-factor", "4:2:0", "-interlace", "Plane"],
+} as const;
+const MAGICK_EXT = { avif: "avif", webp: "webp", jpeg: "jpg" } as const;
+
+type Format = (typeof DEFAULT_FORMATS)[number];
+
+interface Measured {
+  wallMs: number;
+  peakRssKb: number | null;
+  stdout: string;
+  stderr: string;
+}
+
+// ---------------------------------------------------------------------------------------
+// Child mode: run Plumbline's pipeline alone in a fresh process, so its peak RSS is its own.
+// ---------------------------------------------------------------------------------------
+async function runChild(input: string, outDir: string): Promise<void> {
+  const started = performance.now();
+  const result = await makeDerivatives(input);
+  const pipelineMs = performance.now() - started;
+  mkdirSync(outDir, { recursive: true });
+  for (const v of result.variants) writeFileSync(path.join(outDir, `${v.width}x${v.height}.${MAGICK_EXT[v.format]}`), v.buffer);
+  process.stdout.write(`${JSON.stringify({ pipelineMs, variants: result.variants.length, placeholderBytes: result.placeholder.length })}\n`);
+}
+
+/** Runs a command, measuring its wall time and peak RSS (GNU time, else /proc VmHWM). */
+async function runMeasured(command: string, args: string[]): Promise<Measured> {
+  const useTime = existsSync("/usr/bin/time");
+  const [cmd, argv] = useTime ? ["/usr/bin/time", ["-v", command, ...args]] : [command, args];
+  const started = performance.now();
+  const child = spawn(cmd, argv, { stdio: ["ignore", "pipe", "pipe"] });
+  let stdout = "";
+  let stderr = "";
+  child.stdout.on("data", (chunk: Buffer) => (stdout += chunk.toString()));
+  child.stderr.on("data", (chunk: Buffer) => (stderr += chunk.toString()));
+  let polledKb = null as number | null;
+  const poll = useTime
+    ? null
+    : setInterval(() => {
+        try {
+          const status = readFileSync(`/proc/${child.pid}/status`, "utf8");
+          const hwm = /VmHWM:\s+(\d+) kB/.exec(status);
+          if (hwm) polledKb = Math.max(polledKb ?? 0, Number(hwm[1]));
+        } catch {
+          // the process has just exited; the last reading stands
+        }
+      }, 10);
+  const code: number = await new Promise((resolve, reject) => {
+    child.on("error", reject);
+    child.on("close", (exitCode) => resolve(exitCode ?? 1));
+  });
+  const wallMs = performance.now() - started;
+  if (poll) clearInterval(poll);
+  if (code !== 0) throw new Error(`${command} exited with ${code}:\n${stderr}`);
+  let peakRssKb: number | null = polledKb;
+  if (useTime) {
+    const match = /Maximum resident set size \(kbytes\): (\d+)/.exec(stderr);
+    peakRssKb = match ? Number(match[1]) : null;
+  }
+  return { wallMs, peakRssKb, stdout, stderr };
+}
+
+function heightFor(width: number): number {
+  return Math.max(1, Math.round((width * HEIGHT) / WIDTH));
+}
+
+/**
+ * One convert that decodes once and writes everything: the JPEG is read with a size hint
+ * (libjpeg DCT scaling, as sharp's shrink-on-load), auto-oriented, converted to sRGB and
+ * stripped, then resized down a chain (each width from the previous one, in memory),
+ * writing every format at each step.
+ */
+function magickArgs(input: string, outDir: string, widths: number[], formats: readonly Format[]): string[] {
+  const largest = widths[0] ?? WIDTH;
+  const args = ["-define", `jpeg:size=${largest}x${heightFor(largest)}`, input, "-auto-orient", "-colorspace", "sRGB", "-strip", "-filter", "Lanczos"];
+  for (const w of widths) {
+    if (w !== WIDTH) args.push("-resize", `${w}x${heightFor(w)}!`);
+    for (const format of formats) {
+      args.push(...MAGICK_SETTINGS[format], "-write", path.join(outDir, `${w}x${heightFor(w)}.${MAGICK_EXT[format]}`));
+    }
+  }
+  args.push("null:");
+  return args;
+}
+
+function median(values: number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const mid = Math.floor(sorted.length / 2);
+  return sorted.length % 2 ? (sorted[mid] as number) : ((sorted[mid - 1] as number) + (sorted[mid] as number)) / 2;
+}
+
+interface Scored {
+  file: string;
+  format: Format;
+  width: number;
+  height: number;
+  bytes: number;
+  ssim: number;
+}
+
+/**
+ * SSIM (ssim.js, Weber's fast variant, on luma, without its automatic downsampling so that
+ * compression detail counts) of each output against a Lanczos-3 downscale of the fully
+ * decoded original at the same size.
+ */
+async function scoreSet(dir: string, input: string, references: Map<string, Buffer>): Promise<Scored[]> {
+  const scored: Scored[] = [];
+  for (const file of readdirSync(dir).sort()) {
+    const match = /^(\d+)x(\d+)\.(avif|webp|jpg)$/.exec(file);
+    if (!match) continue;
+    const width = Number(match[1]);
+    const height = Number(match[2]);
+    const format: Format = match[3] === "jpg" ? "jpeg" : (match[3] as Format);
+    const bytes = readFileSync(path.join(dir, file));
+    const decoded = await sharp(bytes).ensureAlpha().raw().toBuffer({ resolveWithObject: true });
+    if (decoded.info.width !== width || decoded.info.height !== height) {
+      throw new Error(`${file} decodes to ${decoded.info.width}x${decoded.info.height}`);
+    }
+    const key = `${width}x${height}`;
+    let reference = references.get(key);
+    if (!reference) {
+      // From the fully decoded pixels: resizing a raw buffer cannot use shrink-on-load.
+      const original = await decodeOriginal(input);
+      reference = await sharp(original.data, { raw: original.info })
+        .resize(width, height, { fit: "fill", kernel: "lanczos3" })
+        .ensureAlpha()
+        .raw()
+        .toBuffer();
+      references.set(key, reference);
+    }
+    const value = ssim(
+      { data: new Uint8ClampedArray(decoded.data.buffer, decoded.data.byteOffset, decoded.data.length), width, height },
+      { data: new Uint8ClampedArray(reference.buffer, reference.byteOffset, reference.length), width, height },
+      { ssim: "weber", downsample: false },
+    ).mssim;
+    scored.push({ file, format, width, height, bytes: bytes.length, ssim: value });
+  }
+  return scored;
+}
+
+let decodedOriginal: Promise<{ data: Buffer; info: { width: number; height: number; channels: 3 } }> | undefined;
+
+/** The original at full resolution, oriented and in sRGB, decoded once for all references. */
+function decodeOriginal(input: string) {
+  decodedOriginal ??= sharp(input)
+    .rotate()
+    .toColourspace("srgb")
+    .removeAlpha()
+    .raw()
+    .toBuffer({ resolveWithObject: true })
+    .then(({ data, info }) => ({ data, info: { width: info.width, height: info.height, channels: 3 as const } }));
+  return decodedOriginal;
+}
+
+const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / Math.max(1, xs.length);
+const kb = (bytes: number) => `${(bytes / 1024).toFixed(1)} KB`;
+const mb = (kbytes: number | null) => (kbytes === null ? "n/a" : `${(kbytes / 1024).toFixed(0)} MB`);
+
+async function main(): Promise<void> {
+  const argv = process.argv.slice(2);
+  if (argv[0] === "--child") {
+    await runChild(argv[1] as string, argv[2] as string);
+    return;
+  }
+  const runsIndex = argv.indexOf("--runs");
+  const runs = runsIndex >= 0 ? Math.max(1, Number(argv[runsIndex + 1])) : 3;
+  const keep = argv.includes("--keep");
+
+  const work = mkdtempSync(path.join(tmpdir(), "plumbline-image-bench-"));
+  try {
+    console.log(`Image derivative benchmark — ${cpus()[0]?.model ?? "cpu"} × ${availableParallelism()}, Node ${process.version}, sharp ${sharp.versions.sharp} (libvips ${sharp.versions.vips})`);
+    let magickVersion = "not found";
+    let magickFormats = "";
+    try {
+      magickVersion = execFileSync("convert", ["-version"], { encoding: "utf8" }).split("\n")[0] ?? "";
+      magickFormats = execFileSync("convert", ["-list", "format"], { encoding: "utf8" });
+    } catch {
+      console.log("ImageMagick's convert is not installed; only Plumbline's pipeline can be measured.");
+    }
+    console.log(`ImageMagick: ${magickVersion}`);
+    const magickHas = (name: string) => new RegExp(`^\\s*${name}\\*?\\s+\\S+\\s+rw`, "mi").test(magickFormats);
+    const formatsForMagick = DEFAULT_FORMATS.filter((f) => magickHas(f === "jpeg" ? "JPEG" : f.toUpperCase()));
+    for (const f of DEFAULT_FORMATS) {
+      if (!formatsForMagick.includes(f)) console.log(`!! This ImageMagick cannot write ${f.toUpperCase()}; the comparison leaves ${f} out of its set.`);
+    }
+
+    const input = path.join(work, "site-24mp.jpg");
+    let t = performance.now();
+    writeFileSync(input, await makePatternedImage({ width: WIDTH, height: HEIGHT, noise: 6, texture: 14, format: "jpeg", quality: 92 }));
+    console.log(`Input: ${WIDTH} × ${HEIGHT} JPEG (q92, generated: shapes, gradients, grain and texture), ${kb(readFileSync(input).length)}, made in ${((performance.now() - t) / 1000).toFixed(1)} s`);
+    const widths = planWidths(WIDTH, DEFAULT_WIDTHS).reverse();
+    console.log(`Set: widths ${widths.join(", ")} × ${DEFAULT_FORMATS.join(", ")}`);
+    console.log(`Plumbline settings: ${JSON.stringify(ENCODER_SETTINGS)}`);
+    console.log(`ImageMagick settings: ${JSON.stringify(MAGICK_SETTINGS)}\n`);
+
+    const plumblineDir = path.join(work, "plumbline");
+    const magickDir = path.join(work, "magick");
+    mkdirSync(magickDir);
+    const plumbline: Measured[] = [];
+    const plumblinePipelineMs: number[] = [];
+    const magick: Measured[] = [];
+    for (let run = 0; run < runs; run += 1) {
+      const p = await runMeasured(process.execPath, ["--import", "tsx", THIS_FILE, "--child", input, plumblineDir]);
+      plumbline.push(p);
+      plumblinePipelineMs.push((JSON.parse(p.stdout.trim().split("\n").pop() ?? "{}") as { pipelineMs: number }).pipelineMs);
+      if (formatsForMagick.length > 0) magick.push(await runMeasured("convert", magickArgs(input, magickDir, widths, formatsForMagick)));
+      const m = magick[run];
+      console.log(
+        `run ${run + 1}: Plumbline ${(plumblinePipelineMs[run] as number).toFixed(0)} ms in the pipeline (${p.wallMs.toFixed(0)} ms for the whole process, Node start-up included), ` +
+          `ImageMagick ${m ? `${m.wallMs.toFixed(0)} ms` : "n/a"}`,
+      );
+    }
+
+    t = performance.now();
+    const references = new Map<string, Buffer>();
+    const ours = await scoreSet(plumblineDir, input, references);
+    const theirs = formatsForMagick.length > 0 ? await scoreSet(magickDir, input, references) : [];
+    console.log(`(scored ${ours.length + theirs.length} outputs in ${((performance.now() - t) / 1000).toFixed(1)} s)\n`);
+
+    console.log("output           Plumbline bytes   SSIM   | ImageMagick bytes   SSIM");
+    for (const s of ours) {
+      const other = theirs.find((o) => o.width === s.width && o.height === s.height && o.format === s.format);
+      console.log(
+        `${`${s.width}x${s.height}.${s.format}`.padEnd(16)} ${kb(s.bytes).padStart(12)}   ${s.ssim.toFixed(4)} | ${(other ? kb(other.bytes) : "—").padStart(12)}     ${other ? other.ssim.toFixed(4) : "—"}`,
+      );
+    }
+    console.log("");
+    for (const format of DEFAULT_FORMATS) {
+      const a = ours.filter((s) => s.format === format);
+      const b = theirs.filter((s) => s.format === format);
+      const sumA = a.reduce((n, s) => n + s.bytes, 0);
+      const sumB = b.reduce((n, s) => n + s.bytes, 0);
+      console.log(
+        `${format.padEnd(5)} total: Plumbline ${kb(sumA)} (mean SSIM ${mean(a.map((s) => s.ssim)).toFixed(4)}), ` +
+          `ImageMagick ${b.length ? `${kb(sumB)} (mean SSIM ${mean(b.map((s) => s.ssim)).toFixed(4)}), ratio ${(sumA / sumB).toFixed(2)}×` : "n/a"}`,
+      );
+    }
+
+    const comparable = ours.filter((s) => formatsForMagick.includes(s.format));
+    const bytesOurs = comparable.reduce((n, s) => n + s.bytes, 0);
+    const bytesTheirs = theirs.reduce((n, s) => n + s.bytes, 0);
+    const ssimOurs = mean(comparable.map((s) => s.ssim));
+    const ssimTheirs = mean(theirs.map((s) => s.ssim));
+    const wallOurs = median(plumblinePipelineMs);
+    const wallOursProcess = median(plumbline.map((m) => m.wallMs));
+    const wallTheirs = magick.length ? median(magick.map((m) => m.wallMs)) : NaN;
+    const rssOurs = Math.max(...plumbline.map((m) => m.peakRssKb ?? 0)) || null;
+    const rssTheirs = magick.length ? Math.max(...magick.map((m) => m.peakRssKb ?? 0)) || null : null;
+
+    console.log("\nSummary (median of", runs, "runs)");
+    console.log(`  wall time      Plumbline ${wallOurs.toFixed(0)} ms (pipeline; ${wallOursProcess.toFixed(0)} ms as a whole process)   ImageMagick ${wallTheirs.toFixed(0)} ms`);
+    console.log(`  speed-up       ${(wallTheirs / wallOurs).toFixed(2)}× (pipeline)   ${(wallTheirs / wallOursProcess).toFixed(2)}× (whole processes)`);
+    console.log(`  total bytes    Plumbline ${kb(bytesOurs)}   ImageMagick ${kb(bytesTheirs)}   ratio ${(bytesOurs / bytesTheirs).toFixed(2)}×`);
+    console.log(`  mean SSIM      Plumbline ${ssimOurs.toFixed(4)}   ImageMagick ${ssimTheirs.toFixed(4)}`);
+    console.log(`  peak RSS       Plumbline ${mb(rssOurs)} (Node included)   ImageMagick ${mb(rssTheirs)}   (${existsSync("/usr/bin/time") ? "GNU time -v" : "/proc VmHWM polling"})`);
+
+    // Phones store most portraits as landscape pixels plus EXIF orientation 6; the widest
+    // derivative is then 2400 × 3600 and no JPEG shrink-on-load applies, so measure it too.
+    const portrait = path.join(work, "site-24mp-portrait.jpg");
+    await sharp(input).withMetadata({ orientation: 6 }).jpeg({ quality: 92 }).toFile(portrait);
+    const portraitRun = await runMeasured(process.execPath, ["--import", "tsx", THIS_FILE, "--child", portrait, path.join(work, "portrait")]);
+    const portraitMs = (JSON.parse(portraitRun.stdout.trim().split("\n").pop() ?? "{}") as { pipelineMs: number }).pipelineMs;
+    console.log(`  portrait       the same photo tagged EXIF orientation 6 (4000 × 6000 displayed): Plumbline ${portraitMs.toFixed(0)} ms, peak RSS ${mb(portraitRun.peakRssKb)}`);
+
+    const verdict = (ok: boolean) => (ok ? "met" : "NOT met");
+    console.log("\nTargets");
+    console.log(`  ≥ 3× faster than ImageMagick:              ${verdict(wallTheirs / wallOurs >= 3)} (${(wallTheirs / wallOurs).toFixed(2)}× pipeline, ${(wallTheirs / wallOursProcess).toFixed(2)}× whole process)`);
+    console.log(`  total bytes ≤ 0.6× at equal or better SSIM: ${verdict(bytesOurs / bytesTheirs <= 0.6 && ssimOurs >= ssimTheirs)} (${(bytesOurs / bytesTheirs).toFixed(2)}×, SSIM ${ssimOurs.toFixed(4)} vs ${ssimTheirs.toFixed(4)})`);
+    console.log(`  peak RSS ≤ 400 MB:                          ${verdict(rssOurs !== null && rssOurs <= 400 * 1024)} (${mb(rssOurs)})`);
+    if (keep) console.log(`\nOutputs kept in ${work}`);
+  } finally {
+    if (!keep) rmSync(work, { recursive: true, force: true });
+  }
+}
+
+await main();
