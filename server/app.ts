@@ -23,9 +23,27 @@ import { createOutboxService } from "./mail/mail.service.ts";
 import { outboxRouter } from "./mail/mail.router.ts";
 import { createProjectsService } from "./projects/projects.service.ts";
 import { projectsRouter } from "./projects/projects.router.ts";
+import { createProgrammeService } from "./programme/programme.service.ts";
+import { programmeRouter } from "./programme/programme.router.ts";
+import { createMediaService, type MediaService } from "./media/media.service.ts";
+import { createMediaJobs, type MediaJobs } from "./media/media.jobs.ts";
+import { mediaFilesRouter, mediaRouter } from "./media/media.router.ts";
+import { createLocalDiskStorage, createUploadArea, type MediaStorage, type UploadArea } from "./media/media.storage.ts";
 import { RateLimitRepository } from "./rate-limit/rate-limit.repository.ts";
 import { createUsersService } from "./users/users.service.ts";
 import { usersRouter } from "./users/users.router.ts";
+import { createEnquiriesService } from "./enquiries/enquiries.service.ts";
+import { enquiriesRouter } from "./enquiries/enquiries.router.ts";
+import { createSubscribersService, type SubscribersService } from "./subscribers/subscribers.service.ts";
+import { mailEventsRouter, oneClickRouter, subscribersRouter } from "./subscribers/subscribers.router.ts";
+import { createPostsService, type PostsService } from "./posts/posts.service.ts";
+import { postsRouter } from "./posts/posts.router.ts";
+import { createPublishingTicker, type PublishingTicker } from "./posts/posts.scheduler.ts";
+import { createStoriesService } from "./stories/stories.service.ts";
+import { storiesRouter } from "./stories/stories.router.ts";
+import { createSiteService, injectHead, type SiteService } from "./site/site.service.ts";
+import { siteRouter } from "./site/site.router.ts";
+import { createPublicCache } from "./site/public-cache.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 
@@ -40,9 +58,21 @@ export interface AppDeps {
 
 export interface PlumblineApp {
   app: Express;
+  /** The media library's service (other modules' services take it too). */
+  media: MediaService;
+  /** The derivative worker: server/index.ts starts and stops it; tests drain it. */
+  mediaJobs: MediaJobs;
+  mediaStorage: MediaStorage;
+  mediaUploads: UploadArea;
   close(): void;
   /** Rate-limit counters, exposed so tests can start from zero. */
   rateLimits: { ip: RateLimitRepository; account: RateLimitRepository };
+  /** Exposed so tests can run the unconfirmed-address sweep with a chosen `now`, and digests can use it. */
+  subscribers: SubscribersService;
+  /** Updates; tests run scheduled publication with a chosen `now` (posts.publishDue). */
+  posts: PostsService;
+  /** Scheduled publication: server/index.ts starts and stops it. */
+  publishing: PublishingTicker;
 }
 
 /** Builds the Express app. No listening and no side effects at import. */
@@ -52,6 +82,9 @@ export function createApp(deps: AppDeps): PlumblineApp {
   app.disable("x-powered-by");
   app.set("trust proxy", config.TRUST_PROXY);
   app.set("etag", "strong");
+  // Visitors' answers for the public pages, kept a few seconds (production; tests see every write at once).
+  const publicCache = createPublicCache({ ttlMs: 5_000, enabled: config.NODE_ENV === "production" });
+  app.use(publicCache.middleware);
 
   const idleMs = config.SESSION_IDLE_MINUTES * 60_000;
   const absoluteMs = config.SESSION_ABSOLUTE_HOURS * 3_600_000;
@@ -62,8 +95,38 @@ export function createApp(deps: AppDeps): PlumblineApp {
   const users = createUsersService({ db, audit, auth, mailer, publicUrl: config.PUBLIC_URL });
   const outbox = createOutboxService(db);
   const projects = createProjectsService(db);
+  const programme = createProgrammeService({ db, projects });
+  const mediaStorage = createLocalDiskStorage(config.MEDIA_DIR);
+  const mediaUploads = createUploadArea(config.MEDIA_DIR);
+  const media = createMediaService({
+    db,
+    storage: mediaStorage,
+    uploads: mediaUploads,
+    projects,
+    limits: { maxFileBytes: Math.round(config.MEDIA_MAX_FILE_MB * 1024 * 1024), maxFiles: config.MEDIA_MAX_FILES, maxPixels: config.MEDIA_MAX_PIXELS },
+  });
+  // Building the app runs no jobs: server/index.ts starts the worker (tests drain it).
+  const mediaJobs = createMediaJobs({ media, storage: mediaStorage, uploads: mediaUploads, logger, workers: config.MEDIA_WORKERS, maxPixels: config.MEDIA_MAX_PIXELS });
   const passport = createPassport(auth);
   const rateLimits = { ip: new RateLimitRepository(db, "login-ip"), account: new RateLimitRepository(db, "login-account") };
+  const enquiries = createEnquiriesService({ db, mailer, logger, projects, users, publicUrl: config.PUBLIC_URL });
+  const subscribers = createSubscribersService({
+    db,
+    mailer,
+    logger,
+    projects,
+    enquiries,
+    publicUrl: config.PUBLIC_URL,
+    tokenSecret: config.TOKEN_SECRET,
+    unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
+    webhookSecret: config.MAIL_WEBHOOK_SECRET ?? null,
+  });
+  subscribers.startWorkers();
+  const posts = createPostsService({ db, projects, programme, media, onChange: publicCache.clear });
+  const stories = createStoriesService({ db, projects, media, onChange: publicCache.clear });
+  const site = createSiteService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
+  // Building the app publishes nothing: server/index.ts starts the ticker.
+  const publishing = createPublishingTicker(posts, logger);
 
   app.use(
     pinoHttp({
@@ -96,6 +159,8 @@ export function createApp(deps: AppDeps): PlumblineApp {
       strictTransportSecurity: config.PUBLIC_URL.startsWith("https:"),
     }),
   );
+  // The mail-events webhook is signed over its exact bytes: keep them raw (JSON parsing skips a parsed body).
+  app.use("/api/webhooks/mail-events", express.raw({ type: () => true, limit: config.BODY_LIMIT }));
   app.use(express.json({ limit: config.BODY_LIMIT }));
   app.use(express.urlencoded({ extended: false, limit: config.BODY_LIMIT }));
   app.use(
@@ -127,7 +192,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
   });
 
   const api = express.Router();
-  api.use(csrfProtection());
+  api.use(csrfProtection([/^\/webhooks\/mail-events$/]));
   api.use(healthRouter(db));
   api.use(
     authRouter({
@@ -145,29 +210,67 @@ export function createApp(deps: AppDeps): PlumblineApp {
   api.use(auditRouter(audit));
   api.use(outboxRouter(outbox, config.mailMode));
   api.use(projectsRouter(projects));
+  api.use(
+    subscribersRouter({
+      subscribers,
+      limits: { perIp: config.SUBSCRIBE_LIMIT_PER_IP, perAddress: config.SUBSCRIBE_LIMIT_PER_ADDRESS, windowMs: config.SUBSCRIBE_LIMIT_WINDOW_MINUTES * 60_000 },
+      stores: { ip: new RateLimitRepository(db, "subscribe-ip"), address: new RateLimitRepository(db, "subscribe-address") },
+    }),
+  );
+  api.use(mailEventsRouter(subscribers));
+  api.use(
+    enquiriesRouter({
+      enquiries,
+      limit: { perIp: config.ENQUIRY_LIMIT_PER_IP, windowMs: config.ENQUIRY_LIMIT_WINDOW_MINUTES * 60_000 },
+      store: new RateLimitRepository(db, "enquiry-ip"),
+    }),
+  );
+  api.use(programmeRouter(programme));
+  api.use(mediaRouter(media, mediaUploads));
+  api.use(postsRouter(posts));
+  api.use(storiesRouter(stories));
   api.use(apiNotFound);
   app.use("/api", api);
+  // RFC 8058 one-click unsubscribe (POST); a GET of the same path is the client's page.
+  app.use(oneClickRouter(subscribers));
+  // Derivatives, with the audience check on every request.
+  app.use(mediaFilesRouter(media));
+  // The Atom feeds, sitemap.xml and robots.txt (before the client's static files).
+  app.use(siteRouter(site));
 
-  if (config.SERVE_CLIENT) mountClient(app, deps.clientDir ?? path.join(ROOT, "dist"));
+  if (config.SERVE_CLIENT) mountClient(app, deps.clientDir ?? path.join(ROOT, "dist"), site);
   app.use(errorHandler);
 
   return {
     app,
+    media,
+    mediaJobs,
+    mediaStorage,
+    mediaUploads,
     rateLimits,
-    close: () => sessions.stopSweeping(),
+    subscribers,
+    posts,
+    publishing,
+    close: () => {
+      sessions.stopSweeping();
+      subscribers.stopWorkers();
+    },
   };
 }
 
 const FALLBACK_SHELL = `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Plumbline</title></head><body><div id="root">The client has not been built yet: run npm start or npx vite build.</div></body></html>`;
 
 /** Static assets with long caching, and the HTML shell (200) for every page path. */
-function mountClient(app: Express, dir: string): void {
+function mountClient(app: Express, dir: string, site: SiteService): void {
   const indexPath = path.join(dir, "index.html");
   app.use("/assets", express.static(path.join(dir, "assets"), { immutable: true, maxAge: "365d", index: false, fallthrough: false }));
   app.use(express.static(dir, { index: false, maxAge: "1h" }));
   let shell: string | null = null;
-  app.get("/{*splat}", (_req, res) => {
+  app.get("/{*splat}", async (req, res) => {
     if (shell === null) shell = existsSync(indexPath) ? readFileSync(indexPath, "utf8") : FALLBACK_SHELL;
-    res.set("Cache-Control", "no-cache").type("html").send(shell);
+    // Link previews read the HTML without running the app: public pages carry their Open Graph tags.
+    const page = await site.pageFor(req.path);
+    if (page && "redirect" in page) return res.redirect(301, page.redirect);
+    res.set("Cache-Control", "no-cache").type("html").send(page ? injectHead(shell, page.head) : shell);
   });
 }

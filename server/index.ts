@@ -29,7 +29,7 @@ process.on("uncaughtException", (err) => {
 const db = createDb(config.DATABASE_URL);
 let sink: MailSink | null = null;
 if (config.mailMode === "local") {
-  sink = await startMailSink({ db, logger, host: config.SMTP_SINK_HOST, port: config.SMTP_SINK_PORT });
+  sink = await startMailSink({ db, logger, host: config.SMTP_SINK_HOST, port: config.SMTP_SINK_PORT, refuseRecipients: config.sinkRefusePattern });
 }
 const mailer = createMailer({
   smtpUrl: config.SMTP_URL ?? `smtp://${sink!.host}:${sink!.port}`,
@@ -39,6 +39,10 @@ const mailer = createMailer({
 });
 const plumbline = createApp({ db, config, logger, mailer });
 const server = createServer(plumbline.app);
+// Sweeps what a crash left (temporary files, jobs whose lease ran out), then processes photos.
+await plumbline.mediaJobs.start();
+// Scheduled posts: every process may tick; the claim is safe across processes.
+plumbline.publishing.start();
 server.listen(config.PORT, config.HOST, () => {
   const { port } = server.address() as AddressInfo;
   logger.info({ port }, "Plumbline listening");
@@ -72,6 +76,8 @@ async function shutdown(signal: string) {
     server.close(() => resolve());
     server.closeIdleConnections();
   });
+  await plumbline.mediaJobs.stop();
+  await plumbline.publishing.stop();
   plumbline.close();
   mailer.close();
   await sink?.close();

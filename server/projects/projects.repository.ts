@@ -31,3 +31,8 @@ export async function findProjectBySlug(q: Q, slug: string): Promise<Project | n
   const r = await q("projects").where({ slug }).first();
   return r ? toProject(r) : null;
 }
+
+export async function findProjectById(q: Q, id: number): Promise<Project | null> {
+  const r = await q("projects").where({ id }).first();
+  return r ? toProject(r) : null;
+}

@@ -1,6 +1,10 @@
 import type { Knex } from "knex";
 import { hashPassword, verifyPassword } from "../auth/passwords.ts";
 import { DEMO_USERS } from "./demo-users.ts";
+import { seedSubscribers } from "./subscribers.seed.ts";
+import { seedProgramme } from "./programme.seed.ts";
+import { seedMedia } from "./media.seed.ts";
+import { seedPosts } from "./posts.seed.ts";
 
 export const DEMO_PROJECT_SLUG = "aldermere-phase-2";
 
@@ -40,5 +44,20 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
     });
     created.push(`project ${DEMO_PROJECT_SLUG}`);
   }
+  // The programme is seeded once, into a project that has none: a second run, or a
+  // programme the demo's users have since edited, is left alone.
+  const project = await db("projects").where({ slug: DEMO_PROJECT_SLUG }).first("id");
+  const existing = await db("milestones").where({ project_id: project.id }).count({ n: "*" }).first();
+  if (Number(existing?.n ?? 0) === 0) {
+    const lead = await db("users").where({ email: "lead@kestrel.example" }).first("id");
+    const count = await seedProgramme(db, Number(project.id), { byUserId: lead ? Number(lead.id) : null });
+    created.push(`programme of ${count} milestones`);
+  }
+  // Illustrative photos (after the programme, so they can be tagged with its milestones).
+  const photos = await seedMedia(db, Number(project.id));
+  if (photos.created > 0) created.push(`${photos.created} illustrative photos in ${(photos.ms / 1000).toFixed(1)} s`);
+  // Updates and the photo story (after the photos and the programme they show).
+  created.push(...(await seedPosts(db, DEMO_PROJECT_SLUG)).created);
+  created.push(...(await seedSubscribers(db, DEMO_PROJECT_SLUG)).created);
   return { created };
 }

@@ -10,6 +10,7 @@ import { createDb, type Db } from "../../server/db/knex.ts";
 import { createMailer, type Mailer } from "../../server/mail/mail.service.ts";
 import { startMailSink, type MailSink } from "../../server/mail/mail.sink.ts";
 import { hashPassword } from "../../server/auth/passwords.ts";
+import { testMediaDirFor } from "../../server/media/media.storage.ts";
 import type { Role } from "../../src/shared/schemas/common.ts";
 
 export const DEMO_PASSWORD = process.env.DEMO_PASSWORD || "plumbline-demo";
@@ -28,11 +29,13 @@ export interface TestApp {
   sink: MailSink;
   /** Set when started with `listen: true` (browser tests). */
   baseUrl: string | null;
+  /** Runs the queued photo-processing jobs in this process until none is left; how many ran. */
+  drainMediaJobs(): Promise<number>;
   close(): Promise<void>;
 }
 
 /** The real app over the test project's MariaDB and a real SMTP sink on a free port. */
-export async function startTestApp(env: Record<string, string> = {}, opts: { listen?: boolean } = {}): Promise<TestApp> {
+export async function startTestApp(env: Record<string, string> = {}, opts: { listen?: boolean; mediaWorker?: boolean } = {}): Promise<TestApp> {
   const databaseUrl = inject("databaseUrl");
   const config = loadConfig({
     NODE_ENV: "test",
@@ -42,14 +45,18 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { lis
     LOG_LEVEL: "silent",
     PUBLIC_URL: "http://plumbline.test",
     SMTP_SINK_PORT: "0",
+    // Shared with the demo seed of this test database, never the repository's media/.
+    MEDIA_DIR: testMediaDirFor(new URL(databaseUrl).pathname.slice(1)),
     ...env,
     DATABASE_URL: databaseUrl,
   });
   const logger = pino({ level: config.LOG_LEVEL });
   const db = createDb(databaseUrl);
-  const sink = await startMailSink({ db, logger, host: "127.0.0.1", port: 0 });
+  const sink = await startMailSink({ db, logger, host: "127.0.0.1", port: 0, refuseRecipients: config.sinkRefusePattern });
   const mailer = createMailer({ smtpUrl: `smtp://127.0.0.1:${sink.port}`, from: config.MAIL_FROM, mode: "local", logger });
   const plumbline = createApp({ db, config, logger, mailer });
+  // Server tests drain the photo jobs themselves; browser tests want the worker running.
+  if (opts.mediaWorker) await plumbline.mediaJobs.start();
   let server: Server | null = null;
   let baseUrl: string | null = null;
   if (opts.listen) {
@@ -64,8 +71,10 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { lis
     mailer,
     sink,
     baseUrl,
+    drainMediaJobs: () => plumbline.mediaJobs.drain(),
     async close() {
       if (server) await new Promise<void>((resolve) => server!.close(() => resolve()));
+      await plumbline.mediaJobs.stop();
       plumbline.close();
       mailer.close();
       await sink.close();

@@ -1,8 +1,10 @@
 import { randomBytes } from "node:crypto";
+import { rmSync } from "node:fs";
 import type { TestProject } from "vitest/node";
 import { createDb, dropDatabase, ensureDatabase } from "../../server/db/knex.ts";
 import { migrateLatest } from "../../server/db/migrations.ts";
 import { seedDemo } from "../../server/seed/demo.seed.ts";
+import { testMediaDirFor } from "../../server/media/media.storage.ts";
 
 declare module "vitest" {
   export interface ProvidedContext {
@@ -32,5 +34,7 @@ export default async function setup(project: TestProject) {
   project.provide("databaseUrl", url);
   return async () => {
     await dropDatabase(url);
+    // The demo seed and every test app of this database share one media folder under the OS temp dir.
+    rmSync(testMediaDirFor(new URL(url).pathname.slice(1)), { recursive: true, force: true });
   };
 }

@@ -7,6 +7,12 @@ export function OfficeLayout() {
       roles={["admin", "lead", "marketing"]}
       links={[
         { to: "/office", label: "Overview", end: true },
+        { to: "/office/programme", label: "Programme" },
+        { to: "/office/media", label: "Media" },
+        { to: "/office/updates", label: "Updates" },
+        { to: "/office/stories", label: "Photo stories" },
+        { to: "/office/subscribers", label: "Subscribers", roles: ["marketing", "lead", "admin"] },
+        { to: "/office/enquiries", label: "Enquiries", roles: ["marketing", "lead", "admin"] },
         { to: "/office/outbox", label: "Outbox" },
         { to: "/office/users", label: "Users", roles: ["admin"] },
         { to: "/office/audit", label: "Audit log", roles: ["admin"] },

@@ -1,6 +1,7 @@
 import { Link } from "react-router-dom";
 import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { useMe } from "../../features/auth/api.ts";
+import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
 import { useProjects } from "../../features/projects/api.ts";
 
 export function OfficeHomePage() {
@@ -19,6 +20,16 @@ export function OfficeHomePage() {
                   {p.operatorName} · <Link className="underline underline-offset-4" to={`/projects/${p.slug}`}>public page</Link> ·{" "}
                   <Link className="underline underline-offset-4" to={`/investors/projects/${p.slug}`}>investor view</Link>
                 </p>
+              </li>
+            ))}
+          </ul>
+        </Sheet>
+        <Sheet label="Programme" title="Programme health">
+          <ul className="flex flex-col gap-4">
+            {(projects.data ?? []).map((p) => (
+              <li key={p.id}>
+                {(projects.data ?? []).length > 1 ? <p className="mb-2 font-medium">{p.name}</p> : null}
+                <ProjectHealthSummary slug={p.slug} href={`/office/programme?project=${p.slug}`} linkLabel="Open the programme" />
               </li>
             ))}
           </ul>

@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { AudienceSchema, CalendarDateSchema, type Audience } from "./common.ts";
 import type { MilestoneStatus } from "../domain/programme-health.ts";
+import type { MilestoneMove } from "../domain/programme-changes.ts";
 
 /**
  * The HTTP contract of the programme module (server/programme ↔ src/features/programme).
@@ -184,3 +185,64 @@ export const MILESTONE_CSV_COLUMNS = [
   "depends_on",
   "description",
 ] as const;
+
+/** GET /api/projects/:slug/curve. Without `from`/`to` the curve spans the visible programme. */
+export const CurveQuerySchema = z
+  .strictObject({
+    from: CalendarDateSchema.optional(),
+    to: CalendarDateSchema.optional(),
+    step: z.coerce.number({ error: "must be a number" }).int("must be whole days").min(1, "must be at least 1 day").max(366, "must be at most 366 days").optional(),
+  })
+  .refine((v) => !v.from || !v.to || v.from <= v.to, { path: ["to"], message: "must not be before from" });
+
+/** POST /api/projects/:slug/milestones/import. */
+export const CsvImportInputSchema = z.strictObject({
+  csv: z.string({ error: "is required" }).min(1, "is empty").max(2_000_000, "is too large"),
+});
+
+export const BaselineParamSchema = z.strictObject({
+  slug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address").max(100),
+  number: z.coerce.number().int().positive(),
+});
+
+/** One milestone's plan in a baseline version (GET /api/projects/:slug/baselines/:number). */
+export interface BaselineSnapshotMilestone {
+  id: number;
+  name: string;
+  audience: Audience;
+  plannedStart: string | null;
+  baselineFinish: string;
+  weight: number;
+  /** Null for visitors and where none was set. */
+  budget: number | null;
+}
+
+export interface BaselineDetail extends BaselineVersion {
+  milestones: BaselineSnapshotMilestone[];
+}
+
+/** GET /api/projects/:slug/curve. */
+export interface CurveResponse {
+  at: string;
+  points: Array<{ date: string; plannedPercent: number; earnedPercent: number | null }>;
+}
+
+/** GET /api/projects/:slug/moves rows. */
+export interface MilestoneMovesRow {
+  milestoneId: number;
+  milestoneName: string;
+  moves: MilestoneMove[];
+}
+
+/** POST /api/projects/:slug/milestones/import → 200. */
+export interface CsvImportResult {
+  created: number;
+  updated: number;
+  /** Rows that matched a milestone and changed nothing. */
+  unchanged: number;
+}
+
+export interface CostActualRow {
+  periodEnd: string;
+  amount: number;
+}

@@ -1,0 +1,537 @@
+import type { Knex } from "knex";
+import type { Audience } from "#shared/schemas/common.ts";
+import type { MediaListFilters, MediaStatus, MediaTags, Sensitivity, TagKind, VariantFormat } from "#shared/schemas/media.ts";
+import type { System } from "#shared/schemas/programme.ts";
+
+type Q = Knex | Knex.Transaction;
+
+export interface MediaRecord {
+  id: number;
+  projectId: number;
+  sha256: string;
+  status: MediaStatus;
+  failureReason: string | null;
+  originalKey: string;
+  originalName: string;
+  mime: string;
+  bytes: number;
+  width: number;
+  height: number;
+  takenAt: string | null;
+  hadGps: boolean;
+  altText: string | null;
+  caption: string | null;
+  credit: string | null;
+  focalX: number;
+  focalY: number;
+  sensitivity: Sensitivity;
+  flaggedForReview: boolean;
+  reviewedAt: Date | null;
+  reviewedByName: string | null;
+  placeholder: string | null;
+  dominantColor: string | null;
+  isIllustration: boolean;
+  uploadedBy: number | null;
+  uploadedByName: string | null;
+  createdAt: Date;
+  updatedAt: Date;
+}
+
+export interface VariantRecord {
+  mediaId: number;
+  width: number;
+  height: number;
+  format: VariantFormat;
+  storageKey: string;
+  bytes: number;
+}
+
+const str = (v: unknown): string | null => (v === null || v === undefined ? null : String(v));
+
+function toMedia(r: Record<string, unknown>): MediaRecord {
+  return {
+    id: Number(r.id),
+    projectId: Number(r.project_id),
+    sha256: String(r.sha256),
+    status: r.status as MediaStatus,
+    failureReason: str(r.failure_reason),
+    originalKey: String(r.original_key),
+    originalName: String(r.original_name ?? ""),
+    mime: String(r.mime),
+    bytes: Number(r.bytes),
+    width: Number(r.width),
+    height: Number(r.height),
+    takenAt: str(r.taken_at),
+    hadGps: Boolean(r.had_gps),
+    altText: str(r.alt_text),
+    caption: str(r.caption),
+    credit: str(r.credit),
+    focalX: Number(r.focal_x),
+    focalY: Number(r.focal_y),
+    sensitivity: r.sensitivity as Sensitivity,
+    flaggedForReview: Boolean(r.flagged_for_review),
+    reviewedAt: (r.reviewed_at as Date | null) ?? null,
+    reviewedByName: str(r.reviewer_name),
+    placeholder: str(r.placeholder),
+    dominantColor: str(r.dominant_color),
+    isIllustration: Boolean(r.is_illustration),
+    uploadedBy: r.uploaded_by == null ? null : Number(r.uploaded_by),
+    uploadedByName: str(r.uploader_name),
+    createdAt: r.created_at as Date,
+    updatedAt: r.updated_at as Date,
+  };
+}
+
+function itemsQuery(q: Q) {
+  return q("media_items as i")
+    .leftJoin("users as up", "up.id", "i.uploaded_by")
+    .leftJoin("users as rv", "rv.id", "i.reviewed_by")
+    .select("i.*", "up.name as uploader_name", "rv.name as reviewer_name");
+}
+
+export interface NewMedia {
+  projectId: number;
+  sha256: string;
+  originalKey: string;
+  originalName: string;
+  mime: string;
+  bytes: number;
+  width: number;
+  height: number;
+  takenAt: string | null;
+  hadGps: boolean;
+  uploadedBy: number | null;
+  isIllustration?: boolean;
+}
+
+/** Inserts an item; null when the project already holds the same SHA-256 (a concurrent duplicate). */
+export async function insertMedia(q: Q, m: NewMedia): Promise<number | null> {
+  try {
+    const [id] = await q("media_items").insert({
+      project_id: m.projectId,
+      sha256: m.sha256,
+      status: "processing",
+      original_key: m.originalKey,
+      original_name: m.originalName,
+      mime: m.mime,
+      bytes: m.bytes,
+      width: m.width,
+      height: m.height,
+      taken_at: m.takenAt,
+      taken_on: m.takenAt ? m.takenAt.slice(0, 10) : null,
+      had_gps: m.hadGps,
+      uploaded_by: m.uploadedBy,
+      is_illustration: m.isIllustration ?? false,
+    });
+    return Number(id);
+  } catch (err) {
+    if ((err as { code?: string }).code === "ER_DUP_ENTRY") return null;
+    throw err;
+  }
+}
+
+export async function findMediaById(q: Q, id: number, forUpdate = false): Promise<MediaRecord | null> {
+  const query = itemsQuery(q).where("i.id", id).first();
+  if (forUpdate) query.forUpdate("i");
+  const r = await query;
+  return r ? toMedia(r) : null;
+}
+
+export async function findMediaByIds(q: Q, ids: readonly number[]): Promise<MediaRecord[]> {
+  if (ids.length === 0) return [];
+  return (await itemsQuery(q).whereIn("i.id", [...new Set(ids)])).map(toMedia);
+}
+
+export async function findMediaBySha(q: Q, projectId: number, sha256: string): Promise<MediaRecord | null> {
+  const r = await itemsQuery(q).where({ "i.project_id": projectId, "i.sha256": sha256 }).first();
+  return r ? toMedia(r) : null;
+}
+
+export async function countItemsWithOriginal(q: Q, originalKey: string): Promise<number> {
+  const r = await q("media_items").where({ original_key: originalKey }).count({ n: "*" }).first();
+  return Number(r?.n ?? 0);
+}
+
+function escapeLike(s: string): string {
+  return s.replace(/[\\%_]/g, (c) => `\\${c}`);
+}
+
+/**
+ * The library list of one project: every filter of the site office's library, newest first.
+ * Staff only (the route says so), so no audience filter applies here.
+ */
+export async function listMedia(
+  q: Q,
+  projectId: number,
+  f: MediaListFilters,
+  page: { offset: number; limit: number },
+): Promise<{ items: MediaRecord[]; total: number }> {
+  const hasTag = (kind: TagKind | null, value: string) =>
+    function (this: Knex.QueryBuilder) {
+      this.select(q.raw("1"))
+        .from("media_tags as t")
+        .whereRaw("t.media_id = i.id")
+        .andWhere("t.value", value);
+      if (kind) this.andWhere("t.kind", kind);
+    };
+  const base = q("media_items as i").where("i.project_id", projectId);
+  if (f.tag) base.whereExists(hasTag(null, f.tag));
+  if (f.area) base.whereExists(hasTag("area", f.area));
+  if (f.system) base.whereExists(hasTag("system", f.system));
+  if (f.milestone) base.whereExists(hasTag("milestone", String(f.milestone)));
+  if (f.takenFrom) base.where("i.taken_on", ">=", f.takenFrom);
+  if (f.takenTo) base.where("i.taken_on", "<=", f.takenTo);
+  if (f.sensitivity) base.where("i.sensitivity", f.sensitivity);
+  if (f.status) base.where("i.status", f.status);
+  if (f.missingAlt === true) base.where((w) => w.whereNull("i.alt_text").orWhere("i.alt_text", ""));
+  if (f.missingAlt === false) base.whereNotNull("i.alt_text").andWhereNot("i.alt_text", "");
+  if (f.flagged !== undefined) base.where("i.flagged_for_review", f.flagged);
+  if (f.q) {
+    const like = `%${escapeLike(f.q)}%`;
+    base.where((w) => w.where("i.original_name", "like", like).orWhere("i.caption", "like", like).orWhere("i.alt_text", "like", like));
+  }
+  const countRow = await base.clone().count({ n: "*" }).first();
+  const ids = (await base
+    .clone()
+    .select("i.id")
+    .orderBy([{ column: "i.created_at", order: "desc" }, { column: "i.id", order: "desc" }])
+    .offset(page.offset)
+    .limit(page.limit)) as Array<{ id: number }>;
+  const records = await findMediaByIds(q, ids.map((r) => Number(r.id)));
+  const byId = new Map(records.map((r) => [r.id, r]));
+  return { items: ids.map((r) => byId.get(Number(r.id))!).filter(Boolean), total: Number(countRow?.n ?? 0) };
+}
+
+/** The unreviewed photos of a project, those flagged for review first, then oldest first. */
+export async function listReviewQueue(q: Q, projectId: number, limit: number): Promise<MediaRecord[]> {
+  const rows = await itemsQuery(q)
+    .where({ "i.project_id": projectId, "i.sensitivity": "unreviewed" })
+    .orderBy([{ column: "i.flagged_for_review", order: "desc" }, { column: "i.created_at", order: "asc" }, { column: "i.id", order: "asc" }])
+    .limit(limit);
+  return rows.map(toMedia);
+}
+
+export interface MediaUpdate {
+  altText?: string | null;
+  caption?: string | null;
+  credit?: string | null;
+  focalX?: number;
+  focalY?: number;
+  sensitivity?: Sensitivity;
+  flaggedForReview?: boolean;
+  reviewedBy?: number | null;
+  reviewedAt?: Date | null;
+  isIllustration?: boolean;
+}
+
+export async function updateMedia(q: Q, id: number, u: MediaUpdate): Promise<void> {
+  const row: Record<string, unknown> = { updated_at: q.raw("CURRENT_TIMESTAMP(3)") };
+  if (u.altText !== undefined) row.alt_text = u.altText;
+  if (u.caption !== undefined) row.caption = u.caption;
+  if (u.credit !== undefined) row.credit = u.credit;
+  if (u.focalX !== undefined) row.focal_x = u.focalX;
+  if (u.focalY !== undefined) row.focal_y = u.focalY;
+  if (u.sensitivity !== undefined) row.sensitivity = u.sensitivity;
+  if (u.flaggedForReview !== undefined) row.flagged_for_review = u.flaggedForReview;
+  if (u.reviewedBy !== undefined) row.reviewed_by = u.reviewedBy;
+  if (u.reviewedAt !== undefined) row.reviewed_at = u.reviewedAt;
+  if (u.isIllustration !== undefined) row.is_illustration = u.isIllustration;
+  await q("media_items").where({ id }).update(row);
+}
+
+// Tags
+
+const EMPTY_TAGS = (): MediaTags => ({ areas: [], systems: [], milestones: [] });
+
+export async function tagsOf(q: Q, ids: readonly number[]): Promise<Map<number, MediaTags>> {
+  const out = new Map<number, MediaTags>(ids.map((id) => [id, EMPTY_TAGS()]));
+  if (ids.length === 0) return out;
+  const rows = (await q("media_tags").whereIn("media_id", [...new Set(ids)]).orderBy(["kind", "value"])) as Array<{ media_id: number; kind: TagKind; value: string }>;
+  for (const r of rows) {
+    const tags = out.get(Number(r.media_id)) ?? EMPTY_TAGS();
+    if (r.kind === "area") tags.areas.push(r.value);
+    else if (r.kind === "system") tags.systems.push(r.value as System);
+    else tags.milestones.push(Number(r.value));
+    out.set(Number(r.media_id), tags);
+  }
+  for (const tags of out.values()) tags.milestones.sort((a, b) => a - b);
+  return out;
+}
+
+/** Replaces one kind of tag on an item. */
+export async function replaceTags(q: Q, mediaId: number, kind: TagKind, values: readonly string[]): Promise<void> {
+  await q("media_tags").where({ media_id: mediaId, kind }).delete();
+  await addTags(q, [mediaId], kind, values);
+}
+
+export async function addTags(q: Q, mediaIds: readonly number[], kind: TagKind, values: readonly string[]): Promise<void> {
+  const rows = mediaIds.flatMap((media_id) => [...new Set(values)].map((value) => ({ media_id, kind, value })));
+  if (rows.length === 0) return;
+  await q("media_tags").insert(rows).onConflict(["media_id", "kind", "value"]).ignore();
+}
+
+export async function removeTags(q: Q, mediaIds: readonly number[], kind: TagKind, values: readonly string[]): Promise<void> {
+  if (mediaIds.length === 0 || values.length === 0) return;
+  await q("media_tags").whereIn("media_id", [...mediaIds]).andWhere({ kind }).whereIn("value", [...values]).delete();
+}
+
+/** Areas already used on the project's photos or named by its milestones, alphabetically. */
+export async function knownAreas(q: Q, projectId: number): Promise<string[]> {
+  const used = (await q("media_tags as t")
+    .join("media_items as i", "i.id", "t.media_id")
+    .where({ "i.project_id": projectId, "t.kind": "area" })
+    .distinct("t.value as v")) as Array<{ v: string }>;
+  const fromProgramme = (await q("milestones").where({ project_id: projectId }).whereNot("area", "").distinct("area as v")) as Array<{ v: string }>;
+  return [...new Set([...used, ...fromProgramme].map((r) => r.v))].sort((a, b) => a.localeCompare(b));
+}
+
+/**
+ * The milestones photos of a project may be tagged with. A photo is tagged for staff use, so
+ * every milestone counts whatever its audience; what a visitor sees is filtered where it is shown.
+ */
+export async function milestonesOfProject(q: Q, projectId: number): Promise<Array<{ id: number; name: string }>> {
+  const rows = (await q("milestones").where({ project_id: projectId }).orderBy([{ column: "baseline_finish" }, { column: "id" }]).select("id", "name")) as Array<{ id: number; name: string }>;
+  return rows.map((r) => ({ id: Number(r.id), name: String(r.name) }));
+}
+
+export async function existingMilestoneIds(q: Q, projectId: number, ids: readonly number[]): Promise<Set<number>> {
+  if (ids.length === 0) return new Set();
+  const rows = (await q("milestones").where({ project_id: projectId }).whereIn("id", [...ids]).select("id")) as Array<{ id: number }>;
+  return new Set(rows.map((r) => Number(r.id)));
+}
+
+// Variants
+
+export async function variantsOf(q: Q, ids: readonly number[]): Promise<Map<number, VariantRecord[]>> {
+  const out = new Map<number, VariantRecord[]>(ids.map((id) => [id, []]));
+  if (ids.length === 0) return out;
+  const rows = await q("media_variants").whereIn("media_id", [...new Set(ids)]).orderBy([{ column: "width" }, { column: "format" }]);
+  for (const r of rows as Array<Record<string, unknown>>) {
+    const v: VariantRecord = {
+      mediaId: Number(r.media_id),
+      width: Number(r.width),
+      height: Number(r.height),
+      format: r.format as VariantFormat,
+      storageKey: String(r.storage_key),
+      bytes: Number(r.bytes),
+    };
+    out.get(v.mediaId)?.push(v);
+  }
+  return out;
+}
+
+export async function countVariantsWithKey(q: Q, key: string): Promise<number> {
+  const r = await q("media_variants").where({ storage_key: key }).count({ n: "*" }).first();
+  return Number(r?.n ?? 0);
+}
+
+/** Who is asking for a derivative: the three audiences the files' read path knows. */
+export type FileReader = "staff" | "investor" | "visitor";
+
+/**
+ * The one audience check of the media files' read path. A derivative is for staff always;
+ * for an investor while its photo is cleared and used in published public or investor
+ * content; for a visitor while it is cleared and used in published public content.
+ * Returns null when this reader may not have it (or there is no such key), and whether the
+ * bytes are public (so shared caches may keep them).
+ */
+export async function findReadableVariant(
+  q: Q,
+  key: string,
+  reader: FileReader,
+): Promise<{ format: VariantFormat; bytes: number; isPublic: boolean } | null> {
+  const usedIn = (audiences: Audience[]) =>
+    q.raw(
+      `i.sensitivity = 'cleared' AND EXISTS (SELECT 1 FROM media_usages u WHERE u.media_id = i.id AND u.published = 1 AND u.audience IN (${audiences.map(() => "?").join(", ")}))`,
+      audiences,
+    );
+  const row = (await q("media_variants as v")
+    .join("media_items as i", "i.id", "v.media_id")
+    .where("v.storage_key", key)
+    .select("v.format", "v.bytes")
+    .select(q.raw("MAX(?) AS public_ok", [usedIn(["public"])]))
+    .select(q.raw("MAX(?) AS investor_ok", [usedIn(["public", "investor"])]))
+    .groupBy("v.format", "v.bytes")
+    .first()) as { format: VariantFormat; bytes: number; public_ok: number | null; investor_ok: number | null } | undefined;
+  if (!row) return null;
+  const isPublic = Number(row.public_ok) === 1;
+  const allowed = reader === "staff" || (reader === "investor" ? Number(row.investor_ok) === 1 : isPublic);
+  return allowed ? { format: row.format, bytes: Number(row.bytes), isPublic } : null;
+}
+
+// Usages
+
+export async function replaceUsages(
+  q: Q,
+  owner: { type: "post" | "story" | "project"; id: number },
+  mediaIds: readonly number[],
+  audience: Audience,
+  published: boolean,
+): Promise<void> {
+  await q("media_usages").where({ owner_type: owner.type, owner_id: owner.id }).delete();
+  const rows = [...new Set(mediaIds)].map((media_id) => ({ media_id, owner_type: owner.type, owner_id: owner.id, audience, published }));
+  if (rows.length > 0) await q("media_usages").insert(rows);
+}
+
+export async function countUsages(q: Q, mediaIds: readonly number[]): Promise<Map<number, { total: number; published: number }>> {
+  const out = new Map<number, { total: number; published: number }>(mediaIds.map((id) => [id, { total: 0, published: 0 }]));
+  if (mediaIds.length === 0) return out;
+  const rows = (await q("media_usages")
+    .whereIn("media_id", [...new Set(mediaIds)])
+    .groupBy("media_id")
+    .select("media_id")
+    .count({ total: "*" })
+    .sum({ published: "published" })) as Array<{ media_id: number; total: number; published: number | string | null }>;
+  for (const r of rows) out.set(Number(r.media_id), { total: Number(r.total), published: Number(r.published ?? 0) });
+  return out;
+}
+
+// The processing queue
+
+export interface ClaimedJob {
+  jobId: number;
+  mediaId: number;
+  leaseToken: string;
+  attempts: number;
+  originalKey: string;
+}
+
+export async function insertJob(q: Q, mediaId: number): Promise<void> {
+  await q("media_jobs").insert({ media_id: mediaId });
+}
+
+/**
+ * Claims the oldest job that is due, or whose holder's lease ran out (its process died),
+ * under a fresh lease token. `SKIP LOCKED` lets several workers, in several processes,
+ * claim at the same moment without waiting on each other or taking the same job. Times
+ * come from the database clock, which every process shares.
+ */
+export async function claimJob(trx: Knex.Transaction, leaseToken: string, leaseMs: number): Promise<ClaimedJob | null> {
+  const row = (await trx("media_jobs")
+    .where((w) =>
+      w
+        .where((a) => a.where("state", "queued").andWhere("run_after", "<=", trx.raw("NOW(3)")))
+        .orWhere((b) => b.where("state", "running").andWhere("lease_until", "<", trx.raw("NOW(3)"))),
+    )
+    .orderBy("id")
+    .first("id", "media_id", "attempts")
+    .forUpdate()
+    .skipLocked()) as { id: number; media_id: number; attempts: number } | undefined;
+  if (!row) return null;
+  await trx("media_jobs")
+    .where({ id: row.id })
+    .update({
+      state: "running",
+      lease_token: leaseToken,
+      lease_until: trx.raw("DATE_ADD(NOW(3), INTERVAL ? MICROSECOND)", [Math.round(leaseMs * 1000)]),
+      attempts: trx.raw("attempts + 1"),
+    });
+  const item = (await trx("media_items").where({ id: row.media_id }).first("original_key")) as { original_key: string } | undefined;
+  return {
+    jobId: Number(row.id),
+    mediaId: Number(row.media_id),
+    leaseToken,
+    attempts: Number(row.attempts) + 1,
+    originalKey: String(item?.original_key ?? ""),
+  };
+}
+
+/** Storage keys each attempt (by lease token) recorded before writing them. */
+export type StagedKeys = Record<string, string[]>;
+
+const parseStaged = (v: unknown): StagedKeys => (v ? (JSON.parse(String(v)) as StagedKeys) : {});
+
+/** Locks the job row while its lease token is still the one given; null when the lease was lost. */
+export async function lockHeldJob(trx: Knex.Transaction, jobId: number, leaseToken: string): Promise<{ staged: StagedKeys; attempts: number } | null> {
+  const row = (await trx("media_jobs").where({ id: jobId, lease_token: leaseToken }).first("staged_keys", "attempts").forUpdate()) as
+    | { staged_keys: string | null; attempts: number }
+    | undefined;
+  if (!row) return null;
+  return { staged: parseStaged(row.staged_keys), attempts: Number(row.attempts) };
+}
+
+/** Locks a job row whoever holds it; null when it is gone (its photo is committed or failed). */
+export async function lockJob(trx: Knex.Transaction, jobId: number): Promise<{ staged: StagedKeys } | null> {
+  const row = (await trx("media_jobs").where({ id: jobId }).first("staged_keys").forUpdate()) as { staged_keys: string | null } | undefined;
+  return row ? { staged: parseStaged(row.staged_keys) } : null;
+}
+
+export async function setStagedKeys(q: Q, jobId: number, staged: StagedKeys): Promise<void> {
+  await q("media_jobs").where({ id: jobId }).update({ staged_keys: JSON.stringify(staged) });
+}
+
+/** Whether any attempt of any job, other than the one excepted, recorded this key. */
+export async function isKeyStaged(q: Q, key: string, except?: { jobId: number; leaseToken: string }): Promise<boolean> {
+  const rows = (await q("media_jobs").where("staged_keys", "like", `%${escapeLike(JSON.stringify(key))}%`).select("id", "staged_keys")) as Array<{ id: number; staged_keys: string }>;
+  return rows.some((r) =>
+    Object.entries(parseStaged(r.staged_keys)).some(([token, keys]) => keys.includes(key) && !(except && Number(r.id) === except.jobId && token === except.leaseToken)),
+  );
+}
+
+export async function deleteJob(q: Q, jobId: number): Promise<void> {
+  await q("media_jobs").where({ id: jobId }).delete();
+}
+
+/** Back into the queue after a failed attempt, not before `delayMs` has passed. */
+export async function requeueJob(q: Q, jobId: number, error: string, delayMs: number): Promise<void> {
+  await q("media_jobs")
+    .where({ id: jobId })
+    .update({
+      state: "queued",
+      lease_token: null,
+      lease_until: null,
+      last_error: error.slice(0, 2000),
+      run_after: q.raw("DATE_ADD(NOW(3), INTERVAL ? MICROSECOND)", [Math.round(delayMs * 1000)]),
+    });
+}
+
+/** Jobs whose holder's lease ran out go back to the queue (their process died or hung). */
+export async function requeueExpiredLeases(q: Q): Promise<number> {
+  return Number(
+    await q("media_jobs")
+      .where("state", "running")
+      .andWhere("lease_until", "<", q.raw("NOW(3)"))
+      .update({ state: "queued", lease_token: null, lease_until: null, last_error: "the lease ran out; the worker that held it stopped" }),
+  );
+}
+
+/**
+ * The caller holds the job's lease, so the photo has no variants yet. (No defensive DELETE
+ * first: on an empty range it takes gap locks that deadlock two workers committing at once.)
+ */
+export async function insertVariants(q: Q, mediaId: number, variants: ReadonlyArray<Omit<VariantRecord, "mediaId">>): Promise<void> {
+  if (variants.length === 0) return;
+  await q("media_variants").insert(
+    variants.map((v) => ({ media_id: mediaId, width: v.width, height: v.height, format: v.format, storage_key: v.storageKey, bytes: v.bytes })),
+  );
+}
+
+export async function markMediaReady(
+  q: Q,
+  mediaId: number,
+  d: { width: number; height: number; placeholder: string; dominantColor: string },
+): Promise<void> {
+  await q("media_items").where({ id: mediaId }).update({
+    status: "ready",
+    failure_reason: null,
+    width: d.width,
+    height: d.height,
+    placeholder: d.placeholder,
+    dominant_color: d.dominantColor,
+    updated_at: q.raw("CURRENT_TIMESTAMP(3)"),
+  });
+}
+
+export async function markMediaFailed(q: Q, mediaId: number, reason: string): Promise<void> {
+  await q("media_items").where({ id: mediaId }).update({ status: "failed", failure_reason: reason.slice(0, 2000), updated_at: q.raw("CURRENT_TIMESTAMP(3)") });
+}
+
+export async function requeueMedia(q: Q, mediaId: number): Promise<void> {
+  await q("media_items").where({ id: mediaId }).update({ status: "processing", failure_reason: null, updated_at: q.raw("CURRENT_TIMESTAMP(3)") });
+  await q("media_jobs").insert({ media_id: mediaId }).onConflict("media_id").ignore();
+}
+
+export async function countMediaOfProject(q: Q, projectId: number): Promise<number> {
+  const r = await q("media_items").where({ project_id: projectId }).count({ n: "*" }).first();
+  return Number(r?.n ?? 0);
+}

@@ -1,0 +1,148 @@
+import { Router, type RequestHandler } from "express";
+import { MulterError } from "multer";
+import { IdParamSchema } from "#shared/schemas/common.ts";
+import { BulkTagInputSchema, MediaListQuerySchema, MediaPatchInputSchema, ProjectQuerySchema, ReviewInputSchema } from "#shared/schemas/media.ts";
+import { AppError } from "../core/app-error.ts";
+import { actorOf, requireRole } from "../core/auth.ts";
+import type { MediaService } from "./media.service.ts";
+import type { UploadArea } from "./media.storage.ts";
+
+const staff = () => requireRole("admin", "lead", "marketing");
+const reviewers = () => requireRole("lead", "admin");
+
+function formatSize(bytes: number): string {
+  const mb = bytes / (1024 * 1024);
+  return mb >= 1 ? `${Number(mb.toFixed(1))} MB` : `${Math.round(bytes / 1024)} KB`;
+}
+
+/** multer's refusals in the fixed error shape, each saying what to do about it. */
+function uploadError(err: unknown, limits: MediaService["limits"]): unknown {
+  if (!(err instanceof MulterError)) return err;
+  switch (err.code) {
+    case "LIMIT_FILE_SIZE": {
+      const size = formatSize(limits.maxFileBytes);
+      const name = (err as MulterError & { filename?: string }).filename ?? "A file";
+      return new AppError("too_large", `${name} is larger than ${size}, the limit for one photo; nothing was kept.`, 413, { files: `each photo at most ${size}` });
+    }
+    case "LIMIT_FILE_COUNT":
+      return new AppError("too_many_files", `At most ${limits.maxFiles} files can be uploaded at once; nothing was kept. Send the rest in another upload.`, 413, { files: `at most ${limits.maxFiles} files` });
+    case "LIMIT_UNEXPECTED_FILE":
+      return err.field === "files"
+        ? new AppError("too_many_files", `At most ${limits.maxFiles} files can be uploaded at once; nothing was kept. Send the rest in another upload.`, 413, { files: `at most ${limits.maxFiles} files` })
+        : new AppError("unexpected_field", `Send the photos in the field \`files\`, not \`${err.field ?? ""}\`.`, 400, { [err.field ?? "_"]: "is not a known field" });
+    case "LIMIT_PART_COUNT":
+    case "LIMIT_FIELD_COUNT":
+      return new AppError("too_many_parts", "The upload has too many parts; send the photos in the field `files` and nothing else.", 413);
+    default:
+      return new AppError("bad_upload", `The upload could not be read (${err.message}).`, 400);
+  }
+}
+
+/**
+ * The media library API (under /api): staff only. Sensitivity is a lead's or an admin's
+ * decision (the review routes, and the sensitivity field of PATCH, checked in the service).
+ */
+export function mediaRouter(media: MediaService, uploads: UploadArea): Router {
+  const r = Router();
+  const receive = uploads.receiver({ maxFileBytes: media.limits.maxFileBytes, maxFiles: media.limits.maxFiles });
+  const receiveFiles: RequestHandler = (req, res, next) => receive(req, res, (err?: unknown) => next(err ? uploadError(err, media.limits) : undefined));
+
+  r.get("/media", staff(), async (req, res) => {
+    const query = MediaListQuerySchema.parse({ ...req.query });
+    res.json(await media.list(query));
+  });
+  r.post("/media", staff(), receiveFiles, async (req, res) => {
+    const files = uploads.filesOf(req.files);
+    const body = (req.body ?? {}) as Record<string, unknown>;
+    const raw = (req.query.project as string | undefined) ?? (typeof body.project === "string" ? body.project : undefined);
+    let project: string | undefined;
+    try {
+      project = ProjectQuerySchema.parse(raw === undefined ? {} : { project: raw }).project;
+    } catch (err) {
+      await uploads.discard(files);
+      throw err;
+    }
+    const results = await media.upload({ project, files }, actorOf(req));
+    res.status(201).json(results);
+  });
+  r.get("/media/review", reviewers(), async (req, res) => {
+    const { project } = ProjectQuerySchema.parse({ ...req.query });
+    res.json(await media.reviewQueue(project));
+  });
+  r.get("/media/vocabulary", staff(), async (req, res) => {
+    const { project } = ProjectQuerySchema.parse({ ...req.query });
+    res.json(await media.vocabulary(project));
+  });
+  r.post("/media/bulk-tags", staff(), async (req, res) => {
+    const input = BulkTagInputSchema.parse(req.body);
+    res.json(await media.bulkTag(input));
+  });
+  r.get("/media/:id", staff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    res.json(await media.get(id));
+  });
+  r.patch("/media/:id", staff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const patch = MediaPatchInputSchema.parse(req.body);
+    res.json(await media.update(id, patch, actorOf(req)));
+  });
+  r.post("/media/:id/review", reviewers(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const input = ReviewInputSchema.parse(req.body);
+    res.json(await media.review(id, input, actorOf(req)));
+  });
+  r.post("/media/:id/retry", staff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    res.json(await media.retry(id));
+  });
+  r.get("/media/:id/original", staff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const file = await media.original(id);
+    res.set({
+      "Content-Type": file.mime,
+      "Content-Length": String(file.bytes),
+      // The original may carry GPS and other metadata: never kept by a shared cache.
+      "Cache-Control": "private, no-store",
+      "Content-Disposition": `inline; filename*=UTF-8''${encodeURIComponent(file.name)}`,
+    });
+    file.stream.on("error", (err) => res.destroy(err));
+    file.stream.pipe(res);
+  });
+  return r;
+}
+
+/** A missing derivative answers like a forbidden one: nobody learns that a hidden photo exists. */
+const fileNotFound = { error: { code: "not_found", message: "There is no such image." } };
+
+/**
+ * GET /media/v/:name — derivative bytes with the audience check on every request. Public use
+ * is cached for ever by anyone (`public, …, immutable`: the name is the bytes' hash); anything
+ * else only by the reader's own browser (`private`).
+ */
+export function mediaFilesRouter(media: MediaService): Router {
+  const r = Router();
+  r.get("/media/v/:name", async (req, res) => {
+    const role = req.user?.role;
+    const reader = role === "admin" || role === "lead" || role === "marketing" ? "staff" : role === "investor" ? "investor" : "visitor";
+    const file = await media.readVariant(req.params.name, reader);
+    if (!file) {
+      res.status(404).set("Cache-Control", "no-store").json(fileNotFound);
+      return;
+    }
+    res.set({
+      "Cache-Control": `${file.isPublic ? "public" : "private"}, max-age=31536000, immutable`,
+      ETag: file.etag,
+      // Public derivatives appear in e-mail and feed readers on other origins.
+      ...(file.isPublic ? { "Cross-Origin-Resource-Policy": "cross-origin" } : {}),
+    });
+    if (req.headers["if-none-match"] === file.etag) {
+      file.stream.destroy();
+      res.status(304).end();
+      return;
+    }
+    res.set({ "Content-Type": file.contentType, "Content-Length": String(file.bytes) });
+    file.stream.on("error", (err) => res.destroy(err));
+    file.stream.pipe(res);
+  });
+  return r;
+}

@@ -1,0 +1,637 @@
+import type { Knex } from "knex";
+import { DateTime } from "luxon";
+import type { Audience } from "#shared/schemas/common.ts";
+import type { MediaPicture } from "#shared/schemas/media.ts";
+import type { Milestone } from "#shared/schemas/programme.ts";
+import type { Project } from "#shared/schemas/projects.ts";
+import {
+  POSTS_PAGE_SIZE,
+  workflowStep,
+  type MilestoneSnapshot,
+  type PostCreateInput,
+  type PostDetail,
+  type PostListQuery,
+  type PostMilestone,
+  type PostPatchInput,
+  type PostRedirect,
+  type PostRevisionSummary,
+  type PostStatus,
+  type PostSummary,
+  type PostTag,
+  type PublishingProblem,
+  type RevisionDiff,
+  type ScheduleInput,
+  type WorkflowAction,
+  type WorkflowResult,
+} from "#shared/schemas/posts.ts";
+import { imageIdsOf, milestoneBlockIdsOf, walkRichText, type RichTextDoc } from "#shared/schemas/rich-text.ts";
+import { AppError, forbidden, notFound } from "../core/app-error.ts";
+import type { Actor } from "../core/types.ts";
+import type { Db } from "../db/knex.ts";
+import type { ProjectsService } from "../projects/projects.service.ts";
+import { milestoneProblems, photoProblems, publishingBlocked, type MediaForContent, type PhotoUse } from "./posts.checks.ts";
+import {
+  captureMilestones,
+  claimDuePosts,
+  findPostById,
+  findRedirect,
+  findRevision,
+  findVisiblePostBySlug,
+  insertPost,
+  insertPublishingEvent,
+  insertRevision,
+  keepOldSlug,
+  latestPublicChange,
+  listPosts,
+  listPublicPostAddresses,
+  listPublicPosts,
+  listPublishingEvents,
+  listRevisions,
+  milestoneLinksOf,
+  releaseOldSlug,
+  replaceMilestoneLinks,
+  replacePostMedia,
+  replaceTags,
+  slugHolder,
+  tagsFor,
+  updatePost,
+  type MilestoneLinkRecord,
+  type PostListRecord,
+  type PostRecord,
+  type PostUpdate,
+  type Viewer,
+} from "./posts.repository.ts";
+import { plainTextOf, renderRichText, type MilestoneBlockData, type RenderContext } from "./rich-text.ts";
+import { diffText } from "./text-diff.ts";
+
+type Trx = Knex.Transaction;
+
+/** What posts need of the programme: the milestones an audience may see (server/programme). */
+export interface ProgrammeForPosts {
+  list(slug: string, query: Record<string, never>, actor: Actor): Promise<Milestone[]>;
+}
+
+export function viewerOf(actor: Actor): Viewer {
+  const role = actor.user?.role;
+  if (!role) return "public";
+  return role === "investor" ? "investor" : "staff";
+}
+
+/**
+ * The programme's audience rule applies to callers, so the milestones an audience may see are
+ * asked for as a caller of that audience would ask. The id is never a real user's.
+ */
+function readerOfAudience(audience: Audience): Actor {
+  if (audience === "public") return { user: null, ip: null };
+  const role = audience === "investor" ? "investor" : "lead";
+  return { user: { id: 0, email: "", name: "", role }, ip: null };
+}
+
+const snapshotOf = (m: Milestone): MilestoneSnapshot => ({
+  status: m.status,
+  baselineFinish: m.baselineFinish,
+  forecastFinish: m.forecastFinish,
+  actualFinish: m.actualFinish,
+  percentComplete: m.percentComplete,
+});
+
+const sameSnapshot = (a: MilestoneSnapshot, b: MilestoneSnapshot) =>
+  a.status === b.status && a.forecastFinish === b.forecastFinish && a.actualFinish === b.actualFinish && a.baselineFinish === b.baselineFinish && Math.round(a.percentComplete) === Math.round(b.percentComplete);
+
+/** An address made from a title: lower-case ASCII words joined by hyphens. */
+export function slugFromTitle(title: string): string {
+  const slug = title
+    .normalize("NFKD")
+    .replace(/[\u0300-\u036f]/g, "")
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, "-")
+    .replace(/^-+|-+$/g, "")
+    .slice(0, 80)
+    .replace(/-+$/g, "");
+  return slug || "update";
+}
+
+const iso = (d: Date | null) => (d ? d.toISOString() : null);
+
+function isDuplicate(err: unknown): boolean {
+  return (err as { code?: string })?.code === "ER_DUP_ENTRY";
+}
+
+const slugTaken = (slug: string) =>
+  new AppError("slug_taken", `The address “${slug}” is already used by another update in this project.`, 409, { slug: "is already used by another update in this project" });
+
+/** The photos of a post, where each is used (for checks that name them). */
+function photoUsesOf(post: { coverMediaId: number | null; body: RichTextDoc }): PhotoUse[] {
+  const uses: PhotoUse[] = [];
+  if (post.coverMediaId) uses.push({ mediaId: post.coverMediaId, where: "The cover" });
+  let n = 0;
+  walkRichText(post.body, (node) => {
+    if (node.type !== "image") return;
+    n += 1;
+    const attrs = node.attrs as { mediaId: number; alt?: string | null };
+    uses.push({ mediaId: Number(attrs.mediaId), where: `Image ${n} in the text`, altOverride: attrs.alt ?? null });
+  });
+  return uses;
+}
+
+const mediaIdsOf = (post: { coverMediaId: number | null; body: RichTextDoc }) => [...new Set([...(post.coverMediaId ? [post.coverMediaId] : []), ...imageIdsOf(post.body)])];
+
+/** Explicit links first, then milestones that only appear as blocks in the text. */
+function linksOf(explicit: readonly number[], body: RichTextDoc): Array<{ milestoneId: number; explicit: boolean }> {
+  const ids = [...new Set(explicit)];
+  const links = ids.map((milestoneId) => ({ milestoneId, explicit: true }));
+  for (const id of milestoneBlockIdsOf(body)) if (!ids.includes(id)) links.push({ milestoneId: id, explicit: false });
+  return links;
+}
+
+export interface PostsDeps {
+  db: Db;
+  projects: ProjectsService;
+  programme: ProgrammeForPosts;
+  media: MediaForContent;
+  /** Called after every change that readers could see (public caches drop their copies). */
+  onChange?: () => void;
+}
+
+export function createPostsService(deps: PostsDeps) {
+  const { db, projects, programme, media } = deps;
+  const now = () => projects.now();
+  const changed = () => deps.onChange?.();
+
+  async function milestonesFor(project: Project, actor: Actor): Promise<Map<number, Milestone>> {
+    return new Map((await programme.list(project.slug, {}, actor)).map((m) => [m.id, m]));
+  }
+
+  /** What a milestone block shows: "then" where captured, otherwise today's figures as the audience sees them. */
+  function blockData(links: readonly MilestoneLinkRecord[], current: ReadonlyMap<number, Milestone>): Map<number, MilestoneBlockData> {
+    const out = new Map<number, MilestoneBlockData>();
+    for (const [id, m] of current) out.set(id, { name: m.name, ...snapshotOf(m) });
+    for (const l of links) if (l.then && l.name) out.set(l.milestoneId, { name: l.name, ...l.then });
+    return out;
+  }
+
+  async function renderFor(project: Project, post: { body: RichTextDoc; audience: Audience; coverMediaId: number | null }, links: readonly MilestoneLinkRecord[]) {
+    const [pictures, current] = await Promise.all([media.pictureFor(mediaIdsOf(post)), milestonesFor(project, readerOfAudience(post.audience))]);
+    const ctx: RenderContext = { pictures, milestones: blockData(links, current) };
+    return { html: renderRichText(post.body, ctx), plainText: plainTextOf(post.body, ctx) };
+  }
+
+  /** Every reason the post cannot be published for its audience now. */
+  async function problemsOf(project: Project, post: { body: RichTextDoc; audience: Audience; coverMediaId: number | null }, milestoneIds: readonly number[]): Promise<PublishingProblem[]> {
+    const problems: PublishingProblem[] = [];
+    if (!post.coverMediaId) problems.push({ code: "no_cover", message: "Choose a cover photo." });
+    problems.push(...(await photoProblems(media, project.id, photoUsesOf(post), post.audience)));
+    if (milestoneIds.length) {
+      const [all, visible] = await Promise.all([milestonesFor(project, readerOfAudience("internal")), milestonesFor(project, readerOfAudience(post.audience))]);
+      problems.push(...milestoneProblems(milestoneIds, all, new Set(visible.keys()), post.audience));
+    }
+    return problems;
+  }
+
+  /** Refuses media and milestones that are not this project's, before anything is written. */
+  async function checkReferences(project: Project, input: { coverMediaId: number | null; body: RichTextDoc }, milestoneIds: readonly number[]) {
+    const fields: Record<string, string> = {};
+    const ids = mediaIdsOf(input);
+    if (ids.length) {
+      const described = await media.describeForPublishing(ids);
+      const unknown = described.filter((d) => !d.exists || d.projectId !== project.id).map((d) => d.id);
+      if (input.coverMediaId && unknown.includes(input.coverMediaId)) fields.coverMediaId = `photo #${input.coverMediaId} is not in this project's media library`;
+      const inline = unknown.filter((id) => imageIdsOf(input.body).includes(id));
+      if (inline.length) fields.body = `photo ${inline.map((id) => `#${id}`).join(", ")} is not in this project's media library`;
+    }
+    if (milestoneIds.length) {
+      const all = await milestonesFor(project, readerOfAudience("internal"));
+      const unknown = milestoneIds.filter((id) => !all.has(id));
+      if (unknown.length) fields.milestoneIds = `milestone ${unknown.map((id) => `#${id}`).join(", ")} is not in this project's programme`;
+    }
+    if (Object.keys(fields).length) {
+      throw new AppError("invalid_post", `Check ${Object.entries(fields).map(([k, v]) => `${k}: ${v}`).join("; ")}.`, 422, fields);
+    }
+  }
+
+  async function summaries(rows: readonly PostListRecord[]): Promise<PostSummary[]> {
+    const ids = rows.map((r) => r.id);
+    const [tags, pictures] = await Promise.all([tagsFor(db, ids), media.pictureFor(rows.flatMap((r) => (r.coverMediaId ? [r.coverMediaId] : [])))]);
+    return rows.map((r) => summaryOf(r, tags.get(r.id) ?? [], r.coverMediaId ? (pictures.get(r.coverMediaId) ?? null) : null));
+  }
+
+  function summaryOf(r: PostListRecord, tags: PostTag[], cover: MediaPicture | null): PostSummary {
+    return {
+      id: r.id,
+      slug: r.slug,
+      title: r.title,
+      summary: r.summary,
+      audience: r.audience,
+      status: r.status,
+      publishedAt: iso(r.publishedAt),
+      scheduledFor: iso(r.scheduledFor),
+      cover,
+      tags,
+      authorName: r.authorName,
+      updatedAt: r.updatedAt.toISOString(),
+    };
+  }
+
+  async function detailOf(project: Project, post: PostRecord, actor: Actor): Promise<PostDetail> {
+    const viewer = viewerOf(actor);
+    const links = await milestoneLinksOf(db, post.id);
+    const inline = imageIdsOf(post.body);
+    const [tags, pictures, current] = await Promise.all([tagsFor(db, [post.id]), media.pictureFor(mediaIdsOf(post)), milestonesFor(project, actor)]);
+    const milestones: PostMilestone[] = [];
+    for (const l of links) {
+      const now = current.get(l.milestoneId);
+      const name = l.name ?? now?.name;
+      if (!name) continue; // neither captured nor visible to this caller: say nothing of it
+      const nowSnap = now ? snapshotOf(now) : null;
+      milestones.push({ id: l.milestoneId, name, then: l.then, now: nowSnap, changed: Boolean(l.then && nowSnap && !sameSnapshot(l.then, nowSnap)) });
+    }
+    // Published HTML is the record of what was published; staff previews of unpublished work render afresh.
+    const html = viewer === "staff" && post.status !== "published" ? (await renderFor(project, post, links)).html : post.html;
+    const detail: PostDetail = {
+      ...summaryOf(post, tags.get(post.id) ?? [], post.coverMediaId ? (pictures.get(post.coverMediaId) ?? null) : null),
+      projectSlug: project.slug,
+      html,
+      milestones,
+      images: inline.flatMap((id) => (pictures.has(id) ? [pictures.get(id)!] : [])),
+      coverMediaId: post.coverMediaId,
+      milestoneIds: links.filter((l) => l.explicit).map((l) => l.milestoneId),
+    };
+    if (viewer === "staff") {
+      const revisions = await listRevisions(db, post.id);
+      detail.body = post.body;
+      detail.version = post.version;
+      detail.reviewComment = post.reviewComment;
+      detail.revisions = revisions.map(revisionSummary);
+      detail.problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
+    }
+    return detail;
+  }
+
+  const revisionSummary = (r: { number: number; createdAt: Date; authorName: string; title: string; status: PostStatus; note: string | null }): PostRevisionSummary => ({
+    number: r.number,
+    createdAt: r.createdAt.toISOString(),
+    authorName: r.authorName,
+    title: r.title,
+    status: r.status,
+    note: r.note,
+  });
+
+  async function lockedPost(trx: Trx, id: number): Promise<PostRecord> {
+    const post = await findPostById(trx, id, { forUpdate: true });
+    if (!post) throw notFound("That update");
+    return post;
+  }
+
+  /** Makes `slug` the post's address, keeping the old one for redirects. */
+  async function moveSlug(trx: Trx, post: PostRecord, slug: string): Promise<void> {
+    const holder = await slugHolder(trx, post.projectId, slug);
+    if (holder && holder.postId !== post.id) throw slugTaken(slug);
+    if (holder && !holder.current) await releaseOldSlug(trx, post.projectId, slug, post.id);
+    await keepOldSlug(trx, post.projectId, post.slug, post.id);
+  }
+
+  /** A free address for a new post: the wanted one, or with -2, -3 … when it was made from the title. */
+  async function freeSlug(projectId: number, wanted: string, explicit: boolean): Promise<string> {
+    if (!(await slugHolder(db, projectId, wanted))) return wanted;
+    if (explicit) throw slugTaken(wanted);
+    for (let n = 2; n < 1000; n++) {
+      const candidate = `${wanted.slice(0, 112)}-${n}`;
+      if (!(await slugHolder(db, projectId, candidate))) return candidate;
+    }
+    throw slugTaken(wanted);
+  }
+
+  /** Publishes inside the caller's transaction: captures "then", renders the record, opens the photos to the audience. */
+  async function publishIn(trx: Trx, project: Project, post: PostRecord, at: Date): Promise<PostUpdate> {
+    const links = await milestoneLinksOf(trx, post.id);
+    const current = await milestonesFor(project, readerOfAudience(post.audience));
+    const snapshots = new Map<number, MilestoneSnapshot & { name: string }>();
+    for (const l of links) {
+      const m = current.get(l.milestoneId);
+      if (!l.capturedAt && m) snapshots.set(l.milestoneId, { name: m.name, ...snapshotOf(m) });
+    }
+    await captureMilestones(trx, post.id, snapshots, at);
+    const captured = await milestoneLinksOf(trx, post.id);
+    const { html, plainText } = await renderFor(project, post, captured);
+    await media.setUsages("post", post.id, mediaIdsOf(post), post.audience, true, trx);
+    return { status: "published", html, plainText, publishedAt: post.publishedAt ?? at, scheduledFor: null, withdrawnAt: null, reviewComment: null };
+  }
+
+  function instantOf(project: Project, at: ScheduleInput["at"]): Date {
+    if (typeof at === "string") return new Date(at);
+    const d = DateTime.fromISO(`${at.date}T${at.time}`, { zone: project.timeZone });
+    if (!d.isValid) throw new AppError("invalid_schedule", "That date and time do not exist in the project's time zone.", 422, { at: "is not a valid time in the project's time zone" });
+    return d.toJSDate();
+  }
+
+  async function transition(id: number, action: WorkflowAction, actor: Actor, extra: { comment?: string; at?: ScheduleInput["at"] } = {}): Promise<WorkflowResult> {
+    const user = actor.user;
+    if (!user) throw new AppError("unauthenticated", "Sign in first.", 401);
+    const result = await db.transaction(async (trx) => {
+      const post = await lockedPost(trx, id);
+      const project = await projects.getById(post.projectId);
+      const step = workflowStep(action, post.status, user.role, post.authorId === user.id);
+      if (!step.ok) throw step.reason === "role" ? forbidden(step.message) : new AppError("invalid_transition", step.message, 409);
+      const at = now();
+      let changes: PostUpdate = { status: step.to };
+      if (step.to === "published" || step.to === "scheduled") {
+        const links = await milestoneLinksOf(trx, post.id);
+        const problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
+        if (problems.length) throw publishingBlocked(problems);
+      }
+      if (action === "publish") changes = await publishIn(trx, project, post, at);
+      if (action === "schedule") {
+        if (!extra.at) throw new AppError("invalid_schedule", "Say when to publish.", 422, { at: "is required" });
+        const when = instantOf(project, extra.at);
+        if (when.getTime() <= at.getTime()) throw new AppError("invalid_schedule", "The publication time must be in the future.", 422, { at: "must be in the future" });
+        changes.scheduledFor = when;
+        changes.reviewComment = null;
+      }
+      if (action === "return") changes.reviewComment = extra.comment ?? null;
+      if (action === "return" || (action === "withdraw" && post.status === "scheduled")) changes.scheduledFor = null;
+      if (action === "approve") changes.reviewComment = null;
+      if (action === "withdraw" && post.status === "published") {
+        changes.withdrawnAt = at;
+        await media.setUsages("post", post.id, mediaIdsOf(post), post.audience, false, trx);
+      }
+      await updatePost(trx, post.id, null, changes, at);
+      await insertPublishingEvent(trx, {
+        ownerType: "post",
+        ownerId: post.id,
+        action,
+        from: post.status,
+        to: step.to,
+        actorId: user.id,
+        actorName: user.name,
+        comment: action === "return" ? (extra.comment ?? null) : action === "schedule" ? `for ${changes.scheduledFor!.toISOString()}` : null,
+        at,
+      });
+      return { id: post.id, status: step.to, scheduledFor: iso(changes.scheduledFor ?? (step.to === "scheduled" ? post.scheduledFor : null)) };
+    });
+    changed();
+    return result;
+  }
+
+  async function writeRevision(trx: Trx, postId: number, actor: Actor, note: string | null, at: Date): Promise<number> {
+    const post = (await findPostById(trx, postId))!;
+    const links = await milestoneLinksOf(trx, postId);
+    const tags = (await tagsFor(trx, [postId])).get(postId) ?? [];
+    return insertRevision(trx, postId, {
+      title: post.title,
+      summary: post.summary,
+      slug: post.slug,
+      audience: post.audience,
+      status: post.status,
+      body: post.body,
+      plainText: post.plainText,
+      coverMediaId: post.coverMediaId,
+      milestoneIds: links.filter((l) => l.explicit).map((l) => l.milestoneId),
+      tags,
+      note,
+      authorId: actor.user?.id ?? null,
+      authorName: actor.user?.name ?? "Plumbline",
+      at,
+    });
+  }
+
+  /** The shared path of PATCH and restore: the content rules, a new revision, and the checks for live posts. */
+  async function saveChanges(id: number, input: Omit<PostPatchInput, "note"> & { note?: string | null }, actor: Actor): Promise<PostDetail> {
+    const user = actor.user!;
+    const approver = user.role === "lead" || user.role === "admin";
+    const saved = await db.transaction(async (trx) => {
+      const post = await lockedPost(trx, id);
+      if (input.version !== undefined && input.version !== post.version) {
+        throw new AppError("conflict", "Someone else changed this update since you opened it. Reload to see their changes.", 409, undefined, {
+          current: await detailOf(await projects.getById(post.projectId), post, actor),
+        });
+      }
+      if (post.status === "published" && !approver) throw forbidden("A published update is changed by a lead or an admin.");
+      const project = await projects.getById(post.projectId);
+      const oldLinks = await milestoneLinksOf(trx, post.id);
+      const next = {
+        title: input.title ?? post.title,
+        summary: input.summary ?? post.summary,
+        body: input.body ?? post.body,
+        audience: input.audience ?? post.audience,
+        coverMediaId: input.coverMediaId === undefined ? post.coverMediaId : input.coverMediaId,
+        slug: input.slug ?? post.slug,
+      };
+      const explicit = input.milestoneIds ?? oldLinks.filter((l) => l.explicit).map((l) => l.milestoneId);
+      const links = linksOf(explicit, next.body);
+      await checkReferences(project, next, input.milestoneIds ?? []);
+      if (next.slug !== post.slug) await moveSlug(trx, post, next.slug);
+      await replaceMilestoneLinks(trx, post.id, links);
+      if (input.tags) await replaceTags(trx, post.id, input.tags);
+      await replacePostMedia(trx, post.id, next.coverMediaId, imageIdsOf(next.body));
+
+      const at = now();
+      const changes: PostUpdate = { ...next };
+      // An approval was given to the text as it stood; marketing's later edits need a new one.
+      let demoted = false;
+      if (!approver && (post.status === "approved" || post.status === "scheduled")) {
+        changes.status = "draft";
+        changes.scheduledFor = null;
+        demoted = true;
+      }
+      const status = changes.status ?? post.status;
+      if (status === "published") {
+        const problems = await problemsOf(project, next, links.map((l) => l.milestoneId));
+        if (problems.length) throw publishingBlocked(problems);
+        Object.assign(changes, await publishIn(trx, project, { ...post, ...next }, post.publishedAt ?? at));
+        delete changes.publishedAt;
+      } else {
+        Object.assign(changes, await renderFor(project, next, await milestoneLinksOf(trx, post.id)));
+        await media.setUsages("post", post.id, mediaIdsOf(next), next.audience, false, trx);
+      }
+      try {
+        await updatePost(trx, post.id, null, changes, at);
+      } catch (err) {
+        if (isDuplicate(err)) throw slugTaken(next.slug);
+        throw err;
+      }
+      if (demoted) {
+        await insertPublishingEvent(trx, { ownerType: "post", ownerId: post.id, action: "edited", from: post.status, to: "draft", actorId: user.id, actorName: user.name, comment: "Edited after approval: needs approval again.", at });
+      }
+      await writeRevision(trx, post.id, actor, input.note ?? null, at);
+      return post.id;
+    });
+    changed();
+    const post = (await findPostById(db, saved))!;
+    return detailOf(await projects.getById(post.projectId), post, actor);
+  }
+
+  return {
+    /** One page of the posts the caller may see, with the total for X-Total-Count. */
+    async list(slug: string, query: PostListQuery, actor: Actor): Promise<{ items: PostSummary[]; total: number }> {
+      const project = await projects.get(slug);
+      const viewer = viewerOf(actor);
+      const { rows, total } = await listPosts(db, project.id, viewer, {
+        page: query.page,
+        pageSize: POSTS_PAGE_SIZE,
+        tag: query.tag,
+        q: query.q,
+        status: viewer === "staff" ? query.status : undefined,
+        audience: query.audience,
+      });
+      return { items: await summaries(rows), total };
+    },
+
+    /** A post by its address, or where it moved to; 404 when the caller may not read it. */
+    async getBySlug(slug: string, postSlug: string, actor: Actor): Promise<PostDetail | PostRedirect> {
+      const project = await projects.get(slug);
+      const viewer = viewerOf(actor);
+      const post = await findVisiblePostBySlug(db, project.id, postSlug, viewer);
+      if (post) return detailOf(project, post, actor);
+      const moved = await findRedirect(db, project.id, postSlug, viewer);
+      if (moved) return { redirectTo: moved };
+      throw notFound("That update");
+    },
+
+    /** Staff: the full post with body, version, revisions and the publishing problems. */
+    async getById(id: number, actor: Actor): Promise<PostDetail> {
+      const post = await findPostById(db, id);
+      if (!post) throw notFound("That update");
+      return detailOf(await projects.getById(post.projectId), post, actor);
+    },
+
+    async create(slug: string, input: PostCreateInput, actor: Actor): Promise<{ id: number; slug: string; status: PostStatus }> {
+      const project = await projects.get(slug);
+      const user = actor.user!;
+      const coverMediaId = input.coverMediaId ?? null;
+      const milestoneIds = input.milestoneIds ?? [];
+      await checkReferences(project, { coverMediaId, body: input.body }, milestoneIds);
+      const postSlug = await freeSlug(project.id, input.slug ?? slugFromTitle(input.title), input.slug !== undefined);
+      const { html, plainText } = await renderFor(project, { body: input.body, audience: input.audience, coverMediaId }, []);
+      const at = now();
+      const id = await db
+        .transaction(async (trx) => {
+          const id = await insertPost(trx, {
+            projectId: project.id,
+            slug: postSlug,
+            title: input.title,
+            summary: input.summary,
+            body: input.body,
+            html,
+            plainText,
+            audience: input.audience,
+            coverMediaId,
+            authorId: user.id,
+            authorName: user.name,
+            at,
+          });
+          await replaceTags(trx, id, input.tags ?? []);
+          await replacePostMedia(trx, id, coverMediaId, imageIdsOf(input.body));
+          await replaceMilestoneLinks(trx, id, linksOf(milestoneIds, input.body));
+          await media.setUsages("post", id, mediaIdsOf({ coverMediaId, body: input.body }), input.audience, false, trx);
+          await writeRevision(trx, id, actor, "Created", at);
+          return id;
+        })
+        .catch((err: unknown) => {
+          if (isDuplicate(err)) throw slugTaken(postSlug);
+          throw err;
+        });
+      changed();
+      return { id, slug: postSlug, status: "draft" };
+    },
+
+    patch: (id: number, input: PostPatchInput, actor: Actor) => saveChanges(id, input, actor),
+
+    async revisions(id: number): Promise<PostRevisionSummary[]> {
+      if (!(await findPostById(db, id))) throw notFound("That update");
+      return (await listRevisions(db, id)).map(revisionSummary);
+    },
+
+    /** A word diff of the rendered text of revision `against` (default: the one before) → revision `n`. */
+    async diff(id: number, n: number, against?: number): Promise<RevisionDiff> {
+      const to = await findRevision(db, id, n);
+      if (!to) throw notFound("That revision");
+      const fromNumber = against ?? n - 1;
+      const from = fromNumber >= 1 ? await findRevision(db, id, fromNumber) : null;
+      if (against !== undefined && !from) throw notFound("The revision to compare against");
+      const text = (r: { title: string; summary: string; plainText: string } | null) => (r ? `${r.title}\n${r.summary}\n\n${r.plainText}` : "");
+      return { from: from?.number ?? 0, to: n, ...diffText(text(from), text(to)) };
+    },
+
+    /** Brings back a revision's content (title, summary, text, cover, milestones, tags) as a new revision; the address and audience stay. */
+    async restore(id: number, n: number, actor: Actor): Promise<PostDetail> {
+      const rev = await findRevision(db, id, n);
+      if (!rev) throw notFound("That revision");
+      return saveChanges(
+        id,
+        { title: rev.title, summary: rev.summary, body: rev.body, coverMediaId: rev.coverMediaId, milestoneIds: rev.milestoneIds, tags: rev.tags, note: `Restored revision ${n}` },
+        actor,
+      );
+    },
+
+    async history(id: number) {
+      if (!(await findPostById(db, id))) throw notFound("That update");
+      return listPublishingEvents(db, "post", id);
+    },
+
+    submit: (id: number, actor: Actor) => transition(id, "submit", actor),
+    approve: (id: number, actor: Actor) => transition(id, "approve", actor),
+    returnToDraft: (id: number, comment: string, actor: Actor) => transition(id, "return", actor, { comment }),
+    publish: (id: number, actor: Actor) => transition(id, "publish", actor),
+    schedule: (id: number, at: ScheduleInput["at"], actor: Actor) => transition(id, "schedule", actor, { at }),
+    withdraw: (id: number, actor: Actor) => transition(id, "withdraw", actor),
+
+    /**
+     * Publishes every scheduled post that is due at `at`. Each is claimed with SKIP LOCKED, so
+     * several processes share the work and none publishes a post twice. The checks run again:
+     * a post that now fails them goes back to approved with the reason recorded.
+     */
+    async publishDue(at: Date = now()): Promise<{ published: number[]; heldBack: number[] }> {
+      const published: number[] = [];
+      const heldBack: number[] = [];
+      for (let round = 0; round < 100; round++) {
+        const claimed = await db.transaction(async (trx) => {
+          const ids = await claimDuePosts(trx, at, 10);
+          for (const id of ids) {
+            const post = (await findPostById(trx, id))!;
+            const project = await projects.getById(post.projectId);
+            const links = await milestoneLinksOf(trx, id);
+            const problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
+            if (problems.length) {
+              const reason = `Not published at the scheduled time: ${problems.map((p) => p.message).join(" ")}`;
+              await updatePost(trx, id, null, { status: "approved", scheduledFor: null, reviewComment: reason }, at);
+              await insertPublishingEvent(trx, { ownerType: "post", ownerId: id, action: "schedule_failed", from: "scheduled", to: "approved", actorId: null, actorName: null, comment: reason, at });
+              heldBack.push(id);
+            } else {
+              await updatePost(trx, id, null, await publishIn(trx, project, post, post.scheduledFor && post.scheduledFor < at ? post.scheduledFor : at), at);
+              await insertPublishingEvent(trx, { ownerType: "post", ownerId: id, action: "publish", from: "scheduled", to: "published", actorId: null, actorName: "scheduler", comment: null, at });
+              published.push(id);
+            }
+          }
+          return ids.length;
+        });
+        if (claimed === 0) break;
+      }
+      if (published.length || heldBack.length) changed();
+      return { published, heldBack };
+    },
+
+    /** Published public posts of a project for its feed, newest first, with the newest change. */
+    async feedOf(slug: string, limit = 50) {
+      const project = await projects.get(slug);
+      const posts = await listPublicPosts(db, project.id, limit);
+      const updated = await latestPublicChange(db, project.id);
+      const tags = await tagsFor(db, posts.map((p) => p.id));
+      return { project, updated, posts: posts.map((p) => ({ ...p, tags: tags.get(p.id) ?? [] })) };
+    },
+
+    /** Every published public post's address (sitemap). */
+    publicAddresses: () => listPublicPostAddresses(db),
+
+    /** A published public post for link previews (Open Graph), or where its old address leads. */
+    async previewOf(slug: string, postSlug: string): Promise<{ post: PostSummary; project: Project } | { redirectTo: string } | null> {
+      const project = await projects.get(slug).catch(() => null);
+      if (!project) return null;
+      const post = await findVisiblePostBySlug(db, project.id, postSlug, "public");
+      if (post) return { post: (await summaries([post]))[0]!, project };
+      const moved = await findRedirect(db, project.id, postSlug, "public");
+      return moved ? { redirectTo: moved } : null;
+    },
+  };
+}
+
+export type PostsService = ReturnType<typeof createPostsService>;

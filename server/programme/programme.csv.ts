@@ -1,0 +1,227 @@
+import Papa from "papaparse";
+import { MILESTONE_CSV_COLUMNS, MilestoneCreateInputSchema, type MilestoneCreateInput } from "#shared/schemas/programme.ts";
+
+/**
+ * Milestones as CSV (papaparse): export, and the first stage of import — reading the
+ * file and checking each row on its own with the same zod schema the create route
+ * uses. Checks that need the stored programme (ids, names, dependencies, dates
+ * against today) are the service's.
+ */
+
+export type MilestoneCsvColumn = (typeof MILESTONE_CSV_COLUMNS)[number];
+type Column = MilestoneCsvColumn;
+
+const REQUIRED: readonly Column[] = ["name", "phase", "system", "weight", "baseline_finish", "audience"];
+
+/** The schema field each CSV column feeds, for naming a column in a reason. */
+const FIELD_TO_COLUMN: Record<string, Column> = {
+  name: "name",
+  phase: "phase",
+  area: "area",
+  system: "system",
+  description: "description",
+  weight: "weight",
+  percentComplete: "percent_complete",
+  plannedStart: "planned_start",
+  baselineFinish: "baseline_finish",
+  forecastFinish: "forecast_finish",
+  actualFinish: "actual_finish",
+  audience: "audience",
+  budget: "budget",
+};
+
+export interface CsvMilestoneExport {
+  id: number;
+  name: string;
+  phase: string;
+  area: string;
+  system: string;
+  weight: number;
+  percentComplete: number;
+  plannedStart: string | null;
+  baselineFinish: string;
+  forecastFinish: string | null;
+  actualFinish: string | null;
+  audience: string;
+  budget: number | null;
+  dependsOn: number[];
+  description: string;
+}
+
+/**
+ * The milestones as CSV in MILESTONE_CSV_COLUMNS order, CRLF line ends (RFC 4180).
+ * Cells that a spreadsheet would run as a formula (=, +, -, @ first) are written
+ * with a leading apostrophe, which import removes again.
+ */
+export function milestonesToCsv(milestones: readonly CsvMilestoneExport[]): string {
+  const data = milestones.map((m) => [
+    String(m.id),
+    m.name,
+    m.phase,
+    m.area,
+    m.system,
+    String(m.weight),
+    String(m.percentComplete),
+    m.plannedStart ?? "",
+    m.baselineFinish,
+    m.forecastFinish ?? "",
+    m.actualFinish ?? "",
+    m.audience,
+    m.budget === null ? "" : String(m.budget),
+    m.dependsOn.join(";"),
+    m.description,
+  ]);
+  return `${Papa.unparse({ fields: [...MILESTONE_CSV_COLUMNS], data }, { escapeFormulae: true, newline: "\r\n" })}\r\n`;
+}
+
+/** A row that passed the per-row checks. */
+export interface CsvMilestoneRow {
+  /** Line of the file where the row begins (the header is line 1). */
+  line: number;
+  id: number | null;
+  input: Omit<MilestoneCreateInput, "dependsOn">;
+  /** Dependency references as written: ids (all digits) or milestone names; null when the file has no depends_on column. */
+  dependsOn: string[] | null;
+  /** The columns the file has: an update leaves the other fields as they are. */
+  columns: ReadonlySet<Column>;
+}
+
+export interface CsvProblem {
+  line: number;
+  reason: string;
+}
+
+export interface ParsedCsv {
+  rows: CsvMilestoneRow[];
+  problems: CsvProblem[];
+}
+
+function unescapeFormula(cell: string): string {
+  return /^'[=+\-@\t\r]/.test(cell) ? cell.slice(1) : cell;
+}
+
+function countNewlines(text: string, from: number, end: number): number {
+  let n = 0;
+  for (let i = from; i < end; i += 1) if (text.charCodeAt(i) === 10) n += 1;
+  return n;
+}
+
+/** A number cell: empty → undefined (so the schema says what is missing or applies its default). */
+function numberCell(cell: string | undefined): number | undefined {
+  if (cell === undefined || cell.trim() === "") return undefined;
+  return Number(cell.trim());
+}
+
+function nullableCell(cell: string | undefined): string | null | undefined {
+  if (cell === undefined) return undefined;
+  const v = cell.trim();
+  return v === "" ? null : v;
+}
+
+/**
+ * Reads a milestones CSV and checks every row with MilestoneCreateInputSchema. Each
+ * problem names its line (where the row begins, counting the header as line 1) and
+ * the column. Blank lines are skipped.
+ */
+export function parseMilestoneCsv(text: string): ParsedCsv {
+  const source = text.startsWith("\uFEFF") ? text.slice(1) : text;
+  const records: Array<{ line: number; cells: string[]; errors: string[] }> = [];
+  // papaparse reports where each row ends; a row begins where the previous one ended, and
+  // its line is one more than the newlines before that point (quoted cells may hold newlines).
+  let cursor = 0;
+  let counted = 0;
+  let newlinesBefore = 0;
+  Papa.parse<string[]>(source, {
+    header: false,
+    skipEmptyLines: false,
+    step: (result) => {
+      const start = cursor;
+      newlinesBefore += countNewlines(source, counted, start);
+      counted = start;
+      cursor = result.meta.cursor;
+      const cells = result.data;
+      if (cells.length === 1 && (cells[0] ?? "").trim() === "") return;
+      records.push({ line: newlinesBefore + 1, cells, errors: result.errors.map((e) => e.message) });
+    },
+  });
+
+  const problems: CsvProblem[] = [];
+  const header = records.shift();
+  if (!header) return { rows: [], problems: [{ line: 1, reason: "the file is empty: the first line must name the columns" }] };
+  const names = header.cells.map((c) => c.trim().toLowerCase());
+  const known = new Set<string>(MILESTONE_CSV_COLUMNS);
+  const unknown = names.filter((n) => !known.has(n));
+  const missing = REQUIRED.filter((c) => !names.includes(c));
+  const repeated = names.filter((n, i) => names.indexOf(n) !== i);
+  if (unknown.length > 0 || missing.length > 0 || repeated.length > 0) {
+    const parts: string[] = [];
+    if (missing.length > 0) parts.push(`missing column${missing.length > 1 ? "s" : ""} ${missing.join(", ")}`);
+    if (unknown.length > 0) parts.push(`unknown column${unknown.length > 1 ? "s" : ""} ${unknown.join(", ")} (the columns are ${MILESTONE_CSV_COLUMNS.join(", ")})`);
+    if (repeated.length > 0) parts.push(`column${repeated.length > 1 ? "s" : ""} ${[...new Set(repeated)].join(", ")} given twice`);
+    return { rows: [], problems: [{ line: header.line, reason: parts.join("; ") }] };
+  }
+  const columns = new Set(names as Column[]);
+  if (records.length === 0) return { rows: [], problems: [{ line: header.line + 1, reason: "the file has no milestone rows" }] };
+
+  const rows: CsvMilestoneRow[] = [];
+  for (const record of records) {
+    if (record.cells.length !== names.length) {
+      problems.push({ line: record.line, reason: `has ${record.cells.length} cells where the header has ${names.length}` });
+      continue;
+    }
+    if (record.errors.length > 0) {
+      problems.push({ line: record.line, reason: record.errors.join("; ") });
+      continue;
+    }
+    const cell = (c: Column): string | undefined => {
+      const i = names.indexOf(c);
+      return i === -1 ? undefined : unescapeFormula(record.cells[i] ?? "");
+    };
+    const reasons: string[] = [];
+    let id: number | null = null;
+    const idCell = cell("id")?.trim() ?? "";
+    if (idCell !== "") {
+      if (/^\d+$/.test(idCell) && Number(idCell) > 0 && Number.isSafeInteger(Number(idCell))) id = Number(idCell);
+      else reasons.push("id must be a whole number (or empty for a new milestone)");
+    }
+    const candidate = {
+      name: cell("name") ?? "",
+      phase: cell("phase") ?? "",
+      area: cell("area"),
+      system: nullableCell(cell("system")) ?? undefined,
+      description: cell("description"),
+      weight: numberCell(cell("weight")),
+      percentComplete: numberCell(cell("percent_complete")),
+      plannedStart: nullableCell(cell("planned_start")),
+      baselineFinish: nullableCell(cell("baseline_finish")) ?? undefined,
+      forecastFinish: nullableCell(cell("forecast_finish")),
+      actualFinish: nullableCell(cell("actual_finish")),
+      audience: nullableCell(cell("audience")) ?? undefined,
+      budget: nullableCell(cell("budget")) === null ? null : numberCell(cell("budget")),
+    };
+    const parsed = MilestoneCreateInputSchema.safeParse(candidate);
+    if (!parsed.success) {
+      const seen = new Set<string>();
+      for (const issue of parsed.error.issues) {
+        const column = FIELD_TO_COLUMN[String(issue.path[0])] ?? String(issue.path[0] ?? "row");
+        if (seen.has(column)) continue;
+        seen.add(column);
+        reasons.push(`${column} ${issue.message}`);
+      }
+    }
+    if (reasons.length > 0 || !parsed.success) {
+      problems.push({ line: record.line, reason: reasons.join("; ") });
+      continue;
+    }
+    const { dependsOn: _none, ...input } = parsed.data;
+    const depsCell = cell("depends_on");
+    rows.push({
+      line: record.line,
+      id,
+      input,
+      dependsOn: depsCell === undefined ? null : depsCell.split(";").map((s) => s.trim()).filter((s) => s !== ""),
+      columns,
+    });
+  }
+  return { rows, problems };
+}

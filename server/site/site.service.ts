@@ -1,0 +1,188 @@
+import { Feed } from "feed";
+import type { MediaPicture } from "#shared/schemas/media.ts";
+import type { ProjectsService } from "../projects/projects.service.ts";
+import type { PostsService } from "../posts/posts.service.ts";
+import type { StoriesService } from "../stories/stories.service.ts";
+import { absolutizeHtml } from "../posts/rich-text.ts";
+
+/**
+ * The public site's documents that are not the app: the Atom feed of each project (RFC 4287),
+ * the sitemap, robots.txt, and the Open Graph head of the pages link previews fetch. Each
+ * reads published public content only, whoever asks.
+ */
+
+const escapeXml = (s: string) => s.replace(/[<>&"']/g, (c) => ({ "<": "&lt;", ">": "&gt;", "&": "&amp;", '"': "&quot;", "'": "&apos;" })[c]!);
+export const escapeHtml = escapeXml;
+
+/** The tags a link preview reads, already escaped, to put in the shell's head. */
+export interface PageHead {
+  title: string;
+  tags: string;
+}
+
+export type PageAnswer = { redirect: string } | { head: PageHead } | null;
+
+/** A public JPEG for previews: the one nearest 1200 px wide (what link-preview cards show best). */
+function previewImage(p: MediaPicture | null): { url: string; width: number; height: number; alt: string } | null {
+  if (!p) return null;
+  const list = p.sources.jpeg.length ? p.sources.jpeg : p.sources.webp;
+  const best = [...list].sort((a, b) => Math.abs(a.width - 1200) - Math.abs(b.width - 1200))[0];
+  return best ? { url: best.url, width: best.width, height: best.height, alt: p.altText ?? "" } : null;
+}
+
+export function createSiteService(deps: { projects: ProjectsService; posts: PostsService; stories: StoriesService; publicUrl: string }) {
+  const { projects, posts, stories } = deps;
+  const base = deps.publicUrl.replace(/\/+$/, "");
+  const host = new URL(base).hostname;
+  const abs = (path: string) => (path.startsWith("/") ? base + path : path);
+
+  function head(o: { title: string; description: string; url: string; type: "article" | "website"; siteName: string; image: ReturnType<typeof previewImage>; feed?: string; published?: string | null }): PageHead {
+    const meta = (attr: "property" | "name", key: string, value: string) => `<meta ${attr}="${key}" content="${escapeHtml(value)}">`;
+    const tags = [
+      meta("name", "description", o.description),
+      `<link rel="canonical" href="${escapeHtml(o.url)}">`,
+      meta("property", "og:type", o.type),
+      meta("property", "og:site_name", o.siteName),
+      meta("property", "og:title", o.title),
+      meta("property", "og:description", o.description),
+      meta("property", "og:url", o.url),
+      meta("name", "twitter:card", o.image ? "summary_large_image" : "summary"),
+    ];
+    if (o.image) {
+      tags.push(meta("property", "og:image", abs(o.image.url)), meta("property", "og:image:width", String(o.image.width)), meta("property", "og:image:height", String(o.image.height)));
+      if (o.image.alt) tags.push(meta("property", "og:image:alt", o.image.alt));
+    }
+    if (o.published) tags.push(meta("property", "article:published_time", o.published));
+    if (o.feed) tags.push(`<link rel="alternate" type="application/atom+xml" title="${escapeHtml(o.siteName)} updates" href="${escapeHtml(o.feed)}">`);
+    return { title: escapeHtml(`${o.title} · ${o.siteName}`), tags: tags.join("\n    ") };
+  }
+
+  return {
+    /** The project's Atom feed of published public updates, newest first. */
+    async feed(slug: string): Promise<string> {
+      const { project, updated, posts: list } = await posts.feedOf(slug);
+      const page = `${base}/projects/${project.slug}`;
+      const feed = new Feed({
+        id: `${page}/updates`,
+        title: `${project.name}: progress updates`,
+        description: project.description,
+        link: `${page}/updates`,
+        language: "en",
+        // RFC 4287 §4.2.15: the last time the feed changed in a significant way.
+        updated: updated ?? new Date(0),
+        generator: "Plumbline",
+        feedLinks: { atom: `${base}/feed/${project.slug}.atom` },
+        author: { name: project.operatorName },
+        copyright: `© ${project.operatorName}`,
+      });
+      for (const p of list) {
+        feed.addItem({
+          // A tag URI (RFC 4151) by post id: an entry keeps its identity when its address changes.
+          id: `tag:${host},2026:post-${p.id}`,
+          title: p.title,
+          link: `${page}/updates/${p.slug}`,
+          date: p.updatedAt,
+          published: p.publishedAt ?? undefined,
+          description: p.summary || undefined,
+          content: absolutizeHtml(p.html, base),
+          author: [{ name: p.authorName }],
+          category: p.tags.map((t) => ({ name: t.value, term: t.value })),
+        });
+      }
+      return feed.atom1();
+    },
+
+    /** Every public page: the home page, each project's pages, published public updates and stories. */
+    async sitemap(): Promise<string> {
+      const [list, postAddresses, storyAddresses] = await Promise.all([projects.list(), posts.publicAddresses(), stories.publicAddresses()]);
+      const slugOf = new Map(list.map((p) => [p.id, p.slug]));
+      const urls: Array<{ loc: string; lastmod?: Date }> = [{ loc: `${base}/` }];
+      for (const p of list) {
+        urls.push({ loc: `${base}/projects/${p.slug}` }, { loc: `${base}/projects/${p.slug}/updates` }, { loc: `${base}/projects/${p.slug}/gallery` });
+      }
+      for (const a of postAddresses) {
+        const project = slugOf.get(a.projectId);
+        if (project) urls.push({ loc: `${base}/projects/${project}/updates/${a.slug}`, lastmod: a.updatedAt });
+      }
+      for (const a of storyAddresses) {
+        const project = slugOf.get(a.projectId);
+        if (project) urls.push({ loc: `${base}/projects/${project}/stories/${a.slug}`, lastmod: a.updatedAt });
+      }
+      const body = urls.map((u) => `  <url><loc>${escapeXml(u.loc)}</loc>${u.lastmod ? `<lastmod>${u.lastmod.toISOString()}</lastmod>` : ""}</url>`).join("\n");
+      return `<?xml version="1.0" encoding="UTF-8"?>\n<urlset xmlns="http://www.sitemaps.org/schemas/sitemap/0.9">\n${body}\n</urlset>\n`;
+    },
+
+    robots(): string {
+      return ["User-agent: *", "Disallow: /office", "Disallow: /investors", "Disallow: /api/", `Sitemap: ${base}/sitemap.xml`, ""].join("\n");
+    },
+
+    /**
+     * What the HTML shell of a page should carry for link previews (the page works without
+     * JavaScript for crawlers), or where an old address of an update now lives.
+     */
+    async pageFor(path: string): Promise<PageAnswer> {
+      const update = /^\/projects\/([a-z0-9-]{1,100})\/updates\/([a-z0-9-]{1,120})\/?$/.exec(path);
+      if (update) {
+        const found = await posts.previewOf(update[1]!, update[2]!);
+        if (!found) return null;
+        if ("redirectTo" in found) return { redirect: `/projects/${update[1]}/updates/${found.redirectTo}` };
+        const { post, project } = found;
+        return {
+          head: head({
+            title: post.title,
+            description: post.summary || project.description,
+            url: `${base}/projects/${project.slug}/updates/${post.slug}`,
+            type: "article",
+            siteName: project.name,
+            image: previewImage(post.cover),
+            feed: `${base}/feed/${project.slug}.atom`,
+            published: post.publishedAt,
+          }),
+        };
+      }
+      const story = /^\/projects\/([a-z0-9-]{1,100})\/stories\/([a-z0-9-]{1,120})\/?$/.exec(path);
+      if (story) {
+        const found = await stories.previewOf(story[1]!, story[2]!);
+        if (!found) return null;
+        return {
+          head: head({
+            title: found.story.title,
+            description: found.story.intro.slice(0, 300) || found.project.description,
+            url: `${base}/projects/${found.project.slug}/stories/${found.story.slug}`,
+            type: "article",
+            siteName: found.project.name,
+            image: previewImage(found.story.cover),
+            published: found.story.publishedAt,
+          }),
+        };
+      }
+      const projectPage = /^\/projects\/([a-z0-9-]{1,100})(\/updates)?\/?$/.exec(path);
+      if (projectPage) {
+        const project = await projects.get(projectPage[1]!).catch(() => null);
+        if (!project) return null;
+        return {
+          head: head({
+            title: projectPage[2] ? `Updates from ${project.name}` : project.name,
+            description: project.description,
+            url: `${base}/projects/${project.slug}${projectPage[2] ?? ""}`,
+            type: "website",
+            siteName: project.name,
+            image: null,
+            feed: `${base}/feed/${project.slug}.atom`,
+          }),
+        };
+      }
+      return null;
+    },
+  };
+}
+
+export type SiteService = ReturnType<typeof createSiteService>;
+
+/** Puts a page's title and preview tags into the HTML shell. */
+export function injectHead(shell: string, head: PageHead): string {
+  // Replacer functions, so a "$" in a title is never read as a pattern.
+  const title = `<title>${head.title}</title>`;
+  const titled = /<title>[\s\S]*?<\/title>/i.test(shell) ? shell.replace(/<title>[\s\S]*?<\/title>/i, () => title) : shell.replace(/<\/head>/i, () => `${title}</head>`);
+  return titled.replace(/<\/head>/i, () => `    ${head.tags}\n  </head>`);
+}

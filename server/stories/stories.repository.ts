@@ -1,0 +1,190 @@
+import type { Knex } from "knex";
+import type { Audience } from "#shared/schemas/common.ts";
+import type { PostStatus } from "#shared/schemas/posts.ts";
+import type { StoryItemInput } from "#shared/schemas/stories.ts";
+
+type Q = Knex | Knex.Transaction;
+
+export type Viewer = "public" | "investor" | "staff";
+
+const VISIBLE: Record<Viewer, readonly Audience[]> = {
+  public: ["public"],
+  investor: ["public", "investor"],
+  staff: ["public", "investor", "internal"],
+};
+
+/**
+ * The audience rule of photo stories, in one place: visitors read published public stories,
+ * investors published public and investor ones, staff all of them in every state.
+ */
+function visibleTo<T extends Knex.QueryBuilder>(query: T, viewer: Viewer): T {
+  if (viewer === "staff") return query;
+  return query.where("s.status", "published").whereIn("s.audience", VISIBLE[viewer] as Audience[]) as T;
+}
+
+export interface StoryRecord {
+  id: number;
+  projectId: number;
+  slug: string;
+  title: string;
+  intro: string;
+  audience: Audience;
+  status: PostStatus;
+  authorId: number | null;
+  authorName: string;
+  publishedAt: Date | null;
+  withdrawnAt: Date | null;
+  reviewComment: string | null;
+  version: number;
+  createdAt: Date;
+  updatedAt: Date;
+}
+
+const dateOrNull = (v: unknown): Date | null => (v === null || v === undefined ? null : new Date(v as string));
+
+function toRecord(r: Record<string, unknown>): StoryRecord {
+  return {
+    id: Number(r.id),
+    projectId: Number(r.project_id),
+    slug: String(r.slug),
+    title: String(r.title),
+    intro: String(r.intro ?? ""),
+    audience: r.audience as Audience,
+    status: r.status as PostStatus,
+    authorId: r.author_id === null ? null : Number(r.author_id),
+    authorName: String(r.author_name),
+    publishedAt: dateOrNull(r.published_at),
+    withdrawnAt: dateOrNull(r.withdrawn_at),
+    reviewComment: r.review_comment === null || r.review_comment === undefined ? null : String(r.review_comment),
+    version: Number(r.version),
+    createdAt: new Date(r.created_at as string),
+    updatedAt: new Date(r.updated_at as string),
+  };
+}
+
+export async function insertStory(
+  q: Q,
+  row: { projectId: number; slug: string; title: string; intro: string; audience: Audience; authorId: number | null; authorName: string; at: Date },
+): Promise<number> {
+  const [id] = await q("stories").insert({
+    project_id: row.projectId,
+    slug: row.slug,
+    title: row.title,
+    intro: row.intro,
+    audience: row.audience,
+    status: "draft",
+    author_id: row.authorId,
+    author_name: row.authorName,
+    created_at: row.at,
+    updated_at: row.at,
+  });
+  return Number(id);
+}
+
+export interface StoryUpdate {
+  slug?: string;
+  title?: string;
+  intro?: string;
+  audience?: Audience;
+  status?: PostStatus;
+  publishedAt?: Date | null;
+  withdrawnAt?: Date | null;
+  reviewComment?: string | null;
+}
+
+const COLUMNS: Record<keyof StoryUpdate, string> = {
+  slug: "slug",
+  title: "title",
+  intro: "intro",
+  audience: "audience",
+  status: "status",
+  publishedAt: "published_at",
+  withdrawnAt: "withdrawn_at",
+  reviewComment: "review_comment",
+};
+
+export async function updateStory(q: Q, id: number, changes: StoryUpdate, at: Date): Promise<void> {
+  const row: Record<string, unknown> = { updated_at: at, version: q.raw("version + 1") };
+  for (const [key, column] of Object.entries(COLUMNS) as Array<[keyof StoryUpdate, string]>) {
+    if (changes[key] !== undefined) row[column] = changes[key];
+  }
+  await q("stories").where({ id }).update(row);
+}
+
+export async function findStoryById(q: Q, id: number, opts: { forUpdate?: boolean } = {}): Promise<StoryRecord | null> {
+  const query = q("stories as s").where("s.id", id).first("s.*");
+  if (opts.forUpdate) query.forUpdate();
+  const r = await query;
+  return r ? toRecord(r) : null;
+}
+
+export async function findVisibleStoryBySlug(q: Q, projectId: number, slug: string, viewer: Viewer): Promise<StoryRecord | null> {
+  const r = await visibleTo(q("stories as s").where({ "s.project_id": projectId, "s.slug": slug }), viewer).first("s.*");
+  return r ? toRecord(r) : null;
+}
+
+export async function storySlugTaken(q: Q, projectId: number, slug: string, exceptId?: number): Promise<boolean> {
+  const query = q("stories").where({ project_id: projectId, slug });
+  if (exceptId) query.whereNot({ id: exceptId });
+  return Boolean(await query.first("id"));
+}
+
+export async function listStories(q: Q, projectId: number, viewer: Viewer): Promise<StoryRecord[]> {
+  const rows = await visibleTo(q("stories as s").where("s.project_id", projectId), viewer)
+    .orderByRaw("COALESCE(s.published_at, s.updated_at) DESC")
+    .orderBy("s.id", "desc")
+    .select("s.*");
+  return rows.map(toRecord);
+}
+
+export async function listPublicStoryAddresses(q: Q): Promise<Array<{ projectId: number; slug: string; updatedAt: Date }>> {
+  const rows = await visibleTo(q("stories as s"), "public").select("s.project_id", "s.slug", "s.updated_at");
+  return rows.map((r) => ({ projectId: Number(r.project_id), slug: String(r.slug), updatedAt: new Date(r.updated_at) }));
+}
+
+// Items
+
+export type StoredItem = StoryItemInput;
+
+export async function replaceItems(q: Q, storyId: number, items: readonly StoryItemInput[]): Promise<void> {
+  await q("story_items").where({ story_id: storyId }).delete();
+  if (!items.length) return;
+  await q("story_items").insert(
+    items.map((item, position) =>
+      item.kind === "photo"
+        ? { story_id: storyId, position, kind: "photo", media_id: item.mediaId, after_media_id: null, area: null, caption: item.caption }
+        : { story_id: storyId, position, kind: "pair", media_id: item.beforeMediaId, after_media_id: item.afterMediaId, area: item.area, caption: item.caption },
+    ),
+  );
+}
+
+export async function itemsOf(q: Q, storyIds: readonly number[]): Promise<Map<number, StoredItem[]>> {
+  const out = new Map<number, StoredItem[]>(storyIds.map((id) => [id, []]));
+  if (!storyIds.length) return out;
+  const rows = await q("story_items").whereIn("story_id", [...storyIds]).orderBy(["story_id", "position"]);
+  for (const r of rows) {
+    const item: StoredItem =
+      r.kind === "photo"
+        ? { kind: "photo", mediaId: Number(r.media_id), caption: String(r.caption ?? "") }
+        : { kind: "pair", area: String(r.area ?? ""), beforeMediaId: Number(r.media_id), afterMediaId: Number(r.after_media_id), caption: String(r.caption ?? "") };
+    out.get(Number(r.story_id))?.push(item);
+  }
+  return out;
+}
+
+export async function insertStoryEvent(
+  q: Q,
+  e: { storyId: number; action: string; from: PostStatus; to: PostStatus; actorId: number | null; actorName: string | null; comment: string | null; at: Date },
+): Promise<void> {
+  await q("publishing_events").insert({
+    owner_type: "story",
+    owner_id: e.storyId,
+    action: e.action,
+    from_status: e.from,
+    to_status: e.to,
+    actor_id: e.actorId,
+    actor_name: e.actorName,
+    comment: e.comment,
+    at: e.at,
+  });
+}

@@ -1,0 +1,384 @@
+import type { Knex } from "knex";
+import type { Frequency, Interest, SubscriberAudience, SubscriberListQuery, SubscriberStatus, Topics } from "#shared/schemas/subscribers.ts";
+
+type Q = Knex | Knex.Transaction;
+
+export interface SubscriberRecord {
+  id: number;
+  projectId: number;
+  project: { slug: string; name: string; operatorName: string; postalAddress: string | null; timeZone: string };
+  userId: number | null;
+  email: string;
+  emailHash: string;
+  name: string;
+  organisation: string | null;
+  interest: Interest;
+  audience: SubscriberAudience;
+  frequency: Frequency;
+  topics: Topics | null;
+  topicsKey: string;
+  status: SubscriberStatus;
+  statusChangedAt: Date | null;
+  consentAt: Date | null;
+  consentIp: string | null;
+  consentVersion: string | null;
+  consentSource: string | null;
+  confirmNonce: string | null;
+  pendingSince: Date | null;
+  confirmedAt: Date | null;
+  confirmIp: string | null;
+  unsubscribedAt: Date | null;
+  lastDigestAt: Date | null;
+  createdAt: Date;
+  updatedAt: Date;
+}
+
+const date = (v: unknown): Date | null => (v == null ? null : (v as Date));
+const str = (v: unknown): string | null => (v == null ? null : String(v));
+
+function toSubscriber(r: Record<string, unknown>): SubscriberRecord {
+  return {
+    id: Number(r.id),
+    projectId: Number(r.project_id),
+    project: {
+      slug: String(r.project_slug),
+      name: String(r.project_name),
+      operatorName: String(r.project_operator_name),
+      postalAddress: str(r.project_postal_address),
+      timeZone: String(r.project_time_zone),
+    },
+    userId: r.user_id == null ? null : Number(r.user_id),
+    email: String(r.email),
+    emailHash: String(r.email_hash),
+    name: String(r.name),
+    organisation: str(r.organisation),
+    interest: r.interest as Interest,
+    audience: r.audience as SubscriberAudience,
+    frequency: r.frequency as Frequency,
+    topics: r.topics == null ? null : (JSON.parse(String(r.topics)) as Topics),
+    topicsKey: String(r.topics_key),
+    status: r.status as SubscriberStatus,
+    statusChangedAt: date(r.status_changed_at),
+    consentAt: date(r.consent_at),
+    consentIp: str(r.consent_ip),
+    consentVersion: str(r.consent_version),
+    consentSource: str(r.consent_source),
+    confirmNonce: str(r.confirm_nonce),
+    pendingSince: date(r.pending_since),
+    confirmedAt: date(r.confirmed_at),
+    confirmIp: str(r.confirm_ip),
+    unsubscribedAt: date(r.unsubscribed_at),
+    lastDigestAt: date(r.last_digest_at),
+    createdAt: r.created_at as Date,
+    updatedAt: r.updated_at as Date,
+  };
+}
+
+function base(q: Q) {
+  return q("subscribers as s")
+    .join("projects as p", "p.id", "s.project_id")
+    .select(
+      "s.*",
+      "p.slug as project_slug",
+      "p.name as project_name",
+      "p.operator_name as project_operator_name",
+      "p.postal_address as project_postal_address",
+      "p.time_zone as project_time_zone",
+    );
+}
+
+/**
+ * Reads one subscriber with its project. With `forUpdate` the subscriber row alone is
+ * locked first: a locking read of the join would lock the project row too and queue
+ * every other confirmation of that project behind this one.
+ */
+async function findOne(q: Q, where: Record<string, unknown>, forUpdate: boolean): Promise<SubscriberRecord | null> {
+  if (forUpdate) {
+    const locked = await q("subscribers").where(where).forUpdate().first("id");
+    if (!locked) return null;
+  }
+  const prefixed = Object.fromEntries(Object.entries(where).map(([k, v]) => [`s.${k}`, v]));
+  const r = await base(q).where(prefixed).first();
+  return r ? toSubscriber(r) : null;
+}
+
+export async function findSubscriberById(q: Q, id: number, forUpdate = false): Promise<SubscriberRecord | null> {
+  return findOne(q, { id }, forUpdate);
+}
+
+export async function findSubscriberByProjectEmail(q: Q, projectId: number, email: string, forUpdate = false): Promise<SubscriberRecord | null> {
+  return findOne(q, { project_id: projectId, email }, forUpdate);
+}
+
+export async function findSubscriberByProjectUser(q: Q, projectId: number, userId: number, forUpdate = false): Promise<SubscriberRecord | null> {
+  return findOne(q, { project_id: projectId, user_id: userId }, forUpdate);
+}
+
+export async function listSubscribersOfUser(q: Q, userId: number): Promise<SubscriberRecord[]> {
+  return (await base(q).where("s.user_id", userId)).map(toSubscriber);
+}
+
+export async function listSubscribersByEmailHash(q: Q, emailHash: string): Promise<SubscriberRecord[]> {
+  return (await base(q).where("s.email_hash", emailHash).orderBy("s.id")).map(toSubscriber);
+}
+
+export interface SubscriberWrite {
+  projectId: number;
+  userId?: number | null;
+  email: string;
+  emailHash: string;
+  name: string;
+  organisation: string | null;
+  interest: Interest;
+  audience?: SubscriberAudience;
+  frequency: Frequency;
+  topics: Topics | null;
+  topicsKey: string;
+  status: SubscriberStatus;
+  consentAt?: Date | null;
+  consentIp?: string | null;
+  consentVersion?: string | null;
+  consentSource?: string | null;
+  confirmNonce?: string | null;
+  pendingSince?: Date | null;
+  confirmedAt?: Date | null;
+  confirmIp?: string | null;
+  unsubscribedAt?: Date | null;
+  statusChangedAt?: Date | null;
+}
+
+const COLUMN: Record<string, string> = {
+  projectId: "project_id",
+  userId: "user_id",
+  email: "email",
+  emailHash: "email_hash",
+  name: "name",
+  organisation: "organisation",
+  interest: "interest",
+  audience: "audience",
+  frequency: "frequency",
+  topics: "topics",
+  topicsKey: "topics_key",
+  status: "status",
+  consentAt: "consent_at",
+  consentIp: "consent_ip",
+  consentVersion: "consent_version",
+  consentSource: "consent_source",
+  confirmNonce: "confirm_nonce",
+  pendingSince: "pending_since",
+  confirmedAt: "confirmed_at",
+  confirmIp: "confirm_ip",
+  unsubscribedAt: "unsubscribed_at",
+  statusChangedAt: "status_changed_at",
+  lastDigestAt: "last_digest_at",
+};
+
+function toColumns(w: Partial<SubscriberWrite> & { lastDigestAt?: Date | null }): Record<string, unknown> {
+  const row: Record<string, unknown> = {};
+  for (const [k, v] of Object.entries(w)) {
+    if (v === undefined) continue;
+    const col = COLUMN[k];
+    if (!col) throw new Error(`unknown subscriber field ${k}`);
+    row[col] = k === "topics" ? (v === null ? null : JSON.stringify(v)) : v;
+  }
+  return row;
+}
+
+export async function insertSubscriber(q: Q, w: SubscriberWrite): Promise<number> {
+  const [id] = await q("subscribers").insert(toColumns(w));
+  return Number(id);
+}
+
+export async function updateSubscriber(q: Q, id: number, patch: Partial<SubscriberWrite> & { lastDigestAt?: Date | null }, now: Date): Promise<void> {
+  await q("subscribers").where({ id }).update({ ...toColumns(patch), updated_at: now });
+}
+
+/** Sets the status of every row of an address (all projects); returns the ids changed. */
+export async function setStatusByEmailHash(q: Q, emailHash: string, status: SubscriberStatus, now: Date): Promise<number[]> {
+  const rows = await q("subscribers").where({ email_hash: emailHash }).whereNot({ status }).forUpdate().select("id");
+  const ids = rows.map((r: { id: number }) => Number(r.id));
+  if (ids.length) await q("subscribers").whereIn("id", ids).update({ status, status_changed_at: now, confirm_nonce: null, updated_at: now });
+  return ids;
+}
+
+export async function deleteSubscribersByEmailHash(q: Q, emailHash: string): Promise<number> {
+  return q("subscribers").where({ email_hash: emailHash }).delete();
+}
+
+/** Unconfirmed rows older than `before` (measured from when they became pending). */
+export async function deletePendingBefore(q: Q, before: Date): Promise<number> {
+  return q("subscribers").where({ status: "pending" }).andWhere("pending_since", "<", before).delete();
+}
+
+function likeEscape(s: string): string {
+  return s.replace(/[\\%_]/g, (c) => `\\${c}`);
+}
+
+function filtered(q: Q, f: SubscriberListQuery) {
+  const query = base(q);
+  if (f.projectSlug) query.where("p.slug", f.projectSlug);
+  if (f.interest) query.where("s.interest", f.interest);
+  if (f.status) query.where("s.status", f.status);
+  if (f.frequency) query.where("s.frequency", f.frequency);
+  if (f.topic) {
+    const i = f.topic.indexOf(":");
+    const path = f.topic.slice(0, i) === "system" ? "$.systems" : "$.areas";
+    const value = f.topic.slice(i + 1);
+    query.where((w) => w.whereNull("s.topics").orWhereRaw("JSON_CONTAINS(s.topics, JSON_QUOTE(?), ?)", [value, path]));
+  }
+  if (f.q) {
+    const like = `%${likeEscape(f.q)}%`;
+    query.where((w) => w.where("s.email", "like", like).orWhere("s.name", "like", like).orWhere("s.organisation", "like", like));
+  }
+  return query;
+}
+
+export async function listSubscribers(q: Q, f: SubscriberListQuery, limit: number | null): Promise<{ rows: SubscriberRecord[]; total: number }> {
+  const query = filtered(q, f).orderBy([{ column: "s.created_at", order: "desc" }, { column: "s.id", order: "desc" }]);
+  if (limit !== null) query.limit(limit);
+  const rows = (await query).map(toSubscriber);
+  const countRow = await filtered(q, f).clearSelect().count({ n: "*" }).first();
+  return { rows, total: Number((countRow as { n?: number } | undefined)?.n ?? rows.length) };
+}
+
+/** Every email address of a project already on its list (for imports). */
+export async function listProjectEmails(q: Q, projectId: number): Promise<Set<string>> {
+  const rows = await q("subscribers").where({ project_id: projectId }).select("email");
+  return new Set(rows.map((r: { email: string }) => r.email));
+}
+
+/**
+ * Confirmed, not suppressed subscribers of a project at one frequency (investor accounts
+ * only while active): who a digest run may send to. Ordered by id so batches are stable.
+ */
+export async function listDigestRecipients(q: Q, projectId: number, frequency: Frequency): Promise<SubscriberRecord[]> {
+  const rows = await base(q)
+    .leftJoin("suppressions as x", "x.email_hash", "s.email_hash")
+    .leftJoin("users as u", "u.id", "s.user_id")
+    .where({ "s.project_id": projectId, "s.frequency": frequency, "s.status": "confirmed" })
+    .whereNull("x.id")
+    // A disabled investor account receives nothing, investor content above all.
+    .andWhere((w) => w.whereNull("s.user_id").orWhereNull("u.disabled_at"))
+    .orderBy("s.id");
+  return rows.map(toSubscriber);
+}
+
+/** Areas named by the project's public milestones: the area topics offered to visitors. */
+export async function listPublicAreas(q: Q, projectId: number): Promise<string[]> {
+  const rows = await q("milestones").where({ project_id: projectId, audience: "public" }).whereNot("area", "").distinct("area").orderBy("area");
+  return rows.map((r: { area: string }) => r.area);
+}
+
+// Suppressions
+
+export async function isSuppressed(q: Q, emailHash: string): Promise<boolean> {
+  return Boolean(await q("suppressions").where({ email_hash: emailHash }).first("id"));
+}
+
+export async function suppressedAmong(q: Q, hashes: string[]): Promise<Set<string>> {
+  if (hashes.length === 0) return new Set();
+  const found = new Set<string>();
+  for (let i = 0; i < hashes.length; i += 1000) {
+    const rows = await q("suppressions").whereIn("email_hash", hashes.slice(i, i + 1000)).select("email_hash");
+    for (const r of rows as Array<{ email_hash: string }>) found.add(r.email_hash);
+  }
+  return found;
+}
+
+/** The first reason an address was suppressed is kept. */
+export async function insertSuppression(q: Q, s: { emailHash: string; reason: "bounced" | "complained" | "erased"; source: string }): Promise<void> {
+  await q("suppressions").insert({ email_hash: s.emailHash, reason: s.reason, source: s.source }).onConflict("email_hash").ignore();
+}
+
+export async function findSuppression(q: Q, emailHash: string): Promise<{ reason: string; source: string; createdAt: Date } | null> {
+  const r = await q("suppressions").where({ email_hash: emailHash }).first();
+  return r ? { reason: String(r.reason), source: String(r.source), createdAt: r.created_at as Date } : null;
+}
+
+// The outbound queue of subscription e-mails
+
+export type MailJobKind = "confirmation" | "welcome" | "already_subscribed";
+
+export interface MailJob {
+  id: number;
+  subscriberId: number;
+  kind: MailJobKind;
+  attempts: number;
+}
+
+export async function enqueueMailJob(q: Q, subscriberId: number, kind: MailJobKind, runAfter: Date): Promise<void> {
+  await q("subscriber_mail_jobs").insert({ subscriber_id: subscriberId, kind, status: "queued", run_after: runAfter });
+}
+
+export async function enqueueMailJobs(q: Q, subscriberIds: number[], kind: MailJobKind, runAfter: Date): Promise<void> {
+  for (let i = 0; i < subscriberIds.length; i += 500) {
+    await q("subscriber_mail_jobs").insert(subscriberIds.slice(i, i + 500).map((id) => ({ subscriber_id: id, kind, status: "queued", run_after: runAfter })));
+  }
+}
+
+/**
+ * Claims up to `limit` due jobs under a lease: SKIP LOCKED lets several processes claim
+ * side by side, and a lease that runs out (a crashed worker) frees the job again.
+ */
+export async function claimMailJobs(db: Knex, now: Date, leaseMs: number, limit: number): Promise<MailJob[]> {
+  return db.transaction(async (trx) => {
+    const rows = await trx("subscriber_mail_jobs")
+      .where({ status: "queued" })
+      .andWhere("run_after", "<=", now)
+      .andWhere((w) => w.whereNull("lease_until").orWhere("lease_until", "<=", now))
+      .orderBy("id")
+      .limit(limit)
+      .forUpdate()
+      .skipLocked()
+      .select("id", "subscriber_id", "kind", "attempts");
+    if (rows.length === 0) return [];
+    const ids = rows.map((r: { id: number }) => Number(r.id));
+    await trx("subscriber_mail_jobs")
+      .whereIn("id", ids)
+      .update({ lease_until: new Date(now.getTime() + leaseMs), attempts: trx.raw("attempts + 1") });
+    return rows.map((r: Record<string, unknown>) => ({ id: Number(r.id), subscriberId: Number(r.subscriber_id), kind: r.kind as MailJobKind, attempts: Number(r.attempts) + 1 }));
+  });
+}
+
+export async function finishMailJob(
+  q: Q,
+  id: number,
+  f: { status: "sent" | "failed" | "skipped" | "queued"; messageId?: string; error?: string; runAfter?: Date; sentAt?: Date },
+): Promise<void> {
+  await q("subscriber_mail_jobs")
+    .where({ id })
+    .update({
+      status: f.status,
+      lease_until: null,
+      ...(f.messageId ? { message_id: f.messageId.slice(0, 255) } : {}),
+      ...(f.error ? { last_error: f.error.slice(0, 500) } : {}),
+      ...(f.runAfter ? { run_after: f.runAfter } : {}),
+      ...(f.sentAt ? { sent_at: f.sentAt } : {}),
+    });
+}
+
+/** Queued mail to these subscribers will not go (they were suppressed). */
+export async function skipQueuedJobs(q: Q, subscriberIds: number[], reason: string): Promise<void> {
+  if (subscriberIds.length === 0) return;
+  await q("subscriber_mail_jobs").whereIn("subscriber_id", subscriberIds).andWhere({ status: "queued" }).update({ status: "skipped", last_error: reason, lease_until: null });
+}
+
+export async function listMailJobsOf(q: Q, subscriberIds: number[]) {
+  if (subscriberIds.length === 0) return [];
+  const rows = await q("subscriber_mail_jobs").whereIn("subscriber_id", subscriberIds).orderBy("id");
+  return rows.map((r: Record<string, unknown>) => ({
+    subscriberId: Number(r.subscriber_id),
+    kind: String(r.kind),
+    status: String(r.status),
+    attempts: Number(r.attempts),
+    createdAt: (r.created_at as Date).toISOString(),
+    sentAt: r.sent_at ? (r.sent_at as Date).toISOString() : null,
+    messageId: str(r.message_id),
+  }));
+}
+
+/** Two requests for one new address at once: one hits the unique key or a deadlock and can simply run again. */
+export function isWriteConflict(err: unknown): boolean {
+  const code = (err as { code?: unknown } | null)?.code;
+  return code === "ER_DUP_ENTRY" || code === "ER_LOCK_DEADLOCK";
+}

@@ -1,0 +1,175 @@
+import type { NextFunction, Request, RequestHandler, Response } from "express";
+import { Router } from "express";
+import rateLimit from "express-rate-limit";
+import multer from "multer";
+import { IdParamSchema } from "#shared/schemas/common.ts";
+import { SlugParamSchema } from "#shared/schemas/projects.ts";
+import {
+  EmptyInputSchema,
+  InvestorDigestInputSchema,
+  OneClickBodySchema,
+  PreferencesInputSchema,
+  SubscriberImportInputSchema,
+  SubscriberListQuerySchema,
+  SubscriberTokenParamSchema,
+  SubscriptionInputSchema,
+} from "#shared/schemas/subscribers.ts";
+import { AppError } from "../core/app-error.ts";
+import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
+import type { RateLimitRepository } from "../rate-limit/rate-limit.repository.ts";
+import { SUBSCRIPTION_ACCEPTED, type SubscribersService } from "./subscribers.service.ts";
+
+const limited = (message: string) => (_req: Request, _res: Response, next: NextFunction) => next(new AppError("rate_limited", message, 429));
+
+const tokenOf = (req: Request) => SubscriberTokenParamSchema.parse(req.params).token;
+const addressOf = (req: Request) => String((req.body as { email?: unknown } | undefined)?.email ?? "").trim().toLowerCase();
+
+/** Public subscription, signed-link pages, the investor room's digest and the site office's list. */
+export function subscribersRouter(deps: {
+  subscribers: SubscribersService;
+  limits: { perIp: number; perAddress: number; windowMs: number };
+  stores: { ip: RateLimitRepository; address: RateLimitRepository };
+}): Router {
+  const { subscribers } = deps;
+  const r = Router();
+
+  // Confirmations are limited per network and per address, whether or not the address is
+  // known, so the limit itself tells nothing.
+  const perIp = rateLimit({
+    windowMs: deps.limits.windowMs,
+    limit: deps.limits.perIp,
+    standardHeaders: "draft-8",
+    legacyHeaders: false,
+    store: deps.stores.ip,
+    handler: limited("Too many subscription requests from this network. Wait an hour and try again."),
+  });
+  const perAddress = rateLimit({
+    windowMs: deps.limits.windowMs,
+    limit: deps.limits.perAddress,
+    standardHeaders: false,
+    legacyHeaders: false,
+    store: deps.stores.address,
+    // A request naming no address confirms nothing; validation refuses it.
+    skip: (req) => addressOf(req) === "",
+    keyGenerator: (req) => addressOf(req),
+    handler: limited("Too many subscription requests for this address. Check your inbox, or wait an hour and try again."),
+  });
+
+  r.get("/projects/:slug/subscription-options", async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    res.json(await subscribers.options(slug));
+  });
+
+  r.post("/subscriptions", perIp, perAddress, async (req, res) => {
+    const input = SubscriptionInputSchema.parse(req.body);
+    await subscribers.subscribe(input, actorOf(req));
+    res.status(202).set("Cache-Control", "no-store").json(SUBSCRIPTION_ACCEPTED);
+  });
+
+  r.get("/subscriptions/confirm/:token", async (req, res) => {
+    res.set("Cache-Control", "no-store").json(await subscribers.describeConfirmation(tokenOf(req)));
+  });
+  r.post("/subscriptions/confirm/:token", async (req, res) => {
+    const token = tokenOf(req);
+    EmptyInputSchema.parse(req.body ?? {});
+    res.json(await subscribers.confirm(token, actorOf(req)));
+  });
+
+  r.get("/subscriptions/preferences/:token", async (req, res) => {
+    res.set("Cache-Control", "no-store").json(await subscribers.describePreferences(tokenOf(req)));
+  });
+  r.patch("/subscriptions/preferences/:token", async (req, res) => {
+    const token = tokenOf(req);
+    const patch = PreferencesInputSchema.parse(req.body);
+    res.json(await subscribers.updatePreferences(token, patch));
+  });
+  r.post("/subscriptions/preferences/:token/unsubscribe", async (req, res) => {
+    const token = tokenOf(req);
+    EmptyInputSchema.parse(req.body ?? {});
+    res.json(await subscribers.unsubscribeWithPreferencesLink(token));
+  });
+
+  r.get("/subscriptions/unsubscribe/:token", async (req, res) => {
+    res.set("Cache-Control", "no-store").json(await subscribers.describeUnsubscribe(tokenOf(req)));
+  });
+  r.post("/subscriptions/unsubscribe/:token", async (req, res) => {
+    const token = tokenOf(req);
+    EmptyInputSchema.parse(req.body ?? {});
+    res.json(await subscribers.unsubscribe(token));
+  });
+
+  r.get("/investors/digest", requireRole("investor"), async (req, res) => {
+    res.json(await subscribers.investorDigest(req.user!));
+  });
+  r.patch("/investors/digest/:slug", requireRole("investor"), async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    const input = InvestorDigestInputSchema.parse(req.body);
+    res.json(await subscribers.setInvestorDigest(req.user!, slug, input, actorOf(req)));
+  });
+
+  r.get("/subscribers", requireStaff(), async (req, res) => {
+    const query = SubscriberListQuerySchema.parse({ ...req.query });
+    res.json(await subscribers.list(query));
+  });
+  r.get("/subscribers/export.csv", requireStaff(), async (req, res) => {
+    const query = SubscriberListQuerySchema.parse({ ...req.query });
+    const csv = await subscribers.exportCsv(query);
+    res
+      .status(200)
+      .type("text/csv; charset=utf-8")
+      .set("Cache-Control", "no-store")
+      .attachment(`subscribers-${new Date().toISOString().slice(0, 10)}.csv`)
+      .send(csv);
+  });
+  r.post("/subscribers/import", requireStaff(), async (req, res) => {
+    const input = SubscriberImportInputSchema.parse(req.body);
+    res.json(await subscribers.importCsv(input));
+  });
+  r.get("/subscribers/:id/export", requireStaff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const data = await subscribers.personData(id);
+    res.set("Cache-Control", "no-store").attachment(`subscriber-${id}.json`).json(data);
+  });
+  r.delete("/subscribers/:id", requireStaff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    res.json(await subscribers.erase(id));
+  });
+
+  return r;
+}
+
+/**
+ * The hosted provider's bounce and complaint webhook. It is outside the CSRF check (its
+ * HMAC signature stands in) and reads its body raw, since the signature covers the bytes.
+ */
+export function mailEventsRouter(subscribers: SubscribersService): Router {
+  const r = Router();
+  r.post("/webhooks/mail-events", async (req, res) => {
+    res.json(await subscribers.handleMailEvents(req.body as Buffer | undefined, req.get("plumbline-signature")));
+  });
+  return r;
+}
+
+// RFC 8058 §3.1 names application/x-www-form-urlencoded; multipart/form-data is accepted
+// too, since some mail clients send the one field that way.
+const multipartFields = multer({ limits: { fields: 5, fieldSize: 200, files: 0 } }).none();
+const readMultipart: RequestHandler = (req, res, next) => {
+  if (!req.is("multipart/form-data")) return next();
+  multipartFields(req, res, (err?: unknown) => (err ? next(new AppError("bad_request", "The request body could not be read.", 400)) : next()));
+};
+
+/**
+ * RFC 8058 one-click unsubscribe at `/u/:token`, outside /api: a POST with the body
+ * `List-Unsubscribe=One-Click` unsubscribes at once and answers 200 with no redirect. The
+ * signed token in the URL stands in for a CSRF token. A GET falls through to the page.
+ */
+export function oneClickRouter(subscribers: SubscribersService): Router {
+  const r = Router();
+  r.post("/u/:token", readMultipart, async (req, res) => {
+    const token = tokenOf(req);
+    OneClickBodySchema.parse({ ...(req.body ?? {}) });
+    await subscribers.unsubscribe(token);
+    res.status(200).set("Cache-Control", "no-store").type("text/plain; charset=utf-8").send("Unsubscribed. No more e-mail about this project will be sent to this address.\n");
+  });
+  return r;
+}

@@ -1,0 +1,35 @@
+import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { EnquiryAccepted, EnquiryInput, EnquiryListQuery, EnquiryOwner, EnquiryPatch, EnquiryRow } from "#shared/schemas/enquiries.ts";
+import type { Project } from "#shared/schemas/projects.ts";
+import { api, qs } from "../../lib/api-client.ts";
+
+export const enquiryKeys = {
+  all: ["enquiries"] as const,
+  project: (slug: string) => [...enquiryKeys.all, "project", slug] as const,
+  list: (f: EnquiryListQuery) => [...enquiryKeys.all, "list", f] as const,
+  detail: (id: number) => [...enquiryKeys.all, "detail", id] as const,
+  owners: () => [...enquiryKeys.all, "owners"] as const,
+};
+
+/** The project an enquiry is about: its name, and whether visits are offered. */
+export const enquiryProjectQueryOptions = (slug: string) => queryOptions({ queryKey: enquiryKeys.project(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`), retry: false });
+export const enquiriesQueryOptions = (f: EnquiryListQuery) => queryOptions({ queryKey: enquiryKeys.list(f), queryFn: () => api.get<EnquiryRow[]>(`/api/enquiries${qs(f)}`) });
+export const enquiryQueryOptions = (id: number) => queryOptions({ queryKey: enquiryKeys.detail(id), queryFn: () => api.get<EnquiryRow>(`/api/enquiries/${id}`) });
+export const enquiryOwnersQueryOptions = () => queryOptions({ queryKey: enquiryKeys.owners(), queryFn: () => api.get<EnquiryOwner[]>("/api/enquiries/owners"), staleTime: 5 * 60_000 });
+
+export const useEnquiryProject = (slug: string) => useQuery(enquiryProjectQueryOptions(slug));
+export const useEnquiries = (f: EnquiryListQuery) => useQuery(enquiriesQueryOptions(f));
+export const useEnquiry = (id: number | null) => useQuery({ ...enquiryQueryOptions(id ?? 0), enabled: id !== null });
+export const useEnquiryOwners = () => useQuery(enquiryOwnersQueryOptions());
+
+export function useSendEnquiry(slug: string) {
+  return useMutation({ mutationFn: (input: EnquiryInput) => api.post<EnquiryAccepted>(`/api/projects/${slug}/enquiries`, input), meta: { quiet: true } });
+}
+
+export function useUpdateEnquiry() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ id, ...patch }: EnquiryPatch & { id: number }) => api.patch<EnquiryRow>(`/api/enquiries/${id}`, patch),
+    onSuccess: () => qc.invalidateQueries({ queryKey: enquiryKeys.all }),
+  });
+}

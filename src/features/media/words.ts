@@ -1,0 +1,40 @@
+import type { MediaStatus, Sensitivity } from "#shared/schemas/media.ts";
+import type { System } from "#shared/schemas/programme.ts";
+
+/** Each state by a word and a shape of its own, so nobody needs the colour to read it. */
+export const STATUS_WORD: Record<MediaStatus, { glyph: string; word: string; tone: string }> = {
+  processing: { glyph: "◌", word: "Processing", tone: "text-ink-soft" },
+  ready: { glyph: "●", word: "Ready", tone: "text-good" },
+  failed: { glyph: "✕", word: "Failed", tone: "text-bad" },
+};
+
+export const SENSITIVITY_WORD: Record<Sensitivity, { glyph: string; word: string; tone: string }> = {
+  unreviewed: { glyph: "○", word: "Unreviewed", tone: "text-watch" },
+  cleared: { glyph: "✓", word: "Cleared", tone: "text-good" },
+  restricted: { glyph: "■", word: "Restricted", tone: "text-bad" },
+};
+
+export const SYSTEM_WORD: Record<System, string> = {
+  building: "Building",
+  cooling: "Cooling",
+  power: "Power",
+  fuel: "Fuel",
+  security: "Security",
+  "fit-out": "Fit-out",
+  commissioning: "Commissioning",
+};
+
+/** Bytes for people: "3.4 MB", "820 KB". */
+export function formatBytes(bytes: number): string {
+  if (bytes >= 1024 * 1024) return `${(bytes / (1024 * 1024)).toFixed(1)} MB`;
+  return `${Math.max(1, Math.round(bytes / 1024))} KB`;
+}
+
+/** A camera's local capture time (`YYYY-MM-DDTHH:mm…`) as "14 Mar 2026, 10:20", never shifted by a zone. */
+export function formatTakenAt(takenAt: string | null): string {
+  if (!takenAt) return "No capture time";
+  const m = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})/.exec(takenAt);
+  if (!m) return takenAt;
+  const months = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
+  return `${Number(m[3])} ${months[Number(m[2]) - 1]} ${m[1]}, ${m[4]}:${m[5]}`;
+}

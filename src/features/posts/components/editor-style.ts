@@ -1,0 +1,3 @@
+/** Typography inside the editor: the serif of the published page, so the writer sees what readers will. */
+export const PROSE_EDITOR =
+  "font-serif text-[1.05rem] leading-[1.7] text-ink [&_a]:text-accent [&_a]:underline [&_blockquote]:my-4 [&_blockquote]:border-l-4 [&_blockquote]:border-rule-strong [&_blockquote]:pl-4 [&_blockquote]:italic [&_h2]:mt-6 [&_h2]:mb-2 [&_h2]:font-sans [&_h2]:text-2xl [&_h2]:font-semibold [&_h3]:mt-5 [&_h3]:mb-2 [&_h3]:font-sans [&_h3]:text-xl [&_h3]:font-semibold [&_h4]:mt-4 [&_h4]:font-sans [&_h4]:font-semibold [&_hr]:my-6 [&_hr]:border-rule [&_li]:my-1 [&_ol]:my-3 [&_ol]:list-decimal [&_ol]:pl-6 [&_p]:my-3 [&_ul]:my-3 [&_ul]:list-disc [&_ul]:pl-6";

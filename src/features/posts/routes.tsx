@@ -1,0 +1,160 @@
+import { getCoreRowModel, useReactTable, type ColumnDef } from "@tanstack/react-table";
+import { useEffect, useMemo, useState } from "react";
+import { Link, useSearchParams } from "react-router-dom";
+import type { Audience } from "#shared/schemas/common.ts";
+import { POSTS_PAGE_SIZE, PostStatusSchema, type PostStatus, type PostSummary } from "#shared/schemas/posts.ts";
+import { AudienceMark } from "../../components/ui/audience-mark.tsx";
+import { Button } from "../../components/ui/button.tsx";
+import { DataTable } from "../../components/ui/data-table.tsx";
+import { SelectField, TextField } from "../../components/ui/field.tsx";
+import { PublishStatusMark, PUBLISH_STATUS_WORD } from "../../components/ui/publish-status.tsx";
+import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
+import { formatInstant } from "../../lib/format.ts";
+import { usePostList, usePostsProject, usePostsProjects } from "./api.ts";
+
+/** The project the site office is working on: `?project=` or the first one. */
+export function useOfficeProject(): { slug: string; choices: Array<{ value: string; label: string }>; setSlug: (s: string) => void } {
+  const [params, setParams] = useSearchParams();
+  const projects = usePostsProjects();
+  const slug = params.get("project") ?? projects.data?.[0]?.slug ?? "";
+  return {
+    slug,
+    choices: (projects.data ?? []).map((p) => ({ value: p.slug, label: p.name })),
+    setSlug: (s) =>
+      setParams((prev) => {
+        const next = new URLSearchParams(prev);
+        next.set("project", s);
+        return next;
+      }),
+  };
+}
+
+const AUDIENCE_CHOICES = [
+  { value: "", label: "Any audience" },
+  { value: "public", label: "Public" },
+  { value: "investor", label: "For investors" },
+  { value: "internal", label: "Staff only" },
+];
+
+/** When the post went, or will go, out; else when it was last touched. */
+function whenOf(p: PostSummary, zone: string): string {
+  if (p.status === "scheduled" && p.scheduledFor) return `goes out ${formatInstant(p.scheduledFor, zone)}`;
+  if (p.publishedAt && (p.status === "published" || p.status === "withdrawn")) return `published ${formatInstant(p.publishedAt, zone)}`;
+  return `edited ${formatInstant(p.updatedAt, zone)}`;
+}
+
+/** `/office/updates`: every update of the project by state, with filters. */
+export function PostsPage() {
+  const { slug, choices, setSlug } = useOfficeProject();
+  const [params, setParams] = useSearchParams();
+  const status = (PostStatusSchema.safeParse(params.get("status")).data ?? undefined) as PostStatus | undefined;
+  const audience = (params.get("audience") || undefined) as Audience | undefined;
+  const q = params.get("q") || undefined;
+  const page = Math.max(1, Number(params.get("page")) || 1);
+  const [draftQ, setDraftQ] = useState(q ?? "");
+  useEffect(() => setDraftQ(q ?? ""), [q]);
+  const project = usePostsProject(slug);
+  const zone = project.data?.timeZone ?? "Europe/London";
+  const list = usePostList(slug, { status, audience, q, page });
+
+  const set = (next: Record<string, string | undefined>) =>
+    setParams((prev) => {
+      const u = new URLSearchParams(prev);
+      for (const [k, v] of Object.entries(next)) if (v) u.set(k, v);
+      else u.delete(k);
+      if (!("page" in next)) u.delete("page");
+      return u;
+    });
+
+  const columns = useMemo<ColumnDef<PostSummary>[]>(
+    () => [
+      {
+        id: "title",
+        header: "Update",
+        cell: ({ row }) => (
+          <div className="min-w-56">
+            <Link to={`/office/updates/${row.original.id}`} className="font-medium underline decoration-rule-strong underline-offset-4 hover:decoration-ink">
+              {row.original.title}
+            </Link>
+            {row.original.summary ? <p className="line-clamp-1 text-xs text-ink-soft">{row.original.summary}</p> : null}
+          </div>
+        ),
+      },
+      { id: "status", header: "State", cell: ({ row }) => <PublishStatusMark status={row.original.status} /> },
+      { id: "audience", header: "Audience", cell: ({ row }) => <AudienceMark audience={row.original.audience} /> },
+      { id: "author", header: "Written by", cell: ({ row }) => row.original.authorName },
+      { id: "when", header: "When", cell: ({ row }) => <span className="whitespace-nowrap text-ink-soft">{whenOf(row.original, zone)}</span> },
+    ],
+    [zone],
+  );
+  const table = useReactTable({ data: list.data?.items ?? [], columns, getCoreRowModel: getCoreRowModel() });
+  const total = list.data?.total ?? 0;
+  const pages = Math.max(1, Math.ceil(total / POSTS_PAGE_SIZE));
+  const tabs: Array<{ value: PostStatus | undefined; label: string }> = [{ value: undefined, label: "All" }, ...PostStatusSchema.options.map((s) => ({ value: s, label: PUBLISH_STATUS_WORD[s] }))];
+
+  return (
+    <>
+      <PageHeader
+        sheet="Site office · Updates"
+        title="Updates"
+        description="Write what changed on site; a lead reviews and publishes it. Every save keeps a revision."
+        actions={
+          <Link to={`/office/updates/new?project=${slug}`} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 font-medium text-white hover:bg-[#9a3412]">
+            New update
+          </Link>
+        }
+      />
+      {choices.length > 1 ? (
+        <div className="mb-4 w-64">
+          <SelectField label="Project" value={slug} onChange={(e) => setSlug(e.target.value)} options={choices} />
+        </div>
+      ) : null}
+      <div role="group" aria-label="Show updates by state" className="mb-4 flex flex-wrap gap-1 border-b border-rule">
+        {tabs.map((t) => (
+          <button
+            key={t.label}
+            type="button"
+            aria-pressed={status === t.value}
+            onClick={() => set({ status: t.value })}
+            className={`-mb-px border-b-2 px-3 py-2 text-sm ${status === t.value ? "border-accent font-semibold" : "border-transparent text-ink-soft hover:text-ink"}`}
+          >
+            {t.value ? <PublishStatusMark status={t.value} className={status === t.value ? "" : "font-normal"} /> : t.label}
+          </button>
+        ))}
+      </div>
+      <div className="mb-4 flex flex-wrap items-end gap-3">
+        <form
+          className="flex min-w-60 flex-1 items-end gap-2"
+          onSubmit={(e) => {
+            e.preventDefault();
+            set({ q: draftQ.trim() || undefined });
+          }}
+        >
+          <div className="flex-1">
+            <TextField label="Search titles and text" type="search" value={draftQ} onChange={(e) => setDraftQ(e.target.value)} />
+          </div>
+          <Button type="submit">Search</Button>
+        </form>
+        <div className="w-48">
+          <SelectField label="Audience" value={audience ?? ""} onChange={(e) => set({ audience: e.target.value || undefined })} options={AUDIENCE_CHOICES} />
+        </div>
+      </div>
+      {list.isError ? <Notice tone="error">{list.error.message}</Notice> : <DataTable table={table} caption="Updates" empty={list.isPending ? "Loading…" : "No update matches."} />}
+      {pages > 1 ? (
+        <div className="mt-3 flex items-center justify-between text-sm">
+          <Button size="sm" disabled={page <= 1} onClick={() => set({ page: String(page - 1) })}>
+            ← Newer
+          </Button>
+          <span className="tabular">
+            Page {page} of {pages} · {total} updates
+          </span>
+          <Button size="sm" disabled={page >= pages} onClick={() => set({ page: String(page + 1) })}>
+            Older →
+          </Button>
+        </div>
+      ) : (
+        <p className="mt-2 text-sm text-ink-soft tabular">{total === 1 ? "1 update" : `${total} updates`}</p>
+      )}
+    </>
+  );
+}

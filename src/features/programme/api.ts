@@ -1,0 +1,180 @@
+import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { User } from "#shared/schemas/auth.ts";
+import type { Audience } from "#shared/schemas/common.ts";
+import type {
+  BaselineInput,
+  BaselineVersion,
+  CsvImportResult,
+  CurveResponse,
+  Milestone,
+  MilestoneMovesRow,
+  MilestoneEventRow,
+  MilestonePatchInput,
+  ShiftInput,
+  System,
+} from "#shared/schemas/programme.ts";
+import type { Project } from "#shared/schemas/projects.ts";
+import type { MilestoneStatus, ProgrammeHealth } from "#shared/domain/programme-health.ts";
+import type { DrivingLink } from "#shared/domain/programme-dependencies.ts";
+import { api, ApiError, qs } from "../../lib/api-client.ts";
+
+export interface MilestoneFilters {
+  audience?: Audience;
+  system?: System;
+  area?: string;
+  status?: MilestoneStatus;
+}
+
+/** GET /api/projects/:slug/health: the domain figures over what the caller may see. */
+export interface HealthResponse extends Omit<ProgrammeHealth, "milestones"> {
+  milestones?: ProgrammeHealth["milestones"];
+  drivers: { milestoneId: number; finish: string; chain: DrivingLink[] } | null;
+  timeZone: string;
+}
+
+export type { CurveResponse };
+export type MilestoneMoves = MilestoneMovesRow;
+
+/**
+ * Keys: programme → project(slug) → kind → params, and programme → milestone(id) → kind.
+ * Invalidating a project's key refreshes every figure derived from its milestones.
+ */
+export const programmeKeys = {
+  all: ["programme"] as const,
+  // The feature asks who is signed in itself, under its own key, because features never import each other.
+  me: () => [...programmeKeys.all, "me"] as const,
+  projects: () => [...programmeKeys.all, "projects"] as const,
+  project: (slug: string) => [...programmeKeys.all, "project", slug] as const,
+  detail: (slug: string) => [...programmeKeys.project(slug), "detail"] as const,
+  milestones: (slug: string, f: MilestoneFilters = {}) => [...programmeKeys.project(slug), "milestones", f] as const,
+  health: (slug: string, at?: string) => [...programmeKeys.project(slug), "health", at ?? "today"] as const,
+  curve: (slug: string, range: { from: string; to: string }) => [...programmeKeys.project(slug), "curve", range] as const,
+  moves: (slug: string, range: { from: string; to: string }) => [...programmeKeys.project(slug), "moves", range] as const,
+  baselines: (slug: string) => [...programmeKeys.project(slug), "baselines"] as const,
+  milestone: (id: number) => [...programmeKeys.all, "milestone", id] as const,
+  events: (id: number) => [...programmeKeys.milestone(id), "events"] as const,
+  drivers: (id: number) => [...programmeKeys.milestone(id), "drivers"] as const,
+};
+
+export const programmeMeQueryOptions = () =>
+  queryOptions({
+    queryKey: programmeKeys.me(),
+    queryFn: async (): Promise<User | null> => {
+      try {
+        return (await api.get<{ user: User }>("/api/auth/me")).user;
+      } catch (e) {
+        if (e instanceof ApiError && e.status === 401) return null;
+        throw e;
+      }
+    },
+    staleTime: 60_000,
+  });
+
+export const programmeProjectsQueryOptions = () => queryOptions({ queryKey: programmeKeys.projects(), queryFn: () => api.get<Project[]>("/api/projects") });
+
+export const programmeProjectQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: programmeKeys.detail(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`), enabled: slug !== "" });
+
+export const milestonesQueryOptions = (slug: string, f: MilestoneFilters = {}) =>
+  queryOptions({
+    queryKey: programmeKeys.milestones(slug, f),
+    queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones${qs({ ...f })}`),
+    enabled: slug !== "",
+  });
+
+export const healthQueryOptions = (slug: string, at?: string) =>
+  queryOptions({
+    queryKey: programmeKeys.health(slug, at),
+    queryFn: () => api.get<HealthResponse>(`/api/projects/${slug}/health${qs({ at })}`),
+    enabled: slug !== "",
+  });
+
+export const curveQueryOptions = (slug: string, range: { from: string; to: string }) =>
+  queryOptions({
+    queryKey: programmeKeys.curve(slug, range),
+    queryFn: () => api.get<CurveResponse>(`/api/projects/${slug}/curve${qs({ ...range, step: 7 })}`),
+    enabled: slug !== "" && range.from !== "" && range.to !== "",
+  });
+
+export const movesQueryOptions = (slug: string, range: { from: string; to: string }) =>
+  queryOptions({
+    queryKey: programmeKeys.moves(slug, range),
+    queryFn: () => api.get<MilestoneMoves[]>(`/api/projects/${slug}/moves${qs(range)}`),
+    enabled: slug !== "",
+  });
+
+export const baselinesQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: programmeKeys.baselines(slug), queryFn: () => api.get<BaselineVersion[]>(`/api/projects/${slug}/baselines`), enabled: slug !== "" });
+
+export const eventsQueryOptions = (id: number) =>
+  queryOptions({ queryKey: programmeKeys.events(id), queryFn: () => api.get<MilestoneEventRow[]>(`/api/milestones/${id}/events`) });
+
+export const driversQueryOptions = (id: number) =>
+  queryOptions({ queryKey: programmeKeys.drivers(id), queryFn: () => api.get<DrivingLink[]>(`/api/milestones/${id}/drivers`) });
+
+export const useProgrammeMe = () => useQuery(programmeMeQueryOptions());
+export const useProgrammeProjects = () => useQuery(programmeProjectsQueryOptions());
+export const useProgrammeProject = (slug: string) => useQuery(programmeProjectQueryOptions(slug));
+export const useMilestones = (slug: string, f: MilestoneFilters = {}) => useQuery(milestonesQueryOptions(slug, f));
+export const useHealth = (slug: string, at?: string) => useQuery(healthQueryOptions(slug, at));
+export const useCurve = (slug: string, range: { from: string; to: string }) => useQuery({ ...curveQueryOptions(slug, range), placeholderData: keepPreviousData });
+export const useMoves = (slug: string, range: { from: string; to: string }) => useQuery(movesQueryOptions(slug, range));
+export const useBaselines = (slug: string) => useQuery(baselinesQueryOptions(slug));
+export const useMilestoneEvents = (id: number) => useQuery(eventsQueryOptions(id));
+export const useMilestoneDrivers = (id: number) => useQuery(driversQueryOptions(id));
+
+/** Lead and admin keep the programme; marketing and investors read it. */
+export function canEditProgramme(user: User | null | undefined): boolean {
+  return user?.role === "lead" || user?.role === "admin";
+}
+
+/** The body of a 409: the milestone as it is now, so the editor can show it and reapply. */
+export function conflictCurrent(e: unknown): Milestone | null {
+  if (!(e instanceof ApiError) || e.status !== 409) return null;
+  const body = e.body as { error?: { current?: Milestone } } | null;
+  return body?.error?.current ?? null;
+}
+
+export function usePatchMilestone(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ id, patch }: { id: number; patch: MilestonePatchInput }) => api.patch<Milestone>(`/api/milestones/${id}`, patch),
+    // The editor shows conflicts and field errors beside the change itself.
+    meta: { quiet: true },
+    onSettled: (_data, _err, vars) => {
+      void qc.invalidateQueries({ queryKey: programmeKeys.project(slug) });
+      void qc.invalidateQueries({ queryKey: programmeKeys.milestone(vars.id) });
+    },
+  });
+}
+
+export function useShiftForecasts(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: ShiftInput) => api.post<Milestone[]>(`/api/projects/${slug}/milestones/shift`, input),
+    onSuccess: (rows) => {
+      void qc.invalidateQueries({ queryKey: programmeKeys.project(slug) });
+      for (const m of rows) void qc.invalidateQueries({ queryKey: programmeKeys.milestone(m.id) });
+    },
+  });
+}
+
+export function useRebaseline(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: BaselineInput) => api.post<{ number: number }>(`/api/projects/${slug}/baselines`, input),
+    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all, predicate: (q) => q.queryKey[1] !== "me" }),
+  });
+}
+
+export function useImportMilestones(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (csv: string) => api.post<CsvImportResult>(`/api/projects/${slug}/milestones/import`, { csv }),
+    meta: { quiet: true },
+    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all, predicate: (q) => q.queryKey[1] !== "me" }),
+  });
+}
+
+/** Where the CSV export is downloaded from (a plain link: the browser handles the file). */
+export const milestonesCsvUrl = (slug: string) => `/api/projects/${slug}/milestones.csv`;

@@ -1,0 +1,76 @@
+import { useLayoutEffect, useRef, useState, type ReactNode } from "react";
+
+export const INK = "#1d1f24";
+export const INK_SOFT = "#4a4e57";
+export const RULE = "#d9d3c4";
+export const RULE_STRONG = "#b9b09c";
+export const ACCENT = "#c2410c";
+export const SHEET = "#fffdf8";
+
+/** Width of an element, kept up to date: charts draw at a known pixel width, so they fit a phone. */
+function useElementWidth<T extends HTMLElement>(): [React.RefObject<T | null>, number] {
+  const ref = useRef<T>(null);
+  const [width, setWidth] = useState(0);
+  useLayoutEffect(() => {
+    const el = ref.current;
+    if (!el) return;
+    setWidth(el.clientWidth);
+    if (typeof ResizeObserver === "undefined") return;
+    const ro = new ResizeObserver(() => setWidth(el.clientWidth));
+    ro.observe(el);
+    return () => ro.disconnect();
+  }, []);
+  return [ref, width];
+}
+
+/**
+ * A chart as a figure: a title, the drawing at the width available, and a sentence
+ * that says what the drawing shows for anyone who cannot see it.
+ */
+export function ChartFrame({ title, summary, children, testId, footer }: { title: string; summary: ReactNode; children: (width: number) => ReactNode; testId: string; footer?: ReactNode }) {
+  const [ref, width] = useElementWidth<HTMLDivElement>();
+  return (
+    <figure className="flex flex-col gap-2" data-testid={testId}>
+      <figcaption>
+        <p className="font-semibold">{title}</p>
+        <p className="text-sm text-ink-soft">{summary}</p>
+      </figcaption>
+      <div ref={ref} className="w-full min-w-0">
+        {width > 0 ? children(width) : <div className="h-64" />}
+      </div>
+      {footer}
+    </figure>
+  );
+}
+
+/** Shortens a label to `max` characters with an ellipsis, for axis ticks on narrow screens. */
+export function truncate(s: string, max: number): string {
+  return s.length <= max ? s : `${s.slice(0, Math.max(1, max - 1)).trimEnd()}…`;
+}
+
+/**
+ * A category tick drawn above its row, from the left edge of the plot: on a phone the
+ * names get the whole width instead of a narrow column beside the bars.
+ */
+export function tickAboveRow(maxChars: number) {
+  return function TickAboveRow(props: { x?: number | string; y?: number | string; payload?: { value?: unknown } }) {
+    const y = Number(props.y ?? 0);
+    // The axis is a hairline at the plot's left edge, so the name starts at the drawing's edge.
+    return (
+      <text x={1} y={y - 9} textAnchor="start" fontSize={10.5} fill={INK}>
+        {truncate(String(props.payload?.value ?? ""), maxChars)}
+      </text>
+    );
+  };
+}
+
+/** A category tick on one line, shortened to fit the axis. */
+export function tickOneLine(maxChars: number) {
+  return function TickOneLine(props: { x?: number | string; y?: number | string; payload?: { value?: unknown } }) {
+    return (
+      <text x={Number(props.x ?? 0) - 4} y={Number(props.y ?? 0)} dy="0.35em" textAnchor="end" fontSize={11} fill={INK}>
+        {truncate(String(props.payload?.value ?? ""), maxChars)}
+      </text>
+    );
+  };
+}

@@ -1,0 +1,82 @@
+import { CartesianGrid, Line, LineChart, ReferenceLine, Tooltip, XAxis, YAxis } from "recharts";
+import { fromDayNumber, toDayNumber } from "#shared/domain/calendar.ts";
+import { formatDate } from "../../../lib/format.ts";
+import type { CurveResponse } from "../api.ts";
+import { formatAxisMonth, monthTicks } from "../dates.ts";
+import { formatPercent } from "../words.ts";
+import { ACCENT, ChartFrame, INK_SOFT, RULE } from "./chart-frame.tsx";
+
+interface Point {
+  day: number;
+  planned: number;
+  earned: number | null;
+}
+
+function LineKey() {
+  return (
+    <ul className="flex flex-wrap gap-x-5 gap-y-1 text-sm" aria-label="Key">
+      <li className="flex items-center gap-2">
+        <svg aria-hidden width="28" height="8">
+          <line x1="0" y1="4" x2="28" y2="4" stroke={INK_SOFT} strokeWidth="2" strokeDasharray="6 4" />
+        </svg>
+        Planned (baseline)
+      </li>
+      <li className="flex items-center gap-2">
+        <svg aria-hidden width="28" height="8">
+          <line x1="0" y1="4" x2="28" y2="4" stroke={ACCENT} strokeWidth="3" />
+        </svg>
+        Earned (work done)
+      </li>
+      <li className="flex items-center gap-2">
+        <svg aria-hidden width="12" height="14">
+          <line x1="6" y1="0" x2="6" y2="14" stroke={ACCENT} strokeWidth="1.5" strokeDasharray="3 2" />
+        </svg>
+        Today
+      </li>
+    </ul>
+  );
+}
+
+/**
+ * The S-curve: weighted planned percent from the current baseline against earned
+ * percent reconstructed from the history, with today marked. Planned is dashed and
+ * earned solid, so the two read apart without colour.
+ */
+export function SCurveChart({ curve }: { curve: CurveResponse }) {
+  const points: Point[] = curve.points.map((p) => ({ day: toDayNumber(p.date), planned: p.plannedPercent, earned: p.earnedPercent }));
+  const today = toDayNumber(curve.at);
+  const first = points[0]?.day ?? today;
+  const last = points[points.length - 1]?.day ?? today;
+  const atPoint = curve.points.find((p) => p.date === curve.at) ?? [...curve.points].reverse().find((p) => p.earnedPercent !== null);
+  const summary = atPoint
+    ? `On ${formatDate(curve.at)} the baseline planned ${formatPercent(atPoint.plannedPercent)} of the work to be done; ${formatPercent(atPoint.earnedPercent)} is done.`
+    : "No points to draw yet.";
+  return (
+    <ChartFrame title="Planned against earned" summary={summary} testId="chart-s-curve" footer={<LineKey />}>
+      {(width) => (
+        <LineChart width={width} height={width < 480 ? 240 : 320} data={points} margin={{ top: 16, right: 16, bottom: 4, left: 0 }}>
+          <CartesianGrid stroke={RULE} strokeDasharray="2 4" />
+          <XAxis
+            dataKey="day"
+            type="number"
+            domain={[first, last]}
+            ticks={monthTicks(first, last, width < 480 ? 4 : 8)}
+            tickFormatter={formatAxisMonth}
+            interval={0}
+            tick={{ fontSize: 11, fill: INK_SOFT }}
+            stroke={INK_SOFT}
+          />
+          <YAxis domain={[0, 100]} ticks={[0, 25, 50, 75, 100]} tickFormatter={(v: number) => `${v}%`} width={42} tick={{ fontSize: 11, fill: INK_SOFT }} stroke={INK_SOFT} />
+          <Tooltip
+            isAnimationActive={false}
+            labelFormatter={(d) => formatDate(fromDayNumber(Number(d)))}
+            formatter={(v, name) => [formatPercent(typeof v === "number" ? v : null), name === "planned" ? "Planned" : "Earned"]}
+          />
+          <ReferenceLine x={today} stroke={ACCENT} strokeDasharray="3 2" label={{ value: "Today", position: "insideTopLeft", fill: ACCENT, fontSize: 11 }} />
+          <Line dataKey="planned" name="planned" type="linear" stroke={INK_SOFT} strokeWidth={2} strokeDasharray="6 4" dot={false} isAnimationActive={false} />
+          <Line dataKey="earned" name="earned" type="linear" stroke={ACCENT} strokeWidth={3} dot={false} connectNulls={false} isAnimationActive={false} />
+        </LineChart>
+      )}
+    </ChartFrame>
+  );
+}

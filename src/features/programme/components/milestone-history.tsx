@@ -1,0 +1,141 @@
+import { useEffect, useRef } from "react";
+import type { Milestone, MilestoneEventRow } from "#shared/schemas/programme.ts";
+import { Button } from "../../../components/ui/button.tsx";
+import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
+import { StatusMark } from "../../../components/ui/status-mark.tsx";
+import { formatDate, formatInstant } from "../../../lib/format.ts";
+import { useMilestoneDrivers, useMilestoneEvents } from "../api.ts";
+import { AUDIENCE_WORD, FIELD_WORD, signedDays, SYSTEM_WORD } from "../words.ts";
+
+function valueOf(e: MilestoneEventRow, v: string | null): string {
+  if (v === null || v === "") return "none";
+  if (e.field.endsWith("_finish") || e.field === "planned_start") return formatDate(v);
+  if (e.field === "percent_complete") return `${v}%`;
+  if (e.field === "audience") return AUDIENCE_WORD[v as keyof typeof AUDIENCE_WORD] ?? v;
+  return v;
+}
+
+function DrivingChain({ id }: { id: number }) {
+  const drivers = useMilestoneDrivers(id);
+  if (drivers.isPending) return <Spinner label="Tracing what drives it" />;
+  if (drivers.isError) return <Notice tone="error">{drivers.error.message}</Notice>;
+  const chain = drivers.data;
+  if (chain.length <= 1) return <p className="text-sm text-ink-soft">Nothing before it in the programme sets this date: it depends on no other milestone.</p>;
+  return (
+    <ol className="flex flex-col gap-1 text-sm" aria-label="Driving chain">
+      {chain.map((link, i) => (
+        <li key={link.id} className="flex items-baseline gap-2">
+          <span aria-hidden className="w-4 text-ink-faint">
+            {i === 0 ? "◆" : "↑"}
+          </span>
+          <span className={i === 0 ? "font-semibold" : ""}>{link.name}</span>
+          <span className="tabular text-ink-soft">{formatDate(link.finish)}</span>
+          {i === 0 ? <span className="text-xs text-ink-faint">(this milestone)</span> : null}
+        </li>
+      ))}
+    </ol>
+  );
+}
+
+function History({ id, timeZone }: { id: number; timeZone: string }) {
+  const events = useMilestoneEvents(id);
+  if (events.isPending) return <Spinner label="Loading the history" />;
+  if (events.isError) return <Notice tone="error">{events.error.message}</Notice>;
+  if (events.data.length === 0) return <p className="text-sm text-ink-soft">No change has been recorded since the milestone was created.</p>;
+  return (
+    <ol className="flex flex-col divide-y divide-rule text-sm" aria-label="Changes, newest first">
+      {events.data.map((e) => (
+        <li key={e.id} className="py-2">
+          <p>
+            <span className="font-medium">{FIELD_WORD[e.field] ?? e.field}</span>: {valueOf(e, e.from)} → <span className="font-semibold">{valueOf(e, e.to)}</span>
+            {e.baselineVersion ? <span className="ml-1 text-xs text-ink-faint">(baseline v{e.baselineVersion})</span> : null}
+          </p>
+          <p className="text-xs text-ink-faint">
+            {formatInstant(e.at, timeZone)}
+            {e.by ? ` · ${e.by}` : ""}
+          </p>
+          {e.note ? <p className="mt-0.5 font-serif text-ink-soft">“{e.note}”</p> : null}
+        </li>
+      ))}
+    </ol>
+  );
+}
+
+/** One milestone's record: its dates, what drives its forecast, and every recorded change. */
+export function MilestoneHistoryDialog({ milestone, timeZone, onClose }: { milestone: Milestone | null; timeZone: string; onClose: () => void }) {
+  const ref = useRef<HTMLDialogElement>(null);
+  useEffect(() => {
+    const d = ref.current;
+    if (!d) return;
+    if (milestone && !d.open) d.showModal?.();
+    if (!milestone && d.open) d.close();
+  }, [milestone]);
+  return (
+    <dialog
+      ref={ref}
+      onClose={onClose}
+      aria-labelledby="milestone-history-title"
+      className="m-0 ml-auto h-full max-h-none w-full max-w-xl overflow-y-auto border-l-2 border-ink bg-sheet p-0 text-ink backdrop:bg-ink/30"
+    >
+      {milestone ? (
+        <div className="flex flex-col gap-5 p-5">
+          <header className="flex items-start justify-between gap-3 border-b-2 border-ink pb-3">
+            <div>
+              <p className="label-caps">
+                {milestone.phase} · {[milestone.area, SYSTEM_WORD[milestone.system]].filter(Boolean).join(" · ")}
+              </p>
+              <h2 id="milestone-history-title" className="text-xl font-semibold">
+                {milestone.name}
+              </h2>
+              <div className="mt-1">
+                <StatusMark status={milestone.status} />
+              </div>
+            </div>
+            <Button size="sm" onClick={() => ref.current?.close()}>
+              Close
+            </Button>
+          </header>
+          {milestone.description ? <p className="font-serif text-ink-soft">{milestone.description}</p> : null}
+          <dl className="tabular grid grid-cols-2 gap-2 text-sm sm:grid-cols-3">
+            <div>
+              <dt className="label-caps">Planned start</dt>
+              <dd>{formatDate(milestone.plannedStart)}</dd>
+            </div>
+            <div>
+              <dt className="label-caps">Baseline finish</dt>
+              <dd>{formatDate(milestone.baselineFinish)}</dd>
+            </div>
+            <div>
+              <dt className="label-caps">Forecast finish</dt>
+              <dd>{formatDate(milestone.forecastFinish)}</dd>
+            </div>
+            <div>
+              <dt className="label-caps">Actual finish</dt>
+              <dd>{formatDate(milestone.actualFinish)}</dd>
+            </div>
+            <div>
+              <dt className="label-caps">Slip</dt>
+              <dd>
+                {signedDays(milestone.slipDays)} ({milestone.slipWorkingDays} working days)
+              </dd>
+            </div>
+            <div>
+              <dt className="label-caps">Done · weight</dt>
+              <dd>
+                {milestone.percentComplete}% · {milestone.weight}
+              </dd>
+            </div>
+          </dl>
+          <section>
+            <h3 className="mb-2 font-semibold">What sets its forecast</h3>
+            <DrivingChain id={milestone.id} />
+          </section>
+          <section>
+            <h3 className="mb-1 font-semibold">History</h3>
+            <History id={milestone.id} timeZone={timeZone} />
+          </section>
+        </div>
+      ) : null}
+    </dialog>
+  );
+}

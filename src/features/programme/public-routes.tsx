@@ -1,0 +1,153 @@
+import { Link, useParams } from "react-router-dom";
+import type { Milestone } from "#shared/schemas/programme.ts";
+import { milestoneFinish } from "#shared/domain/programme-health.ts";
+import { Notice, Spinner } from "../../components/ui/sheet.tsx";
+import { StatusIcon, STATUS_LOOK, StatusMark } from "../../components/ui/status-mark.tsx";
+import { useMilestones, useProgrammeProject } from "./api.ts";
+import { formatLongDate, todayIn } from "./dates.ts";
+import { countInWords, describePublicProgress, slipInWords } from "./words.ts";
+
+// Public pages: public milestones only (asked for explicitly, so a signed-in member of
+// staff sees what a visitor sees), plain words, no money and no schedule indices.
+const PUBLIC = { audience: "public" } as const;
+
+/** When a milestone is (or was) due, in words: planned against expected or actual. */
+export function describeDates(m: Milestone): string {
+  if (m.actualFinish) {
+    return m.slipDays === 0 ? `Finished ${formatLongDate(m.actualFinish)}, on the planned date.` : `Finished ${formatLongDate(m.actualFinish)}, ${slipInWords(m.slipDays)}.`;
+  }
+  const expected = milestoneFinish(m);
+  if (m.slipDays === 0) return `Expected ${formatLongDate(expected)}, as planned.`;
+  return `Planned for ${formatLongDate(m.baselineFinish)}; now expected ${formatLongDate(expected)}, ${slipInWords(m.slipDays)}.`;
+}
+
+function TimelineItem({ m }: { m: Milestone }) {
+  const look = STATUS_LOOK[m.status];
+  return (
+    <li className="relative pb-6 pl-8 last:pb-0" data-testid="timeline-item" data-milestone-id={m.id}>
+      <span aria-hidden className="absolute left-[5px] top-1.5 bottom-0 w-px bg-rule-strong" />
+      <span aria-hidden className="absolute left-0 top-1 flex size-3 items-center justify-center bg-paper">
+        <StatusIcon status={m.status} size={12} />
+      </span>
+      <h3 className="font-semibold leading-snug">{m.name}</h3>
+      {m.area ? <p className="text-xs text-ink-faint">{m.area}</p> : null}
+      <p className="mt-1 text-[0.95rem]">{describeDates(m)}</p>
+      <p className="mt-0.5 text-sm" style={{ color: look.color }}>
+        <StatusMark status={m.status} />
+      </p>
+      {m.description ? <p className="mt-1 font-serif text-sm text-ink-soft">{m.description}</p> : null}
+    </li>
+  );
+}
+
+/** Milestones in date order, with "today" between what is done and what is to come. */
+function Timeline({ milestones, today }: { milestones: Milestone[]; today: string }) {
+  const ordered = [...milestones].sort((a, b) => milestoneFinish(a).localeCompare(milestoneFinish(b)) || a.id - b.id);
+  const past = ordered.filter((m) => milestoneFinish(m) <= today);
+  const future = ordered.filter((m) => milestoneFinish(m) > today);
+  return (
+    <div className="flex flex-col gap-4">
+      {past.length > 0 ? (
+        <section aria-labelledby="tl-past">
+          <h2 id="tl-past" className="label-caps mb-3">
+            Up to today
+          </h2>
+          <ol>
+            {past.map((m) => (
+              <TimelineItem key={m.id} m={m} />
+            ))}
+          </ol>
+        </section>
+      ) : null}
+      <p className="flex items-center gap-2 text-sm font-semibold text-accent" aria-label={`Today, ${formatLongDate(today)}`}>
+        <span aria-hidden className="h-0.5 w-6 bg-accent" />
+        Today · {formatLongDate(today)}
+        <span aria-hidden className="h-0.5 flex-1 bg-accent/40" />
+      </p>
+      {future.length > 0 ? (
+        <section aria-labelledby="tl-future">
+          <h2 id="tl-future" className="label-caps mb-3">
+            Still to come
+          </h2>
+          <ol>
+            {future.map((m) => (
+              <TimelineItem key={m.id} m={m} />
+            ))}
+          </ol>
+        </section>
+      ) : null}
+    </div>
+  );
+}
+
+function countsInWords(milestones: Milestone[]): string {
+  const n = (s: Milestone["status"]) => milestones.filter((m) => m.status === s).length;
+  const parts = [
+    [n("complete"), "complete"],
+    [n("on_programme"), "on programme"],
+    [n("at_risk"), "at risk of running late"],
+    [n("behind"), "behind"],
+  ] as const;
+  return parts
+    .filter(([c]) => c > 0)
+    .map(([c, w]) => `${countInWords(c)} ${w}`)
+    .join(", ");
+}
+
+/** The public programme timeline of a project. */
+export function PublicTimelinePage() {
+  const { slug = "" } = useParams();
+  const project = useProgrammeProject(slug);
+  const milestones = useMilestones(slug, PUBLIC);
+  if (project.isPending || milestones.isPending) return <Spinner />;
+  if (project.isError) {
+    return (
+      <div className="mx-auto max-w-3xl px-4 py-10">
+        <Notice tone="error" title="Project not found">
+          {project.error.message}
+        </Notice>
+      </div>
+    );
+  }
+  if (milestones.isError) {
+    return (
+      <div className="mx-auto max-w-3xl px-4 py-10">
+        <Notice tone="error">{milestones.error.message}</Notice>
+      </div>
+    );
+  }
+  const p = project.data;
+  const list = milestones.data;
+  const today = todayIn(p.timeZone);
+  return (
+    <div className="mx-auto max-w-3xl px-4 py-10">
+      <p className="label-caps">
+        <Link to={`/projects/${p.slug}`} className="underline underline-offset-4">
+          {p.name}
+        </Link>{" "}
+        · Timeline
+      </p>
+      <h1 className="mt-1 text-3xl font-semibold tracking-tight">When each part will be ready</h1>
+      <p className="mt-4 text-lg leading-relaxed" data-testid="public-summary">
+        {describePublicProgress(list)}
+      </p>
+      {list.length > 0 ? <p className="mt-1 text-sm text-ink-soft">Of the published milestones: {countsInWords(list)}.</p> : null}
+      <p className="mt-1 text-sm text-ink-soft">
+        Dates are the operator's current forecasts and change as work goes on. Days are counted in {p.timeZone.replace("_", " ")}.
+      </p>
+      <div className="mt-8">{list.length > 0 ? <Timeline milestones={list} today={today} /> : null}</div>
+    </div>
+  );
+}
+
+/** One plain line of progress for the project's public home, with the way to the timeline. */
+export function PublicProgressLine({ slug }: { slug: string }) {
+  const milestones = useMilestones(slug, PUBLIC);
+  if (milestones.isPending) return <Spinner label="Reading the programme" />;
+  if (milestones.isError) return null;
+  return (
+    <p className="mt-2 text-[0.95rem]" data-testid="public-progress">
+      {describePublicProgress(milestones.data)}
+    </p>
+  );
+}

@@ -1,0 +1,162 @@
+import { keepPreviousData, queryOptions, useQuery } from "@tanstack/react-query";
+import type { User } from "#shared/schemas/auth.ts";
+import type { Project } from "#shared/schemas/projects.ts";
+import type { MediaPicture, PostDetail, PostRedirect, PostSummary } from "#shared/schemas/posts.ts";
+import type { StoryDetail, StorySummary } from "#shared/schemas/stories.ts";
+import { api, ApiError, qs } from "../../lib/api-client.ts";
+
+export interface UpdateFilters {
+  page?: number;
+  tag?: string;
+  q?: string;
+}
+
+export interface GalleryFilters {
+  area?: string;
+  system?: string;
+  /** `YYYY-MM`. */
+  month?: string;
+}
+
+/** One photo of the public gallery: the picture and where and when it was taken. */
+export interface GalleryPhoto extends MediaPicture {
+  areas: string[];
+  systems: string[];
+  /** `YYYY-MM` of the capture time (or of the upload when the photo carries none). */
+  month: string | null;
+}
+
+/** GET /api/projects/:slug/gallery: the photos, and the choices its filters offer. */
+export interface Gallery {
+  items: GalleryPhoto[];
+  areas: string[];
+  systems: string[];
+  months: string[];
+}
+
+export interface Page<T> {
+  items: T[];
+  total: number;
+}
+
+/**
+ * GET a list whose total comes in `X-Total-Count` (the posts contract). The shared API
+ * client returns bodies only, so this reads the header itself and raises the same error type.
+ */
+async function getPage<T>(path: string): Promise<Page<T>> {
+  const res = await fetch(path, { headers: { Accept: "application/json" }, credentials: "same-origin" });
+  const body: unknown = (res.headers.get("content-type") ?? "").includes("json") ? await res.json() : null;
+  if (!res.ok) {
+    const err = (body as { error?: { code?: string; message?: string; fields?: Record<string, string> } } | null)?.error;
+    throw new ApiError(res.status, err?.code ?? "http_error", err?.message ?? `The server answered ${res.status}.`, err?.fields ?? {}, body);
+  }
+  const items = Array.isArray(body) ? (body as T[]) : ((body as { items?: T[] } | null)?.items ?? []);
+  const header = Number(res.headers.get("x-total-count"));
+  const total = Number.isFinite(header) && res.headers.has("x-total-count") ? header : ((body as { total?: number } | null)?.total ?? items.length);
+  return { items, total };
+}
+
+/**
+ * Keys: site → project(slug) → kind → params. The public pages keep their own cache
+ * entries (and ask who is signed in under their own key), since features never import
+ * each other.
+ */
+export const siteKeys = {
+  all: ["site"] as const,
+  me: () => [...siteKeys.all, "me"] as const,
+  project: (slug: string) => [...siteKeys.all, "project", slug] as const,
+  detail: (slug: string) => [...siteKeys.project(slug), "detail"] as const,
+  updates: (slug: string, f: UpdateFilters = {}) => [...siteKeys.project(slug), "updates", f] as const,
+  update: (slug: string, postSlug: string) => [...siteKeys.project(slug), "update", postSlug] as const,
+  stories: (slug: string) => [...siteKeys.project(slug), "stories"] as const,
+  story: (slug: string, storySlug: string) => [...siteKeys.project(slug), "story", storySlug] as const,
+  gallery: (slug: string, f: GalleryFilters = {}) => [...siteKeys.project(slug), "gallery", f] as const,
+};
+
+export const siteMeQueryOptions = () =>
+  queryOptions({
+    queryKey: siteKeys.me(),
+    queryFn: async (): Promise<User | null> => {
+      try {
+        return (await api.get<{ user: User }>("/api/auth/me")).user;
+      } catch (e) {
+        if (e instanceof ApiError && e.status === 401) return null;
+        throw e;
+      }
+    },
+    staleTime: 60_000,
+  });
+
+export const siteProjectQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: siteKeys.detail(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`), enabled: slug !== "" });
+
+/** Published updates the caller may see (investors' posts appear for investors and staff, marked). */
+export const updatesQueryOptions = (slug: string, f: UpdateFilters = {}) =>
+  queryOptions({
+    queryKey: siteKeys.updates(slug, f),
+    queryFn: () => getPage<PostSummary>(`/api/projects/${slug}/posts${qs({ page: f.page && f.page > 1 ? f.page : undefined, tag: f.tag, q: f.q, status: "published" })}`),
+    enabled: slug !== "",
+  });
+
+/** A post page, or where its old address now leads. */
+export const updateQueryOptions = (slug: string, postSlug: string) =>
+  queryOptions({
+    queryKey: siteKeys.update(slug, postSlug),
+    queryFn: () => api.get<PostDetail | PostRedirect>(`/api/projects/${slug}/posts/${postSlug}`),
+    enabled: slug !== "" && postSlug !== "",
+  });
+
+export const storiesQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: siteKeys.stories(slug), queryFn: () => api.get<StorySummary[]>(`/api/projects/${slug}/stories`), enabled: slug !== "" });
+
+export const storyQueryOptions = (slug: string, storySlug: string) =>
+  queryOptions({
+    queryKey: siteKeys.story(slug, storySlug),
+    queryFn: () => api.get<StoryDetail | PostRedirect>(`/api/projects/${slug}/stories/${storySlug}`),
+    enabled: slug !== "" && storySlug !== "",
+  });
+
+type GalleryAnswer = Partial<Gallery> | Array<MediaPicture & Partial<Pick<GalleryPhoto, "areas" | "systems" | "month">> & { tags?: { areas?: string[]; systems?: string[] } }>;
+
+/**
+ * The gallery in one shape whether the API sends `{ items, areas, systems, months }` or the
+ * photos alone: each photo's month is its capture month where the API gives none, and the
+ * filter choices are gathered from the photos where the API does not list them.
+ */
+export function normaliseGallery(answer: GalleryAnswer): Gallery {
+  const raw = Array.isArray(answer) ? answer : (answer.items ?? []);
+  const items: GalleryPhoto[] = raw.map((p) => {
+    const tagged = p as { tags?: { areas?: string[]; systems?: string[] } };
+    return {
+      ...p,
+      areas: p.areas ?? tagged.tags?.areas ?? [],
+      systems: p.systems ?? tagged.tags?.systems ?? [],
+      month: p.month ?? (p.takenAt && /^\d{4}-\d{2}/.test(p.takenAt) ? p.takenAt.slice(0, 7) : null),
+    };
+  });
+  const listed = Array.isArray(answer) ? {} : answer;
+  const uniq = (xs: string[]) => [...new Set(xs)].sort();
+  return {
+    items,
+    areas: listed.areas ?? uniq(items.flatMap((i) => i.areas)),
+    systems: listed.systems ?? uniq(items.flatMap((i) => i.systems)),
+    months: listed.months ?? uniq(items.flatMap((i) => (i.month ? [i.month] : []))).reverse(),
+  };
+}
+
+export const galleryQueryOptions = (slug: string, f: GalleryFilters = {}) =>
+  queryOptions({
+    queryKey: siteKeys.gallery(slug, f),
+    queryFn: async () => normaliseGallery(await api.get<GalleryAnswer>(`/api/projects/${slug}/gallery${qs({ ...f })}`)),
+    enabled: slug !== "",
+  });
+
+export const useSiteMe = () => useQuery(siteMeQueryOptions());
+export const useSiteProject = (slug: string) => useQuery(siteProjectQueryOptions(slug));
+export const useUpdates = (slug: string, f: UpdateFilters = {}) => useQuery({ ...updatesQueryOptions(slug, f), placeholderData: keepPreviousData });
+export const useUpdate = (slug: string, postSlug: string) => useQuery(updateQueryOptions(slug, postSlug));
+export const useStories = (slug: string) => useQuery(storiesQueryOptions(slug));
+export const useStory = (slug: string, storySlug: string) => useQuery(storyQueryOptions(slug, storySlug));
+export const useGallery = (slug: string, f: GalleryFilters = {}) => useQuery({ ...galleryQueryOptions(slug, f), placeholderData: keepPreviousData });
+
+export const isRedirect = (v: unknown): v is PostRedirect => typeof v === "object" && v !== null && "redirectTo" in v;

@@ -1,0 +1,458 @@
+import { useEffect, useMemo, useState, type FormEvent, type ReactNode } from "react";
+import { Link, Navigate, useLocation, useParams, useSearchParams } from "react-router-dom";
+import type { MediaPicture, PostDetail, PostTag } from "#shared/schemas/posts.ts";
+import type { StoryDetail, StoryItem } from "#shared/schemas/stories.ts";
+import { AudienceMark } from "../../components/ui/audience-mark.tsx";
+import { Button } from "../../components/ui/button.tsx";
+import { CompareSlider } from "../../components/ui/compare-slider.tsx";
+import { SelectField } from "../../components/ui/field.tsx";
+import { Lightbox, type LightboxItem } from "../../components/ui/lightbox.tsx";
+import { Picture } from "../../components/ui/picture.tsx";
+import { Notice, Spinner } from "../../components/ui/sheet.tsx";
+import { ApiError } from "../../lib/api-client.ts";
+import { isRedirect, useGallery, useSiteProject, useStory, useUpdate, useUpdates, type GalleryFilters, type GalleryPhoto } from "./api.ts";
+import { MilestonesThenNow } from "./components/milestone-then-now.tsx";
+import { PostBody } from "./components/post-body.tsx";
+import { PostCard } from "./components/post-card.tsx";
+import { ProjectMasthead } from "./components/project-nav.tsx";
+import { capturedOn, dayOf, monthWords, SYSTEM_TAGS, tagWord } from "./words.ts";
+
+const FALLBACK_ZONE = "Europe/London";
+
+function Frame({ children, wide = false }: { children: ReactNode; wide?: boolean }) {
+  return <div className={`mx-auto px-4 py-8 ${wide ? "max-w-6xl" : "max-w-5xl"}`}>{children}</div>;
+}
+
+function Failure({ error, what }: { error: Error; what: string }) {
+  const missing = error instanceof ApiError && error.status === 404;
+  return (
+    <Notice tone="error" title={missing ? `No such ${what}` : `The ${what} could not be shown`}>
+      {missing ? `There is no ${what} at this address. It may have been withdrawn, or the address is mistyped.` : error.message}
+    </Notice>
+  );
+}
+
+/** Sets the document title while a page is shown. */
+function useTitle(title: string | undefined) {
+  useEffect(() => {
+    if (!title) return;
+    const before = document.title;
+    document.title = `${title} · Plumbline`;
+    return () => {
+      document.title = before;
+    };
+  }, [title]);
+}
+
+function Pager({ page, total, pageSize, hrefFor }: { page: number; total: number; pageSize: number; hrefFor: (p: number) => string }) {
+  const pages = Math.max(1, Math.ceil(total / pageSize));
+  if (pages <= 1) return null;
+  return (
+    <nav aria-label="Pages of updates" className="mt-8 flex flex-wrap items-center justify-between gap-3 border-t border-rule pt-4 text-sm">
+      {page > 1 ? (
+        <Link to={hrefFor(page - 1)} className="font-medium underline underline-offset-4" rel="prev">
+          ← Newer updates
+        </Link>
+      ) : (
+        <span />
+      )}
+      <span className="tabular text-ink-soft">
+        Page {page} of {pages}
+      </span>
+      {page < pages ? (
+        <Link to={hrefFor(page + 1)} className="font-medium underline underline-offset-4" rel="next">
+          Older updates →
+        </Link>
+      ) : (
+        <span />
+      )}
+    </nav>
+  );
+}
+
+/** `/projects/:slug/updates`: the published updates, newest first, with a topic filter and search. */
+export function UpdatesPage() {
+  const { slug = "" } = useParams();
+  const [params, setParams] = useSearchParams();
+  const page = Math.max(1, Number(params.get("page")) || 1);
+  const tag = params.get("tag") ?? undefined;
+  const q = params.get("q") ?? undefined;
+  const [draft, setDraft] = useState(q ?? "");
+  useEffect(() => setDraft(q ?? ""), [q]);
+  const project = useSiteProject(slug);
+  const updates = useUpdates(slug, { page, tag, q });
+  useTitle(project.data ? `Updates · ${project.data.name}` : undefined);
+
+  const set = (next: Record<string, string | undefined>) =>
+    setParams((prev) => {
+      const u = new URLSearchParams(prev);
+      for (const [k, v] of Object.entries(next)) if (v) u.set(k, v);
+      else u.delete(k);
+      u.delete("page");
+      return u;
+    });
+  const onSearch = (e: FormEvent) => {
+    e.preventDefault();
+    set({ q: draft.trim() || undefined });
+  };
+  const hrefFor = (p: number) => {
+    const u = new URLSearchParams(params);
+    if (p > 1) u.set("page", String(p));
+    else u.delete("page");
+    const s = u.toString();
+    return `/projects/${slug}/updates${s ? `?${s}` : ""}`;
+  };
+
+  // Areas come from the posts themselves (the programme's systems are a fixed list).
+  const areaTags = useMemo(() => {
+    const seen = new Set<string>();
+    for (const p of updates.data?.items ?? []) for (const t of p.tags) if (t.kind === "area") seen.add(t.value);
+    if (tag && !SYSTEM_TAGS.includes(tag)) seen.add(tag);
+    return [...seen].sort();
+  }, [updates.data, tag]);
+  const tagChoices = [
+    { value: "", label: "All topics" },
+    ...SYSTEM_TAGS.map((s) => ({ value: s, label: tagWord({ kind: "system", value: s }) })),
+    ...areaTags.map((a) => ({ value: a, label: a })),
+  ];
+
+  const zone = project.data?.timeZone ?? FALLBACK_ZONE;
+  return (
+    <Frame>
+      <ProjectMasthead slug={slug} projectName={project.data?.name} operatorName={project.data?.operatorName} />
+      <h1 className="mt-6 text-3xl font-semibold tracking-tight">{q ? `Updates mentioning “${q}”` : "Updates from the site"}</h1>
+      <p className="mt-2 max-w-2xl text-ink-soft">What changed on site, in the operator's words, with photographs from the site walks.</p>
+      <div className="mt-6 flex flex-col gap-4 border border-rule bg-sheet p-4 sm:flex-row sm:items-end">
+        <form role="search" onSubmit={onSearch} className="flex min-w-0 flex-1 items-end gap-2">
+          <div className="flex min-w-0 flex-1 flex-col gap-1">
+            <label htmlFor="update-search" className="text-sm font-medium">
+              Search updates
+            </label>
+            <input
+              id="update-search"
+              type="search"
+              value={draft}
+              onChange={(e) => setDraft(e.target.value)}
+              placeholder="e.g. chillers, generator, Hall 2A"
+              maxLength={200}
+              className="w-full rounded-sm border border-rule-strong bg-sheet px-3 py-2 text-[0.95rem] placeholder:text-ink-faint focus:border-ink"
+            />
+          </div>
+          <Button type="submit">Search</Button>
+        </form>
+        <div className="sm:w-56">
+          <SelectField label="Topic" value={tag ?? ""} onChange={(e) => set({ tag: e.target.value || undefined })} options={tagChoices} />
+        </div>
+      </div>
+      {q || tag ? (
+        <p className="mt-3 text-sm">
+          <button type="button" className="underline underline-offset-4" onClick={() => set({ q: undefined, tag: undefined })}>
+            Clear the search and topic
+          </button>
+        </p>
+      ) : null}
+      <div className="mt-6">
+        {updates.isPending ? (
+          <Spinner label="Loading updates" />
+        ) : updates.isError ? (
+          <Failure error={updates.error} what="list of updates" />
+        ) : updates.data.items.length === 0 ? (
+          <p className="text-ink-soft">{q || tag ? "No published update matches. Try other words or another topic." : "No updates have been published yet."}</p>
+        ) : (
+          <>
+            <p className="sr-only" aria-live="polite">
+              {updates.data.total} updates
+            </p>
+            <div className="flex flex-col gap-6">
+              {updates.data.items.map((p) => (
+                <PostCard key={p.id} post={p} projectSlug={slug} timeZone={zone} />
+              ))}
+            </div>
+            <Pager page={page} total={updates.data.total} pageSize={10} hrefFor={hrefFor} />
+          </>
+        )}
+      </div>
+    </Frame>
+  );
+}
+
+/** `/projects/:slug/search?q=…`: search lives on the updates page (MariaDB full-text over what the reader may see). */
+export function SearchPage() {
+  const { slug = "" } = useParams();
+  const { search } = useLocation();
+  return <Navigate to={`/projects/${slug}/updates${search}`} replace />;
+}
+
+/** The site path an API redirect names, whether it gives a page path, an API path or a bare slug. */
+function redirectTarget(slug: string, kind: "updates" | "stories", to: string): string {
+  const path = to.replace(/^https?:\/\/[^/]+/, "").replace(/^\/api\//, "/");
+  if (path.startsWith(`/projects/${slug}/${kind}/`)) return path;
+  const last = path.split("/").filter(Boolean).pop() ?? "";
+  return `/projects/${slug}/${kind}/${last}`;
+}
+
+function TagList({ tags, slug }: { tags: PostTag[]; slug: string }) {
+  if (tags.length === 0) return null;
+  return (
+    <ul className="flex flex-wrap gap-1.5" aria-label="Topics">
+      {tags.map((t) => (
+        <li key={`${t.kind}:${t.value}`}>
+          <Link to={`/projects/${slug}/updates?tag=${encodeURIComponent(t.value)}`} className="block border border-rule px-2 py-0.5 text-sm text-ink-soft hover:border-ink hover:text-ink">
+            {tagWord(t)}
+          </Link>
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+function PostArticle({ post, slug, zone }: { post: PostDetail; slug: string; zone: string }) {
+  const published = post.publishedAt ? dayOf(post.publishedAt, zone) : null;
+  return (
+    <article className="mx-auto max-w-3xl" data-testid="post-page">
+      <header className="mt-6">
+        <p className="flex flex-wrap items-center gap-2 text-sm text-ink-soft">
+          {published ? <time dateTime={post.publishedAt ?? undefined}>{published}</time> : null}
+          {post.authorName ? <span>· {post.authorName}</span> : null}
+          <AudienceMark audience={post.audience} hidePublic />
+        </p>
+        <h1 className="mt-1 text-3xl font-semibold leading-tight tracking-tight sm:text-4xl">{post.title}</h1>
+        {post.summary ? <p className="mt-3 font-serif text-xl leading-relaxed text-ink-soft">{post.summary}</p> : null}
+      </header>
+      {post.cover ? (
+        <figure className="mt-6">
+          <Picture picture={post.cover} eager sizes="(min-width: 800px) 768px, calc(100vw - 2rem)" />
+          {post.cover.caption ? <figcaption className="mt-2 text-sm text-ink-soft">{post.cover.caption}</figcaption> : null}
+        </figure>
+      ) : null}
+      <div className="mt-6">
+        <PostBody html={post.html} images={post.images} />
+      </div>
+      <MilestonesThenNow milestones={post.milestones} publishedOn={published} />
+      <footer className="mt-10 flex flex-col gap-4 border-t border-rule pt-4">
+        <TagList tags={post.tags} slug={slug} />
+        <p className="text-sm">
+          <Link to={`/projects/${slug}/updates`} className="font-medium text-accent underline underline-offset-4">
+            ← All updates
+          </Link>
+          <span className="mx-2 text-ink-faint">·</span>
+          <a href={`/feed/${slug}.atom`} className="underline underline-offset-4">
+            Follow by feed
+          </a>
+          <span className="mx-2 text-ink-faint">·</span>
+          <Link to={`/projects/${slug}/subscribe`} className="underline underline-offset-4">
+            Updates by e-mail
+          </Link>
+        </p>
+      </footer>
+    </article>
+  );
+}
+
+/** `/projects/:slug/updates/:postSlug`: one update, its photos responsive, its milestones then and now. */
+export function PostPage() {
+  const { slug = "", postSlug = "" } = useParams();
+  const project = useSiteProject(slug);
+  const post = useUpdate(slug, postSlug);
+  const data = post.data && !isRedirect(post.data) ? post.data : null;
+  useTitle(data?.title);
+  if (post.data && isRedirect(post.data)) return <Navigate to={redirectTarget(slug, "updates", post.data.redirectTo)} replace />;
+  // The API follows an old slug to the new post; the address bar should say the new one too.
+  if (data && data.slug !== postSlug) return <Navigate to={`/projects/${slug}/updates/${data.slug}`} replace />;
+  return (
+    <Frame>
+      <ProjectMasthead slug={slug} projectName={project.data?.name} operatorName={project.data?.operatorName} />
+      {post.isPending ? <Spinner label="Loading the update" /> : post.isError ? <div className="mt-6"><Failure error={post.error} what="update" /></div> : data ? <PostArticle post={data} slug={slug} zone={project.data?.timeZone ?? FALLBACK_ZONE} /> : null}
+    </Frame>
+  );
+}
+
+function photoMeta(p: Pick<MediaPicture, "takenAt" | "credit" | "isIllustration">, extra: string[] = []): string {
+  const parts = [...extra];
+  const on = capturedOn(p.takenAt);
+  if (on) parts.push(`${p.isIllustration ? "Dated" : "Taken"} ${on}`);
+  if (p.isIllustration) parts.push("Illustration");
+  if (p.credit) parts.push(`Credit: ${p.credit}`);
+  return parts.join(" · ");
+}
+
+/** `/projects/:slug/gallery`: the cleared photos of published content, by area, system and month. */
+export function GalleryPage() {
+  const { slug = "" } = useParams();
+  const [params, setParams] = useSearchParams();
+  const filters: GalleryFilters = { area: params.get("area") ?? undefined, system: params.get("system") ?? undefined, month: params.get("month") ?? undefined };
+  const project = useSiteProject(slug);
+  const gallery = useGallery(slug, filters);
+  const [open, setOpen] = useState<number | null>(null);
+  useTitle(project.data ? `Gallery · ${project.data.name}` : undefined);
+
+  const set = (k: keyof GalleryFilters, v: string) =>
+    setParams((prev) => {
+      const u = new URLSearchParams(prev);
+      if (v) u.set(k, v);
+      else u.delete(k);
+      return u;
+    });
+
+  const items = gallery.data?.items ?? [];
+  // Grouped by month, newest first, as a site diary would be.
+  const groups = useMemo(() => {
+    const by = new Map<string, Array<{ photo: GalleryPhoto; index: number }>>();
+    items.forEach((photo, index) => {
+      const key = photo.month ?? "";
+      by.set(key, [...(by.get(key) ?? []), { photo, index }]);
+    });
+    return [...by.entries()].sort((a, b) => b[0].localeCompare(a[0]));
+  }, [items]);
+  const lightboxItems: LightboxItem[] = items.map((p) => ({
+    picture: p,
+    caption: p.caption || p.altText,
+    meta: photoMeta(p, p.areas.length ? [p.areas.join(", ")] : []),
+  }));
+
+  const g = gallery.data;
+  return (
+    <Frame wide>
+      <ProjectMasthead slug={slug} projectName={project.data?.name} operatorName={project.data?.operatorName} />
+      <h1 className="mt-6 text-3xl font-semibold tracking-tight">Photographs from the site</h1>
+      <p className="mt-2 max-w-2xl text-ink-soft">Photos published with the updates and photo stories, cleared for the public. Some are illustrations, marked as such in their captions.</p>
+      <div className="mt-6 grid gap-3 border border-rule bg-sheet p-4 sm:grid-cols-3">
+        <SelectField label="Area" value={filters.area ?? ""} onChange={(e) => set("area", e.target.value)} options={[{ value: "", label: "All areas" }, ...(g?.areas ?? []).map((a) => ({ value: a, label: a }))]} />
+        <SelectField
+          label="System"
+          value={filters.system ?? ""}
+          onChange={(e) => set("system", e.target.value)}
+          options={[{ value: "", label: "All systems" }, ...(g?.systems ?? []).map((s) => ({ value: s, label: tagWord({ kind: "system", value: s }) }))]}
+        />
+        <SelectField label="Month" value={filters.month ?? ""} onChange={(e) => set("month", e.target.value)} options={[{ value: "", label: "Any month" }, ...(g?.months ?? []).map((m) => ({ value: m, label: monthWords(m) }))]} />
+      </div>
+      <div className="mt-6">
+        {gallery.isPending ? (
+          <Spinner label="Loading photographs" />
+        ) : gallery.isError ? (
+          <Failure error={gallery.error} what="gallery" />
+        ) : items.length === 0 ? (
+          <p className="text-ink-soft">No published photograph matches these choices.</p>
+        ) : (
+          <div className="flex flex-col gap-8">
+            {groups.map(([month, photos]) => (
+              <section key={month || "undated"} aria-labelledby={`m-${month || "undated"}`}>
+                <h2 id={`m-${month || "undated"}`} className="label-caps mb-3">
+                  {month ? monthWords(month) : "Date not recorded"}
+                </h2>
+                <ul className="grid grid-cols-2 gap-2 sm:grid-cols-3 lg:grid-cols-4">
+                  {photos.map(({ photo, index }) => (
+                    <li key={photo.id}>
+                      <button type="button" onClick={() => setOpen(index)} className="group block w-full overflow-hidden border border-rule text-left" aria-label={`Open photo: ${photo.altText || photo.caption || "site photograph"}`} data-testid="gallery-photo">
+                        <Picture picture={photo} fit="cover" aspect={4 / 3} sizes="(min-width: 1024px) 17rem, (min-width: 640px) 33vw, 50vw" className="transition-transform group-hover:scale-[1.02]" />
+                      </button>
+                    </li>
+                  ))}
+                </ul>
+              </section>
+            ))}
+          </div>
+        )}
+      </div>
+      <Lightbox items={lightboxItems} index={open} onIndexChange={setOpen} label="Site photograph" />
+    </Frame>
+  );
+}
+
+function PairItem({ item, sizes, eager }: { item: Extract<StoryItem, { kind: "pair" }>; sizes: string; eager: boolean }) {
+  if (!item.before || !item.after) return null;
+  const thenOn = capturedOn(item.before.takenAt);
+  const nowOn = capturedOn(item.after.takenAt);
+  return (
+    <figure data-testid="story-pair">
+      <CompareSlider
+        before={item.before}
+        after={item.after}
+        beforeLabel={`Then${thenOn ? ` · ${thenOn}` : ""}`}
+        afterLabel={`Now${nowOn ? ` · ${nowOn}` : ""}`}
+        label={`${item.area}: drag to compare ${thenOn ?? "the earlier photo"} with ${nowOn ?? "the later one"}`}
+        sizes={sizes}
+        eager={eager}
+      />
+      <figcaption className="mt-2 text-sm text-ink-soft">
+        <span className="font-semibold text-ink">{item.area}</span>
+        {thenOn && nowOn ? ` · ${thenOn} and ${nowOn}` : ""}
+        {item.caption ? <span className="mt-1 block font-serif text-base text-ink">{item.caption}</span> : null}
+        <span className="mt-1 block text-xs">Drag the divider, or focus it and use the arrow keys, to compare.</span>
+      </figcaption>
+    </figure>
+  );
+}
+
+function StoryArticle({ story, slug, zone }: { story: StoryDetail; slug: string; zone: string }) {
+  const [open, setOpen] = useState<number | null>(null);
+  const photos = story.items.flatMap((it) => (it.kind === "photo" && it.media ? [{ media: it.media, caption: it.caption }] : []));
+  const lightbox: LightboxItem[] = photos.map((p) => ({ picture: p.media, caption: p.caption || p.media.caption, meta: photoMeta(p.media) }));
+  const sizes = "(min-width: 800px) 768px, calc(100vw - 2rem)";
+  let photoIndex = -1;
+  return (
+    <article className="mx-auto max-w-3xl" data-testid="story-page">
+      <header className="mt-6">
+        <p className="flex flex-wrap items-center gap-2 text-sm text-ink-soft">
+          <span className="label-caps">Photo story</span>
+          {story.publishedAt ? <time dateTime={story.publishedAt}>{dayOf(story.publishedAt, zone)}</time> : null}
+          <AudienceMark audience={story.audience} hidePublic />
+        </p>
+        <h1 className="mt-1 text-3xl font-semibold leading-tight tracking-tight sm:text-4xl">{story.title}</h1>
+        {story.intro ? <p className="mt-3 whitespace-pre-line font-serif text-xl leading-relaxed text-ink-soft">{story.intro}</p> : null}
+      </header>
+      <ol className="mt-8 flex flex-col gap-10">
+        {story.items.map((it, i) => {
+          if (it.kind === "pair") {
+            return (
+              <li key={`pair-${i}`}>
+                <PairItem item={it} sizes={sizes} eager={i === 0} />
+              </li>
+            );
+          }
+          if (!it.media) return null;
+          photoIndex += 1;
+          const at = photoIndex;
+          const media: MediaPicture = it.media;
+          const meta = photoMeta(media);
+          return (
+            <li key={`photo-${i}`}>
+              <figure>
+                <button type="button" className="block w-full cursor-zoom-in" onClick={() => setOpen(at)} aria-label={`Enlarge: ${media.altText || it.caption || "photo"}`} data-testid="story-photo">
+                  <Picture picture={media} eager={i === 0} sizes={sizes} />
+                </button>
+                <figcaption className="mt-2 text-sm text-ink-soft">
+                  {it.caption ? <span className="block font-serif text-base text-ink">{it.caption}</span> : null}
+                  {meta ? <span className="block text-xs">{meta}</span> : null}
+                </figcaption>
+              </figure>
+            </li>
+          );
+        })}
+      </ol>
+      <p className="mt-10 border-t border-rule pt-4 text-sm">
+        <Link to={`/projects/${slug}/gallery`} className="font-medium text-accent underline underline-offset-4">
+          More photographs in the gallery →
+        </Link>
+      </p>
+      <Lightbox items={lightbox} index={open} onIndexChange={setOpen} label="Photo" />
+    </article>
+  );
+}
+
+/** `/projects/:slug/stories/:storySlug`: a photo story, then-and-now pairs as comparison sliders. */
+export function StoryPage() {
+  const { slug = "", storySlug = "" } = useParams();
+  const project = useSiteProject(slug);
+  const story = useStory(slug, storySlug);
+  const data = story.data && !isRedirect(story.data) ? story.data : null;
+  useTitle(data?.title);
+  if (story.data && isRedirect(story.data)) return <Navigate to={redirectTarget(slug, "stories", story.data.redirectTo)} replace />;
+  if (data && data.slug !== storySlug) return <Navigate to={`/projects/${slug}/stories/${data.slug}`} replace />;
+  return (
+    <Frame>
+      <ProjectMasthead slug={slug} projectName={project.data?.name} operatorName={project.data?.operatorName} />
+      {story.isPending ? <Spinner label="Loading the story" /> : story.isError ? <div className="mt-6"><Failure error={story.error} what="photo story" /></div> : data ? <StoryArticle story={data} slug={slug} zone={project.data?.timeZone ?? FALLBACK_ZONE} /> : null}
+    </Frame>
+  );
+}

@@ -1,0 +1,56 @@
+import type { MilestoneSnapshot, PostTag } from "#shared/schemas/posts.ts";
+
+const longDateUtc = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
+const monthYearUtc = new Intl.DateTimeFormat("en-GB", { month: "long", year: "numeric", timeZone: "UTC" });
+
+/** "3 March 2027" for a calendar date `YYYY-MM-DD` (never shifted by the reader's zone). */
+export function longDate(date: string | null | undefined): string {
+  if (!date) return "—";
+  const [y, m, d] = date.slice(0, 10).split("-").map(Number) as [number, number, number];
+  return longDateUtc.format(new Date(Date.UTC(y, m - 1, d)));
+}
+
+/** "March 2027" for `YYYY-MM` or `YYYY-MM-DD`. */
+export function monthWords(month: string): string {
+  const [y, m] = month.split("-").map(Number) as [number, number];
+  return monthYearUtc.format(new Date(Date.UTC(y, m - 1, 1)));
+}
+
+/** "3 March 2027" for an instant, as the day it was on the site (the project's zone). */
+export function dayOf(iso: string | null | undefined, timeZone: string): string {
+  if (!iso) return "—";
+  return new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone }).format(new Date(iso));
+}
+
+/**
+ * The day a photo was taken, from the camera's local time (`YYYY-MM-DDTHH:MM:SS`): the
+ * camera's clock is the site's, so the date part is read as it is, with no zone applied.
+ */
+export function capturedOn(takenAt: string | null | undefined): string | null {
+  if (!takenAt || !/^\d{4}-\d{2}-\d{2}/.test(takenAt)) return null;
+  return longDate(takenAt.slice(0, 10));
+}
+
+const SYSTEM_WORDS: Record<string, string> = {
+  building: "Building",
+  cooling: "Cooling",
+  power: "Power",
+  fuel: "Fuel",
+  security: "Security",
+  "fit-out": "Fit-out",
+  commissioning: "Commissioning",
+};
+
+/** A tag as a person reads it: areas as named, systems capitalised. */
+export function tagWord(tag: PostTag): string {
+  return tag.kind === "system" ? (SYSTEM_WORDS[tag.value] ?? tag.value) : tag.value;
+}
+
+/** The systems the programme knows, for the tag filter (areas come from the posts themselves). */
+export const SYSTEM_TAGS = Object.keys(SYSTEM_WORDS);
+
+/** The date that matters in a snapshot: the actual finish once done, else the forecast (else the baseline). */
+export function snapshotDate(s: MilestoneSnapshot): { word: string; date: string | null } {
+  if (s.actualFinish) return { word: "Finished", date: s.actualFinish };
+  return { word: "Forecast", date: s.forecastFinish ?? s.baselineFinish };
+}

@@ -1,0 +1,370 @@
+import { getCoreRowModel, useReactTable, type ColumnDef } from "@tanstack/react-table";
+import { useEffect, useMemo, useRef, useState } from "react";
+import { Link, useNavigate, useParams, useSearchParams } from "react-router-dom";
+import { toast } from "sonner";
+import type { User } from "#shared/schemas/auth.ts";
+import type { Audience } from "#shared/schemas/common.ts";
+import type { MediaPicture } from "#shared/schemas/media.ts";
+import type { PublishingProblem, WorkflowAction } from "#shared/schemas/posts.ts";
+import type { StoryDetail, StoryItemInput, StorySummary } from "#shared/schemas/stories.ts";
+import { AudienceMark } from "../../components/ui/audience-mark.tsx";
+import { Button } from "../../components/ui/button.tsx";
+import { DataTable } from "../../components/ui/data-table.tsx";
+import { Dialog } from "../../components/ui/dialog.tsx";
+import { SelectField, TextAreaField, TextField } from "../../components/ui/field.tsx";
+import { PublishStatusMark } from "../../components/ui/publish-status.tsx";
+import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { openActions, WorkflowActions } from "../../components/ui/workflow-actions.tsx";
+import { ApiError } from "../../lib/api-client.ts";
+import { formatInstant } from "../../lib/format.ts";
+import { storyProblemsOf, useCreateStory, useSaveStory, useStoriesMe, useStoriesProject, useStoriesProjects, useStory, useStoryList, useStoryWorkflow } from "./api.ts";
+import { StoryPhotoPicker } from "./components/photo-picker.tsx";
+import { StoryItemsEditor, type EditItem, type PickTarget } from "./components/story-items.tsx";
+
+/** The steps the stories API offers (the same rules as updates). */
+const STORY_ACTIONS: readonly WorkflowAction[] = ["submit", "approve", "publish", "return", "withdraw"];
+
+const DONE: Partial<Record<WorkflowAction, string>> = { submit: "Submitted for review", approve: "Approved", publish: "Published", return: "Returned with your comments", withdraw: "Withdrawn" };
+
+/** What happens next when this person has no step to take. */
+const WAITING: Record<StoryDetail["status"], string> = {
+  draft: "Nothing to do here yet.",
+  in_review: "Waiting for a lead to review it.",
+  approved: "Approved: a lead publishes it.",
+  scheduled: "Scheduled.",
+  published: "Published. A lead or an admin can withdraw it.",
+  withdrawn: "Withdrawn: no longer on the public pages.",
+};
+
+function useOfficeProject(): { slug: string; choices: Array<{ value: string; label: string }>; setSlug: (s: string) => void } {
+  const [params, setParams] = useSearchParams();
+  const projects = useStoriesProjects();
+  const slug = params.get("project") ?? projects.data?.[0]?.slug ?? "";
+  return {
+    slug,
+    choices: (projects.data ?? []).map((p) => ({ value: p.slug, label: p.name })),
+    setSlug: (s) =>
+      setParams((prev) => {
+        const next = new URLSearchParams(prev);
+        next.set("project", s);
+        return next;
+      }),
+  };
+}
+
+/** `/office/stories`: the project's photo stories by state. */
+export function StoriesPage() {
+  const { slug, choices, setSlug } = useOfficeProject();
+  const list = useStoryList(slug);
+  const project = useStoriesProject(slug);
+  const zone = project.data?.timeZone ?? "Europe/London";
+  const columns = useMemo<ColumnDef<StorySummary>[]>(
+    () => [
+      {
+        id: "title",
+        header: "Story",
+        cell: ({ row }) => (
+          <Link to={`/office/stories/${row.original.id}`} className="font-medium underline decoration-rule-strong underline-offset-4 hover:decoration-ink">
+            {row.original.title}
+          </Link>
+        ),
+      },
+      { id: "status", header: "State", cell: ({ row }) => <PublishStatusMark status={row.original.status} /> },
+      { id: "audience", header: "Audience", cell: ({ row }) => <AudienceMark audience={row.original.audience} /> },
+      { id: "items", header: "Items", cell: ({ row }) => <span className="tabular">{row.original.itemCount}</span> },
+      { id: "when", header: "Edited", cell: ({ row }) => <span className="whitespace-nowrap text-ink-soft">{formatInstant(row.original.updatedAt, zone)}</span> },
+    ],
+    [zone],
+  );
+  const table = useReactTable({ data: list.data ?? [], columns, getCoreRowModel: getCoreRowModel() });
+  return (
+    <>
+      <PageHeader
+        sheet="Site office · Photo stories"
+        title="Photo stories"
+        description="Curated sequences of site photos, including then-and-now pairs of one area. Published through the same review as updates."
+        actions={
+          <Link to={`/office/stories/new?project=${slug}`} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 font-medium text-white hover:bg-[#9a3412]">
+            New photo story
+          </Link>
+        }
+      />
+      {choices.length > 1 ? (
+        <div className="mb-4 w-64">
+          <SelectField label="Project" value={slug} onChange={(e) => setSlug(e.target.value)} options={choices} />
+        </div>
+      ) : null}
+      {list.isError ? <Notice tone="error">{list.error.message}</Notice> : <DataTable table={table} caption="Photo stories" empty={list.isPending ? "Loading…" : "No photo story yet."} />}
+    </>
+  );
+}
+
+let keySeq = 0;
+const nextKey = () => `item-${++keySeq}`;
+
+function editItemsOf(s: StoryDetail): EditItem[] {
+  return s.items.map((it) =>
+    it.kind === "photo"
+      ? { key: nextKey(), kind: "photo", mediaId: it.mediaId, caption: it.caption }
+      : { key: nextKey(), kind: "pair", area: it.area, beforeMediaId: it.beforeMediaId, afterMediaId: it.afterMediaId, caption: it.caption },
+  );
+}
+
+function picturesOf(s: StoryDetail | null): Map<number, MediaPicture> {
+  const m = new Map<number, MediaPicture>();
+  for (const it of s?.items ?? []) {
+    if (it.kind === "photo" && it.media) m.set(it.media.id, it.media);
+    if (it.kind === "pair") {
+      if (it.before) m.set(it.before.id, it.before);
+      if (it.after) m.set(it.after.id, it.after);
+    }
+  }
+  return m;
+}
+
+/** The items as the API takes them, or the first reason they cannot be sent yet. */
+function itemsInput(items: EditItem[]): { ok: true; items: StoryItemInput[] } | { ok: false; message: string } {
+  const out: StoryItemInput[] = [];
+  for (const [i, it] of items.entries()) {
+    if (it.kind === "photo") {
+      if (!it.mediaId) return { ok: false, message: `Item ${i + 1} has no photo yet.` };
+      out.push({ kind: "photo", mediaId: it.mediaId, caption: it.caption });
+    } else {
+      if (!it.area.trim()) return { ok: false, message: `Item ${i + 1}: name the area both photos show.` };
+      if (!it.beforeMediaId || !it.afterMediaId) return { ok: false, message: `Item ${i + 1} needs both its photos.` };
+      out.push({ kind: "pair", area: it.area.trim(), beforeMediaId: it.beforeMediaId, afterMediaId: it.afterMediaId, caption: it.caption });
+    }
+  }
+  return { ok: true, items: out };
+}
+
+function StoryForm({ story, slug, me }: { story: StoryDetail | null; slug: string; me: User }) {
+  const navigate = useNavigate();
+  const [title, setTitle] = useState(story?.title ?? "");
+  const [storySlug, setStorySlug] = useState(story?.slug ?? "");
+  const [intro, setIntro] = useState(story?.intro ?? "");
+  const [audience, setAudience] = useState<Audience>(story?.audience ?? "public");
+  const [items, setItems] = useState<EditItem[]>(() => (story ? editItemsOf(story) : []));
+  const [pictures, setPictures] = useState<Map<number, MediaPicture>>(() => picturesOf(story));
+  const [dirty, setDirty] = useState(false);
+  const [picking, setPicking] = useState<PickTarget | null>(null);
+  const [fieldErrors, setFieldErrors] = useState<Record<string, string>>({});
+  const [refusal, setRefusal] = useState<{ message: string; problems: PublishingProblem[] } | null>(null);
+  const [returning, setReturning] = useState(false);
+  const [returnComment, setReturnComment] = useState("");
+  const id = story?.id ?? 0;
+  const create = useCreateStory(slug);
+  const save = useSaveStory(id);
+  const workflow = useStoryWorkflow(id, slug);
+  const versionRef = useRef(story?.version);
+
+  useEffect(() => {
+    if (story && story.version !== versionRef.current && !dirty) {
+      versionRef.current = story.version;
+      setPictures((prev) => new Map([...prev, ...picturesOf(story)]));
+    }
+  }, [story, dirty]);
+
+  const touch = () => setDirty(true);
+  const problems = refusal?.problems ?? story?.problems ?? [];
+
+  const doSave = async (): Promise<boolean> => {
+    setFieldErrors({});
+    const built = itemsInput(items);
+    if (!built.ok) {
+      toast.error(built.message);
+      return false;
+    }
+    try {
+      if (!story) {
+        const made = await create.mutateAsync({ title, intro, audience, items: built.items, ...(storySlug.trim() ? { slug: storySlug.trim() } : {}) });
+        setDirty(false);
+        toast.success("Saved as a draft");
+        navigate(`/office/stories/${made.id}?project=${slug}`, { replace: true });
+        return true;
+      }
+      const saved = await save.mutateAsync({ version: story.version, title, intro, audience, items: built.items, ...(storySlug.trim() && storySlug !== story.slug ? { slug: storySlug.trim() } : {}) });
+      versionRef.current = saved.version;
+      setStorySlug(saved.slug);
+      setDirty(false);
+      setRefusal(null);
+      toast.success("Saved");
+      return true;
+    } catch (e) {
+      if (e instanceof ApiError && e.status === 409) toast.error("Someone else saved this story since you opened it; reload to see their version.");
+      else if (e instanceof ApiError && Object.keys(e.fields).length) setFieldErrors(e.fields);
+      else toast.error(e instanceof Error ? e.message : "Not saved.");
+      return false;
+    }
+  };
+
+  const act = async (a: WorkflowAction, comment?: string) => {
+    if (dirty && !(await doSave())) return;
+    setRefusal(null);
+    try {
+      await workflow.mutateAsync({ action: a, comment });
+      setReturning(false);
+      toast.success(DONE[a] ?? "Done");
+    } catch (e) {
+      const found = storyProblemsOf(e);
+      if (found) setRefusal({ message: e instanceof Error ? e.message : "It cannot be published yet.", problems: found });
+      else toast.error(e instanceof Error ? e.message : "That step did not go through.");
+    }
+  };
+
+  const ownWork = !story || story.authorName === me.name;
+  const status = story?.status ?? "draft";
+  const pickingItem = picking ? items.find((i) => i.key === picking.key) : undefined;
+  const saving = create.isPending || save.isPending;
+  return (
+    <>
+      <PageHeader
+        sheet="Site office · Photo stories"
+        title={story ? title || "Untitled story" : "New photo story"}
+        description={
+          <span className="flex flex-wrap items-center gap-3">
+            <PublishStatusMark status={status} />
+            <AudienceMark audience={audience} />
+            {story?.status === "published" ? (
+              <Link to={`/projects/${slug}/stories/${story.slug}`} className="text-sm underline underline-offset-4">
+                Open the published page
+              </Link>
+            ) : null}
+          </span>
+        }
+        actions={
+          <div className="flex items-center gap-2">
+            <span className="text-sm text-ink-soft" aria-live="polite">
+              {saving ? "Saving…" : dirty ? "Unsaved changes" : story ? "All changes saved" : ""}
+            </span>
+            <Button variant={dirty || !story ? "primary" : "secondary"} busy={saving} onClick={() => void doSave()}>
+              {story ? "Save" : "Save draft"}
+            </Button>
+          </div>
+        }
+      />
+      {story?.reviewComment && story.status === "draft" ? (
+        <div className="mb-4">
+          <Notice tone="caution" title="Returned with comments">
+            {story.reviewComment}
+          </Notice>
+        </div>
+      ) : null}
+      {refusal ? (
+        <div className="mb-4" data-testid="refusal-problems">
+          <Notice tone="error" title="Not published yet: fix these first">
+            {refusal.problems.length === 0 ? <p>{refusal.message}</p> : null}
+            <ul className="mt-1 list-none">
+              {refusal.problems.map((p) => (
+                <li key={`${p.code}-${p.mediaId ?? ""}`}>▲ {p.message}</li>
+              ))}
+            </ul>
+          </Notice>
+        </div>
+      ) : null}
+      {story ? (
+        <div className="mb-4 flex flex-wrap items-center gap-3 border border-rule bg-sheet px-4 py-3">
+          <span className="label-caps">Next step</span>
+          {openActions(status, me.role, ownWork, STORY_ACTIONS).length === 0 ? <span className="text-sm text-ink-soft">{WAITING[status]}</span> : null}
+          <WorkflowActions status={status} role={me.role} ownWork={ownWork} offered={STORY_ACTIONS} busy={workflow.isPending ? (workflow.variables?.action ?? null) : null} onAction={(a) => (a === "return" ? setReturning(true) : void act(a))} />
+        </div>
+      ) : null}
+      <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_18rem]">
+        <div className="flex min-w-0 flex-col gap-4">
+          <TextField label="Title" value={title} error={fieldErrors.title} onChange={(e) => { setTitle(e.target.value); touch(); }} maxLength={200} />
+          <TextField label="Address" value={storySlug} error={fieldErrors.slug} onChange={(e) => { setStorySlug(e.target.value.toLowerCase()); touch(); }} placeholder="made from the title when empty" hint={`/projects/${slug}/stories/${storySlug || "…"}`} />
+          <TextAreaField label="Introduction" rows={3} value={intro} error={fieldErrors.intro} onChange={(e) => { setIntro(e.target.value); touch(); }} className="font-serif" />
+          <section aria-labelledby="items-h" className="flex flex-col gap-3">
+            <div className="flex flex-wrap items-center justify-between gap-2">
+              <h2 id="items-h" className="font-semibold">
+                Items <span className="text-sm font-normal text-ink-soft">({items.length})</span>
+              </h2>
+              <div className="flex flex-wrap gap-2">
+                <Button size="sm" onClick={() => { setItems([...items, { key: nextKey(), kind: "photo", mediaId: null, caption: "" }]); touch(); }}>
+                  + Photo
+                </Button>
+                <Button size="sm" onClick={() => { setItems([...items, { key: nextKey(), kind: "pair", area: "", beforeMediaId: null, afterMediaId: null, caption: "" }]); touch(); }}>
+                  + Then and now
+                </Button>
+              </div>
+            </div>
+            {fieldErrors.items ? (
+              <p role="alert" className="text-sm text-bad">
+                ▲ {fieldErrors.items}
+              </p>
+            ) : null}
+            {items.length === 0 ? <p className="border border-dashed border-rule-strong p-6 text-center text-ink-soft">Add photos, or a then-and-now pair of one area.</p> : null}
+            <StoryItemsEditor items={items} pictures={pictures} problems={problems} onChange={(next) => { setItems(next); touch(); }} onPick={setPicking} />
+          </section>
+        </div>
+        <aside className="flex flex-col gap-4">
+          <Sheet label="Audience">
+            <SelectField
+              label="Who may see it"
+              value={audience}
+              onChange={(e) => { setAudience(e.target.value as Audience); touch(); }}
+              options={[
+                { value: "public", label: "Public: anyone" },
+                { value: "investor", label: "Investors (and staff)" },
+                { value: "internal", label: "Staff only" },
+              ]}
+            />
+          </Sheet>
+          <Sheet label="How it is shown">
+            <p className="text-sm text-ink-soft">Then-and-now pairs become a comparison slider with each photo's capture date; single photos open in a lightbox. Both photos of a pair need capture dates on different days.</p>
+          </Sheet>
+        </aside>
+      </div>
+      <Dialog
+        open={returning}
+        title="Return with comments"
+        onClose={() => setReturning(false)}
+        footer={
+          <>
+            <Button onClick={() => setReturning(false)}>Cancel</Button>
+            <Button variant="primary" busy={workflow.isPending} disabled={!returnComment.trim()} onClick={() => void act("return", returnComment.trim())}>
+              Return to the writer
+            </Button>
+          </>
+        }
+      >
+        <TextAreaField label="What should change?" rows={4} value={returnComment} onChange={(e) => setReturnComment(e.target.value)} />
+      </Dialog>
+      {picking ? (
+        <StoryPhotoPicker
+          slug={slug}
+          title={picking.slot === "photo" ? "Choose a photo" : picking.slot === "before" ? "Choose the earlier photo" : "Choose the later photo"}
+          area={pickingItem?.kind === "pair" && pickingItem.area ? pickingItem.area : undefined}
+          onClose={() => setPicking(null)}
+          onChoose={(item, picture) => {
+            setPictures((prev) => new Map(prev).set(picture.id, picture));
+            setItems((list) =>
+              list.map((it) => {
+                if (it.key !== picking.key) return it;
+                if (it.kind === "photo") return { ...it, mediaId: item.id, caption: it.caption || item.caption || "" };
+                const area = it.area || item.tags.areas[0] || "";
+                return picking.slot === "before" ? { ...it, area, beforeMediaId: item.id } : { ...it, area, afterMediaId: item.id };
+              }),
+            );
+            touch();
+            setPicking(null);
+          }}
+        />
+      ) : null}
+    </>
+  );
+}
+
+/** `/office/stories/new` and `/office/stories/:id`. */
+export function StoryEditorPage() {
+  const { id: idParam = "new" } = useParams();
+  const id = idParam === "new" ? 0 : Number(idParam);
+  const office = useOfficeProject();
+  const story = useStory(id);
+  const me = useStoriesMe();
+  const slug = story.data?.projectSlug ?? office.slug;
+  if (me.isPending || (id > 0 && story.isPending) || !slug) return <Spinner label="Opening the story" />;
+  if (id > 0 && story.isError) return <Notice tone="error" title="This story could not be opened">{story.error.message}</Notice>;
+  if (!me.data) return null;
+  return <StoryForm key={id || "new"} story={id > 0 ? (story.data ?? null) : null} slug={slug} me={me.data} />;
+}

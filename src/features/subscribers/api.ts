@@ -1,0 +1,130 @@
+import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { Project } from "#shared/schemas/projects.ts";
+import type {
+  ConfirmationDone,
+  ConfirmationView,
+  ErasureResult,
+  InvestorDigestInput,
+  InvestorDigestSetting,
+  PreferencesInput,
+  PreferencesView,
+  SubscriberImportInput,
+  SubscriberImportResult,
+  SubscriberList,
+  SubscriberListQuery,
+  SubscriberStatus,
+  SubscriptionAccepted,
+  SubscriptionInput,
+  SubscriptionOptions,
+  UnsubscribeView,
+} from "#shared/schemas/subscribers.ts";
+import { api, qs } from "../../lib/api-client.ts";
+
+/** Visitors' side: the form's options and the pages opened from signed links. */
+export const subscriptionKeys = {
+  all: ["subscriptions"] as const,
+  projects: () => [...subscriptionKeys.all, "projects"] as const,
+  options: (slug: string) => [...subscriptionKeys.all, "options", slug] as const,
+  confirmation: (token: string) => [...subscriptionKeys.all, "confirmation", token] as const,
+  preferences: (token: string) => [...subscriptionKeys.all, "preferences", token] as const,
+  unsubscribe: (token: string) => [...subscriptionKeys.all, "unsubscribe", token] as const,
+};
+
+/** The site office's list. */
+export const subscriberKeys = {
+  all: ["subscribers"] as const,
+  list: (f: SubscriberListQuery) => [...subscriberKeys.all, "list", f] as const,
+};
+
+export const investorDigestKeys = {
+  all: ["investor-digest"] as const,
+  mine: () => [...investorDigestKeys.all, "mine"] as const,
+};
+
+export const subscriptionProjectsQueryOptions = () => queryOptions({ queryKey: subscriptionKeys.projects(), queryFn: () => api.get<Project[]>("/api/projects") });
+export const subscriptionOptionsQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: subscriptionKeys.options(slug), queryFn: () => api.get<SubscriptionOptions>(`/api/projects/${slug}/subscription-options`), enabled: slug !== "" });
+export const confirmationQueryOptions = (token: string) =>
+  queryOptions({ queryKey: subscriptionKeys.confirmation(token), queryFn: () => api.get<ConfirmationView>(`/api/subscriptions/confirm/${token}`), retry: false });
+export const preferencesQueryOptions = (token: string) =>
+  queryOptions({ queryKey: subscriptionKeys.preferences(token), queryFn: () => api.get<PreferencesView>(`/api/subscriptions/preferences/${token}`), retry: false });
+export const unsubscribeQueryOptions = (token: string) =>
+  queryOptions({ queryKey: subscriptionKeys.unsubscribe(token), queryFn: () => api.get<UnsubscribeView>(`/api/subscriptions/unsubscribe/${token}`), retry: false });
+export const subscribersQueryOptions = (f: SubscriberListQuery) => queryOptions({ queryKey: subscriberKeys.list(f), queryFn: () => api.get<SubscriberList>(`/api/subscribers${qs(f)}`) });
+export const investorDigestQueryOptions = () => queryOptions({ queryKey: investorDigestKeys.mine(), queryFn: () => api.get<InvestorDigestSetting[]>("/api/investors/digest") });
+
+export const useSubscriptionProjects = () => useQuery(subscriptionProjectsQueryOptions());
+export const useSubscriptionOptions = (slug: string) => useQuery(subscriptionOptionsQueryOptions(slug));
+export const useConfirmation = (token: string) => useQuery(confirmationQueryOptions(token));
+export const usePreferences = (token: string) => useQuery(preferencesQueryOptions(token));
+export const useUnsubscribeView = (token: string) => useQuery(unsubscribeQueryOptions(token));
+export const useSubscribers = (f: SubscriberListQuery) => useQuery(subscribersQueryOptions(f));
+export const useInvestorDigest = () => useQuery(investorDigestQueryOptions());
+
+/** The export link of the current filters (a download, not a query). */
+export const subscribersCsvUrl = (f: SubscriberListQuery) => `/api/subscribers/export.csv${qs(f)}`;
+export const personDataUrl = (id: number) => `/api/subscribers/${id}/export`;
+
+export function useSubscribe() {
+  return useMutation({ mutationFn: (input: SubscriptionInput) => api.post<SubscriptionAccepted>("/api/subscriptions", input), meta: { quiet: true } });
+}
+
+export function useConfirm(token: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => api.post<ConfirmationDone>(`/api/subscriptions/confirm/${token}`, {}),
+    meta: { quiet: true },
+    onSuccess: () => qc.invalidateQueries({ queryKey: subscriptionKeys.confirmation(token) }),
+  });
+}
+
+export function useUpdatePreferences(token: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (patch: PreferencesInput) => api.patch<PreferencesView>(`/api/subscriptions/preferences/${token}`, patch),
+    meta: { quiet: true },
+    onSuccess: (view) => qc.setQueryData(subscriptionKeys.preferences(token), view),
+  });
+}
+
+export function useLeaveFromPreferences(token: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => api.post<{ status: SubscriberStatus }>(`/api/subscriptions/preferences/${token}/unsubscribe`, {}),
+    onSuccess: () => qc.invalidateQueries({ queryKey: subscriptionKeys.preferences(token) }),
+  });
+}
+
+export function useUnsubscribe(token: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => api.post<{ status: SubscriberStatus }>(`/api/subscriptions/unsubscribe/${token}`, {}),
+    onSuccess: () => qc.invalidateQueries({ queryKey: subscriptionKeys.unsubscribe(token) }),
+  });
+}
+
+export function useSetInvestorDigest() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ slug, ...input }: InvestorDigestInput & { slug: string }) => api.patch<InvestorDigestSetting>(`/api/investors/digest/${slug}`, input),
+    meta: { quiet: true },
+    onSuccess: () => qc.invalidateQueries({ queryKey: investorDigestKeys.all }),
+  });
+}
+
+export function useImportSubscribers() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: SubscriberImportInput) => api.post<SubscriberImportResult>("/api/subscribers/import", input),
+    meta: { quiet: true },
+    onSuccess: () => qc.invalidateQueries({ queryKey: subscriberKeys.all }),
+  });
+}
+
+export function useEraseSubscriber() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (id: number) => api.delete<ErasureResult>(`/api/subscribers/${id}`),
+    onSuccess: () => qc.invalidateQueries({ queryKey: subscriberKeys.all }),
+  });
+}

@@ -1,0 +1,399 @@
+import { zodResolver } from "@hookform/resolvers/zod";
+import { useEffect, useState, type ReactNode } from "react";
+import { Controller, useForm } from "react-hook-form";
+import { Link, useParams } from "react-router-dom";
+import { toast } from "sonner";
+import type { z } from "zod";
+import {
+  CONSENT,
+  FrequencySchema,
+  InterestSchema,
+  InvestorDigestInputSchema,
+  PreferencesInputSchema,
+  SubscriberStatusSchema,
+  type InvestorDigestSetting,
+  type PreferencesView,
+  type SubscriberListQuery,
+} from "#shared/schemas/subscribers.ts";
+import { Button } from "../../components/ui/button.tsx";
+import { SelectField, TextField } from "../../components/ui/field.tsx";
+import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { ApiError } from "../../lib/api-client.ts";
+import { applyFieldErrors } from "../../lib/format.ts";
+import {
+  subscribersCsvUrl,
+  useConfirm,
+  useConfirmation,
+  useInvestorDigest,
+  useLeaveFromPreferences,
+  usePreferences,
+  useSetInvestorDigest,
+  useSubscribers,
+  useSubscriptionOptions,
+  useSubscriptionProjects,
+  useUnsubscribe,
+  useUnsubscribeView,
+  useUpdatePreferences,
+} from "./api.ts";
+import { ConsentNote } from "./components/consent-note.tsx";
+import { ImportPanel } from "./components/import-panel.tsx";
+import { SubscribeForm } from "./components/subscribe-form.tsx";
+import { SubscribersTable } from "./components/subscribers-table.tsx";
+import { TopicsPicker } from "./components/topics-picker.tsx";
+import { FREQUENCY_SHORT, FREQUENCY_WORD, INTEREST_SHORT, STATUS_LOOK, SYSTEM_WORD } from "./words.ts";
+
+/** One column on the paper, for the pages a visitor reaches from a form or an e-mail. */
+function PublicSheet({ label, title, lead, children }: { label: string; title: string; lead?: ReactNode; children: ReactNode }) {
+  return (
+    <div className="mx-auto w-full max-w-2xl px-4 py-8 sm:py-12">
+      <p className="label-caps">{label}</p>
+      <h1 className="mt-1 text-2xl font-semibold tracking-tight sm:text-3xl">{title}</h1>
+      {lead ? <p className="mt-2 text-ink-soft">{lead}</p> : null}
+      <div className="mt-6 border border-rule bg-sheet p-4 sm:p-6">{children}</div>
+    </div>
+  );
+}
+
+function LinkProblem({ error }: { error: Error }) {
+  const code = error instanceof ApiError ? error.code : "";
+  return (
+    <Notice tone="error" title={code === "token_expired" ? "This link has expired" : "This link cannot be used"}>
+      {error.message}{" "}
+      <Link to="/subscribe" className="underline underline-offset-4">
+        Subscribe again
+      </Link>
+    </Notice>
+  );
+}
+
+function SubscribeFor({ slug }: { slug: string }) {
+  const options = useSubscriptionOptions(slug);
+  if (options.isPending) return <Spinner />;
+  if (options.isError) return <Notice tone="error">{options.error.message}</Notice>;
+  return <SubscribeForm key={slug} options={options.data} />;
+}
+
+/** /projects/:slug/subscribe */
+export function ProjectSubscribePage() {
+  const { slug = "" } = useParams();
+  const options = useSubscriptionOptions(slug);
+  return (
+    <PublicSheet label="Progress by e-mail" title={options.data ? `Follow ${options.data.project.name}` : "Follow this build"} lead="Progress e-mails from the site: what was built, commissioned and moved on the programme. Nothing is sent until you confirm.">
+      <SubscribeFor slug={slug} />
+    </PublicSheet>
+  );
+}
+
+/** /subscribe — the same form, with the project to choose. */
+export function SubscribePage() {
+  const projects = useSubscriptionProjects();
+  const [slug, setSlug] = useState("");
+  useEffect(() => {
+    if (!slug && projects.data?.[0]) setSlug(projects.data[0].slug);
+  }, [projects.data, slug]);
+  return (
+    <PublicSheet label="Progress by e-mail" title="Subscribe to progress e-mails" lead="Choose a build, what you follow and how often. Nothing is sent until you confirm from the e-mail we send.">
+      {projects.isPending ? (
+        <Spinner />
+      ) : projects.isError ? (
+        <Notice tone="error">{projects.error.message}</Notice>
+      ) : (
+        <div className="flex flex-col gap-4">
+          {projects.data.length > 1 ? (
+            <SelectField label="Build" options={projects.data.map((p) => ({ value: p.slug, label: p.name }))} value={slug} onChange={(e) => setSlug(e.target.value)} />
+          ) : null}
+          {slug ? <SubscribeFor slug={slug} /> : <p className="text-ink-soft">No builds are published yet.</p>}
+        </div>
+      )}
+    </PublicSheet>
+  );
+}
+
+/**
+ * /subscriptions/confirm/:token — opening the page changes nothing (mail scanners open
+ * links); only the button confirms.
+ */
+export function ConfirmSubscriptionPage() {
+  const { token = "" } = useParams();
+  const view = useConfirmation(token);
+  const confirm = useConfirm(token);
+  if (view.isPending) return <Spinner label="Opening your confirmation" />;
+  if (view.isError)
+    return (
+      <PublicSheet label="Subscription" title="Confirm your subscription">
+        <LinkProblem error={view.error} />
+      </PublicSheet>
+    );
+  const v = view.data;
+  if (confirm.isSuccess) {
+    return (
+      <PublicSheet label={v.project.name} title="Subscription confirmed">
+        <Notice title="You are subscribed">
+          Progress e-mails about {v.project.name} will go to {v.email}. Every e-mail carries a link to change your choices or leave.
+        </Notice>
+        <p className="mt-4">
+          <Link to={confirm.data.preferencesPath} className="font-medium text-accent underline underline-offset-4">
+            Choose topics and frequency
+          </Link>
+        </p>
+      </PublicSheet>
+    );
+  }
+  if (v.status !== "pending") {
+    return (
+      <PublicSheet label={v.project.name} title="Confirm your subscription">
+        <Notice title={v.status === "confirmed" ? "Already confirmed" : "This link is no longer in use"}>
+          {v.status === "confirmed" ? `${v.email} is already subscribed. Use the links in our e-mails to change your choices.` : "Subscribe again to receive a new confirmation link."}
+        </Notice>
+      </PublicSheet>
+    );
+  }
+  return (
+    <PublicSheet label={v.project.name} title="Confirm your subscription" lead={`Hello ${v.name}: one step left to receive progress e-mails about ${v.project.name} at ${v.email}.`}>
+      <div className="flex flex-col gap-4">
+        <ConsentNote consent={v.consent} />
+        {confirm.isError ? <LinkProblem error={confirm.error} /> : null}
+        <Button variant="primary" busy={confirm.isPending} onClick={() => confirm.mutate()}>
+          Confirm subscription
+        </Button>
+        <p className="text-sm text-ink-soft">Not you? Close this page: nothing is sent, and the address is forgotten after 30 days.</p>
+      </div>
+    </PublicSheet>
+  );
+}
+
+type PrefValues = z.input<typeof PreferencesInputSchema>;
+const frequencyOptions = FrequencySchema.options.map((v) => ({ value: v, label: FREQUENCY_WORD[v] }));
+
+function PreferencesForm({ token, view }: { token: string; view: PreferencesView }) {
+  const update = useUpdatePreferences(token);
+  const leave = useLeaveFromPreferences(token);
+  const form = useForm<PrefValues>({
+    resolver: zodResolver(PreferencesInputSchema),
+    defaultValues: { name: view.name, organisation: view.organisation ?? "", frequency: view.frequency, topics: view.topics },
+  });
+  const onSubmit = form.handleSubmit(async (v) => {
+    try {
+      await update.mutateAsync(v);
+      toast.success("Preferences saved");
+    } catch (e) {
+      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { frequency: e.message }, form.setError);
+    }
+  });
+  const errors = form.formState.errors;
+  return (
+    <div className="flex flex-col gap-6">
+      <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
+        <TextField label="Your name" autoComplete="name" error={errors.name?.message} {...form.register("name")} />
+        <TextField label="Organisation (optional)" autoComplete="organization" error={errors.organisation?.message} {...form.register("organisation")} />
+        <SelectField label="How often" options={frequencyOptions} error={errors.frequency?.message} {...form.register("frequency")} />
+        <Controller
+          control={form.control}
+          name="topics"
+          render={({ field, fieldState }) => <TopicsPicker value={field.value ?? null} onChange={field.onChange} areas={view.options.areas} systems={view.options.systems} error={fieldState.error?.message} />}
+        />
+        <Button type="submit" variant="primary" busy={update.isPending}>
+          Save preferences
+        </Button>
+      </form>
+      <div className="border-t border-rule pt-4">
+        <h2 className="font-semibold">Leave</h2>
+        <p className="mt-1 text-sm text-ink-soft">Stop every e-mail about {view.project.name} to {view.email}.</p>
+        <Button className="mt-3" variant="danger" busy={leave.isPending} onClick={() => leave.mutate()}>
+          Unsubscribe
+        </Button>
+      </div>
+    </div>
+  );
+}
+
+/** /subscriptions/preferences/:token — no sign-in: the signed link is the key. */
+export function PreferencesPage() {
+  const { token = "" } = useParams();
+  const view = usePreferences(token);
+  if (view.isPending) return <Spinner label="Opening your preferences" />;
+  if (view.isError)
+    return (
+      <PublicSheet label="Subscription" title="Your preferences">
+        <LinkProblem error={view.error} />
+      </PublicSheet>
+    );
+  const v = view.data;
+  const look = STATUS_LOOK[v.status];
+  return (
+    <PublicSheet label={v.project.name} title="Your preferences" lead={`${v.email} · ${INTEREST_SHORT[v.interest]}`}>
+      <p className={`mb-4 inline-flex items-center gap-1 text-sm font-medium ${look.className}`}>
+        <span aria-hidden>{look.glyph}</span> {look.word}
+      </p>
+      {v.status === "confirmed" ? (
+        <PreferencesForm key={`${v.frequency}-${JSON.stringify(v.topics)}`} token={token} view={v} />
+      ) : (
+        <Notice title="You are not subscribed">
+          No e-mail about {v.project.name} goes to this address.{" "}
+          <Link to={`/projects/${v.project.slug}/subscribe`} className="underline underline-offset-4">
+            Subscribe again
+          </Link>
+        </Notice>
+      )}
+    </PublicSheet>
+  );
+}
+
+/** /u/:token — what a person sees opening the one-click link; the mail client's POST needs no page. */
+export function OneClickUnsubscribePage() {
+  const { token = "" } = useParams();
+  const view = useUnsubscribeView(token);
+  const leave = useUnsubscribe(token);
+  if (view.isPending) return <Spinner />;
+  if (view.isError)
+    return (
+      <PublicSheet label="Subscription" title="Unsubscribe">
+        <LinkProblem error={view.error} />
+      </PublicSheet>
+    );
+  const v = view.data;
+  const gone = leave.isSuccess || v.status === "unsubscribed";
+  return (
+    <PublicSheet label={v.project.name} title={gone ? "You are unsubscribed" : "Unsubscribe"}>
+      {gone ? (
+        <Notice title="Done">
+          No more e-mail about {v.project.name} will be sent to {v.email}.{" "}
+          <Link to={`/projects/${v.project.slug}/subscribe`} className="underline underline-offset-4">
+            Subscribe again
+          </Link>
+        </Notice>
+      ) : (
+        <div className="flex flex-col gap-4">
+          <p>
+            Stop progress e-mails about {v.project.name} to <span className="font-medium">{v.email}</span>?
+          </p>
+          <Button variant="primary" busy={leave.isPending} onClick={() => leave.mutate()}>
+            Unsubscribe
+          </Button>
+        </div>
+      )}
+    </PublicSheet>
+  );
+}
+
+type DigestValues = z.input<typeof InvestorDigestInputSchema>;
+
+function InvestorDigestForm({ setting }: { setting: InvestorDigestSetting }) {
+  const save = useSetInvestorDigest();
+  const form = useForm<DigestValues>({
+    resolver: zodResolver(InvestorDigestInputSchema),
+    defaultValues: { enabled: setting.enabled, frequency: setting.frequency, topics: setting.topics },
+  });
+  const onSubmit = form.handleSubmit(async (v) => {
+    try {
+      await save.mutateAsync({ slug: setting.project.slug, ...v });
+      toast.success(v.enabled ? "Digest saved" : "Digest turned off");
+    } catch (e) {
+      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { frequency: e.message }, form.setError);
+    }
+  });
+  return (
+    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
+      <label className="flex items-center gap-2 text-sm font-medium">
+        <input type="checkbox" className="size-4 accent-[var(--color-accent)]" {...form.register("enabled")} />
+        Send me the investor digest of {setting.project.name}
+      </label>
+      <SelectField label="How often" options={frequencyOptions} error={form.formState.errors.frequency?.message} {...form.register("frequency")} />
+      <Controller
+        control={form.control}
+        name="topics"
+        render={({ field, fieldState }) => <TopicsPicker value={field.value ?? null} onChange={field.onChange} areas={setting.options.areas} systems={setting.options.systems} error={fieldState.error?.message} />}
+      />
+      <p className="text-xs text-ink-faint">{CONSENT.text}</p>
+      <div>
+        <Button type="submit" variant="primary" busy={save.isPending}>
+          Save digest
+        </Button>
+      </div>
+    </form>
+  );
+}
+
+/** /investors/digest — an investor account's own digest, with the investor audience. */
+export function InvestorDigestPage() {
+  const settings = useInvestorDigest();
+  const notInvestor = settings.error instanceof ApiError && settings.error.status === 403;
+  return (
+    <>
+      <PageHeader sheet="Investor room · Digest" title="Your digest" description="A digest by e-mail of what changed on each build, including investor-only updates and programme detail." />
+      {notInvestor ? (
+        <Notice title="For investor accounts">Digest settings belong to investor accounts. Staff see every digest in the site office.</Notice>
+      ) : settings.isPending ? (
+        <Spinner />
+      ) : settings.isError ? (
+        <Notice tone="error">{settings.error.message}</Notice>
+      ) : (
+        <div className="flex flex-col gap-6">
+          {settings.data.map((s) => (
+            <Sheet key={s.project.slug} label={s.status ? STATUS_LOOK[s.status].word : "Not receiving"} title={s.project.name}>
+              <InvestorDigestForm key={`${s.status}-${s.frequency}-${JSON.stringify(s.topics)}`} setting={s} />
+            </Sheet>
+          ))}
+        </div>
+      )}
+    </>
+  );
+}
+
+const any = (label: string) => ({ value: "", label });
+
+/** /office/subscribers — marketing's list: filters, the table, import and export. */
+export function SubscribersPage() {
+  const projects = useSubscriptionProjects();
+  const [filters, setFilters] = useState<SubscriberListQuery>({});
+  const projectSlug = filters.projectSlug ?? projects.data?.[0]?.slug ?? "";
+  const query: SubscriberListQuery = { ...filters, projectSlug: projectSlug || undefined };
+  const options = useSubscriptionOptions(projectSlug);
+  const list = useSubscribers(query);
+  const set = (patch: Partial<SubscriberListQuery>) => setFilters((f) => ({ ...f, ...patch }));
+  const project = projects.data?.find((p) => p.slug === projectSlug);
+  const topicOptions = [
+    any("Any topic"),
+    ...(options.data?.areas ?? []).map((a) => ({ value: `area:${a}`, label: a })),
+    ...(options.data?.systems ?? []).map((s) => ({ value: `system:${s}`, label: SYSTEM_WORD[s] })),
+  ];
+  return (
+    <>
+      <PageHeader
+        sheet="Site office · Subscribers"
+        title="Subscribers"
+        description="Who receives progress e-mails, on what consent. Unconfirmed addresses receive nothing but their confirmation and are forgotten after 30 days."
+        actions={
+          <a className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper" href={subscribersCsvUrl(query)} download>
+            Export CSV
+          </a>
+        }
+      />
+      <div className="flex flex-col gap-6">
+        <Sheet label="Filter" title="Find subscribers">
+          <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-3">
+            {projects.data && projects.data.length > 1 ? (
+              <SelectField label="Build" value={projectSlug} onChange={(e) => set({ projectSlug: e.target.value, topic: undefined })} options={projects.data.map((p) => ({ value: p.slug, label: p.name }))} />
+            ) : null}
+            <SelectField label="Interest" value={filters.interest ?? ""} onChange={(e) => set({ interest: (e.target.value || undefined) as SubscriberListQuery["interest"] })} options={[any("Any interest"), ...InterestSchema.options.map((v) => ({ value: v, label: INTEREST_SHORT[v] }))]} />
+            <SelectField label="Status" value={filters.status ?? ""} onChange={(e) => set({ status: (e.target.value || undefined) as SubscriberListQuery["status"] })} options={[any("Any status"), ...SubscriberStatusSchema.options.map((v) => ({ value: v, label: STATUS_LOOK[v].word }))]} />
+            <SelectField label="How often" value={filters.frequency ?? ""} onChange={(e) => set({ frequency: (e.target.value || undefined) as SubscriberListQuery["frequency"] })} options={[any("Any frequency"), ...FrequencySchema.options.map((v) => ({ value: v, label: FREQUENCY_SHORT[v] }))]} />
+            <SelectField label="Topic" value={filters.topic ?? ""} onChange={(e) => set({ topic: (e.target.value || undefined) as SubscriberListQuery["topic"] })} options={topicOptions} hint="Who would receive it: its followers and those following everything." />
+            <TextField label="Name, e-mail or organisation" type="search" value={filters.q ?? ""} onChange={(e) => set({ q: e.target.value || undefined })} />
+          </div>
+        </Sheet>
+        <section aria-labelledby="subs-h">
+          <h2 id="subs-h" className="mb-2 text-lg font-semibold">
+            {list.data ? `${list.data.total} ${list.data.total === 1 ? "subscriber" : "subscribers"}${list.data.total > list.data.rows.length ? ` (the newest ${list.data.rows.length} shown; narrow the filters)` : ""}` : "Subscribers"}
+          </h2>
+          {list.isPending ? <Spinner /> : list.isError ? <Notice tone="error">{list.error.message}</Notice> : <SubscribersTable rows={list.data.rows} />}
+        </section>
+        {project ? (
+          <Sheet label="Import" title="Import from a CSV file">
+            <ImportPanel projectSlug={project.slug} projectName={project.name} />
+          </Sheet>
+        ) : null}
+      </div>
+    </>
+  );
+}

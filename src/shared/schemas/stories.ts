@@ -1,0 +1,98 @@
+import { z } from "zod";
+import { AudienceSchema, type Audience } from "./common.ts";
+import { ContentSlugSchema, type MediaPicture, type PostStatus, type PublishingProblem } from "./posts.ts";
+
+/**
+ * The HTTP contract of photo stories (server/stories ↔ src/features/stories and the public pages).
+ * Stories go through the same workflow as posts (`workflowStep` in posts.ts) and the same
+ * photo checks (alt text, cleared, not restricted). A then-and-now pair must show two different
+ * photos that both carry a capture time, taken on different calendar dates; the earlier one is
+ * `before`. Lists are JSON arrays (no paging: a project has a handful of stories).
+ */
+
+const Caption = z.string().trim().max(1000, "must be at most 1000 characters");
+const MediaId = z.number({ error: "must name a photo from the media library" }).int().positive();
+
+export const StoryItemInputSchema = z.discriminatedUnion("kind", [
+  z.strictObject({ kind: z.literal("photo"), mediaId: MediaId, caption: Caption.default("") }),
+  z
+    .strictObject({
+      kind: z.literal("pair"),
+      area: z.string().trim().min(1, "name the area both photos show").max(100),
+      beforeMediaId: MediaId,
+      afterMediaId: MediaId,
+      caption: Caption.default(""),
+    })
+    .refine((p) => p.beforeMediaId !== p.afterMediaId, { path: ["afterMediaId"], message: "must be a different photo from the before photo" }),
+]);
+export type StoryItemInput = z.infer<typeof StoryItemInputSchema>;
+
+const Items = z.array(StoryItemInputSchema).max(200, "a story holds at most 200 items");
+
+/** POST /api/projects/:slug/stories (marketing, lead, admin) → 201 `{ id, slug, status }`. */
+export const StoryCreateInputSchema = z.strictObject({
+  title: z.string({ error: "is required" }).trim().min(1, "is required").max(200, "must be at most 200 characters"),
+  intro: z.string().trim().max(4000, "must be at most 4000 characters").default(""),
+  audience: AudienceSchema,
+  slug: ContentSlugSchema.optional(),
+  items: Items.default([]),
+});
+export type StoryCreateInput = z.infer<typeof StoryCreateInputSchema>;
+
+/** PATCH /api/stories/:id: `items` replaces the whole list (order = array order). Stale `version` → 409. */
+export const StoryPatchInputSchema = z
+  .strictObject({
+    version: z.number().int().min(1).optional(),
+    title: z.string().trim().min(1, "is required").max(200, "must be at most 200 characters").optional(),
+    intro: z.string().trim().max(4000, "must be at most 4000 characters").optional(),
+    audience: AudienceSchema.optional(),
+    slug: ContentSlugSchema.optional(),
+    items: Items.optional(),
+  })
+  .refine((v) => Object.keys(v).some((k) => k !== "version"), { message: "change at least one field" });
+export type StoryPatchInput = z.infer<typeof StoryPatchInputSchema>;
+
+export const StorySlugParamsSchema = z.strictObject({
+  slug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address").max(100),
+  storySlug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid address").max(120),
+});
+
+/**
+ * One item as read. A picture is null only for staff, when the photo is missing or still
+ * processing; public readers get only items whose photos can be shown.
+ */
+export type StoryItem =
+  | { kind: "photo"; mediaId: number; media: MediaPicture | null; caption: string }
+  | {
+      kind: "pair";
+      area: string;
+      beforeMediaId: number;
+      afterMediaId: number;
+      before: MediaPicture | null;
+      after: MediaPicture | null;
+      caption: string;
+    };
+
+/** A row of GET /api/projects/:slug/stories. */
+export interface StorySummary {
+  id: number;
+  slug: string;
+  title: string;
+  intro: string;
+  audience: Audience;
+  status: PostStatus;
+  publishedAt: string | null;
+  cover: MediaPicture | null;
+  itemCount: number;
+  authorName: string;
+  updatedAt: string;
+}
+
+/** GET /api/projects/:slug/stories/:storySlug and GET /api/stories/:id. `version`, `reviewComment`, `problems` for staff only. */
+export interface StoryDetail extends StorySummary {
+  projectSlug: string;
+  items: StoryItem[];
+  version?: number;
+  reviewComment?: string | null;
+  problems?: PublishingProblem[];
+}

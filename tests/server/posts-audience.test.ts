@@ -1,0 +1,143 @@
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { newClient, startTestApp, type TestApp } from "../helpers/app.ts";
+import { createPhoto, createProject, doc, image, parseXml, postInput, signInAll, text } from "./posts-fixtures.ts";
+
+let t: TestApp;
+let as: Awaited<ReturnType<typeof signInAll>>;
+let project: { id: number; slug: string };
+let investorPost: { id: number; slug: string; urls: string[] };
+let publicPost: { id: number; slug: string; urls: string[] };
+
+/** One public and one investor-only post, each with its own cover and inline photo, plus a draft. */
+beforeAll(async () => {
+  t = await startTestApp();
+  as = await signInAll(t);
+  project = await createProject(t);
+  const make = async (audience: string, title: string, word: string) => {
+    const cover = await createPhoto(t, project.id);
+    const inline = await createPhoto(t, project.id);
+    const res = await as.lead.agent
+      .post(`/api/projects/${project.slug}/posts`)
+      .set("X-CSRF-Token", as.lead.csrf)
+      .send(postInput(cover.id, { audience, title, body: doc(text(`The ${word} report for this month.`), image(inline.id)) }))
+      .expect(201);
+    await as.lead.agent.post(`/api/posts/${res.body.id}/publish`).set("X-CSRF-Token", as.lead.csrf).expect(200);
+    return { id: res.body.id as number, slug: res.body.slug as string, urls: [...cover.urls, ...inline.urls] };
+  };
+  publicPost = await make("public", "Cooling plant progress", "chillerplant");
+  investorPost = await make("investor", "Drawdown and contingency", "chillerplant");
+  await as.marketing.agent.post(`/api/projects/${project.slug}/posts`).set("X-CSRF-Token", as.marketing.csrf).send(postInput(null, { title: "Draft about chillerplant" })).expect(201);
+});
+afterAll(async () => {
+  await t.close();
+});
+
+describe("an investor-only update is never shown to a visitor", () => {
+  it("not in the list", async () => {
+    const res = await (await newClient(t)).agent.get(`/api/projects/${project.slug}/posts`).expect(200);
+    expect(res.body.map((p: { id: number }) => p.id)).toEqual([publicPost.id]);
+    expect(res.headers["x-total-count"]).toBe("1");
+  });
+
+  it("not as a page (404, as for something that does not exist)", async () => {
+    const res = await (await newClient(t)).agent.get(`/api/projects/${project.slug}/posts/${investorPost.slug}`);
+    expect(res.status).toBe(404);
+    expect(res.body.error.code).toBe("not_found");
+  });
+
+  it("not through an old address", async () => {
+    await as.lead.agent.patch(`/api/posts/${investorPost.id}`).set("X-CSRF-Token", as.lead.csrf).send({ slug: `${investorPost.slug}-moved` }).expect(200);
+    const visitor = await newClient(t);
+    expect((await visitor.agent.get(`/api/projects/${project.slug}/posts/${investorPost.slug}`).redirects(0)).status).toBe(404);
+    expect((await visitor.agent.get(`/projects/${project.slug}/updates/${investorPost.slug}`).redirects(0)).status).toBe(200);
+    expect((await as.investor.agent.get(`/api/projects/${project.slug}/posts/${investorPost.slug}`).redirects(0)).status).toBe(301);
+    await as.lead.agent.patch(`/api/posts/${investorPost.id}`).set("X-CSRF-Token", as.lead.csrf).send({ slug: investorPost.slug }).expect(200);
+  });
+
+  it("not in search results", async () => {
+    const res = await (await newClient(t)).agent.get(`/api/projects/${project.slug}/posts?q=chillerplant`).expect(200);
+    expect(res.body.map((p: { id: number }) => p.id)).toEqual([publicPost.id]);
+  });
+
+  it("not with a status or audience filter", async () => {
+    const visitor = await newClient(t);
+    expect((await visitor.agent.get(`/api/projects/${project.slug}/posts?audience=investor`).expect(200)).body).toEqual([]);
+    const drafts = await visitor.agent.get(`/api/projects/${project.slug}/posts?status=draft`).expect(200);
+    expect(drafts.body.map((p: { id: number }) => p.id)).toEqual([publicPost.id]);
+  });
+
+  it("not in the feed, even when an investor fetches it", async () => {
+    for (const client of [await newClient(t), as.investor]) {
+      const xml = await parseXml((await client.agent.get(`/feed/${project.slug}.atom`).expect(200)).text);
+      const titles = Array.from(xml.getElementsByTagNameNS("http://www.w3.org/2005/Atom", "entry")).map((e) => e.getElementsByTagNameNS("http://www.w3.org/2005/Atom", "title")[0]!.textContent);
+      expect(titles).toEqual(["Cooling plant progress"]);
+    }
+  });
+
+  it("not in the sitemap", async () => {
+    const res = await (await newClient(t)).agent.get("/sitemap.xml").expect(200);
+    expect(res.text).toContain(`/projects/${project.slug}/updates/${publicPost.slug}<`);
+    expect(res.text).not.toContain(`/updates/${investorPost.slug}<`);
+  });
+
+  it("not through its photos' URLs (404 for visitors; the public post's photos answer)", async () => {
+    const visitor = await newClient(t);
+    for (const url of investorPost.urls) expect((await visitor.agent.get(url)).status, url).toBe(404);
+    for (const url of publicPost.urls) expect((await visitor.agent.get(url)).status, url).toBe(200);
+  });
+});
+
+describe("what a signed-in investor sees", () => {
+  it("investor updates in the same list, marked as such, and their pages and photos", async () => {
+    const list = await as.investor.agent.get(`/api/projects/${project.slug}/posts`).expect(200);
+    const byId = new Map(list.body.map((p: { id: number; audience: string }) => [p.id, p.audience]));
+    expect(byId.get(investorPost.id)).toBe("investor");
+    expect(byId.get(publicPost.id)).toBe("public");
+    expect(list.body).toHaveLength(2);
+    const page = await as.investor.agent.get(`/api/projects/${project.slug}/posts/${investorPost.slug}`).expect(200);
+    expect(page.body.audience).toBe("investor");
+    expect(page.body.body).toBeUndefined();
+    expect(page.body.revisions).toBeUndefined();
+    for (const url of investorPost.urls) expect((await as.investor.agent.get(url)).status, url).toBe(200);
+    const search = await as.investor.agent.get(`/api/projects/${project.slug}/posts?q=chillerplant`).expect(200);
+    expect(search.body).toHaveLength(2);
+  });
+
+  it("never drafts", async () => {
+    const list = await as.investor.agent.get(`/api/projects/${project.slug}/posts?status=draft`).expect(200);
+    expect(list.body.every((p: { status: string }) => p.status === "published")).toBe(true);
+  });
+});
+
+describe("staff", () => {
+  it("see every post in every state, filterable by status", async () => {
+    const all = await as.marketing.agent.get(`/api/projects/${project.slug}/posts`).expect(200);
+    expect(all.body).toHaveLength(3);
+    const drafts = await as.marketing.agent.get(`/api/projects/${project.slug}/posts?status=draft`).expect(200);
+    expect(drafts.body.map((p: { title: string }) => p.title)).toEqual(["Draft about chillerplant"]);
+  });
+});
+
+describe("withdrawing closes the door again", () => {
+  it("a withdrawn post and its photos disappear for visitors", async () => {
+    const cover = await createPhoto(t, project.id);
+    const res = await as.lead.agent.post(`/api/projects/${project.slug}/posts`).set("X-CSRF-Token", as.lead.csrf).send(postInput(cover.id, { title: "Short-lived" })).expect(201);
+    await as.lead.agent.post(`/api/posts/${res.body.id}/publish`).set("X-CSRF-Token", as.lead.csrf).expect(200);
+    const visitor = await newClient(t);
+    await visitor.agent.get(cover.urls[0]!).expect(200);
+    await as.lead.agent.post(`/api/posts/${res.body.id}/withdraw`).set("X-CSRF-Token", as.lead.csrf).expect(200);
+    await visitor.agent.get(`/api/projects/${project.slug}/posts/${res.body.slug}`).expect(404);
+    expect((await visitor.agent.get(cover.urls[0]!)).status).toBe(404);
+  });
+
+  it("changing a published post's audience to investors hides it and its photos from visitors at once", async () => {
+    const cover = await createPhoto(t, project.id);
+    const res = await as.lead.agent.post(`/api/projects/${project.slug}/posts`).set("X-CSRF-Token", as.lead.csrf).send(postInput(cover.id, { title: "Audience moves" })).expect(201);
+    await as.lead.agent.post(`/api/posts/${res.body.id}/publish`).set("X-CSRF-Token", as.lead.csrf).expect(200);
+    await as.lead.agent.patch(`/api/posts/${res.body.id}`).set("X-CSRF-Token", as.lead.csrf).send({ audience: "investor" }).expect(200);
+    const visitor = await newClient(t);
+    await visitor.agent.get(`/api/projects/${project.slug}/posts/${res.body.slug}`).expect(404);
+    expect((await visitor.agent.get(cover.urls[0]!)).status).toBe(404);
+    expect((await as.investor.agent.get(cover.urls[0]!)).status).toBe(200);
+  });
+});
