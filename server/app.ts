@@ -44,6 +44,10 @@ import { storiesRouter } from "./stories/stories.router.ts";
 import { createSiteService, injectHead, type SiteService } from "./site/site.service.ts";
 import { siteRouter } from "./site/site.router.ts";
 import { createPublicCache } from "./site/public-cache.ts";
+import { createDigestsService, type DigestsService } from "./digests/digests.service.ts";
+import { createDigestJobs, type DigestJobs } from "./digests/digests.jobs.ts";
+import { createDigestScheduler, type DigestScheduler } from "./digests/digests.schedule.ts";
+import { digestsRouter } from "./digests/digests.router.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 
@@ -73,6 +77,12 @@ export interface PlumblineApp {
   posts: PostsService;
   /** Scheduled publication: server/index.ts starts and stops it. */
   publishing: PublishingTicker;
+  /** Digests: runs, previews and web copies. */
+  digests: DigestsService;
+  /** Digest sending: server/index.ts starts and stops it; tests drain it. */
+  digestJobs: DigestJobs;
+  /** Weekly, monthly and as-it-happens runs: server/index.ts starts and stops it. */
+  digestSchedule: DigestScheduler;
 }
 
 /** Builds the Express app. No listening and no side effects at import. */
@@ -127,6 +137,21 @@ export function createApp(deps: AppDeps): PlumblineApp {
   const site = createSiteService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
   // Building the app publishes nothing: server/index.ts starts the ticker.
   const publishing = createPublishingTicker(posts, logger);
+  const digests = createDigestsService({
+    db,
+    logger,
+    mailer,
+    projects,
+    programme,
+    media,
+    subscribers,
+    publicUrl: config.PUBLIC_URL,
+    tokenSecret: config.TOKEN_SECRET,
+    unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
+  });
+  // Building the app sends no digests: server/index.ts (or digest-worker.ts) starts the workers.
+  const digestJobs = createDigestJobs({ db, mailer, logger, digests, subscribers }, { ratePerSecond: config.DIGEST_SEND_RATE_PER_SECOND, leaseMs: config.DIGEST_LEASE_SECONDS * 1000 });
+  const digestSchedule = createDigestScheduler({ db, projects, digests, logger });
 
   app.use(
     pinoHttp({
@@ -147,7 +172,8 @@ export function createApp(deps: AppDeps): PlumblineApp {
           "default-src": ["'self'"],
           "script-src": ["'self'"],
           "style-src": ["'self'", "'unsafe-inline'"],
-          "img-src": ["'self'", "data:", "blob:"],
+          // PUBLIC_URL's origin too: e-mail previews (digests, outbox) carry absolute image URLs.
+          "img-src": ["'self'", "data:", "blob:", new URL(config.PUBLIC_URL).origin],
           "font-src": ["'self'", "data:"],
           "connect-src": ["'self'"],
           "object-src": ["'none'"],
@@ -229,6 +255,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
   api.use(mediaRouter(media, mediaUploads));
   api.use(postsRouter(posts));
   api.use(storiesRouter(stories));
+  api.use(digestsRouter(digests));
   api.use(apiNotFound);
   app.use("/api", api);
   // RFC 8058 one-click unsubscribe (POST); a GET of the same path is the client's page.
@@ -251,9 +278,13 @@ export function createApp(deps: AppDeps): PlumblineApp {
     subscribers,
     posts,
     publishing,
+    digests,
+    digestJobs,
+    digestSchedule,
     close: () => {
       sessions.stopSweeping();
       subscribers.stopWorkers();
+      digestSchedule.stop();
     },
   };
 }

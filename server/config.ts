@@ -52,6 +52,12 @@ const ConfigSchema = z.object({
   SUBSCRIBE_LIMIT_WINDOW_MINUTES: z.coerce.number().int().positive().default(60),
   ENQUIRY_LIMIT_PER_IP: z.coerce.number().int().positive().default(10),
   ENQUIRY_LIMIT_WINDOW_MINUTES: z.coerce.number().int().positive().default(60),
+  // Digest messages per second per process (a hosted provider's sending limit); 0 = as fast as the relay accepts.
+  DIGEST_SEND_RATE_PER_SECOND: z.coerce.number().min(0).max(10_000).default(0),
+  // Digest sending in this process: 0 leaves it to digest-worker processes (the scheduler still runs).
+  DIGEST_WORKERS: z.coerce.number().int().min(0).max(1).default(1),
+  // How long a worker holds claimed deliveries; a killed worker's deliveries are claimed again after it.
+  DIGEST_LEASE_SECONDS: z.coerce.number().int().min(1).max(3600).default(120),
 });
 
 export type Config = Readonly<

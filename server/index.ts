@@ -43,6 +43,9 @@ const server = createServer(plumbline.app);
 await plumbline.mediaJobs.start();
 // Scheduled posts: every process may tick; the claim is safe across processes.
 plumbline.publishing.start();
+// Digests: every process may create due runs (one per period); sending is a shared queue.
+plumbline.digestSchedule.start();
+if (config.DIGEST_WORKERS > 0) plumbline.digestJobs.start();
 server.listen(config.PORT, config.HOST, () => {
   const { port } = server.address() as AddressInfo;
   logger.info({ port }, "Plumbline listening");
@@ -78,6 +81,7 @@ async function shutdown(signal: string) {
   });
   await plumbline.mediaJobs.stop();
   await plumbline.publishing.stop();
+  await plumbline.digestJobs.stop();
   plumbline.close();
   mailer.close();
   await sink?.close();

@@ -535,3 +535,19 @@ export async function countMediaOfProject(q: Q, projectId: number): Promise<numb
   const r = await q("media_items").where({ project_id: projectId }).count({ n: "*" }).first();
   return Number(r?.n ?? 0);
 }
+
+// Gallery
+
+/**
+ * Photos of a project shown in its public gallery: cleared, ready, and used in published content
+ * of one of the given audiences (the same rule that lets their derivatives be served).
+ */
+export async function listGalleryMedia(q: Q, projectId: number, audiences: readonly Audience[]): Promise<Array<{ id: number; takenAt: string | null; createdAt: Date }>> {
+  const rows = (await q("media_items as i")
+    .where({ "i.project_id": projectId, "i.sensitivity": "cleared", "i.status": "ready" })
+    .whereExists(q("media_usages as u").whereRaw("u.media_id = i.id").andWhere("u.published", true).whereIn("u.audience", [...audiences]))
+    .orderBy([{ column: "i.taken_at", order: "desc" }, { column: "i.id", order: "desc" }])
+    .limit(500)
+    .select("i.id", "i.taken_at", "i.created_at")) as Array<{ id: number; taken_at: string | null; created_at: Date }>;
+  return rows.map((r) => ({ id: Number(r.id), takenAt: r.taken_at ?? null, createdAt: r.created_at }));
+}

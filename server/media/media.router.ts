@@ -1,7 +1,8 @@
 import { Router, type RequestHandler } from "express";
 import { MulterError } from "multer";
 import { IdParamSchema } from "#shared/schemas/common.ts";
-import { BulkTagInputSchema, MediaListQuerySchema, MediaPatchInputSchema, ProjectQuerySchema, ReviewInputSchema } from "#shared/schemas/media.ts";
+import { SlugParamSchema } from "#shared/schemas/projects.ts";
+import { BulkTagInputSchema, GalleryQuerySchema, MediaListQuerySchema, MediaPatchInputSchema, ProjectQuerySchema, ReviewInputSchema } from "#shared/schemas/media.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireRole } from "../core/auth.ts";
 import type { MediaService } from "./media.service.ts";
@@ -69,6 +70,15 @@ export function mediaRouter(media: MediaService, uploads: UploadArea): Router {
     const { project } = ProjectQuerySchema.parse({ ...req.query });
     res.json(await media.reviewQueue(project));
   });
+  // The public gallery: what a visitor may see, or an investor's wider view when signed in.
+  r.get("/projects/:slug/gallery", async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    const filters = GalleryQuerySchema.parse(req.query);
+    const audiences = req.user ? (["public", "investor"] as const) : (["public"] as const);
+    res.set("Cache-Control", req.user ? "private, no-cache" : "public, max-age=60");
+    res.json(await media.gallery(slug, [...audiences], filters));
+  });
+
   r.get("/media/vocabulary", staff(), async (req, res) => {
     const { project } = ProjectQuerySchema.parse({ ...req.query });
     res.json(await media.vocabulary(project));

@@ -5,6 +5,9 @@ import type { Audience } from "#shared/schemas/common.ts";
 import {
   SECURITY_SYSTEM,
   type BulkTagInput,
+  type Gallery,
+  type GalleryPhoto,
+  type GalleryQuery,
   type MediaItem,
   type MediaListQuery,
   type MediaListResponse,
@@ -61,6 +64,7 @@ import {
   requeueMedia,
   setStagedKeys,
   tagsOf,
+  listGalleryMedia,
   updateMedia,
   variantsOf,
   type ClaimedJob,
@@ -530,6 +534,32 @@ export function createMediaService(deps: { db: Db; storage: MediaStorage; upload
     },
 
     /** What rendering a `<picture>` needs, for each existing photo asked for. */
+    /**
+     * The project's gallery for a reader of the given audiences: cleared photos used in published
+     * content they may see, newest capture first, filtered by area, system and month.
+     */
+    async gallery(slug: string, audiences: Audience[], f: GalleryQuery): Promise<Gallery> {
+      const project = await projects.get(slug);
+      const rows = await listGalleryMedia(db, project.id, audiences);
+      const ids = rows.map((r) => r.id);
+      const [tags, pictures] = await Promise.all([tagsOf(db, ids), this.pictureFor(ids)]);
+      const all: GalleryPhoto[] = [];
+      for (const r of rows) {
+        const picture = pictures.get(r.id);
+        if (!picture) continue;
+        const t = tags.get(r.id);
+        const month = r.takenAt && /^\d{4}-\d{2}/.test(r.takenAt) ? r.takenAt.slice(0, 7) : r.createdAt.toISOString().slice(0, 7);
+        all.push({ ...picture, areas: t?.areas ?? [], systems: t?.systems ?? [], month });
+      }
+      const uniq = <T extends string>(xs: T[]) => [...new Set(xs)].sort();
+      return {
+        items: all.filter((p) => (!f.area || p.areas.includes(f.area)) && (!f.system || p.systems.includes(f.system)) && (!f.month || p.month === f.month)),
+        areas: uniq(all.flatMap((p) => p.areas)),
+        systems: uniq(all.flatMap((p) => p.systems)),
+        months: uniq(all.flatMap((p) => (p.month ? [p.month] : []))).reverse(),
+      };
+    },
+
     async pictureFor(ids: number[]): Promise<Map<number, MediaPicture>> {
       const records = await findMediaByIds(db, ids);
       const variants = await variantsOf(db, records.map((r) => r.id));

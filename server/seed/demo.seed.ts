@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import { hashPassword, verifyPassword } from "../auth/passwords.ts";
 import { DEMO_USERS } from "./demo-users.ts";
 import { seedSubscribers } from "./subscribers.seed.ts";
+import { seedDigests } from "./digests.seed.ts";
 import { seedProgramme } from "./programme.seed.ts";
 import { seedMedia } from "./media.seed.ts";
 import { seedPosts } from "./posts.seed.ts";
@@ -59,5 +60,6 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
   // Updates and the photo story (after the photos and the programme they show).
   created.push(...(await seedPosts(db, DEMO_PROJECT_SLUG)).created);
   created.push(...(await seedSubscribers(db, DEMO_PROJECT_SLUG)).created);
+  created.push(...(await seedDigests(db, DEMO_PROJECT_SLUG)).created);
   return { created };
 }

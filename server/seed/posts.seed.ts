@@ -184,6 +184,14 @@ const IN_REVIEW: SeedPost = {
   paragraphs: ["Second-fix lighting is complete in the corridor that leads to Hall 2A. (Waiting for the lead: the corridor photo still needs its alt text.)"],
 };
 
+/** The titles the demo's updates carry, by what the seed does with them. */
+export const DEMO_UPDATE_TITLES = {
+  published: POSTS.map((p) => p.title),
+  investorOnly: POSTS.filter((p) => p.audience === "investor").map((p) => p.title),
+  scheduled: SCHEDULED.title,
+  inReview: IN_REVIEW.title,
+};
+
 const paragraph = (s: string): RichTextNode => ({ type: "paragraph", content: [{ type: "text", text: s }] });
 
 /**

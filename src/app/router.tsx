@@ -54,6 +54,7 @@ const routes: RouteObject[] = [
       { path: "outbox/:id", lazy: async () => ({ Component: (await import("../features/outbox/routes.tsx")).OutboxMessagePage }) },
       { path: "subscribers", lazy: async () => ({ Component: (await import("../features/subscribers/routes.tsx")).SubscribersPage }) },
       { path: "enquiries", lazy: async () => ({ Component: (await import("../features/enquiries/routes.tsx")).EnquiriesPage }) },
+      { path: "digests", lazy: async () => ({ Component: (await import("../features/digests/routes.tsx")).DigestsPage }) },
       { path: "users", lazy: async () => ({ Component: (await import("./pages/admin-pages.tsx")).AdminUsersPage }) },
       { path: "audit", lazy: async () => ({ Component: (await import("./pages/admin-pages.tsx")).AdminAuditPage }) },
       { path: "*", element: <NotFoundPage /> },

@@ -1,4 +1,4 @@
-import { fireEvent, render } from "@testing-library/react";
+import { fireEvent, render, waitFor } from "@testing-library/react";
 import { describe, expect, it } from "vitest";
 import { Picture, srcSetOf, type PictureData } from "../../src/components/ui/picture.tsx";
 
@@ -33,7 +33,7 @@ describe("Picture", () => {
     expect(img.getAttribute("src")).toBe("/media/v/h1024-1024w.jpg");
   });
 
-  it("sets the intrinsic width and height (so nothing shifts), loads lazily below the fold and paints the placeholder until loaded", () => {
+  it("sets the intrinsic width and height (so nothing shifts), loads lazily below the fold and paints the placeholder until loaded", async () => {
     const { container } = render(<Picture picture={photo} sizes="100vw" />);
     const img = container.querySelector("img")!;
     expect(img.getAttribute("width")).toBe("2400");
@@ -44,7 +44,7 @@ describe("Picture", () => {
     expect(img.style.backgroundColor).toBe("rgb(138, 144, 153)");
     expect(img.style.backgroundImage).toContain("data:image/webp;base64,UklGRg==");
     fireEvent.load(img);
-    expect(img.style.backgroundImage).toBe("");
+    await waitFor(() => expect(img.style.backgroundImage).toBe(""));
     expect(img.style.backgroundColor).toBe("");
   });
 

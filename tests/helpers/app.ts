@@ -1,5 +1,6 @@
 import type { AddressInfo } from "node:net";
 import { createServer, type Server } from "node:http";
+import { createServer as createNetServer } from "node:net";
 import { inject } from "vitest";
 import request from "supertest";
 import type TestAgent from "supertest/lib/agent.js";
@@ -34,16 +35,29 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const probe = createNetServer();
+    probe.once("error", reject);
+    probe.listen(0, "127.0.0.1", () => {
+      const { port } = probe.address() as AddressInfo;
+      probe.close(() => resolve(port));
+    });
+  });
+}
+
 /** The real app over the test project's MariaDB and a real SMTP sink on a free port. */
 export async function startTestApp(env: Record<string, string> = {}, opts: { listen?: boolean; mediaWorker?: boolean } = {}): Promise<TestApp> {
   const databaseUrl = inject("databaseUrl");
+  // A listening app knows its port up front, so links and absolute image URLs in e-mail reach it.
+  const port = opts.listen ? await freePort() : null;
   const config = loadConfig({
     NODE_ENV: "test",
     SESSION_SECRET: "test-secret-not-for-production-0123456789",
     LOGIN_LIMIT_PER_IP: "100000",
     LOGIN_LIMIT_PER_ACCOUNT: "100000",
     LOG_LEVEL: "silent",
-    PUBLIC_URL: "http://plumbline.test",
+    PUBLIC_URL: port ? `http://127.0.0.1:${port}` : "http://plumbline.test",
     SMTP_SINK_PORT: "0",
     // Shared with the demo seed of this test database, never the repository's media/.
     MEDIA_DIR: testMediaDirFor(new URL(databaseUrl).pathname.slice(1)),
@@ -61,7 +75,7 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { lis
   let baseUrl: string | null = null;
   if (opts.listen) {
     server = createServer(plumbline.app);
-    await new Promise<void>((resolve) => server!.listen(0, "127.0.0.1", () => resolve()));
+    await new Promise<void>((resolve) => server!.listen(port!, "127.0.0.1", () => resolve()));
     baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
   }
   return {

@@ -277,7 +277,8 @@ describe("linked milestones: then and now", () => {
 describe("scheduled publication", () => {
   it("takes a wall-clock time in the project's time zone and publishes when the scheduler runs after it", async () => {
     const { id, project, slug } = await draft(as.lead);
-    // 09:00 in London on 1 July 2030 is 08:00 UTC (British Summer Time, UTC+1).
+    // Source: the IANA time zone database, Europe/London — British Summer Time (UTC+1) runs from
+    // the last Sunday of March to the last Sunday of October, so 09:00 on 1 July 2030 is 08:00 UTC.
     const res = await act(as.lead, id, "schedule", { at: { date: "2030-07-01", time: "09:00" } });
     expect(res.status).toBe(200);
     expect(res.body).toEqual({ id, status: "scheduled", scheduledFor: "2030-07-01T08:00:00.000Z" });
@@ -296,6 +297,17 @@ describe("scheduled publication", () => {
     expect(new Date(row.published_at).toISOString()).toBe("2030-07-01T08:00:00.000Z");
     await visitor.agent.get(`/api/projects/${project.slug}/posts/${slug}`).expect(200);
     expect(await t.db("media_usages").where({ owner_type: "post", owner_id: id, published: 1 }).first()).toBeDefined();
+  });
+
+  it("in winter the project's wall clock is UTC (Greenwich Mean Time); a New York project is five hours behind", async () => {
+    // Source: the IANA time zone database — Europe/London is UTC+0 outside summer time;
+    // America/New_York is UTC−5 (EST) in December.
+    const london = await draft(as.lead);
+    expect((await act(as.lead, london.id, "schedule", { at: { date: "2030-12-02", time: "09:00" } })).body.scheduledFor).toBe("2030-12-02T09:00:00.000Z");
+    const p = await createProject(t, { timeZone: "America/New_York" });
+    const cover = await createPhoto(t, p.id);
+    const res = await as.lead.agent.post(`/api/projects/${p.slug}/posts`).set("X-CSRF-Token", as.lead.csrf).send(postInput(cover.id)).expect(201);
+    expect((await act(as.lead, res.body.id, "schedule", { at: { date: "2030-12-02", time: "09:00" } })).body.scheduledFor).toBe("2030-12-02T14:00:00.000Z");
   });
 
   it("publishes a due post once when several schedulers run at the same moment", async () => {

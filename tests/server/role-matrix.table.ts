@@ -158,6 +158,18 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "post", path: "/api/stories/999999999/return", body: {}, expect: writers(400) },
   { method: "post", path: "/api/stories/999999999/publish", expect: writers(404) },
   { method: "post", path: "/api/stories/999999999/withdraw", expect: writers(404) },
+  // Digests: the site office's runs, previews and tests for staff; the web copy by its signed link only.
+  { method: "post", path: "/api/digests/runs", body: {}, expect: staffOnly(400) },
+  { method: "get", path: "/api/digests/runs", expect: staffOnly(200) },
+  { method: "get", path: "/api/digests/runs/999999999", expect: staffOnly(404) },
+  { method: "post", path: "/api/digests/runs/999999999/pause", expect: staffOnly(404) },
+  { method: "post", path: "/api/digests/runs/999999999/resume", expect: staffOnly(404) },
+  { method: "get", path: "/api/digests/upcoming", expect: staffOnly(200) },
+  { method: "get", path: "/api/digests/preview", expect: staffOnly(400) },
+  { method: "get", path: "/api/digests/preview?subscriberId=999999999", expect: staffOnly(404) },
+  { method: "post", path: "/api/digests/test", body: {}, expect: staffOnly(400) },
+  { method: "get", path: `/api/digests/web/${BAD_LINK}`, expect: all(400) },
+  { method: "get", path: "/office/digests", expect: all(200) },
   // The public site's documents and pages.
   { method: "get", path: "/feed/aldermere-phase-2.atom", expect: all(200) },
   { method: "get", path: "/feed/no-such-project.atom", expect: all(404) },
@@ -165,5 +177,6 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: "/robots.txt", expect: all(200) },
   { method: "get", path: "/projects/aldermere-phase-2/updates/no-such-update", expect: all(200) },
   { method: "get", path: "/projects/aldermere-phase-2/stories/no-such-story", expect: all(200) },
+  { method: "get", path: "/api/projects/aldermere-phase-2/gallery", expect: all(200) },
   { method: "post", path: "/api/auth/logout", expect: all(204) },
 ];

@@ -108,7 +108,11 @@ export function Picture({ picture, sizes, eager = false, alt, fit = "natural", a
         decoding="async"
         // React 19 passes fetchPriority through as the `fetchpriority` attribute.
         fetchPriority={eager ? "high" : "auto"}
-        onLoad={() => setLoaded(true)}
+        // Keep the placeholder until the pixels are decoded, so nothing flashes blank in between.
+        onLoad={(e) => {
+          const img = e.currentTarget;
+          void (typeof img.decode === "function" ? img.decode() : Promise.resolve()).catch(() => undefined).finally(() => setLoaded(true));
+        }}
         className={`block max-w-full ${fitClass} ${imgClassName}`}
         style={style}
       />

@@ -270,16 +270,19 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
     }
   };
 
+  // Ctrl+S (Cmd+S) saves, as writers expect; the listener calls whatever save is current.
+  const saveRef = useRef(doSave);
+  saveRef.current = doSave;
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
       if ((e.ctrlKey || e.metaKey) && e.key.toLowerCase() === "s") {
         e.preventDefault();
-        void doSave();
+        void saveRef.current();
       }
     };
     window.addEventListener("keydown", onKey);
     return () => window.removeEventListener("keydown", onKey);
-  });
+  }, []);
 
   const cover = draft.coverMediaId ? (pictures.get(draft.coverMediaId) ?? null) : null;
   const coverProblem = problems.find((p) => p.code === "no_cover" || (p.mediaId !== undefined && p.mediaId === draft.coverMediaId));

@@ -217,3 +217,26 @@ export interface MediaPicture {
   /** Each list in ascending width; empty until the photo is processed. */
   sources: Record<VariantFormat, PictureVariant[]>;
 }
+
+/** GET /api/projects/:slug/gallery filters. */
+export const GalleryQuerySchema = z.strictObject({
+  area: z.string().trim().max(100).optional(),
+  system: SystemSchema.optional(),
+  month: z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, "must be a month as YYYY-MM").optional(),
+});
+export type GalleryQuery = z.infer<typeof GalleryQuerySchema>;
+
+/** One gallery photo: the picture, its area and system tags, and its month (capture, else upload). */
+export interface GalleryPhoto extends MediaPicture {
+  areas: string[];
+  systems: System[];
+  month: string | null;
+}
+
+/** The gallery answer: the photos after filtering, and the choices the filters offer (before filtering). */
+export interface Gallery {
+  items: GalleryPhoto[];
+  areas: string[];
+  systems: System[];
+  months: string[];
+}

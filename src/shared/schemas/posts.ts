@@ -176,7 +176,9 @@ export interface PostRevisionSummary {
 /**
  * GET /api/projects/:slug/posts/:postSlug and GET /api/posts/:id. `body`, `version`,
  * `revisions`, `reviewComment` and `problems` are for staff only (absent otherwise).
- * An old slug answers `{ redirectTo }` with 301 (the page answers 301 with Location).
+ * An old slug answers 301 with `Location` = the API address under the current slug (so fetch()
+ * follows it and gets this detail, whose `slug` then differs from the one asked for) and body
+ * `{ redirectTo }` = the page path under the current slug. The page itself answers 301 too.
  */
 export interface PostDetail extends PostSummary {
   projectSlug: string;

@@ -1,0 +1,209 @@
+import mjml2html from "mjml";
+import { DateTime } from "luxon";
+import type { MoveKind } from "#shared/domain/programme-changes.ts";
+import { escapeHtml } from "../mail/mail.layout.ts";
+
+/** Personal links, filled in per delivery; everything else is shared by every reader of a content. */
+export const PLACEHOLDERS = {
+  webUrl: "{{webUrl}}",
+  preferencesUrl: "{{preferencesUrl}}",
+  unsubscribeUrl: "{{unsubscribeUrl}}",
+} as const;
+export type PersonalLinks = Record<keyof typeof PLACEHOLDERS, string>;
+
+export interface DigestPostItem {
+  title: string;
+  summary: string;
+  url: string;
+  publishedAt: Date;
+  image: { url: string; alt: string } | null;
+}
+
+export interface DigestMoveItem {
+  milestoneName: string;
+  kind: MoveKind;
+  days?: number;
+  from: string | null;
+  to: string | null;
+}
+
+export interface DigestDueItem {
+  name: string;
+  date: string;
+  status: string;
+}
+
+export interface DigestFigures {
+  percentComplete: number | null;
+  forecastReady: string | null;
+  previousPercent: number | null;
+  previousForecast: string | null;
+}
+
+export interface DigestDocument {
+  project: { name: string; slug: string; operatorName: string; postalAddress: string | null; timeZone: string };
+  frequency: "immediate" | "weekly" | "monthly";
+  windowStart: Date;
+  windowEnd: Date;
+  projectUrl: string;
+  posts: DigestPostItem[];
+  moves: DigestMoveItem[];
+  dueSoon: DigestDueItem[];
+  figures: DigestFigures;
+}
+
+export interface RenderedDigest {
+  subject: string;
+  preheader: string;
+  html: string;
+  text: string;
+}
+
+/** Whether a digest has news: posts, programme moves, or a changed headline figure. Due dates alone are not news. */
+export function hasNews(d: DigestDocument): boolean {
+  return d.posts.length > 0 || d.moves.length > 0 || figureDelta(d.figures).changed;
+}
+
+/** The change of the headline figures since the reader's last digest (percentage points; calendar days). */
+export function figureDelta(f: DigestFigures): { percentPoints: number | null; forecastDays: number | null; changed: boolean } {
+  const percentPoints = f.percentComplete !== null && f.previousPercent !== null ? Math.round((f.percentComplete - f.previousPercent) * 10) / 10 : null;
+  const forecastDays =
+    f.forecastReady && f.previousForecast ? Math.round(DateTime.fromISO(f.forecastReady, { zone: "UTC" }).diff(DateTime.fromISO(f.previousForecast, { zone: "UTC" }), "days").days) : null;
+  return { percentPoints, forecastDays, changed: (percentPoints !== null && percentPoints !== 0) || (forecastDays !== null && forecastDays !== 0) };
+}
+
+const longDate = (iso: string) => DateTime.fromISO(iso, { zone: "UTC" }).toFormat("d LLLL yyyy");
+
+/** A move in plain words: "later by 9 days (12 March 2027 → 21 March 2027)". */
+export function describeMove(m: DigestMoveItem): string {
+  const span = m.from && m.to ? ` (${longDate(m.from)} → ${longDate(m.to)})` : m.to ? ` (${longDate(m.to)})` : "";
+  switch (m.kind) {
+    case "completed":
+      return `completed${m.to ? ` on ${longDate(m.to)}` : ""}`;
+    case "later":
+      return `later by ${Math.abs(m.days ?? 0)} day${Math.abs(m.days ?? 0) === 1 ? "" : "s"}${span}`;
+    case "earlier":
+      return `earlier by ${Math.abs(m.days ?? 0)} day${Math.abs(m.days ?? 0) === 1 ? "" : "s"}${span}`;
+    case "rebaselined":
+      return `re-baselined${span}`;
+    default:
+      return `${String(m.kind).replace(/_/g, " ")}${span}`;
+  }
+}
+
+function periodLabel(d: DigestDocument): string {
+  const start = DateTime.fromJSDate(d.windowStart, { zone: d.project.timeZone });
+  const lastDay = DateTime.fromJSDate(d.windowEnd, { zone: d.project.timeZone }).minus({ milliseconds: 1 });
+  if (d.frequency === "weekly") return `week ${start.weekNumber}, ${start.toFormat("d LLL")} to ${lastDay.toFormat("d LLL yyyy")}`;
+  if (d.frequency === "monthly") return start.toFormat("LLLL yyyy");
+  return lastDay.toFormat("d LLLL yyyy");
+}
+
+function figuresLines(f: DigestFigures): string[] {
+  const delta = figureDelta(f);
+  const lines: string[] = [];
+  if (f.percentComplete !== null) {
+    const change = delta.percentPoints === null ? "" : delta.percentPoints === 0 ? " (unchanged since your last digest)" : ` (${delta.percentPoints > 0 ? "+" : ""}${delta.percentPoints} points since your last digest)`;
+    lines.push(`Complete: ${f.percentComplete.toFixed(1)} %${change}`);
+  }
+  if (f.forecastReady) {
+    const d = delta.forecastDays;
+    const change = d === null ? "" : d === 0 ? " (unchanged since your last digest)" : ` (${Math.abs(d)} day${Math.abs(d) === 1 ? "" : "s"} ${d > 0 ? "later" : "earlier"} than in your last digest)`;
+    lines.push(`Forecast ready for service: ${longDate(f.forecastReady)}${change}`);
+  }
+  return lines;
+}
+
+function subjectOf(d: DigestDocument): string {
+  if (d.frequency === "immediate" && d.posts[0]) return `${d.project.name}: ${d.posts[0].title}`;
+  return `${d.project.name}: progress, ${periodLabel(d)}`;
+}
+
+function preheaderOf(d: DigestDocument): string {
+  const parts: string[] = [];
+  if (d.posts.length) parts.push(`${d.posts.length} update${d.posts.length === 1 ? "" : "s"}`);
+  if (d.moves.length) parts.push(`${d.moves.length} programme change${d.moves.length === 1 ? "" : "s"}`);
+  if (d.dueSoon.length) parts.push(`${d.dueSoon.length} milestone${d.dueSoon.length === 1 ? "" : "s"} due in the next 30 days`);
+  const lead = d.frequency === "immediate" && d.posts[0] ? d.posts[0].summary || d.posts[0].title : parts.join(", ");
+  return lead.slice(0, 140);
+}
+
+const e = escapeHtml;
+
+function footerText(d: DigestDocument): string {
+  return [d.project.operatorName, d.project.postalAddress].filter(Boolean).join(" · ");
+}
+
+/**
+ * Renders a digest once, with placeholders where the reader's own links go: a responsive
+ * HTML part (MJML), a plain-text part, a subject and a preheader.
+ */
+export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
+  const subject = subjectOf(d);
+  const preheader = preheaderOf(d);
+  const figures = figuresLines(d.figures);
+  const posts = d.posts
+    .map(
+      (p) => `
+      <mj-section padding="0 0 8px 0"><mj-column>
+        ${p.image ? `<mj-image src="${e(p.image.url)}" alt="${e(p.image.alt)}" href="${e(p.url)}" padding="0 0 8px 0" />` : ""}
+        <mj-text font-size="18px" font-weight="bold" padding="0 0 4px 0"><a href="${e(p.url)}" style="color:#1d1f24">${e(p.title)}</a></mj-text>
+        ${p.summary ? `<mj-text padding="0 0 4px 0">${e(p.summary)}</mj-text>` : ""}
+        <mj-text padding="0 0 12px 0" font-size="13px"><a href="${e(p.url)}" style="color:#b34709">Read the update</a></mj-text>
+      </mj-column></mj-section>`,
+    )
+    .join("");
+  const list = (title: string, items: string[]) =>
+    items.length ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0">${i}</mj-text>`).join("")}</mj-column></mj-section>` : "";
+  const moveItems = d.moves.map((m) => `<strong>${e(m.milestoneName)}</strong>: ${e(describeMove(m))}`);
+  const dueItems = d.dueSoon.map((m) => `<strong>${e(m.name)}</strong>: due ${e(longDate(m.date))}`);
+  const mj = `<mjml lang="en">
+  <mj-head>
+    <mj-title>${e(subject)}</mj-title>
+    <mj-preview>${e(preheader)}</mj-preview>
+    <mj-attributes><mj-all font-family="Helvetica, Arial, sans-serif" /><mj-text font-size="15px" line-height="1.5" color="#1d1f24" /></mj-attributes>
+  </mj-head>
+  <mj-body background-color="#f6f3ec" width="600px">
+    <mj-section padding="12px 0 0 0"><mj-column><mj-text font-size="12px" color="#5a5e66" align="right" padding="0 12px"><a href="${PLACEHOLDERS.webUrl}" style="color:#5a5e66">View in the browser</a></mj-text></mj-column></mj-section>
+    <mj-wrapper background-color="#fffdf8" border="1px solid #d9d3c4" padding="16px 12px">
+      <mj-section border-bottom="3px solid #e8590c" padding="0 0 8px 0"><mj-column>
+        <mj-text font-size="20px" font-weight="bold" padding="0"><a href="${e(d.projectUrl)}" style="color:#1d1f24;text-decoration:none">${e(d.project.name)}</a></mj-text>
+        <mj-text font-size="13px" color="#5a5e66" padding="0">${e(periodLabel(d))}</mj-text>
+      </mj-column></mj-section>
+      ${figures.length ? `<mj-section padding="8px 0"><mj-column>${figures.map((f) => `<mj-text padding="2px 0">${e(f)}</mj-text>`).join("")}</mj-column></mj-section>` : ""}
+      ${posts}
+      ${list("Programme changes", moveItems)}
+      ${list("Due in the next 30 days", dueItems)}
+    </mj-wrapper>
+    <mj-section padding="12px"><mj-column>
+      <mj-text font-size="12px" color="#5a5e66">${e(footerText(d))}</mj-text>
+      <mj-text font-size="12px" color="#5a5e66"><a href="${PLACEHOLDERS.preferencesUrl}" style="color:#5a5e66">Change topics or frequency</a> · <a href="${PLACEHOLDERS.unsubscribeUrl}" style="color:#5a5e66">Unsubscribe</a></mj-text>
+    </mj-column></mj-section>
+  </mj-body>
+</mjml>`;
+  const out = await mjml2html(mj, { validationLevel: "strict" });
+  if (out.errors.length) throw new Error(`digest template: ${out.errors.map((x) => x.formattedMessage).join("; ")}`);
+
+  const text = [
+    d.project.name,
+    periodLabel(d),
+    "",
+    ...(figures.length ? [...figures, ""] : []),
+    ...d.posts.flatMap((p) => [p.title, ...(p.summary ? [p.summary] : []), `Read the update: ${p.url}`, ""]),
+    ...(d.moves.length ? ["Programme changes", ...d.moves.map((m) => `- ${m.milestoneName}: ${describeMove(m)}`), ""] : []),
+    ...(d.dueSoon.length ? ["Due in the next 30 days", ...d.dueSoon.map((m) => `- ${m.name}: due ${longDate(m.date)}`), ""] : []),
+    `View in the browser: ${PLACEHOLDERS.webUrl}`,
+    "",
+    "--",
+    footerText(d),
+    `Change topics or frequency: ${PLACEHOLDERS.preferencesUrl}`,
+    `Unsubscribe: ${PLACEHOLDERS.unsubscribeUrl}`,
+    "",
+  ].join("\n");
+  return { subject, preheader, html: out.html, text };
+}
+
+/** Puts one reader's links into a shared rendering: string replacement only, no template run. */
+export function personalise(s: string, links: PersonalLinks): string {
+  return s.replaceAll(PLACEHOLDERS.webUrl, links.webUrl).replaceAll(PLACEHOLDERS.preferencesUrl, links.preferencesUrl).replaceAll(PLACEHOLDERS.unsubscribeUrl, links.unsubscribeUrl);
+}

@@ -1,0 +1,49 @@
+import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { Project } from "#shared/schemas/projects.ts";
+import type { DigestPreview, DigestRunInput, DigestRunSummary, DigestTestInput, DigestUpcoming } from "#shared/schemas/digests.ts";
+import type { SubscriberList } from "#shared/schemas/subscribers.ts";
+import { api, qs } from "../../lib/api-client.ts";
+
+export const digestKeys = {
+  all: ["digests"] as const,
+  runs: (project: string) => [...digestKeys.all, "runs", project] as const,
+  upcoming: (project: string) => [...digestKeys.all, "upcoming", project] as const,
+  preview: (subscriberId: number) => [...digestKeys.all, "preview", subscriberId] as const,
+  recipients: (project: string) => [...digestKeys.all, "recipients", project] as const,
+};
+
+const sending = (runs: DigestRunSummary[] | undefined) => Boolean(runs?.some((r) => r.status === "running" || r.status === "queued"));
+
+export const digestRunsQueryOptions = (project: string) =>
+  queryOptions({
+    queryKey: digestKeys.runs(project),
+    queryFn: () => api.get<DigestRunSummary[]>(`/api/digests/runs${qs({ project })}`),
+    // While a run sends, its counts move: ask again every second.
+    refetchInterval: (q) => (sending(q.state.data) ? 1000 : false),
+  });
+
+export const useDigestProjects = () => useQuery({ queryKey: [...digestKeys.all, "projects"], queryFn: () => api.get<Project[]>("/api/projects") });
+export const useDigestRuns = (project: string) => useQuery({ ...digestRunsQueryOptions(project), enabled: project !== "" });
+export const useUpcomingDigests = (project: string) => useQuery({ queryKey: digestKeys.upcoming(project), queryFn: () => api.get<DigestUpcoming[]>(`/api/digests/upcoming${qs({ project })}`), enabled: project !== "" });
+export const useDigestRecipients = (project: string) =>
+  useQuery({ queryKey: digestKeys.recipients(project), queryFn: () => api.get<SubscriberList>(`/api/subscribers${qs({ projectSlug: project, status: "confirmed" })}`), enabled: project !== "" });
+export const useDigestPreview = (subscriberId: number | null) =>
+  useQuery({ queryKey: digestKeys.preview(subscriberId ?? 0), queryFn: () => api.get<DigestPreview>(`/api/digests/preview${qs({ subscriberId })}`), enabled: subscriberId !== null });
+
+export function useRunDigest() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: DigestRunInput) => api.post<{ id: number; status: string }>("/api/digests/runs", input),
+    onSuccess: () => qc.invalidateQueries({ queryKey: digestKeys.all }),
+  });
+}
+
+export function usePauseResume() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (p: { id: number; action: "pause" | "resume" }) => api.post<DigestRunSummary>(`/api/digests/runs/${p.id}/${p.action}`),
+    onSuccess: () => qc.invalidateQueries({ queryKey: digestKeys.all }),
+  });
+}
+
+export const useSendTest = () => useMutation({ mutationFn: (input: DigestTestInput) => api.post<{ messageId: string }>("/api/digests/test", input) });

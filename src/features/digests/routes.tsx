@@ -1,0 +1,181 @@
+import { useState } from "react";
+import { toast } from "sonner";
+import type { DigestRunSummary } from "#shared/schemas/digests.ts";
+import { Button } from "../../components/ui/button.tsx";
+import { SelectField } from "../../components/ui/field.tsx";
+import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { useDigestPreview, useDigestProjects, useDigestRecipients, useDigestRuns, usePauseResume, useRunDigest, useSendTest, useUpcomingDigests } from "./api.ts";
+
+const FREQUENCY_WORD = { immediate: "As it happens", weekly: "Weekly", monthly: "Monthly" } as const;
+const STATUS_WORD = { queued: "Waiting", running: "Sending", done: "Finished", failed: "Stopped by an error", paused: "Paused" } as const;
+
+// Times are the build's, not the browser's: a run "at 08:00" is 08:00 on site.
+const when = (iso: string, timeZone?: string) => new Date(iso).toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone });
+const day = (iso: string, timeZone?: string) => new Date(iso).toLocaleDateString("en-GB", { dateStyle: "medium", timeZone });
+/** The last day of a window whose end is exclusive. */
+const lastDay = (iso: string, timeZone?: string) => day(new Date(new Date(iso).getTime() - 1).toISOString(), timeZone);
+
+function Progress({ run }: { run: DigestRunSummary }) {
+  const done = run.counts.sent + run.counts.failed + run.counts.skipped;
+  const total = Math.max(run.counts.total, 1);
+  const pct = Math.round((done / total) * 100);
+  return (
+    <div className="flex items-center gap-2">
+      <progress className="h-2 w-32" max={total} value={done} aria-label={`Run ${run.id}: ${done} of ${run.counts.total} handled`} />
+      <span className="tabular-nums text-sm">{pct} %</span>
+    </div>
+  );
+}
+
+function RunsTable({ runs, timeZone }: { runs: DigestRunSummary[]; timeZone?: string }) {
+  const action = usePauseResume();
+  if (runs.length === 0) return <p className="text-ink-soft">No digest has been sent yet.</p>;
+  return (
+    <div className="overflow-x-auto">
+      <table className="w-full text-left text-sm">
+        <thead>
+          <tr className="border-b border-rule">
+            <th className="py-2 pr-3">Period</th>
+            <th className="py-2 pr-3">How often</th>
+            <th className="py-2 pr-3">State</th>
+            <th className="py-2 pr-3 text-right">Waiting</th>
+            <th className="py-2 pr-3 text-right">Sent</th>
+            <th className="py-2 pr-3 text-right">Failed</th>
+            <th className="py-2 pr-3 text-right">Nothing to send</th>
+            <th className="py-2 pr-3 text-right">Took</th>
+            <th className="py-2" />
+          </tr>
+        </thead>
+        <tbody>
+          {runs.map((r) => (
+            <tr key={r.id} className="border-b border-rule align-middle">
+              <td className="py-2 pr-3">
+                {day(r.windowStart, timeZone)} – {lastDay(r.windowEnd, timeZone)}
+              </td>
+              <td className="py-2 pr-3">{FREQUENCY_WORD[r.frequency]}</td>
+              <td className="py-2 pr-3">{r.status === "running" ? <Progress run={r} /> : STATUS_WORD[r.status]}</td>
+              <td className="py-2 pr-3 text-right tabular-nums">{r.counts.queued}</td>
+              <td className="py-2 pr-3 text-right tabular-nums">{r.counts.sent}</td>
+              <td className="py-2 pr-3 text-right tabular-nums">{r.counts.failed}</td>
+              <td className="py-2 pr-3 text-right tabular-nums">{r.counts.skipped}</td>
+              <td className="py-2 pr-3 text-right tabular-nums">{r.durationSeconds === null ? "—" : `${r.durationSeconds} s`}</td>
+              <td className="py-2 text-right">
+                {r.status === "running" || r.status === "queued" ? (
+                  <Button size="sm" onClick={() => action.mutate({ id: r.id, action: "pause" })}>
+                    Pause
+                  </Button>
+                ) : r.status === "paused" ? (
+                  <Button size="sm" onClick={() => action.mutate({ id: r.id, action: "resume" })}>
+                    Resume
+                  </Button>
+                ) : null}
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
+function PreviewPanel({ project, timeZone }: { project: string; timeZone?: string }) {
+  const recipients = useDigestRecipients(project);
+  const [chosen, setChosen] = useState<number | null>(null);
+  const preview = useDigestPreview(chosen);
+  const rows = recipients.data?.rows ?? [];
+  return (
+    <div className="flex flex-col gap-3">
+      <SelectField
+        label="Subscriber"
+        value={chosen === null ? "" : String(chosen)}
+        onChange={(e) => setChosen(e.target.value ? Number(e.target.value) : null)}
+        options={[{ value: "", label: rows.length ? "Choose a subscriber" : "No confirmed subscriber yet" }, ...rows.map((s) => ({ value: String(s.id), label: `${s.name} <${s.email}> · ${s.audience === "investor" ? "investor content" : "public content"} · ${FREQUENCY_WORD[s.frequency]}` }))]}
+        hint="What this person would receive if their digest went now: their window, audience and topics."
+      />
+      {preview.isFetching ? <Spinner /> : null}
+      {preview.isError ? <Notice tone="error">{preview.error.message}</Notice> : null}
+      {preview.data ? (
+        <div className="flex flex-col gap-2">
+          {!preview.data.wouldSend ? <Notice tone="caution">Nothing new for this subscriber since their last digest: no e-mail would be sent.</Notice> : null}
+          <p>
+            <span className="label-caps">Subject</span> <span data-testid="digest-preview-subject">{preview.data.subject}</span>
+          </p>
+          <p className="text-sm text-ink-soft">
+            {preview.data.preheader} · news since {when(preview.data.windowStart, timeZone)}
+          </p>
+          <iframe title="Digest preview" className="h-[36rem] w-full border border-rule bg-white" sandbox="" srcDoc={preview.data.html} />
+        </div>
+      ) : null}
+    </div>
+  );
+}
+
+/** The site office's Digests page: upcoming runs, history, a subscriber's preview, a test, run now, pause and resume. */
+export function DigestsPage() {
+  const projects = useDigestProjects();
+  const [picked, setPicked] = useState("");
+  const project = picked || projects.data?.[0]?.slug || "";
+  const timeZone = projects.data?.find((p) => p.slug === project)?.timeZone;
+  const runs = useDigestRuns(project);
+  const upcoming = useUpcomingDigests(project);
+  const runNow = useRunDigest();
+  const test = useSendTest();
+  const start = (frequency: "weekly" | "monthly") =>
+    runNow.mutate(
+      { projectSlug: project, frequency },
+      {
+        onSuccess: (r) => toast.success(r.status === "done" ? "That period was already sent." : "The run has started."),
+        onError: (e) => toast.error(e.message),
+      },
+    );
+  return (
+    <>
+      <PageHeader
+        sheet="Site office · Digests"
+        title="Digests"
+        description="Progress e-mails to subscribers: weekly on Monday at 08:00 and monthly on the first working day at 08:00, in the build's time zone, and one e-mail per update for those who follow as it happens."
+        actions={
+          <div className="flex flex-wrap gap-2">
+            <Button variant="primary" disabled={!project} busy={runNow.isPending} onClick={() => start("weekly")}>
+              Run last week now
+            </Button>
+            <Button disabled={!project} busy={runNow.isPending} onClick={() => start("monthly")}>
+              Run last month now
+            </Button>
+            <Button
+              disabled={!project}
+              busy={test.isPending}
+              onClick={() => test.mutate({ projectSlug: project, audience: "public" }, { onSuccess: () => toast.success("A test digest is on its way to you."), onError: (e) => toast.error(e.message) })}
+            >
+              Send a test to me
+            </Button>
+          </div>
+        }
+      />
+      <div className="flex flex-col gap-6">
+        {projects.data && projects.data.length > 1 ? <SelectField label="Build" value={project} onChange={(e) => setPicked(e.target.value)} options={projects.data.map((p) => ({ value: p.slug, label: p.name }))} /> : null}
+        <Sheet label="Next" title="Upcoming runs">
+          {upcoming.isPending ? (
+            <Spinner />
+          ) : upcoming.isError ? (
+            <Notice tone="error">{upcoming.error.message}</Notice>
+          ) : (
+            <ul className="flex flex-col gap-1">
+              {upcoming.data.map((u) => (
+                <li key={`${u.project.slug}-${u.frequency}`}>
+                  <strong>{FREQUENCY_WORD[u.frequency]}</strong>: {when(u.at, u.project.timeZone)} ({u.project.timeZone}), covering {day(u.windowStart, u.project.timeZone)} – {lastDay(u.windowEnd, u.project.timeZone)}, to {u.recipients} {u.recipients === 1 ? "subscriber" : "subscribers"}
+                </li>
+              ))}
+            </ul>
+          )}
+        </Sheet>
+        <Sheet label="History" title="Runs">
+          {runs.isPending ? <Spinner /> : runs.isError ? <Notice tone="error">{runs.error.message}</Notice> : <RunsTable runs={runs.data} timeZone={timeZone} />}
+        </Sheet>
+        <Sheet label="Preview" title="What a subscriber would get now">
+          {project ? <PreviewPanel project={project} timeZone={timeZone} /> : <Spinner />}
+        </Sheet>
+      </div>
+    </>
+  );
+}
