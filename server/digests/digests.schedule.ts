@@ -24,7 +24,7 @@ export function createDigestScheduler(deps: { db: Db; projects: ProjectsService;
     const created: number[] = [];
     for (const p of await projects.list()) {
       for (const frequency of ["weekly", "monthly"] as const) {
-        const { due } = sendTimes(frequency, at, p.timeZone);
+        const { due } = sendTimes(frequency, at, p.timeZone, p.settings);
         if (at.getTime() - due.getTime() > CATCH_UP_MS) continue;
         const r = await digests.createRun({ projectId: p.id, frequency, at: due, timeZone: p.timeZone });
         if (r.created) created.push(r.id);

@@ -355,7 +355,7 @@ export function createDigestsService(deps: DigestsDeps) {
       const out: DigestUpcoming[] = [];
       for (const p of list) {
         for (const frequency of ["weekly", "monthly"] as const) {
-          const at = sendTimes(frequency, now(), p.timeZone).next;
+          const at = sendTimes(frequency, now(), p.timeZone, p.settings).next;
           const w = windowFor(frequency, at, p.timeZone);
           out.push({ project: { slug: p.slug, name: p.name, timeZone: p.timeZone }, frequency, at: at.toISOString(), windowStart: w.start.toISOString(), windowEnd: w.end.toISOString(), recipients: await countRecipients(db, p.id, frequency) });
         }

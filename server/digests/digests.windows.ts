@@ -37,18 +37,27 @@ export function previousMonth(at: Date, zone: string): DigestWindow {
   return { start: start.toJSDate(), end: end.toJSDate(), label: start.toFormat("yyyy-LL") };
 }
 
-/** Monday to Friday; the project's holidays are not consulted (see the report of this module). */
-const isWorkingDay = (d: DateTime) => d.weekday <= 5;
+/** The project's working calendar: weekend days as ISO weekdays (1 = Monday … 7 = Sunday) and holidays. */
+export interface WorkingCalendar {
+  weekendDays: readonly number[];
+  holidays: readonly string[];
+}
+
+/** Monday to Friday with no holidays, for callers without a project calendar. */
+export const WEEKDAYS_ONLY: WorkingCalendar = { weekendDays: [6, 7], holidays: [] };
+
+const isWorkingDay = (d: DateTime, cal: WorkingCalendar) => !cal.weekendDays.includes(d.weekday) && !cal.holidays.includes(d.toISODate()!);
 
 /** 08:00 local on the Monday of the ISO week holding `at`. */
 export function weeklySendTime(at: Date, zone: string): Date {
   return DateTime.fromJSDate(at, { zone }).startOf("week").set({ hour: SEND_HOUR }).toJSDate();
 }
 
-/** 08:00 local on the first working day of the month holding `at`. */
-export function monthlySendTime(at: Date, zone: string): Date {
+/** 08:00 local on the first working day (the project's calendar) of the month holding `at`. */
+export function monthlySendTime(at: Date, zone: string, cal: WorkingCalendar = WEEKDAYS_ONLY): Date {
   let d = DateTime.fromJSDate(at, { zone }).startOf("month");
-  while (!isWorkingDay(d)) d = d.plus({ days: 1 });
+  // A calendar with every day off would never end; a month always has a working day in practice.
+  for (let i = 0; i < 31 && !isWorkingDay(d, cal); i++) d = d.plus({ days: 1 });
   return d.set({ hour: SEND_HOUR }).toJSDate();
 }
 
@@ -56,9 +65,9 @@ export function monthlySendTime(at: Date, zone: string): Date {
  * The scheduled send time due at or before `at` (this period's, or the previous period's when
  * this one's has not come yet), and the next one after `at`.
  */
-export function sendTimes(frequency: "weekly" | "monthly", at: Date, zone: string): { due: Date; next: Date } {
+export function sendTimes(frequency: "weekly" | "monthly", at: Date, zone: string, cal: WorkingCalendar = WEEKDAYS_ONLY): { due: Date; next: Date } {
   const local = DateTime.fromJSDate(at, { zone });
-  const of = frequency === "weekly" ? weeklySendTime : monthlySendTime;
+  const of = frequency === "weekly" ? weeklySendTime : (a: Date, z: string) => monthlySendTime(a, z, cal);
   const step = frequency === "weekly" ? { weeks: 1 } : { months: 1 };
   const here = of(at, zone);
   if (here.getTime() <= at.getTime()) return { due: here, next: of(local.startOf(frequency === "weekly" ? "week" : "month").plus(step).toJSDate(), zone) };

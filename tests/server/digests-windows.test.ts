@@ -106,3 +106,18 @@ describe("monthly runs", () => {
     expect(weeklySendTime(new Date("2026-10-28T12:00:00Z"), "America/New_York").toISOString()).toBe("2026-10-26T12:00:00.000Z");
   });
 });
+
+describe("monthly send time on the project's working calendar", () => {
+  it("skips the project's holidays as well as weekends", () => {
+    const monthly = monthlySendTime;
+    // Our own example: 1 Mar 2027 is a Monday; with it declared a holiday the run moves to Tuesday 2 Mar.
+    // Europe/London is on GMT in early March, so 08:00 local is 08:00 UTC.
+    const plain = monthly(new Date("2027-03-15T12:00:00Z"), LONDON);
+    expect(plain.toISOString()).toBe("2027-03-01T08:00:00.000Z");
+    const withHoliday = monthly(new Date("2027-03-15T12:00:00Z"), LONDON, { weekendDays: [6, 7], holidays: ["2027-03-01"] });
+    expect(withHoliday.toISOString()).toBe("2027-03-02T08:00:00.000Z");
+    // 1 Jan 2027 is a Friday and a holiday in the demo calendar; the next working day is Monday 4 Jan.
+    const newYear = monthly(new Date("2027-01-20T12:00:00Z"), LONDON, { weekendDays: [6, 7], holidays: ["2027-01-01"] });
+    expect(newYear.toISOString()).toBe("2027-01-04T08:00:00.000Z");
+  });
+});
