@@ -6,6 +6,9 @@ set -euo pipefail
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 cd "$ROOT"
 export DATA_DIR="${DATA_DIR:-.data}"
+# glibc keeps one malloc arena per thread; libvips' worker threads then hold freed image memory
+# for a long time. Two arenas keep photo processing's peak well below 400 MB (decision 006).
+export MALLOC_ARENA_MAX="${MALLOC_ARENA_MAX:-2}"
 case "$DATA_DIR" in /*) ;; *) DATA_DIR="$ROOT/$DATA_DIR" ;; esac
 DB_DIR="$DATA_DIR/mariadb"
 DB_SOCKET="$DB_DIR/mysql.sock"
