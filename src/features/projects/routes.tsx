@@ -1,7 +1,6 @@
-import { Link, useParams } from "react-router-dom";
+import { Link } from "react-router-dom";
 import { Notice, Spinner } from "../../components/ui/sheet.tsx";
-import { useProject, useProjects } from "./api.ts";
-import { SiteVisitRules } from "./components/site-visit-rules.tsx";
+import { useProjects } from "./api.ts";
 
 export function HomePage() {
   const projects = useProjects();
@@ -29,38 +28,6 @@ export function HomePage() {
             ))}
           </ul>
         )}
-      </div>
-    </div>
-  );
-}
-
-export function ProjectHomePage() {
-  const { slug = "" } = useParams();
-  const project = useProject(slug);
-  if (project.isPending) return <Spinner />;
-  if (project.isError) {
-    return (
-      <div className="mx-auto max-w-3xl px-4 py-10">
-        <Notice tone="error" title="Project not found">
-          {project.error.message}
-        </Notice>
-      </div>
-    );
-  }
-  const p = project.data;
-  return (
-    <div className="mx-auto max-w-5xl px-4 py-10">
-      <p className="label-caps">
-        {p.operatorName} · {p.locationLabel}
-      </p>
-      <h1 className="mt-1 text-3xl font-semibold tracking-tight sm:text-4xl">{p.name}</h1>
-      <p className="mt-4 max-w-3xl font-serif text-lg leading-relaxed">{p.description}</p>
-      <div className="mt-8 grid gap-6 md:grid-cols-[2fr_1fr]">
-        <section className="border border-rule bg-sheet p-5">
-          <h2 className="font-semibold">Progress</h2>
-          <p className="mt-2 text-sm text-ink-soft">The programme, updates and photographs of this build are published here as the work goes on. Times on this page are in {p.timeZone.replace("_", " ")}.</p>
-        </section>
-        {p.visitsOffered ? <SiteVisitRules /> : null}
       </div>
     </div>
   );
