@@ -168,8 +168,10 @@ describe("the public project home", () => {
       await page.goto(`${t.baseUrl}/projects/${SLUG}`);
       await page.getByRole("heading", { level: 1, name: "Aldermere Campus, Phase 2" }).waitFor();
       await page.getByTestId("public-progress").waitFor();
-      expect(await page.getByTestId("progress-words").textContent()).toMatch(/\d+%\s*of the work is complete/);
-      expect(await page.getByTestId("progress-words").textContent()).toMatch(/forecast for [A-Z][a-z]+ \d{4}/);
+      // The words about the milestones come with the page; percent complete and the forecast
+      // arrive with the health figures a moment later.
+      await expect.poll(() => page.getByTestId("progress-words").textContent()).toMatch(/\d+%\s*of the work is complete/);
+      await expect.poll(() => page.getByTestId("progress-words").textContent()).toMatch(/forecast for [A-Z][a-z]+ \d{4}/);
       await expect.poll(() => page.getByTestId("next-milestone").count()).toBe(3);
       for (const link of ["Get updates by e-mail", "Ask about capacity or a site visit", "See the timeline: when each part will be ready →", "Photographs from the site"]) {
         await page.getByRole("link", { name: link }).waitFor();
