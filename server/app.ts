@@ -114,6 +114,8 @@ export function createApp(deps: AppDeps): PlumblineApp {
     uploads: mediaUploads,
     projects,
     limits: { maxFileBytes: Math.round(config.MEDIA_MAX_FILE_MB * 1024 * 1024), maxFiles: config.MEDIA_MAX_FILES, maxPixels: config.MEDIA_MAX_PIXELS },
+    // Signed derivative links (investor images in e-mail) use a key derived from it under their own label.
+    tokenSecret: config.TOKEN_SECRET,
   });
   // Building the app runs no jobs: server/index.ts starts the worker (tests drain it).
   const mediaJobs = createMediaJobs({ media, storage: mediaStorage, uploads: mediaUploads, logger, workers: config.MEDIA_WORKERS, maxPixels: config.MEDIA_MAX_PIXELS });
@@ -260,7 +262,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
   app.use("/api", api);
   // RFC 8058 one-click unsubscribe (POST); a GET of the same path is the client's page.
   app.use(oneClickRouter(subscribers));
-  // Derivatives, with the audience check on every request.
+  // Derivatives, with the audience check on every request (or a signed, expiring link's).
   app.use(mediaFilesRouter(media));
   // The Atom feeds, sitemap.xml and robots.txt (before the client's static files).
   app.use(siteRouter(site));

@@ -42,6 +42,15 @@ type DigestAudience = "public" | "investor";
 /** Web copies of a digest stay readable this long after the run (a year, like the footer links). */
 const WEB_TTL_MS = 365 * 24 * 60 * 60 * 1000;
 const WEB_DOMAIN = "plumbline-digest-web:v1.";
+/**
+ * Investor-only pictures in a digest e-mail are signed links to the derivative that expire this
+ * many days after the render (rounded up to a whole UTC day, so one run's renders share a URL).
+ * The web copy, valid for a year, signs its pictures afresh whenever it is opened.
+ */
+export const MEDIA_LINK_TTL_DAYS = 30;
+/** The web copy's pictures: long enough for a reading, rounded the same way. */
+const WEB_MEDIA_LINK_TTL_DAYS = 1;
+const DAY_MS = 24 * 60 * 60 * 1000;
 /** Moves worth telling a reader about; progress ticks and audience changes are not news. */
 const NEWS_MOVES = new Set(["completed", "reopened", "rebaselined", "later", "earlier"]);
 
@@ -125,16 +134,27 @@ export function createDigestsService(deps: DigestsDeps) {
     return { webUrl: `${publicUrl}/api/digests/web/${webToken(contentId, subscriberId, new Date(at.getTime() + WEB_TTL_MS))}`, preferencesUrl: l.preferencesUrl, unsubscribeUrl: l.unsubscribeUrl, headers: l.headers };
   }
 
-  async function posterUrls(posts: DigestPostRow[]): Promise<Map<number, { url: string; alt: string }>> {
-    // Only public posts carry a picture: investor-only images would need signed, expiring file URLs.
-    const ids = posts.filter((p) => p.audience === "public" && p.coverMediaId !== null).map((p) => p.coverMediaId!);
+  /** `days` from now, rounded up to the next UTC midnight. */
+  const expiryAfter = (days: number) => new Date(Math.ceil((now().getTime() + days * DAY_MS) / DAY_MS) * DAY_MS);
+
+  /**
+   * Each post's cover picture by post id, as an absolute URL for e-mail: a public post's is the
+   * public derivative; an investor post's (in an investor digest only) a signed, expiring link, since
+   * no mail client is signed in. A public digest never asks for an investor picture.
+   */
+  async function posterUrls(posts: DigestPostRow[], audience: DigestAudience): Promise<Map<number, { url: string; alt: string }>> {
+    const shown = posts.filter((p) => p.coverMediaId !== null && (p.audience === "public" || (p.audience === "investor" && audience === "investor")));
     const out = new Map<number, { url: string; alt: string }>();
-    if (ids.length === 0) return out;
-    const pictures = await media.pictureFor(ids);
-    for (const [id, pic] of pictures) {
-      const jpegs = pic.sources.jpeg;
+    if (shown.length === 0) return out;
+    const pictures = await media.pictureFor(shown.map((p) => p.coverMediaId!));
+    const expiresAt = expiryAfter(MEDIA_LINK_TTL_DAYS);
+    for (const post of shown) {
+      const pic = pictures.get(post.coverMediaId!);
+      const jpegs = pic?.sources.jpeg ?? [];
       const pick = jpegs.find((v) => v.width >= 600) ?? jpegs[jpegs.length - 1];
-      if (pick) out.set(id, { url: new URL(pick.url, publicUrl).toString(), alt: pic.altText ?? "" });
+      if (!pic || !pick) continue;
+      const path = post.audience === "public" ? pick.url : media.signedVariantUrl(pick.url, expiresAt);
+      out.set(post.id, { url: new URL(path, publicUrl).toString(), alt: pic.altText ?? "" });
     }
     return out;
   }
@@ -165,7 +185,7 @@ export function createDigestsService(deps: DigestsDeps) {
       postRows = await listPublishedPosts(db, project.id, allowed, p.windowStart, p.windowEnd);
     }
     postRows = postRows.filter((x) => allowed.includes(x.audience) && topicsAllow(topics, postTopics(x)));
-    const pictures = await posterUrls(postRows);
+    const pictures = await posterUrls(postRows, audience);
     const projectUrl = `${publicUrl}/projects/${project.slug}`;
     const doc: DigestDocument = {
       project: { name: project.name, slug: project.slug, operatorName: project.operatorName, postalAddress: project.postalAddress, timeZone: project.timeZone },
@@ -178,7 +198,7 @@ export function createDigestsService(deps: DigestsDeps) {
         summary: x.summary,
         url: `${projectUrl}/updates/${x.slug}`,
         publishedAt: x.publishedAt,
-        image: x.coverMediaId !== null ? (pictures.get(x.coverMediaId) ?? null) : null,
+        image: pictures.get(x.id) ?? null,
       })),
       moves: [],
       dueSoon: [],
@@ -412,7 +432,9 @@ export function createDigestsService(deps: DigestsDeps) {
       const owner = await db("digest_deliveries").where({ content_id: contentId, subscriber_id: subscriberId }).first("id");
       if (!content || !owner || content.empty) throw notFound("That digest");
       const l = linksFor(contentId, subscriberId);
-      return personalise(content.html, { webUrl: `${publicUrl}/api/digests/web/${token}`, preferencesUrl: l.preferencesUrl, unsubscribeUrl: l.unsubscribeUrl });
+      // The copy outlives its e-mail's picture links: an investor's pictures are signed again for this reading.
+      const html = media.refreshSignedUrls(content.html, expiryAfter(WEB_MEDIA_LINK_TTL_DAYS));
+      return personalise(html, { webUrl: `${publicUrl}/api/digests/web/${token}`, preferencesUrl: l.preferencesUrl, unsubscribeUrl: l.unsubscribeUrl });
     },
 
     findRunByKey: (projectId: number, key: string) => findRunByKey(db, projectId, key),

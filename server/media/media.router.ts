@@ -2,7 +2,7 @@ import { Router, type RequestHandler } from "express";
 import { MulterError } from "multer";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
-import { BulkTagInputSchema, GalleryQuerySchema, MediaListQuerySchema, MediaPatchInputSchema, ProjectQuerySchema, ReviewInputSchema } from "#shared/schemas/media.ts";
+import { BulkTagInputSchema, GalleryQuerySchema, MediaListQuerySchema, MediaPatchInputSchema, ProjectQuerySchema, ReviewInputSchema, SignedVariantQuerySchema } from "#shared/schemas/media.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireRole } from "../core/auth.ts";
 import type { MediaService } from "./media.service.ts";
@@ -128,6 +128,10 @@ const fileNotFound = { error: { code: "not_found", message: "There is no such im
  * GET /media/v/:name — derivative bytes with the audience check on every request. Public use
  * is cached for ever by anyone (`public, …, immutable`: the name is the bytes' hash); anything
  * else only by the reader's own browser (`private`).
+ *
+ * GET /media/s/:name?exp=&sig= — the same bytes for the holder of a signed, expiring link (investor
+ * images in e-mail, where nobody is signed in): kept only by the recipient's own cache, and not past
+ * the link's expiry.
  */
 export function mediaFilesRouter(media: MediaService): Router {
   const r = Router();
@@ -144,6 +148,32 @@ export function mediaFilesRouter(media: MediaService): Router {
       ETag: file.etag,
       // Public derivatives appear in e-mail and feed readers on other origins.
       ...(file.isPublic ? { "Cross-Origin-Resource-Policy": "cross-origin" } : {}),
+    });
+    if (req.headers["if-none-match"] === file.etag) {
+      file.stream.destroy();
+      res.status(304).end();
+      return;
+    }
+    res.set({ "Content-Type": file.contentType, "Content-Length": String(file.bytes) });
+    file.stream.on("error", (err) => res.destroy(err));
+    file.stream.pipe(res);
+  });
+  r.get("/media/s/:name", async (req, res) => {
+    // Refusals (400, 404, 410) are never stored, by any cache.
+    res.set("Cache-Control", "no-store");
+    const link = SignedVariantQuerySchema.parse({ ...req.query });
+    const file = await media.readSignedVariant(req.params.name, link);
+    if (!file) {
+      res.status(404).json(fileNotFound);
+      return;
+    }
+    res.set({
+      // Never `public`: a shared cache must not hand an investor's image to anyone else.
+      "Cache-Control": `private, max-age=${file.maxAgeSeconds}`,
+      ETag: file.etag,
+      // Mail clients and web copies show it from other origins.
+      "Cross-Origin-Resource-Policy": "cross-origin",
+      "X-Robots-Tag": "noindex",
     });
     if (req.headers["if-none-match"] === file.etag) {
       file.stream.destroy();

@@ -1,4 +1,4 @@
-import { randomBytes } from "node:crypto";
+import { createHmac, randomBytes, timingSafeEqual } from "node:crypto";
 import type { Readable } from "node:stream";
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
@@ -21,6 +21,7 @@ import {
   type PictureVariant,
   type RefusedFile,
   type ReviewInput,
+  type SignedVariantQuery,
   type Sensitivity,
   type TagKind,
   type VariantFormat,
@@ -104,6 +105,19 @@ export function variantKey(v: { hash: string; width: number; format: VariantForm
 export function variantUrl(key: string): string {
   return `/media/v/${key.replace(/^variants\//, "")}`;
 }
+
+/**
+ * Signed derivative links (investor images in e-mail, which no session reaches). The key is derived
+ * from TOKEN_SECRET under its own label, so no subscriber, web-copy or other link signed with that
+ * secret can be presented as a media signature, nor the other way round.
+ */
+const SIGNED_LINK_LABEL = "plumbline signed media link v1";
+/** A recipient's own cache may keep a signed image at most this long (and never past the link's expiry). */
+export const SIGNED_LINK_MAX_CACHE_SECONDS = 24 * 60 * 60;
+/** A signed link as it appears in text or HTML (`&` escaped or not); groups: name, exp, separator, sig. */
+const SIGNED_LINK_IN_TEXT = /\/media\/s\/([0-9a-f]{16}-\d{1,5}w\.(?:avif|webp|jpg))\?exp=(\d{1,12})(&amp;|&)sig=([A-Za-z0-9_-]{43})/g;
+
+const linkMac = (key: Buffer, name: string, exp: number) => createHmac("sha256", key).update(`${name}\n${exp}`).digest();
 
 function originalKey(sha256: string, mime: string): string {
   return `originals/${sha256.slice(0, 2)}/${sha256}.${ORIGINAL_EXTENSIONS[mime] ?? "bin"}`;
@@ -203,8 +217,30 @@ export interface DerivativeResult {
   variants: Array<{ width: number; height: number; format: VariantFormat; storageKey: string; bytes: number }>;
 }
 
-export function createMediaService(deps: { db: Db; storage: MediaStorage; uploads: UploadArea; projects: ProjectsService; limits: MediaLimits }) {
+export function createMediaService(deps: {
+  db: Db;
+  storage: MediaStorage;
+  uploads: UploadArea;
+  projects: ProjectsService;
+  limits: MediaLimits;
+  /** config TOKEN_SECRET; without it no signed link is made or accepted (the seed needs none). */
+  tokenSecret?: string;
+}) {
   const { db, storage, uploads, projects, limits } = deps;
+  const linkKey = deps.tokenSecret ? createHmac("sha256", deps.tokenSecret).update(SIGNED_LINK_LABEL).digest() : null;
+
+  /** Whether `sig` is this service's signature of (name, exp); constant-time. */
+  function isSignedBy(name: string, exp: number, sig: string | undefined): boolean {
+    if (!linkKey || !sig) return false;
+    const sent = Buffer.from(sig, "base64url");
+    const expected = linkMac(linkKey, name, exp);
+    return sent.length === expected.length && timingSafeEqual(sent, expected) && sent.toString("base64url") === sig;
+  }
+
+  function signedPath(name: string, exp: number): string {
+    if (!linkKey) throw new Error("signed media links need TOKEN_SECRET");
+    return `/media/s/${name}?exp=${exp}&sig=${linkMac(linkKey, name, exp).toString("base64url")}`;
+  }
   const queuedListeners = new Set<() => void>();
 
   async function resolveProject(slug: string | undefined): Promise<Project> {
@@ -497,7 +533,44 @@ export function createMediaService(deps: { db: Db; storage: MediaStorage; upload
       return { stream: file.stream, bytes: file.bytes, contentType: CONTENT_TYPES[found.format], isPublic: found.isPublic, etag: `"${name.slice(0, 16)}"` };
     },
 
-    // The contract other modules code against (posts, stories, the public site).
+    /**
+     * A derivative for the holder of a signed link: the signature grants the investor audience
+     * (cleared, used in published public or investor content), never staff's. Null for a forged,
+     * altered or missing signature, a name that is not a derivative, or a photo investors may not
+     * see; an authentic link past its expiry is refused with 410.
+     */
+    async readSignedVariant(name: string, link: SignedVariantQuery, now: Date = new Date()): Promise<(ReadableFile & { maxAgeSeconds: number }) | null> {
+      if (!VARIANT_NAME.test(name) || !isSignedBy(name, link.exp, link.sig)) return null;
+      if (link.exp * 1000 <= now.getTime()) throw new AppError("link_expired", "This image link has expired. Open the digest's web copy for a fresh one.", 410);
+      const file = await this.readVariant(name, "investor");
+      const left = Math.floor(link.exp - now.getTime() / 1000);
+      return file ? { ...file, maxAgeSeconds: Math.min(left, SIGNED_LINK_MAX_CACHE_SECONDS) } : null;
+    },
+
+    // The contract other modules code against (posts, stories, the public site, e-mail).
+
+    /**
+     * The signed, expiring same-origin URL of a derivative (`/media/s/<name>?exp=…&sig=…`), from its
+     * name or its `/media/v/` URL. Not personal: anyone holding it sees that one image until it expires.
+     */
+    signedVariantUrl(variant: string, expiresAt: Date): string {
+      const name = variant.replace(/^\/media\/v\//, "");
+      if (!VARIANT_NAME.test(name)) throw new Error(`not a derivative: ${variant}`);
+      return signedPath(name, Math.ceil(expiresAt.getTime() / 1000));
+    },
+
+    /**
+     * Every authentic signed derivative link in `text` (HTML or plain), signed again to expire at
+     * `expiresAt`; anything else is left as it is. For copies kept longer than their links (the web copy).
+     */
+    refreshSignedUrls(text: string, expiresAt: Date): string {
+      if (!linkKey) return text;
+      const exp = Math.ceil(expiresAt.getTime() / 1000);
+      return text.replace(SIGNED_LINK_IN_TEXT, (whole, name: string, oldExp: string, sep: string, sig: string) => {
+        if (!isSignedBy(name, Number(oldExp), sig)) return whole;
+        return `/media/s/${name}?exp=${exp}${sep}sig=${linkMac(linkKey, name, exp).toString("base64url")}`;
+      });
+    },
 
     /** For publishing checks: every image has alt text, is cleared, exists. In the order asked. */
     async describeForPublishing(ids: number[]): Promise<

@@ -128,6 +128,9 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "post", path: "/api/media/999999999/retry", body: {}, expect: staffOnly(404) },
   { method: "get", path: "/api/media/999999999/original", expect: staffOnly(404) },
   { method: "get", path: "/media/v/0000000000000000-320w.webp", expect: all(404) },
+  // Signed derivative links: the signature is the permission, whoever calls (a forged one is 404, a bad query 400).
+  { method: "get", path: `/media/s/0000000000000000-320w.webp?exp=4102444800&sig=${"a".repeat(43)}`, expect: all(404) },
+  { method: "get", path: "/media/s/0000000000000000-320w.webp?exp=soon", expect: all(400) },
   { method: "get", path: "/office/media", expect: all(200) },
   { method: "get", path: "/office/media/review", expect: all(200) },
   // Updates (posts): reads for everyone (filtered by audience), writing for staff, approving and publishing for leads and admins.

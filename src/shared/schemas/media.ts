@@ -240,3 +240,19 @@ export interface Gallery {
   systems: System[];
   months: string[];
 }
+
+/**
+ * GET /media/s/:name — a signed derivative link (investor images in e-mail): `exp`, the expiry in
+ * Unix seconds, and `sig`, base64url HMAC-SHA256 over the name and the expiry. A missing or wrong
+ * `sig` is not a validation error but a 404, the same answer as a hidden image. Not strict: the link
+ * travels through mail clients and image proxies that may append parameters, and an unsigned
+ * parameter grants nothing.
+ */
+export const SignedVariantQuerySchema = z.object({
+  exp: z
+    .string({ error: "is required: the link's expiry in Unix seconds" })
+    .regex(/^\d{1,12}$/, "must be a whole number of seconds (Unix time)")
+    .transform(Number),
+  sig: z.string({ error: "must be given once" }).optional(),
+});
+export type SignedVariantQuery = z.infer<typeof SignedVariantQuerySchema>;
