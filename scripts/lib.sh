@@ -50,6 +50,20 @@ ensure_chromium() {
   apt_install chromium chromium
 }
 
+ensure_imagemagick() {
+  # The image benchmark's comparison: Debian's ImageMagick (its convert lives in /usr/bin;
+  # anything else on PATH called convert is not it).
+  [ -x /usr/bin/convert ] && return 0
+  if is_root; then
+    step "Installing Debian packages: imagemagick (apt-get)"
+    export DEBIAN_FRONTEND=noninteractive
+    apt-get update -qq
+    apt-get install -y -qq imagemagick >/dev/null
+  else
+    printf 'ImageMagick is missing; the image benchmark measures Plumbline alone. Install it with: sudo apt-get install -y imagemagick\n' >&2
+  fi
+}
+
 db_running() {
   [ -S "$DB_SOCKET" ] && mariadb-admin --no-defaults --socket="$DB_SOCKET" -uroot ping >/dev/null 2>&1
 }

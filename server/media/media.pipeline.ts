@@ -55,21 +55,25 @@ export const DEFAULT_FORMATS: readonly DerivativeFormat[] = ["avif", "webp", "jp
 
 /**
  * Encoder settings, chosen by measurement on a 24 MP photographic test image (see
- * tests/bench/images.bench.ts; SSIM against a Lanczos downscale of the full decode):
- * - AVIF effort 0 encoded 5× faster than effort 2 for the same bytes and SSIM, and 30×
- *   faster than the default effort 4 for about 20 % more bytes; 4:2:0 chroma was a little
- *   smaller and faster than 4:4:4.
- * - WebP effort 2 encoded twice as fast as the default effort 4 for about 7 % more bytes.
- * - JPEG, the fallback few browsers still take: quantisation table 3 with progressive scans
- *   (a few per cent smaller than the standard tables at equal SSIM, at nearly the same
- *   speed); mozjpeg's full preset adds trellis quantisation, which saved about 5 % more at
- *   5× the encoding time, so it is left off.
+ * tests/bench/images.bench.ts; SSIM on luma against a Lanczos downscale of the full decode,
+ * compared output by output with ImageMagick's full-decode set at common web settings):
+ * - AVIF at the fastest effort (0): effort 1 made the set 2–7 % smaller at equal SSIM for
+ *   twice the encoding time, efforts 2 and 3 were slower again for little more, and the
+ *   default effort 4 matched libheif's default encoder in bytes at 30× the time. 4:2:0
+ *   chroma was smaller and faster than 4:4:4.
+ * - WebP effort 4 (libwebp's default method) was 13 % smaller than effort 2 at equal SSIM,
+ *   for twice the time; effort 6 saved 4 % more at 2.4× that.
+ * - JPEG, the fallback few browsers still take: the standard tables, progressive with
+ *   optimised Huffman coding. Quantisation table 3 came out 3 % larger at equal SSIM,
+ *   trellis quantisation no smaller; mozjpeg's full preset saved 4 % for 5× the time, so
+ *   it is left off.
+ * Each quality is the one whose mean SSIM over the five widths matched ImageMagick's.
  * Derivatives carry no ICC profile: they are sRGB, which browsers assume when untagged.
  */
 export const ENCODER_SETTINGS = {
-  avif: { quality: 55, effort: 0, chromaSubsampling: "4:2:0" },
-  webp: { quality: 78, effort: 2 },
-  jpeg: { quality: 80, quantisationTable: 3, progressive: true, optimiseCoding: true },
+  avif: { quality: 58, effort: 0, chromaSubsampling: "4:2:0" },
+  webp: { quality: 81, effort: 4 },
+  jpeg: { quality: 82, progressive: true, optimiseCoding: true },
 } as const satisfies {
   avif: AvifOptions;
   webp: WebpOptions;
@@ -79,7 +83,7 @@ export const ENCODER_SETTINGS = {
 const CONTENT_TYPES = { avif: "image/avif", webp: "image/webp", jpeg: "image/jpeg" } as const;
 
 /** Relative encoding time per pixel at ENCODER_SETTINGS, for longest-first scheduling. */
-const ENCODE_TIME_PER_PIXEL = { avif: 3, webp: 2, jpeg: 1 } as const;
+const ENCODE_TIME_PER_PIXEL = { avif: 3, webp: 6, jpeg: 1 } as const;
 const PLACEHOLDER_WIDTH = 16;
 
 /**

@@ -8,6 +8,14 @@
  * every output against a reference downscale and the peak resident memory of each process.
  * A benchmark, not a test: it asserts nothing and never fails on a missed target; it says
  * which targets were met.
+ *
+ * ImageMagick runs two ways, each one decode: with a JPEG size hint (libjpeg's scaled
+ * decode, its fastest way; measured here the 2400 px outputs then lose detail, SSIM about
+ * 0.93 before any encoding, and grow) and decoding at full size (its best quality). Speed is
+ * compared with the faster, bytes and SSIM with the better. Then, since total bytes mean
+ * little unless the SSIM matches, each of Plumbline's encoders is searched, output by
+ * output, for the lowest quality that reaches ImageMagick's SSIM on that output, giving the
+ * bytes ratio at equal SSIM.
  */
 import { execFileSync, spawn } from "node:child_process";
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from "node:fs";
@@ -103,9 +111,10 @@ function heightFor(width: number): number {
  * stripped, then resized down a chain (each width from the previous one, in memory),
  * writing every format at each step.
  */
-function magickArgs(input: string, outDir: string, widths: number[], formats: readonly Format[]): string[] {
+function magickArgs(input: string, outDir: string, widths: number[], formats: readonly Format[], sizeHint: boolean): string[] {
   const largest = widths[0] ?? WIDTH;
-  const args = ["-define", `jpeg:size=${largest}x${heightFor(largest)}`, input, "-auto-orient", "-colorspace", "sRGB", "-strip", "-filter", "Lanczos"];
+  const hint = sizeHint ? ["-define", `jpeg:size=${largest}x${heightFor(largest)}`] : [];
+  const args = [...hint, input, "-auto-orient", "-colorspace", "sRGB", "-strip", "-filter", "Lanczos"];
   for (const w of widths) {
     if (w !== WIDTH) args.push("-resize", `${w}x${heightFor(w)}!`);
     for (const format of formats) {
@@ -145,10 +154,6 @@ async function scoreSet(dir: string, input: string, references: Map<string, Buff
     const height = Number(match[2]);
     const format: Format = match[3] === "jpg" ? "jpeg" : (match[3] as Format);
     const bytes = readFileSync(path.join(dir, file));
-    const decoded = await sharp(bytes).ensureAlpha().raw().toBuffer({ resolveWithObject: true });
-    if (decoded.info.width !== width || decoded.info.height !== height) {
-      throw new Error(`${file} decodes to ${decoded.info.width}x${decoded.info.height}`);
-    }
     const key = `${width}x${height}`;
     let reference = references.get(key);
     if (!reference) {
@@ -161,14 +166,23 @@ async function scoreSet(dir: string, input: string, references: Map<string, Buff
         .toBuffer();
       references.set(key, reference);
     }
-    const value = ssim(
-      { data: new Uint8ClampedArray(decoded.data.buffer, decoded.data.byteOffset, decoded.data.length), width, height },
-      { data: new Uint8ClampedArray(reference.buffer, reference.byteOffset, reference.length), width, height },
-      { ssim: "weber", downsample: false },
-    ).mssim;
+    const value = await ssimOf(bytes, width, height, reference);
     scored.push({ file, format, width, height, bytes: bytes.length, ssim: value });
   }
   return scored;
+}
+
+/** SSIM of encoded bytes against a reference of the same size (RGBA raw). */
+async function ssimOf(bytes: Buffer, width: number, height: number, reference: Buffer): Promise<number> {
+  const decoded = await sharp(bytes).ensureAlpha().raw().toBuffer({ resolveWithObject: true });
+  if (decoded.info.width !== width || decoded.info.height !== height) {
+    throw new Error(`an output of ${width}x${height} decodes to ${decoded.info.width}x${decoded.info.height}`);
+  }
+  return ssim(
+    { data: new Uint8ClampedArray(decoded.data.buffer, decoded.data.byteOffset, decoded.data.length), width, height },
+    { data: new Uint8ClampedArray(reference.buffer, reference.byteOffset, reference.length), width, height },
+    { ssim: "weber", downsample: false },
+  ).mssim;
 }
 
 let decodedOriginal: Promise<{ data: Buffer; info: { width: number; height: number; channels: 3 } }> | undefined;
@@ -189,6 +203,54 @@ const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / Math.max(1, xs.le
 const kb = (bytes: number) => `${(bytes / 1024).toFixed(1)} KB`;
 const mb = (kbytes: number | null) => (kbytes === null ? "n/a" : `${(kbytes / 1024).toFixed(0)} MB`);
 
+const MAGICK_BIN = existsSync("/usr/bin/convert") ? "/usr/bin/convert" : "convert";
+
+/** How one ImageMagick pipeline is run: with libjpeg's scaled decode, or at full size. */
+const MAGICK_WAYS = [
+  { key: "hinted", label: "ImageMagick, size-hinted decode (fastest)", sizeHint: true },
+  { key: "full", label: "ImageMagick, full decode (best quality)", sizeHint: false },
+] as const;
+
+/**
+ * The bytes of Plumbline's encoders at ImageMagick's SSIM, output by output: for each
+ * output, the lowest quality (binary search, 20–100) whose SSIM reaches that of
+ * ImageMagick's output at the same width and format, with the other settings as configured.
+ */
+async function matchAtEqualSsim(input: string, widths: number[], theirs: Scored[], references: Map<string, Buffer>): Promise<{ output: Scored; quality: number | null; bytes: number | null }[]> {
+  // The levels the pipeline encodes: the largest width from the file (shrink-on-load), each
+  // smaller one from the one before, in memory.
+  const levels = new Map<number, { data: Buffer; info: { width: number; height: number; channels: 3 } }>();
+  let previous: { data: Buffer; info: { width: number; height: number; channels: 3 } } | null = null;
+  for (const w of widths) {
+    const source: sharp.Sharp = previous ? sharp(previous.data, { raw: previous.info }) : sharp(input).rotate().toColourspace("srgb").removeAlpha();
+    const { data, info } = await source.resize(w, heightFor(w), { fit: "fill" }).raw().toBuffer({ resolveWithObject: true });
+    previous = { data, info: { width: info.width, height: info.height, channels: 3 } };
+    levels.set(w, previous);
+  }
+  const rows: { output: Scored; quality: number | null; bytes: number | null }[] = [];
+  for (const target of theirs) {
+    const level = levels.get(target.width);
+    if (!level) continue;
+    const reference = references.get(`${target.width}x${target.height}`) as Buffer;
+    let lo = 20;
+    let hi = 100;
+    let best: { quality: number; bytes: number } | null = null;
+    while (lo <= hi) {
+      const quality = Math.floor((lo + hi) / 2);
+      const image = sharp(level.data, { raw: level.info });
+      const settings = { ...ENCODER_SETTINGS[target.format], quality };
+      const bytes = await (target.format === "avif" ? image.avif(settings) : target.format === "webp" ? image.webp(settings) : image.jpeg(settings)).toBuffer();
+      const value = await ssimOf(bytes, target.width, target.height, reference);
+      if (value >= target.ssim) {
+        best = { quality, bytes: bytes.length };
+        hi = quality - 1;
+      } else lo = quality + 1;
+    }
+    rows.push({ output: target, quality: best?.quality ?? null, bytes: best?.bytes ?? null });
+  }
+  return rows;
+}
+
 async function main(): Promise<void> {
   const argv = process.argv.slice(2);
   if (argv[0] === "--child") {
@@ -205,10 +267,10 @@ async function main(): Promise<void> {
     let magickVersion = "not found";
     let magickFormats = "";
     try {
-      magickVersion = execFileSync("convert", ["-version"], { encoding: "utf8" }).split("\n")[0] ?? "";
-      magickFormats = execFileSync("convert", ["-list", "format"], { encoding: "utf8" });
+      magickVersion = execFileSync(MAGICK_BIN, ["-version"], { encoding: "utf8" }).split("\n")[0] ?? "";
+      magickFormats = execFileSync(MAGICK_BIN, ["-list", "format"], { encoding: "utf8" });
     } catch {
-      console.log("ImageMagick's convert is not installed; only Plumbline's pipeline can be measured.");
+      console.log("ImageMagick's convert is not installed (apt-get install imagemagick); only Plumbline's pipeline can be measured.");
     }
     console.log(`ImageMagick: ${magickVersion}`);
     const magickHas = (name: string) => new RegExp(`^\\s*${name}\\*?\\s+\\S+\\s+rw`, "mi").test(magickFormats);
@@ -227,65 +289,101 @@ async function main(): Promise<void> {
     console.log(`ImageMagick settings: ${JSON.stringify(MAGICK_SETTINGS)}\n`);
 
     const plumblineDir = path.join(work, "plumbline");
-    const magickDir = path.join(work, "magick");
-    mkdirSync(magickDir);
     const plumbline: Measured[] = [];
     const plumblinePipelineMs: number[] = [];
-    const magick: Measured[] = [];
+    const magick = new Map<string, Measured[]>(MAGICK_WAYS.map((w) => [w.key, []]));
+    const magickDir = (key: string) => path.join(work, `magick-${key}`);
+    for (const way of MAGICK_WAYS) mkdirSync(magickDir(way.key));
     for (let run = 0; run < runs; run += 1) {
       const p = await runMeasured(process.execPath, ["--import", "tsx", THIS_FILE, "--child", input, plumblineDir]);
       plumbline.push(p);
       plumblinePipelineMs.push((JSON.parse(p.stdout.trim().split("\n").pop() ?? "{}") as { pipelineMs: number }).pipelineMs);
-      if (formatsForMagick.length > 0) magick.push(await runMeasured("convert", magickArgs(input, magickDir, widths, formatsForMagick)));
-      const m = magick[run];
-      console.log(
-        `run ${run + 1}: Plumbline ${(plumblinePipelineMs[run] as number).toFixed(0)} ms in the pipeline (${p.wallMs.toFixed(0)} ms for the whole process, Node start-up included), ` +
-          `ImageMagick ${m ? `${m.wallMs.toFixed(0)} ms` : "n/a"}`,
-      );
+      const line = [`run ${run + 1}: Plumbline ${(plumblinePipelineMs[run] as number).toFixed(0)} ms in the pipeline (${p.wallMs.toFixed(0)} ms as a whole process, Node start-up included)`];
+      if (formatsForMagick.length > 0) {
+        for (const way of MAGICK_WAYS) {
+          const m = await runMeasured(MAGICK_BIN, magickArgs(input, magickDir(way.key), widths, formatsForMagick, way.sizeHint));
+          magick.get(way.key)?.push(m);
+          line.push(`ImageMagick ${way.key} ${m.wallMs.toFixed(0)} ms`);
+        }
+      }
+      console.log(line.join(", "));
     }
 
     t = performance.now();
     const references = new Map<string, Buffer>();
     const ours = await scoreSet(plumblineDir, input, references);
-    const theirs = formatsForMagick.length > 0 ? await scoreSet(magickDir, input, references) : [];
-    console.log(`(scored ${ours.length + theirs.length} outputs in ${((performance.now() - t) / 1000).toFixed(1)} s)\n`);
+    const theirs = new Map<string, Scored[]>();
+    for (const way of MAGICK_WAYS) theirs.set(way.key, formatsForMagick.length > 0 ? await scoreSet(magickDir(way.key), input, references) : []);
+    console.log(`(scored ${ours.length + [...theirs.values()].reduce((n, x) => n + x.length, 0)} outputs in ${((performance.now() - t) / 1000).toFixed(1)} s)\n`);
 
-    console.log("output           Plumbline bytes   SSIM   | ImageMagick bytes   SSIM");
+    const hinted = theirs.get("hinted") ?? [];
+    const full = theirs.get("full") ?? [];
+    const find = (set: Scored[], s: Scored) => set.find((o) => o.width === s.width && o.height === s.height && o.format === s.format);
+    console.log("output            Plumbline bytes   SSIM  | IM hinted bytes   SSIM  | IM full bytes   SSIM");
     for (const s of ours) {
-      const other = theirs.find((o) => o.width === s.width && o.height === s.height && o.format === s.format);
-      console.log(
-        `${`${s.width}x${s.height}.${s.format}`.padEnd(16)} ${kb(s.bytes).padStart(12)}   ${s.ssim.toFixed(4)} | ${(other ? kb(other.bytes) : "—").padStart(12)}     ${other ? other.ssim.toFixed(4) : "—"}`,
-      );
+      const cell = (o: Scored | undefined) => `${(o ? kb(o.bytes) : "—").padStart(12)}   ${o ? o.ssim.toFixed(4) : "  —   "}`;
+      console.log(`${`${s.width}x${s.height}.${s.format}`.padEnd(17)} ${cell(s)} | ${cell(find(hinted, s))} | ${cell(find(full, s))}`);
     }
     console.log("");
+    const total = (set: Scored[]) => set.reduce((n, s) => n + s.bytes, 0);
     for (const format of DEFAULT_FORMATS) {
       const a = ours.filter((s) => s.format === format);
-      const b = theirs.filter((s) => s.format === format);
-      const sumA = a.reduce((n, s) => n + s.bytes, 0);
-      const sumB = b.reduce((n, s) => n + s.bytes, 0);
-      console.log(
-        `${format.padEnd(5)} total: Plumbline ${kb(sumA)} (mean SSIM ${mean(a.map((s) => s.ssim)).toFixed(4)}), ` +
-          `ImageMagick ${b.length ? `${kb(sumB)} (mean SSIM ${mean(b.map((s) => s.ssim)).toFixed(4)}), ratio ${(sumA / sumB).toFixed(2)}×` : "n/a"}`,
-      );
+      const parts = [`${format.padEnd(5)} Plumbline ${kb(total(a))} (mean SSIM ${mean(a.map((s) => s.ssim)).toFixed(4)})`];
+      for (const way of MAGICK_WAYS) {
+        const b = (theirs.get(way.key) ?? []).filter((s) => s.format === format);
+        if (b.length) parts.push(`IM ${way.key} ${kb(total(b))} (${mean(b.map((s) => s.ssim)).toFixed(4)}), ratio ${(total(a) / total(b)).toFixed(2)}×`);
+      }
+      console.log(parts.join("; "));
     }
 
     const comparable = ours.filter((s) => formatsForMagick.includes(s.format));
-    const bytesOurs = comparable.reduce((n, s) => n + s.bytes, 0);
-    const bytesTheirs = theirs.reduce((n, s) => n + s.bytes, 0);
+    const bytesOurs = total(comparable);
     const ssimOurs = mean(comparable.map((s) => s.ssim));
-    const ssimTheirs = mean(theirs.map((s) => s.ssim));
     const wallOurs = median(plumblinePipelineMs);
     const wallOursProcess = median(plumbline.map((m) => m.wallMs));
-    const wallTheirs = magick.length ? median(magick.map((m) => m.wallMs)) : NaN;
     const rssOurs = Math.max(...plumbline.map((m) => m.peakRssKb ?? 0)) || null;
-    const rssTheirs = magick.length ? Math.max(...magick.map((m) => m.peakRssKb ?? 0)) || null : null;
+    const wallOf = (key: string) => {
+      const ms = magick.get(key) ?? [];
+      return ms.length ? median(ms.map((m) => m.wallMs)) : NaN;
+    };
+    const rssOf = (key: string) => Math.max(...(magick.get(key) ?? []).map((m) => m.peakRssKb ?? 0)) || null;
+    const fastestKey = wallOf("hinted") <= wallOf("full") ? "hinted" : "full";
+    const wallFastest = wallOf(fastestKey);
 
     console.log("\nSummary (median of", runs, "runs)");
-    console.log(`  wall time      Plumbline ${wallOurs.toFixed(0)} ms (pipeline; ${wallOursProcess.toFixed(0)} ms as a whole process)   ImageMagick ${wallTheirs.toFixed(0)} ms`);
-    console.log(`  speed-up       ${(wallTheirs / wallOurs).toFixed(2)}× (pipeline)   ${(wallTheirs / wallOursProcess).toFixed(2)}× (whole processes)`);
-    console.log(`  total bytes    Plumbline ${kb(bytesOurs)}   ImageMagick ${kb(bytesTheirs)}   ratio ${(bytesOurs / bytesTheirs).toFixed(2)}×`);
-    console.log(`  mean SSIM      Plumbline ${ssimOurs.toFixed(4)}   ImageMagick ${ssimTheirs.toFixed(4)}`);
-    console.log(`  peak RSS       Plumbline ${mb(rssOurs)} (Node included)   ImageMagick ${mb(rssTheirs)}   (${existsSync("/usr/bin/time") ? "GNU time -v" : "/proc VmHWM polling"})`);
+    console.log(`  wall time      Plumbline ${wallOurs.toFixed(0)} ms (pipeline; ${wallOursProcess.toFixed(0)} ms as a whole process)   IM hinted ${wallOf("hinted").toFixed(0)} ms   IM full ${wallOf("full").toFixed(0)} ms`);
+    console.log(`  speed-up       against ImageMagick's faster way (${fastestKey}): ${(wallFastest / wallOurs).toFixed(2)}× (pipeline)   ${(wallFastest / wallOursProcess).toFixed(2)}× (whole processes)`);
+    for (const way of MAGICK_WAYS) {
+      const set = theirs.get(way.key) ?? [];
+      if (!set.length) continue;
+      const atLeast = comparable.filter((s) => {
+        const o = find(set, s);
+        return o !== undefined && s.ssim >= o.ssim;
+      }).length;
+      console.log(
+        `  against IM ${way.key.padEnd(6)} bytes ${kb(bytesOurs)} vs ${kb(total(set))} = ${(bytesOurs / total(set)).toFixed(2)}×; mean SSIM ${ssimOurs.toFixed(4)} vs ${mean(set.map((s) => s.ssim)).toFixed(4)}; ` +
+          `${atLeast} of ${comparable.length} outputs at equal or better SSIM; peak RSS ${mb(rssOf(way.key))}`,
+      );
+    }
+    console.log(`  peak RSS       Plumbline ${mb(rssOurs)} (Node included)   (${existsSync("/usr/bin/time") ? "GNU time -v" : "/proc VmHWM polling"})`);
+
+    // The fair bytes figure: Plumbline's encoders brought to ImageMagick's SSIM, output by output.
+    let matchedRatio = NaN;
+    if (full.length) {
+      t = performance.now();
+      const matched = await matchAtEqualSsim(input, widths, full, references);
+      console.log(`\nAt equal SSIM, output by output (Plumbline's encoder settings, quality searched to reach IM full's SSIM; ${((performance.now() - t) / 1000).toFixed(0)} s):`);
+      for (const format of formatsForMagick) {
+        const rows = matched.filter((r) => r.output.format === format);
+        const cells = rows.map((r) => `${r.output.width}: ${r.quality === null ? "never reached" : `q${r.quality} ${((r.bytes as number) / r.output.bytes).toFixed(2)}×`}`);
+        const reached = rows.filter((r) => r.bytes !== null);
+        const ratio = reached.reduce((n, r) => n + (r.bytes as number), 0) / reached.reduce((n, r) => n + r.output.bytes, 0);
+        console.log(`  ${format.padEnd(5)} ${ratio.toFixed(2)}× | ${cells.join(" | ")}`);
+      }
+      const reached = matched.filter((r) => r.bytes !== null);
+      matchedRatio = reached.length === matched.length ? reached.reduce((n, r) => n + (r.bytes as number), 0) / reached.reduce((n, r) => n + r.output.bytes, 0) : NaN;
+      console.log(`  whole set ${Number.isNaN(matchedRatio) ? "n/a (some outputs never reached IM's SSIM)" : `${matchedRatio.toFixed(2)}× the bytes of ImageMagick's full-decode set`}`);
+    }
 
     // Phones store most portraits as landscape pixels plus EXIF orientation 6; the widest
     // derivative is then 2400 × 3600 and no JPEG shrink-on-load applies, so measure it too.
@@ -293,13 +391,18 @@ async function main(): Promise<void> {
     await sharp(input).withMetadata({ orientation: 6 }).jpeg({ quality: 92 }).toFile(portrait);
     const portraitRun = await runMeasured(process.execPath, ["--import", "tsx", THIS_FILE, "--child", portrait, path.join(work, "portrait")]);
     const portraitMs = (JSON.parse(portraitRun.stdout.trim().split("\n").pop() ?? "{}") as { pipelineMs: number }).pipelineMs;
-    console.log(`  portrait       the same photo tagged EXIF orientation 6 (4000 × 6000 displayed): Plumbline ${portraitMs.toFixed(0)} ms, peak RSS ${mb(portraitRun.peakRssKb)}`);
+    console.log(`\n  portrait       the same photo tagged EXIF orientation 6 (4000 × 6000 displayed): Plumbline ${portraitMs.toFixed(0)} ms, peak RSS ${mb(portraitRun.peakRssKb)}`);
 
     const verdict = (ok: boolean) => (ok ? "met" : "NOT met");
+    const fullBytes = total(full);
+    const fullSsim = mean(full.map((s) => s.ssim));
     console.log("\nTargets");
-    console.log(`  ≥ 3× faster than ImageMagick:              ${verdict(wallTheirs / wallOurs >= 3)} (${(wallTheirs / wallOurs).toFixed(2)}× pipeline, ${(wallTheirs / wallOursProcess).toFixed(2)}× whole process)`);
-    console.log(`  total bytes ≤ 0.6× at equal or better SSIM: ${verdict(bytesOurs / bytesTheirs <= 0.6 && ssimOurs >= ssimTheirs)} (${(bytesOurs / bytesTheirs).toFixed(2)}×, SSIM ${ssimOurs.toFixed(4)} vs ${ssimTheirs.toFixed(4)})`);
-    console.log(`  peak RSS ≤ 400 MB:                          ${verdict(rssOurs !== null && rssOurs <= 400 * 1024)} (${mb(rssOurs)})`);
+    console.log(`  ≥ 3× faster than ImageMagick's faster way:          ${verdict(wallFastest / wallOurs >= 3)} (${(wallFastest / wallOurs).toFixed(2)}× pipeline, ${(wallFastest / wallOursProcess).toFixed(2)}× whole process)`);
+    console.log(
+      `  total bytes ≤ 0.6× at equal or better SSIM (IM full): ${verdict(bytesOurs / fullBytes <= 0.6 && ssimOurs >= fullSsim)} ` +
+        `(as made: ${(bytesOurs / fullBytes).toFixed(2)}× at mean SSIM ${ssimOurs.toFixed(4)} vs ${fullSsim.toFixed(4)}; at equal SSIM output by output: ${Number.isNaN(matchedRatio) ? "n/a" : `${matchedRatio.toFixed(2)}×`})`,
+    );
+    console.log(`  peak RSS ≤ 400 MB:                                   ${verdict(rssOurs !== null && rssOurs <= 400 * 1024 && (portraitRun.peakRssKb ?? Infinity) <= 400 * 1024)} (landscape ${mb(rssOurs)}, portrait ${mb(portraitRun.peakRssKb)})`);
     if (keep) console.log(`\nOutputs kept in ${work}`);
   } finally {
     if (!keep) rmSync(work, { recursive: true, force: true });
