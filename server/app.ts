@@ -39,8 +39,8 @@ import { mailEventsRouter, oneClickRouter, subscribersRouter } from "./subscribe
 import { createPostsService, type PostsService } from "./posts/posts.service.ts";
 import { postsRouter } from "./posts/posts.router.ts";
 import { createPublishingTicker, type PublishingTicker } from "./posts/posts.scheduler.ts";
-import { createStoriesService } from "./stories/stories.service.ts";
-import { storiesRouter } from "./stories/stories.router.ts";
+import { createStoriesService, type StoriesService } from "./stories/stories.service.ts";
+import { storiesRouter, storyPagesRouter } from "./stories/stories.router.ts";
 import { createSiteService, injectHead, type SiteService } from "./site/site.service.ts";
 import { siteRouter } from "./site/site.router.ts";
 import { createPublicCache } from "./site/public-cache.ts";
@@ -75,7 +75,9 @@ export interface PlumblineApp {
   subscribers: SubscribersService;
   /** Updates; tests run scheduled publication with a chosen `now` (posts.publishDue). */
   posts: PostsService;
-  /** Scheduled publication: server/index.ts starts and stops it. */
+  /** Photo stories; tests run their scheduled publication with a chosen `now` (stories.publishDue). */
+  stories: StoriesService;
+  /** Scheduled publication of updates and photo stories: server/index.ts starts and stops it. */
   publishing: PublishingTicker;
   /** Digests: runs, previews and web copies. */
   digests: DigestsService;
@@ -138,7 +140,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
   const stories = createStoriesService({ db, projects, media, onChange: publicCache.clear });
   const site = createSiteService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
   // Building the app publishes nothing: server/index.ts starts the ticker.
-  const publishing = createPublishingTicker(posts, logger);
+  const publishing = createPublishingTicker({ posts, stories }, logger);
   const digests = createDigestsService({
     db,
     logger,
@@ -266,6 +268,8 @@ export function createApp(deps: AppDeps): PlumblineApp {
   app.use(mediaFilesRouter(media));
   // The Atom feeds, sitemap.xml and robots.txt (before the client's static files).
   app.use(siteRouter(site));
+  // An old address of a photo story answers 301 to its current page (before the HTML shell).
+  app.use(storyPagesRouter(stories));
 
   if (config.SERVE_CLIENT) mountClient(app, deps.clientDir ?? path.join(ROOT, "dist"), site);
   app.use(errorHandler);
@@ -279,6 +283,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
     rateLimits,
     subscribers,
     posts,
+    stories,
     publishing,
     digests,
     digestJobs,

@@ -62,7 +62,7 @@ import {
   type Viewer,
 } from "./posts.repository.ts";
 import { plainTextOf, renderRichText, type MilestoneBlockData, type RenderContext } from "./rich-text.ts";
-import { diffText } from "./text-diff.ts";
+import { diffText } from "#shared/domain/text-diff.ts";
 
 type Trx = Knex.Transaction;
 

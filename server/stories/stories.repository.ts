@@ -1,7 +1,7 @@
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { PostStatus } from "#shared/schemas/posts.ts";
-import type { StoryItemInput } from "#shared/schemas/stories.ts";
+import type { PublishingEvent, StoryItemInput } from "#shared/schemas/stories.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -32,6 +32,7 @@ export interface StoryRecord {
   status: PostStatus;
   authorId: number | null;
   authorName: string;
+  scheduledFor: Date | null;
   publishedAt: Date | null;
   withdrawnAt: Date | null;
   reviewComment: string | null;
@@ -53,6 +54,7 @@ function toRecord(r: Record<string, unknown>): StoryRecord {
     status: r.status as PostStatus,
     authorId: r.author_id === null ? null : Number(r.author_id),
     authorName: String(r.author_name),
+    scheduledFor: dateOrNull(r.scheduled_for),
     publishedAt: dateOrNull(r.published_at),
     withdrawnAt: dateOrNull(r.withdrawn_at),
     reviewComment: r.review_comment === null || r.review_comment === undefined ? null : String(r.review_comment),
@@ -87,6 +89,7 @@ export interface StoryUpdate {
   intro?: string;
   audience?: Audience;
   status?: PostStatus;
+  scheduledFor?: Date | null;
   publishedAt?: Date | null;
   withdrawnAt?: Date | null;
   reviewComment?: string | null;
@@ -98,6 +101,7 @@ const COLUMNS: Record<keyof StoryUpdate, string> = {
   intro: "intro",
   audience: "audience",
   status: "status",
+  scheduledFor: "scheduled_for",
   publishedAt: "published_at",
   withdrawnAt: "withdrawn_at",
   reviewComment: "review_comment",
@@ -123,15 +127,34 @@ export async function findVisibleStoryBySlug(q: Q, projectId: number, slug: stri
   return r ? toRecord(r) : null;
 }
 
-export async function storySlugTaken(q: Q, projectId: number, slug: string, exceptId?: number): Promise<boolean> {
-  const query = q("stories").where({ project_id: projectId, slug });
-  if (exceptId) query.whereNot({ id: exceptId });
-  return Boolean(await query.first("id"));
+/** The current address of a story that once lived at `oldSlug`, when the viewer may read it. */
+export async function findRedirect(q: Q, projectId: number, oldSlug: string, viewer: Viewer): Promise<string | null> {
+  const r = await visibleTo(
+    q("story_slugs as o").join("stories as s", "s.id", "o.story_id").where({ "o.project_id": projectId, "o.slug": oldSlug }),
+    viewer,
+  ).first("s.slug");
+  return r ? String(r.slug) : null;
+}
+
+/** Who holds an address in a project: a story's current slug or one of its old ones. */
+export async function slugHolder(q: Q, projectId: number, slug: string): Promise<{ storyId: number; current: boolean } | null> {
+  const current = await q("stories").where({ project_id: projectId, slug }).first("id");
+  if (current) return { storyId: Number(current.id), current: true };
+  const old = await q("story_slugs").where({ project_id: projectId, slug }).first("story_id");
+  return old ? { storyId: Number(old.story_id), current: false } : null;
+}
+
+export async function keepOldSlug(q: Q, projectId: number, slug: string, storyId: number): Promise<void> {
+  await q("story_slugs").insert({ project_id: projectId, slug, story_id: storyId }).onConflict(["project_id", "slug"]).merge({ story_id: storyId });
+}
+
+export async function releaseOldSlug(q: Q, projectId: number, slug: string, storyId: number): Promise<void> {
+  await q("story_slugs").where({ project_id: projectId, slug, story_id: storyId }).delete();
 }
 
 export async function listStories(q: Q, projectId: number, viewer: Viewer): Promise<StoryRecord[]> {
   const rows = await visibleTo(q("stories as s").where("s.project_id", projectId), viewer)
-    .orderByRaw("COALESCE(s.published_at, s.updated_at) DESC")
+    .orderByRaw("COALESCE(s.published_at, s.scheduled_for, s.updated_at) DESC")
     .orderBy("s.id", "desc")
     .select("s.*");
   return rows.map(toRecord);
@@ -147,7 +170,11 @@ export async function listPublicStoryAddresses(q: Q): Promise<Array<{ projectId:
 export type StoredItem = StoryItemInput;
 
 export async function replaceItems(q: Q, storyId: number, items: readonly StoryItemInput[]): Promise<void> {
-  await q("story_items").where({ story_id: storyId }).delete();
+  // Deleted by primary key: a delete by story_id, even of no rows, takes a gap lock that
+  // deadlocks with another story's items being written at the same moment. The story row is
+  // locked by the caller (or new), so no other writer adds items to it meanwhile.
+  const old = await q("story_items").where({ story_id: storyId }).pluck("id");
+  if (old.length) await q("story_items").whereIn("id", old).delete();
   if (!items.length) return;
   await q("story_items").insert(
     items.map((item, position) =>
@@ -187,4 +214,103 @@ export async function insertStoryEvent(
     comment: e.comment,
     at: e.at,
   });
+}
+
+/** The story's workflow steps, newest first. */
+export async function listStoryEvents(q: Q, storyId: number): Promise<PublishingEvent[]> {
+  const rows = await q("publishing_events").where({ owner_type: "story", owner_id: storyId }).orderBy("id", "desc");
+  return rows.map((r) => ({
+    action: String(r.action),
+    from: r.from_status as PostStatus,
+    to: r.to_status as PostStatus,
+    by: r.actor_name === null ? null : String(r.actor_name),
+    comment: r.comment === null ? null : String(r.comment),
+    at: new Date(r.at).toISOString(),
+  }));
+}
+
+// Revisions
+
+export interface StoryRevisionRecord {
+  number: number;
+  title: string;
+  intro: string;
+  slug: string;
+  audience: Audience;
+  status: PostStatus;
+  items: StoredItem[];
+  note: string | null;
+  authorName: string;
+  createdAt: Date;
+}
+
+export async function insertRevision(
+  q: Q,
+  storyId: number,
+  rev: Omit<StoryRevisionRecord, "number" | "createdAt"> & { authorId: number | null; at: Date },
+): Promise<number> {
+  // The story row is locked by the caller, so max + 1 cannot race.
+  const r = await q("story_revisions").where({ story_id: storyId }).max({ n: "number" }).first();
+  const number = Number(r?.n ?? 0) + 1;
+  await q("story_revisions").insert({
+    story_id: storyId,
+    number,
+    title: rev.title,
+    intro: rev.intro,
+    slug: rev.slug,
+    audience: rev.audience,
+    status: rev.status,
+    items: JSON.stringify(rev.items),
+    note: rev.note,
+    author_id: rev.authorId,
+    author_name: rev.authorName,
+    created_at: rev.at,
+  });
+  return number;
+}
+
+function toRevision(r: Record<string, unknown>): StoryRevisionRecord {
+  return {
+    number: Number(r.number),
+    title: String(r.title),
+    intro: String(r.intro ?? ""),
+    slug: String(r.slug),
+    audience: r.audience as Audience,
+    status: r.status as PostStatus,
+    items: r.items === undefined ? [] : (JSON.parse(String(r.items)) as StoredItem[]),
+    note: r.note === null || r.note === undefined ? null : String(r.note),
+    authorName: String(r.author_name),
+    createdAt: new Date(r.created_at as string),
+  };
+}
+
+export async function listRevisions(q: Q, storyId: number): Promise<StoryRevisionRecord[]> {
+  const rows = await q("story_revisions")
+    .where({ story_id: storyId })
+    .orderBy("number", "desc")
+    .select("number", "title", "intro", "slug", "audience", "status", "note", "author_name", "created_at");
+  return rows.map(toRevision);
+}
+
+export async function findRevision(q: Q, storyId: number, number: number): Promise<StoryRevisionRecord | null> {
+  const r = await q("story_revisions").where({ story_id: storyId, number }).first();
+  return r ? toRevision(r) : null;
+}
+
+// The scheduler
+
+/**
+ * Claims due scheduled stories for this transaction. Rows another process is publishing are
+ * skipped (SKIP LOCKED), so several processes never publish one story twice.
+ */
+export async function claimDueStories(trx: Knex.Transaction, now: Date, limit: number): Promise<number[]> {
+  const rows = await trx("stories")
+    .where("status", "scheduled")
+    .andWhere("scheduled_for", "<=", now)
+    .orderBy("scheduled_for")
+    .limit(limit)
+    .forUpdate()
+    .skipLocked()
+    .select("id");
+  return rows.map((r) => Number(r.id));
 }

@@ -1,6 +1,6 @@
 import { Router, type Request, type Response } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
-import { ReturnInputSchema } from "#shared/schemas/posts.ts";
+import { DiffQuerySchema, ReturnInputSchema, RevisionParamsSchema, ScheduleInputSchema } from "#shared/schemas/posts.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { StoryCreateInputSchema, StoryPatchInputSchema, StorySlugParamsSchema } from "#shared/schemas/stories.ts";
 import { actorOf, requireRole } from "../core/auth.ts";
@@ -27,9 +27,17 @@ export function storiesRouter(stories: StoriesService): Router {
   });
   r.get("/projects/:slug/stories/:storySlug", async (req, res) => {
     const { slug, storySlug } = StorySlugParamsSchema.parse(req.params);
-    const story = await stories.getBySlug(slug, storySlug, actorOf(req));
+    const found = await stories.getBySlug(slug, storySlug, actorOf(req));
     cacheFor(req, res);
-    res.json(story);
+    if ("redirectTo" in found) {
+      // As for updates: fetch() follows the Location to the current address; the body names the page to show.
+      res
+        .status(301)
+        .location(`/api/projects/${slug}/stories/${found.redirectTo}`)
+        .json({ redirectTo: `/projects/${slug}/stories/${found.redirectTo}` });
+      return;
+    }
+    res.json(found);
   });
   r.post("/projects/:slug/stories", staff(), async (req, res) => {
     const { slug } = SlugParamSchema.parse(req.params);
@@ -44,6 +52,23 @@ export function storiesRouter(stories: StoriesService): Router {
     const { id } = IdParamSchema.parse(req.params);
     const input = StoryPatchInputSchema.parse(req.body);
     res.json(await stories.patch(id, input, actorOf(req)));
+  });
+  r.get("/stories/:id/revisions", staff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    res.json(await stories.revisions(id));
+  });
+  r.get("/stories/:id/history", staff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    res.json(await stories.history(id));
+  });
+  r.get("/stories/:id/revisions/:n/diff", staff(), async (req, res) => {
+    const { id, n } = RevisionParamsSchema.parse(req.params);
+    const { against } = DiffQuerySchema.parse({ ...req.query });
+    res.json(await stories.diff(id, n, against));
+  });
+  r.post("/stories/:id/revisions/:n/restore", staff(), async (req, res) => {
+    const { id, n } = RevisionParamsSchema.parse(req.params);
+    res.json(await stories.restore(id, n, actorOf(req)));
   });
   r.post("/stories/:id/submit", staff(), async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);
@@ -62,9 +87,32 @@ export function storiesRouter(stories: StoriesService): Router {
     const { id } = IdParamSchema.parse(req.params);
     res.json(await stories.publish(id, actorOf(req)));
   });
+  r.post("/stories/:id/schedule", approvers(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const { at } = ScheduleInputSchema.parse(req.body);
+    res.json(await stories.schedule(id, at, actorOf(req)));
+  });
   r.post("/stories/:id/withdraw", approvers(), async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);
     res.json(await stories.withdraw(id, actorOf(req)));
+  });
+  return r;
+}
+
+/**
+ * The public page of a story's old address answers 301 to its current page, as an update's
+ * does, before the HTML shell is served. Mounted at the root (not under /api); any other
+ * request passes on.
+ */
+export function storyPagesRouter(stories: StoriesService): Router {
+  const r = Router();
+  r.get("/projects/:slug/stories/:storySlug", async (req, res, next) => {
+    const parsed = StorySlugParamsSchema.safeParse(req.params);
+    if (!parsed.success) return next();
+    const { slug, storySlug } = parsed.data;
+    const to = await stories.pageRedirectOf(slug, storySlug);
+    if (!to) return next();
+    res.redirect(301, `/projects/${slug}/stories/${to}`);
   });
   return r;
 }

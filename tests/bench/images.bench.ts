@@ -22,7 +22,7 @@ import { existsSync, mkdirSync, mkdtempSync, readFileSync, readdirSync, rmSync, 
 import { availableParallelism, cpus, tmpdir } from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import sharp from "sharp";
+import sharp, { type Sharp } from "sharp";
 import { ssim } from "ssim.js";
 import { DEFAULT_FORMATS, DEFAULT_WIDTHS, ENCODER_SETTINGS, makeDerivatives, planWidths } from "../../server/media/media.pipeline.ts";
 import { makePatternedImage } from "../helpers/images.ts";
@@ -222,7 +222,7 @@ async function matchAtEqualSsim(input: string, widths: number[], theirs: Scored[
   const levels = new Map<number, { data: Buffer; info: { width: number; height: number; channels: 3 } }>();
   let previous: { data: Buffer; info: { width: number; height: number; channels: 3 } } | null = null;
   for (const w of widths) {
-    const source: sharp.Sharp = previous ? sharp(previous.data, { raw: previous.info }) : sharp(input).rotate().toColourspace("srgb").removeAlpha();
+    const source: Sharp = previous ? sharp(previous.data, { raw: previous.info }) : sharp(input).rotate().toColourspace("srgb").removeAlpha();
     const { data, info } = await source.resize(w, heightFor(w), { fit: "fill" }).raw().toBuffer({ resolveWithObject: true });
     previous = { data, info: { width: info.width, height: info.height, channels: 3 } };
     levels.set(w, previous);

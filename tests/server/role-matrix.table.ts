@@ -161,6 +161,11 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "post", path: "/api/stories/999999999/return", body: {}, expect: writers(400) },
   { method: "post", path: "/api/stories/999999999/publish", expect: writers(404) },
   { method: "post", path: "/api/stories/999999999/withdraw", expect: writers(404) },
+  { method: "post", path: "/api/stories/999999999/schedule", body: {}, expect: writers(400) },
+  { method: "get", path: "/api/stories/999999999/revisions", expect: staffOnly(404) },
+  { method: "get", path: "/api/stories/999999999/history", expect: staffOnly(404) },
+  { method: "get", path: "/api/stories/999999999/revisions/1/diff", expect: staffOnly(404) },
+  { method: "post", path: "/api/stories/999999999/revisions/1/restore", expect: staffOnly(404) },
   // Digests: the site office's runs, previews and tests for staff; the web copy by its signed link only.
   { method: "post", path: "/api/digests/runs", body: {}, expect: staffOnly(400) },
   { method: "get", path: "/api/digests/runs", expect: staffOnly(200) },

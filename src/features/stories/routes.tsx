@@ -10,31 +10,46 @@ import type { StoryDetail, StoryItemInput, StorySummary } from "#shared/schemas/
 import { AudienceMark } from "../../components/ui/audience-mark.tsx";
 import { Button } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
-import { Dialog } from "../../components/ui/dialog.tsx";
 import { SelectField, TextAreaField, TextField } from "../../components/ui/field.tsx";
 import { PublishStatusMark } from "../../components/ui/publish-status.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
 import { openActions, WorkflowActions } from "../../components/ui/workflow-actions.tsx";
+import { ReturnDialog, ScheduleDialog } from "../../components/ui/workflow-dialogs.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { formatInstant } from "../../lib/format.ts";
-import { storyProblemsOf, useCreateStory, useSaveStory, useStoriesMe, useStoriesProject, useStoriesProjects, useStory, useStoryList, useStoryWorkflow } from "./api.ts";
+import { storyProblemsOf, useCreateStory, useSaveStory, useStoriesMe, useStoriesProject, useStoriesProjects, useStory, useStoryList, useStoryWorkflow, type StoryWorkflowInput } from "./api.ts";
 import { StoryPhotoPicker } from "./components/photo-picker.tsx";
+import { StoryHistoryPanel, StoryRevisionsPanel } from "./components/revisions-panel.tsx";
 import { StoryItemsEditor, type EditItem, type PickTarget } from "./components/story-items.tsx";
 
-/** The steps the stories API offers (the same rules as updates). */
-const STORY_ACTIONS: readonly WorkflowAction[] = ["submit", "approve", "publish", "return", "withdraw"];
+/** The steps the stories API offers: the same workflow and rules as updates. */
+const STORY_ACTIONS: readonly WorkflowAction[] = ["submit", "approve", "publish", "schedule", "return", "withdraw"];
 
-const DONE: Partial<Record<WorkflowAction, string>> = { submit: "Submitted for review", approve: "Approved", publish: "Published", return: "Returned with your comments", withdraw: "Withdrawn" };
+const DONE: Record<WorkflowAction, string> = {
+  submit: "Submitted for review",
+  approve: "Approved",
+  publish: "Published",
+  schedule: "Scheduled",
+  return: "Returned with your comments",
+  withdraw: "Withdrawn",
+};
 
 /** What happens next when this person has no step to take. */
 const WAITING: Record<StoryDetail["status"], string> = {
   draft: "Nothing to do here yet.",
   in_review: "Waiting for a lead to review it.",
-  approved: "Approved: a lead publishes it.",
-  scheduled: "Scheduled.",
+  approved: "Approved: a lead publishes or schedules it.",
+  scheduled: "Scheduled: it goes out by itself at the time shown above.",
   published: "Published. A lead or an admin can withdraw it.",
   withdrawn: "Withdrawn: no longer on the public pages.",
 };
+
+/** When the story went, or will go, out; else when it was last touched. */
+function whenOf(s: StorySummary, zone: string): string {
+  if (s.status === "scheduled" && s.scheduledFor) return `goes out ${formatInstant(s.scheduledFor, zone)}`;
+  if (s.publishedAt && (s.status === "published" || s.status === "withdrawn")) return `published ${formatInstant(s.publishedAt, zone)}`;
+  return `edited ${formatInstant(s.updatedAt, zone)}`;
+}
 
 function useOfficeProject(): { slug: string; choices: Array<{ value: string; label: string }>; setSlug: (s: string) => void } {
   const [params, setParams] = useSearchParams();
@@ -72,7 +87,7 @@ export function StoriesPage() {
       { id: "status", header: "State", cell: ({ row }) => <PublishStatusMark status={row.original.status} /> },
       { id: "audience", header: "Audience", cell: ({ row }) => <AudienceMark audience={row.original.audience} /> },
       { id: "items", header: "Items", cell: ({ row }) => <span className="tabular">{row.original.itemCount}</span> },
-      { id: "when", header: "Edited", cell: ({ row }) => <span className="whitespace-nowrap text-ink-soft">{formatInstant(row.original.updatedAt, zone)}</span> },
+      { id: "when", header: "When", cell: ({ row }) => <span className="whitespace-nowrap text-ink-soft">{whenOf(row.original, zone)}</span> },
     ],
     [zone],
   );
@@ -138,7 +153,7 @@ function itemsInput(items: EditItem[]): { ok: true; items: StoryItemInput[] } | 
   return { ok: true, items: out };
 }
 
-function StoryForm({ story, slug, me }: { story: StoryDetail | null; slug: string; me: User }) {
+function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug: string; me: User; zone: string }) {
   const navigate = useNavigate();
   const [title, setTitle] = useState(story?.title ?? "");
   const [storySlug, setStorySlug] = useState(story?.slug ?? "");
@@ -150,17 +165,22 @@ function StoryForm({ story, slug, me }: { story: StoryDetail | null; slug: strin
   const [picking, setPicking] = useState<PickTarget | null>(null);
   const [fieldErrors, setFieldErrors] = useState<Record<string, string>>({});
   const [refusal, setRefusal] = useState<{ message: string; problems: PublishingProblem[] } | null>(null);
-  const [returning, setReturning] = useState(false);
-  const [returnComment, setReturnComment] = useState("");
+  const [dialog, setDialog] = useState<"schedule" | "return" | null>(null);
   const id = story?.id ?? 0;
   const create = useCreateStory(slug);
   const save = useSaveStory(id);
   const workflow = useStoryWorkflow(id, slug);
   const versionRef = useRef(story?.version);
 
+  // A restore or someone else's save changes the story underneath: take it in when nothing local is unsaved.
   useEffect(() => {
     if (story && story.version !== versionRef.current && !dirty) {
       versionRef.current = story.version;
+      setTitle(story.title);
+      setStorySlug(story.slug);
+      setIntro(story.intro);
+      setAudience(story.audience);
+      setItems(editItemsOf(story));
       setPictures((prev) => new Map([...prev, ...picturesOf(story)]));
     }
   }, [story, dirty]);
@@ -198,18 +218,32 @@ function StoryForm({ story, slug, me }: { story: StoryDetail | null; slug: strin
     }
   };
 
-  const act = async (a: WorkflowAction, comment?: string) => {
+  const act = async (input: StoryWorkflowInput) => {
     if (dirty && !(await doSave())) return;
     setRefusal(null);
+    setFieldErrors({});
     try {
-      await workflow.mutateAsync({ action: a, comment });
-      setReturning(false);
-      toast.success(DONE[a] ?? "Done");
+      const r = await workflow.mutateAsync(input);
+      setDialog(null);
+      toast.success(r.status === "scheduled" && r.scheduledFor ? `Scheduled for ${formatInstant(r.scheduledFor, zone)}` : DONE[input.action]);
     } catch (e) {
       const found = storyProblemsOf(e);
-      if (found) setRefusal({ message: e instanceof Error ? e.message : "It cannot be published yet.", problems: found });
-      else toast.error(e instanceof Error ? e.message : "That step did not go through.");
+      if (found) {
+        setDialog(null);
+        setRefusal({ message: e instanceof Error ? e.message : "It cannot be published yet.", problems: found });
+      } else if (e instanceof ApiError && input.action === "schedule" && e.status < 500) {
+        // A time in the past, or one the project's clock skips: said beside the fields.
+        setFieldErrors({ at: e.message });
+      } else if (e instanceof ApiError && input.action === "return" && e.fields.comment) {
+        setFieldErrors({ comment: e.fields.comment });
+      } else toast.error(e instanceof Error ? e.message : "That step did not go through.");
     }
+  };
+
+  const onRestoreError = (e: unknown) => {
+    const found = storyProblemsOf(e);
+    if (found) setRefusal({ message: e instanceof Error ? e.message : "It cannot be restored while published.", problems: found });
+    else toast.error(e instanceof Error ? e.message : "Not restored.");
   };
 
   const ownWork = !story || story.authorName === me.name;
@@ -225,6 +259,7 @@ function StoryForm({ story, slug, me }: { story: StoryDetail | null; slug: strin
           <span className="flex flex-wrap items-center gap-3">
             <PublishStatusMark status={status} />
             <AudienceMark audience={audience} />
+            {story?.status === "scheduled" && story.scheduledFor ? <span className="text-sm" data-testid="scheduled-for">goes out {formatInstant(story.scheduledFor, zone)}</span> : null}
             {story?.status === "published" ? (
               <Link to={`/projects/${slug}/stories/${story.slug}`} className="text-sm underline underline-offset-4">
                 Open the published page
@@ -266,13 +301,25 @@ function StoryForm({ story, slug, me }: { story: StoryDetail | null; slug: strin
         <div className="mb-4 flex flex-wrap items-center gap-3 border border-rule bg-sheet px-4 py-3">
           <span className="label-caps">Next step</span>
           {openActions(status, me.role, ownWork, STORY_ACTIONS).length === 0 ? <span className="text-sm text-ink-soft">{WAITING[status]}</span> : null}
-          <WorkflowActions status={status} role={me.role} ownWork={ownWork} offered={STORY_ACTIONS} busy={workflow.isPending ? (workflow.variables?.action ?? null) : null} onAction={(a) => (a === "return" ? setReturning(true) : void act(a))} />
+          <WorkflowActions
+            status={status}
+            role={me.role}
+            ownWork={ownWork}
+            offered={STORY_ACTIONS}
+            busy={workflow.isPending ? (workflow.variables?.action ?? null) : null}
+            onAction={(a) => {
+              if (a === "schedule" || a === "return") {
+                setFieldErrors({});
+                setDialog(a);
+              } else void act({ action: a });
+            }}
+          />
         </div>
       ) : null}
       <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_18rem]">
         <div className="flex min-w-0 flex-col gap-4">
           <TextField label="Title" value={title} error={fieldErrors.title} onChange={(e) => { setTitle(e.target.value); touch(); }} maxLength={200} />
-          <TextField label="Address" value={storySlug} error={fieldErrors.slug} onChange={(e) => { setStorySlug(e.target.value.toLowerCase()); touch(); }} placeholder="made from the title when empty" hint={`/projects/${slug}/stories/${storySlug || "…"}`} />
+          <TextField label="Address" value={storySlug} error={fieldErrors.slug} onChange={(e) => { setStorySlug(e.target.value.toLowerCase()); touch(); }} placeholder="made from the title when empty" hint={`/projects/${slug}/stories/${storySlug || "…"} — changing it later keeps the old address working.`} />
           <TextAreaField label="Introduction" rows={3} value={intro} error={fieldErrors.intro} onChange={(e) => { setIntro(e.target.value); touch(); }} className="font-serif" />
           <section aria-labelledby="items-h" className="flex flex-col gap-3">
             <div className="flex flex-wrap items-center justify-between gap-2">
@@ -313,23 +360,28 @@ function StoryForm({ story, slug, me }: { story: StoryDetail | null; slug: strin
           <Sheet label="How it is shown">
             <p className="text-sm text-ink-soft">Then-and-now pairs become a comparison slider with each photo's capture date; single photos open in a lightbox. Both photos of a pair need capture dates on different days.</p>
           </Sheet>
+          {story ? (
+            <>
+              <Sheet label="Revisions">
+                <StoryRevisionsPanel storyId={story.id} zone={zone} onRestored={() => { setDirty(false); toast.success("Restored as a new revision"); }} onError={onRestoreError} />
+              </Sheet>
+              <Sheet label="Publishing history">
+                <StoryHistoryPanel storyId={story.id} zone={zone} />
+              </Sheet>
+            </>
+          ) : null}
         </aside>
       </div>
-      <Dialog
-        open={returning}
-        title="Return with comments"
-        onClose={() => setReturning(false)}
-        footer={
-          <>
-            <Button onClick={() => setReturning(false)}>Cancel</Button>
-            <Button variant="primary" busy={workflow.isPending} disabled={!returnComment.trim()} onClick={() => void act("return", returnComment.trim())}>
-              Return to the writer
-            </Button>
-          </>
-        }
-      >
-        <TextAreaField label="What should change?" rows={4} value={returnComment} onChange={(e) => setReturnComment(e.target.value)} />
-      </Dialog>
+      {dialog === "schedule" ? <ScheduleDialog timeZone={zone} busy={workflow.isPending} error={fieldErrors.at} onClose={() => setDialog(null)} onSchedule={(at) => void act({ action: "schedule", at })} /> : null}
+      {dialog === "return" ? (
+        <ReturnDialog
+          busy={workflow.isPending}
+          error={fieldErrors.comment}
+          hint="The writer sees this at the top of the photo story when they open it."
+          onClose={() => setDialog(null)}
+          onReturn={(comment) => void act({ action: "return", comment })}
+        />
+      ) : null}
       {picking ? (
         <StoryPhotoPicker
           slug={slug}
@@ -363,8 +415,9 @@ export function StoryEditorPage() {
   const story = useStory(id);
   const me = useStoriesMe();
   const slug = story.data?.projectSlug ?? office.slug;
-  if (me.isPending || (id > 0 && story.isPending) || !slug) return <Spinner label="Opening the story" />;
+  const project = useStoriesProject(slug);
+  if (me.isPending || (id > 0 && story.isPending) || !slug || project.isPending) return <Spinner label="Opening the story" />;
   if (id > 0 && story.isError) return <Notice tone="error" title="This story could not be opened">{story.error.message}</Notice>;
   if (!me.data) return null;
-  return <StoryForm key={id || "new"} story={id > 0 ? (story.data ?? null) : null} slug={slug} me={me.data} />;
+  return <StoryForm key={id || "new"} story={id > 0 ? (story.data ?? null) : null} slug={slug} me={me.data} zone={project.data?.timeZone ?? "Europe/London"} />;
 }

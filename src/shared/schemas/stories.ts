@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { AudienceSchema, type Audience } from "./common.ts";
-import { ContentSlugSchema, type MediaPicture, type PostStatus, type PublishingProblem } from "./posts.ts";
+import { ContentSlugSchema, type MediaPicture, type PostStatus, type PublishingProblem, type RevisionDiff } from "./posts.ts";
 
 /**
  * The HTTP contract of photo stories (server/stories ↔ src/features/stories and the public pages).
@@ -8,6 +8,12 @@ import { ContentSlugSchema, type MediaPicture, type PostStatus, type PublishingP
  * photo checks (alt text, cleared, not restricted). A then-and-now pair must show two different
  * photos that both carry a capture time, taken on different calendar dates; the earlier one is
  * `before`. Lists are JSON arrays (no paging: a project has a handful of stories).
+ *
+ * Also as for posts: POST /api/stories/:id/schedule takes `ScheduleInputSchema` (posts.ts: an
+ * instant with offset, or `{ date, time }` on the project's clock, in the future); every save
+ * keeps a revision (GET /api/stories/:id/revisions, …/revisions/:n/diff?against=m with
+ * `RevisionParamsSchema` and `DiffQuerySchema`, POST …/revisions/:n/restore); GET
+ * /api/stories/:id/history lists the workflow steps; an old address answers 301 (see StoryDetail).
  */
 
 const Caption = z.string().trim().max(1000, "must be at most 1000 characters");
@@ -39,7 +45,11 @@ export const StoryCreateInputSchema = z.strictObject({
 });
 export type StoryCreateInput = z.infer<typeof StoryCreateInputSchema>;
 
-/** PATCH /api/stories/:id: `items` replaces the whole list (order = array order). Stale `version` → 409. */
+/**
+ * PATCH /api/stories/:id: `items` replaces the whole list (order = array order). Stale `version`
+ * → 409. Every save keeps a revision (`note` is kept with it). Marketing's edit of an approved or
+ * scheduled story returns it to draft; a published one is changed by a lead or admin only.
+ */
 export const StoryPatchInputSchema = z
   .strictObject({
     version: z.number().int().min(1).optional(),
@@ -48,8 +58,9 @@ export const StoryPatchInputSchema = z
     audience: AudienceSchema.optional(),
     slug: ContentSlugSchema.optional(),
     items: Items.optional(),
+    note: z.string().trim().max(500, "must be at most 500 characters").optional(),
   })
-  .refine((v) => Object.keys(v).some((k) => k !== "version"), { message: "change at least one field" });
+  .refine((v) => Object.keys(v).some((k) => k !== "version" && k !== "note"), { message: "change at least one field" });
 export type StoryPatchInput = z.infer<typeof StoryPatchInputSchema>;
 
 export const StorySlugParamsSchema = z.strictObject({
@@ -82,17 +93,57 @@ export interface StorySummary {
   audience: Audience;
   status: PostStatus;
   publishedAt: string | null;
+  /** When a scheduled story goes out (null unless scheduled). */
+  scheduledFor: string | null;
   cover: MediaPicture | null;
   itemCount: number;
   authorName: string;
   updatedAt: string;
 }
 
-/** GET /api/projects/:slug/stories/:storySlug and GET /api/stories/:id. `version`, `reviewComment`, `problems` for staff only. */
+/**
+ * GET /api/projects/:slug/stories/:storySlug and GET /api/stories/:id. `version`, `reviewComment`,
+ * `revisions` and `problems` for staff only. An old address answers as posts do: 301 with
+ * `Location` = the API address under the current slug and body `StoryRedirect`; the page
+ * /projects/:slug/stories/:oldSlug answers 301 to the current page.
+ */
 export interface StoryDetail extends StorySummary {
   projectSlug: string;
   items: StoryItem[];
   version?: number;
   reviewComment?: string | null;
+  revisions?: StoryRevisionSummary[];
   problems?: PublishingProblem[];
+}
+
+export interface StoryRedirect {
+  /** The page path under the current slug. */
+  redirectTo: string;
+}
+
+/** A row of GET /api/stories/:id/revisions (newest first). */
+export interface StoryRevisionSummary {
+  number: number;
+  createdAt: string;
+  authorName: string;
+  title: string;
+  status: PostStatus;
+  note: string | null;
+}
+
+/**
+ * GET /api/stories/:id/revisions/:n/diff: a word diff of the story's text as read — the title,
+ * the introduction, then one line per item in order (its kind, a pair's area, its caption).
+ */
+export type StoryRevisionDiff = RevisionDiff;
+
+/** A row of GET /api/stories/:id/history (newest first): a workflow step, or the scheduler's. */
+export interface PublishingEvent {
+  action: string;
+  from: PostStatus;
+  to: PostStatus;
+  /** Who took the step; null when the scheduler held it back. */
+  by: string | null;
+  comment: string | null;
+  at: string;
 }
