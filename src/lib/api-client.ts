@@ -77,3 +77,26 @@ export function qs(params: Record<string, string | number | boolean | undefined 
   const s = u.toString();
   return s ? `?${s}` : "";
 }
+
+/** One page of a list, and how many there are in all. */
+export interface Page<T> {
+  items: T[];
+  total: number;
+}
+
+/**
+ * GET a list whose total comes in `X-Total-Count` (the posts contract). `api.get` returns
+ * bodies only, so this reads the header itself and raises the same error type.
+ */
+export async function getPage<T>(path: string): Promise<Page<T>> {
+  const res = await fetch(path, { headers: { Accept: "application/json" }, credentials: "same-origin" });
+  const body: unknown = (res.headers.get("content-type") ?? "").includes("json") ? await res.json() : null;
+  if (!res.ok) {
+    const err = (body as ApiErrorBody | null)?.error;
+    throw new ApiError(res.status, err?.code ?? "http_error", err?.message ?? `The server answered ${res.status}.`, err?.fields ?? {}, body);
+  }
+  const items = Array.isArray(body) ? (body as T[]) : ((body as { items?: T[] } | null)?.items ?? []);
+  const header = res.headers.get("x-total-count");
+  const total = header !== null && Number.isFinite(Number(header)) ? Number(header) : ((body as { total?: number } | null)?.total ?? items.length);
+  return { items, total };
+}

@@ -1,3 +1,5 @@
+import type { System } from "#shared/schemas/programme.ts";
+
 const dateFmt = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
 
 /** `YYYY-MM-DD` → "3 Mar 2027". Calendar dates are not instants: formatted in UTC so they never shift. */
@@ -13,6 +15,17 @@ export function formatInstant(iso: string | null | undefined, timeZone = "Europe
   // dateStyle/timeStyle cannot be combined with timeZoneName, so the fields are spelled out.
   return new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit", timeZone, timeZoneName: "short" }).format(new Date(iso));
 }
+
+/** The programme's systems as people read them (in tags, filters and milestone lines). */
+export const SYSTEM_WORD: Record<System, string> = {
+  building: "Building",
+  cooling: "Cooling",
+  power: "Power",
+  fuel: "Fuel",
+  security: "Security",
+  "fit-out": "Fit-out",
+  commissioning: "Commissioning",
+};
 
 export const ROLE_LABEL = { admin: "Administrator", lead: "Project lead", marketing: "Marketing", investor: "Investor" } as const;
 

@@ -3,10 +3,10 @@ import { getCoreRowModel, useReactTable, type ColumnDef } from "@tanstack/react-
 import { describe, expect, it } from "vitest";
 import { DataTable } from "../../src/components/ui/data-table.tsx";
 import { TextField } from "../../src/components/ui/field.tsx";
-import { authKeys } from "../../src/features/auth/api.ts";
 import { RequireRole } from "../../src/features/auth/components/require-role.tsx";
 import { SignInPage } from "../../src/features/auth/routes.tsx";
 import { formatDate, formatInstant } from "../../src/lib/format.ts";
+import { sessionKeys } from "../../src/lib/session.ts";
 import { renderWithApp } from "./render.tsx";
 
 describe("SignInPage", () => {
@@ -26,7 +26,7 @@ describe("RequireRole", () => {
       <RequireRole roles={["admin"]} area="site office">
         <p>secret</p>
       </RequireRole>,
-      { data: [[authKeys.me(), null]] },
+      { data: [[sessionKeys.me(), null]] },
     );
     await waitFor(() => expect(screen.getByText("sign-in page")).toBeTruthy());
     expect(screen.queryByText("secret")).toBeNull();
@@ -38,7 +38,7 @@ describe("RequireRole", () => {
       <RequireRole roles={["admin", "lead", "marketing"]} area="site office">
         <p>secret</p>
       </RequireRole>,
-      { data: [[authKeys.me(), investor]] },
+      { data: [[sessionKeys.me(), investor]] },
     );
     expect(screen.getByRole("heading", { name: "Not open to your account" })).toBeTruthy();
     expect(screen.queryByText("secret")).toBeNull();
@@ -47,7 +47,7 @@ describe("RequireRole", () => {
       <RequireRole roles={["admin"]} area="site office">
         <p>secret</p>
       </RequireRole>,
-      { data: [[authKeys.me(), { ...investor, role: "admin" }]] },
+      { data: [[sessionKeys.me(), { ...investor, role: "admin" }]] },
     );
     expect(screen.getByText("secret")).toBeTruthy();
   });

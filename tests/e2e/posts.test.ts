@@ -215,6 +215,11 @@ describe("an update from the editor to the public page", () => {
     await page.getByRole("button", { name: "Publish" }).click();
     await page.locator('[data-status="published"]').first().waitFor();
     await page.getByRole("link", { name: "Open the published page" }).waitFor();
+    // The publishing history lists each step, newest first: the writer's submission, the approval, the publication.
+    const history = page.getByTestId("publishing-history");
+    await history.locator('[data-action="publish"]').waitFor();
+    expect(await history.locator("li").evaluateAll((items) => items.map((li) => li.getAttribute("data-action")))).toEqual(["publish", "approve", "submit"]);
+    expect(await history.locator('[data-action="submit"]').textContent()).toContain("Draft → In review");
     await screenshot(page, "posts-published-lead");
     expect(errorsExcept(errors, 422)).toEqual([]);
   });

@@ -1,9 +1,10 @@
 import { Link, NavLink, Outlet } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
 import { Logo } from "../../components/ui/logo.tsx";
-import { useLogout, useMe } from "../../features/auth/api.ts";
+import { useLogout } from "../../features/auth/api.ts";
 import { RequireRole } from "../../features/auth/components/require-role.tsx";
 import { ROLE_LABEL } from "../../lib/format.ts";
+import { useMe } from "../../lib/session.ts";
 
 export interface AreaLink {
   to: string;

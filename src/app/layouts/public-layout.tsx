@@ -1,6 +1,7 @@
 import { Link, NavLink, Outlet } from "react-router-dom";
 import { Logo } from "../../components/ui/logo.tsx";
-import { useMe, homeFor } from "../../features/auth/api.ts";
+import { homeFor } from "../../features/auth/api.ts";
+import { useMe } from "../../lib/session.ts";
 
 export function PublicLayout() {
   const me = useMe();

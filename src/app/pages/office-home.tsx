@@ -1,8 +1,8 @@
 import { Link } from "react-router-dom";
 import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
-import { useMe } from "../../features/auth/api.ts";
 import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
 import { useProjects } from "../../features/projects/api.ts";
+import { useMe } from "../../lib/session.ts";
 
 export function OfficeHomePage() {
   const me = useMe();

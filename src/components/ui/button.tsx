@@ -1,4 +1,5 @@
-import { forwardRef, type ButtonHTMLAttributes } from "react";
+import { forwardRef, type ButtonHTMLAttributes, type ReactNode } from "react";
+import { Link } from "react-router-dom";
 
 type Variant = "primary" | "secondary" | "ghost" | "danger";
 
@@ -34,3 +35,12 @@ export const Button = forwardRef<HTMLButtonElement, ButtonProps>(function Button
     </button>
   );
 });
+
+/** A link drawn as the main action of a page head ("New update"). */
+export function PrimaryLink({ to, children }: { to: string; children: ReactNode }) {
+  return (
+    <Link to={to} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 font-medium text-white hover:bg-[#9a3412]">
+      {children}
+    </Link>
+  );
+}

@@ -1,16 +1,9 @@
-import type { PostStatus } from "#shared/schemas/posts.ts";
+import type { PublishingEvent } from "#shared/schemas/stories.ts";
 import { formatInstant } from "../../lib/format.ts";
 import { PUBLISH_STATUS_WORD } from "./publish-status.tsx";
 
-/** One step of the publishing workflow as the history lists it. */
-export interface PublishingStep {
-  action: string;
-  from: PostStatus;
-  to: PostStatus;
-  by: string | null;
-  comment: string | null;
-  at: string;
-}
+/** One step of the publishing workflow as the history lists it (a row of `GET /api/posts/:id/history` or `/api/stories/:id/history`). */
+export type PublishingStep = PublishingEvent;
 
 const ACTION_WORD: Record<string, string> = {
   submit: "Submitted for review",

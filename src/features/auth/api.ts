@@ -1,29 +1,12 @@
-import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { queryOptions, useMutation, useQueryClient } from "@tanstack/react-query";
 import type { LoginInput, User } from "#shared/schemas/auth.ts";
-import { api, ApiError, resetCsrf } from "../../lib/api-client.ts";
+import { api, resetCsrf } from "../../lib/api-client.ts";
+import { sessionKeys } from "../../lib/session.ts";
 
 export const authKeys = {
   all: ["auth"] as const,
-  me: () => [...authKeys.all, "me"] as const,
   invitation: (token: string) => [...authKeys.all, "invitation", token] as const,
 };
-
-/** The signed-in user, or null when signed out (a 401 is an answer, not an error). */
-export const meQueryOptions = () =>
-  queryOptions({
-    queryKey: authKeys.me(),
-    queryFn: async (): Promise<User | null> => {
-      try {
-        return (await api.get<{ user: User }>("/api/auth/me")).user;
-      } catch (e) {
-        if (e instanceof ApiError && e.status === 401) return null;
-        throw e;
-      }
-    },
-    staleTime: 60_000,
-  });
-
-export const useMe = () => useQuery(meQueryOptions());
 
 export const invitationQueryOptions = (token: string) =>
   queryOptions({
@@ -39,7 +22,7 @@ export function useLogin() {
     meta: { quiet: true },
     onSuccess: ({ user }) => {
       qc.clear();
-      qc.setQueryData(authKeys.me(), user);
+      qc.setQueryData(sessionKeys.me(), user);
     },
   });
 }
@@ -51,7 +34,7 @@ export function useLogout() {
     onSettled: () => {
       resetCsrf();
       qc.clear();
-      qc.setQueryData(authKeys.me(), null);
+      qc.setQueryData(sessionKeys.me(), null);
     },
   });
 }
@@ -63,7 +46,7 @@ export function useAcceptInvitation(token: string) {
     meta: { quiet: true },
     onSuccess: ({ user }) => {
       qc.clear();
-      qc.setQueryData(authKeys.me(), user);
+      qc.setQueryData(sessionKeys.me(), user);
     },
   });
 }
@@ -82,7 +65,7 @@ export function useResetPassword(token: string) {
     meta: { quiet: true },
     onSuccess: ({ user }) => {
       qc.clear();
-      qc.setQueryData(authKeys.me(), user);
+      qc.setQueryData(sessionKeys.me(), user);
     },
   });
 }

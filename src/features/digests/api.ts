@@ -1,11 +1,12 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { Project } from "#shared/schemas/projects.ts";
 import type { DigestPreview, DigestRunInput, DigestRunSummary, DigestTestInput, DigestUpcoming } from "#shared/schemas/digests.ts";
 import type { SubscriberList } from "#shared/schemas/subscribers.ts";
 import { api, qs } from "../../lib/api-client.ts";
+import { projectListQueryOptions } from "../../lib/projects.ts";
 
 export const digestKeys = {
   all: ["digests"] as const,
+  projects: () => [...digestKeys.all, "projects"] as const,
   runs: (project: string) => [...digestKeys.all, "runs", project] as const,
   upcoming: (project: string) => [...digestKeys.all, "upcoming", project] as const,
   preview: (subscriberId: number) => [...digestKeys.all, "preview", subscriberId] as const,
@@ -22,7 +23,7 @@ export const digestRunsQueryOptions = (project: string) =>
     refetchInterval: (q) => (sending(q.state.data) ? 1000 : false),
   });
 
-export const useDigestProjects = () => useQuery({ queryKey: [...digestKeys.all, "projects"], queryFn: () => api.get<Project[]>("/api/projects") });
+export const useDigestProjects = () => useQuery(projectListQueryOptions(digestKeys.projects()));
 export const useDigestRuns = (project: string) => useQuery({ ...digestRunsQueryOptions(project), enabled: project !== "" });
 export const useUpcomingDigests = (project: string) => useQuery({ queryKey: digestKeys.upcoming(project), queryFn: () => api.get<DigestUpcoming[]>(`/api/digests/upcoming${qs({ project })}`), enabled: project !== "" });
 export const useDigestRecipients = (project: string) =>

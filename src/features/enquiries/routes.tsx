@@ -7,10 +7,10 @@ import { Button } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { SelectField, TextAreaField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
-import { formatInstant } from "../../lib/format.ts";
+import { formatDate, formatInstant } from "../../lib/format.ts";
 import { useEnquiries, useEnquiry, useEnquiryOwners, useEnquiryProject, useUpdateEnquiry } from "./api.ts";
 import { EnquiryForm } from "./components/enquiry-form.tsx";
-import { day, ENQUIRY_STATUS_LOOK, enquirySummary, KIND_WORD } from "./words.ts";
+import { ENQUIRY_STATUS_LOOK, enquirySummary, KIND_WORD } from "./words.ts";
 
 /** /projects/:slug/enquire — ask about capacity, ask for a visit, or ask a question. */
 export function EnquirePage() {
@@ -78,8 +78,8 @@ function Detail({ id, onClose }: { id: number; onClose: () => void }) {
     ["Telephone", e.phone ?? "—"],
     ["Received", formatInstant(e.createdAt)],
   ];
-  if (e.kind === "capacity") facts.push(["Racks", String(e.racks)], ["kW per rack", String(e.kwPerRack)], ["Needed by", e.neededBy ? day(e.neededBy) : "—"]);
-  if (e.kind === "visit") facts.push(["People", String(e.partySize)], ["Preferred dates", e.preferredDates.map(day).join(", ")], ["Site rules", "Shown and accepted"]);
+  if (e.kind === "capacity") facts.push(["Racks", String(e.racks)], ["kW per rack", String(e.kwPerRack)], ["Needed by", e.neededBy ? formatDate(e.neededBy) : "—"]);
+  if (e.kind === "visit") facts.push(["People", String(e.partySize)], ["Preferred dates", e.preferredDates.map((d) => formatDate(d)).join(", ")], ["Site rules", "Shown and accepted"]);
   return (
     <Sheet
       label={`${KIND_WORD[e.kind]} enquiry`}

@@ -10,8 +10,8 @@ import type {
   Sensitivity,
 } from "#shared/schemas/media.ts";
 import type { System } from "#shared/schemas/programme.ts";
-import type { Project } from "#shared/schemas/projects.ts";
-import { api, ApiError, qs } from "../../lib/api-client.ts";
+import { api, qs } from "../../lib/api-client.ts";
+import { projectListQueryOptions } from "../../lib/projects.ts";
 
 /** The library's filters as the page keeps them (and the query string carries them). */
 export interface LibraryFilters {
@@ -35,8 +35,6 @@ export const LIBRARY_PAGE_SIZE = 24;
  */
 export const mediaKeys = {
   all: ["media"] as const,
-  // The feature asks who is signed in itself, under its own key: features never import each other.
-  me: () => [...mediaKeys.all, "me"] as const,
   projects: () => [...mediaKeys.all, "projects"] as const,
   project: (slug: string) => [...mediaKeys.all, "project", slug] as const,
   vocabulary: (slug: string) => [...mediaKeys.project(slug), "vocabulary"] as const,
@@ -47,21 +45,7 @@ export const mediaKeys = {
   item: (id: number) => [...mediaKeys.items(), id] as const,
 };
 
-export const mediaMeQueryOptions = () =>
-  queryOptions({
-    queryKey: mediaKeys.me(),
-    queryFn: async (): Promise<User | null> => {
-      try {
-        return (await api.get<{ user: User }>("/api/auth/me")).user;
-      } catch (e) {
-        if (e instanceof ApiError && e.status === 401) return null;
-        throw e;
-      }
-    },
-    staleTime: 60_000,
-  });
-
-export const mediaProjectsQueryOptions = () => queryOptions({ queryKey: mediaKeys.projects(), queryFn: () => api.get<Project[]>("/api/projects"), staleTime: 5 * 60_000 });
+export const mediaProjectsQueryOptions = () => queryOptions({ ...projectListQueryOptions(mediaKeys.projects()), staleTime: 5 * 60_000 });
 
 export const vocabularyQueryOptions = (slug: string) =>
   queryOptions({ queryKey: mediaKeys.vocabulary(slug), queryFn: () => api.get<MediaVocabulary>(`/api/media/vocabulary${qs({ project: slug })}`), enabled: slug !== "", staleTime: 60_000 });
@@ -106,7 +90,6 @@ export const mediaItemQueryOptions = (id: number) =>
     refetchInterval: (query) => (query.state.data?.status === "processing" ? 1_000 : false),
   });
 
-export const useMediaMe = () => useQuery(mediaMeQueryOptions());
 export const useMediaProjects = () => useQuery(mediaProjectsQueryOptions());
 export const useVocabulary = (slug: string) => useQuery(vocabularyQueryOptions(slug));
 export const useMediaList = (slug: string, f: LibraryFilters) => useQuery(mediaListQueryOptions(slug, f));

@@ -3,9 +3,10 @@ import { Link, useSearchParams } from "react-router-dom";
 import { SensitivitySchema } from "#shared/schemas/media.ts";
 import { SystemSchema } from "#shared/schemas/programme.ts";
 import { Button } from "../../components/ui/button.tsx";
-import { SelectField } from "../../components/ui/field.tsx";
+import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
-import { canReview, LIBRARY_PAGE_SIZE, useMediaList, useMediaMe, useMediaProjects, useReviewQueue, useVocabulary, type LibraryFilters } from "./api.ts";
+import { useMe } from "../../lib/session.ts";
+import { canReview, LIBRARY_PAGE_SIZE, useMediaList, useMediaProjects, useReviewQueue, useVocabulary, type LibraryFilters } from "./api.ts";
 import { BulkTagBar } from "./components/bulk-tag-bar.tsx";
 import { EditPanel } from "./components/edit-panel.tsx";
 import { LibraryFiltersForm } from "./components/library-filters.tsx";
@@ -21,15 +22,6 @@ function useProjectSlug() {
   const choices = (projects.data ?? []).map((p) => ({ value: p.slug, label: p.name }));
   const setSlug = (s: string) => setParams(new URLSearchParams({ project: s }));
   return { slug, pending: projects.isPending, choices, setSlug, params, setParams };
-}
-
-function ProjectPicker({ choices, slug, setSlug }: { choices: Array<{ value: string; label: string }>; slug: string; setSlug: (s: string) => void }) {
-  if (choices.length <= 1) return null;
-  return (
-    <div className="mb-4 w-full sm:w-72">
-      <SelectField label="Project" value={slug} onChange={(e) => setSlug(e.target.value)} options={choices} />
-    </div>
-  );
 }
 
 const bool = (v: string | null) => (v === "true" ? true : undefined);
@@ -140,7 +132,7 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
 /** Site office › Media: upload, find, tag and edit the project's photos. */
 export function MediaLibraryPage() {
   const { slug, pending, choices, setSlug, params, setParams } = useProjectSlug();
-  const me = useMediaMe();
+  const me = useMe();
   const filters = filtersFrom(params);
   return (
     <>
@@ -156,7 +148,7 @@ export function MediaLibraryPage() {
           ) : null
         }
       />
-      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} />
+      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="mb-4 w-full sm:w-72" />
       {pending ? <Spinner /> : slug ? <Library key={slug} slug={slug} filters={filters} setFilters={(f) => setParams(toParams(slug, f))} /> : <Notice>There is no project in this site office yet.</Notice>}
     </>
   );
@@ -172,7 +164,7 @@ function Queue({ slug }: { slug: string }) {
 /** Site office › Media › Review: leads clear or restrict unreviewed photos. */
 export function MediaReviewPage() {
   const { slug, pending, choices, setSlug } = useProjectSlug();
-  const me = useMediaMe();
+  const me = useMe();
   return (
     <>
       <PageHeader
@@ -185,7 +177,7 @@ export function MediaReviewPage() {
           </Link>
         }
       />
-      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} />
+      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="mb-4 w-full sm:w-72" />
       {me.isPending || pending ? (
         <Spinner />
       ) : !canReview(me.data) ? (

@@ -1,5 +1,4 @@
 import type { MediaStatus, Sensitivity } from "#shared/schemas/media.ts";
-import type { System } from "#shared/schemas/programme.ts";
 
 /** Each state by a word and a shape of its own, so nobody needs the colour to read it. */
 export const STATUS_WORD: Record<MediaStatus, { glyph: string; word: string; tone: string }> = {
@@ -12,16 +11,6 @@ export const SENSITIVITY_WORD: Record<Sensitivity, { glyph: string; word: string
   unreviewed: { glyph: "○", word: "Unreviewed", tone: "text-watch" },
   cleared: { glyph: "✓", word: "Cleared", tone: "text-good" },
   restricted: { glyph: "■", word: "Restricted", tone: "text-bad" },
-};
-
-export const SYSTEM_WORD: Record<System, string> = {
-  building: "Building",
-  cooling: "Cooling",
-  power: "Power",
-  fuel: "Fuel",
-  security: "Security",
-  "fit-out": "Fit-out",
-  commissioning: "Commissioning",
 };
 
 /** Bytes for people: "3.4 MB", "820 KB". */

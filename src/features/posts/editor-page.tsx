@@ -1,5 +1,5 @@
 import { useCallback, useEffect, useMemo, useRef, useState } from "react";
-import { Link, useNavigate, useParams } from "react-router-dom";
+import { useNavigate, useParams } from "react-router-dom";
 import { toast } from "sonner";
 import type { User } from "#shared/schemas/auth.ts";
 import type { Audience } from "#shared/schemas/common.ts";
@@ -7,21 +7,21 @@ import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { PostDetail, PostPatchInput, PostTag, PublishingProblem, WorkflowAction } from "#shared/schemas/posts.ts";
 import { SystemSchema, type Milestone } from "#shared/schemas/programme.ts";
 import { EMPTY_RICH_TEXT_DOC, imageIdsOf, type RichTextDoc } from "#shared/schemas/rich-text.ts";
-import { AudienceMark } from "../../components/ui/audience-mark.tsx";
 import { Button } from "../../components/ui/button.tsx";
-import { SelectField, TextAreaField, TextField } from "../../components/ui/field.tsx";
+import { TextAreaField, TextField } from "../../components/ui/field.tsx";
 import { Picture } from "../../components/ui/picture.tsx";
-import { PublishStatusMark } from "../../components/ui/publish-status.tsx";
-import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { AudienceSheet, EditorHeader, NextStepBar, RefusalNotice, ReturnedNotice } from "../../components/ui/publishing-editor.tsx";
+import { Notice, Sheet, Spinner } from "../../components/ui/sheet.tsx";
 import { StatusMark } from "../../components/ui/status-mark.tsx";
-import { openActions, WorkflowActions } from "../../components/ui/workflow-actions.tsx";
 import { ApiError } from "../../lib/api-client.ts";
-import { formatInstant } from "../../lib/format.ts";
-import { conflictOf, problemsOf, useCreatePost, usePost, usePostMilestones, usePostsMe, usePostsProject, useSavePost, useWorkflow, type WorkflowInput } from "./api.ts";
+import { formatInstant, SYSTEM_WORD } from "../../lib/format.ts";
+import { publishingProblemsOf } from "../../lib/publishing.ts";
+import { useMe } from "../../lib/session.ts";
+import { conflictOf, useCreatePost, usePost, usePostMilestones, usePostsProject, useSavePost, useWorkflow, type WorkflowInput } from "./api.ts";
 import { FixPhotoDialog } from "./components/fix-photo-dialog.tsx";
 import { MediaPickerDialog } from "./components/media-picker.tsx";
 import { MilestonePickerDialog } from "./components/milestone-picker.tsx";
-import { RevisionsPanel } from "./components/revisions-panel.tsx";
+import { PostHistoryPanel, RevisionsPanel } from "./components/revisions-panel.tsx";
 import { RichTextEditor } from "./components/rich-text-editor.tsx";
 import { ReturnDialog, ScheduleDialog } from "./components/workflow-dialogs.tsx";
 import { useOfficeProject } from "./routes.tsx";
@@ -71,8 +71,6 @@ const WAITING: Record<PostDetail["status"], string> = {
   withdrawn: "Withdrawn: no longer on the public pages.",
 };
 
-const SYSTEM_WORD = (s: string) => s[0]!.toUpperCase() + s.slice(1);
-
 /** Tags of two kinds, each a toggle: the programme's systems and the areas of the site. */
 function TagPicker({ tags, areas, onChange }: { tags: PostTag[]; areas: string[]; onChange: (t: PostTag[]) => void }) {
   const [newArea, setNewArea] = useState("");
@@ -89,7 +87,7 @@ function TagPicker({ tags, areas, onChange }: { tags: PostTag[]; areas: string[]
     <fieldset className="flex flex-col gap-2">
       <legend className="sr-only">Tags</legend>
       <p className="label-caps">Systems</p>
-      <div className="flex flex-wrap gap-1.5">{SystemSchema.options.map((s) => chip({ kind: "system", value: s }, SYSTEM_WORD(s)))}</div>
+      <div className="flex flex-wrap gap-1.5">{SystemSchema.options.map((s) => chip({ kind: "system", value: s }, SYSTEM_WORD[s]))}</div>
       <p className="label-caps">Areas</p>
       <div className="flex flex-wrap gap-1.5">{allAreas.map((a) => chip({ kind: "area", value: a }, a))}</div>
       <form
@@ -252,7 +250,7 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
       setDialog(null);
       toast.success(r.status === "scheduled" && r.scheduledFor ? `Scheduled for ${formatInstant(r.scheduledFor, zone)}` : DONE[input.action]);
     } catch (e) {
-      const found = problemsOf(e);
+      const found = publishingProblemsOf(e);
       if (found) {
         setDialog(null);
         setRefusal({ message: e instanceof Error ? e.message : "It cannot be published yet.", problems: found });
@@ -295,32 +293,18 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
 
   return (
     <>
-      <PageHeader
+      <EditorHeader
         sheet="Site office · Updates"
         title={post ? draft.title || "Untitled update" : "New update"}
-        description={
-          <span className="flex flex-wrap items-center gap-x-3 gap-y-1">
-            <PublishStatusMark status={status} />
-            <AudienceMark audience={draft.audience} />
-            {post ? <span className="text-sm">by {post.authorName}</span> : null}
-            {post?.status === "scheduled" && post.scheduledFor ? <span className="text-sm">goes out {formatInstant(post.scheduledFor, zone)}</span> : null}
-            {post?.status === "published" ? (
-              <Link className="text-sm underline underline-offset-4" to={`/projects/${slug}/updates/${post.slug}`}>
-                Open the published page
-              </Link>
-            ) : null}
-          </span>
-        }
-        actions={
-          <div className="flex flex-wrap items-center gap-2">
-            <span className="text-sm text-ink-soft" aria-live="polite">
-              {saving ? "Saving…" : dirty ? "Unsaved changes" : post ? "All changes saved" : ""}
-            </span>
-            <Button onClick={() => void doSave()} busy={saving} variant={dirty || !post ? "primary" : "secondary"}>
-              {post ? "Save" : "Save draft"}
-            </Button>
-          </div>
-        }
+        status={status}
+        audience={draft.audience}
+        byline={post ? `by ${post.authorName}` : null}
+        goesOut={post?.status === "scheduled" && post.scheduledFor ? formatInstant(post.scheduledFor, zone) : null}
+        publishedHref={post?.status === "published" ? `/projects/${slug}/updates/${post.slug}` : null}
+        saved={Boolean(post)}
+        saving={saving}
+        dirty={dirty}
+        onSave={() => void doSave()}
       />
 
       {conflict ? (
@@ -343,42 +327,28 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
           </Notice>
         </div>
       ) : null}
-      {post?.reviewComment && post.status === "draft" ? (
-        <div className="mb-4">
-          <Notice tone="caution" title="Returned with comments">
-            <span className="whitespace-pre-line">{post.reviewComment}</span>
-          </Notice>
-        </div>
-      ) : null}
+      {post?.reviewComment && post.status === "draft" ? <ReturnedNotice comment={post.reviewComment} /> : null}
       {refusal ? (
-        <div className="mb-4" data-testid="refusal-problems">
-          <Notice tone="error" title="Not published yet: fix these first">
-            {refusal.problems.length === 0 ? <p>{refusal.message}</p> : null}
-            <ul className="mt-1 flex flex-col gap-1">
-              {refusal.problems.map((p) => (
-                <ProblemLine key={`${p.code}-${p.mediaId ?? ""}-${p.milestoneId ?? ""}`} p={p} onFixPhoto={setFixing} onShowCover={() => setDialog("cover")} />
-              ))}
-            </ul>
-          </Notice>
-        </div>
+        <RefusalNotice
+          message={refusal.message}
+          problems={refusal.problems}
+          renderProblem={(p) => <ProblemLine key={`${p.code}-${p.mediaId ?? ""}-${p.milestoneId ?? ""}`} p={p} onFixPhoto={setFixing} onShowCover={() => setDialog("cover")} />}
+        />
       ) : null}
 
       {post ? (
-        <div className="mb-4 flex flex-wrap items-center gap-3 border border-rule bg-sheet px-4 py-3">
-          <span className="label-caps">Next step</span>
-          <WorkflowActions
-            status={status}
-            role={me.role}
-            ownWork={ownWork}
-            busy={workflow.isPending ? (workflow.variables?.action ?? null) : null}
-            onAction={(a) => {
-              if (a === "schedule") setDialog("schedule");
-              else if (a === "return") setDialog("return");
-              else void runWorkflow({ action: a });
-            }}
-          />
-          {openActions(status, me.role, ownWork).length === 0 ? <span className="text-sm text-ink-soft">{WAITING[status]}</span> : null}
-        </div>
+        <NextStepBar
+          status={status}
+          role={me.role}
+          ownWork={ownWork}
+          busy={workflow.isPending ? (workflow.variables?.action ?? null) : null}
+          onAction={(a) => {
+            if (a === "schedule") setDialog("schedule");
+            else if (a === "return") setDialog("return");
+            else void runWorkflow({ action: a });
+          }}
+          waiting={WAITING[status]}
+        />
       ) : (
         <p className="mb-4 text-sm text-ink-soft">Save the draft first; then it can be submitted for review.</p>
       )}
@@ -420,19 +390,7 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
         </div>
 
         <aside className="flex flex-col gap-4">
-          <Sheet label="Audience">
-            <SelectField
-              label="Who may read it"
-              value={draft.audience}
-              onChange={(e) => change("audience", e.target.value as Audience)}
-              error={fieldErrors.audience}
-              options={[
-                { value: "public", label: "Public: anyone" },
-                { value: "investor", label: "Investors (and staff)" },
-                { value: "internal", label: "Staff only" },
-              ]}
-            />
-          </Sheet>
+          <AudienceSheet label="Who may read it" value={draft.audience} onChange={(a) => change("audience", a)} error={fieldErrors.audience} />
           <Sheet label="Cover photo">
             <div ref={coverRef} data-testid="cover-field" data-problem={coverProblem ? true : undefined} className={coverProblem ? "border-2 border-bad p-1" : ""}>
               {cover ? <Picture picture={cover} eager sizes="18rem" /> : draft.coverMediaId ? <p className="text-sm text-ink-soft">Photo {draft.coverMediaId}</p> : <p className="text-sm text-ink-soft">None yet: lists and link previews show the cover.</p>}
@@ -494,9 +452,14 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
             </Sheet>
           ) : null}
           {post ? (
-            <Sheet label="Revisions">
-              <RevisionsPanel postId={post.id} zone={zone} onRestored={() => setDirty(false)} />
-            </Sheet>
+            <>
+              <Sheet label="Revisions">
+                <RevisionsPanel postId={post.id} zone={zone} onRestored={() => setDirty(false)} />
+              </Sheet>
+              <Sheet label="Publishing history">
+                <PostHistoryPanel postId={post.id} zone={zone} />
+              </Sheet>
+            </>
           ) : null}
         </aside>
       </div>
@@ -555,7 +518,7 @@ export function PostEditorPage() {
   const id = idParam === "new" ? 0 : Number(idParam);
   const office = useOfficeProject();
   const post = usePost(id);
-  const me = usePostsMe();
+  const me = useMe();
   const slug = post.data?.projectSlug ?? office.slug;
   const project = usePostsProject(slug);
   if (me.isPending || (id > 0 && post.isPending) || !slug) return <Spinner label="Opening the update" />;

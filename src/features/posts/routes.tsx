@@ -4,29 +4,20 @@ import { Link, useSearchParams } from "react-router-dom";
 import type { Audience } from "#shared/schemas/common.ts";
 import { POSTS_PAGE_SIZE, PostStatusSchema, type PostStatus, type PostSummary } from "#shared/schemas/posts.ts";
 import { AudienceMark } from "../../components/ui/audience-mark.tsx";
-import { Button } from "../../components/ui/button.tsx";
+import { Button, PrimaryLink } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { SelectField, TextField } from "../../components/ui/field.tsx";
 import { PublishStatusMark, PUBLISH_STATUS_WORD } from "../../components/ui/publish-status.tsx";
+import { Pager } from "../../components/ui/pager.tsx";
+import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
-import { formatInstant } from "../../lib/format.ts";
+import { useProjectParam } from "../../lib/projects.ts";
+import { publishingWhen } from "../../lib/publishing.ts";
 import { usePostList, usePostsProject, usePostsProjects } from "./api.ts";
 
 /** The project the site office is working on: `?project=` or the first one. */
-export function useOfficeProject(): { slug: string; choices: Array<{ value: string; label: string }>; setSlug: (s: string) => void } {
-  const [params, setParams] = useSearchParams();
-  const projects = usePostsProjects();
-  const slug = params.get("project") ?? projects.data?.[0]?.slug ?? "";
-  return {
-    slug,
-    choices: (projects.data ?? []).map((p) => ({ value: p.slug, label: p.name })),
-    setSlug: (s) =>
-      setParams((prev) => {
-        const next = new URLSearchParams(prev);
-        next.set("project", s);
-        return next;
-      }),
-  };
+export function useOfficeProject() {
+  return useProjectParam(usePostsProjects().data);
 }
 
 const AUDIENCE_CHOICES = [
@@ -35,13 +26,6 @@ const AUDIENCE_CHOICES = [
   { value: "investor", label: "For investors" },
   { value: "internal", label: "Staff only" },
 ];
-
-/** When the post went, or will go, out; else when it was last touched. */
-function whenOf(p: PostSummary, zone: string): string {
-  if (p.status === "scheduled" && p.scheduledFor) return `goes out ${formatInstant(p.scheduledFor, zone)}`;
-  if (p.publishedAt && (p.status === "published" || p.status === "withdrawn")) return `published ${formatInstant(p.publishedAt, zone)}`;
-  return `edited ${formatInstant(p.updatedAt, zone)}`;
-}
 
 /** `/office/updates`: every update of the project by state, with filters. */
 export function PostsPage() {
@@ -83,7 +67,7 @@ export function PostsPage() {
       { id: "status", header: "State", cell: ({ row }) => <PublishStatusMark status={row.original.status} /> },
       { id: "audience", header: "Audience", cell: ({ row }) => <AudienceMark audience={row.original.audience} /> },
       { id: "author", header: "Written by", cell: ({ row }) => row.original.authorName },
-      { id: "when", header: "When", cell: ({ row }) => <span className="whitespace-nowrap text-ink-soft">{whenOf(row.original, zone)}</span> },
+      { id: "when", header: "When", cell: ({ row }) => <span className="whitespace-nowrap text-ink-soft">{publishingWhen(row.original, zone)}</span> },
     ],
     [zone],
   );
@@ -98,17 +82,9 @@ export function PostsPage() {
         sheet="Site office · Updates"
         title="Updates"
         description="Write what changed on site; a lead reviews and publishes it. Every save keeps a revision."
-        actions={
-          <Link to={`/office/updates/new?project=${slug}`} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 font-medium text-white hover:bg-[#9a3412]">
-            New update
-          </Link>
-        }
+        actions={<PrimaryLink to={`/office/updates/new?project=${slug}`}>New update</PrimaryLink>}
       />
-      {choices.length > 1 ? (
-        <div className="mb-4 w-64">
-          <SelectField label="Project" value={slug} onChange={(e) => setSlug(e.target.value)} options={choices} />
-        </div>
-      ) : null}
+      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} />
       <div role="group" aria-label="Show updates by state" className="mb-4 flex flex-wrap gap-1 border-b border-rule">
         {tabs.map((t) => (
           <button
@@ -141,17 +117,7 @@ export function PostsPage() {
       </div>
       {list.isError ? <Notice tone="error">{list.error.message}</Notice> : <DataTable table={table} caption="Updates" empty={list.isPending ? "Loading…" : "No update matches."} />}
       {pages > 1 ? (
-        <div className="mt-3 flex items-center justify-between text-sm">
-          <Button size="sm" disabled={page <= 1} onClick={() => set({ page: String(page - 1) })}>
-            ← Newer
-          </Button>
-          <span className="tabular">
-            Page {page} of {pages} · {total} updates
-          </span>
-          <Button size="sm" disabled={page >= pages} onClick={() => set({ page: String(page + 1) })}>
-            Older →
-          </Button>
-        </div>
+        <Pager page={page} pages={pages} onPage={(n) => set({ page: String(n) })} previous="← Newer" next="Older →" summary={` · ${total} updates`} />
       ) : (
         <p className="mt-2 text-sm text-ink-soft tabular">{total === 1 ? "1 update" : `${total} updates`}</p>
       )}

@@ -13,10 +13,10 @@ import type {
   ShiftInput,
   System,
 } from "#shared/schemas/programme.ts";
-import type { Project } from "#shared/schemas/projects.ts";
 import type { MilestoneStatus, ProgrammeHealth } from "#shared/domain/programme-health.ts";
 import type { DrivingLink } from "#shared/domain/programme-dependencies.ts";
 import { api, ApiError, qs } from "../../lib/api-client.ts";
+import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
 
 export interface MilestoneFilters {
   audience?: Audience;
@@ -41,8 +41,6 @@ export type MilestoneMoves = MilestoneMovesRow;
  */
 export const programmeKeys = {
   all: ["programme"] as const,
-  // The feature asks who is signed in itself, under its own key, because features never import each other.
-  me: () => [...programmeKeys.all, "me"] as const,
   projects: () => [...programmeKeys.all, "projects"] as const,
   project: (slug: string) => [...programmeKeys.all, "project", slug] as const,
   detail: (slug: string) => [...programmeKeys.project(slug), "detail"] as const,
@@ -56,24 +54,9 @@ export const programmeKeys = {
   drivers: (id: number) => [...programmeKeys.milestone(id), "drivers"] as const,
 };
 
-export const programmeMeQueryOptions = () =>
-  queryOptions({
-    queryKey: programmeKeys.me(),
-    queryFn: async (): Promise<User | null> => {
-      try {
-        return (await api.get<{ user: User }>("/api/auth/me")).user;
-      } catch (e) {
-        if (e instanceof ApiError && e.status === 401) return null;
-        throw e;
-      }
-    },
-    staleTime: 60_000,
-  });
+export const programmeProjectsQueryOptions = () => projectListQueryOptions(programmeKeys.projects());
 
-export const programmeProjectsQueryOptions = () => queryOptions({ queryKey: programmeKeys.projects(), queryFn: () => api.get<Project[]>("/api/projects") });
-
-export const programmeProjectQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: programmeKeys.detail(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`), enabled: slug !== "" });
+export const programmeProjectQueryOptions = (slug: string) => projectDetailQueryOptions(programmeKeys.detail(slug), slug);
 
 export const milestonesQueryOptions = (slug: string, f: MilestoneFilters = {}) =>
   queryOptions({
@@ -112,7 +95,6 @@ export const eventsQueryOptions = (id: number) =>
 export const driversQueryOptions = (id: number) =>
   queryOptions({ queryKey: programmeKeys.drivers(id), queryFn: () => api.get<DrivingLink[]>(`/api/milestones/${id}/drivers`) });
 
-export const useProgrammeMe = () => useQuery(programmeMeQueryOptions());
 export const useProgrammeProjects = () => useQuery(programmeProjectsQueryOptions());
 export const useProgrammeProject = (slug: string) => useQuery(programmeProjectQueryOptions(slug));
 export const useMilestones = (slug: string, f: MilestoneFilters = {}) => useQuery(milestonesQueryOptions(slug, f));
@@ -163,7 +145,7 @@ export function useRebaseline(slug: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: BaselineInput) => api.post<{ number: number }>(`/api/projects/${slug}/baselines`, input),
-    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all, predicate: (q) => q.queryKey[1] !== "me" }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all }),
   });
 }
 
@@ -172,7 +154,7 @@ export function useImportMilestones(slug: string) {
   return useMutation({
     mutationFn: (csv: string) => api.post<CsvImportResult>(`/api/projects/${slug}/milestones/import`, { csv }),
     meta: { quiet: true },
-    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all, predicate: (q) => q.queryKey[1] !== "me" }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all }),
   });
 }
 

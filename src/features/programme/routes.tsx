@@ -1,13 +1,15 @@
 import type { RowSelectionState } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
-import { Link, useSearchParams } from "react-router-dom";
+import { Link } from "react-router-dom";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { Button } from "../../components/ui/button.tsx";
-import { SelectField } from "../../components/ui/field.tsx";
+import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
 import { StatusKey } from "../../components/ui/status-mark.tsx";
 import { formatDate } from "../../lib/format.ts";
-import { canEditProgramme, milestonesCsvUrl, useHealth, useMilestones, useProgrammeMe, useProgrammeProject, useProgrammeProjects } from "./api.ts";
+import { useProjectParam } from "../../lib/projects.ts";
+import { useMe } from "../../lib/session.ts";
+import { canEditProgramme, milestonesCsvUrl, useHealth, useMilestones, useProgrammeProject, useProgrammeProjects } from "./api.ts";
 import { CsvPanel } from "./components/csv-panel.tsx";
 import { LazyProgrammeCharts } from "./components/lazy-charts.tsx";
 import { MilestoneHistoryDialog } from "./components/milestone-history.tsx";
@@ -23,32 +25,12 @@ import { useDraftEditor } from "./use-draft-editor.ts";
 
 /** The project the site office is working on: `?project=` or the first one. */
 function useProjectSlug(): { slug: string; pending: boolean; choices: Array<{ value: string; label: string }>; setSlug: (s: string) => void } {
-  const [params, setParams] = useSearchParams();
   const projects = useProgrammeProjects();
-  const slug = params.get("project") ?? projects.data?.[0]?.slug ?? "";
-  return {
-    slug,
-    pending: projects.isPending,
-    choices: (projects.data ?? []).map((p) => ({ value: p.slug, label: p.name })),
-    setSlug: (s) => setParams((prev) => {
-      const next = new URLSearchParams(prev);
-      next.set("project", s);
-      return next;
-    }),
-  };
-}
-
-function ProjectPicker({ choices, slug, setSlug }: { choices: Array<{ value: string; label: string }>; slug: string; setSlug: (s: string) => void }) {
-  if (choices.length <= 1) return null;
-  return (
-    <div className="w-64">
-      <SelectField label="Project" value={slug} onChange={(e) => setSlug(e.target.value)} options={choices} />
-    </div>
-  );
+  return { ...useProjectParam(projects.data), pending: projects.isPending };
 }
 
 function ProgrammeEditor({ slug }: { slug: string }) {
-  const me = useProgrammeMe();
+  const me = useMe();
   const project = useProgrammeProject(slug);
   const milestones = useMilestones(slug);
   const health = useHealth(slug);
@@ -154,7 +136,7 @@ function ProgrammeEditor({ slug }: { slug: string }) {
 /** Site office › Programme: the milestone table, its live preview, charts, baselines and files. */
 export function ProgrammePage() {
   const { slug, pending, choices, setSlug } = useProjectSlug();
-  const me = useProgrammeMe();
+  const me = useMe();
   return (
     <>
       <PageHeader
@@ -176,7 +158,7 @@ export function ProgrammePage() {
           ) : null
         }
       />
-      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} />
+      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="w-64" />
       {pending ? <Spinner /> : slug ? <ProgrammeEditor key={slug} slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
     </>
   );
@@ -186,7 +168,7 @@ function WalkBody({ slug }: { slug: string }) {
   const project = useProgrammeProject(slug);
   const milestones = useMilestones(slug);
   const health = useHealth(slug);
-  const me = useProgrammeMe();
+  const me = useMe();
   if (project.isPending || milestones.isPending || health.isPending || me.isPending) return <Spinner label="Loading the programme" />;
   if (project.isError) return <Notice tone="error">{project.error.message}</Notice>;
   if (milestones.isError) return <Notice tone="error">{milestones.error.message}</Notice>;

@@ -4,16 +4,6 @@ import type { Audience } from "#shared/schemas/common.ts";
 import { milestoneFinish } from "#shared/domain/programme-health.ts";
 import { formatMonthYear } from "./dates.ts";
 
-export const SYSTEM_WORD: Record<Milestone["system"], string> = {
-  building: "Building",
-  cooling: "Cooling",
-  power: "Power",
-  fuel: "Fuel",
-  security: "Security",
-  "fit-out": "Fit-out",
-  commissioning: "Commissioning",
-};
-
 export const AUDIENCE_WORD: Record<Audience, string> = { public: "Public", investor: "Investors", internal: "Internal" };
 
 export const FIELD_WORD: Record<MilestoneEventFieldName, string> = {

@@ -1,9 +1,8 @@
 import { keepPreviousData, queryOptions, useQuery } from "@tanstack/react-query";
-import type { User } from "#shared/schemas/auth.ts";
-import type { Project } from "#shared/schemas/projects.ts";
 import type { MediaPicture, PostDetail, PostRedirect, PostSummary } from "#shared/schemas/posts.ts";
 import type { StoryDetail, StorySummary } from "#shared/schemas/stories.ts";
-import { api, ApiError, qs } from "../../lib/api-client.ts";
+import { api, getPage, qs } from "../../lib/api-client.ts";
+import { projectDetailQueryOptions } from "../../lib/projects.ts";
 
 export interface UpdateFilters {
   page?: number;
@@ -34,36 +33,12 @@ export interface Gallery {
   months: string[];
 }
 
-export interface Page<T> {
-  items: T[];
-  total: number;
-}
-
-/**
- * GET a list whose total comes in `X-Total-Count` (the posts contract). The shared API
- * client returns bodies only, so this reads the header itself and raises the same error type.
- */
-async function getPage<T>(path: string): Promise<Page<T>> {
-  const res = await fetch(path, { headers: { Accept: "application/json" }, credentials: "same-origin" });
-  const body: unknown = (res.headers.get("content-type") ?? "").includes("json") ? await res.json() : null;
-  if (!res.ok) {
-    const err = (body as { error?: { code?: string; message?: string; fields?: Record<string, string> } } | null)?.error;
-    throw new ApiError(res.status, err?.code ?? "http_error", err?.message ?? `The server answered ${res.status}.`, err?.fields ?? {}, body);
-  }
-  const items = Array.isArray(body) ? (body as T[]) : ((body as { items?: T[] } | null)?.items ?? []);
-  const header = Number(res.headers.get("x-total-count"));
-  const total = Number.isFinite(header) && res.headers.has("x-total-count") ? header : ((body as { total?: number } | null)?.total ?? items.length);
-  return { items, total };
-}
-
 /**
  * Keys: site → project(slug) → kind → params. The public pages keep their own cache
- * entries (and ask who is signed in under their own key), since features never import
- * each other.
+ * entries, since features never import each other.
  */
 export const siteKeys = {
   all: ["site"] as const,
-  me: () => [...siteKeys.all, "me"] as const,
   project: (slug: string) => [...siteKeys.all, "project", slug] as const,
   detail: (slug: string) => [...siteKeys.project(slug), "detail"] as const,
   updates: (slug: string, f: UpdateFilters = {}) => [...siteKeys.project(slug), "updates", f] as const,
@@ -73,22 +48,7 @@ export const siteKeys = {
   gallery: (slug: string, f: GalleryFilters = {}) => [...siteKeys.project(slug), "gallery", f] as const,
 };
 
-export const siteMeQueryOptions = () =>
-  queryOptions({
-    queryKey: siteKeys.me(),
-    queryFn: async (): Promise<User | null> => {
-      try {
-        return (await api.get<{ user: User }>("/api/auth/me")).user;
-      } catch (e) {
-        if (e instanceof ApiError && e.status === 401) return null;
-        throw e;
-      }
-    },
-    staleTime: 60_000,
-  });
-
-export const siteProjectQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: siteKeys.detail(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`), enabled: slug !== "" });
+export const siteProjectQueryOptions = (slug: string) => projectDetailQueryOptions(siteKeys.detail(slug), slug);
 
 /** Published updates the caller may see (investors' posts appear for investors and staff, marked). */
 export const updatesQueryOptions = (slug: string, f: UpdateFilters = {}) =>
@@ -151,7 +111,6 @@ export const galleryQueryOptions = (slug: string, f: GalleryFilters = {}) =>
     enabled: slug !== "",
   });
 
-export const useSiteMe = () => useQuery(siteMeQueryOptions());
 export const useSiteProject = (slug: string) => useQuery(siteProjectQueryOptions(slug));
 export const useUpdates = (slug: string, f: UpdateFilters = {}) => useQuery({ ...updatesQueryOptions(slug, f), placeholderData: keepPreviousData });
 export const useUpdate = (slug: string, postSlug: string) => useQuery(updateQueryOptions(slug, postSlug));

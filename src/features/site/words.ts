@@ -1,4 +1,5 @@
 import type { MilestoneSnapshot, PostTag } from "#shared/schemas/posts.ts";
+import { SYSTEM_WORD } from "../../lib/format.ts";
 
 const longDateUtc = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
 const monthYearUtc = new Intl.DateTimeFormat("en-GB", { month: "long", year: "numeric", timeZone: "UTC" });
@@ -31,23 +32,13 @@ export function capturedOn(takenAt: string | null | undefined): string | null {
   return longDate(takenAt.slice(0, 10));
 }
 
-const SYSTEM_WORDS: Record<string, string> = {
-  building: "Building",
-  cooling: "Cooling",
-  power: "Power",
-  fuel: "Fuel",
-  security: "Security",
-  "fit-out": "Fit-out",
-  commissioning: "Commissioning",
-};
-
 /** A tag as a person reads it: areas as named, systems capitalised. */
 export function tagWord(tag: PostTag): string {
-  return tag.kind === "system" ? (SYSTEM_WORDS[tag.value] ?? tag.value) : tag.value;
+  return tag.kind === "system" ? ((SYSTEM_WORD as Record<string, string>)[tag.value] ?? tag.value) : tag.value;
 }
 
 /** The systems the programme knows, for the tag filter (areas come from the posts themselves). */
-export const SYSTEM_TAGS = Object.keys(SYSTEM_WORDS);
+export const SYSTEM_TAGS = Object.keys(SYSTEM_WORD);
 
 /** The date that matters in a snapshot: the actual finish once done, else the forecast (else the baseline). */
 export function snapshotDate(s: MilestoneSnapshot): { word: string; date: string | null } {

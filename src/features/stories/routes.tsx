@@ -1,6 +1,6 @@
 import { getCoreRowModel, useReactTable, type ColumnDef } from "@tanstack/react-table";
 import { useEffect, useMemo, useRef, useState } from "react";
-import { Link, useNavigate, useParams, useSearchParams } from "react-router-dom";
+import { Link, useNavigate, useParams } from "react-router-dom";
 import { toast } from "sonner";
 import type { User } from "#shared/schemas/auth.ts";
 import type { Audience } from "#shared/schemas/common.ts";
@@ -8,16 +8,20 @@ import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { PublishingProblem, WorkflowAction } from "#shared/schemas/posts.ts";
 import type { StoryDetail, StoryItemInput, StorySummary } from "#shared/schemas/stories.ts";
 import { AudienceMark } from "../../components/ui/audience-mark.tsx";
-import { Button } from "../../components/ui/button.tsx";
+import { Button, PrimaryLink } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
-import { SelectField, TextAreaField, TextField } from "../../components/ui/field.tsx";
+import { TextAreaField, TextField } from "../../components/ui/field.tsx";
+import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { PublishStatusMark } from "../../components/ui/publish-status.tsx";
+import { AudienceSheet, EditorHeader, NextStepBar, RefusalNotice, ReturnedNotice } from "../../components/ui/publishing-editor.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
-import { openActions, WorkflowActions } from "../../components/ui/workflow-actions.tsx";
 import { ReturnDialog, ScheduleDialog } from "../../components/ui/workflow-dialogs.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { formatInstant } from "../../lib/format.ts";
-import { storyProblemsOf, useCreateStory, useSaveStory, useStoriesMe, useStoriesProject, useStoriesProjects, useStory, useStoryList, useStoryWorkflow, type StoryWorkflowInput } from "./api.ts";
+import { useProjectParam } from "../../lib/projects.ts";
+import { publishingProblemsOf, publishingWhen } from "../../lib/publishing.ts";
+import { useMe } from "../../lib/session.ts";
+import { useCreateStory, useSaveStory, useStoriesProject, useStoriesProjects, useStory, useStoryList, useStoryWorkflow, type StoryWorkflowInput } from "./api.ts";
 import { StoryPhotoPicker } from "./components/photo-picker.tsx";
 import { StoryHistoryPanel, StoryRevisionsPanel } from "./components/revisions-panel.tsx";
 import { StoryItemsEditor, type EditItem, type PickTarget } from "./components/story-items.tsx";
@@ -44,27 +48,9 @@ const WAITING: Record<StoryDetail["status"], string> = {
   withdrawn: "Withdrawn: no longer on the public pages.",
 };
 
-/** When the story went, or will go, out; else when it was last touched. */
-function whenOf(s: StorySummary, zone: string): string {
-  if (s.status === "scheduled" && s.scheduledFor) return `goes out ${formatInstant(s.scheduledFor, zone)}`;
-  if (s.publishedAt && (s.status === "published" || s.status === "withdrawn")) return `published ${formatInstant(s.publishedAt, zone)}`;
-  return `edited ${formatInstant(s.updatedAt, zone)}`;
-}
-
-function useOfficeProject(): { slug: string; choices: Array<{ value: string; label: string }>; setSlug: (s: string) => void } {
-  const [params, setParams] = useSearchParams();
-  const projects = useStoriesProjects();
-  const slug = params.get("project") ?? projects.data?.[0]?.slug ?? "";
-  return {
-    slug,
-    choices: (projects.data ?? []).map((p) => ({ value: p.slug, label: p.name })),
-    setSlug: (s) =>
-      setParams((prev) => {
-        const next = new URLSearchParams(prev);
-        next.set("project", s);
-        return next;
-      }),
-  };
+/** The project the site office is working on: `?project=` or the first one. */
+function useOfficeProject() {
+  return useProjectParam(useStoriesProjects().data);
 }
 
 /** `/office/stories`: the project's photo stories by state. */
@@ -87,7 +73,7 @@ export function StoriesPage() {
       { id: "status", header: "State", cell: ({ row }) => <PublishStatusMark status={row.original.status} /> },
       { id: "audience", header: "Audience", cell: ({ row }) => <AudienceMark audience={row.original.audience} /> },
       { id: "items", header: "Items", cell: ({ row }) => <span className="tabular">{row.original.itemCount}</span> },
-      { id: "when", header: "When", cell: ({ row }) => <span className="whitespace-nowrap text-ink-soft">{whenOf(row.original, zone)}</span> },
+      { id: "when", header: "When", cell: ({ row }) => <span className="whitespace-nowrap text-ink-soft">{publishingWhen(row.original, zone)}</span> },
     ],
     [zone],
   );
@@ -98,17 +84,9 @@ export function StoriesPage() {
         sheet="Site office · Photo stories"
         title="Photo stories"
         description="Curated sequences of site photos, including then-and-now pairs of one area. Published through the same review as updates."
-        actions={
-          <Link to={`/office/stories/new?project=${slug}`} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 font-medium text-white hover:bg-[#9a3412]">
-            New photo story
-          </Link>
-        }
+        actions={<PrimaryLink to={`/office/stories/new?project=${slug}`}>New photo story</PrimaryLink>}
       />
-      {choices.length > 1 ? (
-        <div className="mb-4 w-64">
-          <SelectField label="Project" value={slug} onChange={(e) => setSlug(e.target.value)} options={choices} />
-        </div>
-      ) : null}
+      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} />
       {list.isError ? <Notice tone="error">{list.error.message}</Notice> : <DataTable table={table} caption="Photo stories" empty={list.isPending ? "Loading…" : "No photo story yet."} />}
     </>
   );
@@ -227,7 +205,7 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
       setDialog(null);
       toast.success(r.status === "scheduled" && r.scheduledFor ? `Scheduled for ${formatInstant(r.scheduledFor, zone)}` : DONE[input.action]);
     } catch (e) {
-      const found = storyProblemsOf(e);
+      const found = publishingProblemsOf(e);
       if (found) {
         setDialog(null);
         setRefusal({ message: e instanceof Error ? e.message : "It cannot be published yet.", problems: found });
@@ -241,7 +219,7 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
   };
 
   const onRestoreError = (e: unknown) => {
-    const found = storyProblemsOf(e);
+    const found = publishingProblemsOf(e);
     if (found) setRefusal({ message: e instanceof Error ? e.message : "It cannot be restored while published.", problems: found });
     else toast.error(e instanceof Error ? e.message : "Not restored.");
   };
@@ -252,69 +230,35 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
   const saving = create.isPending || save.isPending;
   return (
     <>
-      <PageHeader
+      <EditorHeader
         sheet="Site office · Photo stories"
         title={story ? title || "Untitled story" : "New photo story"}
-        description={
-          <span className="flex flex-wrap items-center gap-3">
-            <PublishStatusMark status={status} />
-            <AudienceMark audience={audience} />
-            {story?.status === "scheduled" && story.scheduledFor ? <span className="text-sm" data-testid="scheduled-for">goes out {formatInstant(story.scheduledFor, zone)}</span> : null}
-            {story?.status === "published" ? (
-              <Link to={`/projects/${slug}/stories/${story.slug}`} className="text-sm underline underline-offset-4">
-                Open the published page
-              </Link>
-            ) : null}
-          </span>
-        }
-        actions={
-          <div className="flex items-center gap-2">
-            <span className="text-sm text-ink-soft" aria-live="polite">
-              {saving ? "Saving…" : dirty ? "Unsaved changes" : story ? "All changes saved" : ""}
-            </span>
-            <Button variant={dirty || !story ? "primary" : "secondary"} busy={saving} onClick={() => void doSave()}>
-              {story ? "Save" : "Save draft"}
-            </Button>
-          </div>
-        }
+        status={status}
+        audience={audience}
+        goesOut={story?.status === "scheduled" && story.scheduledFor ? formatInstant(story.scheduledFor, zone) : null}
+        publishedHref={story?.status === "published" ? `/projects/${slug}/stories/${story.slug}` : null}
+        saved={Boolean(story)}
+        saving={saving}
+        dirty={dirty}
+        onSave={() => void doSave()}
       />
-      {story?.reviewComment && story.status === "draft" ? (
-        <div className="mb-4">
-          <Notice tone="caution" title="Returned with comments">
-            {story.reviewComment}
-          </Notice>
-        </div>
-      ) : null}
-      {refusal ? (
-        <div className="mb-4" data-testid="refusal-problems">
-          <Notice tone="error" title="Not published yet: fix these first">
-            {refusal.problems.length === 0 ? <p>{refusal.message}</p> : null}
-            <ul className="mt-1 list-none">
-              {refusal.problems.map((p) => (
-                <li key={`${p.code}-${p.mediaId ?? ""}`}>▲ {p.message}</li>
-              ))}
-            </ul>
-          </Notice>
-        </div>
-      ) : null}
+      {story?.reviewComment && story.status === "draft" ? <ReturnedNotice comment={story.reviewComment} /> : null}
+      {refusal ? <RefusalNotice message={refusal.message} problems={refusal.problems} renderProblem={(p) => <li key={`${p.code}-${p.mediaId ?? ""}`}>▲ {p.message}</li>} /> : null}
       {story ? (
-        <div className="mb-4 flex flex-wrap items-center gap-3 border border-rule bg-sheet px-4 py-3">
-          <span className="label-caps">Next step</span>
-          {openActions(status, me.role, ownWork, STORY_ACTIONS).length === 0 ? <span className="text-sm text-ink-soft">{WAITING[status]}</span> : null}
-          <WorkflowActions
-            status={status}
-            role={me.role}
-            ownWork={ownWork}
-            offered={STORY_ACTIONS}
-            busy={workflow.isPending ? (workflow.variables?.action ?? null) : null}
-            onAction={(a) => {
-              if (a === "schedule" || a === "return") {
-                setFieldErrors({});
-                setDialog(a);
-              } else void act({ action: a });
-            }}
-          />
-        </div>
+        <NextStepBar
+          status={status}
+          role={me.role}
+          ownWork={ownWork}
+          offered={STORY_ACTIONS}
+          busy={workflow.isPending ? (workflow.variables?.action ?? null) : null}
+          onAction={(a) => {
+            if (a === "schedule" || a === "return") {
+              setFieldErrors({});
+              setDialog(a);
+            } else void act({ action: a });
+          }}
+          waiting={WAITING[status]}
+        />
       ) : null}
       <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_18rem]">
         <div className="flex min-w-0 flex-col gap-4">
@@ -345,18 +289,7 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
           </section>
         </div>
         <aside className="flex flex-col gap-4">
-          <Sheet label="Audience">
-            <SelectField
-              label="Who may see it"
-              value={audience}
-              onChange={(e) => { setAudience(e.target.value as Audience); touch(); }}
-              options={[
-                { value: "public", label: "Public: anyone" },
-                { value: "investor", label: "Investors (and staff)" },
-                { value: "internal", label: "Staff only" },
-              ]}
-            />
-          </Sheet>
+          <AudienceSheet label="Who may see it" value={audience} onChange={(a) => { setAudience(a); touch(); }} />
           <Sheet label="How it is shown">
             <p className="text-sm text-ink-soft">Then-and-now pairs become a comparison slider with each photo's capture date; single photos open in a lightbox. Both photos of a pair need capture dates on different days.</p>
           </Sheet>
@@ -413,7 +346,7 @@ export function StoryEditorPage() {
   const id = idParam === "new" ? 0 : Number(idParam);
   const office = useOfficeProject();
   const story = useStory(id);
-  const me = useStoriesMe();
+  const me = useMe();
   const slug = story.data?.projectSlug ?? office.slug;
   const project = useStoriesProject(slug);
   if (me.isPending || (id > 0 && story.isPending) || !slug || project.isPending) return <Spinner label="Opening the story" />;

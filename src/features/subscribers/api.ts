@@ -1,5 +1,4 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { Project } from "#shared/schemas/projects.ts";
 import type {
   ConfirmationDone,
   ConfirmationView,
@@ -19,6 +18,7 @@ import type {
   UnsubscribeView,
 } from "#shared/schemas/subscribers.ts";
 import { api, qs } from "../../lib/api-client.ts";
+import { projectListQueryOptions } from "../../lib/projects.ts";
 
 /** Visitors' side: the form's options and the pages opened from signed links. */
 export const subscriptionKeys = {
@@ -41,7 +41,7 @@ export const investorDigestKeys = {
   mine: () => [...investorDigestKeys.all, "mine"] as const,
 };
 
-export const subscriptionProjectsQueryOptions = () => queryOptions({ queryKey: subscriptionKeys.projects(), queryFn: () => api.get<Project[]>("/api/projects") });
+export const subscriptionProjectsQueryOptions = () => projectListQueryOptions(subscriptionKeys.projects());
 export const subscriptionOptionsQueryOptions = (slug: string) =>
   queryOptions({ queryKey: subscriptionKeys.options(slug), queryFn: () => api.get<SubscriptionOptions>(`/api/projects/${slug}/subscription-options`), enabled: slug !== "" });
 export const confirmationQueryOptions = (token: string) =>

@@ -19,7 +19,7 @@ import { Button } from "../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
-import { applyFieldErrors } from "../../lib/format.ts";
+import { applyFieldErrors, SYSTEM_WORD } from "../../lib/format.ts";
 import {
   subscribersCsvUrl,
   useConfirm,
@@ -40,7 +40,7 @@ import { ImportPanel } from "./components/import-panel.tsx";
 import { SubscribeForm } from "./components/subscribe-form.tsx";
 import { SubscribersTable } from "./components/subscribers-table.tsx";
 import { TopicsPicker } from "./components/topics-picker.tsx";
-import { FREQUENCY_SHORT, FREQUENCY_WORD, INTEREST_SHORT, STATUS_LOOK, SYSTEM_WORD } from "./words.ts";
+import { FREQUENCY_SHORT, FREQUENCY_WORD, INTEREST_SHORT, STATUS_LOOK } from "./words.ts";
 
 /** One column on the paper, for the pages a visitor reaches from a form or an e-mail. */
 function PublicSheet({ label, title, lead, children }: { label: string; title: string; lead?: ReactNode; children: ReactNode }) {

@@ -1,5 +1,5 @@
-import type { System } from "#shared/schemas/programme.ts";
 import type { Frequency, Interest, SubscriberStatus, Topics } from "#shared/schemas/subscribers.ts";
+import { SYSTEM_WORD } from "../../lib/format.ts";
 
 export const INTEREST_WORD: Record<Interest, string> = {
   prospect: "I may lease space here",
@@ -18,16 +18,6 @@ export const FREQUENCY_WORD: Record<Frequency, string> = {
 };
 
 export const FREQUENCY_SHORT: Record<Frequency, string> = { immediate: "As it happens", weekly: "Weekly", monthly: "Monthly" };
-
-export const SYSTEM_WORD: Record<System, string> = {
-  building: "Building",
-  cooling: "Cooling",
-  power: "Power",
-  fuel: "Fuel",
-  security: "Security",
-  "fit-out": "Fit-out",
-  commissioning: "Commissioning",
-};
 
 /** Status by shape and word together, never by colour alone. */
 export const STATUS_LOOK: Record<SubscriberStatus, { glyph: string; word: string; className: string }> = {

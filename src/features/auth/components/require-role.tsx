@@ -2,7 +2,8 @@ import type { ReactNode } from "react";
 import { Link, Navigate, useLocation } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
 import { Spinner } from "../../../components/ui/sheet.tsx";
-import { useMe, homeFor } from "../api.ts";
+import { useMe } from "../../../lib/session.ts";
+import { homeFor } from "../api.ts";
 
 /** Signed out → sign-in (then back here); signed in with the wrong role → a clear refusal. */
 export function RequireRole({ roles, area, children }: { roles: Role[]; area: string; children: ReactNode }) {

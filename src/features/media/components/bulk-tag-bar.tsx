@@ -4,8 +4,8 @@ import type { MediaVocabulary } from "#shared/schemas/media.ts";
 import type { System } from "#shared/schemas/programme.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { SelectField } from "../../../components/ui/field.tsx";
+import { SYSTEM_WORD } from "../../../lib/format.ts";
 import { useBulkTag } from "../api.ts";
-import { SYSTEM_WORD } from "../words.ts";
 
 /** Tags for every selected photo at once: an area, a system, a milestone. */
 export function BulkTagBar({ slug, ids, vocabulary, onDone, onClear }: { slug: string; ids: number[]; vocabulary: MediaVocabulary; onDone: () => void; onClear: () => void }) {

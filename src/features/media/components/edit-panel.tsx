@@ -8,9 +8,10 @@ import { Button } from "../../../components/ui/button.tsx";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
 import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
-import { applyFieldErrors } from "../../../lib/format.ts";
-import { canReview, useMediaItem, useMediaMe, useRetry, useUpdateMedia } from "../api.ts";
-import { formatBytes, formatTakenAt, SENSITIVITY_WORD, SYSTEM_WORD } from "../words.ts";
+import { applyFieldErrors, SYSTEM_WORD } from "../../../lib/format.ts";
+import { useMe } from "../../../lib/session.ts";
+import { canReview, useMediaItem, useRetry, useUpdateMedia } from "../api.ts";
+import { formatBytes, formatTakenAt, SENSITIVITY_WORD } from "../words.ts";
 import { FocalPicker } from "./focal-picker.tsx";
 import { MissingAlt, SecurityFlag, SensitivityWord, StatusWord } from "./marks.tsx";
 
@@ -82,7 +83,7 @@ function AreaTags({ value, onChange, known }: { value: string[]; onChange: (v: s
 }
 
 function EditForm({ item, slug, vocabulary, onClose }: { item: MediaItem; slug: string; vocabulary: MediaVocabulary; onClose: () => void }) {
-  const me = useMediaMe();
+  const me = useMe();
   const reviewer = canReview(me.data);
   const update = useUpdateMedia(slug);
   const form = useForm<FormInput, unknown, MediaPatchInput>({ resolver: zodResolver(MediaPatchInputSchema), defaultValues: defaultsOf(item) });

@@ -2,8 +2,9 @@ import { SensitivitySchema, type MediaVocabulary } from "#shared/schemas/media.t
 import type { System } from "#shared/schemas/programme.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../../components/ui/field.tsx";
+import { SYSTEM_WORD } from "../../../lib/format.ts";
 import type { LibraryFilters } from "../api.ts";
-import { SENSITIVITY_WORD, SYSTEM_WORD } from "../words.ts";
+import { SENSITIVITY_WORD } from "../words.ts";
 
 /** The library's filters; every change starts again from the first page. */
 export function LibraryFiltersForm({ filters, onChange, vocabulary }: { filters: LibraryFilters; onChange: (f: LibraryFilters) => void; vocabulary: MediaVocabulary }) {

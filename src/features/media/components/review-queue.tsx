@@ -2,8 +2,9 @@ import { toast } from "sonner";
 import type { MediaItem } from "#shared/schemas/media.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
+import { SYSTEM_WORD } from "../../../lib/format.ts";
 import { useReview } from "../api.ts";
-import { formatTakenAt, SYSTEM_WORD } from "../words.ts";
+import { formatTakenAt } from "../words.ts";
 import { MediaPicture } from "./media-picture.tsx";
 import { MissingAlt, SecurityFlag } from "./marks.tsx";
 

@@ -1,6 +1,8 @@
+import { toast } from "sonner";
+import { PublishingHistory } from "../../../components/ui/publishing-history.tsx";
 import { RevisionDiffView, RevisionList } from "../../../components/ui/revisions.tsx";
 import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
-import { useDiff, useRestoreRevision, useRevisions } from "../api.ts";
+import { useDiff, usePostHistory, useRestoreRevision, useRevisions } from "../api.ts";
 
 function DiffView({ postId, n, against }: { postId: number; n: number; against?: number }) {
   const diff = useDiff(postId, n, against);
@@ -27,8 +29,17 @@ export function RevisionsPanel({ postId, zone, onRestored }: { postId: number; z
             done();
             onRestored();
           },
+          onError: (e) => toast.error(e instanceof Error ? e.message : "Not restored."),
         })
       }
     />
   );
+}
+
+/** Who took which publishing step, and why the scheduler held the update back if it did. */
+export function PostHistoryPanel({ postId, zone }: { postId: number; zone: string }) {
+  const history = usePostHistory(postId);
+  if (history.isPending) return <Spinner label="Loading the history" />;
+  if (history.isError) return <Notice tone="error">{history.error.message}</Notice>;
+  return <PublishingHistory steps={history.data} zone={zone} />;
 }

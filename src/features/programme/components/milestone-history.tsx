@@ -3,9 +3,9 @@ import type { Milestone, MilestoneEventRow } from "#shared/schemas/programme.ts"
 import { Button } from "../../../components/ui/button.tsx";
 import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
-import { formatDate, formatInstant } from "../../../lib/format.ts";
+import { formatDate, formatInstant, SYSTEM_WORD } from "../../../lib/format.ts";
 import { useMilestoneDrivers, useMilestoneEvents } from "../api.ts";
-import { AUDIENCE_WORD, FIELD_WORD, signedDays, SYSTEM_WORD } from "../words.ts";
+import { AUDIENCE_WORD, FIELD_WORD, signedDays } from "../words.ts";
 
 function valueOf(e: MilestoneEventRow, v: string | null): string {
   if (v === null || v === "") return "none";

@@ -18,9 +18,9 @@ import { SystemSchema, type Milestone } from "#shared/schemas/programme.ts";
 import type { MilestoneStatus } from "#shared/domain/programme-health.ts";
 import { SelectField } from "../../../components/ui/field.tsx";
 import { STATUS_LOOK, STATUS_ORDER, StatusMark } from "../../../components/ui/status-mark.tsx";
-import { formatDate } from "../../../lib/format.ts";
+import { formatDate, SYSTEM_WORD } from "../../../lib/format.ts";
 import type { Drafts, MilestoneDraft } from "../preview.ts";
-import { AUDIENCE_WORD, signedDays, SYSTEM_WORD } from "../words.ts";
+import { AUDIENCE_WORD, signedDays } from "../words.ts";
 
 export interface MilestoneTableProps {
   milestones: Milestone[];

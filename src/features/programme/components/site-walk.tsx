@@ -9,11 +9,11 @@ import { SelectField } from "../../../components/ui/field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
-import { applyFieldErrors, formatDate } from "../../../lib/format.ts";
+import { applyFieldErrors, formatDate, SYSTEM_WORD } from "../../../lib/format.ts";
 import { conflictCurrent, usePatchMilestone } from "../api.ts";
 import { addWeeks } from "../dates.ts";
 import { patchChangesSomething, patchOf, previewDrafts, type MilestoneDraft } from "../preview.ts";
-import { signedDays, SYSTEM_WORD } from "../words.ts";
+import { signedDays } from "../words.ts";
 import { HealthPreview } from "./health-preview.tsx";
 
 const big = "min-h-12 px-4 text-base";

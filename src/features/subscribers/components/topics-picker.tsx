@@ -1,7 +1,7 @@
 import { useId } from "react";
 import type { System } from "#shared/schemas/programme.ts";
 import type { Topics } from "#shared/schemas/subscribers.ts";
-import { SYSTEM_WORD } from "../words.ts";
+import { SYSTEM_WORD } from "../../../lib/format.ts";
 
 function Check({ label, checked, onChange }: { label: string; checked: boolean; onChange: (on: boolean) => void }) {
   return (

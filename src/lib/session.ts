@@ -1,0 +1,30 @@
+import { queryOptions, useQuery } from "@tanstack/react-query";
+import type { User } from "#shared/schemas/auth.ts";
+import { api, ApiError } from "./api-client.ts";
+
+/**
+ * Who is signed in, asked once and cached under one key for the whole app. Every feature
+ * reads it from here (features never import each other); the auth feature's sign-in and
+ * sign-out write this same key, so no page can keep showing the previous user.
+ */
+export const sessionKeys = {
+  all: ["session"] as const,
+  me: () => [...sessionKeys.all, "me"] as const,
+};
+
+/** The signed-in user, or null when signed out (a 401 is an answer, not an error). */
+export const meQueryOptions = () =>
+  queryOptions({
+    queryKey: sessionKeys.me(),
+    queryFn: async (): Promise<User | null> => {
+      try {
+        return (await api.get<{ user: User }>("/api/auth/me")).user;
+      } catch (e) {
+        if (e instanceof ApiError && e.status === 401) return null;
+        throw e;
+      }
+    },
+    staleTime: 60_000,
+  });
+
+export const useMe = () => useQuery(meQueryOptions());
