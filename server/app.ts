@@ -38,7 +38,8 @@ import { createSubscribersService, type SubscribersService } from "./subscribers
 import { mailEventsRouter, oneClickRouter, subscribersRouter } from "./subscribers/subscribers.router.ts";
 import { createPostsService, type PostsService } from "./posts/posts.service.ts";
 import { postsRouter } from "./posts/posts.router.ts";
-import { createPublishingTicker, type PublishingTicker } from "./posts/posts.scheduler.ts";
+import { createPublishingService } from "./publishing/publishing.service.ts";
+import { createPublishingTicker, type PublishingTicker } from "./publishing/publishing.scheduler.ts";
 import { createStoriesService, type StoriesService } from "./stories/stories.service.ts";
 import { storiesRouter, storyPagesRouter } from "./stories/stories.router.ts";
 import { createSiteService, injectHead, type SiteService } from "./site/site.service.ts";
@@ -129,6 +130,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
     mailer,
     logger,
     projects,
+    programme,
     enquiries,
     publicUrl: config.PUBLIC_URL,
     tokenSecret: config.TOKEN_SECRET,
@@ -136,8 +138,9 @@ export function createApp(deps: AppDeps): PlumblineApp {
     webhookSecret: config.MAIL_WEBHOOK_SECRET ?? null,
   });
   subscribers.startWorkers();
-  const posts = createPostsService({ db, projects, programme, media, onChange: publicCache.clear });
-  const stories = createStoriesService({ db, projects, media, onChange: publicCache.clear });
+  const publishingWorkflow = createPublishingService({ db });
+  const posts = createPostsService({ db, projects, programme, media, publishing: publishingWorkflow, onChange: publicCache.clear });
+  const stories = createStoriesService({ db, projects, media, publishing: publishingWorkflow, onChange: publicCache.clear });
   const site = createSiteService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
   // Building the app publishes nothing: server/index.ts starts the ticker.
   const publishing = createPublishingTicker({ posts, stories }, logger);
@@ -148,6 +151,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
     projects,
     programme,
     media,
+    posts,
     subscribers,
     publicUrl: config.PUBLIC_URL,
     tokenSecret: config.TOKEN_SECRET,
@@ -155,7 +159,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
   });
   // Building the app sends no digests: server/index.ts (or digest-worker.ts) starts the workers.
   const digestJobs = createDigestJobs({ db, mailer, logger, digests, subscribers }, { ratePerSecond: config.DIGEST_SEND_RATE_PER_SECOND, leaseMs: config.DIGEST_LEASE_SECONDS * 1000 });
-  const digestSchedule = createDigestScheduler({ db, projects, digests, logger });
+  const digestSchedule = createDigestScheduler({ projects, digests, logger });
 
   app.use(
     pinoHttp({

@@ -1,5 +1,4 @@
 import type { Knex } from "knex";
-import type { Audience } from "#shared/schemas/common.ts";
 import type { DigestCounts, DigestRunStatus } from "#shared/schemas/digests.ts";
 import type { Frequency } from "#shared/schemas/subscribers.ts";
 
@@ -329,66 +328,11 @@ export async function subscriberIdsByHash(q: Q, emailHash: string): Promise<numb
   return rows.map((r: { id: number }) => Number(r.id));
 }
 
-// Posts (read-only: the columns digests need of published posts)
-
-export interface DigestPostRow {
-  id: number;
-  slug: string;
-  title: string;
-  summary: string;
-  audience: Audience;
-  publishedAt: Date;
-  coverMediaId: number | null;
-  tags: Array<{ kind: "area" | "system"; value: string }>;
-}
-
-/** Published posts of the given audiences with `published_at` in [from, before). */
-export async function listPublishedPosts(q: Q, projectId: number, audiences: readonly Audience[], from: Date, before: Date): Promise<DigestPostRow[]> {
-  const rows = await q("posts")
-    .where({ project_id: projectId, status: "published" })
-    .whereIn("audience", [...audiences])
-    .andWhere("published_at", ">=", from)
-    .andWhere("published_at", "<", before)
-    .orderBy("published_at")
-    .orderBy("id")
-    .select("id", "slug", "title", "summary", "audience", "published_at", "cover_media_id");
-  return withTags(q, rows);
-}
-
-async function withTags(q: Q, rows: Array<Record<string, unknown>>): Promise<DigestPostRow[]> {
-  const ids = rows.map((r) => Number(r.id));
-  const tags = new Map<number, DigestPostRow["tags"]>(ids.map((id) => [id, []]));
-  if (ids.length) for (const t of await q("post_tags").whereIn("post_id", ids)) tags.get(Number(t.post_id))?.push({ kind: t.kind, value: String(t.value) });
-  return rows.map((r) => ({
-    id: Number(r.id),
-    slug: String(r.slug),
-    title: String(r.title),
-    summary: String(r.summary ?? ""),
-    audience: r.audience as Audience,
-    publishedAt: new Date(r.published_at as string),
-    coverMediaId: r.cover_media_id == null ? null : Number(r.cover_media_id),
-    tags: tags.get(Number(r.id)) ?? [],
-  }));
-}
-
-export async function findPublishedPost(q: Q, id: number): Promise<(DigestPostRow & { projectId: number }) | null> {
-  const r = await q("posts").where({ id, status: "published" }).first("id", "project_id", "slug", "title", "summary", "audience", "published_at", "cover_media_id");
-  if (!r) return null;
-  const [post] = await withTags(q, [r]);
-  return { ...post!, projectId: Number(r.project_id) };
-}
-
-/** Posts published since `since` that have no "as it happens" run yet (public or investor only). */
-export async function postsAwaitingImmediateRun(q: Q, since: Date): Promise<Array<{ id: number; projectId: number; publishedAt: Date }>> {
-  const rows = await q("posts as p")
-    .where("p.status", "published")
-    .whereIn("p.audience", ["public", "investor"])
-    .andWhere("p.published_at", ">=", since)
-    .whereNotExists(q("digest_runs as r").whereRaw("r.post_id = p.id").andWhere("r.frequency", "immediate"))
-    .orderBy("p.published_at")
-    .limit(100)
-    .select("p.id", "p.project_id", "p.published_at");
-  return rows.map((r) => ({ id: Number(r.id), projectId: Number(r.project_id), publishedAt: new Date(r.published_at) }));
+/** Of these posts, the ones that already have an "as it happens" run. */
+export async function postsWithImmediateRun(q: Q, postIds: readonly number[]): Promise<Set<number>> {
+  if (postIds.length === 0) return new Set();
+  const rows = await q("digest_runs").whereIn("post_id", [...postIds]).andWhere("frequency", "immediate").select("post_id");
+  return new Set(rows.map((r: { post_id: number }) => Number(r.post_id)));
 }
 
 export async function countRecipients(q: Q, projectId: number, frequency: Frequency): Promise<number> {

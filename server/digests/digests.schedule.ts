@@ -1,7 +1,5 @@
 import type { Logger } from "../core/logger.ts";
-import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
-import { postsAwaitingImmediateRun } from "./digests.repository.ts";
 import type { DigestsService } from "./digests.service.ts";
 import { sendTimes } from "./digests.windows.ts";
 
@@ -15,8 +13,8 @@ export const IMMEDIATE_LOOKBACK_MS = 60 * 60 * 1000;
  * (first working day 08:00 local, the previous month) and one per newly published post. Each
  * period has one run whichever process creates it (unique run key), so every process may tick.
  */
-export function createDigestScheduler(deps: { db: Db; projects: ProjectsService; digests: DigestsService; logger: Logger; now?: () => Date }) {
-  const { db, projects, digests, logger } = deps;
+export function createDigestScheduler(deps: { projects: ProjectsService; digests: DigestsService; logger: Logger; now?: () => Date }) {
+  const { projects, digests, logger } = deps;
   const now = deps.now ?? (() => new Date());
 
   /** Weekly and monthly runs whose send time has come (within the catch-up limit). */
@@ -37,7 +35,7 @@ export function createDigestScheduler(deps: { db: Db; projects: ProjectsService;
   /** One "as it happens" run per post published in the last hour that has none yet. */
   async function tickImmediate(at: Date = now()): Promise<number[]> {
     const created: number[] = [];
-    for (const post of await postsAwaitingImmediateRun(db, new Date(at.getTime() - IMMEDIATE_LOOKBACK_MS))) {
+    for (const post of await digests.postsAwaitingImmediateRun(new Date(at.getTime() - IMMEDIATE_LOOKBACK_MS))) {
       const r = await digests.createRun({ projectId: post.projectId, frequency: "immediate", at, timeZone: "UTC", postId: post.id });
       if (r.created) created.push(r.id);
     }

@@ -9,6 +9,7 @@ import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { Mailer } from "../mail/mail.service.ts";
 import type { MediaService } from "../media/media.service.ts";
+import type { PostsService, PublishedPostRecord } from "../posts/posts.service.ts";
 import type { ProgrammeService } from "../programme/programme.service.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import type { SubscribersService } from "../subscribers/subscribers.service.ts";
@@ -18,20 +19,18 @@ import type { SubscriberRecord } from "../subscribers/subscribers.repository.ts"
 import {
   countRecipients,
   findContent,
-  findPublishedPost,
   findRun,
   findRunByKey,
   insertContent,
   insertDeliveries,
   insertRunOnce,
   lastFiguresOf,
-  listPublishedPosts,
   listRuns,
+  postsWithImmediateRun,
   refreshCounts,
   setRunStatus,
   deliveredSubscriberIds,
   type DeliveryInsert,
-  type DigestPostRow,
   type DigestRunRecord,
 } from "./digests.repository.ts";
 import { hasNews, personalise, renderDigest, type DigestDocument, type DigestFigures, type PersonalLinks, type RenderedDigest } from "./digests.render.ts";
@@ -61,6 +60,8 @@ export interface DigestsDeps {
   projects: ProjectsService;
   programme: ProgrammeService;
   media: MediaService;
+  /** Published updates: what a digest tells of. */
+  posts: Pick<PostsService, "publishedBetween" | "findPublished" | "publishedSince">;
   subscribers: SubscribersService;
   publicUrl: string;
   tokenSecret: string;
@@ -77,7 +78,7 @@ function readerOf(audience: DigestAudience): Actor {
 const audiencesOf = (a: DigestAudience): Audience[] => (a === "investor" ? ["public", "investor"] : ["public"]);
 
 /** Post tags → the shape `topicsAllow` reads. */
-function postTopics(p: DigestPostRow) {
+function postTopics(p: PublishedPostRecord) {
   return { areas: p.tags.filter((t) => t.kind === "area").map((t) => t.value), systems: p.tags.filter((t) => t.kind === "system").map((t) => t.value) };
 }
 
@@ -99,7 +100,7 @@ export function runSummary(r: DigestRunRecord): DigestRunSummary {
 }
 
 export function createDigestsService(deps: DigestsDeps) {
-  const { db, logger, projects, programme, media, subscribers, publicUrl, tokenSecret } = deps;
+  const { db, logger, projects, programme, media, posts, subscribers, publicUrl, tokenSecret } = deps;
   const now = deps.now ?? (() => new Date());
   const host = new URL(publicUrl).hostname || "plumbline.local";
 
@@ -142,8 +143,8 @@ export function createDigestsService(deps: DigestsDeps) {
    * public derivative; an investor post's (in an investor digest only) a signed, expiring link, since
    * no mail client is signed in. A public digest never asks for an investor picture.
    */
-  async function posterUrls(posts: DigestPostRow[], audience: DigestAudience): Promise<Map<number, { url: string; alt: string }>> {
-    const shown = posts.filter((p) => p.coverMediaId !== null && (p.audience === "public" || (p.audience === "investor" && audience === "investor")));
+  async function posterUrls(rows: PublishedPostRecord[], audience: DigestAudience): Promise<Map<number, { url: string; alt: string }>> {
+    const shown = rows.filter((p) => p.coverMediaId !== null && (p.audience === "public" || (p.audience === "investor" && audience === "investor")));
     const out = new Map<number, { url: string; alt: string }>();
     if (shown.length === 0) return out;
     const pictures = await media.pictureFor(shown.map((p) => p.coverMediaId!));
@@ -177,12 +178,12 @@ export function createDigestsService(deps: DigestsDeps) {
     const { project, audience, topics } = p;
     const reader = readerOf(audience);
     const allowed = audiencesOf(audience);
-    let postRows: DigestPostRow[];
+    let postRows: PublishedPostRecord[];
     if (p.frequency === "immediate") {
-      const one = p.postId ? await findPublishedPost(db, p.postId) : null;
+      const one = p.postId ? await posts.findPublished(p.postId) : null;
       postRows = one && one.projectId === project.id && allowed.includes(one.audience) ? [one] : [];
     } else {
-      postRows = await listPublishedPosts(db, project.id, allowed, p.windowStart, p.windowEnd);
+      postRows = await posts.publishedBetween(project.id, allowed, p.windowStart, p.windowEnd);
     }
     postRows = postRows.filter((x) => allowed.includes(x.audience) && topicsAllow(topics, postTopics(x)));
     const pictures = await posterUrls(postRows, audience);
@@ -314,7 +315,7 @@ export function createDigestsService(deps: DigestsDeps) {
   async function createRun(input: { projectId: number; frequency: Frequency; at: Date; timeZone: string; postId?: number; requestedBy?: number | null }): Promise<{ id: number; created: boolean }> {
     if (input.frequency === "immediate") {
       if (!input.postId) throw new AppError("validation", "An as-it-happens run needs a post.", 400);
-      const post = await findPublishedPost(db, input.postId);
+      const post = await posts.findPublished(input.postId);
       const at = post?.publishedAt ?? input.at;
       return insertRunOnce(db, { projectId: input.projectId, frequency: "immediate", runKey: `immediate:post:${input.postId}`, windowStart: at, windowEnd: new Date(at.getTime() + 1), postId: input.postId, requestedBy: input.requestedBy });
     }
@@ -438,6 +439,13 @@ export function createDigestsService(deps: DigestsDeps) {
     },
 
     findRunByKey: (projectId: number, key: string) => findRunByKey(db, projectId, key),
+
+    /** Posts published since `since` that have no "as it happens" run yet (public or investor only), at most 100, oldest first. */
+    async postsAwaitingImmediateRun(since: Date): Promise<Array<{ id: number; projectId: number; publishedAt: Date }>> {
+      const published = await posts.publishedSince(since);
+      const done = await postsWithImmediateRun(db, published.map((p) => p.id));
+      return published.filter((p) => !done.has(p.id)).slice(0, 100);
+    },
   };
 }
 export type DigestsService = ReturnType<typeof createDigestsService>;

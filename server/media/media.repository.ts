@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaListFilters, MediaStatus, MediaTags, Sensitivity, TagKind, VariantFormat } from "#shared/schemas/media.ts";
 import type { System } from "#shared/schemas/programme.ts";
+import { replaceChildRows } from "../core/child-rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -368,9 +369,9 @@ export async function replaceUsages(
   audience: Audience,
   published: boolean,
 ): Promise<void> {
-  await q("media_usages").where({ owner_type: owner.type, owner_id: owner.id }).delete();
-  const rows = [...new Set(mediaIds)].map((media_id) => ({ media_id, owner_type: owner.type, owner_id: owner.id, audience, published }));
-  if (rows.length > 0) await q("media_usages").insert(rows);
+  const parent = { owner_type: owner.type, owner_id: owner.id };
+  // By whole primary keys (see replaceChildRows): two posts or stories saved at the same moment must not deadlock.
+  await replaceChildRows(q, "media_usages", parent, ["media_id"], [...new Set(mediaIds)].map((media_id) => ({ ...parent, media_id, audience, published })));
 }
 
 export async function countUsages(q: Q, mediaIds: readonly number[]): Promise<Map<number, { total: number; published: number }>> {

@@ -2,31 +2,24 @@ import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MilestoneSnapshot, PostStatus, PostTag } from "#shared/schemas/posts.ts";
 import type { RichTextDoc } from "#shared/schemas/rich-text.ts";
+import type { Viewer } from "#shared/domain/audience.ts";
+import { replaceChildRows } from "../core/child-rows.ts";
+import { contentQueries, visibleContent } from "../core/content-tables.ts";
 
 type Q = Knex | Knex.Transaction;
 
-/** Who is reading: a visitor, an investor, or staff (admin, lead, marketing). */
-export type Viewer = "public" | "investor" | "staff";
-
-const VISIBLE: Record<Viewer, readonly Audience[]> = {
-  public: ["public"],
-  investor: ["public", "investor"],
-  staff: ["public", "investor", "internal"],
-};
-
-/** The audiences a viewer may read. */
-export function audiencesFor(viewer: Viewer): readonly Audience[] {
-  return VISIBLE[viewer];
-}
+/**
+ * The queries every kind of published content shares (server/core/content-tables.ts), over the
+ * posts tables: old addresses and redirects, revision numbers, the scheduler's claim.
+ */
+const shared = contentQueries({ content: "posts", oldSlugs: "post_slugs", revisions: "post_revisions", key: "post_id" });
 
 /**
- * The audience rule of posts, in one place: visitors read published public posts, investors
- * published public and investor posts, staff everything in every state. Every read path of
- * this repository (lists, search, pages, old addresses, feeds, sitemaps) goes through it.
+ * The audience rule of posts (the rule of all published content, `visibleContent`): every read
+ * path of this repository (lists, search, pages, old addresses, feeds, sitemaps) goes through it.
  */
 function visibleTo<T extends Knex.QueryBuilder>(query: T, viewer: Viewer, alias = "p"): T {
-  if (viewer === "staff") return query;
-  return query.where(`${alias}.status`, "published").whereIn(`${alias}.audience`, audiencesFor(viewer) as Audience[]) as T;
+  return visibleContent(query, viewer, alias);
 }
 
 export interface PostRecord {
@@ -194,34 +187,12 @@ export async function findVisiblePostBySlug(q: Q, projectId: number, slug: strin
   return r ? toRecord(r) : null;
 }
 
-/** The current address of a post that once lived at `oldSlug`, when the viewer may read it. */
-export async function findRedirect(q: Q, projectId: number, oldSlug: string, viewer: Viewer): Promise<string | null> {
-  const r = await visibleTo(
-    q("post_slugs as s").join("posts as p", "p.id", "s.post_id").where({ "s.project_id": projectId, "s.slug": oldSlug }),
-    viewer,
-  ).first("p.slug");
-  return r ? String(r.slug) : null;
-}
-
-/** Who holds an address in a project: a post's current slug or one of its old ones. */
-export async function slugHolder(q: Q, projectId: number, slug: string): Promise<{ postId: number; current: boolean } | null> {
-  const current = await q("posts").where({ project_id: projectId, slug }).first("id");
-  if (current) return { postId: Number(current.id), current: true };
-  const old = await q("post_slugs").where({ project_id: projectId, slug }).first("post_id");
-  return old ? { postId: Number(old.post_id), current: false } : null;
-}
-
-export async function keepOldSlug(q: Q, projectId: number, slug: string, postId: number): Promise<void> {
-  await q("post_slugs").insert({ project_id: projectId, slug, post_id: postId }).onConflict(["project_id", "slug"]).merge({ post_id: postId });
-}
-
-export async function releaseOldSlug(q: Q, projectId: number, slug: string, postId: number): Promise<void> {
-  await q("post_slugs").where({ project_id: projectId, slug, post_id: postId }).delete();
-}
-
-export async function oldSlugsOf(q: Q, postId: number): Promise<string[]> {
-  return (await q("post_slugs").where({ post_id: postId }).orderBy("created_at").select("slug")).map((r) => String(r.slug));
-}
+/** The current address of a post that once lived at an old one, when the viewer may read it. */
+export const findRedirect = shared.findRedirect;
+/** Makes way for a new address, keeping the current one for redirects; false when another post holds it. */
+export const moveSlug = shared.moveSlug;
+/** A free address for a new post: the wanted one, or with -2, -3 … when it was made from the title; null when none. */
+export const freeSlug = shared.freeSlug;
 
 export interface ListFilter {
   page: number;
@@ -277,10 +248,74 @@ export async function latestPublicChange(q: Q, projectId: number): Promise<Date 
   return r?.at ? new Date(r.at) : null;
 }
 
+// Published posts for digests (the columns a digest shows, and the tags its topics read)
+
+export interface PublishedPostRecord {
+  id: number;
+  projectId: number;
+  slug: string;
+  title: string;
+  summary: string;
+  audience: Audience;
+  publishedAt: Date;
+  coverMediaId: number | null;
+  tags: PostTag[];
+}
+
+const PUBLISHED_COLUMNS = ["id", "project_id", "slug", "title", "summary", "audience", "published_at", "cover_media_id"];
+
+async function toPublished(q: Q, rows: Array<Record<string, unknown>>): Promise<PublishedPostRecord[]> {
+  const tags = await tagsFor(q, rows.map((r) => Number(r.id)));
+  return rows.map((r) => ({
+    id: Number(r.id),
+    projectId: Number(r.project_id),
+    slug: String(r.slug),
+    title: String(r.title),
+    summary: String(r.summary ?? ""),
+    audience: r.audience as Audience,
+    publishedAt: new Date(r.published_at as string),
+    coverMediaId: r.cover_media_id == null ? null : Number(r.cover_media_id),
+    tags: tags.get(Number(r.id)) ?? [],
+  }));
+}
+
+/** Published posts of a project in the given audiences with `published_at` in [from, before), oldest first. */
+export async function listPublishedBetween(q: Q, projectId: number, audiences: readonly Audience[], from: Date, before: Date): Promise<PublishedPostRecord[]> {
+  const rows = await q("posts")
+    .where({ project_id: projectId, status: "published" })
+    .whereIn("audience", [...audiences])
+    .andWhere("published_at", ">=", from)
+    .andWhere("published_at", "<", before)
+    .orderBy("published_at")
+    .orderBy("id")
+    .select(PUBLISHED_COLUMNS);
+  return toPublished(q, rows);
+}
+
+/** One published post, of any audience (the caller decides who may read it). */
+export async function findPublishedPost(q: Q, id: number): Promise<PublishedPostRecord | null> {
+  const r = await q("posts").where({ id, status: "published" }).first(PUBLISHED_COLUMNS);
+  return r ? (await toPublished(q, [r]))[0]! : null;
+}
+
+/** Public and investor posts published at or after `since`, oldest first (without their tags). */
+export async function listPublishedSince(q: Q, since: Date): Promise<Array<{ id: number; projectId: number; publishedAt: Date }>> {
+  const rows = await q("posts")
+    .where("status", "published")
+    .whereIn("audience", ["public", "investor"])
+    .andWhere("published_at", ">=", since)
+    .orderBy("published_at")
+    .orderBy("id")
+    .select("id", "project_id", "published_at");
+  return rows.map((r) => ({ id: Number(r.id), projectId: Number(r.project_id), publishedAt: new Date(r.published_at) }));
+}
+
 // Tags
 
+// The rows a post owns are replaced by whole primary keys (replaceChildRows), so that two posts
+// saved at the same moment never deadlock on each other's gap locks.
+
 export async function replaceTags(q: Q, postId: number, tags: readonly PostTag[]): Promise<void> {
-  await q("post_tags").where({ post_id: postId }).delete();
   const seen = new Set<string>();
   const rows = tags
     .filter((t) => {
@@ -290,7 +325,7 @@ export async function replaceTags(q: Q, postId: number, tags: readonly PostTag[]
       return true;
     })
     .map((t) => ({ post_id: postId, kind: t.kind, value: t.value }));
-  if (rows.length) await q("post_tags").insert(rows);
+  await replaceChildRows(q, "post_tags", { post_id: postId }, ["kind", "value"], rows);
 }
 
 export async function tagsFor(q: Q, postIds: readonly number[]): Promise<Map<number, PostTag[]>> {
@@ -304,12 +339,11 @@ export async function tagsFor(q: Q, postIds: readonly number[]): Promise<Map<num
 // Photos
 
 export async function replacePostMedia(q: Q, postId: number, coverId: number | null, inlineIds: readonly number[]): Promise<void> {
-  await q("post_media").where({ post_id: postId }).delete();
   const rows = [
     ...(coverId ? [{ post_id: postId, media_id: coverId, role: "cover", sort_order: 0 }] : []),
     ...inlineIds.map((id, i) => ({ post_id: postId, media_id: id, role: "inline", sort_order: i })),
   ];
-  if (rows.length) await q("post_media").insert(rows);
+  await replaceChildRows(q, "post_media", { post_id: postId }, ["role", "media_id"], rows);
 }
 
 // Linked milestones
@@ -347,16 +381,8 @@ export async function milestoneLinksOf(q: Q, postId: number): Promise<MilestoneL
 
 /** Sets the post's links; links kept from before keep what they captured at publication. */
 export async function replaceMilestoneLinks(q: Q, postId: number, links: ReadonlyArray<{ milestoneId: number; explicit: boolean }>): Promise<void> {
-  const ids = links.map((l) => l.milestoneId);
-  const drop = q("post_milestones").where({ post_id: postId });
-  if (ids.length) drop.whereNotIn("milestone_id", ids);
-  await drop.delete();
-  for (const [i, l] of links.entries()) {
-    await q("post_milestones")
-      .insert({ post_id: postId, milestone_id: l.milestoneId, sort_order: i, linked_explicitly: l.explicit })
-      .onConflict(["post_id", "milestone_id"])
-      .merge({ sort_order: i, linked_explicitly: l.explicit });
-  }
+  const rows = links.map((l, i) => ({ post_id: postId, milestone_id: l.milestoneId, sort_order: i, linked_explicitly: l.explicit }));
+  await replaceChildRows(q, "post_milestones", { post_id: postId }, ["milestone_id"], rows);
 }
 
 /** Records "then" for links that have not captured anything yet. */
@@ -398,9 +424,7 @@ export async function insertRevision(
   postId: number,
   rev: Omit<RevisionRecord, "number" | "createdAt"> & { authorId: number | null; at: Date },
 ): Promise<number> {
-  // The post row is locked by the caller, so max + 1 cannot race.
-  const r = await q("post_revisions").where({ post_id: postId }).max({ n: "number" }).first();
-  const number = Number(r?.n ?? 0) + 1;
+  const number = await shared.nextRevisionNumber(q, postId);
   await q("post_revisions").insert({
     post_id: postId,
     number,
@@ -454,51 +478,7 @@ export async function findRevision(q: Q, postId: number, number: number): Promis
   return r ? toRevision(r) : null;
 }
 
-// Workflow history
-
-export async function insertPublishingEvent(
-  q: Q,
-  e: { ownerType: "post" | "story"; ownerId: number; action: string; from: PostStatus; to: PostStatus; actorId: number | null; actorName: string | null; comment: string | null; at: Date },
-): Promise<void> {
-  await q("publishing_events").insert({
-    owner_type: e.ownerType,
-    owner_id: e.ownerId,
-    action: e.action,
-    from_status: e.from,
-    to_status: e.to,
-    actor_id: e.actorId,
-    actor_name: e.actorName,
-    comment: e.comment,
-    at: e.at,
-  });
-}
-
-export async function listPublishingEvents(q: Q, ownerType: "post" | "story", ownerId: number) {
-  const rows = await q("publishing_events").where({ owner_type: ownerType, owner_id: ownerId }).orderBy("id", "desc");
-  return rows.map((r) => ({
-    action: String(r.action),
-    from: r.from_status as PostStatus,
-    to: r.to_status as PostStatus,
-    by: r.actor_name === null ? null : String(r.actor_name),
-    comment: r.comment === null ? null : String(r.comment),
-    at: new Date(r.at).toISOString(),
-  }));
-}
-
 // The scheduler
 
-/**
- * Claims due scheduled posts for this transaction. Rows another process is publishing are
- * skipped (SKIP LOCKED), so several processes never publish one post twice.
- */
-export async function claimDuePosts(trx: Knex.Transaction, now: Date, limit: number): Promise<number[]> {
-  const rows = await trx("posts")
-    .where("status", "scheduled")
-    .andWhere("scheduled_for", "<=", now)
-    .orderBy("scheduled_for")
-    .limit(limit)
-    .forUpdate()
-    .skipLocked()
-    .select("id");
-  return rows.map((r) => Number(r.id));
-}
+/** Claims due scheduled posts for this transaction, skipping those another process holds (SKIP LOCKED). */
+export const claimDuePosts = shared.claimDue;

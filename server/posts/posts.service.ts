@@ -1,12 +1,10 @@
 import type { Knex } from "knex";
-import { DateTime } from "luxon";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import {
   POSTS_PAGE_SIZE,
-  workflowStep,
   type MilestoneSnapshot,
   type PostCreateInput,
   type PostDetail,
@@ -25,56 +23,53 @@ import {
   type WorkflowResult,
 } from "#shared/schemas/posts.ts";
 import { imageIdsOf, milestoneBlockIdsOf, walkRichText, type RichTextDoc } from "#shared/schemas/rich-text.ts";
+import { EDITED_AFTER_APPROVAL, editNeedsApproval, heldBackFields, publicationInstant, slugFromTitle, stepComment, stepFields } from "#shared/domain/publishing-workflow.ts";
 import { AppError, forbidden, notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
+import { checkStep, diffRevisions, revisionSummary, scheduleInstant, viewerOf, workflowSteps, type PublishingService } from "../publishing/publishing.service.ts";
 import { milestoneProblems, photoProblems, publishingBlocked, type MediaForContent, type PhotoUse } from "./posts.checks.ts";
 import {
   captureMilestones,
   claimDuePosts,
   findPostById,
+  findPublishedPost,
   findRedirect,
   findRevision,
   findVisiblePostBySlug,
+  freeSlug,
   insertPost,
-  insertPublishingEvent,
   insertRevision,
-  keepOldSlug,
   latestPublicChange,
   listPosts,
   listPublicPostAddresses,
   listPublicPosts,
-  listPublishingEvents,
+  listPublishedBetween,
+  listPublishedSince,
   listRevisions,
   milestoneLinksOf,
-  releaseOldSlug,
+  moveSlug,
   replaceMilestoneLinks,
   replacePostMedia,
   replaceTags,
-  slugHolder,
   tagsFor,
   updatePost,
   type MilestoneLinkRecord,
   type PostListRecord,
   type PostRecord,
   type PostUpdate,
-  type Viewer,
+  type PublishedPostRecord,
 } from "./posts.repository.ts";
 import { plainTextOf, renderRichText, type MilestoneBlockData, type RenderContext } from "./rich-text.ts";
-import { diffText } from "#shared/domain/text-diff.ts";
 
 type Trx = Knex.Transaction;
+
+export type { PublishedPostRecord };
 
 /** What posts need of the programme: the milestones an audience may see (server/programme). */
 export interface ProgrammeForPosts {
   list(slug: string, query: Record<string, never>, actor: Actor): Promise<Milestone[]>;
-}
-
-export function viewerOf(actor: Actor): Viewer {
-  const role = actor.user?.role;
-  if (!role) return "public";
-  return role === "investor" ? "investor" : "staff";
 }
 
 /**
@@ -97,19 +92,6 @@ const snapshotOf = (m: Milestone): MilestoneSnapshot => ({
 
 const sameSnapshot = (a: MilestoneSnapshot, b: MilestoneSnapshot) =>
   a.status === b.status && a.forecastFinish === b.forecastFinish && a.actualFinish === b.actualFinish && a.baselineFinish === b.baselineFinish && Math.round(a.percentComplete) === Math.round(b.percentComplete);
-
-/** An address made from a title: lower-case ASCII words joined by hyphens. */
-export function slugFromTitle(title: string): string {
-  const slug = title
-    .normalize("NFKD")
-    .replace(/[\u0300-\u036f]/g, "")
-    .toLowerCase()
-    .replace(/[^a-z0-9]+/g, "-")
-    .replace(/^-+|-+$/g, "")
-    .slice(0, 80)
-    .replace(/-+$/g, "");
-  return slug || "update";
-}
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
@@ -149,12 +131,14 @@ export interface PostsDeps {
   projects: ProjectsService;
   programme: ProgrammeForPosts;
   media: MediaForContent;
+  /** The workflow shared with photo stories: history, scheduled publication. */
+  publishing: PublishingService;
   /** Called after every change that readers could see (public caches drop their copies). */
   onChange?: () => void;
 }
 
 export function createPostsService(deps: PostsDeps) {
-  const { db, projects, programme, media } = deps;
+  const { db, projects, programme, media, publishing } = deps;
   const now = () => projects.now();
   const changed = () => deps.onChange?.();
 
@@ -267,38 +251,17 @@ export function createPostsService(deps: PostsDeps) {
     return detail;
   }
 
-  const revisionSummary = (r: { number: number; createdAt: Date; authorName: string; title: string; status: PostStatus; note: string | null }): PostRevisionSummary => ({
-    number: r.number,
-    createdAt: r.createdAt.toISOString(),
-    authorName: r.authorName,
-    title: r.title,
-    status: r.status,
-    note: r.note,
-  });
-
   async function lockedPost(trx: Trx, id: number): Promise<PostRecord> {
     const post = await findPostById(trx, id, { forUpdate: true });
     if (!post) throw notFound("That update");
     return post;
   }
 
-  /** Makes `slug` the post's address, keeping the old one for redirects. */
-  async function moveSlug(trx: Trx, post: PostRecord, slug: string): Promise<void> {
-    const holder = await slugHolder(trx, post.projectId, slug);
-    if (holder && holder.postId !== post.id) throw slugTaken(slug);
-    if (holder && !holder.current) await releaseOldSlug(trx, post.projectId, slug, post.id);
-    await keepOldSlug(trx, post.projectId, post.slug, post.id);
-  }
-
   /** A free address for a new post: the wanted one, or with -2, -3 … when it was made from the title. */
-  async function freeSlug(projectId: number, wanted: string, explicit: boolean): Promise<string> {
-    if (!(await slugHolder(db, projectId, wanted))) return wanted;
-    if (explicit) throw slugTaken(wanted);
-    for (let n = 2; n < 1000; n++) {
-      const candidate = `${wanted.slice(0, 112)}-${n}`;
-      if (!(await slugHolder(db, projectId, candidate))) return candidate;
-    }
-    throw slugTaken(wanted);
+  async function freeSlugFor(projectId: number, wanted: string, explicit: boolean): Promise<string> {
+    const slug = await freeSlug(db, projectId, wanted, explicit);
+    if (!slug) throw slugTaken(wanted);
+    return slug;
   }
 
   /** Publishes inside the caller's transaction: captures "then", renders the record, opens the photos to the audience. */
@@ -317,56 +280,25 @@ export function createPostsService(deps: PostsDeps) {
     return { status: "published", html, plainText, publishedAt: post.publishedAt ?? at, scheduledFor: null, withdrawnAt: null, reviewComment: null };
   }
 
-  function instantOf(project: Project, at: ScheduleInput["at"]): Date {
-    if (typeof at === "string") return new Date(at);
-    const d = DateTime.fromISO(`${at.date}T${at.time}`, { zone: project.timeZone });
-    if (!d.isValid) throw new AppError("invalid_schedule", "That date and time do not exist in the project's time zone.", 422, { at: "is not a valid time in the project's time zone" });
-    return d.toJSDate();
-  }
-
   async function transition(id: number, action: WorkflowAction, actor: Actor, extra: { comment?: string; at?: ScheduleInput["at"] } = {}): Promise<WorkflowResult> {
     const user = actor.user;
     if (!user) throw new AppError("unauthenticated", "Sign in first.", 401);
     const result = await db.transaction(async (trx) => {
       const post = await lockedPost(trx, id);
       const project = await projects.getById(post.projectId);
-      const step = workflowStep(action, post.status, user.role, post.authorId === user.id);
-      if (!step.ok) throw step.reason === "role" ? forbidden(step.message) : new AppError("invalid_transition", step.message, 409);
+      const to = checkStep(action, post, user);
       const at = now();
-      let changes: PostUpdate = { status: step.to };
-      if (step.to === "published" || step.to === "scheduled") {
+      if (to === "published" || to === "scheduled") {
         const links = await milestoneLinksOf(trx, post.id);
         const problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
         if (problems.length) throw publishingBlocked(problems);
       }
-      if (action === "publish") changes = await publishIn(trx, project, post, at);
-      if (action === "schedule") {
-        if (!extra.at) throw new AppError("invalid_schedule", "Say when to publish.", 422, { at: "is required" });
-        const when = instantOf(project, extra.at);
-        if (when.getTime() <= at.getTime()) throw new AppError("invalid_schedule", "The publication time must be in the future.", 422, { at: "must be in the future" });
-        changes.scheduledFor = when;
-        changes.reviewComment = null;
-      }
-      if (action === "return") changes.reviewComment = extra.comment ?? null;
-      if (action === "return" || (action === "withdraw" && post.status === "scheduled")) changes.scheduledFor = null;
-      if (action === "approve") changes.reviewComment = null;
-      if (action === "withdraw" && post.status === "published") {
-        changes.withdrawnAt = at;
-        await media.setUsages("post", post.id, mediaIdsOf(post), post.audience, false, trx);
-      }
+      const when = action === "schedule" ? scheduleInstant(project, extra.at, at) : undefined;
+      const changes: PostUpdate = action === "publish" ? await publishIn(trx, project, post, at) : { status: to, ...stepFields(action, post.status, { at, when, comment: extra.comment }) };
+      if (action === "withdraw" && post.status === "published") await media.setUsages("post", post.id, mediaIdsOf(post), post.audience, false, trx);
       await updatePost(trx, post.id, null, changes, at);
-      await insertPublishingEvent(trx, {
-        ownerType: "post",
-        ownerId: post.id,
-        action,
-        from: post.status,
-        to: step.to,
-        actorId: user.id,
-        actorName: user.name,
-        comment: action === "return" ? (extra.comment ?? null) : action === "schedule" ? `for ${changes.scheduledFor!.toISOString()}` : null,
-        at,
-      });
-      return { id: post.id, status: step.to, scheduledFor: iso(changes.scheduledFor ?? (step.to === "scheduled" ? post.scheduledFor : null)) };
+      await publishing.record(trx, { ownerType: "post", ownerId: post.id, action, from: post.status, to, actorId: user.id, actorName: user.name, comment: stepComment(action, { when, comment: extra.comment }), at });
+      return { id: post.id, status: to, scheduledFor: iso(changes.scheduledFor ?? (to === "scheduled" ? post.scheduledFor : null)) };
     });
     changed();
     return result;
@@ -419,7 +351,7 @@ export function createPostsService(deps: PostsDeps) {
       const explicit = input.milestoneIds ?? oldLinks.filter((l) => l.explicit).map((l) => l.milestoneId);
       const links = linksOf(explicit, next.body);
       await checkReferences(project, next, input.milestoneIds ?? []);
-      if (next.slug !== post.slug) await moveSlug(trx, post, next.slug);
+      if (next.slug !== post.slug && !(await moveSlug(trx, post, next.slug))) throw slugTaken(next.slug);
       await replaceMilestoneLinks(trx, post.id, links);
       if (input.tags) await replaceTags(trx, post.id, input.tags);
       await replacePostMedia(trx, post.id, next.coverMediaId, imageIdsOf(next.body));
@@ -427,11 +359,10 @@ export function createPostsService(deps: PostsDeps) {
       const at = now();
       const changes: PostUpdate = { ...next };
       // An approval was given to the text as it stood; marketing's later edits need a new one.
-      let demoted = false;
-      if (!approver && (post.status === "approved" || post.status === "scheduled")) {
+      const demoted = editNeedsApproval(post.status, user.role);
+      if (demoted) {
         changes.status = "draft";
         changes.scheduledFor = null;
-        demoted = true;
       }
       const status = changes.status ?? post.status;
       if (status === "published") {
@@ -450,7 +381,7 @@ export function createPostsService(deps: PostsDeps) {
         throw err;
       }
       if (demoted) {
-        await insertPublishingEvent(trx, { ownerType: "post", ownerId: post.id, action: "edited", from: post.status, to: "draft", actorId: user.id, actorName: user.name, comment: "Edited after approval: needs approval again.", at });
+        await publishing.record(trx, { ownerType: "post", ownerId: post.id, action: "edited", from: post.status, to: "draft", actorId: user.id, actorName: user.name, comment: EDITED_AFTER_APPROVAL, at });
       }
       await writeRevision(trx, post.id, actor, input.note ?? null, at);
       return post.id;
@@ -500,7 +431,7 @@ export function createPostsService(deps: PostsDeps) {
       const coverMediaId = input.coverMediaId ?? null;
       const milestoneIds = input.milestoneIds ?? [];
       await checkReferences(project, { coverMediaId, body: input.body }, milestoneIds);
-      const postSlug = await freeSlug(project.id, input.slug ?? slugFromTitle(input.title), input.slug !== undefined);
+      const postSlug = await freeSlugFor(project.id, input.slug ?? slugFromTitle(input.title), input.slug !== undefined);
       const { html, plainText } = await renderFor(project, { body: input.body, audience: input.audience, coverMediaId }, []);
       const at = now();
       const id = await db
@@ -542,15 +473,8 @@ export function createPostsService(deps: PostsDeps) {
     },
 
     /** A word diff of the rendered text of revision `against` (default: the one before) → revision `n`. */
-    async diff(id: number, n: number, against?: number): Promise<RevisionDiff> {
-      const to = await findRevision(db, id, n);
-      if (!to) throw notFound("That revision");
-      const fromNumber = against ?? n - 1;
-      const from = fromNumber >= 1 ? await findRevision(db, id, fromNumber) : null;
-      if (against !== undefined && !from) throw notFound("The revision to compare against");
-      const text = (r: { title: string; summary: string; plainText: string } | null) => (r ? `${r.title}\n${r.summary}\n\n${r.plainText}` : "");
-      return { from: from?.number ?? 0, to: n, ...diffText(text(from), text(to)) };
-    },
+    diff: (id: number, n: number, against?: number): Promise<RevisionDiff> =>
+      diffRevisions((k: number) => findRevision(db, id, k), (r) => `${r.title}\n${r.summary}\n\n${r.plainText}`, n, against),
 
     /** Brings back a revision's content (title, summary, text, cover, milestones, tags) as a new revision; the address and audience stay. */
     async restore(id: number, n: number, actor: Actor): Promise<PostDetail> {
@@ -565,15 +489,10 @@ export function createPostsService(deps: PostsDeps) {
 
     async history(id: number) {
       if (!(await findPostById(db, id))) throw notFound("That update");
-      return listPublishingEvents(db, "post", id);
+      return publishing.history("post", id);
     },
 
-    submit: (id: number, actor: Actor) => transition(id, "submit", actor),
-    approve: (id: number, actor: Actor) => transition(id, "approve", actor),
-    returnToDraft: (id: number, comment: string, actor: Actor) => transition(id, "return", actor, { comment }),
-    publish: (id: number, actor: Actor) => transition(id, "publish", actor),
-    schedule: (id: number, at: ScheduleInput["at"], actor: Actor) => transition(id, "schedule", actor, { at }),
-    withdraw: (id: number, actor: Actor) => transition(id, "withdraw", actor),
+    ...workflowSteps(transition),
 
     /**
      * Publishes every scheduled post that is due at `at`. Each is claimed with SKIP LOCKED, so
@@ -581,33 +500,20 @@ export function createPostsService(deps: PostsDeps) {
      * a post that now fails them goes back to approved with the reason recorded.
      */
     async publishDue(at: Date = now()): Promise<{ published: number[]; heldBack: number[] }> {
-      const published: number[] = [];
-      const heldBack: number[] = [];
-      for (let round = 0; round < 100; round++) {
-        const claimed = await db.transaction(async (trx) => {
-          const ids = await claimDuePosts(trx, at, 10);
-          for (const id of ids) {
-            const post = (await findPostById(trx, id))!;
-            const project = await projects.getById(post.projectId);
-            const links = await milestoneLinksOf(trx, id);
-            const problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
-            if (problems.length) {
-              const reason = `Not published at the scheduled time: ${problems.map((p) => p.message).join(" ")}`;
-              await updatePost(trx, id, null, { status: "approved", scheduledFor: null, reviewComment: reason }, at);
-              await insertPublishingEvent(trx, { ownerType: "post", ownerId: id, action: "schedule_failed", from: "scheduled", to: "approved", actorId: null, actorName: null, comment: reason, at });
-              heldBack.push(id);
-            } else {
-              await updatePost(trx, id, null, await publishIn(trx, project, post, post.scheduledFor && post.scheduledFor < at ? post.scheduledFor : at), at);
-              await insertPublishingEvent(trx, { ownerType: "post", ownerId: id, action: "publish", from: "scheduled", to: "published", actorId: null, actorName: "scheduler", comment: null, at });
-              published.push(id);
-            }
-          }
-          return ids.length;
-        });
-        if (claimed === 0) break;
-      }
-      if (published.length || heldBack.length) changed();
-      return { published, heldBack };
+      const result = await publishing.publishDue("post", at, {
+        claim: (trx, limit) => claimDuePosts(trx, at, limit),
+        async publishOrHoldBack(trx, id) {
+          const post = (await findPostById(trx, id))!;
+          const project = await projects.getById(post.projectId);
+          const links = await milestoneLinksOf(trx, id);
+          const problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
+          const changes = problems.length ? heldBackFields(problems) : await publishIn(trx, project, post, publicationInstant(post.scheduledFor, at));
+          await updatePost(trx, id, null, changes, at);
+          return problems;
+        },
+      });
+      if (result.published.length || result.heldBack.length) changed();
+      return result;
     },
 
     /** Published public posts of a project for its feed, newest first, with the newest change. */
@@ -618,6 +524,15 @@ export function createPostsService(deps: PostsDeps) {
       const tags = await tagsFor(db, posts.map((p) => p.id));
       return { project, updated, posts: posts.map((p) => ({ ...p, tags: tags.get(p.id) ?? [] })) };
     },
+
+    /** Published posts of a project in these audiences with `publishedAt` in [from, before), oldest first, with their tags (digests). */
+    publishedBetween: (projectId: number, audiences: readonly Audience[], from: Date, before: Date) => listPublishedBetween(db, projectId, audiences, from, before),
+
+    /** A published post of any audience, with its tags, or null: the caller decides who may read it (digests). */
+    findPublished: (id: number) => findPublishedPost(db, id),
+
+    /** Public and investor posts published at or after `since`, oldest first (as-it-happens digests). */
+    publishedSince: (since: Date) => listPublishedSince(db, since),
 
     /** Every published public post's address (sitemap). */
     publicAddresses: () => listPublicPostAddresses(db),

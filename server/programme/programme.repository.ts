@@ -1,28 +1,18 @@
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { BaselineVersion, MilestoneEventFieldName, MilestoneEventRow, System } from "#shared/schemas/programme.ts";
+import { audiencesFor, type Viewer } from "#shared/domain/audience.ts";
 
 type Q = Knex | Knex.Transaction;
 
-/** Who is reading, for the audience rule: a visitor, an investor, or staff (admin, lead, marketing). */
-export type Viewer = "public" | "investor" | "staff";
-
-const VISIBLE: Record<Viewer, readonly Audience[]> = {
-  public: ["public"],
-  investor: ["public", "investor"],
-  staff: ["public", "investor", "internal"],
-};
+export type { Viewer };
 
 /**
  * The audience rule of the programme, in one place: visitors see public milestones,
- * investors public and investor ones, staff all. Every read path below applies it,
- * in SQL through `visibleTo` or, for baseline snapshots kept as JSON, through
- * `visibleSnapshotEntries`.
+ * investors public and investor ones, staff all (`audiencesFor`, the same audiences as
+ * published content, without its status). Every read path below applies it, in SQL through
+ * `visibleTo` or, for baseline snapshots kept as JSON, through `visibleSnapshotEntries`.
  */
-export function audiencesFor(viewer: Viewer): readonly Audience[] {
-  return VISIBLE[viewer];
-}
-
 function visibleTo<T extends Knex.QueryBuilder>(query: T, column: string, viewer: Viewer): T {
   return query.whereIn(column, audiencesFor(viewer) as Audience[]) as T;
 }
@@ -168,6 +158,12 @@ export async function listMilestones(q: Q, projectId: number, viewer: Viewer, fi
   ])) as Array<Record<string, unknown>>;
   const deps = await dependenciesOf(q, rows.map((r) => Number(r.id)), viewer);
   return rows.map((r) => toMilestone(r, deps.get(Number(r.id)) ?? []));
+}
+
+/** The areas named by the project's milestones that the viewer may see, distinct and in order (no empty area). */
+export async function listAreas(q: Q, projectId: number, viewer: Viewer): Promise<string[]> {
+  const rows = await visibleTo(q("milestones").where({ project_id: projectId }), "audience", viewer).whereNot("area", "").distinct("area").orderBy("area");
+  return rows.map((r: { area: string }) => r.area);
 }
 
 /** One milestone, when the viewer may see it; `forUpdate` locks the row for the rest of the transaction. */

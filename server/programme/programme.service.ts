@@ -15,6 +15,7 @@ import type {
   MilestonePatchInput,
   ShiftInput,
 } from "#shared/schemas/programme.ts";
+import { viewerOfRole } from "#shared/domain/audience.ts";
 import { addWorkingDays, daysBetween } from "#shared/domain/calendar.ts";
 import { summariseChanges } from "#shared/domain/programme-changes.ts";
 import { drivingChain, findCycle, projectDrivers, type DrivingLink, type ProjectDrivers } from "#shared/domain/programme-dependencies.ts";
@@ -43,6 +44,7 @@ import {
   insertBaseline,
   insertEvents,
   insertMilestone,
+  listAreas,
   listBaselines,
   listCostActuals,
   listDependants,
@@ -82,11 +84,7 @@ const TRACKED: ReadonlyArray<[MilestoneEventFieldName, keyof MilestoneFields]> =
 /** A curve of more points than this is a mistake in the query, not a chart. */
 const MAX_CURVE_POINTS = 2_000;
 
-function viewerOf(actor: Actor): Viewer {
-  const role = actor.user?.role;
-  if (!role) return "public";
-  return role === "investor" ? "investor" : "staff";
-}
+const viewerOf = (actor: Actor): Viewer => viewerOfRole(actor.user?.role);
 
 function settingsOf(project: Project): ProgrammeSettings {
   return {
@@ -328,6 +326,9 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
       const list = records.map((m) => present(m, view));
       return query.status ? list.filter((m) => m.status === query.status) : list;
     },
+
+    /** Areas named by the project's public milestones: the area topics a visitor may subscribe to. */
+    publicAreas: (projectId: number): Promise<string[]> => listAreas(db, projectId, "public"),
 
     async create(slug: string, input: MilestoneCreateInput, actor: Actor): Promise<Milestone> {
       const project = await projects.get(slug);

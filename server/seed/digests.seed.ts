@@ -1,7 +1,7 @@
 import { createHash, randomBytes } from "node:crypto";
 import type { Knex } from "knex";
 import { renderDigest } from "../digests/digests.render.ts";
-import { listPublishedPosts } from "../digests/digests.repository.ts";
+import { listPublishedBetween } from "../posts/posts.repository.ts";
 import { previousIsoWeek, previousMonth, type DigestWindow } from "../digests/digests.windows.ts";
 
 /**
@@ -53,7 +53,7 @@ export async function seedDigests(db: Knex, projectSlug: string, now: Date = new
       // Topic-filtered readers share the all-topics content here: the demo history is illustrative.
       let contentId = contentIds.get(audience);
       if (contentId === undefined) {
-        const posts = await listPublishedPosts(db, Number(project.id), audience === "investor" ? ["public", "investor"] : ["public"], w.start, w.end);
+        const posts = await listPublishedBetween(db, Number(project.id), audience === "investor" ? ["public", "investor"] : ["public"], w.start, w.end);
         if (posts.length === 0) contentId = null;
         else {
           const r = await renderDigest({

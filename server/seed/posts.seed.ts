@@ -11,6 +11,7 @@ import { createMediaService } from "../media/media.service.ts";
 import { createLocalDiskStorage, createUploadArea } from "../media/media.storage.ts";
 import { createPostsService, type ProgrammeForPosts } from "../posts/posts.service.ts";
 import { createProgrammeService } from "../programme/programme.service.ts";
+import { createPublishingService } from "../publishing/publishing.service.ts";
 import { createProjectsService } from "../projects/projects.service.ts";
 import { createStoriesService } from "../stories/stories.service.ts";
 import { seedMediaDir } from "./media.seed.ts";
@@ -254,6 +255,7 @@ export async function seedPosts(db: Knex, projectSlug: string, opts: { mediaDir?
   if (!marketing.user || !lead.user) return { created };
 
   const programme = createProgrammeService({ db, projects });
+  const publishing = createPublishingService({ db });
   const milestones = await programme.list(projectSlug, {}, lead);
   const eventCache = new Map<number, MilestoneEventRow[]>();
   const eventsOf = async (id: number) => {
@@ -285,7 +287,7 @@ export async function seedPosts(db: Knex, projectSlug: string, opts: { mediaDir?
     const date = when.toISODate()!;
     const endOfDay = when.endOf("day").toJSDate();
     const past = programmeAsAt((slug, actor) => programme.list(slug, { at: date }, actor), eventsOf, settings, date, endOfDay);
-    return { posts: createPostsService({ db, projects: at, programme: past, media }), stories: createStoriesService({ db, projects: at, media }) };
+    return { posts: createPostsService({ db, projects: at, programme: past, media, publishing }), stories: createStoriesService({ db, projects: at, media, publishing }) };
   };
 
   const today = (opts.today ?? DateTime.now()).setZone(TZ).startOf("day");

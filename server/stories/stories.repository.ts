@@ -1,25 +1,25 @@
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { PostStatus } from "#shared/schemas/posts.ts";
-import type { PublishingEvent, StoryItemInput } from "#shared/schemas/stories.ts";
+import type { StoryItemInput } from "#shared/schemas/stories.ts";
+import type { Viewer } from "#shared/domain/audience.ts";
+import { contentQueries, visibleContent } from "../core/content-tables.ts";
 
 type Q = Knex | Knex.Transaction;
 
-export type Viewer = "public" | "investor" | "staff";
-
-const VISIBLE: Record<Viewer, readonly Audience[]> = {
-  public: ["public"],
-  investor: ["public", "investor"],
-  staff: ["public", "investor", "internal"],
-};
+/**
+ * The queries every kind of published content shares (server/core/content-tables.ts), over the
+ * stories tables: old addresses and redirects, revision numbers, the scheduler's claim.
+ */
+const shared = contentQueries({ content: "stories", oldSlugs: "story_slugs", revisions: "story_revisions", key: "story_id" });
 
 /**
- * The audience rule of photo stories, in one place: visitors read published public stories,
- * investors published public and investor ones, staff all of them in every state.
+ * The audience rule of photo stories (the rule of all published content, `visibleContent`):
+ * visitors read published public stories, investors published public and investor ones, staff
+ * all of them in every state.
  */
 function visibleTo<T extends Knex.QueryBuilder>(query: T, viewer: Viewer): T {
-  if (viewer === "staff") return query;
-  return query.where("s.status", "published").whereIn("s.audience", VISIBLE[viewer] as Audience[]) as T;
+  return visibleContent(query, viewer, "s");
 }
 
 export interface StoryRecord {
@@ -127,30 +127,12 @@ export async function findVisibleStoryBySlug(q: Q, projectId: number, slug: stri
   return r ? toRecord(r) : null;
 }
 
-/** The current address of a story that once lived at `oldSlug`, when the viewer may read it. */
-export async function findRedirect(q: Q, projectId: number, oldSlug: string, viewer: Viewer): Promise<string | null> {
-  const r = await visibleTo(
-    q("story_slugs as o").join("stories as s", "s.id", "o.story_id").where({ "o.project_id": projectId, "o.slug": oldSlug }),
-    viewer,
-  ).first("s.slug");
-  return r ? String(r.slug) : null;
-}
-
-/** Who holds an address in a project: a story's current slug or one of its old ones. */
-export async function slugHolder(q: Q, projectId: number, slug: string): Promise<{ storyId: number; current: boolean } | null> {
-  const current = await q("stories").where({ project_id: projectId, slug }).first("id");
-  if (current) return { storyId: Number(current.id), current: true };
-  const old = await q("story_slugs").where({ project_id: projectId, slug }).first("story_id");
-  return old ? { storyId: Number(old.story_id), current: false } : null;
-}
-
-export async function keepOldSlug(q: Q, projectId: number, slug: string, storyId: number): Promise<void> {
-  await q("story_slugs").insert({ project_id: projectId, slug, story_id: storyId }).onConflict(["project_id", "slug"]).merge({ story_id: storyId });
-}
-
-export async function releaseOldSlug(q: Q, projectId: number, slug: string, storyId: number): Promise<void> {
-  await q("story_slugs").where({ project_id: projectId, slug, story_id: storyId }).delete();
-}
+/** The current address of a story that once lived at an old one, when the viewer may read it. */
+export const findRedirect = shared.findRedirect;
+/** Makes way for a new address, keeping the current one for redirects; false when another story holds it. */
+export const moveSlug = shared.moveSlug;
+/** A free address for a new story: the wanted one, or with -2, -3 … when it was made from the title; null when none. */
+export const freeSlug = shared.freeSlug;
 
 export async function listStories(q: Q, projectId: number, viewer: Viewer): Promise<StoryRecord[]> {
   const rows = await visibleTo(q("stories as s").where("s.project_id", projectId), viewer)
@@ -199,36 +181,6 @@ export async function itemsOf(q: Q, storyIds: readonly number[]): Promise<Map<nu
   return out;
 }
 
-export async function insertStoryEvent(
-  q: Q,
-  e: { storyId: number; action: string; from: PostStatus; to: PostStatus; actorId: number | null; actorName: string | null; comment: string | null; at: Date },
-): Promise<void> {
-  await q("publishing_events").insert({
-    owner_type: "story",
-    owner_id: e.storyId,
-    action: e.action,
-    from_status: e.from,
-    to_status: e.to,
-    actor_id: e.actorId,
-    actor_name: e.actorName,
-    comment: e.comment,
-    at: e.at,
-  });
-}
-
-/** The story's workflow steps, newest first. */
-export async function listStoryEvents(q: Q, storyId: number): Promise<PublishingEvent[]> {
-  const rows = await q("publishing_events").where({ owner_type: "story", owner_id: storyId }).orderBy("id", "desc");
-  return rows.map((r) => ({
-    action: String(r.action),
-    from: r.from_status as PostStatus,
-    to: r.to_status as PostStatus,
-    by: r.actor_name === null ? null : String(r.actor_name),
-    comment: r.comment === null ? null : String(r.comment),
-    at: new Date(r.at).toISOString(),
-  }));
-}
-
 // Revisions
 
 export interface StoryRevisionRecord {
@@ -249,9 +201,7 @@ export async function insertRevision(
   storyId: number,
   rev: Omit<StoryRevisionRecord, "number" | "createdAt"> & { authorId: number | null; at: Date },
 ): Promise<number> {
-  // The story row is locked by the caller, so max + 1 cannot race.
-  const r = await q("story_revisions").where({ story_id: storyId }).max({ n: "number" }).first();
-  const number = Number(r?.n ?? 0) + 1;
+  const number = await shared.nextRevisionNumber(q, storyId);
   await q("story_revisions").insert({
     story_id: storyId,
     number,
@@ -299,18 +249,5 @@ export async function findRevision(q: Q, storyId: number, number: number): Promi
 
 // The scheduler
 
-/**
- * Claims due scheduled stories for this transaction. Rows another process is publishing are
- * skipped (SKIP LOCKED), so several processes never publish one story twice.
- */
-export async function claimDueStories(trx: Knex.Transaction, now: Date, limit: number): Promise<number[]> {
-  const rows = await trx("stories")
-    .where("status", "scheduled")
-    .andWhere("scheduled_for", "<=", now)
-    .orderBy("scheduled_for")
-    .limit(limit)
-    .forUpdate()
-    .skipLocked()
-    .select("id");
-  return rows.map((r) => Number(r.id));
-}
+/** Claims due scheduled stories for this transaction, skipping those another process holds (SKIP LOCKED). */
+export const claimDueStories = shared.claimDue;

@@ -1,10 +1,9 @@
 import type { Knex } from "knex";
-import { DateTime } from "luxon";
-import { diffText } from "#shared/domain/text-diff.ts";
+import { EDITED_AFTER_APPROVAL, editNeedsApproval, heldBackFields, publicationInstant, slugFromTitle, stepComment, stepFields } from "#shared/domain/publishing-workflow.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { Project } from "#shared/schemas/projects.ts";
-import { workflowStep, type PostStatus, type PublishingProblem, type ScheduleInput, type WorkflowAction, type WorkflowResult } from "#shared/schemas/posts.ts";
+import type { PostStatus, PublishingProblem, ScheduleInput, WorkflowAction, WorkflowResult } from "#shared/schemas/posts.ts";
 import type {
   PublishingEvent,
   StoryCreateInput,
@@ -21,29 +20,25 @@ import { AppError, forbidden, notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import { photoProblems, publishingBlocked, type MediaForContent, type PhotoUse } from "../posts/posts.checks.ts";
-import { slugFromTitle, viewerOf } from "../posts/posts.service.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
+import { checkStep, diffRevisions, revisionSummary, scheduleInstant, viewerOf, workflowSteps, type PublishingService } from "../publishing/publishing.service.ts";
 import {
   claimDueStories,
   findRedirect,
   findRevision,
   findStoryById,
   findVisibleStoryBySlug,
+  freeSlug,
   insertRevision,
   insertStory,
-  insertStoryEvent,
   itemsOf,
-  keepOldSlug,
   listPublicStoryAddresses,
   listRevisions,
   listStories,
-  listStoryEvents,
-  releaseOldSlug,
+  moveSlug,
   replaceItems,
-  slugHolder,
   updateStory,
   type StoryRecord,
-  type StoryRevisionRecord,
   type StoryUpdate,
 } from "./stories.repository.ts";
 
@@ -107,8 +102,8 @@ const isDuplicate = (err: unknown) => (err as { code?: string })?.code === "ER_D
 const slugTaken = (slug: string) =>
   new AppError("slug_taken", `The address “${slug}” is already used by another photo story in this project.`, 409, { slug: "is already used by another photo story in this project" });
 
-export function createStoriesService(deps: { db: Db; projects: ProjectsService; media: MediaForContent; onChange?: () => void }) {
-  const { db, projects, media } = deps;
+export function createStoriesService(deps: { db: Db; projects: ProjectsService; media: MediaForContent; publishing: PublishingService; onChange?: () => void }) {
+  const { db, projects, media, publishing } = deps;
   const now = () => projects.now();
   const changed = () => deps.onChange?.();
 
@@ -174,15 +169,6 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     updatedAt: r.updatedAt.toISOString(),
   });
 
-  const revisionSummary = (r: StoryRevisionRecord): StoryRevisionSummary => ({
-    number: r.number,
-    createdAt: r.createdAt.toISOString(),
-    authorName: r.authorName,
-    title: r.title,
-    status: r.status,
-    note: r.note,
-  });
-
   async function detailOf(project: Project, story: StoryRecord, actor: Actor): Promise<StoryDetail> {
     const staff = viewerOf(actor) === "staff";
     const items = (await itemsOf(db, [story.id])).get(story.id) ?? [];
@@ -208,23 +194,11 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     return story;
   }
 
-  /** Makes `slug` the story's address, keeping the old one for redirects. */
-  async function moveSlug(trx: Trx, story: StoryRecord, slug: string): Promise<void> {
-    const holder = await slugHolder(trx, story.projectId, slug);
-    if (holder && holder.storyId !== story.id) throw slugTaken(slug);
-    if (holder && !holder.current) await releaseOldSlug(trx, story.projectId, slug, story.id);
-    await keepOldSlug(trx, story.projectId, story.slug, story.id);
-  }
-
   /** A free address for a new story: the wanted one, or with -2, -3 … when it was made from the title. */
-  async function freeSlug(projectId: number, wanted: string, explicit: boolean): Promise<string> {
-    if (!(await slugHolder(db, projectId, wanted))) return wanted;
-    if (explicit) throw slugTaken(wanted);
-    for (let n = 2; n < 1000; n++) {
-      const candidate = `${wanted.slice(0, 112)}-${n}`;
-      if (!(await slugHolder(db, projectId, candidate))) return candidate;
-    }
-    throw slugTaken(wanted);
+  async function freeSlugFor(projectId: number, wanted: string, explicit: boolean): Promise<string> {
+    const slug = await freeSlug(db, projectId, wanted, explicit);
+    if (!slug) throw slugTaken(wanted);
+    return slug;
   }
 
   /** The changes that publish a story at `at`, with its photos opened to its audience. */
@@ -233,58 +207,28 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     return { status: "published", publishedAt: story.publishedAt ?? at, scheduledFor: null, withdrawnAt: null, reviewComment: null };
   }
 
-  function instantOf(project: Project, at: ScheduleInput["at"]): Date {
-    if (typeof at === "string") return new Date(at);
-    const d = DateTime.fromISO(`${at.date}T${at.time}`, { zone: project.timeZone });
-    if (!d.isValid) throw new AppError("invalid_schedule", "That date and time do not exist in the project's time zone.", 422, { at: "is not a valid time in the project's time zone" });
-    return d.toJSDate();
-  }
-
   async function transition(id: number, action: WorkflowAction, actor: Actor, extra: { comment?: string; at?: ScheduleInput["at"] } = {}): Promise<WorkflowResult> {
     const user = actor.user;
     if (!user) throw new AppError("unauthenticated", "Sign in first.", 401);
     const result = await db.transaction(async (trx) => {
       const story = await lockedStory(trx, id);
       const project = await projects.getById(story.projectId);
-      const step = workflowStep(action, story.status, user.role, story.authorId === user.id);
-      if (!step.ok) throw step.reason === "role" ? forbidden(step.message) : new AppError("invalid_transition", step.message, 409);
+      const to = checkStep(action, story, user);
       const items = (await itemsOf(trx, [story.id])).get(story.id) ?? [];
       const at = now();
-      let changes: StoryUpdate = { status: step.to };
       // The same checks at scheduling as at publication (and again when the time comes).
-      if (step.to === "published" || step.to === "scheduled") {
+      if (to === "published" || to === "scheduled") {
         const problems = await problemsOf(project, story, items);
         if (problems.length) throw publishingBlocked(problems);
       }
-      if (action === "publish") changes = await publishIn(trx, story, items, at);
-      if (action === "schedule") {
-        if (!extra.at) throw new AppError("invalid_schedule", "Say when to publish.", 422, { at: "is required" });
-        const when = instantOf(project, extra.at);
-        if (when.getTime() <= at.getTime()) throw new AppError("invalid_schedule", "The publication time must be in the future.", 422, { at: "must be in the future" });
-        changes.scheduledFor = when;
-        changes.reviewComment = null;
-      }
-      if (action === "return") changes.reviewComment = extra.comment ?? null;
-      if (action === "return" || (action === "withdraw" && story.status === "scheduled")) changes.scheduledFor = null;
-      if (action === "approve") changes.reviewComment = null;
-      if (action === "withdraw" && story.status === "published") {
-        changes.withdrawnAt = at;
-        await media.setUsages("story", story.id, mediaIdsOf(items), story.audience, false, trx);
-      }
+      const when = action === "schedule" ? scheduleInstant(project, extra.at, at) : undefined;
+      const changes: StoryUpdate = action === "publish" ? await publishIn(trx, story, items, at) : { status: to, ...stepFields(action, story.status, { at, when, comment: extra.comment }) };
+      if (action === "withdraw" && story.status === "published") await media.setUsages("story", story.id, mediaIdsOf(items), story.audience, false, trx);
       await updateStory(trx, story.id, changes, at);
-      await insertStoryEvent(trx, {
-        storyId: story.id,
-        action,
-        from: story.status,
-        to: step.to,
-        actorId: user.id,
-        actorName: user.name,
-        comment: action === "return" ? (extra.comment ?? null) : action === "schedule" ? `for ${changes.scheduledFor!.toISOString()}` : null,
-        at,
-      });
-      const answer: WorkflowResult = { id: story.id, status: step.to };
+      await publishing.record(trx, { ownerType: "story", ownerId: story.id, action, from: story.status, to, actorId: user.id, actorName: user.name, comment: stepComment(action, { when, comment: extra.comment }), at });
+      const answer: WorkflowResult = { id: story.id, status: to };
       // The schedule is named when one is set or cancelled.
-      if (step.to === "scheduled") answer.scheduledFor = iso(changes.scheduledFor ?? story.scheduledFor);
+      if (to === "scheduled") answer.scheduledFor = iso(changes.scheduledFor ?? story.scheduledFor);
       else if (story.status === "scheduled") answer.scheduledFor = null;
       return answer;
     });
@@ -326,15 +270,14 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
       if (story.status === "published" && !approver) throw forbidden("A published photo story is changed by a lead or an admin.");
       const items = input.items ?? (await itemsOf(trx, [story.id])).get(story.id) ?? [];
       if (input.items) await checkReferences(project, input.items);
-      if (input.slug && input.slug !== story.slug) await moveSlug(trx, story, input.slug);
+      if (input.slug && input.slug !== story.slug && !(await moveSlug(trx, story, input.slug))) throw slugTaken(input.slug);
       const audience = input.audience ?? story.audience;
       const at = now();
       const changes: StoryUpdate = { title: input.title, intro: input.intro, audience: input.audience, slug: input.slug };
-      let demoted = false;
-      if (!approver && (story.status === "approved" || story.status === "scheduled")) {
+      const demoted = editNeedsApproval(story.status, user.role);
+      if (demoted) {
         changes.status = "draft";
         changes.scheduledFor = null;
-        demoted = true;
       }
       const published = (changes.status ?? story.status) === "published";
       if (published) {
@@ -350,7 +293,7 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
         throw err;
       }
       if (demoted) {
-        await insertStoryEvent(trx, { storyId: story.id, action: "edited", from: story.status, to: "draft", actorId: user.id, actorName: user.name, comment: "Edited after approval: needs approval again.", at });
+        await publishing.record(trx, { ownerType: "story", ownerId: story.id, action: "edited", from: story.status, to: "draft", actorId: user.id, actorName: user.name, comment: EDITED_AFTER_APPROVAL, at });
       }
       await writeRevision(trx, story.id, actor, input.note ?? null, at);
     });
@@ -390,7 +333,7 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     async create(slug: string, input: StoryCreateInput, actor: Actor): Promise<{ id: number; slug: string; status: PostStatus }> {
       const project = await projects.get(slug);
       await checkReferences(project, input.items);
-      const storySlug = await freeSlug(project.id, input.slug ?? slugFromTitle(input.title), input.slug !== undefined);
+      const storySlug = await freeSlugFor(project.id, input.slug ?? slugFromTitle(input.title), input.slug !== undefined);
       const at = now();
       const id = await db
         .transaction(async (trx) => {
@@ -419,12 +362,7 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     /** A word diff of the story's text in revision `against` (default: the one before) → revision `n`. */
     async diff(id: number, n: number, against?: number): Promise<StoryRevisionDiff> {
       await existing(id);
-      const to = await findRevision(db, id, n);
-      if (!to) throw notFound("That revision");
-      const fromNumber = against ?? n - 1;
-      const from = fromNumber >= 1 ? await findRevision(db, id, fromNumber) : null;
-      if (against !== undefined && !from) throw notFound("The revision to compare against");
-      return { from: from?.number ?? 0, to: n, ...diffText(from ? storyTextOf(from) : "", storyTextOf(to)) };
+      return diffRevisions((k: number) => findRevision(db, id, k), storyTextOf, n, against);
     },
 
     /** Brings back a revision's title, introduction and items as a new revision; the address and audience stay. */
@@ -437,15 +375,10 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
 
     async history(id: number): Promise<PublishingEvent[]> {
       await existing(id);
-      return listStoryEvents(db, id);
+      return publishing.history("story", id);
     },
 
-    submit: (id: number, actor: Actor) => transition(id, "submit", actor),
-    approve: (id: number, actor: Actor) => transition(id, "approve", actor),
-    returnToDraft: (id: number, comment: string, actor: Actor) => transition(id, "return", actor, { comment }),
-    publish: (id: number, actor: Actor) => transition(id, "publish", actor),
-    schedule: (id: number, at: ScheduleInput["at"], actor: Actor) => transition(id, "schedule", actor, { at }),
-    withdraw: (id: number, actor: Actor) => transition(id, "withdraw", actor),
+    ...workflowSteps(transition),
 
     /**
      * Publishes every scheduled story that is due at `at`. Each is claimed with SKIP LOCKED, so
@@ -453,34 +386,20 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
      * a story that now fails them goes back to approved with the reason recorded.
      */
     async publishDue(at: Date = now()): Promise<{ published: number[]; heldBack: number[] }> {
-      const published: number[] = [];
-      const heldBack: number[] = [];
-      for (let round = 0; round < 100; round++) {
-        const claimed = await db.transaction(async (trx) => {
-          const ids = await claimDueStories(trx, at, 10);
-          for (const id of ids) {
-            const story = (await findStoryById(trx, id))!;
-            const project = await projects.getById(story.projectId);
-            const items = (await itemsOf(trx, [id])).get(id) ?? [];
-            const problems = await problemsOf(project, story, items);
-            if (problems.length) {
-              const reason = `Not published at the scheduled time: ${problems.map((p) => p.message).join(" ")}`;
-              await updateStory(trx, id, { status: "approved", scheduledFor: null, reviewComment: reason }, at);
-              await insertStoryEvent(trx, { storyId: id, action: "schedule_failed", from: "scheduled", to: "approved", actorId: null, actorName: null, comment: reason, at });
-              heldBack.push(id);
-            } else {
-              const when = story.scheduledFor && story.scheduledFor < at ? story.scheduledFor : at;
-              await updateStory(trx, id, await publishIn(trx, story, items, when), at);
-              await insertStoryEvent(trx, { storyId: id, action: "publish", from: "scheduled", to: "published", actorId: null, actorName: "scheduler", comment: null, at });
-              published.push(id);
-            }
-          }
-          return ids.length;
-        });
-        if (claimed === 0) break;
-      }
-      if (published.length || heldBack.length) changed();
-      return { published, heldBack };
+      const result = await publishing.publishDue("story", at, {
+        claim: (trx, limit) => claimDueStories(trx, at, limit),
+        async publishOrHoldBack(trx, id) {
+          const story = (await findStoryById(trx, id))!;
+          const project = await projects.getById(story.projectId);
+          const items = (await itemsOf(trx, [id])).get(id) ?? [];
+          const problems = await problemsOf(project, story, items);
+          const changes = problems.length ? heldBackFields(problems) : await publishIn(trx, story, items, publicationInstant(story.scheduledFor, at));
+          await updateStory(trx, id, changes, at);
+          return problems;
+        },
+      });
+      if (result.published.length || result.heldBack.length) changed();
+      return result;
     },
 
     publicAddresses: () => listPublicStoryAddresses(db),

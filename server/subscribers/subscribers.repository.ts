@@ -263,12 +263,6 @@ export async function listDigestRecipients(q: Q, projectId: number, frequency: F
   return rows.map(toSubscriber);
 }
 
-/** Areas named by the project's public milestones: the area topics offered to visitors. */
-export async function listPublicAreas(q: Q, projectId: number): Promise<string[]> {
-  const rows = await q("milestones").where({ project_id: projectId, audience: "public" }).whereNot("area", "").distinct("area").orderBy("area");
-  return rows.map((r: { area: string }) => r.area);
-}
-
 // Suppressions
 
 export async function isSuppressed(q: Q, emailHash: string): Promise<boolean> {

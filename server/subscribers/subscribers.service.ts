@@ -31,6 +31,7 @@ import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { EnquiriesService } from "../enquiries/enquiries.service.ts";
 import type { Mailer } from "../mail/mail.service.ts";
+import type { ProgrammeService } from "../programme/programme.service.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import { parseSubscriberCsv, subscribersToCsv } from "./subscribers.csv.ts";
 import { subscriberLinks, type SubscriberLinks } from "./subscribers.links.ts";
@@ -53,7 +54,6 @@ import {
   listDigestRecipients,
   listMailJobsOf,
   listProjectEmails,
-  listPublicAreas,
   listSubscribers,
   listSubscribersByEmailHash,
   listSubscribersOfUser,
@@ -85,6 +85,8 @@ export interface SubscribersDeps {
   mailer: Mailer;
   logger: Logger;
   projects: ProjectsService;
+  /** The areas subscribers may choose come from the public programme. */
+  programme: Pick<ProgrammeService, "publicAreas">;
   enquiries: Pick<EnquiriesService, "listByEmail" | "eraseByEmail">;
   publicUrl: string;
   tokenSecret: string;
@@ -122,12 +124,12 @@ function smtpCode(err: unknown): number | null {
 }
 
 export function createSubscribersService(deps: SubscribersDeps) {
-  const { db, mailer, logger, projects, enquiries, publicUrl, tokenSecret, unsubscribeMailto } = deps;
+  const { db, mailer, logger, projects, programme, enquiries, publicUrl, tokenSecret, unsubscribeMailto } = deps;
   const now = deps.now ?? (() => new Date());
 
   async function checkAreas(projectId: number, topics: Topics | null, field: string): Promise<void> {
     if (!topics || topics.areas.length === 0) return;
-    const known = new Set(await listPublicAreas(db, projectId));
+    const known = new Set(await programme.publicAreas(projectId));
     const unknown = topics.areas.filter((a) => !known.has(a));
     if (unknown.length) {
       throw new AppError("validation", `Check ${field}.`, 400, { [field]: `${unknown.map((a) => `"${a}"`).join(", ")} is not an area of this project` });
@@ -135,7 +137,7 @@ export function createSubscribersService(deps: SubscribersDeps) {
   }
 
   async function optionsFor(projectId: number) {
-    return { areas: await listPublicAreas(db, projectId), systems: [...SystemSchema.options] };
+    return { areas: await programme.publicAreas(projectId), systems: [...SystemSchema.options] };
   }
 
   async function subscriberFor(token: string, purpose: "confirm" | "preferences" | "unsubscribe", trx?: Knex.Transaction) {
@@ -525,7 +527,7 @@ export function createSubscribersService(deps: SubscribersDeps) {
     async importCsv(input: SubscriberImportInput): Promise<SubscriberImportResult> {
       const project = await projects.get(input.projectSlug);
       const t = now();
-      const { rows, problems } = parseSubscriberCsv(input.csv, { allowedAreas: new Set(await listPublicAreas(db, project.id)), now: t });
+      const { rows, problems } = parseSubscriberCsv(input.csv, { allowedAreas: new Set(await programme.publicAreas(project.id)), now: t });
       if (problems.length) {
         throw new AppError(
           "csv_invalid",

@@ -191,3 +191,36 @@ describe("PATCH /api/posts/:id and revisions", () => {
     expect(await t.db("post_slugs").where({ post_id: a.id }).pluck("slug")).toEqual(["cooling-a2"]);
   });
 });
+
+// Where a photo is used (media_usages), the post's photos and its tags are rewritten by every save.
+// Saves of different updates at the same moment must not deadlock one another (a deadlock is a 500).
+describe("several updates saved at the same moment", () => {
+  const N = 6;
+  const usagesOf = async (ids: number[]) =>
+    (await t.db("media_usages").where({ owner_type: "post" }).whereIn("owner_id", ids).orderBy(["owner_id", "media_id"]).select("owner_id", "media_id")).map((r: { owner_id: number; media_id: number }) => [
+      Number(r.owner_id),
+      Number(r.media_id),
+    ]);
+
+  it(`${N} updates with cover photos created at once all answer 201, each with its photos recorded`, async () => {
+    const p = await createProject(t);
+    const covers = await Promise.all(Array.from({ length: N }, () => createPhoto(t, p.id)));
+    const shared = await createPhoto(t, p.id);
+    const res = await Promise.all(covers.map((c, i) => create(as.marketing, p.slug, postInput(c.id, { title: `Plant yard week ${i + 1}`, body: doc(text("Both photos."), image(shared.id)) }))));
+    expect(res.map((r) => r.status)).toEqual(Array(N).fill(201));
+    const ids = res.map((r) => r.body.id as number).sort((a, b) => a - b);
+    const coverOf = new Map(res.map((r, i) => [r.body.id as number, covers[i]!.id]));
+    expect(await usagesOf(ids)).toEqual(ids.flatMap((id) => [[id, coverOf.get(id)!], [id, shared.id]].sort((a, b) => a[1]! - b[1]!)));
+  });
+
+  it(`${N} updates saved at once with new covers all answer 200, and each keeps only its new photo`, async () => {
+    const p = await createProject(t);
+    const first = await Promise.all(Array.from({ length: N }, () => createPhoto(t, p.id)));
+    const ids: number[] = [];
+    for (const [i, c] of first.entries()) ids.push((await create(as.marketing, p.slug, postInput(c.id, { title: `Hall 2A fit-out ${i + 1}` })).expect(201)).body.id);
+    const second = await Promise.all(Array.from({ length: N }, () => createPhoto(t, p.id)));
+    const res = await Promise.all(ids.map((id, i) => patch(as.marketing, id, { coverMediaId: second[i]!.id })));
+    expect(res.map((r) => r.status)).toEqual(Array(N).fill(200));
+    expect(await usagesOf(ids)).toEqual(ids.map((id, i) => [id, second[i]!.id]));
+  });
+});

@@ -162,4 +162,24 @@ describe("photo stories", () => {
     expect(res.status).toBe(409);
     expect(res.body.error.fields.slug).toBeDefined();
   });
+
+  // Its photos' usages and its items are rewritten by every save: saves of different stories at
+  // the same moment must not deadlock one another (a deadlock is a 500).
+  it("6 stories created at once all answer 201, each with its photos recorded", async () => {
+    const p = await createProject(t);
+    const photos = await Promise.all(Array.from({ length: 6 }, () => createPhoto(t, p.id)));
+    const res = await Promise.all(
+      photos.map((ph, i) =>
+        as.marketing.agent
+          .post(`/api/projects/${p.slug}/stories`)
+          .set("X-CSRF-Token", as.marketing.csrf)
+          .send({ title: `Generator hall, visit ${i + 1}`, audience: "public", items: [{ kind: "photo", mediaId: ph.id }] }),
+      ),
+    );
+    expect(res.map((r) => r.status)).toEqual(Array(6).fill(201));
+    const ids = res.map((r) => r.body.id as number);
+    const rows = await t.db("media_usages").where({ owner_type: "story" }).whereIn("owner_id", ids).select("owner_id", "media_id");
+    expect(new Map(rows.map((r: { owner_id: number; media_id: number }) => [Number(r.owner_id), Number(r.media_id)]))).toEqual(new Map(ids.map((id, i) => [id, photos[i]!.id])));
+    expect(rows).toHaveLength(6);
+  });
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { diffText, diffTokens, tokenize } from "../../server/posts/text-diff.ts";
+import { diffText, diffTokens, tokenize } from "../../src/shared/domain/text-diff.ts";
 
 const editCount = (runs: ReturnType<typeof diffTokens>) => runs.filter((r) => r.op !== "equal").reduce((n, r) => n + r.tokens.length, 0);
 const side = (runs: ReturnType<typeof diffTokens>, skip: "insert" | "delete") => runs.filter((r) => r.op !== skip).flatMap((r) => r.tokens).join("");

@@ -1,0 +1,87 @@
+/**
+ * The rules that updates (posts) and photo stories share as they go through the publishing
+ * workflow: their addresses, what each step changes, when an edit needs approval again, and
+ * what the scheduler does with an item that is due. Which step is open to whom is
+ * `workflowStep` in schemas/posts.ts (the browser offers the same steps). No clock: `at` is
+ * passed in.
+ */
+import type { Role } from "../schemas/common.ts";
+import type { PostStatus, PublishingProblem, WorkflowAction } from "../schemas/posts.ts";
+
+/** The kinds of published content, as history rows and photo usages name their owner. */
+export type ContentKind = "post" | "story";
+
+/** An address made from a title: lower-case ASCII words joined by hyphens (at most 80 characters). */
+export function slugFromTitle(title: string): string {
+  const slug = title
+    .normalize("NFKD")
+    .replace(/[\u0300-\u036f]/g, "")
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, "-")
+    .replace(/^-+|-+$/g, "")
+    .slice(0, 80)
+    .replace(/-+$/g, "");
+  return slug || "update";
+}
+
+/** The workflow fields a step other than publishing writes besides the status. */
+export interface StepFields {
+  scheduledFor?: Date | null;
+  reviewComment?: string | null;
+  withdrawnAt?: Date;
+}
+
+/**
+ * What a step (other than publishing, which writes the whole publication) changes besides the
+ * status: scheduling sets the time and clears the review comment; returning keeps the comment
+ * and cancels any schedule; approving clears the comment; withdrawing a scheduled item cancels
+ * its schedule, a published one records when it was withdrawn (`at`). `when` is the validated
+ * publication time of a schedule step.
+ */
+export function stepFields(action: Exclude<WorkflowAction, "publish">, from: PostStatus, p: { at: Date; when?: Date; comment?: string }): StepFields {
+  switch (action) {
+    case "schedule":
+      return { scheduledFor: p.when ?? null, reviewComment: null };
+    case "return":
+      return { reviewComment: p.comment ?? null, scheduledFor: null };
+    case "approve":
+      return { reviewComment: null };
+    case "withdraw":
+      if (from === "scheduled") return { scheduledFor: null };
+      if (from === "published") return { withdrawnAt: p.at };
+      return {};
+    case "submit":
+      return {};
+  }
+}
+
+/** The comment a step leaves in the history: a return's reasons, or when a schedule publishes. */
+export function stepComment(action: WorkflowAction, p: { when?: Date; comment?: string }): string | null {
+  if (action === "return") return p.comment ?? null;
+  if (action === "schedule" && p.when) return `for ${p.when.toISOString()}`;
+  return null;
+}
+
+/** An approval was given to the work as it stood: marketing's later edit of approved or scheduled work needs a new one. */
+export function editNeedsApproval(status: PostStatus, role: Role): boolean {
+  const approver = role === "lead" || role === "admin";
+  return !approver && (status === "approved" || status === "scheduled");
+}
+
+/** The history comment of an edit that sent approved or scheduled work back to draft. */
+export const EDITED_AFTER_APPROVAL = "Edited after approval: needs approval again.";
+
+/** Why the scheduler did not publish a due item: every problem, in order. */
+export function heldBackReason(problems: readonly PublishingProblem[]): string {
+  return `Not published at the scheduled time: ${problems.map((p) => p.message).join(" ")}`;
+}
+
+/** A due item the checks now refuse goes back to approved, its schedule cancelled and the reason kept. */
+export function heldBackFields(problems: readonly PublishingProblem[]): { status: "approved"; scheduledFor: null; reviewComment: string } {
+  return { status: "approved", scheduledFor: null, reviewComment: heldBackReason(problems) };
+}
+
+/** A scheduled item counts as published at its scheduled time, or at `at` if that is earlier. */
+export function publicationInstant(scheduledFor: Date | null, at: Date): Date {
+  return scheduledFor && scheduledFor < at ? scheduledFor : at;
+}
