@@ -1,4 +1,4 @@
-import { Router, type RequestHandler } from "express";
+import { Router, type Request, type RequestHandler, type Response } from "express";
 import { MulterError } from "multer";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
@@ -133,6 +133,18 @@ const fileNotFound = { error: { code: "not_found", message: "There is no such im
  * images in e-mail, where nobody is signed in): kept only by the recipient's own cache, and not past
  * the link's expiry.
  */
+/** 304 when the client's copy is current, else the bytes (headers already set by the caller). */
+function sendOrNotModified(req: Request, res: Response, file: { etag: string; contentType: string; bytes: number; stream: NodeJS.ReadableStream & { destroy(): void } }): void {
+  if (req.headers["if-none-match"] === file.etag) {
+    file.stream.destroy();
+    res.status(304).end();
+    return;
+  }
+  res.set({ "Content-Type": file.contentType, "Content-Length": String(file.bytes) });
+  file.stream.on("error", (err: Error) => res.destroy(err));
+  file.stream.pipe(res);
+}
+
 export function mediaFilesRouter(media: MediaService): Router {
   const r = Router();
   r.get("/media/v/:name", async (req, res) => {
@@ -149,14 +161,7 @@ export function mediaFilesRouter(media: MediaService): Router {
       // Public derivatives appear in e-mail and feed readers on other origins.
       ...(file.isPublic ? { "Cross-Origin-Resource-Policy": "cross-origin" } : {}),
     });
-    if (req.headers["if-none-match"] === file.etag) {
-      file.stream.destroy();
-      res.status(304).end();
-      return;
-    }
-    res.set({ "Content-Type": file.contentType, "Content-Length": String(file.bytes) });
-    file.stream.on("error", (err) => res.destroy(err));
-    file.stream.pipe(res);
+    sendOrNotModified(req, res, file);
   });
   r.get("/media/s/:name", async (req, res) => {
     // Refusals (400, 404, 410) are never stored, by any cache.
@@ -175,14 +180,7 @@ export function mediaFilesRouter(media: MediaService): Router {
       "Cross-Origin-Resource-Policy": "cross-origin",
       "X-Robots-Tag": "noindex",
     });
-    if (req.headers["if-none-match"] === file.etag) {
-      file.stream.destroy();
-      res.status(304).end();
-      return;
-    }
-    res.set({ "Content-Type": file.contentType, "Content-Length": String(file.bytes) });
-    file.stream.on("error", (err) => res.destroy(err));
-    file.stream.pipe(res);
+    sendOrNotModified(req, res, file);
   });
   return r;
 }

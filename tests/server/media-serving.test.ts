@@ -1,45 +1,20 @@
-import { mkdtempSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import path from "node:path";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import type { MediaItem } from "../../src/shared/schemas/media.ts";
-import { DEMO, newClient, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
-import { makeGradientImage } from "../helpers/images.ts";
+import type { Agent, TestApp } from "../helpers/app.ts";
+import { useMediaFixture, type MediaFixture } from "../helpers/media-fixture.ts";
 
+const f = useMediaFixture("media-serving");
+const { readyPhoto, review } = f;
 let t: TestApp;
-let mediaDir: string;
-let project: { id: number; slug: string };
-let marketing: { agent: Agent; csrf: string };
-let lead: { agent: Agent; csrf: string };
-let investor: { agent: Agent; csrf: string };
-let visitor: { agent: Agent; csrf: string };
-
-beforeAll(async () => {
-  mediaDir = mkdtempSync(path.join(tmpdir(), "plumbline-media-serving-"));
-  t = await startTestApp({ MEDIA_DIR: mediaDir });
-  const slug = `media-serving-${Date.now().toString(36)}`;
-  const [id] = await t.db("projects").insert({ slug, name: `Media serving test ${slug}`, operator_name: "Kestrel Colocation", time_zone: "Europe/London" });
-  project = { id: Number(id), slug };
-  marketing = await signIn(t, DEMO.marketing);
-  lead = await signIn(t, DEMO.lead);
-  investor = await signIn(t, DEMO.investor);
-  visitor = await newClient(t);
-});
-afterAll(async () => {
-  await t?.close();
-  rmSync(mediaDir, { recursive: true, force: true });
+let project: MediaFixture["project"];
+let marketing: MediaFixture["marketing"];
+let lead: MediaFixture["lead"];
+let investor: MediaFixture["investor"];
+let visitor: MediaFixture["visitor"];
+beforeAll(() => {
+  ({ t, project, marketing, lead, investor, visitor } = f);
 });
 
-let n = 0;
-async function readyPhoto(): Promise<MediaItem> {
-  n += 1;
-  const bytes = await makeGradientImage({ width: 400, height: 300, from: `#${(0x402010 + n * 0x051307).toString(16).slice(-6)}`, to: "#1d4e89" });
-  const res = await marketing.agent.post("/api/media").set("X-CSRF-Token", marketing.csrf).field("project", project.slug).attach("files", bytes, `serve-${n}.jpg`).expect(201);
-  await t.drainMediaJobs();
-  return (await marketing.agent.get(`/api/media/${res.body[0].id}`).expect(200)).body as MediaItem;
-}
-
-const review = (id: number, sensitivity: "cleared" | "restricted") => lead.agent.post(`/api/media/${id}/review`).set("X-CSRF-Token", lead.csrf).send({ sensitivity }).expect(200);
 const fetchAs = (c: { agent: Agent }, url: string) => c.agent.get(url).buffer(true);
 // Owner ids far from any real post, so these rows stand for posts of their own.
 let owner = 900_000;

@@ -1,48 +1,21 @@
 import { createHmac } from "node:crypto";
-import { mkdtempSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import path from "node:path";
 import sharp from "sharp";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import type { MediaItem } from "../../src/shared/schemas/media.ts";
 import { SIGNED_LINK_MAX_CACHE_SECONDS } from "../../server/media/media.service.ts";
 import { signToken } from "../../server/subscribers/subscribers.tokens.ts";
-import { DEMO, newClient, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
-import { makeGradientImage } from "../helpers/images.ts";
+import type { TestApp } from "../helpers/app.ts";
+import { useMediaFixture, type MediaFixture } from "../helpers/media-fixture.ts";
 
+const f = useMediaFixture("media-signed");
+const { readyPhoto, review } = f;
 let t: TestApp;
-let mediaDir: string;
-let project: { id: number; slug: string };
-let marketing: { agent: Agent; csrf: string };
-let lead: { agent: Agent; csrf: string };
-let visitor: { agent: Agent; csrf: string };
-
-beforeAll(async () => {
-  mediaDir = mkdtempSync(path.join(tmpdir(), "plumbline-media-signed-"));
-  t = await startTestApp({ MEDIA_DIR: mediaDir });
-  const slug = `media-signed-${Date.now().toString(36)}`;
-  const [id] = await t.db("projects").insert({ slug, name: `Signed media test ${slug}`, operator_name: "Kestrel Colocation", time_zone: "Europe/London" });
-  project = { id: Number(id), slug };
-  marketing = await signIn(t, DEMO.marketing);
-  lead = await signIn(t, DEMO.lead);
-  visitor = await newClient(t);
-});
-afterAll(async () => {
-  await t?.close();
-  rmSync(mediaDir, { recursive: true, force: true });
+let lead: MediaFixture["lead"];
+let visitor: MediaFixture["visitor"];
+beforeAll(() => {
+  ({ t, lead, visitor } = f);
 });
 
-let n = 0;
-/** A photo uploaded through the API and processed by the real derivative pipeline. */
-async function readyPhoto(): Promise<MediaItem> {
-  n += 1;
-  const bytes = await makeGradientImage({ width: 400, height: 300, from: `#${(0x203040 + n * 0x0b0705).toString(16).slice(-6)}`, to: "#8a5a1d" });
-  const res = await marketing.agent.post("/api/media").set("X-CSRF-Token", marketing.csrf).field("project", project.slug).attach("files", bytes, `signed-${n}.jpg`).expect(201);
-  await t.drainMediaJobs();
-  return (await marketing.agent.get(`/api/media/${res.body[0].id}`).expect(200)).body as MediaItem;
-}
-
-const review = (id: number, sensitivity: "cleared" | "restricted") => lead.agent.post(`/api/media/${id}/review`).set("X-CSRF-Token", lead.csrf).send({ sensitivity }).expect(200);
 const nameOf = (url: string) => url.replace(/^\/media\/v\//, "");
 const inDays = (days: number) => new Date(Date.now() + days * 86_400_000);
 const fetchSignedOut = (url: string) => visitor.agent.get(url).buffer(true);
