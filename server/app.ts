@@ -9,7 +9,9 @@ import { pinoHttp } from "pino-http";
 import type { Config } from "./config.ts";
 import type { Logger } from "./core/logger.ts";
 import { apiNotFound, errorHandler } from "./core/error-handler.ts";
-import { csrfProtection } from "./core/csrf.ts";
+import { createCsrf } from "./core/csrf.ts";
+import { cachePolicy } from "./core/cache-policy.ts";
+import { transportSecurity } from "./core/transport-security.ts";
 import type { Db } from "./db/knex.ts";
 import { createAuditService } from "./audit/audit.service.ts";
 import { auditRouter } from "./audit/audit.router.ts";
@@ -30,6 +32,7 @@ import { createMediaJobs, type MediaJobs } from "./media/media.jobs.ts";
 import { mediaFilesRouter, mediaRouter } from "./media/media.router.ts";
 import { createLocalDiskStorage, createUploadArea, type MediaStorage, type UploadArea } from "./media/media.storage.ts";
 import { RateLimitRepository } from "./rate-limit/rate-limit.repository.ts";
+import { createSignInDelays } from "./rate-limit/sign-in-delays.service.ts";
 import { createUsersService } from "./users/users.service.ts";
 import { usersRouter } from "./users/users.router.ts";
 import { createEnquiriesService } from "./enquiries/enquiries.service.ts";
@@ -71,7 +74,7 @@ export interface PlumblineApp {
   mediaUploads: UploadArea;
   close(): void;
   /** Rate-limit counters, exposed so tests can start from zero. */
-  rateLimits: { ip: RateLimitRepository; account: RateLimitRepository };
+  rateLimits: { ip: RateLimitRepository; resetRequests: RateLimitRepository };
   /** Exposed so tests can run the unconfirmed-address sweep with a chosen `now`, and digests can use it. */
   subscribers: SubscribersService;
   /** Updates; tests run scheduled publication with a chosen `now` (posts.publishDue). */
@@ -97,6 +100,9 @@ export function createApp(deps: AppDeps): PlumblineApp {
   app.set("etag", "strong");
   // Visitors' answers for the public pages, kept a few seconds (production; tests see every write at once).
   const publicCache = createPublicCache({ ttlMs: 5_000, enabled: config.NODE_ENV === "production" });
+  // First of all, so that every answer (the public cache's copies and errors too) leaves under one cache policy.
+  app.use(cachePolicy());
+  app.use(transportSecurity({ publicUrl: config.PUBLIC_URL }));
   app.use(publicCache.middleware);
 
   const idleMs = config.SESSION_IDLE_MINUTES * 60_000;
@@ -104,11 +110,20 @@ export function createApp(deps: AppDeps): PlumblineApp {
   const sessions = new SessionRepository(db, idleMs);
   sessions.startSweeping();
   const audit = createAuditService(db);
-  const auth = createAuthService({ db, audit, mailer, sessions, publicUrl: config.PUBLIC_URL });
+  const auth = createAuthService({ db, audit, mailer, sessions, logger, publicUrl: config.PUBLIC_URL });
   const users = createUsersService({ db, audit, auth, mailer, publicUrl: config.PUBLIC_URL });
   const outbox = createOutboxService(db);
   const projects = createProjectsService(db);
-  const programme = createProgrammeService({ db, projects });
+  const programme = createProgrammeService({
+    db,
+    projects,
+    audit,
+    // Posts and media read the programme, so they are built below; this runs only when a milestone is to be deleted.
+    references: async (milestoneId) => [
+      ...(await posts.linkingMilestone(milestoneId)).map((p) => ({ kind: "update" as const, id: p.id, label: `“${p.title}”` })),
+      ...(await media.taggedWithMilestone(milestoneId)).map((id) => ({ kind: "photo" as const, id, label: `#${id}` })),
+    ],
+  });
   const mediaStorage = createLocalDiskStorage(config.MEDIA_DIR);
   const mediaUploads = createUploadArea(config.MEDIA_DIR);
   const media = createMediaService({
@@ -123,7 +138,8 @@ export function createApp(deps: AppDeps): PlumblineApp {
   // Building the app runs no jobs: server/index.ts starts the worker (tests drain it).
   const mediaJobs = createMediaJobs({ media, storage: mediaStorage, uploads: mediaUploads, logger, workers: config.MEDIA_WORKERS, maxPixels: config.MEDIA_MAX_PIXELS });
   const passport = createPassport(auth);
-  const rateLimits = { ip: new RateLimitRepository(db, "login-ip"), account: new RateLimitRepository(db, "login-account") };
+  const rateLimits = { ip: new RateLimitRepository(db, "login-ip"), resetRequests: new RateLimitRepository(db, "reset-ip") };
+  const signInDelays = createSignInDelays({ db, freeFailures: config.LOGIN_LIMIT_PER_ACCOUNT, forgetAfterMs: config.LOGIN_LIMIT_WINDOW_MINUTES * 60_000 });
   const enquiries = createEnquiriesService({ db, mailer, logger, projects, users, publicUrl: config.PUBLIC_URL });
   const subscribers = createSubscribersService({
     db,
@@ -190,7 +206,8 @@ export function createApp(deps: AppDeps): PlumblineApp {
           "upgrade-insecure-requests": config.PUBLIC_URL.startsWith("https:") ? [] : null,
         },
       },
-      strictTransportSecurity: config.PUBLIC_URL.startsWith("https:"),
+      // Sent by transportSecurity, per request: only over TLS.
+      strictTransportSecurity: false,
     }),
   );
   // The mail-events webhook is signed over its exact bytes: keep them raw (JSON parsing skips a parsed body).
@@ -226,18 +243,20 @@ export function createApp(deps: AppDeps): PlumblineApp {
   });
 
   const api = express.Router();
-  api.use(csrfProtection([/^\/webhooks\/mail-events$/]));
+  const csrf = createCsrf({ secret: config.SESSION_SECRET });
+  api.use(csrf.protect([/^\/webhooks\/mail-events$/]));
   api.use(healthRouter(db));
   api.use(
     authRouter({
       auth,
       passport,
+      csrf,
       limits: {
         perIp: config.LOGIN_LIMIT_PER_IP,
-        perAccount: config.LOGIN_LIMIT_PER_ACCOUNT,
         windowMs: config.LOGIN_LIMIT_WINDOW_MINUTES * 60_000,
       },
       stores: rateLimits,
+      delays: signInDelays,
     }),
   );
   api.use(usersRouter(users));

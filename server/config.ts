@@ -1,4 +1,5 @@
 import { createHmac } from "node:crypto";
+import { isIP } from "node:net";
 import { z } from "zod";
 
 const bool = z
@@ -23,7 +24,16 @@ const ConfigSchema = z.object({
   SESSION_SECRET: z.string().min(16, "must be at least 16 characters"),
   SESSION_IDLE_MINUTES: z.coerce.number().int().positive().default(120),
   SESSION_ABSOLUTE_HOURS: z.coerce.number().int().positive().default(24 * 7),
-  TRUST_PROXY: z.string().default("false"),
+  // Which hops in front of the app may name the client (X-Forwarded-For/-Proto): see parseTrustProxy.
+  TRUST_PROXY: z
+    .string()
+    .default("false")
+    .refine((v) => v.trim().toLowerCase() !== "true", {
+      message: "may not be true (any client could then choose its own address): give the number of proxies in front, e.g. 1, or their addresses",
+    })
+    .refine((v) => v.trim().toLowerCase() === "true" || parseTrustProxy(v) !== null, {
+      message: "must be false, a number of proxy hops such as 1, or a comma-separated list of proxy addresses or subnets (e.g. 10.0.0.5, 10.1.0.0/16)",
+    }),
   COOKIE_SECURE: z.enum(["auto", "true", "false"]).default("auto"),
   SMTP_URL: z
     .string()
@@ -33,8 +43,10 @@ const ConfigSchema = z.object({
   SMTP_SINK_PORT: z.coerce.number().int().min(0).max(65535).default(2525),
   MAIL_FROM: z.string().min(3).default("Plumbline <progress@kestrel.example>"),
   LOG_LEVEL: z.enum(["fatal", "error", "warn", "info", "debug", "trace", "silent"]).default("info"),
+  // Failed sign-ins, invitation acceptances and reset-link uses per client address per window (successes are free).
   LOGIN_LIMIT_PER_IP: z.coerce.number().int().positive().default(30),
-  LOGIN_LIMIT_PER_ACCOUNT: z.coerce.number().int().positive().default(8),
+  // Failed sign-ins per account from one address before each further attempt from there must wait (2 s, 4 s, 8 s …).
+  LOGIN_LIMIT_PER_ACCOUNT: z.coerce.number().int().positive().default(3),
   LOGIN_LIMIT_WINDOW_MINUTES: z.coerce.number().int().positive().default(15),
   BODY_LIMIT: z.string().regex(/^\d+(b|kb|mb)$/i, "must look like 100kb or 1mb").default("1mb"),
   DEMO_PASSWORD: z.string().min(8).default("plumbline-demo"),
@@ -63,7 +75,7 @@ const ConfigSchema = z.object({
 export type Config = Readonly<
   Omit<z.infer<typeof ConfigSchema>, "PUBLIC_URL" | "TRUST_PROXY" | "TOKEN_SECRET"> & {
     PUBLIC_URL: string;
-    TRUST_PROXY: boolean | number | string;
+    TRUST_PROXY: false | number | string[];
     mailMode: "local" | "smtp";
     TOKEN_SECRET: string;
     /** SMTP_SINK_REFUSE as a whole-address, case-insensitive pattern. */
@@ -78,11 +90,30 @@ export class ConfigError extends Error {
   }
 }
 
-function parseTrustProxy(v: string): boolean | number | string {
-  if (v === "true") return true;
-  if (v === "false" || v === "") return false;
-  if (/^\d+$/.test(v)) return Number(v);
-  return v; // a list of addresses or subnets, passed to Express as is
+/** Express's own names for the private ranges, accepted beside addresses and subnets. */
+const TRUST_NAMES = new Set(["loopback", "linklocal", "uniquelocal"]);
+
+function isAddressOrSubnet(entry: string): boolean {
+  if (TRUST_NAMES.has(entry)) return true;
+  const [address = "", bits, ...rest] = entry.split("/");
+  const family = isIP(address);
+  if (family === 0 || rest.length > 0) return false;
+  if (bits === undefined) return true;
+  return /^\d{1,3}$/.test(bits) && Number(bits) <= (family === 4 ? 32 : 128);
+}
+
+/**
+ * `false` (nobody: the connection's own address is the client), a hop count (`1`: the one
+ * proxy in front is trusted, the address it appends is the client), or a list of the
+ * proxies' addresses and subnets. `true` is refused by the schema: it lets any client
+ * choose its own address, and so its own rate-limit bucket. Null when not readable.
+ */
+function parseTrustProxy(raw: string): false | number | string[] | null {
+  const v = raw.trim();
+  if (v === "false" || v === "" || v === "0") return false;
+  if (/^\d+$/.test(v)) return Number(v) <= 10 ? Number(v) : null;
+  const entries = v.split(",").map((e) => e.trim());
+  return entries.every(isAddressOrSubnet) ? entries : null;
 }
 
 /** `*@bounce.example` → /^.*@bounce\.example$/i: `*` is any run of characters, `?` one. */
@@ -107,7 +138,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
   return Object.freeze({
     ...c,
     PUBLIC_URL: (c.PUBLIC_URL ?? `http://localhost:${c.PORT}`).replace(/\/$/, ""),
-    TRUST_PROXY: parseTrustProxy(c.TRUST_PROXY),
+    TRUST_PROXY: parseTrustProxy(c.TRUST_PROXY) ?? false,
     mailMode: c.SMTP_URL ? "smtp" : "local",
     // A separate key per purpose: a session cookie and a subscriber link never share one.
     TOKEN_SECRET: c.TOKEN_SECRET ?? createHmac("sha256", c.SESSION_SECRET).update("plumbline subscriber links").digest("base64url"),

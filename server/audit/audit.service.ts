@@ -13,7 +13,17 @@ export type AuditAction =
   | "password_reset"
   | "role_changed"
   | "user_disabled"
-  | "user_enabled";
+  | "user_enabled"
+  // Programme writes (server/programme): who changed the record, and what.
+  | "milestone_created"
+  | "milestone_updated"
+  | "milestone_removed"
+  | "milestone_restored"
+  | "milestone_deleted"
+  | "milestones_shifted"
+  | "programme_rebaselined"
+  | "programme_imported"
+  | "cost_actual_recorded";
 
 export interface AuditService {
   record(

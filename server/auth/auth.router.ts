@@ -1,6 +1,6 @@
 import type { Request, RequestHandler, Response } from "express";
 import { Router } from "express";
-import rateLimit from "express-rate-limit";
+import rateLimit, { ipKeyGenerator } from "express-rate-limit";
 import type { createPassport } from "./passport.ts";
 
 type Authenticator = ReturnType<typeof createPassport>;
@@ -14,14 +14,15 @@ import {
 } from "#shared/schemas/auth.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf } from "../core/auth.ts";
-import { csrfTokenFor } from "../core/csrf.ts";
+import type { CsrfGuard } from "../core/csrf.ts";
 import type { RateLimitRepository } from "../rate-limit/rate-limit.repository.ts";
+import type { SignInDelays } from "../rate-limit/sign-in-delays.service.ts";
 import type { AuthService } from "./auth.service.ts";
 
 function logIn(req: Request, user: User): Promise<void> {
   return new Promise<void>((resolve, reject) => {
-    // passport regenerates the session id here (fixation); keep the CSRF token with it.
-    req.login(user, { keepSessionInfo: true } as Parameters<Request["login"]>[1], (err) => (err ? reject(err) : resolve()));
+    // passport regenerates the session id here (fixation). The CSRF token lives in its own cookie and carries over.
+    req.login(user, (err) => (err ? reject(err) : resolve()));
   }).then(() => {
     req.session.signedInAt = Date.now();
   });
@@ -41,8 +42,11 @@ function authenticate(passport: Authenticator, req: Request, res: Response): Pro
 export function authRouter(deps: {
   auth: AuthService;
   passport: Authenticator;
-  limits: { perIp: number; perAccount: number; windowMs: number };
-  stores: { ip: RateLimitRepository; account: RateLimitRepository };
+  csrf: CsrfGuard;
+  limits: { perIp: number; windowMs: number };
+  stores: { ip: RateLimitRepository; resetRequests: RateLimitRepository };
+  /** The growing wait per (account, client address) pair after failed sign-ins. */
+  delays: SignInDelays;
 }): Router {
   const { auth, passport } = deps;
   const r = Router();
@@ -50,32 +54,52 @@ export function authRouter(deps: {
   const limited = (message: string) => (_req: Request, _res: Response, next: (e: unknown) => void) =>
     next(new AppError("rate_limited", message, 429));
 
+  // Failures only (wrong password, spent or forged link, bad input) from one client address, as
+  // the trusted proxies report it: colleagues behind one address sign in as often as they like.
   const perIp = rateLimit({
     windowMs: deps.limits.windowMs,
     limit: deps.limits.perIp,
     standardHeaders: "draft-8",
     legacyHeaders: false,
     store: deps.stores.ip,
-    handler: limited("Too many sign-in attempts from this address. Wait a few minutes and try again."),
-  });
-  const perAccount = rateLimit({
-    windowMs: deps.limits.windowMs,
-    limit: deps.limits.perAccount,
-    standardHeaders: false,
-    legacyHeaders: false,
-    store: deps.stores.account,
     skipSuccessfulRequests: true,
-    keyGenerator: (req) => String((req.body as { email?: unknown } | undefined)?.email ?? "").trim().toLowerCase() || "(none)",
-    handler: limited("Too many failed sign-ins for this account. Wait a few minutes or reset the password."),
+    // An X-Forwarded-For from a peer that is not a trusted proxy is ignored by design (TRUST_PROXY), not a fault to log.
+    validate: { xForwardedForHeader: false },
+    handler: limited("Too many failed attempts from this address. Wait a few minutes and try again."),
   });
+  // Every reset request sends mail whether or not the address is known, so each one counts.
+  const resetRequestsPerIp = rateLimit({
+    windowMs: deps.limits.windowMs,
+    limit: deps.limits.perIp,
+    standardHeaders: "draft-8",
+    legacyHeaders: false,
+    store: deps.stores.resetRequests,
+    validate: { xForwardedForHeader: false },
+    handler: limited("Too many password-reset requests from this address. Wait a few minutes and try again."),
+  });
+  /** The same client key as the limiters: an IPv6 client's /56, which one subscriber holds whole. */
+  const clientKey = (req: Request) => ipKeyGenerator(req.ip ?? "unknown");
 
   r.get("/auth/csrf", (req, res) => {
-    res.set("Cache-Control", "no-store").json({ token: csrfTokenFor(req) });
+    res.set("Cache-Control", "no-store").json({ token: deps.csrf.issue(req, res) });
   });
 
-  r.post("/auth/login", perIp, perAccount, async (req, res) => {
-    LoginInputSchema.parse(req.body);
+  r.post("/auth/login", perIp, async (req, res) => {
+    const { email } = LoginInputSchema.parse(req.body);
+    const address = clientKey(req);
+    const wait = await deps.delays.begin(email, address);
+    if (wait > 0) {
+      res.set("Retry-After", String(wait));
+      throw new AppError(
+        "rate_limited",
+        `Too many failed sign-ins at this account from this address. Try again in ${wait} seconds, or reset the password.`,
+        429,
+        undefined,
+        { retryAfterSeconds: wait },
+      );
+    }
     const user = await authenticate(passport, req, res);
+    await deps.delays.succeeded(email, address);
     await logIn(req, user);
     await auth.recordSignIn(user, actorOf(req));
     res.json({ user });
@@ -87,6 +111,7 @@ export function authRouter(deps: {
     await new Promise<void>((resolve) => req.session.destroy(() => resolve()));
     await auth.recordSignOut(actor);
     res.clearCookie("plumbline.sid");
+    deps.csrf.forget(res);
     res.status(204).end();
   });
 
@@ -109,7 +134,7 @@ export function authRouter(deps: {
     res.status(201).json({ user });
   });
 
-  r.post("/auth/password-reset", perIp, async (req, res) => {
+  r.post("/auth/password-reset", resetRequestsPerIp, async (req, res) => {
     const { email } = ResetRequestInputSchema.parse(req.body);
     await auth.requestPasswordReset(email, actorOf(req));
     res.status(202).json({ ok: true, message: "If that address has an account, a reset link is on its way." });

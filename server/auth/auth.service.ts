@@ -1,5 +1,6 @@
 import type { User } from "#shared/schemas/auth.ts";
 import { AppError } from "../core/app-error.ts";
+import type { Logger } from "../core/logger.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { AuditService } from "../audit/audit.service.ts";
@@ -10,8 +11,10 @@ import {
   findPasswordReset,
   findUserByEmail,
   findUserById,
+  endOpenPasswordResets,
   insertPasswordReset,
   insertUser,
+  lockUserRow,
   markInvitationAccepted,
   markPasswordResetUsed,
   updateUser,
@@ -32,10 +35,34 @@ export function createAuthService(deps: {
   mailer: Mailer;
   sessions: SessionRepository;
   publicUrl: string;
+  logger: Logger;
   now?: () => Date;
 }) {
-  const { db, audit, mailer, sessions, publicUrl } = deps;
+  const { db, audit, mailer, sessions, publicUrl, logger } = deps;
   const now = deps.now ?? (() => new Date());
+
+  /** Issues a reset link (ending the account's earlier ones) and mails it. */
+  async function sendResetLink(user: UserRecord): Promise<void> {
+    const token = newToken();
+    await db.transaction(async (trx) => {
+      // One reset at a time per account, across processes: the newest link is the only live one.
+      await lockUserRow(trx, user.id);
+      await endOpenPasswordResets(trx, user.id);
+      await insertPasswordReset(trx, { userId: user.id, tokenHash: hashToken(token), expiresAt: new Date(now().getTime() + RESET_TTL_MS) });
+    });
+    const url = `${publicUrl}/reset-password/${token}`;
+    const body = transactionalMail({
+      heading: "Reset your Plumbline password",
+      paragraphs: [
+        `Someone asked to reset the password of the Plumbline account ${user.email}.`,
+        "The link below works once, for one hour, and only until a newer reset link is sent. Setting a new password signs you out everywhere else.",
+        "If you did not ask for this, ignore this message; your password stays as it is.",
+      ],
+      action: { label: "Choose a new password", url },
+      footer: "Plumbline site office. You receive this because a reset was requested for your account.",
+    });
+    await mailer.send({ to: user.email, subject: "Reset your Plumbline password", ...body });
+  }
 
   return {
     /** Checks an e-mail and password; the same error for an unknown address, a wrong password and a disabled account. */
@@ -94,25 +121,21 @@ export function createAuthService(deps: {
       });
     },
 
-    /** Always answers the same; sends a link only to an active account. */
+    /**
+     * Always answers the same, along the same path: the request looks the address up and
+     * records the attempt, and only then, after the answer, does an active account get its
+     * link (issued and handed to SMTP in the background). Waiting for the SMTP hand-off in the
+     * request would tell a known address from an unknown one by the time it takes.
+     */
     async requestPasswordReset(email: string, actor: Actor): Promise<void> {
       const user = await findUserByEmail(db, email);
-      await audit.record({ action: "password_reset_requested", actor, actorEmail: email, detail: { known: Boolean(user && !user.disabledAt) } });
-      if (!user || user.disabledAt) return;
-      const token = newToken();
-      await insertPasswordReset(db, { userId: user.id, tokenHash: hashToken(token), expiresAt: new Date(now().getTime() + RESET_TTL_MS) });
-      const url = `${publicUrl}/reset-password/${token}`;
-      const body = transactionalMail({
-        heading: "Reset your Plumbline password",
-        paragraphs: [
-          `Someone asked to reset the password of the Plumbline account ${user.email}.`,
-          "The link below works once, for one hour. Setting a new password signs you out everywhere else.",
-          "If you did not ask for this, ignore this message; your password stays as it is.",
-        ],
-        action: { label: "Choose a new password", url },
-        footer: "Plumbline site office. You receive this because a reset was requested for your account.",
+      const known = Boolean(user && !user.disabledAt);
+      await audit.record({ action: "password_reset_requested", actor, actorEmail: email, detail: { known } });
+      if (!user || !known) return;
+      // A process that stops before the hand-off loses the link; the person asks again.
+      void sendResetLink(user).catch((err: unknown) => {
+        logger.error({ err, userId: user.id }, "the password reset link could not be sent");
       });
-      await mailer.send({ to: user.email, subject: "Reset your Plumbline password", ...body });
     },
 
     async resetPassword(token: string, password: string, actor: Actor): Promise<User> {

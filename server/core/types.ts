@@ -14,7 +14,6 @@ declare global {
 
 declare module "express-session" {
   interface SessionData {
-    csrfToken?: string;
     signedInAt?: number;
   }
 }

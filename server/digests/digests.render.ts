@@ -1,5 +1,6 @@
 import mjml2html from "mjml";
 import { DateTime } from "luxon";
+import { digestPeriodTitle } from "#shared/domain/digest-period.ts";
 import type { MoveKind } from "#shared/domain/programme-changes.ts";
 import { escapeHtml } from "../mail/mail.layout.ts";
 
@@ -25,6 +26,8 @@ export interface DigestMoveItem {
   days?: number;
   from: string | null;
   to: string | null;
+  /** Why a milestone was removed from (or put back into) the programme. */
+  reason?: string;
 }
 
 export interface DigestDueItem {
@@ -45,6 +48,8 @@ export interface DigestDocument {
   frequency: "immediate" | "weekly" | "monthly";
   windowStart: Date;
   windowEnd: Date;
+  /** The window stops at "now", inside a period still running (a preview or a test): its title says "so far". */
+  soFar?: boolean;
   projectUrl: string;
   posts: DigestPostItem[];
   moves: DigestMoveItem[];
@@ -86,17 +91,21 @@ export function describeMove(m: DigestMoveItem): string {
       return `earlier by ${Math.abs(m.days ?? 0)} day${Math.abs(m.days ?? 0) === 1 ? "" : "s"}${span}`;
     case "rebaselined":
       return `re-baselined${span}`;
+    case "removed":
+      return `removed from the programme${m.reason ? ` (${m.reason})` : ""}; it no longer counts in the figures`;
+    case "restored":
+      return `put back into the programme${m.reason ? ` (${m.reason})` : ""}`;
     default:
       return `${String(m.kind).replace(/_/g, " ")}${span}`;
   }
 }
 
-function periodLabel(d: DigestDocument): string {
-  const start = DateTime.fromJSDate(d.windowStart, { zone: d.project.timeZone });
-  const lastDay = DateTime.fromJSDate(d.windowEnd, { zone: d.project.timeZone }).minus({ milliseconds: 1 });
-  if (d.frequency === "weekly") return `week ${start.weekNumber}, ${start.toFormat("d LLL")} to ${lastDay.toFormat("d LLL yyyy")}`;
-  if (d.frequency === "monthly") return start.toFormat("LLLL yyyy");
-  return lastDay.toFormat("d LLLL yyyy");
+/** The days the window covers in the project's zone (its end is exclusive), named by `digestPeriodTitle`. */
+export function periodLabel(d: Pick<DigestDocument, "frequency" | "windowStart" | "windowEnd" | "soFar" | "project">): string {
+  const zone = d.project.timeZone;
+  const firstDay = DateTime.fromJSDate(d.windowStart, { zone }).toISODate()!;
+  const lastDay = DateTime.fromJSDate(new Date(d.windowEnd.getTime() - 1), { zone }).toISODate()!;
+  return digestPeriodTitle({ frequency: d.frequency, firstDay, lastDay, soFar: d.soFar ?? false });
 }
 
 function figuresLines(f: DigestFigures): string[] {

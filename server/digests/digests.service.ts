@@ -1,10 +1,11 @@
-import { createHash, createHmac, randomBytes, timingSafeEqual } from "node:crypto";
+import { createHash, randomBytes } from "node:crypto";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { DigestPreview, DigestRunInput, DigestRunSummary, DigestTestInput, DigestUpcoming } from "#shared/schemas/digests.ts";
 import type { Frequency, Topics } from "#shared/schemas/subscribers.ts";
 import { addDays } from "#shared/domain/calendar.ts";
 import { AppError, notFound } from "../core/app-error.ts";
 import type { Logger } from "../core/logger.ts";
+import { createTokenSigner, verifyLegacyToken } from "../core/signed-token.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { Mailer } from "../mail/mail.service.ts";
@@ -34,13 +35,19 @@ import {
   type DigestRunRecord,
 } from "./digests.repository.ts";
 import { hasNews, personalise, renderDigest, type DigestDocument, type DigestFigures, type PersonalLinks, type RenderedDigest } from "./digests.render.ts";
-import { localDate, sendTimes, windowFor } from "./digests.windows.ts";
+import { currentPeriodStart, localDate, sendTimes, windowFor } from "./digests.windows.ts";
 
 type DigestAudience = "public" | "investor";
 
+/**
+ * How far ahead of the server's clock a run's `at` may be: clock skew between a browser and
+ * the server, no more. A later `at` would mark subscribers' windows sent up to a moment that
+ * has not come, and what is published meanwhile would never be e-mailed.
+ */
+export const RUN_AT_TOLERANCE_MS = 5_000;
+
 /** Web copies of a digest stay readable this long after the run (a year, like the footer links). */
 const WEB_TTL_MS = 365 * 24 * 60 * 60 * 1000;
-const WEB_DOMAIN = "plumbline-digest-web:v1.";
 /**
  * Investor-only pictures in a digest e-mail are signed links to the derivative that expire this
  * many days after the render (rounded up to a whole UTC day, so one run's renders share a URL).
@@ -51,7 +58,7 @@ export const MEDIA_LINK_TTL_DAYS = 30;
 const WEB_MEDIA_LINK_TTL_DAYS = 1;
 const DAY_MS = 24 * 60 * 60 * 1000;
 /** Moves worth telling a reader about; progress ticks and audience changes are not news. */
-const NEWS_MOVES = new Set(["completed", "reopened", "rebaselined", "later", "earlier"]);
+const NEWS_MOVES = new Set(["removed", "restored", "completed", "reopened", "rebaselined", "later", "earlier"]);
 
 export interface DigestsDeps {
   db: Db;
@@ -104,28 +111,23 @@ export function createDigestsService(deps: DigestsDeps) {
   const now = deps.now ?? (() => new Date());
   const host = new URL(publicUrl).hostname || "plumbline.local";
 
+  const signer = createTokenSigner(tokenSecret);
+  const webClaims = (c: Record<string, unknown>) => (Number.isSafeInteger(c.c) && Number.isSafeInteger(c.s) ? { c: c.c as number, s: c.s as number } : null);
+
   function webToken(contentId: number, subscriberId: number, expiresAt: Date): string {
-    const body = Buffer.from(JSON.stringify({ c: contentId, s: subscriberId, e: Math.floor(expiresAt.getTime() / 1000) })).toString("base64url");
-    const mac = createHmac("sha256", tokenSecret).update(WEB_DOMAIN + body).digest("base64url");
-    return `${body}.${mac}`;
+    return signer.sign("digestWebCopy", { c: contentId, s: subscriberId }, expiresAt);
   }
 
+  /** 400 for an altered, non-canonical, forged or other-purpose token; 410 for an authentic expired one. */
   function verifyWebToken(token: string): { contentId: number; subscriberId: number } {
-    const invalid = new AppError("token_invalid", "This link is not valid. Use the link in your latest digest.", 400);
-    const [body, sig] = token.split(".");
-    if (!body || !sig) throw invalid;
-    const expected = createHmac("sha256", tokenSecret).update(WEB_DOMAIN + body).digest();
-    const sent = Buffer.from(sig, "base64url");
-    if (sent.length !== expected.length || !timingSafeEqual(sent, expected)) throw invalid;
-    let p: { c?: unknown; s?: unknown; e?: unknown };
-    try {
-      p = JSON.parse(Buffer.from(body, "base64url").toString("utf8")) as typeof p;
-    } catch {
-      throw invalid;
+    let result = signer.verify("digestWebCopy", token, now(), webClaims);
+    // Web copies linked before decision 016 keep working until their own expiry.
+    if (!result.ok && result.reason === "forged") result = verifyLegacyToken(tokenSecret, "digestWebCopy", token, now(), webClaims);
+    if (!result.ok) {
+      if (result.reason === "expired") throw new AppError("token_expired", "This link has expired.", 410);
+      throw new AppError("token_invalid", "This link is not valid. Use the link in your latest digest.", 400);
     }
-    if (!Number.isInteger(p.c) || !Number.isInteger(p.s) || !Number.isInteger(p.e)) throw invalid;
-    if ((p.e as number) * 1000 <= now().getTime()) throw new AppError("token_expired", "This link has expired.", 410);
-    return { contentId: p.c as number, subscriberId: p.s as number };
+    return { contentId: result.claims.c, subscriberId: result.claims.s };
   }
 
   /** The personal links of one reader of one content: cheap HMACs, no database. */
@@ -172,6 +174,7 @@ export function createDigestsService(deps: DigestsDeps) {
     topics: Topics | null;
     windowStart: Date;
     windowEnd: Date;
+    soFar?: boolean;
     previous: { percentComplete: number | null; forecastReady: string | null } | null;
     postId?: number | null;
   }): Promise<DigestDocument> {
@@ -193,6 +196,7 @@ export function createDigestsService(deps: DigestsDeps) {
       frequency: p.frequency,
       windowStart: p.windowStart,
       windowEnd: p.windowEnd,
+      soFar: p.soFar ?? false,
       projectUrl,
       posts: postRows.map((x) => ({
         title: x.title,
@@ -207,8 +211,10 @@ export function createDigestsService(deps: DigestsDeps) {
     };
     if (p.frequency === "immediate") return doc;
 
-    const milestones = await programme.list(project.slug, {}, reader);
-    const byId = new Map(milestones.map((m) => [m.id, m]));
+    // Removed milestones too: their removal is news to the readers who could see them.
+    const listed = await programme.list(project.slug, { removed: "include" }, reader);
+    const milestones = listed.filter((m) => m.removal === null);
+    const byId = new Map(listed.map((m) => [m.id, m]));
     const within = (id: number) => {
       const m = byId.get(id);
       return m ? topicsAllow(topics, { areas: m.area ? [m.area] : [], systems: [m.system] }) : false;
@@ -217,7 +223,11 @@ export function createDigestsService(deps: DigestsDeps) {
     const moves = await programme.moves(project.slug, { from: localDate(p.windowStart, project.timeZone), to: lastDay }, reader);
     doc.moves = moves
       .filter((row) => within(row.milestoneId))
-      .flatMap((row) => row.moves.filter((m) => NEWS_MOVES.has(m.kind)).map((m) => ({ milestoneName: row.milestoneName, kind: m.kind, days: m.days, from: m.from, to: m.to })));
+      .flatMap((row) =>
+        row.moves
+          .filter((m) => NEWS_MOVES.has(m.kind))
+          .map((m) => ({ milestoneName: row.milestoneName, kind: m.kind, days: m.days, from: m.from, to: m.to, ...(m.kind === "removed" || m.kind === "restored" ? { reason: m.notes.join("; ") } : {}) })),
+      );
     const today = localDate(p.windowEnd, project.timeZone);
     const horizon = addDays(today, 30);
     doc.dueSoon = milestones
@@ -340,7 +350,16 @@ export function createDigestsService(deps: DigestsDeps) {
     /** Starts (or finds) the run of the period before `at`; the same period twice is one run. */
     async requestRun(input: DigestRunInput, actor: Actor): Promise<{ id: number; status: string; created: boolean }> {
       const project = await projects.get(input.projectSlug);
-      const at = input.at ? new Date(input.at) : now();
+      const current = now();
+      const at = input.at ? new Date(input.at) : current;
+      if (at.getTime() > current.getTime() + RUN_AT_TOLERANCE_MS) {
+        throw new AppError("validation", "Check at.", 400, { at: `must not be in the future (it is ${current.toISOString()} now); a run covers a period that has ended` });
+      }
+      // Within the tolerance `at` can still fall just past a period's end: the period it would cover has not ended.
+      const w = windowFor(input.frequency, at, project.timeZone);
+      if (w.end.getTime() > current.getTime()) {
+        throw new AppError("validation", "Check at.", 400, { at: `names a period that has not ended yet (${input.frequency} ${w.label} ends ${w.end.toISOString()})` });
+      }
       const { id, created } = await createRun({ projectId: project.id, frequency: input.frequency, at, timeZone: project.timeZone, requestedBy: actor.user?.id ?? null });
       if (created) await planRun(id);
       const run = await findRun(db, id);
@@ -393,11 +412,13 @@ export function createDigestsService(deps: DigestsDeps) {
       const topics = s.topics ? (JSON.parse(String(s.topics)) as Topics) : null;
       const frequency = s.frequency as Frequency;
       const end = now();
-      const nominal = frequency === "monthly" ? windowFor("monthly", end, project.timeZone) : windowFor("weekly", end, project.timeZone);
-      const windowStart = s.last_digest_at ? new Date(s.last_digest_at) : frequency === "immediate" ? new Date(end.getTime() - 7 * 86_400_000) : nominal.start;
+      // Their next digest as it stands: from where their last one ended (else from the start of
+      // the period in progress, as the run would) to now.
+      const periodStart = currentPeriodStart(frequency === "monthly" ? "monthly" : "weekly", end, project.timeZone);
+      const windowStart = s.last_digest_at ? new Date(s.last_digest_at) : frequency === "immediate" ? new Date(end.getTime() - 7 * 86_400_000) : periodStart;
       const previous = (await lastFiguresOf(db, [subscriberId])).get(subscriberId) ?? null;
       // The preview shows a digest's contents, so "as it happens" subscribers see a week's worth.
-      const doc = await assemble({ project, frequency: frequency === "immediate" ? "weekly" : frequency, audience, topics, windowStart, windowEnd: end, previous });
+      const doc = await assemble({ project, frequency: frequency === "immediate" ? "weekly" : frequency, audience, topics, windowStart, windowEnd: end, soFar: true, previous });
       const rendered = await renderDigest(doc);
       const links = { webUrl: "#", preferencesUrl: "#", unsubscribeUrl: "#" };
       return {
@@ -412,13 +433,13 @@ export function createDigestsService(deps: DigestsDeps) {
       };
     },
 
-    /** Sends the current week's digest of an audience to the signed-in member of staff, at once. */
+    /** Sends the current week's digest so far (Monday 00:00 in the project's zone to now) to the signed-in member of staff, at once. */
     async sendTest(input: DigestTestInput, actor: Actor): Promise<{ messageId: string }> {
       if (!actor.user) throw new AppError("unauthenticated", "Sign in first.", 401);
       const project = await projects.get(input.projectSlug);
       const end = now();
-      const w = windowFor("weekly", end, project.timeZone);
-      const doc = await assemble({ project: await projectRow(project.id), frequency: "weekly", audience: input.audience, topics: null, windowStart: w.start, windowEnd: end, previous: null });
+      const start = currentPeriodStart("weekly", end, project.timeZone);
+      const doc = await assemble({ project: await projectRow(project.id), frequency: "weekly", audience: input.audience, topics: null, windowStart: start, windowEnd: end, soFar: true, previous: null });
       const r = await renderDigest(doc);
       const links = { webUrl: `${publicUrl}/office/digests`, preferencesUrl: `${publicUrl}/office/digests`, unsubscribeUrl: `${publicUrl}/office/digests` };
       const messageId = `<digest.test.${randomBytes(8).toString("hex")}@${host}>`;

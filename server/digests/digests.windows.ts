@@ -74,6 +74,11 @@ export function sendTimes(frequency: "weekly" | "monthly", at: Date, zone: strin
   return { due: of(local.startOf(frequency === "weekly" ? "week" : "month").minus(step).toJSDate(), zone), next: here };
 }
 
+/** The start of the ISO week or calendar month holding `at`, in the zone: where the period in progress began. */
+export function currentPeriodStart(frequency: "weekly" | "monthly", at: Date, zone: string): Date {
+  return DateTime.fromJSDate(at, { zone }).startOf(frequency === "weekly" ? "week" : "month").toJSDate();
+}
+
 /** The window a run at `at` covers. */
 export function windowFor(frequency: "weekly" | "monthly", at: Date, zone: string): DigestWindow {
   return frequency === "weekly" ? previousIsoWeek(at, zone) : previousMonth(at, zone);

@@ -2,12 +2,13 @@ import { Router } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { OutboxQuerySchema } from "#shared/schemas/outbox.ts";
 import { notFound, AppError } from "../core/app-error.ts";
-import { requireStaff } from "../core/auth.ts";
+import { requireRole } from "../core/auth.ts";
 import type { OutboxService } from "./mail.service.ts";
 
 export function outboxRouter(outbox: OutboxService, mailMode: "local" | "smtp"): Router {
   const r = Router();
-  r.use("/outbox", requireStaff(), (_req, _res, next) => {
+  // Administrators only: messages hold other people's links, and a colleague's reset link is their account.
+  r.use("/outbox", requireRole("admin"), (_req, _res, next) => {
     if (mailMode !== "local") return next(new AppError("not_local_mail", "The outbox exists only in local mail mode.", 404));
     next();
   });

@@ -1,6 +1,8 @@
 import nodemailer, { type Transporter, type TransportOptions } from "nodemailer";
 import type { Logger } from "../core/logger.ts";
 import type { Db } from "../db/knex.ts";
+import type { OutboxMessage } from "#shared/schemas/outbox.ts";
+import { maskHeaders, maskRawMessage, maskSecrets } from "./mail.mask.ts";
 import { findMessage, findRaw, listMessages } from "./mail.repository.ts";
 
 export interface OutgoingMail {
@@ -36,11 +38,23 @@ export function createMailer(opts: { smtpUrl: string; from: string; mode: "local
   };
 }
 
+/** How a stored message is shown: its single-use and signed links masked (the stored copy keeps them). */
+function masked(m: OutboxMessage): OutboxMessage {
+  return { ...m, text: maskSecrets(m.text), html: maskSecrets(m.html), headers: maskHeaders(m.headers) };
+}
+
+/** The outbox views. Every one masks secrets: the stored messages hold other people's reset and invitation links. */
 export function createOutboxService(db: Db) {
   return {
-    list: (f: { to?: string; limit: number }) => listMessages(db, f),
-    get: (id: number) => findMessage(db, id),
-    raw: (id: number) => findRaw(db, id),
+    list: async (f: { to?: string; limit: number }) => (await listMessages(db, f)).map(masked),
+    get: async (id: number) => {
+      const m = await findMessage(db, id);
+      return m ? masked(m) : null;
+    },
+    raw: async (id: number) => {
+      const raw = await findRaw(db, id);
+      return raw ? maskRawMessage(raw) : null;
+    },
   };
 }
 export type OutboxService = ReturnType<typeof createOutboxService>;

@@ -1,5 +1,5 @@
 import type { Logger } from "../core/logger.ts";
-import { makeDerivatives } from "./media.pipeline.ts";
+import { DerivativeLimitError, makeDerivatives } from "./media.pipeline.ts";
 import { variantKey, type MediaService } from "./media.service.ts";
 import type { MediaStorage, UploadArea } from "./media.storage.ts";
 
@@ -76,6 +76,11 @@ export function createMediaJobs(opts: MediaJobsOptions) {
       await media.queue.discardUnreferenced(earlier.filter((key) => !kept.has(key)));
       logger.info({ mediaId: job.mediaId, variants: planned.length, ms: Date.now() - started }, "media processed");
     } catch (err) {
+      if (err instanceof DerivativeLimitError) {
+        logger.warn({ mediaId: job.mediaId, reason: err.message }, "media cannot be processed");
+        await media.queue.fail(job, err.message, true).catch((e: unknown) => logger.error({ err: e }, "could not record the failure"));
+        return true;
+      }
       logger.error({ err, mediaId: job.mediaId, attempt: job.attempts }, "media processing failed");
       const reason = err instanceof Error ? err.message.split("\n")[0]! : String(err);
       await media.queue.fail(job, `Processing failed: ${reason}`, false).catch((e: unknown) => logger.error({ err: e }, "could not record the failure"));

@@ -100,6 +100,49 @@ export function planWidths(originalWidth: number, requested: readonly number[] =
   return kept;
 }
 
+/**
+ * The largest side each encoder writes, pixels. Source: sharp 0.35.5, src/common.cc
+ * `AssertImageTypeDimensions` ("Processed image is too large for the … format"): WebP 16,383
+ * (the WebP bitstream's 14-bit dimensions), HEIF/AVIF 16,384, JPEG 65,535 (16-bit in the SOF
+ * header); each measured here with this build (libvips 8.18.7, libheif 1.23.5, aom 3.15.1): one
+ * pixel more is refused.
+ */
+export const MAX_SIDE: Readonly<Record<DerivativeFormat, number>> = { webp: 16_383, avif: 16_384, jpeg: 65_535 };
+const FORMAT_NAMES: Record<DerivativeFormat, string> = { avif: "AVIF", webp: "WebP", jpeg: "JPEG" };
+
+/**
+ * Why the pipeline could not write every derivative of a photo displayed `width` × `height`
+ * (after orientation), or null when it can: each planned width in each format, and the WebP
+ * placeholder made from the smallest. Says which derivative, which side and which limit.
+ */
+export function derivativeLimitProblem(width: number, height: number, options: Pick<DerivativeOptions, "widths" | "formats"> = {}): string | null {
+  const formats = [...new Set(options.formats ?? DEFAULT_FORMATS)];
+  const sizes = planWidths(width, options.widths ?? DEFAULT_WIDTHS).map((w) => ({ w, h: scaledHeight(w, width, height) }));
+  const smallest = sizes[0] ?? { w: width, h: height };
+  const placeholderW = Math.min(PLACEHOLDER_WIDTH, smallest.w);
+  const checks = [
+    ...[...sizes].reverse().map((size) => ({ ...size, formats, what: `the ${size.w} px wide derivative` })),
+    { w: placeholderW, h: scaledHeight(placeholderW, smallest.w, smallest.h), formats: ["webp" as const], what: "the loading placeholder" },
+  ];
+  for (const c of checks) {
+    // The tightest limit first: it is the one to crop to.
+    const over = c.formats.filter((f) => c.w > MAX_SIDE[f] || c.h > MAX_SIDE[f]).sort((a, b) => MAX_SIDE[a] - MAX_SIDE[b]);
+    const tightest = over[0];
+    if (!tightest) continue;
+    const limit = MAX_SIDE[tightest];
+    const side = c.h > limit ? "height" : "width";
+    const named = over.map((f) => `${FORMAT_NAMES[f]} (at most ${MAX_SIDE[f].toLocaleString("en-GB")} px per side)`).join(" and ");
+    const advice = side === "height" ? `Crop it to at most ${Math.floor((limit * width) / c.w)} px tall at this width, or split it into several photos.` : "Crop it or split it into several photos.";
+    return `At ${width} × ${height} px, ${c.what} would be ${c.w} × ${c.h} px: its ${side} is over the limit of ${named}. ${advice}`;
+  }
+  return null;
+}
+
+/** A photo whose derivatives would not fit their formats: trying again cannot help. */
+export class DerivativeLimitError extends Error {
+  override name = "DerivativeLimitError";
+}
+
 interface RawLevel {
   data: Buffer;
   width: number;
@@ -134,6 +177,9 @@ export async function makeDerivatives(input: string | Buffer, options: Derivativ
   const swap = orientation >= 5 && orientation <= 8;
   const width = swap ? header.height : header.width;
   const height = swap ? header.width : header.height;
+  // The upload probe refuses these first; a job queued before that check fails once, for good.
+  const problem = derivativeLimitProblem(width, height, options);
+  if (problem) throw new DerivativeLimitError(problem);
   const widths = planWidths(width, options.widths ?? DEFAULT_WIDTHS).reverse();
 
   // The one decode: orient, convert to sRGB (through the embedded ICC profile, if any) and

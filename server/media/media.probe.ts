@@ -4,9 +4,10 @@ import { open, stat } from "node:fs/promises";
 import exifr from "exifr";
 import { fileTypeFromFile } from "file-type";
 import sharp, { type Metadata } from "sharp";
+import { derivativeLimitProblem } from "./media.pipeline.ts";
 
 /** Why an upload was refused; `status` is the HTTP status the upload route answers with. */
-export type ProbeRefusalCode = "empty" | "too_large" | "unsupported_type" | "too_many_pixels" | "corrupt";
+export type ProbeRefusalCode = "empty" | "too_large" | "unsupported_type" | "too_many_pixels" | "corrupt" | "derivative_too_large";
 
 export interface ProbeRefusal {
   ok: false;
@@ -67,7 +68,7 @@ export function canDecodeHeic(): boolean {
 }
 
 function refuse(code: ProbeRefusalCode, message: string): ProbeRefusal {
-  const status = ({ empty: 400, too_large: 413, too_many_pixels: 413, unsupported_type: 415, corrupt: 422 } as const)[code];
+  const status = ({ empty: 400, too_large: 413, too_many_pixels: 413, unsupported_type: 415, corrupt: 422, derivative_too_large: 422 } as const)[code];
   return { ok: false, code, status, message };
 }
 
@@ -114,6 +115,14 @@ export async function probeImage(filePath: string, options: ProbeOptions = {}): 
     );
   }
 
+  // Refused now, not three failed attempts later in the worker: every derivative must fit its format.
+  const orientation = header.orientation && header.orientation >= 1 && header.orientation <= 8 ? header.orientation : 1;
+  const swap = orientation >= 5;
+  const width = swap ? header.height : header.width;
+  const height = swap ? header.width : header.height;
+  const problem = derivativeLimitProblem(width, height);
+  if (problem) return refuse("derivative_too_large", problem);
+
   try {
     // A real decode of every pixel; shrink-on-load keeps it cheap for JPEG while still
     // reading the whole entropy-coded stream. failOn 'error' refuses truncated and damaged
@@ -126,20 +135,27 @@ export async function probeImage(filePath: string, options: ProbeOptions = {}): 
     return refuse("corrupt", `The image data is truncated or damaged (${reason(error)}).`);
   }
 
-  const orientation = header.orientation && header.orientation >= 1 && header.orientation <= 8 ? header.orientation : 1;
-  const swap = orientation >= 5;
   const exif = await readExif(header.exif);
   return {
     ok: true,
     mime: mime as AcceptedMime,
     format: header.format,
-    width: swap ? header.height : header.width,
-    height: swap ? header.width : header.height,
+    width,
+    height,
     orientation,
     takenAt: exif.takenAt,
     hasGps: exif.hasGps || xmpHasGps(header.xmp),
     sha256: await hashFile(filePath),
   };
+}
+
+/**
+ * Whether an image still carries a location the probe would see (EXIF GPS tags or XMP GPS):
+ * the check after an original's metadata was rewritten.
+ */
+export async function hasLocation(data: Buffer): Promise<boolean> {
+  const header = await sharp(data, { limitInputPixels: false }).metadata();
+  return (await readExif(header.exif)).hasGps || xmpHasGps(header.xmp);
 }
 
 /** EXIF tag numbers (EXIF 2.3 / CIPA DC-008; 0x9011 from EXIF 2.31). */

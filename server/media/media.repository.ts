@@ -295,6 +295,12 @@ export async function milestonesOfProject(q: Q, projectId: number): Promise<Arra
   return rows.map((r) => ({ id: Number(r.id), name: String(r.name) }));
 }
 
+/** Photos tagged with the milestone (the programme keeps such a milestone on record). */
+export async function mediaTaggedWithMilestone(q: Q, milestoneId: number): Promise<number[]> {
+  const rows = (await q("media_tags").where({ kind: "milestone", value: String(milestoneId) }).orderBy("media_id").select("media_id")) as Array<{ media_id: number }>;
+  return rows.map((r) => Number(r.media_id));
+}
+
 export async function existingMilestoneIds(q: Q, projectId: number, ids: readonly number[]): Promise<Set<number>> {
   if (ids.length === 0) return new Set();
   const rows = (await q("milestones").where({ project_id: projectId }).whereIn("id", [...ids]).select("id")) as Array<{ id: number }>;
@@ -530,6 +536,16 @@ export async function markMediaFailed(q: Q, mediaId: number, reason: string): Pr
 export async function requeueMedia(q: Q, mediaId: number): Promise<void> {
   await q("media_items").where({ id: mediaId }).update({ status: "processing", failure_reason: null, updated_at: q.raw("CURRENT_TIMESTAMP(3)") });
   await q("media_jobs").insert({ media_id: mediaId }).onConflict("media_id").ignore();
+}
+
+/** Every stored original of a project, for rewriting their metadata. */
+export async function listOriginals(q: Q, projectId: number): Promise<Array<{ id: number; originalKey: string; mime: string; bytes: number }>> {
+  const rows = (await q("media_items").where({ project_id: projectId }).orderBy("id").select("id", "original_key", "mime", "bytes")) as Array<Record<string, unknown>>;
+  return rows.map((r) => ({ id: Number(r.id), originalKey: String(r.original_key), mime: String(r.mime), bytes: Number(r.bytes) }));
+}
+
+export async function setOriginalBytes(q: Q, id: number, bytes: number): Promise<void> {
+  await q("media_items").where({ id }).update({ bytes, updated_at: q.raw("CURRENT_TIMESTAMP(3)") });
 }
 
 export async function countMediaOfProject(q: Q, projectId: number): Promise<number> {

@@ -1,4 +1,4 @@
-import { createHmac, randomBytes, timingSafeEqual } from "node:crypto";
+import { randomBytes } from "node:crypto";
 import type { Readable } from "node:stream";
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
@@ -29,14 +29,18 @@ import {
 import { SystemSchema } from "#shared/schemas/programme.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { AppError, notFound } from "../core/app-error.ts";
+import { createTokenSigner } from "../core/signed-token.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
-import { probeImage, type ProbedImage } from "./media.probe.ts";
+import { LocationNotRemovable, stripLocation } from "./media.metadata.ts";
+import { hasLocation, probeImage, type ProbedImage } from "./media.probe.ts";
 import {
   addTags,
   claimJob,
   countItemsWithOriginal,
+  listOriginals,
+  setOriginalBytes,
   countMediaOfProject,
   countVariantsWithKey,
   deleteJob,
@@ -56,6 +60,7 @@ import {
   lockJob,
   markMediaFailed,
   markMediaReady,
+  mediaTaggedWithMilestone,
   milestonesOfProject,
   removeTags,
   replaceTags,
@@ -106,18 +111,15 @@ export function variantUrl(key: string): string {
   return `/media/v/${key.replace(/^variants\//, "")}`;
 }
 
-/**
- * Signed derivative links (investor images in e-mail, which no session reaches). The key is derived
- * from TOKEN_SECRET under its own label, so no subscriber, web-copy or other link signed with that
- * secret can be presented as a media signature, nor the other way round.
+/*
+ * Signed derivative links (investor images in e-mail, which no session reaches) are signed by
+ * server/core/signed-token.ts under the `mediaLink` purpose: its own key, so no subscriber, web-copy
+ * or other link signed with TOKEN_SECRET can be presented as a media signature, nor the other way round.
  */
-const SIGNED_LINK_LABEL = "plumbline signed media link v1";
 /** A recipient's own cache may keep a signed image at most this long (and never past the link's expiry). */
 export const SIGNED_LINK_MAX_CACHE_SECONDS = 24 * 60 * 60;
 /** A signed link as it appears in text or HTML (`&` escaped or not); groups: name, exp, separator, sig. */
 const SIGNED_LINK_IN_TEXT = /\/media\/s\/([0-9a-f]{16}-\d{1,5}w\.(?:avif|webp|jpg))\?exp=(\d{1,12})(&amp;|&)sig=([A-Za-z0-9_-]{43})/g;
-
-const linkMac = (key: Buffer, name: string, exp: number) => createHmac("sha256", key).update(`${name}\n${exp}`).digest();
 
 function originalKey(sha256: string, mime: string): string {
   return `originals/${sha256.slice(0, 2)}/${sha256}.${ORIGINAL_EXTENSIONS[mime] ?? "bin"}`;
@@ -227,19 +229,20 @@ export function createMediaService(deps: {
   tokenSecret?: string;
 }) {
   const { db, storage, uploads, projects, limits } = deps;
-  const linkKey = deps.tokenSecret ? createHmac("sha256", deps.tokenSecret).update(SIGNED_LINK_LABEL).digest() : null;
+  const signer = deps.tokenSecret ? createTokenSigner(deps.tokenSecret) : null;
 
-  /** Whether `sig` is this service's signature of (name, exp); constant-time. */
+  /** Whether `sig` is this service's signature of (name, exp), whatever the time. */
   function isSignedBy(name: string, exp: number, sig: string | undefined): boolean {
-    if (!linkKey || !sig) return false;
-    const sent = Buffer.from(sig, "base64url");
-    const expected = linkMac(linkKey, name, exp);
-    return sent.length === expected.length && timingSafeEqual(sent, expected) && sent.toString("base64url") === sig;
+    return signer !== null && signer.verifyParts("mediaLink", [name], exp, sig, new Date(0)).ok;
+  }
+
+  function signatureOf(name: string, exp: number): string {
+    if (!signer) throw new Error("signed media links need TOKEN_SECRET");
+    return signer.signParts("mediaLink", [name], exp);
   }
 
   function signedPath(name: string, exp: number): string {
-    if (!linkKey) throw new Error("signed media links need TOKEN_SECRET");
-    return `/media/s/${name}?exp=${exp}&sig=${linkMac(linkKey, name, exp).toString("base64url")}`;
+    return `/media/s/${name}?exp=${exp}&sig=${signatureOf(name, exp)}`;
   }
   const queuedListeners = new Set<() => void>();
 
@@ -301,8 +304,35 @@ export function createMediaService(deps: {
     return n;
   }
 
+  /**
+   * The original's bytes with GPS, maker notes, XMP and IPTC removed and its image data untouched
+   * (media.metadata.ts), checked again with the probe's own reader; a file whose location cannot be
+   * removed is refused (422) rather than kept with it.
+   */
+  async function withoutLocation(data: Buffer, image: ProbedImage, name: string, index: number, total: number): Promise<Buffer> {
+    let message: string | null = null;
+    let bytes = data;
+    if (image.mime === "image/heic" || image.mime === "image/heif") {
+      // No lossless rewrite for HEIF here: one without a location is kept as sent, one with it refused.
+      if (image.hasGps) message = "This HEIC/HEIF photo carries its location, which this server cannot remove from the format; export it as JPEG and upload again.";
+    } else {
+      try {
+        bytes = stripLocation(data, image.mime);
+        if (await hasLocation(bytes)) message = "Its location could not be removed from the file.";
+      } catch (err) {
+        if (!(err instanceof LocationNotRemovable)) throw err;
+        message = `Its location could not be removed from the file (${err.message}).`;
+      }
+    }
+    if (message) throw refusal([{ index, name, code: "location_not_removable", status: 422, message }], total);
+    return bytes;
+  }
+
   const service = {
     limits,
+
+    /** Ids of the photos tagged with a milestone (the programme keeps such a milestone on record). */
+    taggedWithMilestone: (milestoneId: number) => mediaTaggedWithMilestone(db, milestoneId),
 
     /** Called whenever a job is queued in this process, so a local worker starts at once. */
     onQueued(listener: () => void): () => void {
@@ -353,10 +383,14 @@ export function createMediaService(deps: {
         }
 
         const stored: string[] = [];
+        const storedBytes = new Map<number, number>();
         try {
           for (const i of fresh) {
             const key = originalKey(images[i]!.sha256, images[i]!.mime);
-            await storage.putFile(key, files[i]!.path);
+            // The original is kept without its location (the contract: coordinates are never kept).
+            const bytes = await withoutLocation(await uploads.read(files[i]!), images[i]!, files[i]!.originalName, i, files.length);
+            await storage.put(key, bytes);
+            storedBytes.set(i, bytes.length);
             stored.push(key);
           }
           await db.transaction(async (trx) => {
@@ -368,7 +402,7 @@ export function createMediaService(deps: {
                 originalKey: originalKey(image.sha256, image.mime),
                 originalName: files[i]!.originalName,
                 mime: image.mime,
-                bytes: files[i]!.size,
+                bytes: storedBytes.get(i) ?? files[i]!.size,
                 width: image.width,
                 height: image.height,
                 takenAt: image.takenAt,
@@ -412,6 +446,33 @@ export function createMediaService(deps: {
     },
 
     get: (id: number) => getItem(id),
+
+    /**
+     * Rewrites the project's stored originals without their location (originals kept before
+     * location was removed at upload); idempotent: a clean original is left as it is. Returns
+     * how many were rewritten and the ids of any whose location could not be removed.
+     */
+    async removeLocationFromOriginals(projectId: number): Promise<{ rewritten: number; notRemovable: number[] }> {
+      let rewritten = 0;
+      const notRemovable: number[] = [];
+      for (const o of await listOriginals(db, projectId)) {
+        const data = await storage.get(o.originalKey);
+        if (!data) continue;
+        let clean: Buffer;
+        try {
+          clean = stripLocation(data, o.mime);
+        } catch (err) {
+          if (!(err instanceof LocationNotRemovable)) throw err;
+          if (await hasLocation(data)) notRemovable.push(o.id);
+          continue;
+        }
+        if (clean.equals(data)) continue;
+        await storage.put(o.originalKey, clean);
+        await setOriginalBytes(db, o.id, clean.length);
+        rewritten += 1;
+      }
+      return { rewritten, notRemovable };
+    },
 
     async list(query: MediaListQuery): Promise<MediaListResponse> {
       const { page, pageSize, project: slug, ...filters } = query;
@@ -540,8 +601,11 @@ export function createMediaService(deps: {
      * see; an authentic link past its expiry is refused with 410.
      */
     async readSignedVariant(name: string, link: SignedVariantQuery, now: Date = new Date()): Promise<(ReadableFile & { maxAgeSeconds: number }) | null> {
-      if (!VARIANT_NAME.test(name) || !isSignedBy(name, link.exp, link.sig)) return null;
-      if (link.exp * 1000 <= now.getTime()) throw new AppError("link_expired", "This image link has expired. Open the digest's web copy for a fresh one.", 410);
+      if (!VARIANT_NAME.test(name) || !signer) return null;
+      const checked = signer.verifyParts("mediaLink", [name], link.exp, link.sig, now);
+      // A forged link stays 404 whatever its expiry: the same answer as a hidden image.
+      if (!checked.ok && checked.reason !== "expired") return null;
+      if (!checked.ok) throw new AppError("link_expired", "This image link has expired. Open the digest's web copy for a fresh one.", 410);
       const file = await this.readVariant(name, "investor");
       const left = Math.floor(link.exp - now.getTime() / 1000);
       return file ? { ...file, maxAgeSeconds: Math.min(left, SIGNED_LINK_MAX_CACHE_SECONDS) } : null;
@@ -564,11 +628,11 @@ export function createMediaService(deps: {
      * `expiresAt`; anything else is left as it is. For copies kept longer than their links (the web copy).
      */
     refreshSignedUrls(text: string, expiresAt: Date): string {
-      if (!linkKey) return text;
+      if (!signer) return text;
       const exp = Math.ceil(expiresAt.getTime() / 1000);
       return text.replace(SIGNED_LINK_IN_TEXT, (whole, name: string, oldExp: string, sep: string, sig: string) => {
         if (!isSignedBy(name, Number(oldExp), sig)) return whole;
-        return `/media/s/${name}?exp=${exp}${sep}sig=${linkMac(linkKey, name, exp).toString("base64url")}`;
+        return `/media/s/${name}?exp=${exp}${sep}sig=${signatureOf(name, exp)}`;
       });
     },
 

@@ -164,6 +164,12 @@ export function createUploadArea(root: string) {
       return (files as Express.Multer.File[]).map((f) => ({ path: f.path, originalName: decodeName(f.originalname), size: f.size }));
     },
 
+    /** The bytes of a received file. */
+    async read(file: { path: string }): Promise<Buffer> {
+      if (path.dirname(path.resolve(file.path)) !== uploads) throw new RangeError(`Not an upload: ${file.path}`);
+      return readFile(file.path);
+    },
+
     /** Removes temporary files (after they were stored or refused); missing ones are fine. */
     async discard(files: ReadonlyArray<{ path: string }>): Promise<void> {
       await Promise.all(

@@ -379,6 +379,12 @@ export async function milestoneLinksOf(q: Q, postId: number): Promise<MilestoneL
   }));
 }
 
+/** Updates of any state that link the milestone, in their fields or by a block in the text (the programme asks before a delete). */
+export async function postsLinkingMilestone(q: Q, milestoneId: number): Promise<Array<{ id: number; title: string }>> {
+  const rows = await q("post_milestones as pm").join("posts as p", "p.id", "pm.post_id").where("pm.milestone_id", milestoneId).orderBy("p.id").select("p.id", "p.title");
+  return (rows as Array<{ id: number; title: string }>).map((r) => ({ id: Number(r.id), title: String(r.title) }));
+}
+
 /** Sets the post's links; links kept from before keep what they captured at publication. */
 export async function replaceMilestoneLinks(q: Q, postId: number, links: ReadonlyArray<{ milestoneId: number; explicit: boolean }>): Promise<void> {
   const rows = links.map((l, i) => ({ post_id: postId, milestone_id: l.milestoneId, sort_order: i, linked_explicitly: l.explicit }));

@@ -50,6 +50,7 @@ import {
   listRevisions,
   milestoneLinksOf,
   moveSlug,
+  postsLinkingMilestone,
   replaceMilestoneLinks,
   replacePostMedia,
   replaceTags,
@@ -533,6 +534,9 @@ export function createPostsService(deps: PostsDeps) {
 
     /** Public and investor posts published at or after `since`, oldest first (as-it-happens digests). */
     publishedSince: (since: Date) => listPublishedSince(db, since),
+
+    /** Updates of any state that link a milestone (the programme keeps such a milestone on record). */
+    linkingMilestone: (milestoneId: number) => postsLinkingMilestone(db, milestoneId),
 
     /** Every published public post's address (sitemap). */
     publicAddresses: () => listPublicPostAddresses(db),

@@ -4,7 +4,7 @@ import { StarterKit } from "@tiptap/starter-kit";
 import sanitizeHtml from "sanitize-html";
 import { DateTime } from "luxon";
 import type { MediaPicture, MilestoneSnapshot } from "#shared/schemas/posts.ts";
-import { HEADING_LEVELS, type RichTextDoc, type RichTextNode } from "#shared/schemas/rich-text.ts";
+import { cleanRichText, HEADING_LEVELS, type RichTextDoc, type RichTextNode } from "#shared/schemas/rich-text.ts";
 
 /**
  * Renders a post body (the editor's JSON, already validated by RichTextDocSchema) to the one
@@ -199,9 +199,12 @@ export function sanitizePostHtml(html: string): string {
   return sanitizeHtml(html, SANITIZE_OPTIONS);
 }
 
-/** Renders a validated document to sanitised HTML. */
+/**
+ * Renders a validated document to sanitised HTML. Bodies stored before control characters were
+ * removed on input are cleaned here too, so no page, feed or e-mail carries one.
+ */
 export function renderRichText(doc: RichTextDoc, ctx: RenderContext): string {
-  const raw = generateHTML(doc as never, buildExtensions(ctx));
+  const raw = generateHTML(cleanRichText(doc) as never, buildExtensions(ctx));
   return sanitizePostHtml(raw);
 }
 
@@ -253,7 +256,7 @@ export function plainTextOf(doc: RichTextDoc, ctx?: Partial<RenderContext>): str
         (n.content ?? []).forEach((child) => block(child, prefix));
     }
   };
-  (doc.content ?? []).forEach((n) => block(n, ""));
+  (cleanRichText(doc).content ?? []).forEach((n) => block(n, ""));
   return lines.join("\n");
 }
 

@@ -1,5 +1,6 @@
 import Papa from "papaparse";
 import { MILESTONE_CSV_COLUMNS, MilestoneCreateInputSchema, type MilestoneCreateInput } from "#shared/schemas/programme.ts";
+import { foldLines } from "#shared/schemas/text.ts";
 
 /**
  * Milestones as CSV (papaparse): export, and the first stage of import — reading the
@@ -112,6 +113,8 @@ function numberCell(cell: string | undefined): number | undefined {
   return Number(cell.trim());
 }
 
+const mapDefined = (cell: string | undefined, f: (s: string) => string) => (cell === undefined ? undefined : f(cell));
+
 function nullableCell(cell: string | undefined): string | null | undefined {
   if (cell === undefined) return undefined;
   const v = cell.trim();
@@ -185,9 +188,10 @@ export function parseMilestoneCsv(text: string): ParsedCsv {
       else reasons.push("id must be a whole number (or empty for a new milestone)");
     }
     const candidate = {
-      name: cell("name") ?? "",
-      phase: cell("phase") ?? "",
-      area: cell("area"),
+      // One-line columns: a line break a spreadsheet kept in the cell reads as a space.
+      name: foldLines(cell("name") ?? ""),
+      phase: foldLines(cell("phase") ?? ""),
+      area: mapDefined(cell("area"), foldLines),
       system: nullableCell(cell("system")) ?? undefined,
       description: cell("description"),
       weight: numberCell(cell("weight")),

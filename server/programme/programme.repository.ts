@@ -42,6 +42,14 @@ export interface MilestoneRecord {
   version: number;
   createdAt: Date;
   updatedAt: Date;
+  /** Set when the milestone was removed from the programme (it stays on record, out of the figures). */
+  removal: MilestoneRemovalRecord | null;
+}
+
+export interface MilestoneRemovalRecord {
+  at: Date;
+  by: string | null;
+  reason: string;
 }
 
 /** The stored fields of a milestone a write may set (camelCase; the phase by id). */
@@ -110,13 +118,15 @@ function toMilestone(r: Record<string, unknown>, dependsOn: number[]): Milestone
     version: Number(r.version),
     createdAt: r.created_at as Date,
     updatedAt: r.updated_at as Date,
+    removal: r.removed_at ? { at: r.removed_at as Date, by: (r.removed_by_name as string | null) ?? null, reason: String(r.removed_reason ?? "") } : null,
   };
 }
 
 function milestoneQuery(q: Q) {
   return q("milestones as m")
     .join("phases as p", "p.id", "m.phase_id")
-    .select("m.*", "p.name as phase_name", "p.sort_order as phase_order");
+    .leftJoin("users as ru", "ru.id", "m.removed_by_user_id")
+    .select("m.*", "p.name as phase_name", "p.sort_order as phase_order", "ru.name as removed_by_name");
 }
 
 /** Predecessor ids by milestone, of predecessors the viewer may see. */
@@ -143,11 +153,16 @@ export interface MilestoneFilter {
   audience?: Audience;
   system?: System;
   area?: string;
+  /** Milestones removed from the programme: left out (the default: the programme as it stands), included, or only they. */
+  removed?: "exclude" | "include" | "only";
 }
 
 /** The project's milestones the viewer may see, by phase order, then baseline finish, then id. */
 export async function listMilestones(q: Q, projectId: number, viewer: Viewer, filter: MilestoneFilter = {}): Promise<MilestoneRecord[]> {
   const query = visibleTo(milestoneQuery(q).where("m.project_id", projectId), "m.audience", viewer);
+  const removed = filter.removed ?? "exclude";
+  if (removed === "exclude") query.whereNull("m.removed_at");
+  else if (removed === "only") query.whereNotNull("m.removed_at");
   if (filter.audience) query.where("m.audience", filter.audience);
   if (filter.system) query.where("m.system", filter.system);
   if (filter.area !== undefined) query.where("m.area", filter.area);
@@ -162,11 +177,11 @@ export async function listMilestones(q: Q, projectId: number, viewer: Viewer, fi
 
 /** The areas named by the project's milestones that the viewer may see, distinct and in order (no empty area). */
 export async function listAreas(q: Q, projectId: number, viewer: Viewer): Promise<string[]> {
-  const rows = await visibleTo(q("milestones").where({ project_id: projectId }), "audience", viewer).whereNot("area", "").distinct("area").orderBy("area");
+  const rows = await visibleTo(q("milestones").where({ project_id: projectId }).whereNull("removed_at"), "audience", viewer).whereNot("area", "").distinct("area").orderBy("area");
   return rows.map((r: { area: string }) => r.area);
 }
 
-/** One milestone, when the viewer may see it; `forUpdate` locks the row for the rest of the transaction. */
+/** One milestone (removed or not), when the viewer may see it; `forUpdate` locks the row for the rest of the transaction. */
 export async function findMilestone(q: Q, id: number, viewer: Viewer, opts: { forUpdate?: boolean } = {}): Promise<MilestoneRecord | null> {
   const query = visibleTo(milestoneQuery(q).where("m.id", id), "m.audience", viewer).first();
   if (opts.forUpdate) query.forUpdate();
@@ -199,6 +214,31 @@ export async function updateMilestone(q: Q, id: number, version: number, fields:
 
 export async function deleteMilestone(q: Q, id: number): Promise<void> {
   await q("milestones").where({ id }).delete();
+}
+
+/** Takes the milestone out of the programme (or back in, with `removal` null); its version goes up by one. */
+export async function setRemoval(q: Q, id: number, version: number, removal: { at: Date; byUserId: number | null; reason: string } | null, at: Date): Promise<number> {
+  return q("milestones")
+    .where({ id, version })
+    .update({
+      removed_at: removal?.at ?? null,
+      removed_by_user_id: removal?.byUserId ?? null,
+      removed_reason: removal?.reason ?? null,
+      version: version + 1,
+      updated_at: at,
+    });
+}
+
+/** Numbers of the project's baseline versions whose snapshot holds the milestone. */
+export async function baselinesHolding(q: Q, projectId: number, milestoneId: number): Promise<number[]> {
+  const rows = (await q("baselines").where({ project_id: projectId }).orderBy("number").select("number", "snapshot")) as Array<{ number: number; snapshot: string }>;
+  return rows.filter((r) => (JSON.parse(String(r.snapshot)) as BaselineSnapshotEntry[]).some((e) => e.id === milestoneId)).map((r) => Number(r.number));
+}
+
+/** How many events were recorded after the milestone was entered (creation writes its own at `created_at`). */
+export async function countEventsSince(q: Q, milestoneId: number, since: Date): Promise<number> {
+  const r = await q("milestone_events").where({ milestone_id: milestoneId }).where("at", ">", since).count({ n: "*" }).first();
+  return Number(r?.n ?? 0);
 }
 
 /** Serialises programme writes of one project (dependency cycles, phase creation, baseline numbers). */
@@ -235,14 +275,14 @@ export async function replaceDependencies(q: Q, milestoneId: number, dependsOn: 
   }
 }
 
-/** Milestones that depend on this one. */
-export async function listDependants(q: Q, milestoneId: number): Promise<Array<{ id: number; name: string }>> {
+/** Milestones that depend on this one (`removed`: taken out of the programme, but keeping the link for a restore). */
+export async function listDependants(q: Q, milestoneId: number): Promise<Array<{ id: number; name: string; removed: boolean }>> {
   const rows = await q("milestone_dependencies as d")
     .join("milestones as m", "m.id", "d.milestone_id")
     .where("d.depends_on_id", milestoneId)
-    .select("m.id", "m.name")
+    .select("m.id", "m.name", "m.removed_at")
     .orderBy("m.id");
-  return (rows as Array<{ id: number; name: string }>).map((r) => ({ id: Number(r.id), name: String(r.name) }));
+  return (rows as Array<{ id: number; name: string; removed_at: Date | null }>).map((r) => ({ id: Number(r.id), name: String(r.name), removed: r.removed_at !== null }));
 }
 
 // Events

@@ -8,8 +8,10 @@ import {
   CurveQuerySchema,
   HealthQuerySchema,
   MilestoneCreateInputSchema,
+  MilestoneDeleteInputSchema,
   MilestoneListQuerySchema,
   MilestonePatchInputSchema,
+  MilestoneRemovalInputSchema,
   RangeQuerySchema,
   ShiftInputSchema,
 } from "#shared/schemas/programme.ts";
@@ -58,10 +60,23 @@ export function programmeRouter(programme: ProgrammeService): Router {
     const input = MilestonePatchInputSchema.parse(req.body);
     res.json(await programme.patch(id, input, actorOf(req)));
   });
+  // Only a milestone entered by mistake is deleted; one on record answers 409 `on_record` and is
+  // removed from the programme instead (POST …/remove, with a reason), keeping its history.
   r.delete("/milestones/:id", writers(), async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);
-    await programme.remove(id);
+    const input = MilestoneDeleteInputSchema.parse(req.body ?? {});
+    await programme.delete(id, input, actorOf(req));
     res.status(204).end();
+  });
+  r.post("/milestones/:id/remove", writers(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const input = MilestoneRemovalInputSchema.parse(req.body ?? {});
+    res.json(await programme.removeFromProgramme(id, input, actorOf(req)));
+  });
+  r.post("/milestones/:id/restore", writers(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const input = MilestoneRemovalInputSchema.parse(req.body ?? {});
+    res.json(await programme.restore(id, input, actorOf(req)));
   });
   r.get("/milestones/:id/events", async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);

@@ -13,6 +13,7 @@ import type {
   MilestoneEventRow,
   MilestoneMovesRow,
   MilestonePatchInput,
+  MilestoneRemovalInput,
   ShiftInput,
 } from "#shared/schemas/programme.ts";
 import { viewerOfRole } from "#shared/domain/audience.ts";
@@ -30,12 +31,15 @@ import {
   type ProgrammeHealth,
   type ProgrammeSettings,
 } from "#shared/domain/programme-health.ts";
+import { createAuditService, type AuditAction, type AuditService } from "../audit/audit.service.ts";
 import { AppError, notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import { dateInZone, endOfDateInZone, startOfDateInZone, type ProjectsService } from "../projects/projects.service.ts";
 import { milestonesToCsv, parseMilestoneCsv, type CsvMilestoneRow, type MilestoneCsvColumn } from "./programme.csv.ts";
 import {
+  baselinesHolding,
+  countEventsSince,
   deleteMilestone,
   findBaseline,
   findMilestone,
@@ -55,6 +59,7 @@ import {
   lockProject,
   maxBaselineNumber,
   replaceDependencies,
+  setRemoval,
   updateMilestone,
   upsertCostActual,
   type BaselineSnapshotEntry,
@@ -80,6 +85,16 @@ const TRACKED: ReadonlyArray<[MilestoneEventFieldName, keyof MilestoneFields]> =
   ["planned_start", "plannedStart"],
   ["weight", "weight"],
 ];
+
+/**
+ * Something outside the programme that links a milestone (an update, a photo's tag). Such a
+ * milestone is on record: it can be removed from the programme but not deleted.
+ */
+export interface MilestoneReference {
+  kind: "update" | "story" | "photo";
+  id: number;
+  label: string;
+}
 
 /** A curve of more points than this is a mistake in the query, not a chart. */
 const MAX_CURVE_POINTS = 2_000;
@@ -192,9 +207,62 @@ function cycleWords(cycle: readonly number[], nameOf: (id: number) => string): s
   return `${[...names, names[0]].join(" → ")}`;
 }
 
-export function createProgrammeService(deps: { db: Db; projects: ProjectsService }) {
+export function createProgrammeService(deps: {
+  db: Db;
+  projects: ProjectsService;
+  /** Every programme write leaves an audit entry; the seed, which writes through its own path, may leave it out. */
+  audit?: AuditService;
+  /**
+   * What else links a milestone (updates, photos). Those modules read the programme, so they
+   * are built after it and this is asked only when a milestone is to be deleted.
+   */
+  references?: (milestoneId: number) => Promise<MilestoneReference[]>;
+}) {
   const { db, projects } = deps;
+  const audit = deps.audit ?? createAuditService(db);
   const now = () => projects.now();
+
+  function record(
+    trx: Trx,
+    actor: Actor,
+    action: AuditAction,
+    target: { type: "milestone" | "project"; id: number; label: string },
+    detail: Record<string, unknown>,
+  ): Promise<void> {
+    return audit.record({ action, actor, target, detail }, trx);
+  }
+
+  /** Each changed field as { from, to }, for the audit entry of an edit. */
+  function changeDetail(before: MilestoneRecord, next: MilestoneFields, extra: { phase?: string; dependsOn?: number[] }): Record<string, { from: unknown; to: unknown }> {
+    const out: Record<string, { from: unknown; to: unknown }> = {};
+    const prev = fieldsOf(before);
+    for (const [key, to] of Object.entries(changedFields(prev, next))) {
+      if (key === "phaseId") continue;
+      out[key] = { from: prev[key as keyof MilestoneFields], to };
+    }
+    if (extra.phase !== undefined && extra.phase !== before.phase) out.phase = { from: before.phase, to: extra.phase };
+    if (extra.dependsOn !== undefined && !sameIds(extra.dependsOn, before.dependsOn)) out.dependsOn = { from: before.dependsOn, to: extra.dependsOn };
+    return out;
+  }
+
+  /**
+   * Why a milestone is on record and so may not be deleted, in words; empty when it was
+   * entered by mistake and nothing has seen it since: in no baseline, linked by nothing, and
+   * with no change of its dates, progress or audience recorded after it was entered.
+   */
+  async function onRecord(trx: Trx, m: MilestoneRecord): Promise<string[]> {
+    const reasons: string[] = [];
+    const versions = await baselinesHolding(trx, m.projectId, m.id);
+    if (versions.length > 0) reasons.push(`it is in baseline ${versions.map((n) => `v${n}`).join(", ")}`);
+    const refs = deps.references ? await deps.references(m.id) : [];
+    for (const kind of ["update", "story", "photo"] as const) {
+      const of = refs.filter((r) => r.kind === kind);
+      if (of.length > 0) reasons.push(`${of.length === 1 ? `a ${kind} links it` : `${of.length} ${kind === "story" ? "stories" : `${kind}s`} link it`} (${of.map((r) => r.label).join(", ")})`);
+    }
+    if (m.removal) reasons.push("it has been removed from the programme");
+    else if ((await countEventsSince(trx, m.id, m.createdAt)) > 0) reasons.push("its history records changes since it was entered");
+    return reasons;
+  }
 
   interface View {
     project: Project;
@@ -229,6 +297,7 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
       slipWorkingDays: slip.slipWorkingDays,
       version: m.version,
       updatedAt: m.updatedAt.toISOString(),
+      removal: m.removal ? { at: m.removal.at.toISOString(), by: m.removal.by, reason: m.removal.reason } : null,
     };
   }
 
@@ -292,6 +361,28 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
     }
   }
 
+  function removedError(m: MilestoneRecord, project: Project): AppError {
+    const on = m.removal ? ` on ${dateInZone(m.removal.at, project.timeZone)}` : "";
+    return new AppError("milestone_removed", `${m.name} was removed from the programme${on}. Restore it before changing it.`, 409);
+  }
+
+  /**
+   * 422 naming the milestones that depend on this one: `all` for a delete (even a removed
+   * dependant keeps its link, for a restore), `in programme` for a removal.
+   */
+  async function refuseWhileDepended(trx: Trx, m: MilestoneRecord, which: "all" | "in programme"): Promise<void> {
+    const dependants = (await listDependants(trx, m.id)).filter((d) => which === "all" || !d.removed);
+    if (dependants.length === 0) return;
+    const names = dependants.map((d) => (d.removed ? `${d.name} (removed)` : d.name)).join(", ");
+    throw new AppError(
+      "has_dependants",
+      `${names} ${dependants.length === 1 ? "depends" : "depend"} on ${m.name}; remove ${dependants.length === 1 ? "that dependency" : "those dependencies"} first.`,
+      422,
+      { dependants: names },
+      { dependants: dependants.map((d) => ({ id: d.id, name: d.name })) },
+    );
+  }
+
   async function writeUpdate(
     trx: Trx,
     before: MilestoneRecord,
@@ -322,7 +413,7 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
   return {
     async list(slug: string, query: MilestoneFilter & { at?: string; status?: Milestone["status"] }, actor: Actor): Promise<Milestone[]> {
       const view = await listView(slug, actor, query.at);
-      const records = await listMilestones(db, view.project.id, view.viewer, { audience: query.audience, system: query.system, area: query.area });
+      const records = await listMilestones(db, view.project.id, view.viewer, { audience: query.audience, system: query.system, area: query.area, removed: query.removed });
       const list = records.map((m) => present(m, view));
       return query.status ? list.filter((m) => m.status === query.status) : list;
     },
@@ -362,6 +453,8 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
         const id = await insertMilestone(trx, project.id, next, at);
         await replaceDependencies(trx, id, dependsOn);
         await insertEvents(trx, eventsFor(null, next, { milestoneId: id, projectId: project.id, at, byUserId: actor.user?.id ?? null, note: null }));
+        const { phaseId: _phaseId, ...values } = next;
+        await record(trx, actor, "milestone_created", { type: "milestone", id, label: next.name }, { project: project.slug, ...values, phase: input.phase, dependsOn });
         return present((await findMilestone(trx, id, "staff"))!, staffView(project));
       });
     },
@@ -372,6 +465,7 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
         await lockProject(trx, project.id);
         const before = await findMilestone(trx, id, "staff", { forUpdate: true });
         if (!before) throw notFound("That milestone");
+        if (before.removal) throw removedError(before, project);
         if (before.version !== input.version) throw await conflictWith(trx, id, project);
 
         const pick = <K extends keyof MilestonePatchInput & keyof MilestoneFields>(key: K): MilestoneFields[K] =>
@@ -405,33 +499,87 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
         if (input.phase !== undefined && input.phase !== before.phase) next.phaseId = await findOrCreatePhase(trx, project.id, input.phase);
 
         const at = now();
+        const changes = changeDetail(before, next, { phase: input.phase, dependsOn });
         const written = await writeUpdate(trx, before, next, { at, byUserId: actor.user?.id ?? null, note: input.note ?? null }, project);
         if (dependenciesChange) {
           if (!written) await touch(trx, before, at, project);
           await replaceDependencies(trx, id, dependsOn);
         }
+        if (written || dependenciesChange) {
+          await record(trx, actor, "milestone_updated", { type: "milestone", id, label: next.name }, { project: project.slug, changes, note: input.note ?? null });
+        }
         return present((await findMilestone(trx, id, "staff"))!, staffView(project));
       });
     },
 
-    async remove(id: number): Promise<void> {
+    /**
+     * Deletes a milestone entered by mistake: only while nothing has it on record (see
+     * `onRecord`); otherwise 409 `on_record`, and the caller removes it from the programme.
+     */
+    async delete(id: number, input: { reason?: string }, actor: Actor): Promise<void> {
       const project = await projectOfMilestone(id);
       await db.transaction(async (trx) => {
         await lockProject(trx, project.id);
         const m = await findMilestone(trx, id, "staff", { forUpdate: true });
         if (!m) throw notFound("That milestone");
-        const dependants = await listDependants(trx, id);
-        if (dependants.length > 0) {
-          const names = dependants.map((d) => d.name).join(", ");
+        await refuseWhileDepended(trx, m, "all");
+        const reasons = await onRecord(trx, m);
+        if (reasons.length > 0) {
           throw new AppError(
-            "has_dependants",
-            `${names} ${dependants.length === 1 ? "depends" : "depend"} on ${m.name}; remove ${dependants.length === 1 ? "that dependency" : "those dependencies"} first.`,
-            422,
-            { dependants: names },
-            { dependants },
+            "on_record",
+            `${m.name} is on record (${reasons.join("; ")}), so it cannot be deleted. Remove it from the programme instead, with a reason: it leaves every figure and its history stays.`,
+            409,
+            undefined,
+            { onRecord: reasons },
           );
         }
+        const { phaseId: _phaseId, ...values } = fieldsOf(m);
+        await record(trx, actor, "milestone_deleted", { type: "milestone", id, label: m.name }, { project: project.slug, reason: input.reason ?? null, milestone: { ...values, phase: m.phase, dependsOn: m.dependsOn } });
         await deleteMilestone(trx, id);
+      });
+    },
+
+    /**
+     * Takes a milestone out of the programme with a reason: it keeps its row and history (a
+     * `removed` event carries the reason), leaves health, curve, counts and forecast completion,
+     * and "what moved" and digests report it to the audiences that may see it.
+     */
+    async removeFromProgramme(id: number, input: MilestoneRemovalInput, actor: Actor): Promise<Milestone> {
+      const project = await projectOfMilestone(id);
+      return db.transaction(async (trx) => {
+        await lockProject(trx, project.id);
+        const m = await findMilestone(trx, id, "staff", { forUpdate: true });
+        if (!m) throw notFound("That milestone");
+        if (m.removal) throw removedError(m, project);
+        await refuseWhileDepended(trx, m, "in programme");
+        const at = now();
+        const byUserId = actor.user?.id ?? null;
+        if ((await setRemoval(trx, id, m.version, { at, byUserId, reason: input.reason }, at)) === 0) throw await conflictWith(trx, id, project);
+        await insertEvents(trx, [{ milestoneId: id, projectId: project.id, field: "removed", from: "false", to: "true", at, byUserId, note: input.reason, baselineVersion: null }]);
+        await record(trx, actor, "milestone_removed", { type: "milestone", id, label: m.name }, { project: project.slug, reason: input.reason });
+        return present((await findMilestone(trx, id, "staff"))!, staffView(project));
+      });
+    },
+
+    /** Puts a removed milestone back into the programme, with a reason (a `removed` event "true" → "false"). */
+    async restore(id: number, input: MilestoneRemovalInput, actor: Actor): Promise<Milestone> {
+      const project = await projectOfMilestone(id);
+      return db.transaction(async (trx) => {
+        await lockProject(trx, project.id);
+        const m = await findMilestone(trx, id, "staff", { forUpdate: true });
+        if (!m) throw notFound("That milestone");
+        if (!m.removal) throw new AppError("not_removed", `${m.name} is in the programme; there is nothing to restore.`, 409);
+        const removedPredecessors = (await listMilestones(trx, project.id, "staff", { removed: "only" })).filter((x) => m.dependsOn.includes(x.id));
+        if (removedPredecessors.length > 0) {
+          const names = removedPredecessors.map((x) => x.name).join(", ");
+          throw invalid({ dependsOn: `names ${removedPredecessors.length === 1 ? "a milestone" : "milestones"} removed from the programme (${names}); restore ${removedPredecessors.length === 1 ? "it" : "them"} first` }, "depends_on_removed");
+        }
+        const at = now();
+        const byUserId = actor.user?.id ?? null;
+        if ((await setRemoval(trx, id, m.version, null, at)) === 0) throw await conflictWith(trx, id, project);
+        await insertEvents(trx, [{ milestoneId: id, projectId: project.id, field: "removed", from: "true", to: "false", at, byUserId, note: input.reason, baselineVersion: null }]);
+        await record(trx, actor, "milestone_restored", { type: "milestone", id, label: m.name }, { project: project.slug, reason: input.reason, removedAt: m.removal.at.toISOString(), removedReason: m.removal.reason });
+        return present((await findMilestone(trx, id, "staff"))!, staffView(project));
       });
     },
 
@@ -456,6 +604,11 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
           const next = { ...fieldsOf(m), forecastFinish: addWorkingDays(from, input.workingDays, settings.calendar) };
           await writeUpdate(trx, m, next, { at, byUserId: actor.user?.id ?? null, note: input.note ?? null }, project);
         }
+        await record(trx, actor, "milestones_shifted", { type: "project", id: project.id, label: project.slug }, {
+          workingDays: input.workingDays,
+          note: input.note ?? null,
+          milestones: ids.map((i) => ({ id: i, name: byId.get(i)!.name, from: byId.get(i)!.forecastFinish ?? byId.get(i)!.baselineFinish })),
+        });
         const view = staffView(project);
         return (await listMilestones(trx, project.id, "staff")).filter((m) => ids.includes(m.id)).map((m) => present(m, view));
       });
@@ -471,7 +624,8 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
       const viewer = viewerOf(actor);
       const m = await findMilestone(db, id, viewer);
       if (!m) throw notFound("That milestone");
-      const visible = await listMilestones(db, m.projectId, viewer);
+      // A removed milestone's history stays readable, and so does what drove it.
+      const visible = await listMilestones(db, m.projectId, viewer, { removed: m.removal ? "include" : "exclude" });
       return drivingChain(id, visible.map(toInput));
     },
 
@@ -614,9 +768,18 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
           budget: m.budget,
         }));
         await insertBaseline(trx, { projectId: project.id, number, reason: input.reason, byUserId: actor.user?.id ?? null, at, snapshot });
+        let moved = 0;
         for (const { m, next } of plan) {
-          await writeUpdate(trx, m, next, { at, byUserId: actor.user?.id ?? null, note: input.reason, baselineVersion: number }, project);
+          if (await writeUpdate(trx, m, next, { at, byUserId: actor.user?.id ?? null, note: input.reason, baselineVersion: number }, project)) moved += 1;
         }
+        await record(trx, actor, "programme_rebaselined", { type: "project", id: project.id, label: project.slug }, {
+          number,
+          reason: input.reason,
+          adoptForecasts: input.adoptForecasts,
+          overrides: input.overrides.length,
+          milestones: snapshot.length,
+          changed: moved,
+        });
         return { number, reason: input.reason, by: actor.user?.name ?? null, at: at.toISOString(), milestoneCount: snapshot.length };
       });
     },
@@ -628,7 +791,12 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
 
     async addCostActual(slug: string, input: { periodEnd: string; amount: number }, actor: Actor): Promise<CostActualRow> {
       const project = await projects.get(slug);
-      await upsertCostActual(db, project.id, { ...input, byUserId: actor.user?.id ?? null, at: now() });
+      await db.transaction(async (trx) => {
+        await lockProject(trx, project.id);
+        const previous = (await listCostActuals(trx, project.id)).find((c) => c.periodEnd === input.periodEnd)?.amount ?? null;
+        await upsertCostActual(trx, project.id, { ...input, byUserId: actor.user?.id ?? null, at: now() });
+        await record(trx, actor, "cost_actual_recorded", { type: "project", id: project.id, label: project.slug }, { periodEnd: input.periodEnd, amount: input.amount, previous, currency: project.currency });
+      });
       return { periodEnd: input.periodEnd, amount: input.amount };
     },
 
@@ -649,6 +817,7 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
         const ctx = { at, byUserId: actor.user?.id ?? null, note: "Imported from a CSV file" };
         const idOfKey = new Map<number, number>(existing.map((m) => [m.id, m.id]));
         const result: CsvImportResult = { created: 0, updated: 0, unchanged: 0 };
+        const touched: Array<{ id: number; name: string; change: "created" | "updated" }> = [];
         for (const p of plans) {
           const phaseId = await findOrCreatePhase(trx, project.id, p.phase);
           const next = { ...p.next, phaseId };
@@ -657,16 +826,22 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
             idOfKey.set(p.key, id);
             await insertEvents(trx, eventsFor(null, next, { ...ctx, milestoneId: id, projectId: project.id }));
             result.created += 1;
+            touched.push({ id, name: next.name, change: "created" });
             continue;
           }
           const written = await writeUpdate(trx, p.target, next, ctx, project);
           if (!written && p.dependenciesChange) await touch(trx, p.target, at, project);
-          if (written || p.dependenciesChange) result.updated += 1;
-          else result.unchanged += 1;
+          if (written || p.dependenciesChange) {
+            result.updated += 1;
+            touched.push({ id: p.target.id, name: next.name, change: "updated" });
+          } else result.unchanged += 1;
         }
         for (const p of plans) {
           if (p.dependsOn === null || (p.target !== null && !p.dependenciesChange)) continue;
           await replaceDependencies(trx, idOfKey.get(p.key)!, uniqueSorted(p.dependsOn.map((k) => idOfKey.get(k)!)));
+        }
+        if (touched.length > 0) {
+          await record(trx, actor, "programme_imported", { type: "project", id: project.id, label: project.slug }, { ...result, rows: parsed.rows.length, milestones: touched });
         }
         return result;
       });
@@ -733,6 +908,7 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
     for (const p of parsed.problems) add(p.line, p.reason);
 
     const byId = new Map(existing.map((m) => [m.id, m]));
+    const removedIds = new Set((await listMilestones(trx, project.id, "staff", { removed: "only" })).map((m) => m.id));
     const byName = new Map<string, MilestoneRecord[]>();
     for (const m of existing) byName.set(m.name, [...(byName.get(m.name) ?? []), m]);
 
@@ -743,7 +919,12 @@ export function createProgrammeService(deps: { db: Db; projects: ProjectsService
       if (row.id !== null) {
         target = byId.get(row.id) ?? null;
         if (!target) {
-          add(row.line, `id ${row.id} is not a milestone of this project (leave id empty to add a milestone)`);
+          add(
+            row.line,
+            removedIds.has(row.id)
+              ? `id ${row.id} was removed from the programme (restore it first, or leave id empty to add a milestone)`
+              : `id ${row.id} is not a milestone of this project (leave id empty to add a milestone)`,
+          );
           continue;
         }
       } else {

@@ -57,6 +57,7 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
   // Illustrative photos (after the programme, so they can be tagged with its milestones).
   const photos = await seedMedia(db, Number(project.id));
   if (photos.created > 0) created.push(`${photos.created} illustrative photos in ${(photos.ms / 1000).toFixed(1)} s`);
+  if (photos.rewritten > 0) created.push(`${photos.rewritten} photo originals rewritten without their location`);
   // Updates and the photo story (after the photos and the programme they show).
   created.push(...(await seedPosts(db, DEMO_PROJECT_SLUG)).created);
   created.push(...(await seedSubscribers(db, DEMO_PROJECT_SLUG)).created);

@@ -281,7 +281,7 @@ export function seedMediaDir(db: Knex): string {
  * Seeds the demo photos into a project that has none (idempotent: a project with any
  * media is left alone). Returns how many were made and how long it took, milliseconds.
  */
-export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: string; today?: DateTime } = {}): Promise<{ created: number; ms: number }> {
+export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: string; today?: DateTime } = {}): Promise<{ created: number; ms: number; rewritten: number; notRemovable: number[] }> {
   const started = Date.now();
   const mediaDir = opts.mediaDir ?? seedMediaDir(db);
   const storage = createLocalDiskStorage(mediaDir);
@@ -289,7 +289,11 @@ export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: 
   const projects = createProjectsService(db);
   const limits = { maxFileBytes: 40 * 1024 * 1024, maxFiles: 20, maxPixels: 100_000_000 };
   const media = createMediaService({ db, storage, uploads, projects, limits });
-  if ((await media.countOfProject(projectId)) > 0) return { created: 0, ms: 0 };
+  if ((await media.countOfProject(projectId)) > 0) {
+    // Originals stored before location was removed at upload lose it now (issue 9).
+    const { rewritten, notRemovable } = await media.removeLocationFromOriginals(projectId);
+    return { created: 0, ms: Date.now() - started, rewritten, notRemovable };
+  }
   const project = await projects.getById(projectId);
   const jobs = createMediaJobs({ media, storage, uploads, logger: pino({ level: "silent" }), workers: 0, maxPixels: limits.maxPixels });
 
@@ -324,5 +328,5 @@ export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: 
     await media.update(id, patch, marketing);
     if (p.review) await media.review(id, { sensitivity: p.review }, lead);
   }
-  return { created: ids.length, ms: Date.now() - started };
+  return { created: ids.length, ms: Date.now() - started, rewritten: 0, notRemovable: [] };
 }

@@ -1,9 +1,9 @@
-import { Feed } from "feed";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import type { PostsService } from "../posts/posts.service.ts";
 import type { StoriesService } from "../stories/stories.service.ts";
 import { absolutizeHtml } from "../posts/rich-text.ts";
+import { element, textElement, xmlAttr, xmlText } from "./xml.ts";
 
 /**
  * The public site's documents that are not the app: the Atom feed of each project (RFC 4287),
@@ -11,8 +11,8 @@ import { absolutizeHtml } from "../posts/rich-text.ts";
  * reads published public content only, whoever asks.
  */
 
-const escapeXml = (s: string) => s.replace(/[<>&"']/g, (c) => ({ "<": "&lt;", ">": "&gt;", "&": "&amp;", '"': "&quot;", "'": "&apos;" })[c]!);
-export const escapeHtml = escapeXml;
+/** For the HTML head: escapes quotes too, so it serves attribute values and text alike. */
+export const escapeHtml = xmlAttr;
 
 /** The tags a link preview reads, already escaped, to put in the shell's head. */
 export interface PageHead {
@@ -58,38 +58,50 @@ export function createSiteService(deps: { projects: ProjectsService; posts: Post
   }
 
   return {
-    /** The project's Atom feed of published public updates, newest first. */
+    /**
+     * The project's Atom feed (RFC 4287) of published public updates, newest first. Written here
+     * rather than by a feed library, so that every text and attribute is escaped (see xml.ts).
+     * Titles and summaries are plain text (`type="text"`): a "<" typed in a title is a
+     * character, not markup. The content is the post's sanitised HTML, escaped (`type="html"`).
+     */
     async feed(slug: string): Promise<string> {
       const { project, updated, posts: list } = await posts.feedOf(slug);
       const page = `${base}/projects/${project.slug}`;
-      const feed = new Feed({
-        id: `${page}/updates`,
-        title: `${project.name}: progress updates`,
-        description: project.description,
-        link: `${page}/updates`,
-        language: "en",
-        // RFC 4287 §4.2.15: the last time the feed changed in a significant way.
-        updated: updated ?? new Date(0),
-        generator: "Plumbline",
-        feedLinks: { atom: `${base}/feed/${project.slug}.atom` },
-        author: { name: project.operatorName },
-        copyright: `© ${project.operatorName}`,
-      });
-      for (const p of list) {
-        feed.addItem({
+      const block = (name: string, children: string[]) => [`  <${name}>`, ...children.filter(Boolean).map((c) => `    ${c}`), `  </${name}>`].join("\n");
+      const entries = list.map((p) =>
+        block("entry", [
           // A tag URI (RFC 4151) by post id: an entry keeps its identity when its address changes.
-          id: `tag:${host},2026:post-${p.id}`,
-          title: p.title,
-          link: `${page}/updates/${p.slug}`,
-          date: p.updatedAt,
-          published: p.publishedAt ?? undefined,
-          description: p.summary || undefined,
-          content: absolutizeHtml(p.html, base),
-          author: [{ name: p.authorName }],
-          category: p.tags.map((t) => ({ name: t.value, term: t.value })),
-        });
-      }
-      return feed.atom1();
+          textElement("id", `tag:${host},2026:post-${p.id}`),
+          textElement("title", p.title, { type: "text" }),
+          element("link", { rel: "alternate", type: "text/html", href: `${page}/updates/${p.slug}` }),
+          textElement("updated", p.updatedAt.toISOString()),
+          p.publishedAt ? textElement("published", p.publishedAt.toISOString()) : "",
+          element("author", {}, textElement("name", p.authorName)),
+          ...p.tags.map((t) => element("category", { term: t.value, label: t.value })),
+          p.summary ? textElement("summary", p.summary, { type: "text" }) : "",
+          textElement("content", absolutizeHtml(p.html, base), { type: "html" }),
+        ]),
+      );
+      const head = [
+        textElement("id", `${page}/updates`),
+        textElement("title", `${project.name}: progress updates`, { type: "text" }),
+        project.description ? textElement("subtitle", project.description, { type: "text" }) : "",
+        // RFC 4287 §4.2.15: the last time the feed changed in a significant way.
+        textElement("updated", (updated ?? new Date(0)).toISOString()),
+        element("link", { rel: "alternate", type: "text/html", href: `${page}/updates` }),
+        element("link", { rel: "self", type: "application/atom+xml", href: `${base}/feed/${project.slug}.atom` }),
+        element("author", {}, textElement("name", project.operatorName)),
+        textElement("generator", "Plumbline"),
+        textElement("rights", `© ${project.operatorName}`, { type: "text" }),
+      ];
+      return [
+        '<?xml version="1.0" encoding="utf-8"?>',
+        `<feed xmlns="http://www.w3.org/2005/Atom" xml:lang="en">`,
+        ...head.filter(Boolean).map((line) => `  ${line}`),
+        ...entries,
+        "</feed>",
+        "",
+      ].join("\n");
     },
 
     /** Every public page: the home page, each project's pages, published public updates and stories. */
@@ -108,7 +120,7 @@ export function createSiteService(deps: { projects: ProjectsService; posts: Post
         const project = slugOf.get(a.projectId);
         if (project) urls.push({ loc: `${base}/projects/${project}/stories/${a.slug}`, lastmod: a.updatedAt });
       }
-      const body = urls.map((u) => `  <url><loc>${escapeXml(u.loc)}</loc>${u.lastmod ? `<lastmod>${u.lastmod.toISOString()}</lastmod>` : ""}</url>`).join("\n");
+      const body = urls.map((u) => `  <url><loc>${xmlText(u.loc)}</loc>${u.lastmod ? `<lastmod>${u.lastmod.toISOString()}</lastmod>` : ""}</url>`).join("\n");
       return `<?xml version="1.0" encoding="UTF-8"?>\n<urlset xmlns="http://www.sitemaps.org/schemas/sitemap/0.9">\n${body}\n</urlset>\n`;
     },
 

@@ -13,6 +13,7 @@ import {
   type Topics,
 } from "#shared/schemas/subscribers.ts";
 import { SystemSchema, type System } from "#shared/schemas/programme.ts";
+import { foldLines, plainText } from "#shared/schemas/text.ts";
 import type { SubscriberRecord } from "./subscribers.repository.ts";
 import { normaliseTopics, parseTopicRef } from "./subscribers.topics.ts";
 
@@ -34,15 +35,18 @@ export interface RowProblem {
 
 const REQUIRED = ["email", "name", "interest", "frequency"] as const;
 
+/** A one-line cell: a line break a spreadsheet kept in the cell reads as a space; other control characters are refused. */
+const cell = <T extends z.ZodType<unknown, string>>(schema: T) => z.string().transform(foldLines).pipe(schema);
+
 const RowSchema = z.strictObject({
   email: EmailSchema,
-  name: z.string().trim().min(1, "is required").max(200, "must be at most 200 characters"),
-  organisation: z.string().trim().max(200, "must be at most 200 characters").optional(),
+  name: cell(plainText().min(1, "is required").max(200, "must be at most 200 characters")),
+  organisation: cell(plainText().max(200, "must be at most 200 characters")).optional(),
   interest: z.string().trim().toLowerCase().pipe(InterestSchema),
   frequency: z.string().trim().toLowerCase().pipe(FrequencySchema),
-  topics: z.string().trim().max(2000).optional(),
-  consent_at: z.string().trim().optional(),
-  consent_source: z.string().trim().max(200, "must be at most 200 characters").optional(),
+  topics: cell(plainText().max(2000)).optional(),
+  consent_at: cell(plainText()).optional(),
+  consent_source: cell(plainText().max(200, "must be at most 200 characters")).optional(),
 });
 
 function describe(err: z.ZodError): string {

@@ -1,27 +1,18 @@
-import { createHash, createHmac, randomBytes, timingSafeEqual } from "node:crypto";
+import { createHash, randomBytes } from "node:crypto";
 import { AppError } from "../core/app-error.ts";
+import { createTokenSigner, verifyLegacyToken, type TokenPurpose as SignedPurpose } from "../core/signed-token.ts";
 
 /**
  * What a signed link lets its holder do. Each purpose has its own token, so a link in
  * a digest footer (unsubscribe) cannot be used to confirm or to read preferences.
  */
 export type TokenPurpose = "confirm" | "preferences" | "unsubscribe";
-const CODE: Record<TokenPurpose, string> = { confirm: "c", preferences: "p", unsubscribe: "u" };
+/** The purpose codes inside the body of a link signed before decision 016. */
+const LEGACY_CODE: Record<TokenPurpose, string> = { confirm: "c", preferences: "p", unsubscribe: "u" };
 
 export const CONFIRM_TTL_MS = 7 * 24 * 60 * 60 * 1000;
 /** Every e-mail carries fresh preference and unsubscribe links; a year covers an old one kept in an inbox. */
 export const LINK_TTL_MS = 365 * 24 * 60 * 60 * 1000;
-
-interface Payload {
-  /** subscriber id */
-  s: number;
-  /** purpose code */
-  p: string;
-  /** expiry, Unix seconds */
-  e: number;
-  /** confirmation nonce (single use) */
-  n?: string;
-}
 
 export interface VerifiedToken {
   subscriberId: number;
@@ -29,43 +20,40 @@ export interface VerifiedToken {
   nonce: string | null;
 }
 
-const DOMAIN = "plumbline-subscriber-link:v1.";
+const SIGNED_AS: Record<TokenPurpose, SignedPurpose> = { confirm: "subscriptionConfirm", preferences: "subscriptionPreferences", unsubscribe: "unsubscribe" };
 
-function mac(secret: string, body: string): Buffer {
-  return createHmac("sha256", secret).update(DOMAIN + body).digest();
+/** Claims of a subscriber link: `s` the subscriber id, `n` the confirmation's single-use nonce. */
+function subscriberClaims(c: Record<string, unknown>): { s: number; n?: string } | null {
+  if (!Number.isSafeInteger(c.s) || (c.s as number) <= 0) return null;
+  if (c.n !== undefined && (typeof c.n !== "string" || c.n.length === 0)) return null;
+  return c.n === undefined ? { s: c.s as number } : { s: c.s as number, n: c.n as string };
 }
 
 /**
- * A link token: base64url(JSON payload) "." base64url(HMAC-SHA256). It names the
- * subscriber and the purpose and carries its own expiry, so it needs no table.
+ * A link token for one subscriber and one purpose, with its own expiry, so it needs no
+ * table (server/core/signed-token.ts: its own key per purpose, canonical spelling only).
  */
 export function signToken(secret: string, p: { subscriberId: number; purpose: TokenPurpose; expiresAt: Date; nonce?: string | null }): string {
-  const payload: Payload = { s: p.subscriberId, p: CODE[p.purpose], e: Math.floor(p.expiresAt.getTime() / 1000) };
-  if (p.nonce) payload.n = p.nonce;
-  const body = Buffer.from(JSON.stringify(payload)).toString("base64url");
-  return `${body}.${mac(secret, body).toString("base64url")}`;
+  return createTokenSigner(secret).sign(SIGNED_AS[p.purpose], p.nonce ? { s: p.subscriberId, n: p.nonce } : { s: p.subscriberId }, p.expiresAt);
 }
 
 const invalid = () => new AppError("token_invalid", "This link is not valid. Use the latest link we sent you.", 400);
 
-/** Checks signature, purpose and expiry; an altered or forged token is refused with 400, an expired one with 410. */
+/**
+ * Checks signature, purpose and expiry; an altered, non-canonical, forged or other-purpose token
+ * is refused with 400, an authentic expired one with 410. Links signed before decision 016 still
+ * verify, with the meaning they were sent with, until their own expiry.
+ */
 export function verifyToken(secret: string, token: string, purpose: TokenPurpose, now: Date): VerifiedToken {
-  const dot = token.indexOf(".");
-  if (dot <= 0) throw invalid();
-  const body = token.slice(0, dot);
-  const sent = Buffer.from(token.slice(dot + 1), "base64url");
-  const expected = mac(secret, body);
-  if (sent.length !== expected.length || !timingSafeEqual(sent, expected)) throw invalid();
-  let payload: Payload;
-  try {
-    payload = JSON.parse(Buffer.from(body, "base64url").toString("utf8")) as Payload;
-  } catch {
+  let result = createTokenSigner(secret).verify(SIGNED_AS[purpose], token, now, subscriberClaims);
+  if (!result.ok && result.reason === "forged") {
+    result = verifyLegacyToken(secret, "subscriberLink", token, now, (c) => (c.p === LEGACY_CODE[purpose] ? subscriberClaims(c) : null));
+  }
+  if (!result.ok) {
+    if (result.reason === "expired") throw new AppError("token_expired", "This link has expired. Subscribe again, or use a newer e-mail from us.", 410);
     throw invalid();
   }
-  if (payload.p !== CODE[purpose] || !Number.isInteger(payload.s) || !Number.isInteger(payload.e)) throw invalid();
-  const expiresAt = new Date(payload.e * 1000);
-  if (expiresAt <= now) throw new AppError("token_expired", "This link has expired. Subscribe again, or use a newer e-mail from us.", 410);
-  return { subscriberId: payload.s, expiresAt, nonce: payload.n ?? null };
+  return { subscriberId: result.claims.s, expiresAt: result.expiresAt, nonce: result.claims.n ?? null };
 }
 
 export const newNonce = () => randomBytes(16).toString("base64url");

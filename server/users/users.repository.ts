@@ -181,6 +181,16 @@ export async function insertPasswordReset(q: Q, r: { userId: number; tokenHash: 
   await q("password_resets").insert({ user_id: r.userId, token_hash: r.tokenHash, expires_at: r.expiresAt });
 }
 
+/** Holds the user's row until the transaction ends, so two resets for one account are issued one after the other. */
+export async function lockUserRow(q: Q, userId: number): Promise<void> {
+  await q("users").select("id").where({ id: userId }).forUpdate().first();
+}
+
+/** A newer reset link ends the user's older ones (marked used: the same answer as a spent link). */
+export async function endOpenPasswordResets(q: Q, userId: number): Promise<void> {
+  await q("password_resets").where({ user_id: userId }).whereNull("used_at").update({ used_at: new Date() });
+}
+
 export async function findPasswordReset(q: Q, tokenHash: string): Promise<ResetRecord | null> {
   const r = await q("password_resets").where({ token_hash: tokenHash }).forUpdate().first();
   return r ? { id: Number(r.id), userId: Number(r.user_id), expiresAt: r.expires_at, usedAt: r.used_at ?? null } : null;

@@ -37,6 +37,7 @@ function milestone(over: Partial<Milestone> & Pick<Milestone, "id" | "name">): M
     slipWorkingDays: 0,
     version: 1,
     updatedAt: "2027-01-04T09:00:00Z",
+    removal: null,
     ...over,
   };
 }

@@ -42,6 +42,7 @@ const m = (over: Partial<Milestone> & Pick<Milestone, "id" | "name">): Milestone
   slipWorkingDays: 0,
   version: 1,
   updatedAt: "2026-12-01T09:00:00Z",
+  removal: null,
   ...over,
 });
 

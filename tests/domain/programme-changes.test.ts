@@ -92,3 +92,37 @@ describe("summariseChanges", () => {
     expect(summariseChanges([], "2026-03-01", "2026-03-31")).toEqual([]);
   });
 });
+
+describe("summariseChanges: removal from the programme", () => {
+  // Our own examples.
+  it("reports a removal first, with its reason, before any other move of the window", () => {
+    const summary = summariseChanges(
+      [
+        ev(12, "forecast_finish", "2027-02-01", "2027-02-15", "2026-03-02T09:00:00Z", "Supplier failed"),
+        ev(12, "removed", "false", "true", "2026-03-09T09:00:00Z", "Scope moved to Hall 2B's contract"),
+      ],
+      "2026-03-01",
+      "2026-03-31",
+    );
+    expect(summary).toEqual([
+      {
+        milestoneId: 12,
+        moves: [
+          { kind: "removed", from: "false", to: "true", notes: ["Scope moved to Hall 2B's contract"] },
+          { kind: "later", days: 14, from: "2027-02-01", to: "2027-02-15", notes: ["Supplier failed"] },
+        ],
+      },
+    ]);
+  });
+
+  it("reports a restoration, and nothing for a removal undone within the window", () => {
+    const restored = summariseChanges([ev(3, "removed", "true", "false", "2026-03-10T09:00:00Z", "Back in scope")], "2026-03-01", "2026-03-31");
+    expect(restored).toEqual([{ milestoneId: 3, moves: [{ kind: "restored", from: "true", to: "false", notes: ["Back in scope"] }] }]);
+    const undone = summariseChanges(
+      [ev(3, "removed", "false", "true", "2026-03-10T09:00:00Z", "Wrong milestone"), ev(3, "removed", "true", "false", "2026-03-10T09:05:00Z", "Removed by mistake")],
+      "2026-03-01",
+      "2026-03-31",
+    );
+    expect(undone).toEqual([]);
+  });
+});

@@ -24,15 +24,23 @@ describe("POST /api/auth/login", () => {
     expect(me.body.user.email).toBe(DEMO.lead);
   });
 
-  it("regenerates the session id at sign-in (no fixation)", async () => {
-    const agent = request.agent(t.plumbline.app);
-    const first = await agent.get("/api/auth/csrf");
-    const before = String(first.headers["set-cookie"]).match(/plumbline\.sid=([^;]+)/)?.[1];
-    const login = await agent.post("/api/auth/login").set("X-CSRF-Token", first.body.token).send({ email: DEMO.admin, password: DEMO_PASSWORD }).expect(200);
-    const after = String(login.headers["set-cookie"]).match(/plumbline\.sid=([^;]+)/)?.[1];
-    expect(before).toBeTruthy();
+  it("regenerates the session id at sign-in (no fixation): a planted session id is not the one the sign-in gets", async () => {
+    const sidOf = (res: request.Response) => String(res.headers["set-cookie"]).match(/plumbline\.sid=([^;]+)/)?.[1];
+    const csrfCookieOf = (res: request.Response) => String(res.headers["set-cookie"]).match(/plumbline\.csrf=([^;]+)/)?.[1];
+    // The attacker's own signed-in session id, planted in the victim's browser before the victim signs in.
+    const attacker = await newClient(t);
+    const planted = sidOf(await attacker.agent.post("/api/auth/login").set("X-CSRF-Token", attacker.csrf).send({ email: DEMO.marketing, password: DEMO_PASSWORD }).expect(200));
+    expect(planted).toBeTruthy();
+    const first = await request(t.plumbline.app).get("/api/auth/csrf").expect(200);
+    const cookie = `plumbline.sid=${planted}; plumbline.csrf=${csrfCookieOf(first)}`;
+    const login = await request(t.plumbline.app).post("/api/auth/login").set("Cookie", cookie).set("X-CSRF-Token", first.body.token).send({ email: DEMO.admin, password: DEMO_PASSWORD }).expect(200);
+    const after = sidOf(login);
     expect(after).toBeTruthy();
-    expect(after).not.toBe(before);
+    expect(after).not.toBe(planted);
+    // The planted id ended with the regeneration: it never names the victim's session.
+    const attackerMe = await attacker.agent.get("/api/auth/me");
+    expect(attackerMe.status).toBe(401);
+    expect(await t.db("sessions").where({ sid: planted! }).first()).toBeUndefined();
   });
 
   it("gives the same answer for a wrong password and an unknown address", async () => {
@@ -141,10 +149,10 @@ describe("ending sessions", () => {
   it("a role change takes effect on the user's next request", async () => {
     const u = await createUser(t, "lead");
     const user = await signIn(t, u.email, u.password);
-    await user.agent.get("/api/outbox").expect(200);
+    await user.agent.get("/api/subscribers").expect(200);
     const admin = await signIn(t, DEMO.admin);
     await admin.agent.patch(`/api/users/${u.id}`).set("X-CSRF-Token", admin.csrf).send({ role: "investor" }).expect(200);
-    await user.agent.get("/api/outbox").expect(403);
+    await user.agent.get("/api/subscribers").expect(403);
     const me = await user.agent.get("/api/auth/me").expect(200);
     expect(me.body.user.role).toBe("investor");
   });
@@ -178,7 +186,7 @@ describe("session lifetimes and cookies", () => {
   });
 
   it("behind a trusted HTTPS proxy the cookie is Secure; over plain HTTP it is not", async () => {
-    const proxied = await startTestApp({ TRUST_PROXY: "true" });
+    const proxied = await startTestApp({ TRUST_PROXY: "1" });
     try {
       const overHttps = await request(proxied.plumbline.app).get("/api/auth/csrf").set("X-Forwarded-Proto", "https");
       expect(String(overHttps.headers["set-cookie"])).toMatch(/;\s*Secure/i);

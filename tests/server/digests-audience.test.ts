@@ -7,11 +7,13 @@ import { renderDigest } from "../../server/digests/digests.render.ts";
 import { topicsAllow } from "../../server/subscribers/subscribers.topics.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { lastMailId, startTestApp, type TestApp } from "../helpers/app.ts";
+import { scheduledRun } from "../helpers/digests.ts";
 import { createProject, createPhoto, postInput, signInAll } from "./posts-fixtures.ts";
 
 let t: TestApp;
 beforeAll(async () => {
-  t = await startTestApp({ PUBLIC_URL: "https://progress.kestrel.example" });
+  // The test client speaks plain HTTP: with an https PUBLIC_URL, Secure cookies would never come back.
+  t = await startTestApp({ PUBLIC_URL: "https://progress.kestrel.example", COOKIE_SECURE: "false" });
 });
 afterAll(async () => {
   await t.close();
@@ -94,8 +96,9 @@ describe("a digest holds only what its reader may see", () => {
     const prospect = await mk("prospect", "public");
     const investor = await mk("investor", "investor");
     const before = await lastMailId(t);
-    const res = await as.lead.agent.post("/api/digests/runs").set("X-CSRF-Token", as.lead.csrf).send({ projectSlug: p.slug, frequency: "weekly", at: new Date(Date.now() + 7 * 86_400_000).toISOString() });
-    expect(res.status).toBe(201);
+    const run = await scheduledRun(t, p.slug, "weekly", new Date(Date.now() + 7 * 86_400_000));
+    expect(run.created).toBe(true);
+    const res = { body: run };
     await t.plumbline.digestJobs.drain();
     const got = async (email: string) => t.db("mail_messages as m").join("mail_recipients as r", "r.message_id", "m.id").where("r.address", email).andWhere("m.id", ">", before).select("m.text");
     const inv = await got(investor.email);
@@ -123,7 +126,7 @@ describe("a digest holds only what its reader may see", () => {
       return { project_id: p.id, email, email_hash: hashAddress(email), name: `Reader ${i}`, interest: "prospect", frequency: "weekly", topics: i % 2 ? JSON.stringify({ areas: ["Hall 2A"], systems: [] }) : null, topics_key: i % 2 ? "k-hall-2a" : "all", status: "confirmed", confirmed_at: new Date() };
     });
     await t.db("subscribers").insert(rows);
-    const res = await as.lead.agent.post("/api/digests/runs").set("X-CSRF-Token", as.lead.csrf).send({ projectSlug: p.slug, frequency: "weekly", at: new Date(Date.now() + 7 * 86_400_000).toISOString() });
+    const res = { body: await scheduledRun(t, p.slug, "weekly", new Date(Date.now() + 7 * 86_400_000)) };
     await t.plumbline.digestJobs.drain();
     expect(await t.db("digest_contents").where({ run_id: res.body.id }).count({ n: "*" }).first()).toEqual({ n: 2 });
     const d = await t.db("digest_deliveries").where({ run_id: res.body.id }).select("status", "message_id");

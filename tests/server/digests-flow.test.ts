@@ -3,6 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { headersOf } from "../../server/mail/mail.sink.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { lastMailId, newClient, startTestApp, waitForMail, type TestApp } from "../helpers/app.ts";
+import { scheduledRun } from "../helpers/digests.ts";
 import { createMilestone, createPhoto, createProject, postInput, signInAll, type Client } from "./posts-fixtures.ts";
 
 const PUBLIC = "https://progress.kestrel.example";
@@ -11,7 +12,8 @@ const DAY = 86_400_000;
 let t: TestApp;
 let as: Awaited<ReturnType<typeof signInAll>>;
 beforeAll(async () => {
-  t = await startTestApp({ PUBLIC_URL: PUBLIC, SMTP_SINK_REFUSE: "*@bounce.example", SUBSCRIBE_LIMIT_PER_IP: "100000", SUBSCRIBE_LIMIT_PER_ADDRESS: "100000" });
+  // The test client speaks plain HTTP: with an https PUBLIC_URL, Secure cookies would never come back.
+  t = await startTestApp({ PUBLIC_URL: PUBLIC, COOKIE_SECURE: "false", SMTP_SINK_REFUSE: "*@bounce.example", SUBSCRIBE_LIMIT_PER_IP: "100000", SUBSCRIBE_LIMIT_PER_ADDRESS: "100000" });
   as = await signInAll(t);
 });
 afterAll(async () => {
@@ -53,13 +55,11 @@ async function slip(milestoneId: number, forecastFinish: string) {
   expect(res.status, JSON.stringify(res.body)).toBe(200);
 }
 
-/** Asks for the weekly run whose window is the current ISO week (the run "at" next week), then sends it. */
+/** The weekly run whose window is the current ISO week (as the scheduler starts it next week), then sends it. */
 async function weeklyRun(slug: string) {
-  const at = new Date(Date.now() + 7 * DAY).toISOString();
-  const res = await as.marketing.agent.post("/api/digests/runs").set("X-CSRF-Token", as.marketing.csrf).send({ projectSlug: slug, frequency: "weekly", at });
-  expect([200, 201]).toContain(res.status);
+  const run = await scheduledRun(t, slug, "weekly", new Date(Date.now() + 7 * DAY));
   await t.plumbline.digestJobs.drain();
-  return res.body as { id: number; status: string };
+  return run;
 }
 
 /** Digests (not the subscription's own e-mails) that reached an address. */
@@ -156,7 +156,7 @@ describe("a weekly digest, end to end over HTTP, MariaDB and SMTP", () => {
     await publish(p, as.lead);
     const after = await lastMailId(t);
     // A monthly run covers the same post; the address has left.
-    await as.lead.agent.post("/api/digests/runs").set("X-CSRF-Token", as.lead.csrf).send({ projectSlug: p.slug, frequency: "monthly", at: new Date(Date.now() + 40 * DAY).toISOString() });
+    await scheduledRun(t, p.slug, "monthly", new Date(Date.now() + 40 * DAY));
     await weeklyRun(p.slug);
     await t.plumbline.digestJobs.drain();
     expect(await mailsTo(email, after)).toHaveLength(0);
@@ -207,8 +207,7 @@ describe("a weekly digest, end to end over HTTP, MariaDB and SMTP", () => {
       throw Object.assign(new Error("Try again later"), { responseCode: 451 });
     };
     try {
-      const at = new Date(Date.now() + 7 * DAY).toISOString();
-      const res = await as.lead.agent.post("/api/digests/runs").set("X-CSRF-Token", as.lead.csrf).send({ projectSlug: p.slug, frequency: "weekly", at });
+      const res = { body: await scheduledRun(t, p.slug, "weekly", new Date(Date.now() + 7 * DAY)) };
       await send.drain();
       const d = await t.db("digest_deliveries").where({ run_id: res.body.id }).first();
       expect(d.status).toBe("queued");

@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDigestJobs } from "../../server/digests/digests.jobs.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { DEMO, lastMailId, startTestApp, type TestApp } from "../helpers/app.ts";
+import { scheduledRun } from "../helpers/digests.ts";
 import { createPhoto, createProject, postInput, signInAll } from "./posts-fixtures.ts";
 
 let t: TestApp;
@@ -16,7 +17,7 @@ afterAll(async () => {
   await t.close();
 });
 
-const nextWeek = () => new Date(Date.now() + 7 * 86_400_000).toISOString();
+const nextWeek = () => new Date(Date.now() + 7 * 86_400_000);
 
 /** A project with one published update and `count` confirmed weekly subscribers. */
 async function projectWithReaders(count: number) {
@@ -31,9 +32,9 @@ async function projectWithReaders(count: number) {
 }
 
 async function startRun(slug: string) {
-  const res = await as.marketing.agent.post("/api/digests/runs").set("X-CSRF-Token", as.marketing.csrf).send({ projectSlug: slug, frequency: "weekly", at: nextWeek() });
-  expect(res.status).toBe(201);
-  return res.body.id as number;
+  const run = await scheduledRun(t, slug, "weekly", nextWeek());
+  expect(run.created).toBe(true);
+  return run.id;
 }
 
 describe("the site office's digest controls", () => {

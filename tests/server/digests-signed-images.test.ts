@@ -8,6 +8,7 @@ import type { MediaItem } from "../../src/shared/schemas/media.ts";
 import { MEDIA_LINK_TTL_DAYS } from "../../server/digests/digests.service.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { lastMailId, newClient, startTestApp, type TestApp } from "../helpers/app.ts";
+import { scheduledRun } from "../helpers/digests.ts";
 import { makeGradientImage } from "../helpers/images.ts";
 import { createProject, postInput, signInAll, type Client } from "./posts-fixtures.ts";
 
@@ -20,7 +21,8 @@ let mediaDir: string;
 let as: Awaited<ReturnType<typeof signInAll>>;
 beforeAll(async () => {
   mediaDir = mkdtempSync(path.join(tmpdir(), "plumbline-digest-images-"));
-  t = await startTestApp({ PUBLIC_URL: PUBLIC, MEDIA_DIR: mediaDir });
+  // The test client speaks plain HTTP: with an https PUBLIC_URL, Secure cookies would never come back.
+  t = await startTestApp({ PUBLIC_URL: PUBLIC, MEDIA_DIR: mediaDir, COOKIE_SECURE: "false" });
   as = await signInAll(t);
 });
 afterAll(async () => {
@@ -94,8 +96,8 @@ describe("investor-only pictures in digests, through signed and expiring links",
 
     const before = await lastMailId(t);
     const runAt = Date.now();
-    const run = await as.marketing.agent.post("/api/digests/runs").set("X-CSRF-Token", as.marketing.csrf).send({ projectSlug: p.slug, frequency: "weekly", at: new Date(runAt + 7 * DAY).toISOString() });
-    expect(run.status, JSON.stringify(run.body)).toBe(201);
+    const run = await scheduledRun(t, p.slug, "weekly", new Date(runAt + 7 * DAY));
+    expect(run.created).toBe(true);
     await t.plumbline.digestJobs.drain();
 
     // The investor's e-mail: the investor cover signed, the public cover plain.
@@ -154,7 +156,7 @@ describe("investor-only pictures in digests, through signed and expiring links",
     expect(pub.html).not.toContain(hash);
     expect(imageSources(pub.html).every((s) => s.startsWith(`${PUBLIC}/media/v/`))).toBe(true);
     for (const s of imageSources(pub.html)) await visitor.agent.get(pathOf(s)).expect(200);
-    const contents = await t.db("digest_contents").where({ run_id: run.body.id }).select("audience", "html");
+    const contents = await t.db("digest_contents").where({ run_id: run.id }).select("audience", "html");
     expect(contents.map((c) => c.audience).sort()).toEqual(["investor", "public"]);
     expect(contents.find((c) => c.audience === "public")!.html).not.toContain("/media/s/");
 
@@ -179,7 +181,7 @@ describe("investor-only pictures in digests, through signed and expiring links",
     await publishPost(p, as.lead, cover.id, { audience: "investor", title });
     const email = await subscriber(p.id, "investor");
     const before = await lastMailId(t);
-    await as.marketing.agent.post("/api/digests/runs").set("X-CSRF-Token", as.marketing.csrf).send({ projectSlug: p.slug, frequency: "weekly", at: new Date(Date.now() + 7 * DAY).toISOString() }).expect(201);
+    expect((await scheduledRun(t, p.slug, "weekly", new Date(Date.now() + 7 * DAY))).created).toBe(true);
     await t.plumbline.digestJobs.drain();
     const mail = await digestTo(email, before);
     const name = new URL(imageSources(mail.html).find((s) => s.includes("/media/s/"))!).pathname.replace("/media/s/", "");

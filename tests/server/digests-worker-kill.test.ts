@@ -6,6 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { testMediaDirFor } from "../../server/media/media.storage.ts";
 import { startTestApp, type TestApp } from "../helpers/app.ts";
+import { scheduledRun } from "../helpers/digests.ts";
 import { createPhoto, createProject, postInput, signInAll } from "./posts-fixtures.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
@@ -64,9 +65,9 @@ describe("a worker killed mid-run", () => {
     const tag = randomBytes(3).toString("hex");
     const emails = Array.from({ length: SUBSCRIBERS }, (_, i) => `kill-${tag}-${i}@example.org`);
     await t.db("subscribers").insert(emails.map((email, i) => ({ project_id: p.id, email, email_hash: hashAddress(email), name: `Reader ${i}`, interest: "prospect", frequency: "weekly", topics_key: "all", status: "confirmed", confirmed_at: new Date() })));
-    const res = await as.lead.agent.post("/api/digests/runs").set("X-CSRF-Token", as.lead.csrf).send({ projectSlug: p.slug, frequency: "weekly", at: new Date(Date.now() + 7 * 86_400_000).toISOString() });
-    expect(res.status).toBe(201);
-    const runId = res.body.id as number;
+    const run = await scheduledRun(t, p.slug, "weekly", new Date(Date.now() + 7 * 86_400_000));
+    expect(run.created).toBe(true);
+    const runId = run.id;
     const sentCount = async () => Number((await t.db("digest_deliveries").where({ run_id: runId, status: "sent" }).count({ n: "*" }).first())?.n);
 
     const first = startWorker();

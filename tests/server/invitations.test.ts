@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { DEMO, lastMailId, newClient, signIn, startTestApp, waitForMail, type TestApp } from "../helpers/app.ts";
+import { createUser, DEMO, lastMailId, newClient, signIn, startTestApp, waitForMail, type TestApp } from "../helpers/app.ts";
 
 let t: TestApp;
 beforeAll(async () => {
@@ -36,6 +36,9 @@ describe("invitation flow through the real SMTP sink", () => {
     expect(outbox.body[0].headers["content-type"]).toMatch(/multipart\/alternative/);
     const raw = await admin.agent.get(`/api/outbox/${outbox.body[0].id}/raw`).expect(200);
     expect(raw.headers["content-type"]).toMatch(/message\/rfc822/);
+    // Even the administrator sees the link masked; the recipient's copy (read from the sink above) keeps it.
+    expect(JSON.stringify(outbox.body)).not.toContain(token);
+    expect(outbox.body[0].text).toMatch(/\/invitations\/\S+\[hidden\]/);
 
     // The page the link opens asks the API what the invitation is for.
     const guest = await newClient(t);
@@ -82,6 +85,30 @@ describe("invitation flow through the real SMTP sink", () => {
     expect(res.body.error.code).toBe("invitation_expired");
   });
 
+  it("a new invitation to the same address ends the earlier one: its link answers 404 and cannot be accepted", async () => {
+    const admin = await signIn(t, DEMO.admin);
+    const email = `twice-${Date.now()}@kestrel.example`;
+    let before = await lastMailId(t);
+    await admin.agent.post("/api/users/invitations").set("X-CSRF-Token", admin.csrf).send({ email, role: "admin" }).expect(201);
+    const first = linkIn((await waitForMail(t, email, before)).text, "invitations").split("/").pop()!;
+    before = await lastMailId(t);
+    await admin.agent.post("/api/users/invitations").set("X-CSRF-Token", admin.csrf).send({ email, role: "marketing" }).expect(201);
+    const second = linkIn((await waitForMail(t, email, before)).text, "invitations").split("/").pop()!;
+    expect(second).not.toBe(first);
+
+    const guest = await newClient(t);
+    const about = await guest.agent.get(`/api/auth/invitations/${first}`);
+    expect(about.status).toBe(404);
+    expect(about.body.error.code).toBe("invitation_invalid");
+    const accept = await guest.agent.post(`/api/auth/invitations/${first}/accept`).set("X-CSRF-Token", guest.csrf).send({ name: "Early Bird", password: "an-early-long-passphrase" });
+    expect(accept.status).toBe(404);
+    expect(await t.db("users").where({ email }).first()).toBeUndefined();
+    // The newer one works, with the newer role.
+    const ok = await guest.agent.post(`/api/auth/invitations/${second}/accept`).set("X-CSRF-Token", guest.csrf).send({ name: "Late Bird", password: "a-later-long-passphrase" });
+    expect(ok.status).toBe(201);
+    expect(ok.body.user.role).toBe("marketing");
+  });
+
   it("inviting an address that already has an account refuses with 409 and sends nothing", async () => {
     const admin = await signIn(t, DEMO.admin);
     const before = await lastMailId(t);
@@ -125,6 +152,28 @@ describe("password reset flow through the real SMTP sink", () => {
     const c = await newClient(t);
     await c.agent.post("/api/auth/login").set("X-CSRF-Token", c.csrf).send({ email, password: "first-long-passphrase-1" }).expect(401);
     await signIn(t, email, "second-long-passphrase-2");
+  });
+
+  it("a second reset request ends the first link: the first answers 410 and changes nothing, the second works", async () => {
+    const u = await createUser(t, "lead");
+    const c = await newClient(t);
+    let before = await lastMailId(t);
+    await c.agent.post("/api/auth/password-reset").set("X-CSRF-Token", c.csrf).send({ email: u.email }).expect(202);
+    const first = linkIn((await waitForMail(t, u.email, before)).text, "reset-password").split("/").pop()!;
+    before = await lastMailId(t);
+    await c.agent.post("/api/auth/password-reset").set("X-CSRF-Token", c.csrf).send({ email: u.email }).expect(202);
+    const second = linkIn((await waitForMail(t, u.email, before)).text, "reset-password").split("/").pop()!;
+    expect(second).not.toBe(first);
+
+    const stale = await c.agent.post(`/api/auth/password-reset/${first}`).set("X-CSRF-Token", c.csrf).send({ password: "from-the-stale-link-1" });
+    expect(stale.status).toBe(410);
+    expect(stale.body.error.code).toBe("reset_invalid");
+    await signIn(t, u.email, u.password);
+    await c.agent.post(`/api/auth/password-reset/${second}`).set("X-CSRF-Token", c.csrf).send({ password: "from-the-newest-link-2" }).expect(200);
+    // Used, it is spent too.
+    const reuse = await c.agent.post(`/api/auth/password-reset/${second}`).set("X-CSRF-Token", c.csrf).send({ password: "from-the-newest-link-3" });
+    expect(reuse.status).toBe(410);
+    await signIn(t, u.email, "from-the-newest-link-2");
   });
 
   it("a reset link older than one hour is refused", async () => {

@@ -212,11 +212,13 @@ describe("publishing checks (422 naming the problem; nothing changes)", () => {
     await expectBlocked(id, "milestone_not_visible", /Internal snag list closed/);
   });
 
-  it("a linked milestone that has since been deleted", async () => {
+  it("a linked milestone that has since been removed from the programme", async () => {
     const { id, project } = await draft(as.lead);
     const m = await createMilestone(t, project.slug);
     await as.lead.agent.patch(`/api/posts/${id}`).set("X-CSRF-Token", as.lead.csrf).send({ milestoneIds: [m.id] }).expect(200);
-    await as.lead.agent.delete(`/api/milestones/${m.id}`).set("X-CSRF-Token", as.lead.csrf).expect(204);
+    // A linked milestone is on record: it cannot be deleted, only removed from the programme.
+    expect((await as.lead.agent.delete(`/api/milestones/${m.id}`).set("X-CSRF-Token", as.lead.csrf)).status).toBe(409);
+    await as.lead.agent.post(`/api/milestones/${m.id}/remove`).set("X-CSRF-Token", as.lead.csrf).send({ reason: "Folded into the chiller package" }).expect(200);
     await expectBlocked(id, "milestone_missing", new RegExp(`#${m.id} no longer exists`));
   });
 

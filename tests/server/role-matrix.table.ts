@@ -2,14 +2,56 @@
  * Who may call what: one row per route, the expected status per caller. Later modules add
  * their rows here. Write routes are called with an empty body, so a caller who is let in
  * gets 400 (validation) and nothing is written; one who is not gets 401 or 403.
+ *
+ * Rows about real objects of each audience take their path from `MatrixIds`, resolved from
+ * the seeded demo (and a few objects made through the API) before the matrix runs: an
+ * unknown id only proves the 404 path, a real internal milestone proves the audience check.
+ * Every GET a visitor may call has a HEAD twin that must answer the same status.
  */
 export type Caller = "admin" | "lead" | "marketing" | "investor" | "anonymous";
+
+/** Real objects of each audience in the demo project. */
+export interface MatrixIds {
+  internalMilestone: number;
+  investorMilestone: number;
+  publicMilestone: number;
+  /** A photo nobody has reviewed yet, and the file name of one of its derivatives. */
+  unreviewedPhoto: number;
+  unreviewedPhotoFile: string;
+  /** A cleared photo shown in published public content, and one of its derivatives. */
+  clearedPhoto: number;
+  clearedPhotoFile: string;
+  investorPost: number;
+  investorPostSlug: string;
+  publicPost: number;
+  publicPostSlug: string;
+  postInReview: number;
+  postInReviewSlug: string;
+  draftStory: number;
+  draftStorySlug: string;
+  /** A subscriber who is not the demo investor (their own digest settings are their record). */
+  otherSubscriber: number;
+  enquiry: number;
+  digestRun: number;
+}
+
 export interface MatrixRow {
-  method: "get" | "post" | "patch" | "delete";
-  path: string;
+  method: "get" | "head" | "post" | "patch" | "delete";
+  path: string | ((ids: MatrixIds) => string);
   body?: unknown;
   expect: Record<Caller, number>;
+  /**
+   * How a visitor's answer may be cached. `shared`: the same for every caller, so public
+   * caching with an ETag is allowed; `per-caller`: the same URL answers differently by
+   * session (Vary: Cookie, never stored publicly). Default: per-caller under /api, shared
+   * elsewhere (pages, feeds, files).
+   */
+  cache?: "shared" | "per-caller";
+  /** A content-addressed file: a signed-in reader's own browser may keep it (`private, …, immutable`). */
+  immutable?: boolean;
 }
+
+export const pathOf = (row: MatrixRow, ids: MatrixIds): string => (typeof row.path === "function" ? row.path(ids) : row.path);
 
 const all = (status: number): Record<Caller, number> => ({ admin: status, lead: status, marketing: status, investor: status, anonymous: status });
 const adminOnly = (ok: number): Record<Caller, number> => ({ admin: ok, lead: 403, marketing: 403, investor: 403, anonymous: 401 });
@@ -25,6 +67,53 @@ const DEMO_PROGRAMME = "/api/projects/aldermere-phase-2";
 /** Media sensitivity decisions: project leads and administrators. */
 const mediaReviewers = (ok: number): Record<Caller, number> => ({ admin: ok, lead: ok, marketing: 403, investor: 403, anonymous: 401 });
 
+/** Staff see it; investors and visitors are told it does not exist. */
+const staffSeeOthersNotFound = (ok: number): Record<Caller, number> => ({ admin: ok, lead: ok, marketing: ok, investor: 404, anonymous: 404 });
+/** Staff and investors see it; visitors are told it does not exist. */
+const investorAudience = (ok: number): Record<Caller, number> => ({ admin: ok, lead: ok, marketing: ok, investor: ok, anonymous: 404 });
+const DEMO_SLUG = "aldermere-phase-2";
+
+/** Real objects of each audience (see MatrixIds): the audience rules, not just the 404 path. */
+const REAL_OBJECT_ROWS: MatrixRow[] = [
+  // Programme: an internal milestone exists for staff only; an investor one for investors too.
+  { method: "get", path: (ids) => `/api/milestones/${ids.internalMilestone}/events`, expect: staffSeeOthersNotFound(200) },
+  { method: "get", path: (ids) => `/api/milestones/${ids.internalMilestone}/drivers`, expect: staffSeeOthersNotFound(200) },
+  { method: "patch", path: (ids) => `/api/milestones/${ids.internalMilestone}`, body: {}, expect: writers(400) },
+  { method: "get", path: (ids) => `/api/milestones/${ids.investorMilestone}/events`, expect: investorAudience(200) },
+  { method: "get", path: (ids) => `/api/milestones/${ids.publicMilestone}/events`, expect: all(200) },
+  { method: "get", path: (ids) => `/api/milestones/${ids.publicMilestone}/drivers`, expect: all(200) },
+  // Media: an unreviewed photo is staff's alone, its files included; a cleared one in public content is everyone's.
+  { method: "get", path: (ids) => `/api/media/${ids.unreviewedPhoto}`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/media/${ids.unreviewedPhoto}/original`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/media/v/${ids.unreviewedPhotoFile}`, expect: staffSeeOthersNotFound(200), cache: "per-caller", immutable: true },
+  { method: "patch", path: (ids) => `/api/media/${ids.unreviewedPhoto}`, body: { sensitivity: "cleared", nonsense: true }, expect: { admin: 400, lead: 400, marketing: 400, investor: 403, anonymous: 401 } },
+  { method: "get", path: (ids) => `/api/media/${ids.clearedPhoto}`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/media/v/${ids.clearedPhotoFile}`, expect: all(200), cache: "shared", immutable: true },
+  // Posts: an investor post is hidden from visitors; a post in review from everyone outside the office.
+  { method: "get", path: (ids) => `/api/projects/${DEMO_SLUG}/posts/${ids.investorPostSlug}`, expect: investorAudience(200) },
+  { method: "get", path: (ids) => `/api/projects/${DEMO_SLUG}/posts/${ids.publicPostSlug}`, expect: all(200) },
+  // Staff read an unpublished post at its address too (the office's preview); nobody else learns it exists.
+  { method: "get", path: (ids) => `/api/projects/${DEMO_SLUG}/posts/${ids.postInReviewSlug}`, expect: staffSeeOthersNotFound(200) },
+  { method: "get", path: (ids) => `/api/posts/${ids.investorPost}`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/posts/${ids.postInReview}`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/posts/${ids.postInReview}/revisions`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/posts/${ids.postInReview}/history`, expect: staffOnly(200) },
+  { method: "post", path: (ids) => `/api/posts/${ids.postInReview}/return`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/posts/${ids.postInReview}/schedule`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/posts/${ids.investorPost}`, body: { nonsense: true }, expect: staffOnly(400) },
+  { method: "get", path: (ids) => `/projects/${DEMO_SLUG}/updates/${ids.investorPostSlug}`, expect: all(200) },
+  // Photo stories: a draft is the office's.
+  { method: "get", path: (ids) => `/api/stories/${ids.draftStory}`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/stories/${ids.draftStory}/revisions`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/projects/${DEMO_SLUG}/stories/${ids.draftStorySlug}`, expect: staffSeeOthersNotFound(200) },
+  // People's records: another subscriber's, an enquiry, a digest run.
+  { method: "get", path: (ids) => `/api/subscribers/${ids.otherSubscriber}/export`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/digests/preview?subscriberId=${ids.otherSubscriber}`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/enquiries/${ids.enquiry}`, expect: staffOnly(200) },
+  { method: "patch", path: (ids) => `/api/enquiries/${ids.enquiry}`, body: {}, expect: staffOnly(400) },
+  { method: "get", path: (ids) => `/api/digests/runs/${ids.digestRun}`, expect: staffOnly(200) },
+];
+
 export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: "/api/health", expect: all(200) },
   { method: "get", path: "/api/auth/csrf", expect: all(200) },
@@ -39,11 +128,11 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "post", path: "/api/users/invitations", body: {}, expect: adminOnly(400) },
   { method: "patch", path: "/api/users/1", body: {}, expect: adminOnly(400) },
   { method: "get", path: "/api/audit", expect: adminOnly(200) },
-  { method: "get", path: "/api/outbox", expect: staffOnly(200) },
-  { method: "get", path: "/api/outbox/999999999", expect: staffOnly(404) },
-  { method: "get", path: "/api/outbox/999999999/raw", expect: staffOnly(404) },
-  { method: "get", path: "/api/projects", expect: all(200) },
-  { method: "get", path: "/api/projects/aldermere-phase-2", expect: all(200) },
+  { method: "get", path: "/api/outbox", expect: adminOnly(200) },
+  { method: "get", path: "/api/outbox/999999999", expect: adminOnly(404) },
+  { method: "get", path: "/api/outbox/999999999/raw", expect: adminOnly(404) },
+  { method: "get", path: "/api/projects", expect: all(200), cache: "shared" },
+  { method: "get", path: "/api/projects/aldermere-phase-2", expect: all(200), cache: "shared" },
   { method: "get", path: "/api/projects/no-such-project", expect: all(404) },
   { method: "get", path: "/office", expect: all(200) },
   { method: "get", path: "/office/users", expect: all(200) },
@@ -60,6 +149,15 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: `${DEMO_PROGRAMME}/milestones.csv`, expect: staffOnly(200) },
   { method: "patch", path: "/api/milestones/1", body: {}, expect: writers(400) },
   { method: "delete", path: "/api/milestones/999999999", expect: writers(404) },
+  // Removal keeps the record (a reason is required); a milestone on record is never deleted.
+  { method: "post", path: "/api/milestones/1/remove", body: {}, expect: writers(400) },
+  { method: "post", path: "/api/milestones/999999999/remove", body: { reason: "Moved to Hall 2B" }, expect: writers(404) },
+  { method: "post", path: "/api/milestones/1/restore", body: {}, expect: writers(400) },
+  { method: "post", path: "/api/milestones/999999999/restore", body: { reason: "Back in Phase 2" }, expect: writers(404) },
+  // The demo's first milestone: later ones depend on it, so deleting it is refused before anything is written.
+  { method: "delete", path: "/api/milestones/1", expect: writers(422) },
+  { method: "get", path: `${DEMO_PROGRAMME}/milestones?removed=only`, expect: all(200) },
+  { method: "get", path: `${DEMO_PROGRAMME}/milestones?removed=bogus`, expect: all(400) },
   { method: "get", path: "/api/milestones/1/events", expect: all(200) },
   { method: "get", path: "/api/milestones/999999999/events", expect: all(404) },
   { method: "get", path: "/api/milestones/1/drivers", expect: all(200) },
@@ -76,7 +174,7 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: `${DEMO_PROGRAMME}/cost-actuals`, expect: signedIn(200) },
   { method: "post", path: `${DEMO_PROGRAMME}/cost-actuals`, body: {}, expect: writers(400) },
   // Subscriptions (visitors, by signed link), the investor room's digest, the site office's list.
-  { method: "get", path: "/api/projects/aldermere-phase-2/subscription-options", expect: all(200) },
+  { method: "get", path: "/api/projects/aldermere-phase-2/subscription-options", expect: all(200), cache: "shared" },
   { method: "get", path: "/api/projects/no-such-project/subscription-options", expect: all(404) },
   { method: "post", path: "/api/subscriptions", body: {}, expect: all(400) },
   { method: "get", path: `/api/subscriptions/confirm/${BAD_LINK}`, expect: all(400) },
@@ -168,6 +266,7 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "post", path: "/api/stories/999999999/revisions/1/restore", expect: staffOnly(404) },
   // Digests: the site office's runs, previews and tests for staff; the web copy by its signed link only.
   { method: "post", path: "/api/digests/runs", body: {}, expect: staffOnly(400) },
+  { method: "post", path: "/api/digests/runs", body: { projectSlug: "aldermere-phase-2", frequency: "weekly", at: "2099-01-01T00:00:00Z" }, expect: staffOnly(400) },
   { method: "get", path: "/api/digests/runs", expect: staffOnly(200) },
   { method: "get", path: "/api/digests/runs/999999999", expect: staffOnly(404) },
   { method: "post", path: "/api/digests/runs/999999999/pause", expect: staffOnly(404) },
@@ -187,4 +286,11 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: "/projects/aldermere-phase-2/stories/no-such-story", expect: all(200) },
   { method: "get", path: "/api/projects/aldermere-phase-2/gallery", expect: all(200) },
   { method: "post", path: "/api/auth/logout", expect: all(204) },
+  ...REAL_OBJECT_ROWS,
+];
+
+/** HEAD answers as GET does, for every GET a visitor may call. */
+export const ROLE_MATRIX_WITH_HEAD: MatrixRow[] = [
+  ...ROLE_MATRIX,
+  ...ROLE_MATRIX.filter((row) => row.method === "get" && row.expect.anonymous !== 401).map((row) => ({ ...row, method: "head" as const })),
 ];

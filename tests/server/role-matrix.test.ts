@@ -1,40 +1,186 @@
+import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { DEMO, newClient, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
-import { ROLE_MATRIX, type Caller } from "./role-matrix.table.ts";
+import { pathOf, ROLE_MATRIX, ROLE_MATRIX_WITH_HEAD, type Caller, type MatrixIds, type MatrixRow } from "./role-matrix.table.ts";
 
+const SLUG = "aldermere-phase-2";
 let t: TestApp;
+let ids: MatrixIds;
+
+function fileOf(url: string): string {
+  const name = /\/media\/v\/([^/?]+)$/.exec(url)?.[1];
+  if (!name) throw new Error(`not a derivative URL: ${url}`);
+  return name;
+}
+
+/** Real objects of each audience, from the seeded demo; a draft story is made through the API. */
+async function resolveIds(): Promise<MatrixIds> {
+  const admin = await signIn(t, DEMO.admin);
+  const marketing = await signIn(t, DEMO.marketing);
+  const get = async (agent: Agent, path: string) => {
+    const res = await agent.get(path);
+    if (res.status !== 200) throw new Error(`${path}: ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
+    return res.body;
+  };
+  const pick = <T>(items: T[], what: string, test: (item: T) => boolean): T => {
+    const found = items.find(test);
+    if (!found) throw new Error(`the demo has no ${what}`);
+    return found;
+  };
+
+  type Milestone = { id: number; audience: string };
+  const milestones = (await get(admin.agent, `/api/projects/${SLUG}/milestones`)) as Milestone[];
+
+  type MediaListItem = { id: number; sensitivity: string; status: string };
+  const library = (await get(admin.agent, `/api/media?project=${SLUG}&pageSize=100`)) as { items: MediaListItem[] } | MediaListItem[];
+  const items = Array.isArray(library) ? library : library.items;
+  const unreviewed = pick(items, "ready unreviewed photo", (m) => m.sensitivity === "unreviewed" && m.status === "ready");
+  const unreviewedDetail = (await get(admin.agent, `/api/media/${unreviewed.id}`)) as { variants: Array<{ url: string }> };
+  // The public gallery shows exactly the cleared photos that published public content uses.
+  type GalleryItem = { id: number; sources: Record<string, Array<{ url: string }>> };
+  const gallery = (await get(request(t.plumbline.app) as unknown as Agent, `/api/projects/${SLUG}/gallery`)) as { items: GalleryItem[] };
+  const cleared = pick(gallery.items, "photo in public content", (g) => (g.sources.webp ?? []).length > 0);
+
+  // Other test files add projects and posts meanwhile: only the demo project's rows count.
+  const project = (await t.db("projects").where({ slug: SLUG }).first("id")) as { id: number };
+  type PostRow = { id: number; slug: string };
+  const postWhere = async (what: string, where: Record<string, string>) => {
+    const row = (await t.db("posts").where({ project_id: project.id, ...where }).orderBy("id").first("id", "slug")) as PostRow | undefined;
+    if (!row) throw new Error(`the demo has no ${what}`);
+    return { id: Number(row.id), slug: row.slug };
+  };
+  const investorPost = await postWhere("published investor post", { audience: "investor", status: "published" });
+  const publicPost = await postWhere("published public post", { audience: "public", status: "published" });
+  const inReviewRow = await postWhere("post in review", { status: "in_review" });
+
+  const story = await marketing.agent
+    .post(`/api/projects/${SLUG}/stories`)
+    .set("X-CSRF-Token", marketing.csrf)
+    .send({ title: `Role matrix draft ${Date.now()}`, audience: "public" });
+  if (story.status !== 201) throw new Error(`draft story: ${story.status} ${JSON.stringify(story.body)}`);
+  const storyRow = (await t.db("stories").where({ id: story.body.id }).first("slug")) as { slug: string };
+
+  const investorUser = (await t.db("users").where({ email: DEMO.investor }).first("id")) as { id: number };
+  const subscriber = (await t.db("subscribers").where({ project_id: project.id }).whereNot({ email: DEMO.investor }).orderBy("id").first("id")) as { id: number } | undefined;
+  const enquiry = (await t.db("enquiries").where({ project_id: project.id }).orderBy("id").first("id")) as { id: number } | undefined;
+  const run = (await t.db("digest_runs").where({ project_id: project.id }).orderBy("id").first("id")) as { id: number } | undefined;
+  if (!subscriber || !enquiry || !run || !investorUser) throw new Error("the demo lacks subscribers, enquiries or digest runs");
+
+  return {
+    internalMilestone: pick(milestones, "internal milestone", (m) => m.audience === "internal").id,
+    investorMilestone: pick(milestones, "investor milestone", (m) => m.audience === "investor").id,
+    publicMilestone: pick(milestones, "public milestone", (m) => m.audience === "public").id,
+    unreviewedPhoto: unreviewed.id,
+    unreviewedPhotoFile: fileOf(unreviewedDetail.variants[0]!.url),
+    clearedPhoto: cleared.id,
+    clearedPhotoFile: fileOf(cleared.sources.webp![0]!.url),
+    investorPost: investorPost.id,
+    investorPostSlug: investorPost.slug,
+    publicPost: publicPost.id,
+    publicPostSlug: publicPost.slug,
+    postInReview: inReviewRow.id,
+    postInReviewSlug: inReviewRow.slug,
+    draftStory: Number(story.body.id),
+    draftStorySlug: storyRow.slug,
+    otherSubscriber: Number(subscriber.id),
+    enquiry: Number(enquiry.id),
+    digestRun: Number(run.id),
+  };
+}
+
 beforeAll(async () => {
   t = await startTestApp();
+  ids = await resolveIds();
 });
 afterAll(async () => {
-  await t.close();
+  await t?.close();
 });
 
 async function clientFor(caller: Caller): Promise<{ agent: Agent; csrf: string }> {
   return caller === "anonymous" ? newClient(t) : signIn(t, DEMO[caller]);
 }
 
+const callers: Caller[] = ["admin", "lead", "marketing", "investor", "anonymous"];
+
 describe("role matrix: every route × every caller", () => {
-  const callers: Caller[] = ["admin", "lead", "marketing", "investor", "anonymous"];
   for (const caller of callers) {
     it(`answers each route as expected for ${caller}`, async () => {
       const failures: string[] = [];
       // One session per caller; rows that end the session (sign-out) run last.
-      const rows = [...ROLE_MATRIX].sort((a, b) => Number(a.path === "/api/auth/logout") - Number(b.path === "/api/auth/logout"));
+      const rows = [...ROLE_MATRIX_WITH_HEAD].sort((a, b) => Number(a.path === "/api/auth/logout") - Number(b.path === "/api/auth/logout"));
       const { agent, csrf } = await clientFor(caller);
       for (const row of rows) {
-        let req = agent[row.method](row.path).set("X-CSRF-Token", csrf);
+        const path = pathOf(row, ids);
+        let req = agent[row.method](path).set("X-CSRF-Token", csrf);
         if (row.body !== undefined) req = req.send(row.body as object);
         const res = await req;
         if (res.status !== row.expect[caller]) {
-          failures.push(`${row.method.toUpperCase()} ${row.path}: expected ${row.expect[caller]}, got ${res.status} ${JSON.stringify(res.body).slice(0, 120)}`);
+          failures.push(`${row.method.toUpperCase()} ${path}: expected ${row.expect[caller]}, got ${res.status} ${JSON.stringify(res.body).slice(0, 120)}`);
         }
-        if (res.status >= 400 && row.path.startsWith("/api")) {
-          expect(res.body.error?.code, `${row.path} error shape`).toEqual(expect.any(String));
-          expect(res.body.error?.message, `${row.path} error shape`).toEqual(expect.any(String));
+        if (res.status >= 400 && path.startsWith("/api") && row.method !== "head") {
+          expect(res.body.error?.code, `${path} error shape`).toEqual(expect.any(String));
+          expect(res.body.error?.message, `${path} error shape`).toEqual(expect.any(String));
         }
       }
       expect(failures).toEqual([]);
+    });
+  }
+
+  it("has a HEAD row, with the GET's expectations, for every GET a visitor may call", () => {
+    const gets = ROLE_MATRIX.filter((r) => r.method === "get" && r.expect.anonymous !== 401);
+    const heads = ROLE_MATRIX_WITH_HEAD.filter((r) => r.method === "head");
+    expect(gets.length).toBeGreaterThan(50);
+    expect(heads.map((r) => [pathOf(r, ids), r.expect])).toEqual(gets.map((r) => [pathOf(r, ids), r.expect]));
+  });
+});
+
+/**
+ * The cache policy of every GET answer (server/core/cache-policy.ts). Visitors are asked
+ * without any cookie, as a CDN in front would see them.
+ */
+function cacheProblems(row: MatrixRow, caller: Caller, res: { status: number; headers: Record<string, string | undefined> }): string[] {
+  const problems: string[] = [];
+  const cc = res.headers["cache-control"] ?? "";
+  const vary = res.headers.vary ?? "";
+  const api = pathOf(row, ids).startsWith("/api/");
+  const kind = row.cache ?? (api ? "per-caller" : "shared");
+  const fail = (why: string) => problems.push(`${why} (Cache-Control: "${cc}", Vary: "${vary}")`);
+  if (res.status >= 400) {
+    if (!/\bno-store\b/.test(cc)) fail("an error answer must not be stored");
+    return problems;
+  }
+  if (caller !== "anonymous") {
+    if (/\bpublic\b/.test(cc)) fail("a signed-in caller's answer is never public");
+    if (api && cc !== "private, no-store") fail("a signed-in caller's API answer is private, no-store");
+    if (!api && !(row.immutable ? /^private, .*\bimmutable\b/.test(cc) : /\bno-store\b/.test(cc))) fail("a signed-in caller's page or file is private (kept only when immutable)");
+    if (api && kind === "per-caller" && !/\bcookie\b/i.test(vary)) fail("varies by Cookie");
+    return problems;
+  }
+  if (kind === "shared") {
+    if (/\b(private|no-store)\b/.test(cc)) fail("the same for every caller: public caching allowed");
+    if (!res.headers.etag) fail("the same for every caller: revalidated by ETag");
+    return problems;
+  }
+  if (api && !/\bcookie\b/i.test(vary)) fail("depends on the session: Vary: Cookie");
+  if (/\bpublic\b|s-maxage/.test(cc) || !/\b(private|no-store)\b/.test(cc)) fail("depends on the session: no shared cache may keep it");
+  return problems;
+}
+
+describe("cache policy: every GET route of the matrix × every caller", () => {
+  for (const caller of callers) {
+    it(`gives ${caller} the caching each answer allows`, async () => {
+      const client = caller === "anonymous" ? null : await signIn(t, DEMO[caller]);
+      const problems: string[] = [];
+      let checked = 0;
+      for (const row of ROLE_MATRIX.filter((r) => r.method === "get")) {
+        const path = pathOf(row, ids);
+        const res = client ? await client.agent.get(path) : await request(t.plumbline.app).get(path);
+        if (res.status !== row.expect[caller]) continue; // the role matrix reports it
+        checked += 1;
+        for (const p of cacheProblems(row, caller, res as never)) problems.push(`GET ${path} → ${res.status}: ${p}`);
+      }
+      expect(checked).toBeGreaterThan(80);
+      expect(problems).toEqual([]);
     });
   }
 });

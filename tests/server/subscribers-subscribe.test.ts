@@ -21,6 +21,8 @@ async function clearLimits() {
 beforeAll(async () => {
   t = await startTestApp({
     PUBLIC_URL: PUBLIC,
+    // The test client speaks plain HTTP: with an https PUBLIC_URL, Secure cookies would never come back.
+    COOKIE_SECURE: "false",
     MAIL_UNSUBSCRIBE_MAILTO: MAILTO,
     SUBSCRIBE_LIMIT_PER_IP: "100000",
     SUBSCRIBE_LIMIT_PER_ADDRESS: "100000",

@@ -14,7 +14,7 @@ export function OfficeLayout() {
         { to: "/office/subscribers", label: "Subscribers", roles: ["marketing", "lead", "admin"] },
         { to: "/office/enquiries", label: "Enquiries", roles: ["marketing", "lead", "admin"] },
         { to: "/office/digests", label: "Digests", roles: ["marketing", "lead", "admin"] },
-        { to: "/office/outbox", label: "Outbox" },
+        { to: "/office/outbox", label: "Outbox", roles: ["admin"] },
         { to: "/office/users", label: "Users", roles: ["admin"] },
         { to: "/office/audit", label: "Audit log", roles: ["admin"] },
       ]}

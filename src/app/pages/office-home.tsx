@@ -34,14 +34,16 @@ export function OfficeHomePage() {
             ))}
           </ul>
         </Sheet>
-        <Sheet label="Mail" title="Outbox">
-          <p className="text-sm text-ink-soft">Mail goes to the local sink in this set-up; read each message as the recipient would see it.</p>
-          <p className="mt-3">
-            <Link to="/office/outbox" className="font-medium text-accent underline underline-offset-4">
-              Open the outbox
-            </Link>
-          </p>
-        </Sheet>
+        {me.data?.role === "admin" ? (
+          <Sheet label="Mail" title="Outbox">
+            <p className="text-sm text-ink-soft">Mail goes to the local sink in this set-up; read each message as sent, with its single-use links masked.</p>
+            <p className="mt-3">
+              <Link to="/office/outbox" className="font-medium text-accent underline underline-offset-4">
+                Open the outbox
+              </Link>
+            </p>
+          </Sheet>
+        ) : null}
       </div>
     </>
   );

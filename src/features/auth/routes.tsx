@@ -11,6 +11,7 @@ import { Notice, Spinner } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { applyFieldErrors, ROLE_LABEL } from "../../lib/format.ts";
 import { homeFor, invitationQueryOptions, useAcceptInvitation, useLogin, useRequestReset, useResetPassword } from "./api.ts";
+import { safeReturnAddress } from "./return-address.ts";
 
 function AuthCard({ title, lead, children }: { title: string; lead?: string; children: React.ReactNode }) {
   return (
@@ -27,11 +28,6 @@ function AuthCard({ title, lead, children }: { title: string; lead?: string; chi
   );
 }
 
-/** Only same-site paths are followed after sign-in. */
-function safeNext(next: string | null): string | null {
-  return next && next.startsWith("/") && !next.startsWith("//") ? next : null;
-}
-
 export function SignInPage() {
   const [params] = useSearchParams();
   const navigate = useNavigate();
@@ -40,7 +36,7 @@ export function SignInPage() {
   const onSubmit = form.handleSubmit(async (values) => {
     try {
       const { user } = await login.mutateAsync(values);
-      navigate(safeNext(params.get("next")) ?? homeFor(user), { replace: true });
+      navigate(safeReturnAddress(params.get("next")) ?? homeFor(user), { replace: true });
     } catch (e) {
       if (e instanceof ApiError && Object.keys(e.fields).length) applyFieldErrors(e.fields, form.setError);
     }

@@ -14,5 +14,5 @@ export const outboxListQueryOptions = (f: { to?: string } = {}) =>
 export const outboxMessageQueryOptions = (id: number) =>
   queryOptions({ queryKey: outboxKeys.detail(id), queryFn: () => api.get<OutboxMessage>(`/api/outbox/${id}`) });
 
-export const useOutbox = (f: { to?: string }) => useQuery(outboxListQueryOptions(f));
-export const useOutboxMessage = (id: number) => useQuery(outboxMessageQueryOptions(id));
+export const useOutbox = (f: { to?: string }, enabled = true) => useQuery({ ...outboxListQueryOptions(f), enabled });
+export const useOutboxMessage = (id: number, enabled = true) => useQuery({ ...outboxMessageQueryOptions(id), enabled });

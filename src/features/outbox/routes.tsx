@@ -6,8 +6,34 @@ import { DataTable } from "../../components/ui/data-table.tsx";
 import { Button } from "../../components/ui/button.tsx";
 import { TextField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { ApiError } from "../../lib/api-client.ts";
 import { formatInstant } from "../../lib/format.ts";
+import { useMe } from "../../lib/session.ts";
 import { useOutbox, useOutboxMessage } from "./api.ts";
+
+/**
+ * The outbox holds other people's sign-in links (resets, invitations), so only administrators
+ * open it; the server refuses everyone else too, and this says so plainly.
+ */
+function OutboxRefusal() {
+  return (
+    <div data-testid="refusal">
+      <PageHeader sheet="Site office · Outbox" title="Not open to your account" />
+      <Notice tone="error" title="Administrators only">
+        The outbox keeps copies of the e-mails Plumbline sent, including other people&rsquo;s password-reset and invitation links, so only administrators may read it.
+      </Notice>
+    </div>
+  );
+}
+
+const refused = (e: unknown) => e instanceof ApiError && (e.status === 403 || e.status === 401);
+
+/** True once the signed-in user is known to be an administrator; null while asking. */
+function useIsAdmin(): boolean | null {
+  const me = useMe();
+  if (me.isPending) return null;
+  return me.data?.role === "admin";
+}
 
 const col = createColumnHelper<OutboxMessage>();
 const columns = [
@@ -34,13 +60,16 @@ export function OutboxPage() {
   const [params, setParams] = useSearchParams();
   const to = params.get("to") ?? "";
   const [draft, setDraft] = useState(to);
-  const list = useOutbox({ to: to || undefined });
+  const isAdmin = useIsAdmin();
+  const list = useOutbox({ to: to || undefined }, isAdmin === true);
+  if (isAdmin === null) return <Spinner />;
+  if (!isAdmin || (list.isError && refused(list.error))) return <OutboxRefusal />;
   return (
     <>
       <PageHeader
         sheet="Site office · Outbox"
         title="Outbox"
-        description="Every e-mail Plumbline sent while mail goes to the local sink: invitations, resets, and later digests. Nothing here left the machine."
+        description="Every e-mail Plumbline sent while mail goes to the local sink: invitations, resets, digests. Nothing here left the machine. Single-use and signed links are shown masked; they work only from the recipient's own copy."
         actions={
           <Button size="sm" onClick={() => void list.refetch()} busy={list.isFetching}>
             Refresh
@@ -76,8 +105,11 @@ type View = "html" | "text" | "headers";
 
 export function OutboxMessagePage() {
   const id = Number(useParams().id);
-  const msg = useOutboxMessage(id);
+  const isAdmin = useIsAdmin();
+  const msg = useOutboxMessage(id, isAdmin === true);
   const [view, setView] = useState<View>("html");
+  if (isAdmin === null) return <Spinner />;
+  if (!isAdmin || (msg.isError && refused(msg.error))) return <OutboxRefusal />;
   if (msg.isPending) return <Spinner />;
   if (msg.isError) return <Notice tone="error">{msg.error.message}</Notice>;
   const m = msg.data;

@@ -10,6 +10,7 @@ import type {
   MilestoneMovesRow,
   MilestoneEventRow,
   MilestonePatchInput,
+  MilestoneRemovalInput,
   ShiftInput,
   System,
 } from "#shared/schemas/programme.ts";
@@ -23,6 +24,8 @@ export interface MilestoneFilters {
   system?: System;
   area?: string;
   status?: MilestoneStatus;
+  /** Milestones removed from the programme: hidden unless asked for. */
+  removed?: "exclude" | "include" | "only";
 }
 
 /** GET /api/projects/:slug/health: the domain figures over what the caller may see. */
@@ -155,6 +158,32 @@ export function useImportMilestones(slug: string) {
     mutationFn: (csv: string) => api.post<CsvImportResult>(`/api/projects/${slug}/milestones/import`, { csv }),
     meta: { quiet: true },
     onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all }),
+  });
+}
+
+/**
+ * Removing a milestone from the programme (with a reason) or putting it back: it stays on
+ * record, so every figure and "what moved" changes; the whole project is refreshed.
+ */
+export function useMilestoneRemoval(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ id, action, input }: { id: number; action: "remove" | "restore"; input: MilestoneRemovalInput }) => api.post<Milestone>(`/api/milestones/${id}/${action}`, input),
+    meta: { quiet: true },
+    onSettled: (_data, _err, vars) => {
+      void qc.invalidateQueries({ queryKey: programmeKeys.project(slug) });
+      void qc.invalidateQueries({ queryKey: programmeKeys.milestone(vars.id) });
+    },
+  });
+}
+
+/** Deleting a milestone entered by mistake; one on record answers 409 `on_record` (remove it instead). */
+export function useDeleteMilestone(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ id }: { id: number }) => api.delete<void>(`/api/milestones/${id}`),
+    meta: { quiet: true },
+    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.project(slug) }),
   });
 }
 

@@ -13,6 +13,7 @@ import { canEditProgramme, milestonesCsvUrl, useHealth, useMilestones, useProgra
 import { CsvPanel } from "./components/csv-panel.tsx";
 import { LazyProgrammeCharts } from "./components/lazy-charts.tsx";
 import { MilestoneHistoryDialog } from "./components/milestone-history.tsx";
+import { RemovedMilestones } from "./components/milestone-removal.tsx";
 import { MilestoneTable } from "./components/milestone-table.tsx";
 import { PendingChanges } from "./components/pending-changes.tsx";
 import { HealthStrip } from "./components/programme-summary.tsx";
@@ -128,7 +129,11 @@ function ProgrammeEditor({ slug }: { slug: string }) {
         <CsvPanel slug={slug} editable={editable} />
       </Sheet>
 
-      <MilestoneHistoryDialog milestone={open} timeZone={p.timeZone} onClose={() => setOpen(null)} />
+      <Sheet label="On record" title="Removed from the programme">
+        <RemovedMilestones slug={slug} timeZone={p.timeZone} onOpen={setOpen} />
+      </Sheet>
+
+      <MilestoneHistoryDialog milestone={open} timeZone={p.timeZone} onClose={() => setOpen(null)} removal={editable ? { slug } : undefined} />
     </div>
   );
 }

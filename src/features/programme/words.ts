@@ -14,6 +14,7 @@ export const FIELD_WORD: Record<MilestoneEventFieldName, string> = {
   audience: "Audience",
   planned_start: "Planned start",
   weight: "Weight",
+  removed: "Removed from the programme",
 };
 
 const SMALL = ["zero", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine", "ten", "eleven", "twelve"];

@@ -13,7 +13,8 @@ export type MilestoneEventField =
   | "baseline_finish"
   | "audience"
   | "planned_start"
-  | "weight";
+  | "weight"
+  | "removed";
 
 /** One recorded change of one field of a milestone. Values are as stored (dates `YYYY-MM-DD`, numbers as text). */
 export interface MilestoneEvent {
@@ -26,7 +27,7 @@ export interface MilestoneEvent {
   note?: string | null;
 }
 
-export type MoveKind = "completed" | "reopened" | "rebaselined" | "later" | "earlier" | "progress" | "audience_changed";
+export type MoveKind = "removed" | "restored" | "completed" | "reopened" | "rebaselined" | "later" | "earlier" | "progress" | "audience_changed";
 
 /** The net effect on one aspect of a milestone over the window. */
 export interface MilestoneMove {
@@ -52,13 +53,15 @@ export function dateOfInstant(at: string): CalendarDate {
 }
 
 const KIND_ORDER: Record<MoveKind, number> = {
-  completed: 0,
-  reopened: 1,
-  rebaselined: 2,
-  later: 3,
-  earlier: 3,
-  progress: 4,
-  audience_changed: 5,
+  removed: 0,
+  restored: 0,
+  completed: 1,
+  reopened: 2,
+  rebaselined: 3,
+  later: 4,
+  earlier: 4,
+  progress: 5,
+  audience_changed: 6,
 };
 
 function notesOf(events: readonly MilestoneEvent[]): string[] {
@@ -96,6 +99,11 @@ function netMove(field: MilestoneEventField, events: readonly MilestoneEvent[]):
       return { kind: "progress", from, to, notes };
     case "audience":
       return from === to ? null : { kind: "audience_changed", from, to, notes };
+    case "removed":
+      // Removed and restored within one window nets to nothing, like a forecast moved out and back.
+      if (from !== "true" && to === "true") return { kind: "removed", from, to, notes };
+      if (from === "true" && to !== "true") return { kind: "restored", from, to, notes };
+      return null;
     default:
       // Planned start and weight reshape the plan, but readers are told of that through
       // the re-baseline; on their own they are not a move of the milestone.
@@ -111,7 +119,8 @@ function netMove(field: MilestoneEventField, events: readonly MilestoneEvent[]):
  * `to`), so a forecast moved out and back again reports nothing, and two slips of
  * 5 and 9 days report one move `later` by 14 days.
  *
- * Moves: `completed` (actual set), `reopened` (actual cleared), `rebaselined`
+ * Moves: `removed` / `restored` (taken out of the programme or put back; the note is the
+ * reason), `completed` (actual set), `reopened` (actual cleared), `rebaselined`
  * (baseline finish changed), `later` / `earlier` (forecast moved, by `days`),
  * `progress` (percent complete changed), `audience_changed`. Milestones with no net
  * move are left out; the result is sorted by milestone id, moves in that order.

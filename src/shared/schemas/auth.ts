@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { EmailSchema, RoleSchema } from "./common.ts";
+import { plainText } from "./text.ts";
 
 export const LoginInputSchema = z.strictObject({
   email: EmailSchema,
@@ -15,7 +16,7 @@ export const NewPasswordSchema = z
   .max(200, "must be at most 200 characters");
 
 export const AcceptInvitationInputSchema = z.strictObject({
-  name: z.string({ error: "is required" }).trim().min(1, "is required").max(200),
+  name: plainText({ error: "is required" }).min(1, "is required").max(200),
   password: NewPasswordSchema,
 });
 export type AcceptInvitationInput = z.infer<typeof AcceptInvitationInputSchema>;

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import type { Frequency } from "./subscribers.ts";
+import { plainText } from "./text.ts";
 
 /**
  * The HTTP contract of the digests module (server/digests ↔ src/features/digests): runs and
@@ -10,7 +11,7 @@ export const DigestRunStatusSchema = z.enum(["queued", "running", "done", "faile
 export type DigestRunStatus = z.infer<typeof DigestRunStatusSchema>;
 
 export const DigestRunInputSchema = z.strictObject({
-  projectSlug: z.string({ error: "is required" }).trim().min(1, "is required").max(120),
+  projectSlug: plainText({ error: "is required" }).min(1, "is required").max(120),
   frequency: z.enum(["weekly", "monthly"], { error: "must be weekly or monthly" }),
   /** The moment the run stands for (default now): the window is the ISO week or month before it. */
   at: z.iso.datetime({ offset: true, error: "must be an ISO 8601 date-time" }).optional(),
@@ -18,17 +19,17 @@ export const DigestRunInputSchema = z.strictObject({
 export type DigestRunInput = z.infer<typeof DigestRunInputSchema>;
 
 export const DigestTestInputSchema = z.strictObject({
-  projectSlug: z.string({ error: "is required" }).trim().min(1, "is required").max(120),
+  projectSlug: plainText({ error: "is required" }).min(1, "is required").max(120),
   audience: z.enum(["public", "investor"]).default("public"),
 });
 export type DigestTestInput = z.infer<typeof DigestTestInputSchema>;
 
 export const DigestRunListQuerySchema = z.strictObject({
-  project: z.string().trim().min(1).max(120).optional(),
+  project: plainText().min(1).max(120).optional(),
   limit: z.coerce.number().int().min(1).max(200).default(50),
 });
 
-export const DigestUpcomingQuerySchema = z.strictObject({ project: z.string().trim().min(1).max(120).optional() });
+export const DigestUpcomingQuerySchema = z.strictObject({ project: plainText().min(1).max(120).optional() });
 
 export const DigestPreviewQuerySchema = z.strictObject({ subscriberId: z.coerce.number({ error: "must be a number" }).int().positive() });
 

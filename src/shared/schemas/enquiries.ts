@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { CalendarDateSchema, EmailSchema } from "./common.ts";
+import { multilineText, plainText } from "./text.ts";
 
 /**
  * The HTTP contract of the enquiries module (server/enquiries ↔ src/features/enquiries):
@@ -16,23 +17,22 @@ export type EnquiryStatus = z.infer<typeof EnquiryStatusSchema>;
 export const VISIT_MAX_PARTY = 6;
 
 const contact = {
-  name: z.string({ error: "is required" }).trim().min(1, "is required").max(200, "must be at most 200 characters"),
+  name: plainText({ error: "is required" }).min(1, "is required").max(200, "must be at most 200 characters"),
   email: EmailSchema,
-  organisation: z.string().trim().max(200, "must be at most 200 characters").optional(),
-  phone: z
-    .string()
-    .trim()
+  organisation: plainText().max(200, "must be at most 200 characters").optional(),
+  phone: plainText()
     .max(40, "must be at most 40 characters")
     .regex(/^$|^[+()0-9 .-]{6,40}$/, "must be a telephone number: digits, spaces, + ( ) . -")
     .optional(),
   /**
    * The honeypot: hidden from people, tempting to form-filling robots. An enquiry that
-   * fills it gets the ordinary answer, and nothing is kept or sent.
+   * fills it gets the ordinary answer, and nothing is kept or sent. It takes any text, control
+   * characters included: refusing some would tell a robot which field is the trap.
    */
   website: z.string().max(500).optional(),
 };
 
-const Message = z.string().trim().max(4000, "must be at most 4000 characters");
+const Message = multilineText().max(4000, "must be at most 4000 characters");
 
 export const CapacityEnquirySchema = z.strictObject({
   kind: z.literal("capacity"),
@@ -75,7 +75,7 @@ export interface EnquiryAccepted {
 export const EnquiryListQuerySchema = z.strictObject({
   status: EnquiryStatusSchema.optional(),
   kind: EnquiryKindSchema.optional(),
-  projectSlug: z.string().max(100).optional(),
+  projectSlug: plainText({ trim: false }).max(100).optional(),
 });
 export type EnquiryListQuery = z.infer<typeof EnquiryListQuerySchema>;
 
@@ -84,7 +84,7 @@ export const EnquiryPatchSchema = z
   .strictObject({
     status: EnquiryStatusSchema.optional(),
     ownerId: z.number().int().positive().nullable().optional(),
-    notes: z.string().max(10_000, "must be at most 10,000 characters").optional(),
+    notes: multilineText({ trim: false }).max(10_000, "must be at most 10,000 characters").optional(),
   })
   .refine((v) => v.status !== undefined || v.ownerId !== undefined || v.notes !== undefined, { message: "change at least one thing" });
 export type EnquiryPatch = z.infer<typeof EnquiryPatchSchema>;

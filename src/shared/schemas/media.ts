@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { CalendarDateSchema } from "./common.ts";
 import { SystemSchema, type System } from "./programme.ts";
+import { multilineText, plainText } from "./text.ts";
 
 /**
  * The HTTP contract of the media library (server/media ↔ src/features/media), and the
@@ -23,7 +24,7 @@ export type TagKind = z.infer<typeof TagKindSchema>;
 /** The system whose photos may show access points, cameras and door hardware. */
 export const SECURITY_SYSTEM: System = "security";
 
-const Area = z.string().trim().min(1, "must not be empty").max(100, "must be at most 100 characters");
+const Area = plainText().min(1, "must not be empty").max(100, "must be at most 100 characters");
 
 /** Tags by kind; milestones are milestone ids of the photo's own project. */
 export const MediaTagsSchema = z.strictObject({
@@ -43,11 +44,9 @@ export const FocalSchema = z.strictObject({
 });
 export type Focal = z.infer<typeof FocalSchema>;
 
-/** Empty text means "none": stored as null. */
-const OptionalText = (max: number) =>
-  z
-    .string({ error: "must be text" })
-    .trim()
+/** Empty text means "none": stored as null. Alt text and captions are typed in text areas, so may hold line breaks. */
+const OptionalText = (max: number, lines: "one" | "several") =>
+  (lines === "one" ? plainText({ error: "must be text" }) : multilineText({ error: "must be text" }))
     .max(max, `must be at most ${max} characters`)
     .transform((s) => (s === "" ? null : s))
     .nullable();
@@ -55,9 +54,9 @@ const OptionalText = (max: number) =>
 /** PATCH /api/media/:id. `sensitivity` is for leads and admins only (403 otherwise). */
 export const MediaPatchInputSchema = z
   .strictObject({
-    altText: OptionalText(1000).optional(),
-    caption: OptionalText(2000).optional(),
-    credit: OptionalText(200).optional(),
+    altText: OptionalText(1000, "several").optional(),
+    caption: OptionalText(2000, "several").optional(),
+    credit: OptionalText(200, "one").optional(),
     tags: MediaTagsPatchSchema.optional(),
     focal: FocalSchema.optional(),
     sensitivity: SensitivitySchema.optional(),
@@ -93,7 +92,7 @@ export const MediaListQuerySchema = z
   .strictObject({
     project: ProjectSlug.optional(),
     /** Any tag of any kind with exactly this value (an area name, a system, a milestone id). */
-    tag: z.string().trim().min(1).max(100).optional(),
+    tag: plainText().min(1).max(100).optional(),
     area: Area.optional(),
     system: SystemSchema.optional(),
     milestone: z.coerce.number().int().positive().optional(),
@@ -103,7 +102,7 @@ export const MediaListQuerySchema = z
     status: MediaStatusSchema.optional(),
     missingAlt: QueryBool.optional(),
     flagged: QueryBool.optional(),
-    q: z.string().trim().max(100).optional(),
+    q: plainText().max(100).optional(),
     page: z.coerce.number().int().min(1).max(10_000).default(1),
     pageSize: z.coerce.number().int().min(1).max(100).default(48),
   })
@@ -220,7 +219,7 @@ export interface MediaPicture {
 
 /** GET /api/projects/:slug/gallery filters. */
 export const GalleryQuerySchema = z.strictObject({
-  area: z.string().trim().max(100).optional(),
+  area: plainText().max(100).optional(),
   system: SystemSchema.optional(),
   month: z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, "must be a month as YYYY-MM").optional(),
 });

@@ -1,7 +1,8 @@
 import { z } from "zod";
+import { plainText } from "./text.ts";
 
 export const OutboxQuerySchema = z.strictObject({
-  to: z.string().trim().toLowerCase().max(254).optional(),
+  to: plainText().toLowerCase().max(254).optional(),
   limit: z.coerce.number().int().min(1).max(500).default(100),
 });
 

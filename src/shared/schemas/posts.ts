@@ -2,6 +2,7 @@ import { z } from "zod";
 import { AudienceSchema, CalendarDateSchema, type Audience, type Role } from "./common.ts";
 import type { MediaPicture } from "./media.ts";
 import { RichTextDocSchema, type RichTextDoc } from "./rich-text.ts";
+import { multilineText, plainText } from "./text.ts";
 
 /**
  * The HTTP contract of updates (server/posts ↔ src/features/posts and the public pages).
@@ -29,12 +30,12 @@ export const ContentSlugSchema = z
 /** A tag of a post: an area ("Hall 2A") or a system ("cooling"). */
 export const PostTagSchema = z.strictObject({
   kind: z.enum(["area", "system"]),
-  value: z.string().trim().min(1, "is empty").max(100, "must be at most 100 characters"),
+  value: plainText().min(1, "is empty").max(100, "must be at most 100 characters"),
 });
 export type PostTag = z.infer<typeof PostTagSchema>;
 
-const Title = z.string({ error: "is required" }).trim().min(1, "is required").max(200, "must be at most 200 characters");
-const Summary = z.string().trim().max(600, "must be at most 600 characters");
+const Title = plainText({ error: "is required" }).min(1, "is required").max(200, "must be at most 200 characters");
+const Summary = multilineText().max(600, "must be at most 600 characters");
 const MediaId = z.number().int().positive();
 
 /** POST /api/projects/:slug/posts (marketing, lead, admin) → 201 `{ id, slug, status }`. Without `slug`, one is made from the title. */
@@ -68,7 +69,7 @@ export const PostPatchInputSchema = z
     milestoneIds: z.array(z.number().int().positive()).max(50).optional(),
     tags: z.array(PostTagSchema).max(30).optional(),
     slug: ContentSlugSchema.optional(),
-    note: z.string().trim().max(500).optional(),
+    note: plainText().max(500).optional(),
   })
   .refine((v) => Object.keys(v).some((k) => k !== "version" && k !== "note"), { message: "change at least one field" });
 export type PostPatchInput = z.infer<typeof PostPatchInputSchema>;
@@ -76,8 +77,8 @@ export type PostPatchInput = z.infer<typeof PostPatchInputSchema>;
 /** GET /api/projects/:slug/posts query. `status` is for staff only (others see published posts). */
 export const PostListQuerySchema = z.strictObject({
   page: z.coerce.number({ error: "must be a number" }).int().min(1).max(10_000).default(1),
-  tag: z.string().trim().min(1).max(100).optional(),
-  q: z.string().trim().min(1, "is empty").max(200, "must be at most 200 characters").optional(),
+  tag: plainText().min(1).max(100).optional(),
+  q: plainText().min(1, "is empty").max(200, "must be at most 200 characters").optional(),
   status: PostStatusSchema.optional(),
   audience: AudienceSchema.optional(),
 });
@@ -90,7 +91,7 @@ export const PostSlugParamsSchema = z.strictObject({
 
 /** POST /api/posts/:id/return (lead, admin): back to draft with the reviewer's comments. */
 export const ReturnInputSchema = z.strictObject({
-  comment: z.string({ error: "say what to change" }).trim().min(1, "say what to change").max(4000, "must be at most 4000 characters"),
+  comment: multilineText({ error: "say what to change" }).min(1, "say what to change").max(4000, "must be at most 4000 characters"),
 });
 
 /**

@@ -2,6 +2,7 @@ import { z } from "zod";
 import { AudienceSchema, CalendarDateSchema, type Audience } from "./common.ts";
 import type { MilestoneStatus } from "../domain/programme-health.ts";
 import type { MilestoneMove } from "../domain/programme-changes.ts";
+import { multilineText, plainText } from "./text.ts";
 
 /**
  * The HTTP contract of the programme module (server/programme ↔ src/features/programme).
@@ -11,7 +12,7 @@ import type { MilestoneMove } from "../domain/programme-changes.ts";
 export const SystemSchema = z.enum(["building", "cooling", "power", "fuel", "security", "fit-out", "commissioning"]);
 export type System = z.infer<typeof SystemSchema>;
 
-const Name = z.string().trim().min(1, "is required").max(200, "must be at most 200 characters");
+const Name = plainText().min(1, "is required").max(200, "must be at most 200 characters");
 const Percent = z.number({ error: "must be a number" }).min(0, "must be between 0 and 100").max(100, "must be between 0 and 100");
 const Weight = z.number({ error: "must be a number" }).gt(0, "must be greater than 0").max(1_000_000);
 const Budget = z.number().int("must be whole minor units").min(0, "must not be negative").max(1e15);
@@ -20,9 +21,9 @@ const DateOrNull = CalendarDateSchema.nullable();
 const MilestoneFields = {
   name: Name,
   phase: Name,
-  area: z.string().trim().max(100).default(""),
+  area: plainText().max(100).default(""),
   system: SystemSchema,
-  description: z.string().max(5000).default(""),
+  description: multilineText({ trim: false }).max(5000).default(""),
   weight: Weight,
   percentComplete: Percent.default(0),
   plannedStart: DateOrNull.default(null),
@@ -51,9 +52,9 @@ export const MilestonePatchInputSchema = z.strictObject({
   version: z.number().int().min(1),
   name: Name.optional(),
   phase: Name.optional(),
-  area: z.string().trim().max(100).optional(),
+  area: plainText().max(100).optional(),
   system: SystemSchema.optional(),
-  description: z.string().max(5000).optional(),
+  description: multilineText({ trim: false }).max(5000).optional(),
   weight: Weight.optional(),
   percentComplete: Percent.optional(),
   plannedStart: DateOrNull.optional(),
@@ -63,15 +64,30 @@ export const MilestonePatchInputSchema = z.strictObject({
   budget: Budget.nullable().optional(),
   dependsOn: z.array(z.number().int().positive()).max(100).optional(),
   /** Kept with the change in the milestone's history. */
-  note: z.string().trim().max(1000).optional(),
+  note: multilineText().max(1000).optional(),
 });
 export type MilestonePatchInput = z.infer<typeof MilestonePatchInputSchema>;
 
 /** POST /api/projects/:slug/milestones/shift — move several forecasts by N working days. */
+/**
+ * POST /api/milestones/:id/remove and /restore. A milestone that has been on record (in a
+ * baseline, linked by an update or a photo, or moved since it was entered) is never deleted:
+ * it is removed from the programme with a reason, which its history and "what moved" keep.
+ */
+export const MilestoneRemovalInputSchema = z.strictObject({
+  reason: multilineText({ error: "say why (at least 5 characters)" }).min(5, "say why (at least 5 characters)").max(1000, "must be at most 1000 characters"),
+});
+export type MilestoneRemovalInput = z.infer<typeof MilestoneRemovalInputSchema>;
+
+/** DELETE /api/milestones/:id (optional body): only for a milestone entered by mistake and never on record. */
+export const MilestoneDeleteInputSchema = z.strictObject({
+  reason: multilineText().max(1000, "must be at most 1000 characters").optional(),
+});
+
 export const ShiftInputSchema = z.strictObject({
   ids: z.array(z.number().int().positive()).min(1, "choose at least one milestone").max(500),
   workingDays: z.number().int().min(-500).max(500).refine((n) => n !== 0, "must not be 0"),
-  note: z.string().trim().max(1000).optional(),
+  note: multilineText().max(1000).optional(),
 });
 export type ShiftInput = z.infer<typeof ShiftInputSchema>;
 
@@ -81,7 +97,7 @@ export type ShiftInput = z.infer<typeof ShiftInputSchema>;
  * particular ones. The previous version's snapshot is kept.
  */
 export const BaselineInputSchema = z.strictObject({
-  reason: z.string().trim().min(5, "say why the programme is re-baselined (at least 5 characters)").max(1000),
+  reason: multilineText().min(5, "say why the programme is re-baselined (at least 5 characters)").max(1000),
   adoptForecasts: z.boolean().default(true),
   overrides: z
     .array(z.strictObject({ id: z.number().int().positive(), plannedStart: DateOrNull.optional(), baselineFinish: CalendarDateSchema }))
@@ -100,8 +116,10 @@ export const MilestoneListQuerySchema = z.strictObject({
   at: CalendarDateSchema.optional(),
   audience: AudienceSchema.optional(),
   system: SystemSchema.optional(),
-  area: z.string().max(100).optional(),
+  area: plainText({ trim: false }).max(100).optional(),
   status: z.enum(["complete", "on_programme", "at_risk", "behind"]).optional(),
+  /** Milestones removed from the programme: hidden by default; `include` lists them too, `only` lists just them (each with `removal`). */
+  removed: z.enum(["exclude", "include", "only"]).default("exclude"),
 });
 
 /** One milestone as the API returns it; status and slip are computed at the request's date. */
@@ -129,6 +147,14 @@ export interface Milestone {
   slipWorkingDays: number;
   version: number;
   updatedAt: string;
+  /** Set when the milestone was removed from the programme: it no longer counts in any figure. */
+  removal: MilestoneRemoval | null;
+}
+
+export interface MilestoneRemoval {
+  at: string;
+  by: string | null;
+  reason: string;
 }
 
 export type MilestoneEventFieldName =
@@ -138,7 +164,9 @@ export type MilestoneEventFieldName =
   | "baseline_finish"
   | "audience"
   | "planned_start"
-  | "weight";
+  | "weight"
+  /** "false" → "true" when removed from the programme, "true" → "false" when restored; the note is the reason. */
+  | "removed";
 
 /** GET /api/milestones/:id/events and GET /api/projects/:slug/changes rows. */
 export interface MilestoneEventRow {
@@ -197,7 +225,7 @@ export const CurveQuerySchema = z
 
 /** POST /api/projects/:slug/milestones/import. */
 export const CsvImportInputSchema = z.strictObject({
-  csv: z.string({ error: "is required" }).min(1, "is empty").max(2_000_000, "is too large"),
+  csv: multilineText({ error: "is required", trim: false }).min(1, "is empty").max(2_000_000, "is too large"),
 });
 
 export const BaselineParamSchema = z.strictObject({

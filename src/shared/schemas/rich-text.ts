@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { foldLines, stripControls } from "./text.ts";
 
 /**
  * The rich-text document of posts: the editor's (tiptap/ProseMirror) JSON, limited to the
@@ -13,6 +14,12 @@ import { z } from "zod";
  *
  * The editor may send the attributes tiptap keeps with default values (`null`); unknown
  * attributes are dropped, unknown node and mark types are refused.
+ *
+ * Control characters (see text.ts) are removed rather than refused: a body is pasted from
+ * anywhere, and one stray character should not cost the writer the whole document. Text keeps
+ * tab and line breaks. In attribute values a link target loses them too, as a browser's URL
+ * parser would; alt text, captions and titles get a space for each run of them. A text node
+ * left empty is dropped.
  */
 
 export const RICH_TEXT_NODE_TYPES = [
@@ -165,6 +172,42 @@ function depthAndCount(value: unknown, depth: number, acc: { nodes: number; dept
   if (Array.isArray(content)) for (const child of content) depthAndCount(child, depth + 1, acc);
 }
 
+const cleanAttr = (key: string, value: string) => (key === "href" ? stripControls(value, false) : foldLines(stripControls(value)));
+
+const cleanAttrs = (attrs: unknown): unknown => {
+  if (!attrs || typeof attrs !== "object" || Array.isArray(attrs)) return attrs;
+  return Object.fromEntries(Object.entries(attrs).map(([k, v]) => [k, typeof v === "string" ? cleanAttr(k, v) : v]));
+};
+
+const cleanMarks = (marks: unknown): unknown =>
+  Array.isArray(marks) ? marks.map((m) => (m && typeof m === "object" && !Array.isArray(m) && "attrs" in m ? { ...m, attrs: cleanAttrs(m.attrs) } : m)) : marks;
+
+/**
+ * The document with control characters removed from text nodes and from the string values of
+ * node and mark attributes. Runs on the raw input after the depth check (so recursion is
+ * bounded); anything not shaped like a node is left for the shape check to refuse.
+ */
+function cleanNode(value: unknown): unknown {
+  if (!value || typeof value !== "object" || Array.isArray(value)) return value;
+  const node = { ...(value as Record<string, unknown>) };
+  if (typeof node.text === "string") node.text = stripControls(node.text);
+  if ("attrs" in node) node.attrs = cleanAttrs(node.attrs);
+  if ("marks" in node) node.marks = cleanMarks(node.marks);
+  if (Array.isArray(node.content)) node.content = node.content.filter((child) => !onlyControls(child)).map(cleanNode);
+  return node;
+}
+
+/** A text node that had text and would have none left. */
+function onlyControls(value: unknown): boolean {
+  const text = value && typeof value === "object" ? (value as { type?: unknown; text?: unknown }) : null;
+  return text?.type === "text" && typeof text.text === "string" && text.text !== "" && stripControls(text.text) === "";
+}
+
+/** A stored or received document with control characters removed (see above); the renderer applies it to older bodies too. */
+export function cleanRichText<T>(doc: T): T {
+  return cleanNode(doc) as T;
+}
+
 const DocShape = z.strictObject({
   type: z.literal("doc", { error: 'must be a document (type "doc")' }),
   attrs: NoAttrs,
@@ -182,6 +225,7 @@ export const RichTextDocSchema = z
     depthAndCount(v, 1, acc);
     return acc.depth <= MAX_RICH_TEXT_DEPTH && acc.nodes <= MAX_RICH_TEXT_NODES;
   }, `must be an editor document (at most ${MAX_RICH_TEXT_DEPTH} levels deep and ${MAX_RICH_TEXT_NODES} nodes)`)
+  .transform(cleanNode)
   .pipe(DocShape) as unknown as z.ZodType<RichTextDoc>;
 
 /** An empty document: one empty paragraph, as the editor starts. */

@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { AudienceSchema, type Audience } from "./common.ts";
 import { ContentSlugSchema, type MediaPicture, type PostStatus, type PublishingProblem, type RevisionDiff } from "./posts.ts";
+import { multilineText, plainText } from "./text.ts";
 
 /**
  * The HTTP contract of photo stories (server/stories ↔ src/features/stories and the public pages).
@@ -16,7 +17,7 @@ import { ContentSlugSchema, type MediaPicture, type PostStatus, type PublishingP
  * /api/stories/:id/history lists the workflow steps; an old address answers 301 (see StoryDetail).
  */
 
-const Caption = z.string().trim().max(1000, "must be at most 1000 characters");
+const Caption = multilineText().max(1000, "must be at most 1000 characters");
 const MediaId = z.number({ error: "must name a photo from the media library" }).int().positive();
 
 export const StoryItemInputSchema = z.discriminatedUnion("kind", [
@@ -24,7 +25,7 @@ export const StoryItemInputSchema = z.discriminatedUnion("kind", [
   z
     .strictObject({
       kind: z.literal("pair"),
-      area: z.string().trim().min(1, "name the area both photos show").max(100),
+      area: plainText().min(1, "name the area both photos show").max(100),
       beforeMediaId: MediaId,
       afterMediaId: MediaId,
       caption: Caption.default(""),
@@ -37,8 +38,8 @@ const Items = z.array(StoryItemInputSchema).max(200, "a story holds at most 200 
 
 /** POST /api/projects/:slug/stories (marketing, lead, admin) → 201 `{ id, slug, status }`. */
 export const StoryCreateInputSchema = z.strictObject({
-  title: z.string({ error: "is required" }).trim().min(1, "is required").max(200, "must be at most 200 characters"),
-  intro: z.string().trim().max(4000, "must be at most 4000 characters").default(""),
+  title: plainText({ error: "is required" }).min(1, "is required").max(200, "must be at most 200 characters"),
+  intro: multilineText().max(4000, "must be at most 4000 characters").default(""),
   audience: AudienceSchema,
   slug: ContentSlugSchema.optional(),
   items: Items.default([]),
@@ -53,12 +54,12 @@ export type StoryCreateInput = z.infer<typeof StoryCreateInputSchema>;
 export const StoryPatchInputSchema = z
   .strictObject({
     version: z.number().int().min(1).optional(),
-    title: z.string().trim().min(1, "is required").max(200, "must be at most 200 characters").optional(),
-    intro: z.string().trim().max(4000, "must be at most 4000 characters").optional(),
+    title: plainText().min(1, "is required").max(200, "must be at most 200 characters").optional(),
+    intro: multilineText().max(4000, "must be at most 4000 characters").optional(),
     audience: AudienceSchema.optional(),
     slug: ContentSlugSchema.optional(),
     items: Items.optional(),
-    note: z.string().trim().max(500, "must be at most 500 characters").optional(),
+    note: plainText().max(500, "must be at most 500 characters").optional(),
   })
   .refine((v) => Object.keys(v).some((k) => k !== "version" && k !== "note"), { message: "change at least one field" });
 export type StoryPatchInput = z.infer<typeof StoryPatchInputSchema>;

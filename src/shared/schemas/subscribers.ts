@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { EmailSchema } from "./common.ts";
 import { SystemSchema, type System } from "./programme.ts";
+import { multilineText, plainText } from "./text.ts";
 
 /**
  * The HTTP contract of the subscribers module (server/subscribers ↔ src/features/subscribers):
@@ -34,7 +35,7 @@ const ProjectSlugSchema = z
   .regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address")
   .max(100);
 
-const AreaNameSchema = z.string().trim().min(1, "must not be empty").max(100, "must be at most 100 characters");
+const AreaNameSchema = plainText().min(1, "must not be empty").max(100, "must be at most 100 characters");
 
 /**
  * Topics: the areas (e.g. "Hall 2A") and plant systems a subscriber follows. An item
@@ -51,8 +52,8 @@ export const TopicsSchema = z
   });
 export type Topics = z.infer<typeof TopicsSchema>;
 
-const NameSchema = z.string({ error: "is required" }).trim().min(1, "is required").max(200, "must be at most 200 characters");
-const OrganisationSchema = z.string().trim().max(200, "must be at most 200 characters");
+const NameSchema = plainText({ error: "is required" }).min(1, "is required").max(200, "must be at most 200 characters");
+const OrganisationSchema = plainText().max(200, "must be at most 200 characters");
 
 /** POST /api/subscriptions → 202, the same answer whether or not the address is known. */
 export const SubscriptionInputSchema = z.strictObject({
@@ -154,7 +155,7 @@ export interface InvestorDigestSetting {
 
 /** A topic filter or CSV topic: `area:Hall 2A` or `system:cooling`. */
 export const TopicRefSchema = z.union([
-  z.string().regex(/^area:.{1,100}$/, "must look like area:Hall 2A or system:cooling"),
+  plainText({ trim: false }).regex(/^area:.{1,100}$/, "must look like area:Hall 2A or system:cooling"),
   z.templateLiteral(["system:", SystemSchema]),
 ]);
 
@@ -166,7 +167,7 @@ export const SubscriberListQuerySchema = z.strictObject({
   frequency: FrequencySchema.optional(),
   /** Subscribers who would receive this topic: those following it, and those following everything. */
   topic: TopicRefSchema.optional(),
-  q: z.string().trim().max(200).optional(),
+  q: plainText().max(200).optional(),
 });
 export type SubscriberListQuery = z.infer<typeof SubscriberListQuerySchema>;
 
@@ -226,7 +227,7 @@ export const SUBSCRIBER_IMPORT_MAX_ROWS = 5000;
 /** POST /api/subscribers/import */
 export const SubscriberImportInputSchema = z.strictObject({
   projectSlug: ProjectSlugSchema,
-  csv: z.string({ error: "is required" }).min(1, "is empty").max(2_000_000, "is too large"),
+  csv: multilineText({ error: "is required", trim: false }).min(1, "is empty").max(2_000_000, "is too large"),
 });
 export type SubscriberImportInput = z.infer<typeof SubscriberImportInputSchema>;
 
@@ -259,7 +260,7 @@ export const MailEventsInputSchema = z.strictObject({
   events: z
     .array(
       z.strictObject({
-        id: z.string().max(200).optional(),
+        id: plainText({ trim: false }).max(200).optional(),
         type: z.enum(["bounce", "complaint"]),
         email: EmailSchema,
         permanent: z.boolean().default(true),

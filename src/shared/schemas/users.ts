@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { EmailSchema, RoleSchema } from "./common.ts";
+import { plainText } from "./text.ts";
 
 export const InviteInputSchema = z.strictObject({ email: EmailSchema, role: RoleSchema });
 export type InviteInput = z.infer<typeof InviteInputSchema>;
@@ -30,7 +31,7 @@ export interface InvitationRow {
 }
 
 export const AuditQuerySchema = z.strictObject({
-  action: z.string().max(64).optional(),
+  action: plainText({ trim: false }).max(64).optional(),
   before: z.coerce.number().int().positive().optional(),
   limit: z.coerce.number().int().min(1).max(500).default(100),
 });

@@ -6,12 +6,14 @@ import { StatusMark } from "../../../components/ui/status-mark.tsx";
 import { formatDate, formatInstant, SYSTEM_WORD } from "../../../lib/format.ts";
 import { useMilestoneDrivers, useMilestoneEvents } from "../api.ts";
 import { AUDIENCE_WORD, FIELD_WORD, signedDays } from "../words.ts";
+import { MilestoneRemoval } from "./milestone-removal.tsx";
 
 function valueOf(e: MilestoneEventRow, v: string | null): string {
   if (v === null || v === "") return "none";
   if (e.field.endsWith("_finish") || e.field === "planned_start") return formatDate(v);
   if (e.field === "percent_complete") return `${v}%`;
   if (e.field === "audience") return AUDIENCE_WORD[v as keyof typeof AUDIENCE_WORD] ?? v;
+  if (e.field === "removed") return v === "true" ? "removed" : "in the programme";
   return v;
 }
 
@@ -61,8 +63,21 @@ function History({ id, timeZone }: { id: number; timeZone: string }) {
   );
 }
 
-/** One milestone's record: its dates, what drives its forecast, and every recorded change. */
-export function MilestoneHistoryDialog({ milestone, timeZone, onClose }: { milestone: Milestone | null; timeZone: string; onClose: () => void }) {
+/**
+ * One milestone's record: its dates, what drives its forecast, and every recorded change;
+ * with `removal` (leads and admins), removing it from the programme or restoring it.
+ */
+export function MilestoneHistoryDialog({
+  milestone,
+  timeZone,
+  onClose,
+  removal,
+}: {
+  milestone: Milestone | null;
+  timeZone: string;
+  onClose: () => void;
+  removal?: { slug: string };
+}) {
   const ref = useRef<HTMLDialogElement>(null);
   useEffect(() => {
     const d = ref.current;
@@ -134,6 +149,7 @@ export function MilestoneHistoryDialog({ milestone, timeZone, onClose }: { miles
             <h3 className="mb-1 font-semibold">History</h3>
             <History id={milestone.id} timeZone={timeZone} />
           </section>
+          {removal ? <MilestoneRemoval key={milestone.id} slug={removal.slug} milestone={milestone} timeZone={timeZone} onDone={() => ref.current?.close()} /> : null}
         </div>
       ) : null}
     </dialog>

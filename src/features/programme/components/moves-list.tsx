@@ -25,10 +25,16 @@ export function describeMove(move: MilestoneMove): string {
       return `Progress ${move.from ?? 0}% → ${move.to ?? 0}%`;
     case "audience_changed":
       return `Now shown to: ${AUDIENCE_WORD[move.to as keyof typeof AUDIENCE_WORD] ?? move.to}`;
+    case "removed":
+      return "Removed from the programme: it no longer counts in the figures";
+    case "restored":
+      return "Put back into the programme";
   }
 }
 
 const MARK: Record<MilestoneMove["kind"], string> = {
+  removed: "✕",
+  restored: "↺",
   completed: "●",
   reopened: "○",
   rebaselined: "◇",
