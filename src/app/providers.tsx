@@ -1,10 +1,9 @@
-import { QueryClientProvider } from "@tanstack/react-query";
-import { useState, type ReactNode } from "react";
+import { QueryClientProvider, type QueryClient } from "@tanstack/react-query";
+import type { ReactNode } from "react";
 import { Toaster } from "sonner";
-import { createQueryClient } from "../lib/query-client.ts";
 
-export function Providers({ children }: { children: ReactNode }) {
-  const [client] = useState(createQueryClient);
+/** The app's query cache (shared with the router's loaders, which prime it) and the toasts. */
+export function Providers({ client, children }: { client: QueryClient; children: ReactNode }) {
   return (
     <QueryClientProvider client={client}>
       {children}

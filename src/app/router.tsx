@@ -1,76 +1,126 @@
-import { createBrowserRouter, type RouteObject } from "react-router-dom";
-import { HomePage } from "../features/projects/routes.tsx";
+import type { QueryClient } from "@tanstack/react-query";
+import type { ComponentType } from "react";
+import { createBrowserRouter, type LoaderFunction, type RouteObject } from "react-router-dom";
+import { homeLoader, HomePage } from "../features/projects/routes.tsx";
+import type { RouteLoader } from "../lib/loaders.ts";
 import { PublicLayout } from "./layouts/public-layout.tsx";
-import { NotFoundPage, RouteErrorPage } from "./pages/misc-pages.tsx";
+import { FirstLoad, NotFoundPage, RouteErrorPage } from "./pages/misc-pages.tsx";
 
 // The site office and investor room load only when visited: public pages never carry their code.
 // The sign-in forms (zod, react-hook-form) load on their own too, so a visitor's first page stays light.
 // The public programme pieces load on their own, without the office's table or the charts;
 // the public project pages (updates, gallery, stories) never carry the editor.
+// A page's loader comes in its own chunk with it, and primes the cache before the page renders.
 
-const routes: RouteObject[] = [
-  {
-    path: "/",
-    element: <PublicLayout />,
-    errorElement: <RouteErrorPage />,
-    children: [
-      { index: true, element: <HomePage /> },
-      { path: "projects/:slug", lazy: async () => ({ Component: (await import("./pages/project-home-page.tsx")).ProjectHomePage }) },
-      { path: "projects/:slug/updates", lazy: async () => ({ Component: (await import("../features/site/routes.tsx")).UpdatesPage }) },
-      { path: "projects/:slug/updates/:postSlug", lazy: async () => ({ Component: (await import("../features/site/routes.tsx")).PostPage }) },
-      { path: "projects/:slug/gallery", lazy: async () => ({ Component: (await import("../features/site/routes.tsx")).GalleryPage }) },
-      { path: "projects/:slug/search", lazy: async () => ({ Component: (await import("../features/site/routes.tsx")).SearchPage }) },
-      { path: "projects/:slug/stories/:storySlug", lazy: async () => ({ Component: (await import("../features/site/routes.tsx")).StoryPage }) },
-      { path: "projects/:slug/timeline", lazy: async () => ({ Component: (await import("../features/programme/public-routes.tsx")).PublicTimelinePage }) },
-      { path: "subscribe", lazy: async () => ({ Component: (await import("../features/subscribers/routes.tsx")).SubscribePage }) },
-      { path: "projects/:slug/subscribe", lazy: async () => ({ Component: (await import("../features/subscribers/routes.tsx")).ProjectSubscribePage }) },
-      { path: "subscriptions/confirm/:token", lazy: async () => ({ Component: (await import("../features/subscribers/routes.tsx")).ConfirmSubscriptionPage }) },
-      { path: "subscriptions/preferences/:token", lazy: async () => ({ Component: (await import("../features/subscribers/routes.tsx")).PreferencesPage }) },
-      { path: "u/:token", lazy: async () => ({ Component: (await import("../features/subscribers/routes.tsx")).OneClickUnsubscribePage }) },
-      { path: "projects/:slug/enquire", lazy: async () => ({ Component: (await import("../features/enquiries/routes.tsx")).EnquirePage }) },
-      { path: "sign-in", lazy: async () => ({ Component: (await import("../features/auth/routes.tsx")).SignInPage }) },
-      { path: "invitations/:token", lazy: async () => ({ Component: (await import("../features/auth/routes.tsx")).AcceptInvitationPage }) },
-      { path: "forgot-password", lazy: async () => ({ Component: (await import("../features/auth/routes.tsx")).ForgotPasswordPage }) },
-      { path: "reset-password/:token", lazy: async () => ({ Component: (await import("../features/auth/routes.tsx")).ResetPasswordPage }) },
-      { path: "*", element: <NotFoundPage /> },
-    ],
-  },
-  {
-    path: "/office",
-    errorElement: <RouteErrorPage />,
-    lazy: async () => ({ Component: (await import("./layouts/office-layout.tsx")).OfficeLayout }),
-    children: [
-      { index: true, lazy: async () => ({ Component: (await import("./pages/office-home.tsx")).OfficeHomePage }) },
-      { path: "programme", lazy: async () => ({ Component: (await import("../features/programme/routes.tsx")).ProgrammePage }) },
-      { path: "programme/walk", lazy: async () => ({ Component: (await import("../features/programme/routes.tsx")).SiteWalkPage }) },
-      { path: "media", lazy: async () => ({ Component: (await import("../features/media/routes.tsx")).MediaLibraryPage }) },
-      { path: "media/review", lazy: async () => ({ Component: (await import("../features/media/routes.tsx")).MediaReviewPage }) },
-      { path: "updates", lazy: async () => ({ Component: (await import("../features/posts/routes.tsx")).PostsPage }) },
-      // The editor (tiptap) is its own chunk: only someone opening an update loads it.
-      { path: "updates/:id", lazy: async () => ({ Component: (await import("../features/posts/editor-page.tsx")).PostEditorPage }) },
-      { path: "stories", lazy: async () => ({ Component: (await import("../features/stories/routes.tsx")).StoriesPage }) },
-      { path: "stories/:id", lazy: async () => ({ Component: (await import("../features/stories/routes.tsx")).StoryEditorPage }) },
-      { path: "outbox", lazy: async () => ({ Component: (await import("../features/outbox/routes.tsx")).OutboxPage }) },
-      { path: "outbox/:id", lazy: async () => ({ Component: (await import("../features/outbox/routes.tsx")).OutboxMessagePage }) },
-      { path: "subscribers", lazy: async () => ({ Component: (await import("../features/subscribers/routes.tsx")).SubscribersPage }) },
-      { path: "enquiries", lazy: async () => ({ Component: (await import("../features/enquiries/routes.tsx")).EnquiriesPage }) },
-      { path: "digests", lazy: async () => ({ Component: (await import("../features/digests/routes.tsx")).DigestsPage }) },
-      { path: "users", lazy: async () => ({ Component: (await import("./pages/admin-pages.tsx")).AdminUsersPage }) },
-      { path: "audit", lazy: async () => ({ Component: (await import("./pages/admin-pages.tsx")).AdminAuditPage }) },
-      { path: "*", element: <NotFoundPage /> },
-    ],
-  },
-  {
-    path: "/investors",
-    errorElement: <RouteErrorPage />,
-    lazy: async () => ({ Component: (await import("./layouts/investor-layout.tsx")).InvestorLayout }),
-    children: [
-      { index: true, lazy: async () => ({ Component: (await import("./pages/investor-pages.tsx")).InvestorHomePage }) },
-      { path: "digest", lazy: async () => ({ Component: (await import("../features/subscribers/routes.tsx")).InvestorDigestPage }) },
-      { path: "projects/:slug", lazy: async () => ({ Component: (await import("./pages/investor-pages.tsx")).InvestorProjectPage }) },
-      { path: "*", element: <NotFoundPage /> },
-    ],
-  },
-];
+interface Where {
+  /** What the page shows, for its error element ("No such update"). */
+  what?: string;
+  home?: string;
+  homeLabel?: string;
+}
 
-export const createRouter = () => createBrowserRouter(routes);
+const OFFICE: Where = { home: "/office", homeLabel: "Site office" };
+const INVESTORS: Where = { home: "/investors", homeLabel: "Investor room" };
+
+/** A page of a lazily loaded module: its component, its loader when it has one, and an error element of its own. */
+function page(qc: QueryClient, path: string | undefined, load: () => Promise<{ Component: ComponentType; loader?: RouteLoader }>, where: Where = {}): RouteObject {
+  return {
+    ...(path === undefined ? { index: true } : { path }),
+    errorElement: <RouteErrorPage {...where} />,
+    lazy: async () => {
+      const { Component, loader } = await load();
+      return loader ? { Component, loader: loader(qc) as LoaderFunction } : { Component };
+    },
+  };
+}
+
+function routes(qc: QueryClient): RouteObject[] {
+  const site = () => import("../features/public-site/routes.tsx");
+  const subscribers = () => import("../features/subscribers/routes.tsx");
+  const auth = () => import("../features/auth/routes.tsx");
+  const programme = () => import("../features/programme/routes.tsx");
+  const media = () => import("../features/media/routes.tsx");
+  const stories = () => import("../features/stories/routes.tsx");
+  const outbox = () => import("../features/outbox/routes.tsx");
+  const admin = () => import("./pages/admin-pages.tsx");
+  const investors = () => import("./pages/investor-pages.tsx");
+  return [
+    {
+      path: "/",
+      element: <PublicLayout />,
+      errorElement: <RouteErrorPage />,
+      HydrateFallback: FirstLoad,
+      children: [
+        { index: true, element: <HomePage />, loader: homeLoader(qc), errorElement: <RouteErrorPage /> },
+        page(qc, "projects/:slug", async () => {
+          const m = await import("./pages/project-home-page.tsx");
+          return { Component: m.ProjectHomePage, loader: m.projectHomeLoader };
+        }, { what: "project" }),
+        page(qc, "projects/:slug/updates", async () => ({ Component: (await site()).UpdatesPage, loader: (await site()).updatesLoader }), { what: "list of updates" }),
+        page(qc, "projects/:slug/updates/:postSlug", async () => ({ Component: (await site()).PostPage, loader: (await site()).postLoader }), { what: "update" }),
+        page(qc, "projects/:slug/gallery", async () => ({ Component: (await site()).GalleryPage, loader: (await site()).galleryLoader }), { what: "gallery" }),
+        page(qc, "projects/:slug/search", async () => ({ Component: (await site()).SearchPage })),
+        page(qc, "projects/:slug/stories/:storySlug", async () => ({ Component: (await site()).StoryPage, loader: (await site()).storyLoader }), { what: "photo story" }),
+        page(qc, "projects/:slug/timeline", async () => ({ Component: (await import("../features/programme/public-routes.tsx")).PublicTimelinePage }), { what: "timeline" }),
+        page(qc, "subscribe", async () => ({ Component: (await subscribers()).SubscribePage })),
+        page(qc, "projects/:slug/subscribe", async () => ({ Component: (await subscribers()).ProjectSubscribePage }), { what: "project" }),
+        page(qc, "subscriptions/confirm/:token", async () => ({ Component: (await subscribers()).ConfirmSubscriptionPage }), { what: "confirmation" }),
+        page(qc, "subscriptions/preferences/:token", async () => ({ Component: (await subscribers()).PreferencesPage }), { what: "subscription" }),
+        page(qc, "u/:token", async () => ({ Component: (await subscribers()).OneClickUnsubscribePage }), { what: "subscription" }),
+        page(qc, "projects/:slug/enquire", async () => ({ Component: (await import("../features/enquiries/routes.tsx")).EnquirePage }), { what: "project" }),
+        page(qc, "sign-in", async () => ({ Component: (await auth()).SignInPage })),
+        page(qc, "invitations/:token", async () => ({ Component: (await auth()).AcceptInvitationPage }), { what: "invitation" }),
+        page(qc, "forgot-password", async () => ({ Component: (await auth()).ForgotPasswordPage })),
+        page(qc, "reset-password/:token", async () => ({ Component: (await auth()).ResetPasswordPage })),
+        { path: "*", element: <NotFoundPage /> },
+      ],
+    },
+    {
+      path: "/office",
+      errorElement: <RouteErrorPage {...OFFICE} />,
+      HydrateFallback: FirstLoad,
+      lazy: async () => ({ Component: (await import("./layouts/office-layout.tsx")).OfficeLayout }),
+      children: [
+        page(qc, undefined, async () => ({ Component: (await import("./pages/office-home.tsx")).OfficeHomePage }), OFFICE),
+        page(qc, "programme", async () => ({ Component: (await programme()).ProgrammePage }), OFFICE),
+        page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage }), OFFICE),
+        page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage }), OFFICE),
+        page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage }), OFFICE),
+        page(qc, "updates", async () => {
+          const m = await import("../features/posts/routes.tsx");
+          return { Component: m.PostsPage, loader: m.postsLoader };
+        }, OFFICE),
+        // The editor (tiptap) is its own chunk: only someone opening an update loads it.
+        page(qc, "updates/:id", async () => {
+          const m = await import("../features/posts/editor-page.tsx");
+          return { Component: m.PostEditorPage, loader: m.postEditorLoader };
+        }, { ...OFFICE, what: "update" }),
+        page(qc, "stories", async () => ({ Component: (await stories()).StoriesPage, loader: (await stories()).storiesLoader }), OFFICE),
+        page(qc, "stories/:id", async () => ({ Component: (await stories()).StoryEditorPage, loader: (await stories()).storyEditorLoader }), { ...OFFICE, what: "photo story" }),
+        page(qc, "outbox", async () => ({ Component: (await outbox()).OutboxPage }), OFFICE),
+        page(qc, "outbox/:id", async () => ({ Component: (await outbox()).OutboxMessagePage }), { ...OFFICE, what: "message" }),
+        page(qc, "subscribers", async () => ({ Component: (await subscribers()).SubscribersPage }), OFFICE),
+        page(qc, "enquiries", async () => ({ Component: (await import("../features/enquiries/routes.tsx")).EnquiriesPage }), OFFICE),
+        page(qc, "digests", async () => ({ Component: (await import("../features/digests/routes.tsx")).DigestsPage }), OFFICE),
+        page(qc, "users", async () => ({ Component: (await admin()).AdminUsersPage }), OFFICE),
+        page(qc, "audit", async () => ({ Component: (await admin()).AdminAuditPage }), OFFICE),
+        { path: "*", element: <NotFoundPage /> },
+      ],
+    },
+    {
+      path: "/investors",
+      errorElement: <RouteErrorPage {...INVESTORS} />,
+      HydrateFallback: FirstLoad,
+      lazy: async () => ({ Component: (await import("./layouts/investor-layout.tsx")).InvestorLayout }),
+      children: [
+        page(qc, undefined, async () => ({ Component: (await investors()).InvestorHomePage, loader: (await investors()).investorHomeLoader }), INVESTORS),
+        page(qc, "digest", async () => ({ Component: (await subscribers()).InvestorDigestPage }), INVESTORS),
+        page(qc, "projects/:slug", async () => ({ Component: (await investors()).InvestorProjectPage, loader: (await investors()).investorProjectLoader }), { ...INVESTORS, what: "project" }),
+        { path: "*", element: <NotFoundPage /> },
+      ],
+    },
+  ];
+}
+
+/** The app's routes on the browser's history; loaders prime `queryClient`, the cache the pages read. */
+export const createRouter = (queryClient: QueryClient) => createBrowserRouter(routes(queryClient));

@@ -1,4 +1,4 @@
-import { queryOptions, type QueryKey } from "@tanstack/react-query";
+import { queryOptions, type QueryClient, type QueryKey } from "@tanstack/react-query";
 import { useSearchParams } from "react-router-dom";
 import type { Project } from "#shared/schemas/projects.ts";
 import { api } from "./api-client.ts";
@@ -33,4 +33,10 @@ export function useProjectParam(projects: readonly Project[] | undefined): { slu
         return next;
       }),
   };
+}
+
+/** In a loader: the project a site-office page will work on (`?project=` or the first one), with the list primed. */
+export async function officeProjectSlug(qc: QueryClient, list: ReturnType<typeof projectListQueryOptions>, search: URLSearchParams): Promise<string> {
+  const projects = await qc.ensureQueryData(list);
+  return search.get("project") ?? projects[0]?.slug ?? "";
 }

@@ -4,7 +4,7 @@ import type { MediaPicture } from "../../src/shared/schemas/media.ts";
 import { AudienceMark } from "../../src/components/ui/audience-mark.tsx";
 import { Lightbox } from "../../src/components/ui/lightbox.tsx";
 import { WorkflowActions } from "../../src/components/ui/workflow-actions.tsx";
-import { PostBody, splitBody } from "../../src/features/site/components/post-body.tsx";
+import { PostBody, splitBody } from "../../src/features/public-site/components/post-body.tsx";
 
 const names = () => within(screen.getByRole("group", { name: "Publishing" })).getAllByRole("button").map((b) => b.textContent);
 

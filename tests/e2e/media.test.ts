@@ -1,8 +1,8 @@
 import AxeBuilder from "@axe-core/playwright";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { DEMO, DEMO_PASSWORD, startTestApp, type TestApp } from "../helpers/app.ts";
-import { launchBrowser, screenshot, watchErrors } from "../helpers/browser.ts";
+import { DEMO, startTestApp, type TestApp } from "../helpers/app.ts";
+import { launchBrowser, screenshot, signInAs as signInThroughForm, watchErrors } from "../helpers/browser.ts";
 import { makePatternedImage } from "../helpers/images.ts";
 
 let t: TestApp;
@@ -20,13 +20,7 @@ afterAll(async () => {
 const stamp = Date.now().toString(36);
 const NAMES = [`chiller-lift-${stamp}.jpg`, `pipe-run-${stamp}.jpg`, `plinths-${stamp}.jpg`];
 
-async function signInAs(page: Page, email: string) {
-  await page.goto(`${t.baseUrl}/sign-in`);
-  await page.getByLabel("E-mail address").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(/\/office$/);
-}
+const signInAs = (page: Page, email: string) => signInThroughForm(page, t.baseUrl, email, /\/office$/);
 
 /** axe-core's WCAG checks (labels, contrast, roles) on the page as it stands. */
 async function axeViolations(page: Page): Promise<string[]> {

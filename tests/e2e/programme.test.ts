@@ -6,9 +6,9 @@ import { addDays, daysBetween } from "../../src/shared/domain/calendar.ts";
 import { formatLongDate } from "../../src/features/programme/dates.ts";
 import { signedDays, slipInWords } from "../../src/features/programme/words.ts";
 import { formatDate } from "../../src/lib/format.ts";
-import { DEMO, DEMO_PASSWORD, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
+import { DEMO, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
 import path from "node:path";
-import { ARTIFACTS, launchBrowser, screenshot, watchErrors } from "../helpers/browser.ts";
+import { ARTIFACTS, launchBrowser, screenshot, signInAs as signInThroughForm, watchErrors } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
 // How far the lead moves the forecast: three weeks, so the slip is plain to see.
@@ -33,13 +33,7 @@ afterAll(async () => {
   await t?.close();
 });
 
-async function signInAs(page: Page, email: string, landing: RegExp) {
-  await page.goto(`${t.baseUrl}/sign-in`);
-  await page.getByLabel("E-mail address").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(landing);
-}
+const signInAs = (page: Page, email: string, landing: RegExp) => signInThroughForm(page, t.baseUrl, email, landing);
 
 /** The whole page through the shared helper, and the chart alone beside it, to read its detail. */
 async function chartShots(page: Page, testId: string, name: string) {

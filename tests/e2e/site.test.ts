@@ -2,37 +2,24 @@ import { gzipSync } from "node:zlib";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import type { MediaItem, MediaListResponse } from "../../src/shared/schemas/media.ts";
-import { DEMO, DEMO_PASSWORD, newClient, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
-import { launchBrowser, screenshot, watchErrors } from "../helpers/browser.ts";
+import { DEMO, newClient, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
+import { browserPool, openAs, type Browser, screenshot, watchErrors } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
-type Browser = Awaited<ReturnType<typeof launchBrowser>>;
 
 let t: TestApp;
-const browsers: Browser[] = [];
+const browsers = browserPool();
 beforeAll(async () => {
   t = await startTestApp({}, { listen: true });
 });
 afterAll(async () => {
-  for (const b of browsers) await b.close();
+  await browsers.closeAll();
   await t?.close();
 });
 
-async function browserFor(width = 1280): Promise<Browser> {
-  const b = await launchBrowser({ width, height: 900 });
-  browsers.push(b);
-  return b;
-}
+const browserFor = (width = 1280): Promise<Browser> => browsers.launch(width);
 
-async function signedInPage(b: Browser, email: string): Promise<Page> {
-  const page = await b.context.newPage();
-  await page.goto(`${t.baseUrl}/sign-in`);
-  await page.getByLabel("E-mail address").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(/\/(office|investors)$/);
-  return page;
-}
+const signedInPage = (b: Browser, email: string): Promise<Page> => openAs(b.context, t.baseUrl, email);
 
 const dayOf = (takenAt: string | null) => takenAt?.slice(0, 10) ?? "";
 

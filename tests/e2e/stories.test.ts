@@ -2,14 +2,13 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { DateTime } from "luxon";
 import type { Page } from "playwright-core";
 import type { MediaListResponse } from "../../src/shared/schemas/media.ts";
-import { DEMO, DEMO_PASSWORD, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
-import { launchBrowser, screenshot, watchErrors } from "../helpers/browser.ts";
+import { DEMO, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
+import { browserPool, openAs, type Browser, screenshot, watchErrors } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
-type Browser = Awaited<ReturnType<typeof launchBrowser>>;
 
 let t: TestApp;
-const browsers: Browser[] = [];
+const browsers = browserPool();
 /** Stories this file published, withdrawn again afterwards so the demo's public pages stay as seeded. */
 const published: number[] = [];
 beforeAll(async () => {
@@ -20,25 +19,13 @@ afterAll(async () => {
     const lead = await signIn(t, DEMO.lead);
     for (const id of published) await lead.agent.post(`/api/stories/${id}/withdraw`).set("X-CSRF-Token", lead.csrf);
   }
-  for (const b of browsers) await b.close();
+  await browsers.closeAll();
   await t?.close();
 });
 
-async function browserFor(width = 1280): Promise<Browser> {
-  const b = await launchBrowser({ width, height: 900 });
-  browsers.push(b);
-  return b;
-}
+const browserFor = (width = 1280): Promise<Browser> => browsers.launch(width);
 
-async function signedInPage(b: Browser, email: string): Promise<Page> {
-  const page = await b.context.newPage();
-  await page.goto(`${t.baseUrl}/sign-in`);
-  await page.getByLabel("E-mail address").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(/\/(office|investors)$/);
-  return page;
-}
+const signedInPage = (b: Browser, email: string): Promise<Page> => openAs(b.context, t.baseUrl, email);
 
 /** A lead's draft story of one cleared demo photo, saved twice (two revisions). */
 async function leadStory(): Promise<{ id: number; title: string }> {

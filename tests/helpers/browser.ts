@@ -2,6 +2,7 @@ import { mkdirSync, mkdtempSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { chromium, type BrowserContext, type Page } from "playwright-core";
+import { DEMO_PASSWORD } from "./app.ts";
 
 export const ARTIFACTS = path.resolve("tests/artifacts");
 
@@ -39,4 +40,40 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   const file = path.join(ARTIFACTS, `${name}.png`);
   await page.screenshot({ path: file, fullPage: true });
   return file;
+}
+
+/**
+ * Signs `page` in through the sign-in form as a demo person (the seeded password) and waits
+ * until it lands in their area (`/office` for staff, `/investors` for investors).
+ */
+export async function signInAs(page: Page, baseUrl: string | null, email: string, landing: RegExp = /\/(office|investors)$/): Promise<Page> {
+  if (!baseUrl) throw new Error("The browser needs the app listening: startTestApp({}, { listen: true }).");
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel("E-mail address").fill(email);
+  await page.getByLabel("Password").fill(DEMO_PASSWORD);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await page.waitForURL(landing);
+  return page;
+}
+
+/** A new page in `context`, signed in as `email`: the browser opened as that person's role. */
+export async function openAs(context: BrowserContext, baseUrl: string | null, email: string, landing?: RegExp): Promise<Page> {
+  return signInAs(await context.newPage(), baseUrl, email, landing);
+}
+
+export type Browser = Awaited<ReturnType<typeof launchBrowser>>;
+
+/** The browsers a test file opens, each at its own width, closed together in `afterAll`. */
+export function browserPool() {
+  const open: Browser[] = [];
+  return {
+    async launch(width = 1280, height = 900): Promise<Browser> {
+      const b = await launchBrowser({ width, height });
+      open.push(b);
+      return b;
+    },
+    async closeAll(): Promise<void> {
+      for (const b of open.splice(0)) await b.close();
+    },
+  };
 }

@@ -1,6 +1,8 @@
+import { Suspense } from "react";
 import { Link, NavLink, Outlet } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
 import { Logo } from "../../components/ui/logo.tsx";
+import { Spinner } from "../../components/ui/sheet.tsx";
 import { useLogout } from "../../features/auth/api.ts";
 import { RequireRole } from "../../features/auth/components/require-role.tsx";
 import { ROLE_LABEL } from "../../lib/format.ts";
@@ -78,7 +80,10 @@ export function AreaLayout({ name, roles, links }: { name: string; roles: Role[]
         <div className="mx-auto grid w-full max-w-7xl flex-1 gap-6 px-4 py-6 md:grid-cols-[13rem_1fr]">
           <AreaNav links={links} />
           <main id="main" className="min-w-0">
-            <Outlet />
+            {/* A page whose data its loader did not prime (one that follows a choice on the page) waits here. */}
+            <Suspense fallback={<Spinner />}>
+              <Outlet />
+            </Suspense>
           </main>
         </div>
       </RequireRole>

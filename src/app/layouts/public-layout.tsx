@@ -1,5 +1,7 @@
+import { Suspense } from "react";
 import { Link, NavLink, Outlet } from "react-router-dom";
 import { Logo } from "../../components/ui/logo.tsx";
+import { Spinner } from "../../components/ui/sheet.tsx";
 import { homeFor } from "../../features/auth/api.ts";
 import { useMe } from "../../lib/session.ts";
 
@@ -29,7 +31,10 @@ export function PublicLayout() {
         </div>
       </header>
       <main id="main" className="flex-1">
-        <Outlet />
+        {/* A page whose data its loader did not prime (one that follows a choice on the page) waits here. */}
+        <Suspense fallback={<Spinner />}>
+          <Outlet />
+        </Suspense>
       </main>
       <footer className="border-t border-rule">
         <div className="mx-auto max-w-5xl px-4 py-6 text-xs text-ink-faint">Published with Plumbline. Engineering figures on these pages are indicative; design and operation are for qualified engineers under local codes.</div>

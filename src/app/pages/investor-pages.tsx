@@ -1,20 +1,21 @@
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { Link, useParams } from "react-router-dom";
-import { Notice, PageHeader, Spinner } from "../../components/ui/sheet.tsx";
+import { PageHeader } from "../../components/ui/sheet.tsx";
 import { InvestorProgramme } from "../../features/programme/components/investor-programme.tsx";
 import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
-import { useProject, useProjects } from "../../features/projects/api.ts";
+import { projectQueryOptions, projectsQueryOptions } from "../../features/projects/api.ts";
+import { INVESTOR_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+
+export const investorHomeLoader: RouteLoader = (qc) => () => primeWhenAllowed(qc, INVESTOR_ROLES, () => qc.ensureQueryData(projectsQueryOptions()));
+
+export const investorProjectLoader: RouteLoader = (qc) => ({ params }) => primeWhenAllowed(qc, INVESTOR_ROLES, () => qc.ensureQueryData(projectQueryOptions(params.slug ?? "")));
 
 export function InvestorHomePage() {
-  const projects = useProjects();
+  const projects = useSuspenseQuery(projectsQueryOptions());
   return (
     <>
       <PageHeader sheet="Investor room" title="Your projects" description="Programme health, capacity and documents of the builds you follow. Figures are computed over the milestones shared with investors." />
-      {projects.isPending ? (
-        <Spinner />
-      ) : projects.isError ? (
-        <Notice tone="error">{projects.error.message}</Notice>
-      ) : (
-        <ul className="grid gap-4 lg:grid-cols-2">
+      <ul className="grid gap-4 lg:grid-cols-2">
           {projects.data.map((p) => (
             <li key={p.id} className="flex flex-col gap-3 border border-rule bg-sheet p-5">
               <div>
@@ -30,16 +31,13 @@ export function InvestorHomePage() {
             </li>
           ))}
         </ul>
-      )}
     </>
   );
 }
 
 export function InvestorProjectPage() {
   const { slug = "" } = useParams();
-  const project = useProject(slug);
-  if (project.isPending) return <Spinner />;
-  if (project.isError) return <Notice tone="error">{project.error.message}</Notice>;
+  const project = useSuspenseQuery(projectQueryOptions(slug));
   return (
     <>
       <PageHeader sheet="Investor room · Project" title={project.data.name} description={project.data.description} />

@@ -1,16 +1,17 @@
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { Link, useParams } from "react-router-dom";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { milestoneFinish } from "#shared/domain/programme-health.ts";
-import { Notice, Spinner } from "../../components/ui/sheet.tsx";
 import { StatusMark } from "../../components/ui/status-mark.tsx";
-import { useHealth, useMilestones } from "../../features/programme/api.ts";
+import { milestonesQueryOptions, useHealth, useMilestones } from "../../features/programme/api.ts";
 import { formatMonthYear } from "../../features/programme/dates.ts";
 import { describeDates } from "../../features/programme/public-routes.tsx";
 import { describePublicProgress, slipInWords } from "../../features/programme/words.ts";
-import { useProject } from "../../features/projects/api.ts";
+import { projectQueryOptions } from "../../features/projects/api.ts";
 import { SiteVisitRules } from "../../features/projects/components/site-visit-rules.tsx";
-import { HeroPhoto, LatestUpdates, StoryList } from "../../features/site/components/latest-updates.tsx";
-import { ProjectNav } from "../../features/site/components/project-nav.tsx";
+import { HeroPhoto, LatestUpdates, StoryList } from "../../features/public-site/components/latest-updates.tsx";
+import { ProjectNav } from "../../features/public-site/components/project-nav.tsx";
+import type { RouteLoader } from "../../lib/loaders.ts";
 
 // The milestones are asked for as the public sees them, so a signed-in member of staff
 // reading the public page sees the same list as a visitor. (Percent complete comes from
@@ -99,22 +100,19 @@ function FollowLinks({ slug }: { slug: string }) {
   );
 }
 
+/** The project must be there; the programme is asked for alongside and may fail on its own. */
+export const projectHomeLoader: RouteLoader = (qc) => async ({ params }) => {
+  const slug = params.slug ?? "";
+  await Promise.all([qc.ensureQueryData(projectQueryOptions(slug)), qc.prefetchQuery(milestonesQueryOptions(slug, PUBLIC))]);
+  return null;
+};
+
 /** `/projects/:slug`: what is being built, how far it has got, when it will be ready, and the latest from the site. */
 export function ProjectHomePage() {
   const { slug = "" } = useParams();
-  const project = useProject(slug);
+  const p = useSuspenseQuery(projectQueryOptions(slug)).data;
+  // The programme is a part of the page, not the page: if it cannot be read the rest still shows.
   const milestones = useMilestones(slug, PUBLIC);
-  if (project.isPending) return <Spinner />;
-  if (project.isError) {
-    return (
-      <div className="mx-auto max-w-3xl px-4 py-10">
-        <Notice tone="error" title="Project not found">
-          {project.error.message}
-        </Notice>
-      </div>
-    );
-  }
-  const p = project.data;
   return (
     <div className="mx-auto max-w-5xl px-4 py-8">
       <p className="label-caps">
@@ -130,7 +128,7 @@ export function ProjectHomePage() {
             Progress
           </h2>
           <div className="mt-2">
-            {milestones.isPending ? <Spinner label="Reading the programme" /> : milestones.isError ? null : <ProgressInWords slug={p.slug} milestones={milestones.data} />}
+            {milestones.data ? <ProgressInWords slug={p.slug} milestones={milestones.data} /> : null}
           </div>
           {milestones.data ? <NextMilestones milestones={milestones.data} /> : null}
           <p className="mt-3">

@@ -3,10 +3,10 @@ import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaItem, MediaPatchInput } from "#shared/schemas/media.ts";
 import type { PostCreateInput, PostDetail, PostPatchInput, PostRevisionSummary, PostStatus, PostSummary } from "#shared/schemas/posts.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
-import { api, ApiError, getPage, qs } from "../../lib/api-client.ts";
+import { api, getPage, qs } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions, type PickerFilters } from "../../lib/media.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
-import { publishingApi, type WorkflowInput } from "../../lib/publishing.ts";
+import { publishingApi } from "../../lib/publishing.ts";
 
 export interface PostListFilters {
   page?: number;
@@ -50,19 +50,14 @@ export const postListQueryOptions = (slug: string, f: PostListFilters = {}) =>
 
 export const postQueryOptions = (id: number) => queryOptions({ queryKey: postKeys.detail(id), queryFn: () => api.get<PostDetail>(`/api/posts/${id}`), enabled: id > 0 });
 
-export const revisionsQueryOptions = publishing.revisionsQueryOptions;
-export const diffQueryOptions = publishing.diffQueryOptions;
-export const postHistoryQueryOptions = publishing.historyQueryOptions;
 
 export const postMilestonesQueryOptions = (slug: string) =>
   queryOptions({ queryKey: postKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });
 
-export const mediaPickerQueryOptions = (slug: string, f: MediaPickerFilters = {}) => pickerMediaQueryOptions(postKeys.media(slug, f), slug, f);
+const mediaPickerQueryOptions = (slug: string, f: MediaPickerFilters = {}) => pickerMediaQueryOptions(postKeys.media(slug, f), slug, f);
 
-export const usePostsProjects = () => useQuery(postsProjectsQueryOptions());
 export const usePostsProject = (slug: string) => useQuery(postsProjectQueryOptions(slug));
 export const usePostList = (slug: string, f: PostListFilters = {}) => useQuery({ ...postListQueryOptions(slug, f), placeholderData: keepPreviousData });
-export const usePost = (id: number) => useQuery(postQueryOptions(id));
 export const useRevisions = publishing.useRevisions;
 export const useDiff = publishing.useDiff;
 export const usePostHistory = publishing.useHistory;
@@ -81,7 +76,6 @@ export function useCreatePost(slug: string) {
 export const useSavePost = publishing.useSave;
 export const useRestoreRevision = publishing.useRestore;
 export const useWorkflow = publishing.useWorkflow;
-export type { WorkflowInput };
 
 /** Alt text, caption or (for leads) clearance of a library photo, from where the editor found it missing. */
 export function usePatchMedia(slug: string, postId?: number) {
@@ -93,11 +87,4 @@ export function usePatchMedia(slug: string, postId?: number) {
       if (postId) void qc.invalidateQueries({ queryKey: postKeys.detail(postId) });
     },
   });
-}
-
-/** The post as it is now, from a 409 answer to a stale save. */
-export function conflictOf(e: unknown): PostDetail | null {
-  if (!(e instanceof ApiError) || e.status !== 409) return null;
-  const body = e.body as { error?: { current?: PostDetail } } | null;
-  return body?.error?.current ?? null;
 }

@@ -1,3 +1,4 @@
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { getCoreRowModel, useReactTable, type ColumnDef } from "@tanstack/react-table";
 import { useEffect, useMemo, useState } from "react";
 import { Link, useSearchParams } from "react-router-dom";
@@ -11,14 +12,31 @@ import { PublishStatusMark, PUBLISH_STATUS_WORD } from "../../components/ui/publ
 import { Pager } from "../../components/ui/pager.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
-import { useProjectParam } from "../../lib/projects.ts";
+import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { publishingWhen } from "../../lib/publishing.ts";
-import { usePostList, usePostsProject, usePostsProjects } from "./api.ts";
+import { postListQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, usePostList, usePostsProject, type PostListFilters } from "./api.ts";
 
 /** The project the site office is working on: `?project=` or the first one. */
 export function useOfficeProject() {
-  return useProjectParam(usePostsProjects().data);
+  return useProjectParam(useSuspenseQuery(postsProjectsQueryOptions()).data);
 }
+
+function filtersOf(params: URLSearchParams): PostListFilters {
+  return {
+    status: (PostStatusSchema.safeParse(params.get("status")).data ?? undefined) as PostStatus | undefined,
+    audience: (params.get("audience") || undefined) as Audience | undefined,
+    q: params.get("q") || undefined,
+    page: Math.max(1, Number(params.get("page")) || 1),
+  };
+}
+
+export const postsLoader: RouteLoader = (qc) => ({ request }) =>
+  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
+    const search = new URL(request.url).searchParams;
+    const slug = await officeProjectSlug(qc, postsProjectsQueryOptions(), search);
+    if (slug) await Promise.all([qc.ensureQueryData(postsProjectQueryOptions(slug)), qc.ensureQueryData(postListQueryOptions(slug, filtersOf(search)))]);
+  });
 
 const AUDIENCE_CHOICES = [
   { value: "", label: "Any audience" },
@@ -31,10 +49,7 @@ const AUDIENCE_CHOICES = [
 export function PostsPage() {
   const { slug, choices, setSlug } = useOfficeProject();
   const [params, setParams] = useSearchParams();
-  const status = (PostStatusSchema.safeParse(params.get("status")).data ?? undefined) as PostStatus | undefined;
-  const audience = (params.get("audience") || undefined) as Audience | undefined;
-  const q = params.get("q") || undefined;
-  const page = Math.max(1, Number(params.get("page")) || 1);
+  const { status, audience, q, page = 1 } = filtersOf(params);
   const [draftQ, setDraftQ] = useState(q ?? "");
   useEffect(() => setDraftQ(q ?? ""), [q]);
   const project = usePostsProject(slug);

@@ -139,15 +139,3 @@ export function PublicTimelinePage() {
     </div>
   );
 }
-
-/** One plain line of progress for the project's public home, with the way to the timeline. */
-export function PublicProgressLine({ slug }: { slug: string }) {
-  const milestones = useMilestones(slug, PUBLIC);
-  if (milestones.isPending) return <Spinner label="Reading the programme" />;
-  if (milestones.isError) return null;
-  return (
-    <p className="mt-2 text-[0.95rem]" data-testid="public-progress">
-      {describePublicProgress(milestones.data)}
-    </p>
-  );
-}

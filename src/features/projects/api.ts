@@ -13,4 +13,3 @@ export const projectsQueryOptions = () => projectListQueryOptions(projectKeys.li
 export const projectQueryOptions = (slug: string) => queryOptions({ queryKey: projectKeys.detail(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`) });
 
 export const useProjects = () => useQuery(projectsQueryOptions());
-export const useProject = (slug: string) => useQuery(projectQueryOptions(slug));

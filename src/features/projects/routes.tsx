@@ -1,21 +1,22 @@
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { Link } from "react-router-dom";
-import { Notice, Spinner } from "../../components/ui/sheet.tsx";
-import { useProjects } from "./api.ts";
+import type { RouteLoader } from "../../lib/loaders.ts";
+import { projectsQueryOptions } from "./api.ts";
+
+export const homeLoader: RouteLoader = (qc) => async () => {
+  await qc.ensureQueryData(projectsQueryOptions());
+  return null;
+};
 
 export function HomePage() {
-  const projects = useProjects();
+  const projects = useSuspenseQuery(projectsQueryOptions());
   return (
     <div className="mx-auto max-w-5xl px-4 py-10">
       <p className="label-caps">Construction progress</p>
       <h1 className="mt-1 max-w-3xl text-3xl font-semibold tracking-tight sm:text-4xl">What is being built, and when it will be ready</h1>
       <p className="mt-3 max-w-2xl text-ink-soft">Progress of each build, published by its operator: the programme, photographs from the site walks, and the date each hall is forecast to be ready for service.</p>
       <div className="mt-8">
-        {projects.isPending ? (
-          <Spinner />
-        ) : projects.isError ? (
-          <Notice tone="error">{projects.error.message}</Notice>
-        ) : (
-          <ul className="grid gap-4 sm:grid-cols-2">
+        <ul className="grid gap-4 sm:grid-cols-2">
             {projects.data.map((p) => (
               <li key={p.id}>
                 <Link to={`/projects/${p.slug}`} className="block h-full border border-rule bg-sheet p-5 hover:border-ink">
@@ -27,7 +28,6 @@ export function HomePage() {
               </li>
             ))}
           </ul>
-        )}
       </div>
     </div>
   );

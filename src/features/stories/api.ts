@@ -4,7 +4,7 @@ import type { StoryCreateInput, StoryDetail, StoryPatchInput, StoryRevisionSumma
 import { api } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions } from "../../lib/media.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
-import { publishingApi, type WorkflowInput } from "../../lib/publishing.ts";
+import { publishingApi } from "../../lib/publishing.ts";
 
 export interface StoryMediaFilters {
   q?: string;
@@ -33,15 +33,10 @@ export const storiesProjectQueryOptions = (slug: string) => projectDetailQueryOp
 export const storyListQueryOptions = (slug: string) =>
   queryOptions({ queryKey: storyKeys.list(slug), queryFn: () => api.get<StorySummary[]>(`/api/projects/${slug}/stories`), enabled: slug !== "" });
 export const storyQueryOptions = (id: number) => queryOptions({ queryKey: storyKeys.detail(id), queryFn: () => api.get<StoryDetail>(`/api/stories/${id}`), enabled: id > 0 });
-export const storyRevisionsQueryOptions = publishing.revisionsQueryOptions;
-export const storyDiffQueryOptions = publishing.diffQueryOptions;
-export const storyHistoryQueryOptions = publishing.historyQueryOptions;
-export const storyMediaQueryOptions = (slug: string, f: StoryMediaFilters = {}) => pickerMediaQueryOptions(storyKeys.media(slug, f), slug, f);
+const storyMediaQueryOptions = (slug: string, f: StoryMediaFilters = {}) => pickerMediaQueryOptions(storyKeys.media(slug, f), slug, f);
 
-export const useStoriesProjects = () => useQuery(storiesProjectsQueryOptions());
 export const useStoriesProject = (slug: string) => useQuery(storiesProjectQueryOptions(slug));
 export const useStoryList = (slug: string) => useQuery(storyListQueryOptions(slug));
-export const useStory = (id: number) => useQuery(storyQueryOptions(id));
 export const useStoryRevisions = publishing.useRevisions;
 export const useStoryDiff = publishing.useDiff;
 export const useStoryHistory = publishing.useHistory;
@@ -59,4 +54,3 @@ export function useCreateStory(slug: string) {
 export const useSaveStory = publishing.useSave;
 export const useRestoreStoryRevision = publishing.useRestore;
 export const useStoryWorkflow = publishing.useWorkflow;
-export type StoryWorkflowInput = WorkflowInput;

@@ -5,7 +5,6 @@ export const INK_SOFT = "#4a4e57";
 export const RULE = "#d9d3c4";
 export const RULE_STRONG = "#b9b09c";
 export const ACCENT = "#c2410c";
-export const SHEET = "#fffdf8";
 
 /** Width of an element, kept up to date: charts draw at a known pixel width, so they fit a phone. */
 function useElementWidth<T extends HTMLElement>(): [React.RefObject<T | null>, number] {

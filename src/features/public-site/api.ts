@@ -111,11 +111,7 @@ export const galleryQueryOptions = (slug: string, f: GalleryFilters = {}) =>
     enabled: slug !== "",
   });
 
-export const useSiteProject = (slug: string) => useQuery(siteProjectQueryOptions(slug));
 export const useUpdates = (slug: string, f: UpdateFilters = {}) => useQuery({ ...updatesQueryOptions(slug, f), placeholderData: keepPreviousData });
-export const useUpdate = (slug: string, postSlug: string) => useQuery(updateQueryOptions(slug, postSlug));
 export const useStories = (slug: string) => useQuery(storiesQueryOptions(slug));
-export const useStory = (slug: string, storySlug: string) => useQuery(storyQueryOptions(slug, storySlug));
-export const useGallery = (slug: string, f: GalleryFilters = {}) => useQuery({ ...galleryQueryOptions(slug, f), placeholderData: keepPreviousData });
 
 export const isRedirect = (v: unknown): v is PostRedirect => typeof v === "object" && v !== null && "redirectTo" in v;

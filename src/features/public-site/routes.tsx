@@ -1,4 +1,5 @@
 import { useEffect, useMemo, useState, type FormEvent, type ReactNode } from "react";
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { Link, Navigate, useLocation, useParams, useSearchParams } from "react-router-dom";
 import type { MediaPicture, PostDetail, PostTag } from "#shared/schemas/posts.ts";
 import type { StoryDetail, StoryItem } from "#shared/schemas/stories.ts";
@@ -8,28 +9,55 @@ import { CompareSlider } from "../../components/ui/compare-slider.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
 import { Lightbox, type LightboxItem } from "../../components/ui/lightbox.tsx";
 import { Picture } from "../../components/ui/picture.tsx";
-import { Notice, Spinner } from "../../components/ui/sheet.tsx";
-import { ApiError } from "../../lib/api-client.ts";
-import { isRedirect, useGallery, useSiteProject, useStory, useUpdate, useUpdates, type GalleryFilters, type GalleryPhoto } from "./api.ts";
+import type { RouteLoader } from "../../lib/loaders.ts";
+import { galleryQueryOptions, isRedirect, siteProjectQueryOptions, storyQueryOptions, updateQueryOptions, updatesQueryOptions, type GalleryFilters, type GalleryPhoto, type UpdateFilters } from "./api.ts";
 import { MilestonesThenNow } from "./components/milestone-then-now.tsx";
 import { PostBody } from "./components/post-body.tsx";
 import { PostCard } from "./components/post-card.tsx";
 import { ProjectMasthead } from "./components/project-nav.tsx";
 import { capturedOn, dayOf, monthWords, SYSTEM_TAGS, tagWord } from "./words.ts";
 
-const FALLBACK_ZONE = "Europe/London";
+/*
+ * Each page's loader primes the project (for the masthead) and what the page shows; the pages
+ * read both with useSuspenseQuery. A missing update or story ends in the route's error element.
+ */
+
+function updateFiltersOf(params: URLSearchParams): UpdateFilters {
+  return { page: Math.max(1, Number(params.get("page")) || 1), tag: params.get("tag") ?? undefined, q: params.get("q") ?? undefined };
+}
+
+function galleryFiltersOf(params: URLSearchParams): GalleryFilters {
+  return { area: params.get("area") ?? undefined, system: params.get("system") ?? undefined, month: params.get("month") ?? undefined };
+}
+
+const searchOf = (request: Request) => new URL(request.url).searchParams;
+
+export const updatesLoader: RouteLoader = (qc) => async ({ params, request }) => {
+  const slug = params.slug ?? "";
+  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(updatesQueryOptions(slug, updateFiltersOf(searchOf(request))))]);
+  return null;
+};
+
+export const postLoader: RouteLoader = (qc) => async ({ params }) => {
+  const slug = params.slug ?? "";
+  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(updateQueryOptions(slug, params.postSlug ?? ""))]);
+  return null;
+};
+
+export const galleryLoader: RouteLoader = (qc) => async ({ params, request }) => {
+  const slug = params.slug ?? "";
+  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(galleryQueryOptions(slug, galleryFiltersOf(searchOf(request))))]);
+  return null;
+};
+
+export const storyLoader: RouteLoader = (qc) => async ({ params }) => {
+  const slug = params.slug ?? "";
+  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(storyQueryOptions(slug, params.storySlug ?? ""))]);
+  return null;
+};
 
 function Frame({ children, wide = false }: { children: ReactNode; wide?: boolean }) {
   return <div className={`mx-auto px-4 py-8 ${wide ? "max-w-6xl" : "max-w-5xl"}`}>{children}</div>;
-}
-
-function Failure({ error, what }: { error: Error; what: string }) {
-  const missing = error instanceof ApiError && error.status === 404;
-  return (
-    <Notice tone="error" title={missing ? `No such ${what}` : `The ${what} could not be shown`}>
-      {missing ? `There is no ${what} at this address. It may have been withdrawn, or the address is mistyped.` : error.message}
-    </Notice>
-  );
 }
 
 /** Sets the document title while a page is shown. */
@@ -74,14 +102,13 @@ function Pager({ page, total, pageSize, hrefFor }: { page: number; total: number
 export function UpdatesPage() {
   const { slug = "" } = useParams();
   const [params, setParams] = useSearchParams();
-  const page = Math.max(1, Number(params.get("page")) || 1);
-  const tag = params.get("tag") ?? undefined;
-  const q = params.get("q") ?? undefined;
+  const filters = updateFiltersOf(params);
+  const { page = 1, tag, q } = filters;
   const [draft, setDraft] = useState(q ?? "");
   useEffect(() => setDraft(q ?? ""), [q]);
-  const project = useSiteProject(slug);
-  const updates = useUpdates(slug, { page, tag, q });
-  useTitle(project.data ? `Updates · ${project.data.name}` : undefined);
+  const project = useSuspenseQuery(siteProjectQueryOptions(slug));
+  const updates = useSuspenseQuery(updatesQueryOptions(slug, filters));
+  useTitle(`Updates · ${project.data.name}`);
 
   const set = (next: Record<string, string | undefined>) =>
     setParams((prev) => {
@@ -106,7 +133,7 @@ export function UpdatesPage() {
   // Areas come from the posts themselves (the programme's systems are a fixed list).
   const areaTags = useMemo(() => {
     const seen = new Set<string>();
-    for (const p of updates.data?.items ?? []) for (const t of p.tags) if (t.kind === "area") seen.add(t.value);
+    for (const p of updates.data.items) for (const t of p.tags) if (t.kind === "area") seen.add(t.value);
     if (tag && !SYSTEM_TAGS.includes(tag)) seen.add(tag);
     return [...seen].sort();
   }, [updates.data, tag]);
@@ -116,10 +143,10 @@ export function UpdatesPage() {
     ...areaTags.map((a) => ({ value: a, label: a })),
   ];
 
-  const zone = project.data?.timeZone ?? FALLBACK_ZONE;
+  const zone = project.data.timeZone;
   return (
     <Frame>
-      <ProjectMasthead slug={slug} projectName={project.data?.name} operatorName={project.data?.operatorName} />
+      <ProjectMasthead slug={slug} projectName={project.data.name} operatorName={project.data.operatorName} />
       <h1 className="mt-6 text-3xl font-semibold tracking-tight">{q ? `Updates mentioning “${q}”` : "Updates from the site"}</h1>
       <p className="mt-2 max-w-2xl text-ink-soft">What changed on site, in the operator's words, with photographs from the site walks.</p>
       <div className="mt-6 flex flex-col gap-4 border border-rule bg-sheet p-4 sm:flex-row sm:items-end">
@@ -152,11 +179,7 @@ export function UpdatesPage() {
         </p>
       ) : null}
       <div className="mt-6">
-        {updates.isPending ? (
-          <Spinner label="Loading updates" />
-        ) : updates.isError ? (
-          <Failure error={updates.error} what="list of updates" />
-        ) : updates.data.items.length === 0 ? (
+        {updates.data.items.length === 0 ? (
           <p className="text-ink-soft">{q || tag ? "No published update matches. Try other words or another topic." : "No updates have been published yet."}</p>
         ) : (
           <>
@@ -252,17 +275,17 @@ function PostArticle({ post, slug, zone }: { post: PostDetail; slug: string; zon
 /** `/projects/:slug/updates/:postSlug`: one update, its photos responsive, its milestones then and now. */
 export function PostPage() {
   const { slug = "", postSlug = "" } = useParams();
-  const project = useSiteProject(slug);
-  const post = useUpdate(slug, postSlug);
-  const data = post.data && !isRedirect(post.data) ? post.data : null;
+  const project = useSuspenseQuery(siteProjectQueryOptions(slug));
+  const post = useSuspenseQuery(updateQueryOptions(slug, postSlug));
+  const data = isRedirect(post.data) ? null : post.data;
   useTitle(data?.title);
-  if (post.data && isRedirect(post.data)) return <Navigate to={redirectTarget(slug, "updates", post.data.redirectTo)} replace />;
+  if (isRedirect(post.data)) return <Navigate to={redirectTarget(slug, "updates", post.data.redirectTo)} replace />;
   // The API follows an old slug to the new post; the address bar should say the new one too.
   if (data && data.slug !== postSlug) return <Navigate to={`/projects/${slug}/updates/${data.slug}`} replace />;
   return (
     <Frame>
-      <ProjectMasthead slug={slug} projectName={project.data?.name} operatorName={project.data?.operatorName} />
-      {post.isPending ? <Spinner label="Loading the update" /> : post.isError ? <div className="mt-6"><Failure error={post.error} what="update" /></div> : data ? <PostArticle post={data} slug={slug} zone={project.data?.timeZone ?? FALLBACK_ZONE} /> : null}
+      <ProjectMasthead slug={slug} projectName={project.data.name} operatorName={project.data.operatorName} />
+      {data ? <PostArticle post={data} slug={slug} zone={project.data.timeZone} /> : null}
     </Frame>
   );
 }
@@ -280,11 +303,11 @@ function photoMeta(p: Pick<MediaPicture, "takenAt" | "credit" | "isIllustration"
 export function GalleryPage() {
   const { slug = "" } = useParams();
   const [params, setParams] = useSearchParams();
-  const filters: GalleryFilters = { area: params.get("area") ?? undefined, system: params.get("system") ?? undefined, month: params.get("month") ?? undefined };
-  const project = useSiteProject(slug);
-  const gallery = useGallery(slug, filters);
+  const filters = galleryFiltersOf(params);
+  const project = useSuspenseQuery(siteProjectQueryOptions(slug));
+  const gallery = useSuspenseQuery(galleryQueryOptions(slug, filters));
   const [open, setOpen] = useState<number | null>(null);
-  useTitle(project.data ? `Gallery · ${project.data.name}` : undefined);
+  useTitle(`Gallery · ${project.data.name}`);
 
   const set = (k: keyof GalleryFilters, v: string) =>
     setParams((prev) => {
@@ -294,7 +317,7 @@ export function GalleryPage() {
       return u;
     });
 
-  const items = gallery.data?.items ?? [];
+  const items = gallery.data.items;
   // Grouped by month, newest first, as a site diary would be.
   const groups = useMemo(() => {
     const by = new Map<string, Array<{ photo: GalleryPhoto; index: number }>>();
@@ -313,25 +336,21 @@ export function GalleryPage() {
   const g = gallery.data;
   return (
     <Frame wide>
-      <ProjectMasthead slug={slug} projectName={project.data?.name} operatorName={project.data?.operatorName} />
+      <ProjectMasthead slug={slug} projectName={project.data.name} operatorName={project.data.operatorName} />
       <h1 className="mt-6 text-3xl font-semibold tracking-tight">Photographs from the site</h1>
       <p className="mt-2 max-w-2xl text-ink-soft">Photos published with the updates and photo stories, cleared for the public. Some are illustrations, marked as such in their captions.</p>
       <div className="mt-6 grid gap-3 border border-rule bg-sheet p-4 sm:grid-cols-3">
-        <SelectField label="Area" value={filters.area ?? ""} onChange={(e) => set("area", e.target.value)} options={[{ value: "", label: "All areas" }, ...(g?.areas ?? []).map((a) => ({ value: a, label: a }))]} />
+        <SelectField label="Area" value={filters.area ?? ""} onChange={(e) => set("area", e.target.value)} options={[{ value: "", label: "All areas" }, ...g.areas.map((a) => ({ value: a, label: a }))]} />
         <SelectField
           label="System"
           value={filters.system ?? ""}
           onChange={(e) => set("system", e.target.value)}
-          options={[{ value: "", label: "All systems" }, ...(g?.systems ?? []).map((s) => ({ value: s, label: tagWord({ kind: "system", value: s }) }))]}
+          options={[{ value: "", label: "All systems" }, ...g.systems.map((s) => ({ value: s, label: tagWord({ kind: "system", value: s }) }))]}
         />
-        <SelectField label="Month" value={filters.month ?? ""} onChange={(e) => set("month", e.target.value)} options={[{ value: "", label: "Any month" }, ...(g?.months ?? []).map((m) => ({ value: m, label: monthWords(m) }))]} />
+        <SelectField label="Month" value={filters.month ?? ""} onChange={(e) => set("month", e.target.value)} options={[{ value: "", label: "Any month" }, ...g.months.map((m) => ({ value: m, label: monthWords(m) }))]} />
       </div>
       <div className="mt-6">
-        {gallery.isPending ? (
-          <Spinner label="Loading photographs" />
-        ) : gallery.isError ? (
-          <Failure error={gallery.error} what="gallery" />
-        ) : items.length === 0 ? (
+        {items.length === 0 ? (
           <p className="text-ink-soft">No published photograph matches these choices.</p>
         ) : (
           <div className="flex flex-col gap-8">
@@ -443,16 +462,16 @@ function StoryArticle({ story, slug, zone }: { story: StoryDetail; slug: string;
 /** `/projects/:slug/stories/:storySlug`: a photo story, then-and-now pairs as comparison sliders. */
 export function StoryPage() {
   const { slug = "", storySlug = "" } = useParams();
-  const project = useSiteProject(slug);
-  const story = useStory(slug, storySlug);
-  const data = story.data && !isRedirect(story.data) ? story.data : null;
+  const project = useSuspenseQuery(siteProjectQueryOptions(slug));
+  const story = useSuspenseQuery(storyQueryOptions(slug, storySlug));
+  const data = isRedirect(story.data) ? null : story.data;
   useTitle(data?.title);
-  if (story.data && isRedirect(story.data)) return <Navigate to={redirectTarget(slug, "stories", story.data.redirectTo)} replace />;
+  if (isRedirect(story.data)) return <Navigate to={redirectTarget(slug, "stories", story.data.redirectTo)} replace />;
   if (data && data.slug !== storySlug) return <Navigate to={`/projects/${slug}/stories/${data.slug}`} replace />;
   return (
     <Frame>
-      <ProjectMasthead slug={slug} projectName={project.data?.name} operatorName={project.data?.operatorName} />
-      {story.isPending ? <Spinner label="Loading the story" /> : story.isError ? <div className="mt-6"><Failure error={story.error} what="photo story" /></div> : data ? <StoryArticle story={data} slug={slug} zone={project.data?.timeZone ?? FALLBACK_ZONE} /> : null}
+      <ProjectMasthead slug={slug} projectName={project.data.name} operatorName={project.data.operatorName} />
+      {data ? <StoryArticle story={data} slug={slug} zone={project.data.timeZone} /> : null}
     </Frame>
   );
 }
