@@ -8,6 +8,21 @@ const features = readdirSync("src/features", { withFileTypes: true })
   .filter((d) => d.isDirectory())
   .map((d) => d.name);
 
+// Server modules (decision 015): a module's repositories are imported by that module alone; the
+// others, and the wiring in server/*.ts, call its service. The demo seed writes the whole scenario
+// in one place and is exempt, as migrations are. tests/server/boundaries.test.ts checks the same
+// rule in `npm test`, and that a table is named only in its owner's repository.
+const serverModules = readdirSync("server", { withFileTypes: true })
+  .filter((d) => d.isDirectory() && d.name !== "seed")
+  .map((d) => d.name);
+const repositoryZones = serverModules
+  .filter((m) => readdirSync(`server/${m}`).some((f) => f.endsWith(".repository.ts")))
+  .map((m) => ({
+    target: ["./server/*.ts", ...serverModules.filter((o) => o !== m).map((o) => `./server/${o}/**`)],
+    from: `./server/${m}/*.repository.ts`,
+    message: `A repository is imported only by its own module: call server/${m}'s service instead (decision 015).`,
+  }));
+
 export default tseslint.config(
   { ignores: ["dist/**", "node_modules/**", ".data/**", "media/**", "tests/artifacts/**"] },
   ...tseslint.configs.recommended,
@@ -33,6 +48,7 @@ export default tseslint.config(
               except: [`./${f}`],
               message: "Features never import each other; compose them in src/app.",
             })),
+            ...repositoryZones,
           ],
         },
       ],

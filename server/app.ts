@@ -13,93 +13,45 @@ import { createCsrf } from "./core/csrf.ts";
 import { cachePolicy } from "./core/cache-policy.ts";
 import { transportSecurity } from "./core/transport-security.ts";
 import type { Db } from "./db/knex.ts";
-import { createAuditService } from "./audit/audit.service.ts";
 import { auditRouter } from "./audit/audit.router.ts";
-import { createAuthService } from "./auth/auth.service.ts";
 import { authRouter } from "./auth/auth.router.ts";
 import { createPassport } from "./auth/passport.ts";
-import { SessionRepository } from "./auth/session.repository.ts";
 import { healthRouter } from "./health/health.router.ts";
-import type { Mailer } from "./mail/mail.service.ts";
-import { createOutboxService } from "./mail/mail.service.ts";
 import { outboxRouter } from "./mail/mail.router.ts";
-import { createProjectsService } from "./projects/projects.service.ts";
 import { projectsRouter } from "./projects/projects.router.ts";
-import { createProgrammeService } from "./programme/programme.service.ts";
 import { programmeRouter } from "./programme/programme.router.ts";
-import { createMediaService, type MediaService } from "./media/media.service.ts";
-import { createMediaJobs, type MediaJobs } from "./media/media.jobs.ts";
 import { mediaFilesRouter, mediaRouter } from "./media/media.router.ts";
-import { createLocalDiskStorage, createUploadArea, type MediaStorage, type UploadArea } from "./media/media.storage.ts";
-import { RateLimitRepository } from "./rate-limit/rate-limit.repository.ts";
-import { createSignInDelays } from "./rate-limit/sign-in-delays.service.ts";
-import { createUsersService } from "./users/users.service.ts";
 import { usersRouter } from "./users/users.router.ts";
-import { createEnquiriesService } from "./enquiries/enquiries.service.ts";
 import { enquiriesRouter } from "./enquiries/enquiries.router.ts";
-import { createSubscribersService, type SubscribersService } from "./subscribers/subscribers.service.ts";
 import { mailEventsRouter, oneClickRouter, subscribersRouter } from "./subscribers/subscribers.router.ts";
-import { createPostsService, type PostsService } from "./posts/posts.service.ts";
 import { postsRouter } from "./posts/posts.router.ts";
-import { createPublishingService } from "./publishing/publishing.service.ts";
-import { createPublishingTicker, type PublishingTicker } from "./publishing/publishing.scheduler.ts";
-import { createStoriesService, type StoriesService } from "./stories/stories.service.ts";
 import { storiesRouter, storyPagesRouter } from "./stories/stories.router.ts";
-import { createSiteService, injectHead, type SiteService } from "./site/site.service.ts";
+import { injectHead, type SiteService } from "./site/site.service.ts";
 import { siteRouter } from "./site/site.router.ts";
-import { createPublicCache } from "./site/public-cache.ts";
-import { createDigestsService, type DigestsService } from "./digests/digests.service.ts";
-import { createDigestJobs, type DigestJobs } from "./digests/digests.jobs.ts";
-import { createDigestScheduler, type DigestScheduler } from "./digests/digests.schedule.ts";
 import { digestsRouter } from "./digests/digests.router.ts";
+import type { Services } from "./services.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 
-export interface AppDeps {
+export interface HttpAppDeps {
   db: Db;
   config: Config;
   logger: Logger;
-  mailer: Mailer;
   /** Where the built client lives (vite build output). */
   clientDir?: string;
 }
 
-export interface PlumblineApp {
-  app: Express;
-  /** The media library's service (other modules' services take it too). */
-  media: MediaService;
-  /** The derivative worker: server/index.ts starts and stops it; tests drain it. */
-  mediaJobs: MediaJobs;
-  mediaStorage: MediaStorage;
-  mediaUploads: UploadArea;
-  close(): void;
-  /** Rate-limit counters, exposed so tests can start from zero. */
-  rateLimits: { ip: RateLimitRepository; resetRequests: RateLimitRepository };
-  /** Exposed so tests can run the unconfirmed-address sweep with a chosen `now`, and digests can use it. */
-  subscribers: SubscribersService;
-  /** Updates; tests run scheduled publication with a chosen `now` (posts.publishDue). */
-  posts: PostsService;
-  /** Photo stories; tests run their scheduled publication with a chosen `now` (stories.publishDue). */
-  stories: StoriesService;
-  /** Scheduled publication of updates and photo stories: server/index.ts starts and stops it. */
-  publishing: PublishingTicker;
-  /** Digests: runs, previews and web copies. */
-  digests: DigestsService;
-  /** Digest sending: server/index.ts starts and stops it; tests drain it. */
-  digestJobs: DigestJobs;
-  /** Weekly, monthly and as-it-happens runs: server/index.ts starts and stops it. */
-  digestSchedule: DigestScheduler;
-}
-
-/** Builds the Express app. No listening and no side effects at import. */
-export function createApp(deps: AppDeps): PlumblineApp {
-  const { db, config, logger, mailer } = deps;
+/**
+ * The web role: middleware and routers over the services (server/services.ts). It starts no
+ * background work and does not listen: server/index.ts (or a test) does.
+ */
+export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
+  const { db, config, logger } = deps;
+  const { publicCache, sessions, auth, users, audit, outbox, projects, programme, media, mediaUploads, rateLimits, signInDelays, enquiries, subscribers, posts, stories, site, digests } = services;
   const app = express();
   app.disable("x-powered-by");
   app.set("trust proxy", config.TRUST_PROXY);
   app.set("etag", "strong");
-  // Visitors' answers for the public pages, kept a few seconds (production; tests see every write at once).
-  const publicCache = createPublicCache({ ttlMs: 5_000, enabled: config.NODE_ENV === "production" });
   // First of all, so that every answer (the public cache's copies and errors too) leaves under one cache policy.
   app.use(cachePolicy());
   app.use(transportSecurity({ publicUrl: config.PUBLIC_URL }));
@@ -107,75 +59,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
 
   const idleMs = config.SESSION_IDLE_MINUTES * 60_000;
   const absoluteMs = config.SESSION_ABSOLUTE_HOURS * 3_600_000;
-  const sessions = new SessionRepository(db, idleMs);
-  sessions.startSweeping();
-  const audit = createAuditService(db);
-  const auth = createAuthService({ db, audit, mailer, sessions, logger, publicUrl: config.PUBLIC_URL });
-  const users = createUsersService({ db, audit, auth, mailer, publicUrl: config.PUBLIC_URL });
-  const outbox = createOutboxService(db);
-  const projects = createProjectsService(db);
-  const programme = createProgrammeService({
-    db,
-    projects,
-    audit,
-    // Posts and media read the programme, so they are built below; this runs only when a milestone is to be deleted.
-    references: async (milestoneId) => [
-      ...(await posts.linkingMilestone(milestoneId)).map((p) => ({ kind: "update" as const, id: p.id, label: `“${p.title}”` })),
-      ...(await media.taggedWithMilestone(milestoneId)).map((id) => ({ kind: "photo" as const, id, label: `#${id}` })),
-    ],
-  });
-  const mediaStorage = createLocalDiskStorage(config.MEDIA_DIR);
-  const mediaUploads = createUploadArea(config.MEDIA_DIR);
-  const media = createMediaService({
-    db,
-    storage: mediaStorage,
-    uploads: mediaUploads,
-    projects,
-    limits: { maxFileBytes: Math.round(config.MEDIA_MAX_FILE_MB * 1024 * 1024), maxFiles: config.MEDIA_MAX_FILES, maxPixels: config.MEDIA_MAX_PIXELS },
-    // Signed derivative links (investor images in e-mail) use a key derived from it under their own label.
-    tokenSecret: config.TOKEN_SECRET,
-  });
-  // Building the app runs no jobs: server/index.ts starts the worker (tests drain it).
-  const mediaJobs = createMediaJobs({ media, storage: mediaStorage, uploads: mediaUploads, logger, workers: config.MEDIA_WORKERS, maxPixels: config.MEDIA_MAX_PIXELS });
   const passport = createPassport(auth);
-  const rateLimits = { ip: new RateLimitRepository(db, "login-ip"), resetRequests: new RateLimitRepository(db, "reset-ip") };
-  const signInDelays = createSignInDelays({ db, freeFailures: config.LOGIN_LIMIT_PER_ACCOUNT, forgetAfterMs: config.LOGIN_LIMIT_WINDOW_MINUTES * 60_000 });
-  const enquiries = createEnquiriesService({ db, mailer, logger, projects, users, publicUrl: config.PUBLIC_URL });
-  const subscribers = createSubscribersService({
-    db,
-    mailer,
-    logger,
-    projects,
-    programme,
-    enquiries,
-    publicUrl: config.PUBLIC_URL,
-    tokenSecret: config.TOKEN_SECRET,
-    unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
-    webhookSecret: config.MAIL_WEBHOOK_SECRET ?? null,
-  });
-  subscribers.startWorkers();
-  const publishingWorkflow = createPublishingService({ db });
-  const posts = createPostsService({ db, projects, programme, media, publishing: publishingWorkflow, onChange: publicCache.clear });
-  const stories = createStoriesService({ db, projects, media, publishing: publishingWorkflow, onChange: publicCache.clear });
-  const site = createSiteService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
-  // Building the app publishes nothing: server/index.ts starts the ticker.
-  const publishing = createPublishingTicker({ posts, stories }, logger);
-  const digests = createDigestsService({
-    db,
-    logger,
-    mailer,
-    projects,
-    programme,
-    media,
-    posts,
-    subscribers,
-    publicUrl: config.PUBLIC_URL,
-    tokenSecret: config.TOKEN_SECRET,
-    unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
-  });
-  // Building the app sends no digests: server/index.ts (or digest-worker.ts) starts the workers.
-  const digestJobs = createDigestJobs({ db, mailer, logger, digests, subscribers }, { ratePerSecond: config.DIGEST_SEND_RATE_PER_SECOND, leaseMs: config.DIGEST_LEASE_SECONDS * 1000 });
-  const digestSchedule = createDigestScheduler({ projects, digests, logger });
 
   app.use(
     pinoHttp({
@@ -255,7 +139,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
         perIp: config.LOGIN_LIMIT_PER_IP,
         windowMs: config.LOGIN_LIMIT_WINDOW_MINUTES * 60_000,
       },
-      stores: rateLimits,
+      stores: { ip: rateLimits.ip, resetRequests: rateLimits.resetRequests },
       delays: signInDelays,
     }),
   );
@@ -267,7 +151,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
     subscribersRouter({
       subscribers,
       limits: { perIp: config.SUBSCRIBE_LIMIT_PER_IP, perAddress: config.SUBSCRIBE_LIMIT_PER_ADDRESS, windowMs: config.SUBSCRIBE_LIMIT_WINDOW_MINUTES * 60_000 },
-      stores: { ip: new RateLimitRepository(db, "subscribe-ip"), address: new RateLimitRepository(db, "subscribe-address") },
+      stores: { ip: rateLimits.subscribeIp, address: rateLimits.subscribeAddress },
     }),
   );
   api.use(mailEventsRouter(subscribers));
@@ -275,7 +159,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
     enquiriesRouter({
       enquiries,
       limit: { perIp: config.ENQUIRY_LIMIT_PER_IP, windowMs: config.ENQUIRY_LIMIT_WINDOW_MINUTES * 60_000 },
-      store: new RateLimitRepository(db, "enquiry-ip"),
+      store: rateLimits.enquiryIp,
     }),
   );
   api.use(programmeRouter(programme));
@@ -297,26 +181,7 @@ export function createApp(deps: AppDeps): PlumblineApp {
   if (config.SERVE_CLIENT) mountClient(app, deps.clientDir ?? path.join(ROOT, "dist"), site);
   app.use(errorHandler);
 
-  return {
-    app,
-    media,
-    mediaJobs,
-    mediaStorage,
-    mediaUploads,
-    rateLimits,
-    subscribers,
-    posts,
-    stories,
-    publishing,
-    digests,
-    digestJobs,
-    digestSchedule,
-    close: () => {
-      sessions.stopSweeping();
-      subscribers.stopWorkers();
-      digestSchedule.stop();
-    },
-  };
+  return app;
 }
 
 const FALLBACK_SHELL = `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Plumbline</title></head><body><div id="root">The client has not been built yet: run npm start or npx vite build.</div></body></html>`;

@@ -6,8 +6,25 @@ const bool = z
   .enum(["true", "false", "1", "0", "yes", "no"])
   .transform((v) => v === "true" || v === "1" || v === "yes");
 
+/** The background work a worker process can run (PLUMBLINE_WORKERS names a subset). */
+export const WORKER_TASKS = ["media", "publishing", "digest-runs", "digest-sending", "subscription-mail", "sweeps"] as const;
+export type WorkerTask = (typeof WORKER_TASKS)[number];
+
+function parseWorkerTasks(raw: string): WorkerTask[] | null {
+  const names = raw.split(",").map((n) => n.trim()).filter(Boolean);
+  if (names.length === 0 || !names.every((n): n is WorkerTask => (WORKER_TASKS as readonly string[]).includes(n))) return null;
+  return [...new Set(names)];
+}
+
 const ConfigSchema = z.object({
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
+  // What this process runs: the web (HTTP) role, the worker role (background work, no listener) or both.
+  PLUMBLINE_ROLE: z.enum(["all", "web", "worker"], { error: "must be all, web or worker" }).default("all"),
+  // Which background work a worker role runs (e.g. only digest-sending, to add senders); every kind by default.
+  PLUMBLINE_WORKERS: z
+    .string()
+    .default(WORKER_TASKS.join(","))
+    .refine((v) => parseWorkerTasks(v) !== null, { message: `must be a comma-separated list of ${WORKER_TASKS.join(", ")}` }),
   PORT: z.coerce.number().int().min(0).max(65535).default(3000),
   HOST: z.string().min(1).default("127.0.0.1"),
   DATABASE_URL: z
@@ -66,14 +83,15 @@ const ConfigSchema = z.object({
   ENQUIRY_LIMIT_WINDOW_MINUTES: z.coerce.number().int().positive().default(60),
   // Digest messages per second per process (a hosted provider's sending limit); 0 = as fast as the relay accepts.
   DIGEST_SEND_RATE_PER_SECOND: z.coerce.number().min(0).max(10_000).default(0),
-  // Digest sending in this process: 0 leaves it to digest-worker processes (the scheduler still runs).
+  // Digest sending in this process: 0 leaves it to other worker processes (digest runs are still created).
   DIGEST_WORKERS: z.coerce.number().int().min(0).max(1).default(1),
   // How long a worker holds claimed deliveries; a killed worker's deliveries are claimed again after it.
   DIGEST_LEASE_SECONDS: z.coerce.number().int().min(1).max(3600).default(120),
 });
 
 export type Config = Readonly<
-  Omit<z.infer<typeof ConfigSchema>, "PUBLIC_URL" | "TRUST_PROXY" | "TOKEN_SECRET"> & {
+  Omit<z.infer<typeof ConfigSchema>, "PUBLIC_URL" | "TRUST_PROXY" | "TOKEN_SECRET" | "PLUMBLINE_WORKERS"> & {
+    PLUMBLINE_WORKERS: readonly WorkerTask[];
     PUBLIC_URL: string;
     TRUST_PROXY: false | number | string[];
     mailMode: "local" | "smtp";
@@ -139,6 +157,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     ...c,
     PUBLIC_URL: (c.PUBLIC_URL ?? `http://localhost:${c.PORT}`).replace(/\/$/, ""),
     TRUST_PROXY: parseTrustProxy(c.TRUST_PROXY) ?? false,
+    PLUMBLINE_WORKERS: Object.freeze(parseWorkerTasks(c.PLUMBLINE_WORKERS) ?? [...WORKER_TASKS]),
     mailMode: c.SMTP_URL ? "smtp" : "local",
     // A separate key per purpose: a session cookie and a subscriber link never share one.
     TOKEN_SECRET: c.TOKEN_SECRET ?? createHmac("sha256", c.SESSION_SECRET).update("plumbline subscriber links").digest("base64url"),

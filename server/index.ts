@@ -1,14 +1,21 @@
+/**
+ * The entry point: config → logger → db → mail → services, then the roles that
+ * PLUMBLINE_ROLE names: `web` (the HTTP app, listening on PORT), `worker` (the background
+ * work, no listener at all) or `all` (both, the default). Signals stop what was started.
+ */
 import type { AddressInfo } from "node:net";
-import { createServer } from "node:http";
-import { createApp } from "./app.ts";
-import { ConfigError, loadConfig } from "./config.ts";
+import { createServer, type Server } from "node:http";
+import { createHttpApp } from "./app.ts";
+import { ConfigError, loadConfig, type Config } from "./config.ts";
 import { createLogger } from "./core/logger.ts";
 import { createDb } from "./db/knex.ts";
 import { createMailer } from "./mail/mail.service.ts";
 import { startMailSink, type MailSink } from "./mail/mail.sink.ts";
 import { DEMO_USERS } from "./seed/demo-users.ts";
+import { createServices } from "./services.ts";
+import { createWorkers, type Workers } from "./workers.ts";
 
-let config;
+let config: Config;
 try {
   config = loadConfig();
 } catch (err) {
@@ -26,47 +33,56 @@ process.on("uncaughtException", (err) => {
   process.exit(1);
 });
 
+const runsWeb = config.PLUMBLINE_ROLE !== "worker";
+const runsWorkers = config.PLUMBLINE_ROLE !== "web";
 const db = createDb(config.DATABASE_URL);
+// The local sink is a listener, so only a web process starts it; a worker-only process sends to the sink at SMTP_SINK_HOST:SMTP_SINK_PORT.
 let sink: MailSink | null = null;
-if (config.mailMode === "local") {
+if (config.mailMode === "local" && runsWeb) {
   sink = await startMailSink({ db, logger, host: config.SMTP_SINK_HOST, port: config.SMTP_SINK_PORT, refuseRecipients: config.sinkRefusePattern });
 }
 const mailer = createMailer({
-  smtpUrl: config.SMTP_URL ?? `smtp://${sink!.host}:${sink!.port}`,
+  smtpUrl: config.SMTP_URL ?? (sink ? `smtp://${sink.host}:${sink.port}` : `smtp://${config.SMTP_SINK_HOST}:${config.SMTP_SINK_PORT}`),
   from: config.MAIL_FROM,
   mode: config.mailMode,
   logger,
 });
-const plumbline = createApp({ db, config, logger, mailer });
-const server = createServer(plumbline.app);
-// Sweeps what a crash left (temporary files, jobs whose lease ran out), then processes photos.
-await plumbline.mediaJobs.start();
-// Scheduled posts: every process may tick; the claim is safe across processes.
-plumbline.publishing.start();
-// Digests: every process may create due runs (one per period); sending is a shared queue.
-plumbline.digestSchedule.start();
-if (config.DIGEST_WORKERS > 0) plumbline.digestJobs.start();
-server.listen(config.PORT, config.HOST, () => {
-  const { port } = server.address() as AddressInfo;
-  logger.info({ port }, "Plumbline listening");
-  if (process.argv.includes("--banner")) {
-    const url = config.PUBLIC_URL.includes(`:${config.PORT}`) ? config.PUBLIC_URL.replace(`:${config.PORT}`, `:${port}`) : config.PUBLIC_URL;
-    const lines = [
-      "",
-      `  Plumbline is up: ${url}`,
-      `  Demo project:    ${url}/projects/aldermere-phase-2`,
-      `  Site office:     ${url}/office    Investor room: ${url}/investors`,
-      `  Mail:            ${config.mailMode === "local" ? `local sink on ${sink!.host}:${sink!.port} (read it in the site office's Outbox)` : "SMTP_URL relay"}`,
-      "",
-      "  Demo sign-ins (password for each):",
-      ...DEMO_USERS.map((u) => `    ${u.role.padEnd(10)} ${u.email.padEnd(30)} ${config.DEMO_PASSWORD}`),
-      "",
-      "  Ctrl-C stops Plumbline and its private MariaDB; the data stays in DATA_DIR.",
-      "",
-    ];
-    process.stdout.write(lines.join("\n") + "\n");
-  }
-});
+const services = createServices({ db, config, logger, mailer });
+let workers: Workers | null = null;
+if (runsWorkers) {
+  workers = createWorkers(services, { db, config, logger, mailer });
+  await workers.start();
+  logger.info({ role: config.PLUMBLINE_ROLE, tasks: workers.started }, "background work started");
+}
+const server = runsWeb ? listen() : null;
+
+function listen(): Server {
+  const http = createServer(createHttpApp(services, { db, config, logger }));
+  http.listen(config.PORT, config.HOST, () => {
+    const { port } = http.address() as AddressInfo;
+    logger.info({ port, role: config.PLUMBLINE_ROLE }, "Plumbline listening");
+    if (process.argv.includes("--banner")) printBanner(port);
+  });
+  return http;
+}
+
+function printBanner(port: number) {
+  const url = config.PUBLIC_URL.includes(`:${config.PORT}`) ? config.PUBLIC_URL.replace(`:${config.PORT}`, `:${port}`) : config.PUBLIC_URL;
+  const lines = [
+    "",
+    `  Plumbline is up: ${url}`,
+    `  Demo project:    ${url}/projects/aldermere-phase-2`,
+    `  Site office:     ${url}/office    Investor room: ${url}/investors`,
+    `  Mail:            ${config.mailMode === "local" ? `local sink on ${sink!.host}:${sink!.port} (read it in the site office's Outbox)` : "SMTP_URL relay"}`,
+    "",
+    "  Demo sign-ins (password for each):",
+    ...DEMO_USERS.map((u) => `    ${u.role.padEnd(10)} ${u.email.padEnd(30)} ${config.DEMO_PASSWORD}`),
+    "",
+    "  Ctrl-C stops Plumbline and its private MariaDB; the data stays in DATA_DIR.",
+    "",
+  ];
+  process.stdout.write(lines.join("\n") + "\n");
+}
 
 let stopping = false;
 async function shutdown(signal: string) {
@@ -75,14 +91,14 @@ async function shutdown(signal: string) {
   logger.info({ signal }, "stopping: no new connections, finishing requests");
   const force = setTimeout(() => process.exit(1), 10_000);
   force.unref();
-  await new Promise<void>((resolve) => {
-    server.close(() => resolve());
-    server.closeIdleConnections();
-  });
-  await plumbline.mediaJobs.stop();
-  await plumbline.publishing.stop();
-  await plumbline.digestJobs.stop();
-  plumbline.close();
+  if (server) {
+    await new Promise<void>((resolve) => {
+      server.close(() => resolve());
+      server.closeIdleConnections();
+    });
+  }
+  await workers?.stop();
+  services.close();
   mailer.close();
   await sink?.close();
   await db.destroy();

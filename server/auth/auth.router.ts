@@ -1,6 +1,6 @@
 import type { Request, RequestHandler, Response } from "express";
 import { Router } from "express";
-import rateLimit, { ipKeyGenerator } from "express-rate-limit";
+import rateLimit, { ipKeyGenerator, type Store } from "express-rate-limit";
 import type { createPassport } from "./passport.ts";
 
 type Authenticator = ReturnType<typeof createPassport>;
@@ -15,7 +15,6 @@ import {
 import { AppError } from "../core/app-error.ts";
 import { actorOf } from "../core/auth.ts";
 import type { CsrfGuard } from "../core/csrf.ts";
-import type { RateLimitRepository } from "../rate-limit/rate-limit.repository.ts";
 import type { SignInDelays } from "../rate-limit/sign-in-delays.service.ts";
 import type { AuthService } from "./auth.service.ts";
 
@@ -44,7 +43,8 @@ export function authRouter(deps: {
   passport: Authenticator;
   csrf: CsrfGuard;
   limits: { perIp: number; windowMs: number };
-  stores: { ip: RateLimitRepository; resetRequests: RateLimitRepository };
+  /** Shared counters (in MariaDB), so every process counts the same requests. */
+  stores: { ip: Store; resetRequests: Store };
   /** The growing wait per (account, client address) pair after failed sign-ins. */
   delays: SignInDelays;
 }): Router {

@@ -6,26 +6,13 @@ import type { Db } from "../db/knex.ts";
 import type { AuditService } from "../audit/audit.service.ts";
 import type { Mailer } from "../mail/mail.service.ts";
 import { transactionalMail } from "../mail/mail.layout.ts";
-import {
-  findInvitationByTokenHash,
-  findPasswordReset,
-  findUserByEmail,
-  findUserById,
-  endOpenPasswordResets,
-  insertPasswordReset,
-  insertUser,
-  lockUserRow,
-  markInvitationAccepted,
-  markPasswordResetUsed,
-  updateUser,
-  type UserRecord,
-} from "../users/users.repository.ts";
+import { createAccountsService, type Account, type AccountsService } from "../users/users.accounts.ts";
 import { assertPasswordAcceptable, burnVerify, hashPassword, hashToken, newToken, verifyPassword } from "./passwords.ts";
 import type { SessionRepository } from "./session.repository.ts";
 
 export const RESET_TTL_MS = 60 * 60 * 1000;
 
-const publicUser = (u: UserRecord): User => ({ id: u.id, email: u.email, name: u.name, role: u.role });
+const publicUser = (u: Account): User => ({ id: u.id, email: u.email, name: u.name, role: u.role });
 
 const invalid = () => new AppError("invalid_credentials", "That e-mail address and password do not match an active account.", 401);
 
@@ -36,20 +23,19 @@ export function createAuthService(deps: {
   sessions: SessionRepository;
   publicUrl: string;
   logger: Logger;
+  /** The users module's accounts; by default one over `db` (it keeps no state of its own). */
+  accounts?: AccountsService;
   now?: () => Date;
 }) {
   const { db, audit, mailer, sessions, publicUrl, logger } = deps;
+  const accounts = deps.accounts ?? createAccountsService({ db });
   const now = deps.now ?? (() => new Date());
 
   /** Issues a reset link (ending the account's earlier ones) and mails it. */
-  async function sendResetLink(user: UserRecord): Promise<void> {
+  async function sendResetLink(user: Account): Promise<void> {
     const token = newToken();
-    await db.transaction(async (trx) => {
-      // One reset at a time per account, across processes: the newest link is the only live one.
-      await lockUserRow(trx, user.id);
-      await endOpenPasswordResets(trx, user.id);
-      await insertPasswordReset(trx, { userId: user.id, tokenHash: hashToken(token), expiresAt: new Date(now().getTime() + RESET_TTL_MS) });
-    });
+    // One reset at a time per account, across processes: the newest link is the only live one.
+    await db.transaction((trx) => accounts.issuePasswordReset(trx, { userId: user.id, tokenHash: hashToken(token), expiresAt: new Date(now().getTime() + RESET_TTL_MS) }));
     const url = `${publicUrl}/reset-password/${token}`;
     const body = transactionalMail({
       heading: "Reset your Plumbline password",
@@ -67,7 +53,7 @@ export function createAuthService(deps: {
   return {
     /** Checks an e-mail and password; the same error for an unknown address, a wrong password and a disabled account. */
     async verifyCredentials(email: string, password: string, actor: Actor): Promise<User> {
-      const user = await findUserByEmail(db, email);
+      const user = await accounts.findByEmail(email);
       const ok = user ? await verifyPassword(user.passwordHash, password) : await burnVerify(password);
       if (!user || !ok || user.disabledAt) {
         await audit.record({ action: "sign_in_failed", actor, actorEmail: email, detail: { reason: !user ? "unknown" : !ok ? "password" : "disabled" } });
@@ -77,7 +63,7 @@ export function createAuthService(deps: {
     },
 
     async recordSignIn(user: User, actor: Actor): Promise<void> {
-      await updateUser(db, user.id, { lastSignInAt: now() });
+      await accounts.recordSignIn(user.id, now());
       await audit.record({ action: "sign_in", actor: { ...actor, user } });
     },
 
@@ -87,36 +73,19 @@ export function createAuthService(deps: {
 
     /** The user a session names, or null when gone or disabled (which ends the session). */
     async sessionUser(id: number): Promise<User | null> {
-      const u = await findUserById(db, id);
+      const u = await accounts.findById(id);
       return u && !u.disabledAt ? publicUser(u) : null;
     },
 
-    async describeInvitation(token: string): Promise<{ email: string; role: User["role"] }> {
-      const inv = await findInvitationByTokenHash(db, hashToken(token));
-      if (!inv || inv.revokedAt) throw new AppError("invitation_invalid", "This invitation link is not valid. Ask for a new one.", 404);
-      if (inv.acceptedAt) throw new AppError("invitation_used", "This invitation has already been used. Sign in instead.", 410);
-      if (inv.expiresAt <= now()) throw new AppError("invitation_expired", "This invitation has expired. Ask for a new one.", 410);
-      return { email: inv.email, role: inv.role };
-    },
+    describeInvitation: (token: string): Promise<{ email: string; role: User["role"] }> => accounts.describeInvitation(hashToken(token), now()),
 
     async acceptInvitation(token: string, input: { name: string; password: string }, actor: Actor): Promise<User> {
-      const passwordHash = await (async () => {
-        const inv = await findInvitationByTokenHash(db, hashToken(token));
-        assertPasswordAcceptable(input.password, inv?.email);
-        return hashPassword(input.password);
-      })();
+      const tokenHash = hashToken(token);
+      assertPasswordAcceptable(input.password, await accounts.invitedAddress(tokenHash));
+      const passwordHash = await hashPassword(input.password);
       return db.transaction(async (trx) => {
-        const inv = await findInvitationByTokenHash(trx, hashToken(token), true);
-        if (!inv || inv.revokedAt) throw new AppError("invitation_invalid", "This invitation link is not valid. Ask for a new one.", 404);
-        if (inv.acceptedAt) throw new AppError("invitation_used", "This invitation has already been used. Sign in instead.", 410);
-        if (inv.expiresAt <= now()) throw new AppError("invitation_expired", "This invitation has expired. Ask for a new one.", 410);
-        if (await findUserByEmail(trx, inv.email)) {
-          throw new AppError("account_exists", "An account with this address already exists. Sign in instead.", 409);
-        }
-        const id = await insertUser(trx, { email: inv.email, name: input.name, role: inv.role, passwordHash });
-        await markInvitationAccepted(trx, inv.id);
-        const user: User = { id, email: inv.email, name: input.name, role: inv.role };
-        await audit.record({ action: "invitation_accepted", actor: { ...actor, user }, target: { type: "user", id, label: inv.email } }, trx);
+        const user = await accounts.acceptInvitation(trx, tokenHash, { name: input.name, passwordHash }, now());
+        await audit.record({ action: "invitation_accepted", actor: { ...actor, user }, target: { type: "user", id: user.id, label: user.email } }, trx);
         return user;
       });
     },
@@ -128,7 +97,7 @@ export function createAuthService(deps: {
      * request would tell a known address from an unknown one by the time it takes.
      */
     async requestPasswordReset(email: string, actor: Actor): Promise<void> {
-      const user = await findUserByEmail(db, email);
+      const user = await accounts.findByEmail(email);
       const known = Boolean(user && !user.disabledAt);
       await audit.record({ action: "password_reset_requested", actor, actorEmail: email, detail: { known } });
       if (!user || !known) return;
@@ -141,15 +110,14 @@ export function createAuthService(deps: {
     async resetPassword(token: string, password: string, actor: Actor): Promise<User> {
       const passwordHash = await hashPassword(password);
       const user = await db.transaction(async (trx) => {
-        const reset = await findPasswordReset(trx, hashToken(token));
+        const reset = await accounts.findPasswordReset(trx, hashToken(token));
         if (!reset || reset.usedAt || reset.expiresAt <= now()) {
           throw new AppError("reset_invalid", "This reset link has expired or was already used. Ask for a new one.", 410);
         }
-        const u = await findUserById(trx, reset.userId);
+        const u = await accounts.findById(reset.userId, trx);
         if (!u || u.disabledAt) throw new AppError("reset_invalid", "This reset link has expired or was already used. Ask for a new one.", 410);
         assertPasswordAcceptable(password, u.email);
-        await updateUser(trx, u.id, { passwordHash });
-        await markPasswordResetUsed(trx, reset.id, u.id);
+        await accounts.usePasswordReset(trx, { id: reset.id, userId: u.id }, passwordHash);
         await audit.record({ action: "password_reset", actor: { ...actor, user: publicUser(u) }, target: { type: "user", id: u.id, label: u.email } }, trx);
         return publicUser(u);
       });

@@ -10,8 +10,6 @@ type Cb<T = void> = (err?: unknown, value?: T) => void;
  * user's sessions at once.
  */
 export class SessionRepository extends session.Store {
-  private timer: NodeJS.Timeout | undefined;
-
   constructor(private readonly db: Db, private readonly defaultTtlMs: number) {
     super();
   }
@@ -64,14 +62,8 @@ export class SessionRepository extends session.Store {
     return q.delete();
   }
 
-  startSweeping(intervalMs = 10 * 60 * 1000): void {
-    this.timer = setInterval(() => {
-      this.db("sessions").where("expires_at", "<=", new Date()).delete().catch(() => undefined);
-    }, intervalMs);
-    this.timer.unref();
-  }
-
-  stopSweeping(): void {
-    if (this.timer) clearInterval(this.timer);
+  /** Deletes the sessions that have expired by `at`; how many went. (A worker's sweep calls it.) */
+  async deleteExpired(at: Date = new Date()): Promise<number> {
+    return this.db("sessions").where("expires_at", "<=", at).delete();
   }
 }

@@ -1,6 +1,6 @@
 import type { Logger } from "../core/logger.ts";
 import type { Db } from "../db/knex.ts";
-import type { Mailer } from "../mail/mail.service.ts";
+import type { Mailer, OutboxService } from "../mail/mail.service.ts";
 import type { SubscribersService } from "../subscribers/subscribers.service.ts";
 import {
   claimDeliveries,
@@ -10,13 +10,14 @@ import {
   listUnfinishedRuns,
   refreshCounts,
   skipQueuedOf,
-  subscriberIdsByHash,
   type ClaimedDelivery,
   type ContentRow,
 } from "./digests.repository.ts";
 import { personalise } from "./digests.render.ts";
-import { hashAddress } from "../subscribers/subscribers.tokens.ts";
 import type { DigestsService } from "./digests.service.ts";
+
+/** A claimed delivery with its reader's address and status as they are now. */
+type Addressed = ClaimedDelivery & { email: string; subscriberStatus: string };
 
 export interface DigestJobsOptions {
   /** Messages per second across this process's sending; 0 = as fast as the relay takes them. */
@@ -56,8 +57,20 @@ function pacer(ratePerSecond: number) {
  * (`FOR UPDATE SKIP LOCKED`, with a lease), send them and record each result. Any number of
  * processes may run them against one database.
  */
-export function createDigestJobs(deps: { db: Db; mailer: Mailer; logger: Logger; digests: DigestsService; subscribers: SubscribersService; now?: () => Date }, opts: DigestJobsOptions) {
-  const { db, mailer, logger, digests, subscribers } = deps;
+export function createDigestJobs(
+  deps: {
+    db: Db;
+    mailer: Mailer;
+    logger: Logger;
+    digests: DigestsService;
+    subscribers: Pick<SubscribersService, "addressees" | "isSuppressed" | "markUndeliverable" | "idsWithAddress" | "recordDigestDelivered">;
+    /** The local sink's record of accepted messages (mail module). */
+    outbox: Pick<OutboxService, "accepted">;
+    now?: () => Date;
+  },
+  opts: DigestJobsOptions,
+) {
+  const { db, mailer, logger, digests, subscribers, outbox } = deps;
   const now = deps.now ?? (() => new Date());
   const batchSize = opts.batchSize ?? 100;
   const concurrency = opts.concurrency ?? 8;
@@ -73,9 +86,15 @@ export function createDigestJobs(deps: { db: Db; mailer: Mailer; logger: Logger;
    * local sink's outbox answers it (a hosted relay offers no such look-up, so there the
    * message is sent again, once).
    */
-  async function alreadyAccepted(d: ClaimedDelivery): Promise<boolean> {
-    const r = await db("mail_messages as m").join("mail_recipients as r", "r.message_id", "m.id").where("r.address", d.email.toLowerCase()).andWhere("m.message_id", d.messageId).first("m.id");
-    return Boolean(r);
+  const alreadyAccepted = (d: Addressed): Promise<boolean> => outbox.accepted(d.messageId, d.email);
+
+  /** The batch with each reader's address; a delivery whose subscriber is gone is left out, as the claim's join once did. */
+  async function addressed(batch: ClaimedDelivery[]): Promise<Addressed[]> {
+    const who = await subscribers.addressees([...new Set(batch.map((d) => d.subscriberId))]);
+    return batch.flatMap((d) => {
+      const s = who.get(d.subscriberId);
+      return s ? [{ ...d, email: s.email, subscriberStatus: s.status }] : [];
+    });
   }
 
   async function contentOf(id: number): Promise<ContentRow | null> {
@@ -83,7 +102,7 @@ export function createDigestJobs(deps: { db: Db; mailer: Mailer; logger: Logger;
     return contents.get(id) ?? null;
   }
 
-  async function deliver(d: ClaimedDelivery): Promise<void> {
+  async function deliver(d: Addressed): Promise<void> {
     const suppressed = await subscribers.isSuppressed(d.email);
     if (d.subscriberStatus !== "confirmed" || suppressed) {
       await finishDeliveries(db, [d.id], { status: "skipped", error: suppressed ? "address suppressed" : `subscriber is ${d.subscriberStatus}` });
@@ -114,7 +133,7 @@ export function createDigestJobs(deps: { db: Db; mailer: Mailer; logger: Logger;
       if (smtpFailureKind(err) === "permanent") {
         await finishDeliveries(db, [d.id], { status: "failed", error });
         await subscribers.markUndeliverable(d.email, "bounced", "digest-smtp-5xx");
-        await skipQueuedOf(db, await subscriberIdsByHash(db, hashAddress(d.email)), "address bounced");
+        await skipQueuedOf(db, await subscribers.idsWithAddress(d.email), "address bounced");
         logger.info({ subscriberId: d.subscriberId }, "digest refused permanently; address suppressed");
       } else if (d.attempts >= maxAttempts) {
         await finishDeliveries(db, [d.id], { status: "failed", error });
@@ -133,7 +152,7 @@ export function createDigestJobs(deps: { db: Db; mailer: Mailer; logger: Logger;
     for (const id of await listUnfinishedRuns(db)) await digests.planRun(id);
     let worked = 0;
     for (;;) {
-      const batch = await claimDeliveries(db, now(), leaseMs, batchSize);
+      const batch = await addressed(await claimDeliveries(db, now(), leaseMs, batchSize));
       if (batch.length === 0) break;
       const queue = [...batch];
       await Promise.all(

@@ -7,8 +7,6 @@ type Q = Knex | Knex.Transaction;
 export interface DigestRunRecord {
   id: number;
   projectId: number;
-  projectSlug: string;
-  projectName: string;
   frequency: Frequency;
   runKey: string;
   windowStart: Date;
@@ -29,8 +27,6 @@ function toRun(r: Record<string, unknown>): DigestRunRecord {
   return {
     id: Number(r.id),
     projectId: Number(r.project_id),
-    projectSlug: String(r.project_slug),
-    projectName: String(r.project_name),
     frequency: r.frequency as Frequency,
     runKey: String(r.run_key),
     windowStart: new Date(r.window_start as string),
@@ -52,7 +48,8 @@ function toRun(r: Record<string, unknown>): DigestRunRecord {
   };
 }
 
-const runQuery = (q: Q) => q("digest_runs as r").join("projects as p", "p.id", "r.project_id").select("r.*", "p.slug as project_slug", "p.name as project_name");
+// A run's project is named by the projects service (the service adds slug and name to what it shows).
+const runQuery = (q: Q) => q("digest_runs as r").select("r.*");
 
 export async function findRun(q: Q, id: number): Promise<DigestRunRecord | null> {
   const r = await runQuery(q).where("r.id", id).first();
@@ -257,9 +254,6 @@ export interface ClaimedDelivery {
   messageId: string;
   /** The previous attempt was claimed and its worker vanished before recording the result. */
   interrupted: boolean;
-  email: string;
-  subscriberStatus: string;
-  emailHash: string;
   windowEnd: Date;
   isTest: boolean;
 }
@@ -287,10 +281,9 @@ export async function claimDeliveries(db: Knex, now: Date, leaseMs: number, limi
     await trx("digest_deliveries").whereIn("id", ids).update({ status: "sending", lease_until: new Date(now.getTime() + leaseMs), attempts: trx.raw("attempts + 1") });
     const full = await trx("digest_deliveries as d")
       .join("digest_runs as r", "r.id", "d.run_id")
-      .join("subscribers as s", "s.id", "d.subscriber_id")
       .whereIn("d.id", ids)
       .orderBy("d.id")
-      .select("d.id", "d.run_id", "d.subscriber_id", "d.content_id", "d.attempts", "d.message_id", "s.email", "s.status as subscriber_status", "s.email_hash", "r.window_end", "r.is_test");
+      .select("d.id", "d.run_id", "d.subscriber_id", "d.content_id", "d.attempts", "d.message_id", "r.window_end", "r.is_test");
     return full.map((r) => ({
       id: Number(r.id),
       runId: Number(r.run_id),
@@ -299,9 +292,6 @@ export async function claimDeliveries(db: Knex, now: Date, leaseMs: number, limi
       attempts: Number(r.attempts),
       messageId: String(r.message_id),
       interrupted: interrupted.has(Number(r.id)),
-      email: String(r.email),
-      subscriberStatus: String(r.subscriber_status),
-      emailHash: String(r.email_hash),
       windowEnd: new Date(r.window_end),
       isTest: Boolean(r.is_test),
     }));
@@ -323,9 +313,9 @@ export async function skipQueuedOf(q: Q, subscriberIds: number[], reason: string
   await q("digest_deliveries").whereIn("subscriber_id", subscriberIds).whereIn("status", ["queued"]).update({ status: "skipped", error: reason });
 }
 
-export async function subscriberIdsByHash(q: Q, emailHash: string): Promise<number[]> {
-  const rows = await q("subscribers").where({ email_hash: emailHash }).select("id");
-  return rows.map((r: { id: number }) => Number(r.id));
+/** Whether this subscriber was a reader of this content (the web copy shows it to no one else). */
+export async function wasDeliveredTo(q: Q, contentId: number, subscriberId: number): Promise<boolean> {
+  return Boolean(await q("digest_deliveries").where({ content_id: contentId, subscriber_id: subscriberId }).first("id"));
 }
 
 /** Of these posts, the ones that already have an "as it happens" run. */
@@ -333,14 +323,4 @@ export async function postsWithImmediateRun(q: Q, postIds: readonly number[]): P
   if (postIds.length === 0) return new Set();
   const rows = await q("digest_runs").whereIn("post_id", [...postIds]).andWhere("frequency", "immediate").select("post_id");
   return new Set(rows.map((r: { post_id: number }) => Number(r.post_id)));
-}
-
-export async function countRecipients(q: Q, projectId: number, frequency: Frequency): Promise<number> {
-  const r = await q("subscribers as s")
-    .leftJoin("suppressions as x", "x.email_hash", "s.email_hash")
-    .where({ "s.project_id": projectId, "s.frequency": frequency, "s.status": "confirmed" })
-    .whereNull("x.id")
-    .count({ n: "*" })
-    .first();
-  return Number(r?.n ?? 0);
 }

@@ -1,15 +1,14 @@
 import type { Request, Response } from "express";
 import { Router } from "express";
-import rateLimit from "express-rate-limit";
+import rateLimit, { type Store } from "express-rate-limit";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { EnquiryInputSchema, EnquiryListQuerySchema, EnquiryPatchSchema } from "#shared/schemas/enquiries.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireStaff } from "../core/auth.ts";
-import type { RateLimitRepository } from "../rate-limit/rate-limit.repository.ts";
 import { ENQUIRY_ACCEPTED, type EnquiriesService } from "./enquiries.service.ts";
 
-export function enquiriesRouter(deps: { enquiries: EnquiriesService; limit: { perIp: number; windowMs: number }; store: RateLimitRepository }): Router {
+export function enquiriesRouter(deps: { enquiries: EnquiriesService; limit: { perIp: number; windowMs: number }; store: Store }): Router {
   const { enquiries } = deps;
   const r = Router();
 

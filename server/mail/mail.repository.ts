@@ -81,3 +81,9 @@ export async function findRaw(q: Q, id: number): Promise<Buffer | null> {
   const r = await q("mail_messages").select("raw").where({ id }).first();
   return r ? (r.raw as Buffer) : null;
 }
+
+/** Whether the sink stored a message with this Message-ID for this address. */
+export async function messageReached(q: Q, messageId: string, address: string): Promise<boolean> {
+  const r = await q("mail_messages as m").join("mail_recipients as r", "r.message_id", "m.id").where("r.address", address.toLowerCase()).andWhere("m.message_id", messageId).first("m.id");
+  return Boolean(r);
+}

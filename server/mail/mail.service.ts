@@ -3,7 +3,7 @@ import type { Logger } from "../core/logger.ts";
 import type { Db } from "../db/knex.ts";
 import type { OutboxMessage } from "#shared/schemas/outbox.ts";
 import { maskHeaders, maskRawMessage, maskSecrets } from "./mail.mask.ts";
-import { findMessage, findRaw, listMessages } from "./mail.repository.ts";
+import { findMessage, findRaw, listMessages, messageReached } from "./mail.repository.ts";
 
 export interface OutgoingMail {
   to: string;
@@ -55,6 +55,11 @@ export function createOutboxService(db: Db) {
       const raw = await findRaw(db, id);
       return raw ? maskRawMessage(raw) : null;
     },
+    /**
+     * Whether the local sink accepted a message with this Message-ID for this address: how a sender
+     * interrupted between the relay's acceptance and its own record learns the message left.
+     */
+    accepted: (messageId: string, address: string): Promise<boolean> => messageReached(db, messageId, address),
   };
 }
 export type OutboxService = ReturnType<typeof createOutboxService>;

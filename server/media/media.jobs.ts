@@ -1,6 +1,7 @@
 import type { Logger } from "../core/logger.ts";
 import { DerivativeLimitError, makeDerivatives } from "./media.pipeline.ts";
-import { variantKey, type MediaService } from "./media.service.ts";
+import { variantKey } from "./media.items.ts";
+import type { MediaService } from "./media.service.ts";
 import type { MediaStorage, UploadArea } from "./media.storage.ts";
 
 export interface MediaJobsOptions {
@@ -17,6 +18,11 @@ export interface MediaJobsOptions {
   pollMs?: number;
   /** Age above which temporary files are swept at start-up, ms (younger ones may be another process's). */
   sweepAfterMs?: number;
+  /**
+   * This worker's clock for leases and retry delays. Without it the database's clock decides,
+   * which every process shares; a test gives one to let a lease run out without waiting.
+   */
+  now?: () => Date;
 }
 
 /**
@@ -43,13 +49,13 @@ export function createMediaJobs(opts: MediaJobsOptions) {
 
   /** Runs one job if one is due; false when there was none. */
   async function runOne(): Promise<boolean> {
-    const job = await media.queue.claim(leaseMs);
+    const job = await media.queue.claim(leaseMs, opts.now?.());
     if (!job) return false;
     const started = Date.now();
     try {
       const original = await storage.get(job.originalKey);
       if (!original) {
-        await media.queue.fail(job, "The original file is missing from storage.", true);
+        await media.queue.fail(job, "The original file is missing from storage.", true, opts.now?.());
         return true;
       }
       const d = await makeDerivatives(original, { maxPixels: opts.maxPixels });
@@ -78,12 +84,12 @@ export function createMediaJobs(opts: MediaJobsOptions) {
     } catch (err) {
       if (err instanceof DerivativeLimitError) {
         logger.warn({ mediaId: job.mediaId, reason: err.message }, "media cannot be processed");
-        await media.queue.fail(job, err.message, true).catch((e: unknown) => logger.error({ err: e }, "could not record the failure"));
+        await media.queue.fail(job, err.message, true, opts.now?.()).catch((e: unknown) => logger.error({ err: e }, "could not record the failure"));
         return true;
       }
       logger.error({ err, mediaId: job.mediaId, attempt: job.attempts }, "media processing failed");
       const reason = err instanceof Error ? err.message.split("\n")[0]! : String(err);
-      await media.queue.fail(job, `Processing failed: ${reason}`, false).catch((e: unknown) => logger.error({ err: e }, "could not record the failure"));
+      await media.queue.fail(job, `Processing failed: ${reason}`, false, opts.now?.()).catch((e: unknown) => logger.error({ err: e }, "could not record the failure"));
     }
     return true;
   }
@@ -129,7 +135,7 @@ export function createMediaJobs(opts: MediaJobsOptions) {
       if (running) return;
       try {
         const swept = await uploads.sweep(sweepAfterMs);
-        const requeued = await media.queue.requeueExpired();
+        const requeued = await media.queue.requeueExpired(opts.now?.());
         if (swept || requeued) logger.info({ swept, requeued }, "media start-up sweep");
       } catch (err) {
         // A sweep that fails is retried at the next start; the loops still claim expired leases.

@@ -28,12 +28,11 @@ export interface MediaRecord {
   sensitivity: Sensitivity;
   flaggedForReview: boolean;
   reviewedAt: Date | null;
-  reviewedByName: string | null;
+  reviewedBy: number | null;
   placeholder: string | null;
   dominantColor: string | null;
   isIllustration: boolean;
   uploadedBy: number | null;
-  uploadedByName: string | null;
   createdAt: Date;
   updatedAt: Date;
 }
@@ -72,22 +71,18 @@ function toMedia(r: Record<string, unknown>): MediaRecord {
     sensitivity: r.sensitivity as Sensitivity,
     flaggedForReview: Boolean(r.flagged_for_review),
     reviewedAt: (r.reviewed_at as Date | null) ?? null,
-    reviewedByName: str(r.reviewer_name),
+    reviewedBy: r.reviewed_by == null ? null : Number(r.reviewed_by),
     placeholder: str(r.placeholder),
     dominantColor: str(r.dominant_color),
     isIllustration: Boolean(r.is_illustration),
     uploadedBy: r.uploaded_by == null ? null : Number(r.uploaded_by),
-    uploadedByName: str(r.uploader_name),
     createdAt: r.created_at as Date,
     updatedAt: r.updated_at as Date,
   };
 }
 
 function itemsQuery(q: Q) {
-  return q("media_items as i")
-    .leftJoin("users as up", "up.id", "i.uploaded_by")
-    .leftJoin("users as rv", "rv.id", "i.reviewed_by")
-    .select("i.*", "up.name as uploader_name", "rv.name as reviewer_name");
+  return q("media_items as i").select("i.*");
 }
 
 export interface NewMedia {
@@ -153,7 +148,7 @@ export async function countItemsWithOriginal(q: Q, originalKey: string): Promise
   return Number(r?.n ?? 0);
 }
 
-function escapeLike(s: string): string {
+export function escapeLike(s: string): string {
   return s.replace(/[\\%_]/g, (c) => `\\${c}`);
 }
 
@@ -276,35 +271,19 @@ export async function removeTags(q: Q, mediaIds: readonly number[], kind: TagKin
   await q("media_tags").whereIn("media_id", [...mediaIds]).andWhere({ kind }).whereIn("value", [...values]).delete();
 }
 
-/** Areas already used on the project's photos or named by its milestones, alphabetically. */
-export async function knownAreas(q: Q, projectId: number): Promise<string[]> {
+/** Areas already used on the project's photos (the programme's own areas come from its service). */
+export async function taggedAreas(q: Q, projectId: number): Promise<string[]> {
   const used = (await q("media_tags as t")
     .join("media_items as i", "i.id", "t.media_id")
     .where({ "i.project_id": projectId, "t.kind": "area" })
     .distinct("t.value as v")) as Array<{ v: string }>;
-  const fromProgramme = (await q("milestones").where({ project_id: projectId }).whereNot("area", "").distinct("area as v")) as Array<{ v: string }>;
-  return [...new Set([...used, ...fromProgramme].map((r) => r.v))].sort((a, b) => a.localeCompare(b));
-}
-
-/**
- * The milestones photos of a project may be tagged with. A photo is tagged for staff use, so
- * every milestone counts whatever its audience; what a visitor sees is filtered where it is shown.
- */
-export async function milestonesOfProject(q: Q, projectId: number): Promise<Array<{ id: number; name: string }>> {
-  const rows = (await q("milestones").where({ project_id: projectId }).orderBy([{ column: "baseline_finish" }, { column: "id" }]).select("id", "name")) as Array<{ id: number; name: string }>;
-  return rows.map((r) => ({ id: Number(r.id), name: String(r.name) }));
+  return used.map((r) => r.v);
 }
 
 /** Photos tagged with the milestone (the programme keeps such a milestone on record). */
 export async function mediaTaggedWithMilestone(q: Q, milestoneId: number): Promise<number[]> {
   const rows = (await q("media_tags").where({ kind: "milestone", value: String(milestoneId) }).orderBy("media_id").select("media_id")) as Array<{ media_id: number }>;
   return rows.map((r) => Number(r.media_id));
-}
-
-export async function existingMilestoneIds(q: Q, projectId: number, ids: readonly number[]): Promise<Set<number>> {
-  if (ids.length === 0) return new Set();
-  const rows = (await q("milestones").where({ project_id: projectId }).whereIn("id", [...ids]).select("id")) as Array<{ id: number }>;
-  return new Set(rows.map((r) => Number(r.id)));
 }
 
 // Variants
@@ -391,151 +370,6 @@ export async function countUsages(q: Q, mediaIds: readonly number[]): Promise<Ma
     .sum({ published: "published" })) as Array<{ media_id: number; total: number; published: number | string | null }>;
   for (const r of rows) out.set(Number(r.media_id), { total: Number(r.total), published: Number(r.published ?? 0) });
   return out;
-}
-
-// The processing queue
-
-export interface ClaimedJob {
-  jobId: number;
-  mediaId: number;
-  leaseToken: string;
-  attempts: number;
-  originalKey: string;
-}
-
-export async function insertJob(q: Q, mediaId: number): Promise<void> {
-  await q("media_jobs").insert({ media_id: mediaId });
-}
-
-/**
- * Claims the oldest job that is due, or whose holder's lease ran out (its process died),
- * under a fresh lease token. `SKIP LOCKED` lets several workers, in several processes,
- * claim at the same moment without waiting on each other or taking the same job. Times
- * come from the database clock, which every process shares.
- */
-export async function claimJob(trx: Knex.Transaction, leaseToken: string, leaseMs: number): Promise<ClaimedJob | null> {
-  const row = (await trx("media_jobs")
-    .where((w) =>
-      w
-        .where((a) => a.where("state", "queued").andWhere("run_after", "<=", trx.raw("NOW(3)")))
-        .orWhere((b) => b.where("state", "running").andWhere("lease_until", "<", trx.raw("NOW(3)"))),
-    )
-    .orderBy("id")
-    .first("id", "media_id", "attempts")
-    .forUpdate()
-    .skipLocked()) as { id: number; media_id: number; attempts: number } | undefined;
-  if (!row) return null;
-  await trx("media_jobs")
-    .where({ id: row.id })
-    .update({
-      state: "running",
-      lease_token: leaseToken,
-      lease_until: trx.raw("DATE_ADD(NOW(3), INTERVAL ? MICROSECOND)", [Math.round(leaseMs * 1000)]),
-      attempts: trx.raw("attempts + 1"),
-    });
-  const item = (await trx("media_items").where({ id: row.media_id }).first("original_key")) as { original_key: string } | undefined;
-  return {
-    jobId: Number(row.id),
-    mediaId: Number(row.media_id),
-    leaseToken,
-    attempts: Number(row.attempts) + 1,
-    originalKey: String(item?.original_key ?? ""),
-  };
-}
-
-/** Storage keys each attempt (by lease token) recorded before writing them. */
-export type StagedKeys = Record<string, string[]>;
-
-const parseStaged = (v: unknown): StagedKeys => (v ? (JSON.parse(String(v)) as StagedKeys) : {});
-
-/** Locks the job row while its lease token is still the one given; null when the lease was lost. */
-export async function lockHeldJob(trx: Knex.Transaction, jobId: number, leaseToken: string): Promise<{ staged: StagedKeys; attempts: number } | null> {
-  const row = (await trx("media_jobs").where({ id: jobId, lease_token: leaseToken }).first("staged_keys", "attempts").forUpdate()) as
-    | { staged_keys: string | null; attempts: number }
-    | undefined;
-  if (!row) return null;
-  return { staged: parseStaged(row.staged_keys), attempts: Number(row.attempts) };
-}
-
-/** Locks a job row whoever holds it; null when it is gone (its photo is committed or failed). */
-export async function lockJob(trx: Knex.Transaction, jobId: number): Promise<{ staged: StagedKeys } | null> {
-  const row = (await trx("media_jobs").where({ id: jobId }).first("staged_keys").forUpdate()) as { staged_keys: string | null } | undefined;
-  return row ? { staged: parseStaged(row.staged_keys) } : null;
-}
-
-export async function setStagedKeys(q: Q, jobId: number, staged: StagedKeys): Promise<void> {
-  await q("media_jobs").where({ id: jobId }).update({ staged_keys: JSON.stringify(staged) });
-}
-
-/** Whether any attempt of any job, other than the one excepted, recorded this key. */
-export async function isKeyStaged(q: Q, key: string, except?: { jobId: number; leaseToken: string }): Promise<boolean> {
-  const rows = (await q("media_jobs").where("staged_keys", "like", `%${escapeLike(JSON.stringify(key))}%`).select("id", "staged_keys")) as Array<{ id: number; staged_keys: string }>;
-  return rows.some((r) =>
-    Object.entries(parseStaged(r.staged_keys)).some(([token, keys]) => keys.includes(key) && !(except && Number(r.id) === except.jobId && token === except.leaseToken)),
-  );
-}
-
-export async function deleteJob(q: Q, jobId: number): Promise<void> {
-  await q("media_jobs").where({ id: jobId }).delete();
-}
-
-/** Back into the queue after a failed attempt, not before `delayMs` has passed. */
-export async function requeueJob(q: Q, jobId: number, error: string, delayMs: number): Promise<void> {
-  await q("media_jobs")
-    .where({ id: jobId })
-    .update({
-      state: "queued",
-      lease_token: null,
-      lease_until: null,
-      last_error: error.slice(0, 2000),
-      run_after: q.raw("DATE_ADD(NOW(3), INTERVAL ? MICROSECOND)", [Math.round(delayMs * 1000)]),
-    });
-}
-
-/** Jobs whose holder's lease ran out go back to the queue (their process died or hung). */
-export async function requeueExpiredLeases(q: Q): Promise<number> {
-  return Number(
-    await q("media_jobs")
-      .where("state", "running")
-      .andWhere("lease_until", "<", q.raw("NOW(3)"))
-      .update({ state: "queued", lease_token: null, lease_until: null, last_error: "the lease ran out; the worker that held it stopped" }),
-  );
-}
-
-/**
- * The caller holds the job's lease, so the photo has no variants yet. (No defensive DELETE
- * first: on an empty range it takes gap locks that deadlock two workers committing at once.)
- */
-export async function insertVariants(q: Q, mediaId: number, variants: ReadonlyArray<Omit<VariantRecord, "mediaId">>): Promise<void> {
-  if (variants.length === 0) return;
-  await q("media_variants").insert(
-    variants.map((v) => ({ media_id: mediaId, width: v.width, height: v.height, format: v.format, storage_key: v.storageKey, bytes: v.bytes })),
-  );
-}
-
-export async function markMediaReady(
-  q: Q,
-  mediaId: number,
-  d: { width: number; height: number; placeholder: string; dominantColor: string },
-): Promise<void> {
-  await q("media_items").where({ id: mediaId }).update({
-    status: "ready",
-    failure_reason: null,
-    width: d.width,
-    height: d.height,
-    placeholder: d.placeholder,
-    dominant_color: d.dominantColor,
-    updated_at: q.raw("CURRENT_TIMESTAMP(3)"),
-  });
-}
-
-export async function markMediaFailed(q: Q, mediaId: number, reason: string): Promise<void> {
-  await q("media_items").where({ id: mediaId }).update({ status: "failed", failure_reason: reason.slice(0, 2000), updated_at: q.raw("CURRENT_TIMESTAMP(3)") });
-}
-
-export async function requeueMedia(q: Q, mediaId: number): Promise<void> {
-  await q("media_items").where({ id: mediaId }).update({ status: "processing", failure_reason: null, updated_at: q.raw("CURRENT_TIMESTAMP(3)") });
-  await q("media_jobs").insert({ media_id: mediaId }).onConflict("media_id").ignore();
 }
 
 /** Every stored original of a project, for rewriting their metadata. */

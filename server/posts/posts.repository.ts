@@ -1,18 +1,19 @@
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
-import type { MilestoneSnapshot, PostStatus, PostTag } from "#shared/schemas/posts.ts";
+import type { MilestoneSnapshot, PostTag } from "#shared/schemas/posts.ts";
+import type { PostStatus } from "#shared/schemas/publishing.ts";
 import type { RichTextDoc } from "#shared/schemas/rich-text.ts";
 import type { Viewer } from "#shared/domain/audience.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
-import { contentQueries, visibleContent } from "../core/content-tables.ts";
+import { visibleContent } from "../publishing/publishing.audience.ts";
 
 type Q = Knex | Knex.Transaction;
 
 /**
- * The queries every kind of published content shares (server/core/content-tables.ts), over the
- * posts tables: old addresses and redirects, revision numbers, the scheduler's claim.
+ * The content table of updates, for the publishing workflow's queries of its address, state and
+ * schedule (server/publishing keeps the revisions, old addresses and history of every kind).
  */
-const shared = contentQueries({ content: "posts", oldSlugs: "post_slugs", revisions: "post_revisions", key: "post_id" });
+export const POSTS_TABLE = "posts";
 
 /**
  * The audience rule of posts (the rule of all published content, `visibleContent`): every read
@@ -186,13 +187,6 @@ export async function findVisiblePostBySlug(q: Q, projectId: number, slug: strin
   const r = await visibleTo(q("posts as p").where({ "p.project_id": projectId, "p.slug": slug }), viewer).first("p.*");
   return r ? toRecord(r) : null;
 }
-
-/** The current address of a post that once lived at an old one, when the viewer may read it. */
-export const findRedirect = shared.findRedirect;
-/** Makes way for a new address, keeping the current one for redirects; false when another post holds it. */
-export const moveSlug = shared.moveSlug;
-/** A free address for a new post: the wanted one, or with -2, -3 … when it was made from the title; null when none. */
-export const freeSlug = shared.freeSlug;
 
 export interface ListFilter {
   page: number;
@@ -406,85 +400,36 @@ export async function captureMilestones(q: Q, postId: number, snapshots: Readonl
   }
 }
 
-// Revisions
+// Revisions (stored by server/publishing; these are the columns of an update's own content)
 
-export interface RevisionRecord {
-  number: number;
-  title: string;
+/** What a revision keeps of an update's own content. */
+export interface PostRevisionContent {
   summary: string;
-  slug: string;
-  audience: Audience;
-  status: PostStatus;
   body: RichTextDoc;
   plainText: string;
   coverMediaId: number | null;
   milestoneIds: number[];
   tags: PostTag[];
-  note: string | null;
-  authorName: string;
-  createdAt: Date;
 }
 
-export async function insertRevision(
-  q: Q,
-  postId: number,
-  rev: Omit<RevisionRecord, "number" | "createdAt"> & { authorId: number | null; at: Date },
-): Promise<number> {
-  const number = await shared.nextRevisionNumber(q, postId);
-  await q("post_revisions").insert({
-    post_id: postId,
-    number,
-    title: rev.title,
-    summary: rev.summary,
-    slug: rev.slug,
-    audience: rev.audience,
-    status: rev.status,
-    body: JSON.stringify(rev.body),
-    plain_text: rev.plainText,
-    cover_media_id: rev.coverMediaId,
-    milestone_ids: JSON.stringify(rev.milestoneIds),
-    tags: JSON.stringify(rev.tags),
-    note: rev.note,
-    author_id: rev.authorId,
-    author_name: rev.authorName,
-    created_at: rev.at,
-  });
-  return number;
-}
-
-function toRevision(r: Record<string, unknown>): RevisionRecord {
+export function postRevisionColumns(c: PostRevisionContent): Record<string, unknown> {
   return {
-    number: Number(r.number),
-    title: String(r.title),
-    summary: String(r.summary),
-    slug: String(r.slug),
-    audience: r.audience as Audience,
-    status: r.status as PostStatus,
-    body: r.body === undefined ? ({ type: "doc", content: [] } as RichTextDoc) : (JSON.parse(String(r.body)) as RichTextDoc),
-    plainText: r.plain_text === undefined ? "" : String(r.plain_text),
-    coverMediaId: r.cover_media_id === null ? null : Number(r.cover_media_id),
-    milestoneIds: JSON.parse(String(r.milestone_ids)) as number[],
-    tags: JSON.parse(String(r.tags)) as PostTag[],
-    note: r.note === null ? null : String(r.note),
-    authorName: String(r.author_name),
-    createdAt: new Date(r.created_at as string),
+    summary: c.summary,
+    body: JSON.stringify(c.body),
+    plain_text: c.plainText,
+    cover_media_id: c.coverMediaId,
+    milestone_ids: JSON.stringify(c.milestoneIds),
+    tags: JSON.stringify(c.tags),
   };
 }
 
-export async function listRevisions(q: Q, postId: number): Promise<RevisionRecord[]> {
-  const rows = await q("post_revisions")
-    .where({ post_id: postId })
-    .orderBy("number", "desc")
-    .select("number", "title", "summary", "slug", "audience", "status", "cover_media_id", "milestone_ids", "tags", "note", "author_name", "created_at");
-  return rows.map(toRevision);
+export function postRevisionContent(r: Readonly<Record<string, unknown>>): PostRevisionContent {
+  return {
+    summary: String(r.summary),
+    body: r.body === undefined ? ({ type: "doc", content: [] } as RichTextDoc) : (JSON.parse(String(r.body)) as RichTextDoc),
+    plainText: r.plain_text === undefined ? "" : String(r.plain_text),
+    coverMediaId: r.cover_media_id === null || r.cover_media_id === undefined ? null : Number(r.cover_media_id),
+    milestoneIds: JSON.parse(String(r.milestone_ids)) as number[],
+    tags: JSON.parse(String(r.tags)) as PostTag[],
+  };
 }
-
-export async function findRevision(q: Q, postId: number, number: number): Promise<RevisionRecord | null> {
-  const r = await q("post_revisions").where({ post_id: postId, number }).first();
-  return r ? toRevision(r) : null;
-}
-
-// The scheduler
-
-/** Claims due scheduled posts for this transaction, skipping those another process holds (SKIP LOCKED). */
-export const claimDuePosts = shared.claimDue;

@@ -1,4 +1,6 @@
 import type { Knex } from "knex";
+import type { Viewer } from "#shared/domain/audience.ts";
+import { slugFromTitle } from "#shared/domain/publishing-workflow.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
@@ -12,44 +14,34 @@ import {
   type PostMilestone,
   type PostPatchInput,
   type PostRedirect,
-  type PostRevisionSummary,
-  type PostStatus,
   type PostSummary,
   type PostTag,
-  type PublishingProblem,
-  type RevisionDiff,
-  type ScheduleInput,
-  type WorkflowAction,
-  type WorkflowResult,
 } from "#shared/schemas/posts.ts";
+import type { PostStatus, PublishingProblem } from "#shared/schemas/publishing.ts";
 import { imageIdsOf, milestoneBlockIdsOf, walkRichText, type RichTextDoc } from "#shared/schemas/rich-text.ts";
-import { EDITED_AFTER_APPROVAL, editNeedsApproval, heldBackFields, publicationInstant, slugFromTitle, stepComment, stepFields } from "#shared/domain/publishing-workflow.ts";
-import { AppError, forbidden, notFound } from "../core/app-error.ts";
+import { AppError, notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
-import { checkStep, diffRevisions, revisionSummary, scheduleInstant, viewerOf, workflowSteps, type PublishingService } from "../publishing/publishing.service.ts";
-import { milestoneProblems, photoProblems, publishingBlocked, type MediaForContent, type PhotoUse } from "./posts.checks.ts";
+import { photoProblems, publishingBlocked, type MediaForContent, type PhotoUse } from "../publishing/publishing.checks.ts";
+import { viewerOf, type PublishingService } from "../publishing/publishing.service.ts";
+import { milestoneProblems } from "./posts.checks.ts";
 import {
+  POSTS_TABLE,
   captureMilestones,
-  claimDuePosts,
   findPostById,
   findPublishedPost,
-  findRedirect,
-  findRevision,
   findVisiblePostBySlug,
-  freeSlug,
   insertPost,
-  insertRevision,
   latestPublicChange,
   listPosts,
   listPublicPostAddresses,
   listPublicPosts,
   listPublishedBetween,
   listPublishedSince,
-  listRevisions,
   milestoneLinksOf,
-  moveSlug,
+  postRevisionColumns,
+  postRevisionContent,
   postsLinkingMilestone,
   replaceMilestoneLinks,
   replacePostMedia,
@@ -59,6 +51,7 @@ import {
   type MilestoneLinkRecord,
   type PostListRecord,
   type PostRecord,
+  type PostRevisionContent,
   type PostUpdate,
   type PublishedPostRecord,
 } from "./posts.repository.ts";
@@ -68,20 +61,13 @@ type Trx = Knex.Transaction;
 
 export type { PublishedPostRecord };
 
-/** What posts need of the programme: the milestones an audience may see (server/programme). */
+/** What posts need of the programme: the milestones a reader may see (server/programme). */
 export interface ProgrammeForPosts {
-  list(slug: string, query: Record<string, never>, actor: Actor): Promise<Milestone[]>;
+  list(slug: string, query: Record<string, never>, reader: Viewer): Promise<Milestone[]>;
 }
 
-/**
- * The programme's audience rule applies to callers, so the milestones an audience may see are
- * asked for as a caller of that audience would ask. The id is never a real user's.
- */
-function readerOfAudience(audience: Audience): Actor {
-  if (audience === "public") return { user: null, ip: null };
-  const role = audience === "investor" ? "investor" : "lead";
-  return { user: { id: 0, email: "", name: "", role }, ip: null };
-}
+/** Who reads content of an audience: internal content is read by staff. */
+const readersOf = (audience: Audience): Viewer => (audience === "internal" ? "staff" : audience);
 
 const snapshotOf = (m: Milestone): MilestoneSnapshot => ({
   status: m.status,
@@ -95,13 +81,6 @@ const sameSnapshot = (a: MilestoneSnapshot, b: MilestoneSnapshot) =>
   a.status === b.status && a.forecastFinish === b.forecastFinish && a.actualFinish === b.actualFinish && a.baselineFinish === b.baselineFinish && Math.round(a.percentComplete) === Math.round(b.percentComplete);
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
-
-function isDuplicate(err: unknown): boolean {
-  return (err as { code?: string })?.code === "ER_DUP_ENTRY";
-}
-
-const slugTaken = (slug: string) =>
-  new AppError("slug_taken", `The address “${slug}” is already used by another update in this project.`, 409, { slug: "is already used by another update in this project" });
 
 /** The photos of a post, where each is used (for checks that name them). */
 function photoUsesOf(post: { coverMediaId: number | null; body: RichTextDoc }): PhotoUse[] {
@@ -132,7 +111,7 @@ export interface PostsDeps {
   projects: ProjectsService;
   programme: ProgrammeForPosts;
   media: MediaForContent;
-  /** The workflow shared with photo stories: history, scheduled publication. */
+  /** The publishing workflow (server/publishing): the steps, revisions, history and schedule. */
   publishing: PublishingService;
   /** Called after every change that readers could see (public caches drop their copies). */
   onChange?: () => void;
@@ -141,10 +120,34 @@ export interface PostsDeps {
 export function createPostsService(deps: PostsDeps) {
   const { db, projects, programme, media, publishing } = deps;
   const now = () => projects.now();
-  const changed = () => deps.onChange?.();
 
-  async function milestonesFor(project: Project, actor: Actor): Promise<Map<number, Milestone>> {
-    return new Map((await programme.list(project.slug, {}, actor)).map((m) => [m.id, m]));
+  /** An update as the publishing workflow sees it: its checks, its rendering for publication, what a revision keeps. */
+  const workflow = publishing.workflowOf<PostRecord, PostRevisionContent, PostDetail>({
+    kind: "post",
+    table: POSTS_TABLE,
+    name: "update",
+    answerSchedule: "always",
+    projects,
+    find: findPostById,
+    problems: async (trx, project, post) => problemsOf(project, post, (await milestoneLinksOf(trx, post.id)).map((l) => l.milestoneId)),
+    publish: publishIn,
+    unpublish: (trx, post) => media.setUsages("post", post.id, mediaIdsOf(post), post.audience, false, trx),
+    update: async (trx, id, changes, at) => void (await updatePost(trx, id, null, changes, at)),
+    async snapshot(trx, post) {
+      const links = await milestoneLinksOf(trx, post.id);
+      const tags = (await tagsFor(trx, [post.id])).get(post.id) ?? [];
+      return { summary: post.summary, body: post.body, plainText: post.plainText, coverMediaId: post.coverMediaId, milestoneIds: links.filter((l) => l.explicit).map((l) => l.milestoneId), tags };
+    },
+    revisionColumns: postRevisionColumns,
+    revisionContent: postRevisionContent,
+    revisionText: (r) => `${r.title}\n${r.summary}\n\n${r.plainText}`,
+    // Restoring brings back the content (title, summary, text, cover, milestones, tags); the address and audience stay.
+    restore: (id, rev, note, actor) => saveChanges(id, { title: rev.title, summary: rev.summary, body: rev.body, coverMediaId: rev.coverMediaId, milestoneIds: rev.milestoneIds, tags: rev.tags, note }, actor),
+    onChange: deps.onChange,
+  });
+
+  async function milestonesFor(project: Project, reader: Viewer): Promise<Map<number, Milestone>> {
+    return new Map((await programme.list(project.slug, {}, reader)).map((m) => [m.id, m]));
   }
 
   /** What a milestone block shows: "then" where captured, otherwise today's figures as the audience sees them. */
@@ -156,7 +159,7 @@ export function createPostsService(deps: PostsDeps) {
   }
 
   async function renderFor(project: Project, post: { body: RichTextDoc; audience: Audience; coverMediaId: number | null }, links: readonly MilestoneLinkRecord[]) {
-    const [pictures, current] = await Promise.all([media.pictureFor(mediaIdsOf(post)), milestonesFor(project, readerOfAudience(post.audience))]);
+    const [pictures, current] = await Promise.all([media.pictureFor(mediaIdsOf(post)), milestonesFor(project, readersOf(post.audience))]);
     const ctx: RenderContext = { pictures, milestones: blockData(links, current) };
     return { html: renderRichText(post.body, ctx), plainText: plainTextOf(post.body, ctx) };
   }
@@ -167,7 +170,7 @@ export function createPostsService(deps: PostsDeps) {
     if (!post.coverMediaId) problems.push({ code: "no_cover", message: "Choose a cover photo." });
     problems.push(...(await photoProblems(media, project.id, photoUsesOf(post), post.audience)));
     if (milestoneIds.length) {
-      const [all, visible] = await Promise.all([milestonesFor(project, readerOfAudience("internal")), milestonesFor(project, readerOfAudience(post.audience))]);
+      const [all, visible] = await Promise.all([milestonesFor(project, readersOf("internal")), milestonesFor(project, readersOf(post.audience))]);
       problems.push(...milestoneProblems(milestoneIds, all, new Set(visible.keys()), post.audience));
     }
     return problems;
@@ -185,7 +188,7 @@ export function createPostsService(deps: PostsDeps) {
       if (inline.length) fields.body = `photo ${inline.map((id) => `#${id}`).join(", ")} is not in this project's media library`;
     }
     if (milestoneIds.length) {
-      const all = await milestonesFor(project, readerOfAudience("internal"));
+      const all = await milestonesFor(project, readersOf("internal"));
       const unknown = milestoneIds.filter((id) => !all.has(id));
       if (unknown.length) fields.milestoneIds = `milestone ${unknown.map((id) => `#${id}`).join(", ")} is not in this project's programme`;
     }
@@ -221,7 +224,7 @@ export function createPostsService(deps: PostsDeps) {
     const viewer = viewerOf(actor);
     const links = await milestoneLinksOf(db, post.id);
     const inline = imageIdsOf(post.body);
-    const [tags, pictures, current] = await Promise.all([tagsFor(db, [post.id]), media.pictureFor(mediaIdsOf(post)), milestonesFor(project, actor)]);
+    const [tags, pictures, current] = await Promise.all([tagsFor(db, [post.id]), media.pictureFor(mediaIdsOf(post)), milestonesFor(project, viewer)]);
     const milestones: PostMilestone[] = [];
     for (const l of links) {
       const now = current.get(l.milestoneId);
@@ -242,33 +245,20 @@ export function createPostsService(deps: PostsDeps) {
       milestoneIds: links.filter((l) => l.explicit).map((l) => l.milestoneId),
     };
     if (viewer === "staff") {
-      const revisions = await listRevisions(db, post.id);
+      const revisions = await workflow.revisionList(post.id);
       detail.body = post.body;
       detail.version = post.version;
       detail.reviewComment = post.reviewComment;
-      detail.revisions = revisions.map(revisionSummary);
+      detail.revisions = revisions;
       detail.problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
     }
     return detail;
   }
 
-  async function lockedPost(trx: Trx, id: number): Promise<PostRecord> {
-    const post = await findPostById(trx, id, { forUpdate: true });
-    if (!post) throw notFound("That update");
-    return post;
-  }
-
-  /** A free address for a new post: the wanted one, or with -2, -3 … when it was made from the title. */
-  async function freeSlugFor(projectId: number, wanted: string, explicit: boolean): Promise<string> {
-    const slug = await freeSlug(db, projectId, wanted, explicit);
-    if (!slug) throw slugTaken(wanted);
-    return slug;
-  }
-
   /** Publishes inside the caller's transaction: captures "then", renders the record, opens the photos to the audience. */
   async function publishIn(trx: Trx, project: Project, post: PostRecord, at: Date): Promise<PostUpdate> {
     const links = await milestoneLinksOf(trx, post.id);
-    const current = await milestonesFor(project, readerOfAudience(post.audience));
+    const current = await milestonesFor(project, readersOf(post.audience));
     const snapshots = new Map<number, MilestoneSnapshot & { name: string }>();
     for (const l of links) {
       const m = current.get(l.milestoneId);
@@ -281,64 +271,10 @@ export function createPostsService(deps: PostsDeps) {
     return { status: "published", html, plainText, publishedAt: post.publishedAt ?? at, scheduledFor: null, withdrawnAt: null, reviewComment: null };
   }
 
-  async function transition(id: number, action: WorkflowAction, actor: Actor, extra: { comment?: string; at?: ScheduleInput["at"] } = {}): Promise<WorkflowResult> {
-    const user = actor.user;
-    if (!user) throw new AppError("unauthenticated", "Sign in first.", 401);
-    const result = await db.transaction(async (trx) => {
-      const post = await lockedPost(trx, id);
-      const project = await projects.getById(post.projectId);
-      const to = checkStep(action, post, user);
-      const at = now();
-      if (to === "published" || to === "scheduled") {
-        const links = await milestoneLinksOf(trx, post.id);
-        const problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
-        if (problems.length) throw publishingBlocked(problems);
-      }
-      const when = action === "schedule" ? scheduleInstant(project, extra.at, at) : undefined;
-      const changes: PostUpdate = action === "publish" ? await publishIn(trx, project, post, at) : { status: to, ...stepFields(action, post.status, { at, when, comment: extra.comment }) };
-      if (action === "withdraw" && post.status === "published") await media.setUsages("post", post.id, mediaIdsOf(post), post.audience, false, trx);
-      await updatePost(trx, post.id, null, changes, at);
-      await publishing.record(trx, { ownerType: "post", ownerId: post.id, action, from: post.status, to, actorId: user.id, actorName: user.name, comment: stepComment(action, { when, comment: extra.comment }), at });
-      return { id: post.id, status: to, scheduledFor: iso(changes.scheduledFor ?? (to === "scheduled" ? post.scheduledFor : null)) };
-    });
-    changed();
-    return result;
-  }
-
-  async function writeRevision(trx: Trx, postId: number, actor: Actor, note: string | null, at: Date): Promise<number> {
-    const post = (await findPostById(trx, postId))!;
-    const links = await milestoneLinksOf(trx, postId);
-    const tags = (await tagsFor(trx, [postId])).get(postId) ?? [];
-    return insertRevision(trx, postId, {
-      title: post.title,
-      summary: post.summary,
-      slug: post.slug,
-      audience: post.audience,
-      status: post.status,
-      body: post.body,
-      plainText: post.plainText,
-      coverMediaId: post.coverMediaId,
-      milestoneIds: links.filter((l) => l.explicit).map((l) => l.milestoneId),
-      tags,
-      note,
-      authorId: actor.user?.id ?? null,
-      authorName: actor.user?.name ?? "Plumbline",
-      at,
-    });
-  }
-
   /** The shared path of PATCH and restore: the content rules, a new revision, and the checks for live posts. */
   async function saveChanges(id: number, input: Omit<PostPatchInput, "note"> & { note?: string | null }, actor: Actor): Promise<PostDetail> {
-    const user = actor.user!;
-    const approver = user.role === "lead" || user.role === "admin";
     const saved = await db.transaction(async (trx) => {
-      const post = await lockedPost(trx, id);
-      if (input.version !== undefined && input.version !== post.version) {
-        throw new AppError("conflict", "Someone else changed this update since you opened it. Reload to see their changes.", 409, undefined, {
-          current: await detailOf(await projects.getById(post.projectId), post, actor),
-        });
-      }
-      if (post.status === "published" && !approver) throw forbidden("A published update is changed by a lead or an admin.");
+      const post = await workflow.openForEdit(trx, id, input.version, actor, async (p) => detailOf(await projects.getById(p.projectId), p, actor));
       const project = await projects.getById(post.projectId);
       const oldLinks = await milestoneLinksOf(trx, post.id);
       const next = {
@@ -352,19 +288,15 @@ export function createPostsService(deps: PostsDeps) {
       const explicit = input.milestoneIds ?? oldLinks.filter((l) => l.explicit).map((l) => l.milestoneId);
       const links = linksOf(explicit, next.body);
       await checkReferences(project, next, input.milestoneIds ?? []);
-      if (next.slug !== post.slug && !(await moveSlug(trx, post, next.slug))) throw slugTaken(next.slug);
+      await workflow.moveSlug(trx, post, next.slug);
       await replaceMilestoneLinks(trx, post.id, links);
       if (input.tags) await replaceTags(trx, post.id, input.tags);
       await replacePostMedia(trx, post.id, next.coverMediaId, imageIdsOf(next.body));
 
       const at = now();
-      const changes: PostUpdate = { ...next };
       // An approval was given to the text as it stood; marketing's later edits need a new one.
-      const demoted = editNeedsApproval(post.status, user.role);
-      if (demoted) {
-        changes.status = "draft";
-        changes.scheduledFor = null;
-      }
+      const demoted = workflow.demotion(post, actor);
+      const changes: PostUpdate = { ...next, ...demoted };
       const status = changes.status ?? post.status;
       if (status === "published") {
         const problems = await problemsOf(project, next, links.map((l) => l.milestoneId));
@@ -375,19 +307,12 @@ export function createPostsService(deps: PostsDeps) {
         Object.assign(changes, await renderFor(project, next, await milestoneLinksOf(trx, post.id)));
         await media.setUsages("post", post.id, mediaIdsOf(next), next.audience, false, trx);
       }
-      try {
-        await updatePost(trx, post.id, null, changes, at);
-      } catch (err) {
-        if (isDuplicate(err)) throw slugTaken(next.slug);
-        throw err;
-      }
-      if (demoted) {
-        await publishing.record(trx, { ownerType: "post", ownerId: post.id, action: "edited", from: post.status, to: "draft", actorId: user.id, actorName: user.name, comment: EDITED_AFTER_APPROVAL, at });
-      }
-      await writeRevision(trx, post.id, actor, input.note ?? null, at);
+      await workflow.withUniqueSlug(next.slug, () => updatePost(trx, post.id, null, changes, at));
+      if (demoted) await workflow.recordDemotion(trx, post, actor, at);
+      await workflow.writeRevision(trx, post.id, actor, input.note ?? null, at);
       return post.id;
     });
-    changed();
+    workflow.changed();
     const post = (await findPostById(db, saved))!;
     return detailOf(await projects.getById(post.projectId), post, actor);
   }
@@ -414,15 +339,14 @@ export function createPostsService(deps: PostsDeps) {
       const viewer = viewerOf(actor);
       const post = await findVisiblePostBySlug(db, project.id, postSlug, viewer);
       if (post) return detailOf(project, post, actor);
-      const moved = await findRedirect(db, project.id, postSlug, viewer);
+      const moved = await workflow.findRedirect(project.id, postSlug, viewer);
       if (moved) return { redirectTo: moved };
       throw notFound("That update");
     },
 
     /** Staff: the full post with body, version, revisions and the publishing problems. */
     async getById(id: number, actor: Actor): Promise<PostDetail> {
-      const post = await findPostById(db, id);
-      if (!post) throw notFound("That update");
+      const post = await workflow.existing(id);
       return detailOf(await projects.getById(post.projectId), post, actor);
     },
 
@@ -432,90 +356,34 @@ export function createPostsService(deps: PostsDeps) {
       const coverMediaId = input.coverMediaId ?? null;
       const milestoneIds = input.milestoneIds ?? [];
       await checkReferences(project, { coverMediaId, body: input.body }, milestoneIds);
-      const postSlug = await freeSlugFor(project.id, input.slug ?? slugFromTitle(input.title), input.slug !== undefined);
       const { html, plainText } = await renderFor(project, { body: input.body, audience: input.audience, coverMediaId }, []);
-      const at = now();
-      const id = await db
-        .transaction(async (trx) => {
-          const id = await insertPost(trx, {
-            projectId: project.id,
-            slug: postSlug,
-            title: input.title,
-            summary: input.summary,
-            body: input.body,
-            html,
-            plainText,
-            audience: input.audience,
-            coverMediaId,
-            authorId: user.id,
-            authorName: user.name,
-            at,
-          });
-          await replaceTags(trx, id, input.tags ?? []);
-          await replacePostMedia(trx, id, coverMediaId, imageIdsOf(input.body));
-          await replaceMilestoneLinks(trx, id, linksOf(milestoneIds, input.body));
-          await media.setUsages("post", id, mediaIdsOf({ coverMediaId, body: input.body }), input.audience, false, trx);
-          await writeRevision(trx, id, actor, "Created", at);
-          return id;
-        })
-        .catch((err: unknown) => {
-          if (isDuplicate(err)) throw slugTaken(postSlug);
-          throw err;
+      return workflow.create(project.id, input.slug ?? slugFromTitle(input.title), input.slug !== undefined, actor, async (trx, postSlug, at) => {
+        const id = await insertPost(trx, {
+          projectId: project.id,
+          slug: postSlug,
+          title: input.title,
+          summary: input.summary,
+          body: input.body,
+          html,
+          plainText,
+          audience: input.audience,
+          coverMediaId,
+          authorId: user.id,
+          authorName: user.name,
+          at,
         });
-      changed();
-      return { id, slug: postSlug, status: "draft" };
+        await replaceTags(trx, id, input.tags ?? []);
+        await replacePostMedia(trx, id, coverMediaId, imageIdsOf(input.body));
+        await replaceMilestoneLinks(trx, id, linksOf(milestoneIds, input.body));
+        await media.setUsages("post", id, mediaIdsOf({ coverMediaId, body: input.body }), input.audience, false, trx);
+        return id;
+      });
     },
 
     patch: (id: number, input: PostPatchInput, actor: Actor) => saveChanges(id, input, actor),
 
-    async revisions(id: number): Promise<PostRevisionSummary[]> {
-      if (!(await findPostById(db, id))) throw notFound("That update");
-      return (await listRevisions(db, id)).map(revisionSummary);
-    },
-
-    /** A word diff of the rendered text of revision `against` (default: the one before) → revision `n`. */
-    diff: (id: number, n: number, against?: number): Promise<RevisionDiff> =>
-      diffRevisions((k: number) => findRevision(db, id, k), (r) => `${r.title}\n${r.summary}\n\n${r.plainText}`, n, against),
-
-    /** Brings back a revision's content (title, summary, text, cover, milestones, tags) as a new revision; the address and audience stay. */
-    async restore(id: number, n: number, actor: Actor): Promise<PostDetail> {
-      const rev = await findRevision(db, id, n);
-      if (!rev) throw notFound("That revision");
-      return saveChanges(
-        id,
-        { title: rev.title, summary: rev.summary, body: rev.body, coverMediaId: rev.coverMediaId, milestoneIds: rev.milestoneIds, tags: rev.tags, note: `Restored revision ${n}` },
-        actor,
-      );
-    },
-
-    async history(id: number) {
-      if (!(await findPostById(db, id))) throw notFound("That update");
-      return publishing.history("post", id);
-    },
-
-    ...workflowSteps(transition),
-
-    /**
-     * Publishes every scheduled post that is due at `at`. Each is claimed with SKIP LOCKED, so
-     * several processes share the work and none publishes a post twice. The checks run again:
-     * a post that now fails them goes back to approved with the reason recorded.
-     */
-    async publishDue(at: Date = now()): Promise<{ published: number[]; heldBack: number[] }> {
-      const result = await publishing.publishDue("post", at, {
-        claim: (trx, limit) => claimDuePosts(trx, at, limit),
-        async publishOrHoldBack(trx, id) {
-          const post = (await findPostById(trx, id))!;
-          const project = await projects.getById(post.projectId);
-          const links = await milestoneLinksOf(trx, id);
-          const problems = await problemsOf(project, post, links.map((l) => l.milestoneId));
-          const changes = problems.length ? heldBackFields(problems) : await publishIn(trx, project, post, publicationInstant(post.scheduledFor, at));
-          await updatePost(trx, id, null, changes, at);
-          return problems;
-        },
-      });
-      if (result.published.length || result.heldBack.length) changed();
-      return result;
-    },
+    /** The workflow steps, revisions (diff, restore), history and the scheduler's pass, as every kind has them. */
+    ...workflow.steps,
 
     /** Published public posts of a project for its feed, newest first, with the newest change. */
     async feedOf(slug: string, limit = 50) {
@@ -547,7 +415,7 @@ export function createPostsService(deps: PostsDeps) {
       if (!project) return null;
       const post = await findVisiblePostBySlug(db, project.id, postSlug, "public");
       if (post) return { post: (await summaries([post]))[0]!, project };
-      const moved = await findRedirect(db, project.id, postSlug, "public");
+      const moved = await workflow.findRedirect(project.id, postSlug, "public");
       return moved ? { redirectTo: moved } : null;
     },
   };

@@ -1,5 +1,16 @@
 import Papa from "papaparse";
-import { MILESTONE_CSV_COLUMNS, MilestoneCreateInputSchema, type MilestoneCreateInput } from "#shared/schemas/programme.ts";
+import {
+  MILESTONE_CSV_COLUMNS,
+  MILESTONE_FIELD_NAMES,
+  MILESTONE_FIELDS,
+  MilestoneCreateInputSchema,
+  milestoneColumn,
+  type MilestoneCreateInput,
+  type MilestoneCsvColumn,
+  type MilestoneFieldKind,
+  type MilestoneFieldName,
+  type MilestoneFieldValues,
+} from "#shared/schemas/programme.ts";
 import { foldLines } from "#shared/schemas/text.ts";
 
 /**
@@ -9,45 +20,22 @@ import { foldLines } from "#shared/schemas/text.ts";
  * against today) are the service's.
  */
 
-export type MilestoneCsvColumn = (typeof MILESTONE_CSV_COLUMNS)[number];
+export type { MilestoneCsvColumn };
 type Column = MilestoneCsvColumn;
 
 const REQUIRED: readonly Column[] = ["name", "phase", "system", "weight", "baseline_finish", "audience"];
 
-/** The schema field each CSV column feeds, for naming a column in a reason. */
-const FIELD_TO_COLUMN: Record<string, Column> = {
-  name: "name",
-  phase: "phase",
-  area: "area",
-  system: "system",
-  description: "description",
-  weight: "weight",
-  percentComplete: "percent_complete",
-  plannedStart: "planned_start",
-  baselineFinish: "baseline_finish",
-  forecastFinish: "forecast_finish",
-  actualFinish: "actual_finish",
-  audience: "audience",
-  budget: "budget",
-};
+/** A milestone as export writes it: its id and every field. */
+export type CsvMilestoneExport = { id: number } & MilestoneFieldValues;
 
-export interface CsvMilestoneExport {
-  id: number;
-  name: string;
-  phase: string;
-  area: string;
-  system: string;
-  weight: number;
-  percentComplete: number;
-  plannedStart: string | null;
-  baselineFinish: string;
-  forecastFinish: string | null;
-  actualFinish: string | null;
-  audience: string;
-  budget: number | null;
-  dependsOn: number[];
-  description: string;
+/** A field's value as a cell: nothing for none, ids joined by `;`. */
+function toCell(value: unknown): string {
+  if (value === null || value === undefined) return "";
+  return Array.isArray(value) ? value.join(";") : String(value);
 }
+
+/** The field each column (but `id`) carries. */
+const FIELD_OF_COLUMN = new Map<string, MilestoneFieldName>(MILESTONE_FIELD_NAMES.map((f) => [milestoneColumn(f), f]));
 
 /**
  * The milestones as CSV in MILESTONE_CSV_COLUMNS order, CRLF line ends (RFC 4180).
@@ -55,23 +43,7 @@ export interface CsvMilestoneExport {
  * with a leading apostrophe, which import removes again.
  */
 export function milestonesToCsv(milestones: readonly CsvMilestoneExport[]): string {
-  const data = milestones.map((m) => [
-    String(m.id),
-    m.name,
-    m.phase,
-    m.area,
-    m.system,
-    String(m.weight),
-    String(m.percentComplete),
-    m.plannedStart ?? "",
-    m.baselineFinish,
-    m.forecastFinish ?? "",
-    m.actualFinish ?? "",
-    m.audience,
-    m.budget === null ? "" : String(m.budget),
-    m.dependsOn.join(";"),
-    m.description,
-  ]);
+  const data = milestones.map((m) => MILESTONE_CSV_COLUMNS.map((c) => toCell(c === "id" ? m.id : m[FIELD_OF_COLUMN.get(c)!])));
   return `${Papa.unparse({ fields: [...MILESTONE_CSV_COLUMNS], data }, { escapeFormulae: true, newline: "\r\n" })}\r\n`;
 }
 
@@ -108,17 +80,35 @@ function countNewlines(text: string, from: number, end: number): number {
 }
 
 /** A number cell: empty → undefined (so the schema says what is missing or applies its default). */
-function numberCell(cell: string | undefined): number | undefined {
-  if (cell === undefined || cell.trim() === "") return undefined;
-  return Number(cell.trim());
+function numberCell(cell: string): number | undefined {
+  return cell.trim() === "" ? undefined : Number(cell.trim());
 }
 
-const mapDefined = (cell: string | undefined, f: (s: string) => string) => (cell === undefined ? undefined : f(cell));
-
-function nullableCell(cell: string | undefined): string | null | undefined {
+/**
+ * A cell as its field's kind reads it, before the schema checks it; undefined when the file has
+ * no such column (an update then keeps the stored value) or, for a code or number, when the cell
+ * is empty (the schema then says what is missing or applies its default).
+ */
+function fromCell(kind: MilestoneFieldKind, cell: string | undefined): unknown {
   if (cell === undefined) return undefined;
-  const v = cell.trim();
-  return v === "" ? null : v;
+  switch (kind) {
+    case "line":
+      // One-line columns: a line break a spreadsheet kept in the cell reads as a space.
+      return foldLines(cell);
+    case "text":
+      return cell;
+    case "code":
+      return cell.trim() === "" ? undefined : cell.trim();
+    case "number":
+      return numberCell(cell);
+    case "optional-number":
+      return cell.trim() === "" ? null : numberCell(cell);
+    case "optional-date":
+      return cell.trim() === "" ? null : cell.trim();
+    case "ids":
+      // Ids or names, resolved against the stored programme by the import.
+      return undefined;
+  }
 }
 
 /**
@@ -187,27 +177,13 @@ export function parseMilestoneCsv(text: string): ParsedCsv {
       if (/^\d+$/.test(idCell) && Number(idCell) > 0 && Number.isSafeInteger(Number(idCell))) id = Number(idCell);
       else reasons.push("id must be a whole number (or empty for a new milestone)");
     }
-    const candidate = {
-      // One-line columns: a line break a spreadsheet kept in the cell reads as a space.
-      name: foldLines(cell("name") ?? ""),
-      phase: foldLines(cell("phase") ?? ""),
-      area: mapDefined(cell("area"), foldLines),
-      system: nullableCell(cell("system")) ?? undefined,
-      description: cell("description"),
-      weight: numberCell(cell("weight")),
-      percentComplete: numberCell(cell("percent_complete")),
-      plannedStart: nullableCell(cell("planned_start")),
-      baselineFinish: nullableCell(cell("baseline_finish")) ?? undefined,
-      forecastFinish: nullableCell(cell("forecast_finish")),
-      actualFinish: nullableCell(cell("actual_finish")),
-      audience: nullableCell(cell("audience")) ?? undefined,
-      budget: nullableCell(cell("budget")) === null ? null : numberCell(cell("budget")),
-    };
+    const candidate = Object.fromEntries(MILESTONE_FIELD_NAMES.map((f) => [f, fromCell(MILESTONE_FIELDS[f].kind, cell(milestoneColumn(f)))]));
     const parsed = MilestoneCreateInputSchema.safeParse(candidate);
     if (!parsed.success) {
       const seen = new Set<string>();
       for (const issue of parsed.error.issues) {
-        const column = FIELD_TO_COLUMN[String(issue.path[0])] ?? String(issue.path[0] ?? "row");
+        const field = String(issue.path[0] ?? "row");
+        const column = field in MILESTONE_FIELDS ? milestoneColumn(field as MilestoneFieldName) : field;
         if (seen.has(column)) continue;
         seen.add(column);
         reasons.push(`${column} ${issue.message}`);

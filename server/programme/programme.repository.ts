@@ -1,42 +1,32 @@
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
-import type { BaselineVersion, MilestoneEventFieldName, MilestoneEventRow, System } from "#shared/schemas/programme.ts";
+import { MILESTONE_FIELD_NAMES, MILESTONE_FIELDS, milestoneColumn, type MilestoneFieldKind, type MilestoneFieldName, type MilestoneFieldValues, type System } from "#shared/schemas/programme.ts";
 import { audiencesFor, type Viewer } from "#shared/domain/audience.ts";
 
-type Q = Knex | Knex.Transaction;
+export type Q = Knex | Knex.Transaction;
 
 export type { Viewer };
 
 /**
  * The audience rule of the programme, in one place: visitors see public milestones,
  * investors public and investor ones, staff all (`audiencesFor`, the same audiences as
- * published content, without its status). Every read path below applies it, in SQL through
+ * published content, without its status). Every read path of the programme's repositories applies it, in SQL through
  * `visibleTo` or, for baseline snapshots kept as JSON, through `visibleSnapshotEntries`.
  */
-function visibleTo<T extends Knex.QueryBuilder>(query: T, column: string, viewer: Viewer): T {
+export function visibleTo<T extends Knex.QueryBuilder>(query: T, column: string, viewer: Viewer): T {
   return query.whereIn(column, audiencesFor(viewer) as Audience[]) as T;
 }
 
 // Milestones
 
-export interface MilestoneRecord {
+/** The stored fields of a milestone a write may set (camelCase; the phase by id, dependencies in their own table). */
+export type MilestoneFields = Omit<MilestoneFieldValues, "phase" | "dependsOn"> & { phaseId: number };
+
+export interface MilestoneRecord extends MilestoneFields {
   id: number;
   projectId: number;
-  phaseId: number;
   phase: string;
   phaseOrder: number;
-  name: string;
-  area: string;
-  system: System;
-  description: string;
-  weight: number;
-  percentComplete: number;
-  plannedStart: string | null;
-  baselineFinish: string;
-  forecastFinish: string | null;
-  actualFinish: string | null;
-  audience: Audience;
-  budget: number | null;
   /** Predecessor ids the same viewer may see, ascending. */
   dependsOn: number[];
   version: number;
@@ -52,38 +42,14 @@ export interface MilestoneRemovalRecord {
   reason: string;
 }
 
-/** The stored fields of a milestone a write may set (camelCase; the phase by id). */
-export interface MilestoneFields {
-  phaseId: number;
-  name: string;
-  area: string;
-  system: System;
-  description: string;
-  weight: number;
-  percentComplete: number;
-  plannedStart: string | null;
-  baselineFinish: string;
-  forecastFinish: string | null;
-  actualFinish: string | null;
-  audience: Audience;
-  budget: number | null;
-}
+/** The written fields stored in a column of `milestones` of the same name (the phase is stored by id; dependencies have their own table). */
+const STORED_FIELDS = MILESTONE_FIELD_NAMES.filter((f): f is Exclude<MilestoneFieldName, "phase" | "dependsOn"> => f !== "phase" && f !== "dependsOn");
 
-const COLUMN: Record<keyof MilestoneFields, string> = {
-  phaseId: "phase_id",
-  name: "name",
-  area: "area",
-  system: "system",
-  description: "description",
-  weight: "weight",
-  percentComplete: "percent_complete",
-  plannedStart: "planned_start",
-  baselineFinish: "baseline_finish",
-  forecastFinish: "forecast_finish",
-  actualFinish: "actual_finish",
-  audience: "audience",
-  budget: "budget",
-};
+/** Field → column, derived from the one field list in the programme's schema. */
+const COLUMN = Object.fromEntries([["phaseId", "phase_id"], ...STORED_FIELDS.map((f) => [f, milestoneColumn(f)])]) as Record<keyof MilestoneFields, string>;
+
+/** The keys of `MilestoneFields`, in the order a write lists them. */
+export const MILESTONE_FIELD_KEYS = Object.keys(COLUMN) as Array<keyof MilestoneFields>;
 
 function toRow(fields: Partial<MilestoneFields>): Record<string, unknown> {
   const row: Record<string, unknown> = {};
@@ -95,25 +61,34 @@ function toRow(fields: Partial<MilestoneFields>): Record<string, unknown> {
 
 const dateOrNull = (v: unknown): string | null => (v === null || v === undefined ? null : String(v));
 
+/** A stored value as its field's kind reads it. */
+function fromColumn(kind: MilestoneFieldKind, v: unknown): unknown {
+  switch (kind) {
+    case "line":
+    case "text":
+      return String(v ?? "");
+    case "code":
+      return String(v);
+    case "number":
+      return Number(v);
+    case "optional-number":
+      return v === null || v === undefined ? null : Number(v);
+    case "optional-date":
+      return dateOrNull(v);
+    case "ids":
+      return v;
+  }
+}
+
 function toMilestone(r: Record<string, unknown>, dependsOn: number[]): MilestoneRecord {
+  const stored = Object.fromEntries(STORED_FIELDS.map((f) => [f, fromColumn(MILESTONE_FIELDS[f].kind, r[milestoneColumn(f)])])) as Omit<MilestoneFields, "phaseId">;
   return {
     id: Number(r.id),
     projectId: Number(r.project_id),
     phaseId: Number(r.phase_id),
     phase: String(r.phase_name),
     phaseOrder: Number(r.phase_order),
-    name: String(r.name),
-    area: String(r.area ?? ""),
-    system: r.system as System,
-    description: String(r.description ?? ""),
-    weight: Number(r.weight),
-    percentComplete: Number(r.percent_complete),
-    plannedStart: dateOrNull(r.planned_start),
-    baselineFinish: String(r.baseline_finish),
-    forecastFinish: dateOrNull(r.forecast_finish),
-    actualFinish: dateOrNull(r.actual_finish),
-    audience: r.audience as Audience,
-    budget: r.budget === null || r.budget === undefined ? null : Number(r.budget),
+    ...stored,
     dependsOn,
     version: Number(r.version),
     createdAt: r.created_at as Date,
@@ -181,6 +156,28 @@ export async function listAreas(q: Q, projectId: number, viewer: Viewer): Promis
   return rows.map((r: { area: string }) => r.area);
 }
 
+/**
+ * Every area the project's milestones name, whatever their audience and removed or not, distinct
+ * (no empty area): the names a member of staff may tag a photo with.
+ */
+export async function listAllAreas(q: Q, projectId: number): Promise<string[]> {
+  const rows = (await q("milestones").where({ project_id: projectId }).whereNot("area", "").distinct("area as v")) as Array<{ v: string }>;
+  return rows.map((r) => r.v);
+}
+
+/** Every milestone of the project by id and name, whatever its audience and removed or not, by baseline finish then id. */
+export async function listMilestoneNames(q: Q, projectId: number): Promise<Array<{ id: number; name: string }>> {
+  const rows = (await q("milestones").where({ project_id: projectId }).orderBy([{ column: "baseline_finish" }, { column: "id" }]).select("id", "name")) as Array<{ id: number; name: string }>;
+  return rows.map((r) => ({ id: Number(r.id), name: String(r.name) }));
+}
+
+/** Which of these ids are milestones of the project (removed or not). */
+export async function existingMilestoneIds(q: Q, projectId: number, ids: readonly number[]): Promise<Set<number>> {
+  if (ids.length === 0) return new Set();
+  const rows = (await q("milestones").where({ project_id: projectId }).whereIn("id", [...ids]).select("id")) as Array<{ id: number }>;
+  return new Set(rows.map((r) => Number(r.id)));
+}
+
 /** One milestone (removed or not), when the viewer may see it; `forUpdate` locks the row for the rest of the transaction. */
 export async function findMilestone(q: Q, id: number, viewer: Viewer, opts: { forUpdate?: boolean } = {}): Promise<MilestoneRecord | null> {
   const query = visibleTo(milestoneQuery(q).where("m.id", id), "m.audience", viewer).first();
@@ -229,18 +226,6 @@ export async function setRemoval(q: Q, id: number, version: number, removal: { a
     });
 }
 
-/** Numbers of the project's baseline versions whose snapshot holds the milestone. */
-export async function baselinesHolding(q: Q, projectId: number, milestoneId: number): Promise<number[]> {
-  const rows = (await q("baselines").where({ project_id: projectId }).orderBy("number").select("number", "snapshot")) as Array<{ number: number; snapshot: string }>;
-  return rows.filter((r) => (JSON.parse(String(r.snapshot)) as BaselineSnapshotEntry[]).some((e) => e.id === milestoneId)).map((r) => Number(r.number));
-}
-
-/** How many events were recorded after the milestone was entered (creation writes its own at `created_at`). */
-export async function countEventsSince(q: Q, milestoneId: number, since: Date): Promise<number> {
-  const r = await q("milestone_events").where({ milestone_id: milestoneId }).where("at", ">", since).count({ n: "*" }).first();
-  return Number(r?.n ?? 0);
-}
-
 /** Serialises programme writes of one project (dependency cycles, phase creation, baseline numbers). */
 export async function lockProject(q: Q, projectId: number): Promise<void> {
   await q("projects").where({ id: projectId }).forUpdate().first("id");
@@ -285,172 +270,3 @@ export async function listDependants(q: Q, milestoneId: number): Promise<Array<{
   return (rows as Array<{ id: number; name: string; removed_at: Date | null }>).map((r) => ({ id: Number(r.id), name: String(r.name), removed: r.removed_at !== null }));
 }
 
-// Events
-
-export interface NewMilestoneEvent {
-  milestoneId: number;
-  projectId: number;
-  field: MilestoneEventFieldName;
-  from: string | null;
-  to: string | null;
-  at: Date;
-  byUserId: number | null;
-  note: string | null;
-  baselineVersion: number | null;
-}
-
-export async function insertEvents(q: Q, events: readonly NewMilestoneEvent[]): Promise<void> {
-  if (events.length === 0) return;
-  await q("milestone_events").insert(
-    events.map((e) => ({
-      milestone_id: e.milestoneId,
-      project_id: e.projectId,
-      field: e.field,
-      from_value: e.from,
-      to_value: e.to,
-      at: e.at,
-      by_user_id: e.byUserId,
-      note: e.note,
-      baseline_version: e.baselineVersion,
-    })),
-  );
-}
-
-function eventQuery(q: Q) {
-  return q("milestone_events as e")
-    .join("milestones as m", "m.id", "e.milestone_id")
-    .leftJoin("users as u", "u.id", "e.by_user_id")
-    .select("e.*", "m.name as milestone_name", "u.name as by_name")
-    .orderBy([
-      { column: "e.at", order: "desc" },
-      { column: "e.id", order: "desc" },
-    ]);
-}
-
-function toEvent(r: Record<string, unknown>): MilestoneEventRow {
-  return {
-    id: Number(r.id),
-    milestoneId: Number(r.milestone_id),
-    milestoneName: String(r.milestone_name),
-    field: r.field as MilestoneEventFieldName,
-    from: (r.from_value as string | null) ?? null,
-    to: (r.to_value as string | null) ?? null,
-    at: (r.at as Date).toISOString(),
-    by: (r.by_name as string | null) ?? null,
-    note: (r.note as string | null) ?? null,
-    baselineVersion: r.baseline_version === null || r.baseline_version === undefined ? null : Number(r.baseline_version),
-  };
-}
-
-/** A milestone's history, newest first (the caller has already been shown the milestone). */
-export async function listMilestoneEvents(q: Q, milestoneId: number): Promise<MilestoneEventRow[]> {
-  return ((await eventQuery(q).where("e.milestone_id", milestoneId)) as Array<Record<string, unknown>>).map(toEvent);
-}
-
-/**
- * A project's events of milestones the viewer may see, newest first, with `at` in
- * [from, before) when given, and only of `fields` when given.
- */
-export async function listProjectEvents(
-  q: Q,
-  projectId: number,
-  viewer: Viewer,
-  opts: { from?: Date; before?: Date; fields?: readonly MilestoneEventFieldName[] } = {},
-): Promise<MilestoneEventRow[]> {
-  const query = visibleTo(eventQuery(q).where("e.project_id", projectId), "m.audience", viewer);
-  if (opts.from) query.where("e.at", ">=", opts.from);
-  if (opts.before) query.where("e.at", "<", opts.before);
-  if (opts.fields) query.whereIn("e.field", opts.fields as MilestoneEventFieldName[]);
-  return ((await query) as Array<Record<string, unknown>>).map(toEvent);
-}
-
-// Baselines
-
-/** One milestone's plan as a baseline version recorded it. */
-export interface BaselineSnapshotEntry {
-  id: number;
-  name: string;
-  audience: Audience;
-  plannedStart: string | null;
-  baselineFinish: string;
-  weight: number;
-  budget: number | null;
-}
-
-/** The snapshot entries the viewer may see (the audience the milestone had when the version was taken). */
-export function visibleSnapshotEntries(entries: readonly BaselineSnapshotEntry[], viewer: Viewer): BaselineSnapshotEntry[] {
-  const allowed = audiencesFor(viewer);
-  return entries.filter((e) => allowed.includes(e.audience));
-}
-
-export async function maxBaselineNumber(q: Q, projectId: number): Promise<number> {
-  const r = await q("baselines").where({ project_id: projectId }).max({ n: "number" }).first();
-  return Number(r?.n ?? 0);
-}
-
-export async function insertBaseline(
-  q: Q,
-  b: { projectId: number; number: number; reason: string; byUserId: number | null; at: Date; snapshot: BaselineSnapshotEntry[] },
-): Promise<void> {
-  await q("baselines").insert({
-    project_id: b.projectId,
-    number: b.number,
-    reason: b.reason,
-    by_user_id: b.byUserId,
-    at: b.at,
-    snapshot: JSON.stringify(b.snapshot),
-  });
-}
-
-function baselineQuery(q: Q, projectId: number) {
-  return q("baselines as b")
-    .leftJoin("users as u", "u.id", "b.by_user_id")
-    .where("b.project_id", projectId)
-    .select("b.*", "u.name as by_name");
-}
-
-function toBaseline(r: Record<string, unknown>, viewer: Viewer): BaselineVersion & { milestones: BaselineSnapshotEntry[] } {
-  const entries = visibleSnapshotEntries(JSON.parse(String(r.snapshot)) as BaselineSnapshotEntry[], viewer);
-  return {
-    number: Number(r.number),
-    reason: String(r.reason),
-    by: (r.by_name as string | null) ?? null,
-    at: (r.at as Date).toISOString(),
-    milestoneCount: entries.length,
-    milestones: entries,
-  };
-}
-
-/** The project's baseline versions, oldest first, each counting the milestones the viewer may see. */
-export async function listBaselines(q: Q, projectId: number, viewer: Viewer): Promise<BaselineVersion[]> {
-  const rows = (await baselineQuery(q, projectId).orderBy("b.number")) as Array<Record<string, unknown>>;
-  return rows.map((r) => {
-    const { milestones: _omitted, ...version } = toBaseline(r, viewer);
-    return version;
-  });
-}
-
-export async function findBaseline(q: Q, projectId: number, number: number, viewer: Viewer) {
-  const r = (await baselineQuery(q, projectId).where("b.number", number).first()) as Record<string, unknown> | undefined;
-  return r ? toBaseline(r, viewer) : null;
-}
-
-// Cost actuals
-
-export interface CostActualRecord {
-  periodEnd: string;
-  amount: number;
-}
-
-export async function listCostActuals(q: Q, projectId: number): Promise<CostActualRecord[]> {
-  const rows = await q("cost_actuals").where({ project_id: projectId }).orderBy("period_end").select("period_end", "amount");
-  return (rows as Array<{ period_end: string; amount: number | string }>).map((r) => ({ periodEnd: String(r.period_end), amount: Number(r.amount) }));
-}
-
-/** One amount per period end: posting a period again replaces its amount. */
-export async function upsertCostActual(q: Q, projectId: number, c: { periodEnd: string; amount: number; byUserId: number | null; at: Date }): Promise<void> {
-  await q("cost_actuals")
-    .insert({ project_id: projectId, period_end: c.periodEnd, amount: c.amount, by_user_id: c.byUserId, updated_at: c.at })
-    .onConflict(["project_id", "period_end"])
-    .merge(["amount", "by_user_id", "updated_at"]);
-}

@@ -36,3 +36,18 @@ export async function findProjectById(q: Q, id: number): Promise<Project | null>
   const r = await q("projects").where({ id }).first();
   return r ? toProject(r) : null;
 }
+
+/** What an e-mail about the project names: the project, its operator and the operator's postal address. */
+export interface ProjectSender {
+  id: number;
+  slug: string;
+  name: string;
+  operatorName: string;
+  postalAddress: string | null;
+  timeZone: string;
+}
+
+export async function findProjectSender(q: Q, id: number): Promise<ProjectSender | null> {
+  const r = await q("projects").where({ id }).first("id", "slug", "name", "operator_name", "postal_address", "time_zone");
+  return r ? { id: Number(r.id), slug: String(r.slug), name: String(r.name), operatorName: String(r.operator_name), postalAddress: r.postal_address ?? null, timeZone: String(r.time_zone) } : null;
+}

@@ -2,7 +2,7 @@ import { DateTime } from "luxon";
 import type { Project } from "#shared/schemas/projects.ts";
 import { notFound } from "../core/app-error.ts";
 import type { Db } from "../db/knex.ts";
-import { findProjectById, findProjectBySlug, listProjects } from "./projects.repository.ts";
+import { findProjectById, findProjectBySlug, findProjectSender, listProjects, type ProjectSender } from "./projects.repository.ts";
 
 /** The calendar date (`YYYY-MM-DD`) of an instant in an IANA time zone. */
 export function dateInZone(instant: Date, timeZone: string): string {
@@ -36,6 +36,15 @@ export function createProjectsService(db: Db, opts: { now?: () => Date } = {}) {
     },
     async getById(id: number): Promise<Project> {
       const p = await findProjectById(db, id);
+      if (!p) throw notFound("That project");
+      return p;
+    },
+    /**
+     * The project as its e-mails name it, with the operator's postal address for the footer (kept
+     * out of the public project record, which the site serves to anyone).
+     */
+    async sender(id: number): Promise<ProjectSender> {
+      const p = await findProjectSender(db, id);
       if (!p) throw notFound("That project");
       return p;
     },

@@ -1,5 +1,6 @@
 import type { Knex } from "knex";
 import { DateTime } from "luxon";
+import type { Viewer } from "#shared/domain/audience.ts";
 import { milestoneStatus } from "#shared/domain/programme-health.ts";
 import type { MediaItem } from "#shared/schemas/media.ts";
 import type { PostTag } from "#shared/schemas/posts.ts";
@@ -200,16 +201,16 @@ const paragraph = (s: string): RichTextNode => ({ type: "paragraph", content: [{
  * dates and progress undone from the events history, and their status worked out for that date.
  */
 function programmeAsAt(
-  current: (slug: string, actor: Actor) => Promise<Milestone[]>,
+  current: (slug: string, reader: Viewer) => Promise<Milestone[]>,
   eventsOf: (id: number) => Promise<MilestoneEventRow[]>,
   settings: Parameters<typeof milestoneStatus>[2],
   date: string,
   endOfDay: Date,
 ): ProgrammeForPosts {
   return {
-    async list(slug, _query, actor) {
+    async list(slug, _query, reader) {
       const out: Milestone[] = [];
-      for (const m of await current(slug, actor)) {
+      for (const m of await current(slug, reader)) {
         const then = { ...m };
         for (const e of await eventsOf(m.id)) {
           if (new Date(e.at) <= endOfDay) continue;
@@ -239,7 +240,7 @@ export async function seedPosts(db: Knex, projectSlug: string, opts: { mediaDir?
 
   const mediaDir = opts.mediaDir ?? seedMediaDir(db);
   const limits = { maxFileBytes: 40 * 1024 * 1024, maxFiles: 20, maxPixels: 100_000_000 };
-  const media = createMediaService({ db, storage: createLocalDiskStorage(mediaDir), uploads: createUploadArea(mediaDir), projects, limits });
+  const media = createMediaService({ db, storage: createLocalDiskStorage(mediaDir), uploads: createUploadArea(mediaDir), projects, programme: createProgrammeService({ db, projects }), limits });
   const photos = new Map<string, MediaItem>(
     (await media.list({ project: projectSlug, page: 1, pageSize: 100 })).items.filter((i) => i.status === "ready").map((i) => [i.name, i]),
   );

@@ -1,17 +1,17 @@
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
-import type { PostStatus } from "#shared/schemas/posts.ts";
+import type { PostStatus } from "#shared/schemas/publishing.ts";
 import type { StoryItemInput } from "#shared/schemas/stories.ts";
 import type { Viewer } from "#shared/domain/audience.ts";
-import { contentQueries, visibleContent } from "../core/content-tables.ts";
+import { visibleContent } from "../publishing/publishing.audience.ts";
 
 type Q = Knex | Knex.Transaction;
 
 /**
- * The queries every kind of published content shares (server/core/content-tables.ts), over the
- * stories tables: old addresses and redirects, revision numbers, the scheduler's claim.
+ * The content table of photo stories, for the publishing workflow's queries of its address,
+ * state and schedule (server/publishing keeps the revisions, old addresses and history).
  */
-const shared = contentQueries({ content: "stories", oldSlugs: "story_slugs", revisions: "story_revisions", key: "story_id" });
+export const STORIES_TABLE = "stories";
 
 /**
  * The audience rule of photo stories (the rule of all published content, `visibleContent`):
@@ -127,13 +127,6 @@ export async function findVisibleStoryBySlug(q: Q, projectId: number, slug: stri
   return r ? toRecord(r) : null;
 }
 
-/** The current address of a story that once lived at an old one, when the viewer may read it. */
-export const findRedirect = shared.findRedirect;
-/** Makes way for a new address, keeping the current one for redirects; false when another story holds it. */
-export const moveSlug = shared.moveSlug;
-/** A free address for a new story: the wanted one, or with -2, -3 … when it was made from the title; null when none. */
-export const freeSlug = shared.freeSlug;
-
 export async function listStories(q: Q, projectId: number, viewer: Viewer): Promise<StoryRecord[]> {
   const rows = await visibleTo(q("stories as s").where("s.project_id", projectId), viewer)
     .orderByRaw("COALESCE(s.published_at, s.scheduled_for, s.updated_at) DESC")
@@ -181,73 +174,18 @@ export async function itemsOf(q: Q, storyIds: readonly number[]): Promise<Map<nu
   return out;
 }
 
-// Revisions
+// Revisions (stored by server/publishing; these are the columns of a story's own content)
 
-export interface StoryRevisionRecord {
-  number: number;
-  title: string;
+/** What a revision keeps of a story's own content. */
+export interface StoryRevisionContent {
   intro: string;
-  slug: string;
-  audience: Audience;
-  status: PostStatus;
   items: StoredItem[];
-  note: string | null;
-  authorName: string;
-  createdAt: Date;
 }
 
-export async function insertRevision(
-  q: Q,
-  storyId: number,
-  rev: Omit<StoryRevisionRecord, "number" | "createdAt"> & { authorId: number | null; at: Date },
-): Promise<number> {
-  const number = await shared.nextRevisionNumber(q, storyId);
-  await q("story_revisions").insert({
-    story_id: storyId,
-    number,
-    title: rev.title,
-    intro: rev.intro,
-    slug: rev.slug,
-    audience: rev.audience,
-    status: rev.status,
-    items: JSON.stringify(rev.items),
-    note: rev.note,
-    author_id: rev.authorId,
-    author_name: rev.authorName,
-    created_at: rev.at,
-  });
-  return number;
+export function storyRevisionColumns(c: StoryRevisionContent): Record<string, unknown> {
+  return { intro: c.intro, items: JSON.stringify(c.items) };
 }
 
-function toRevision(r: Record<string, unknown>): StoryRevisionRecord {
-  return {
-    number: Number(r.number),
-    title: String(r.title),
-    intro: String(r.intro ?? ""),
-    slug: String(r.slug),
-    audience: r.audience as Audience,
-    status: r.status as PostStatus,
-    items: r.items === undefined ? [] : (JSON.parse(String(r.items)) as StoredItem[]),
-    note: r.note === null || r.note === undefined ? null : String(r.note),
-    authorName: String(r.author_name),
-    createdAt: new Date(r.created_at as string),
-  };
+export function storyRevisionContent(r: Readonly<Record<string, unknown>>): StoryRevisionContent {
+  return { intro: String(r.intro ?? ""), items: r.items === undefined ? [] : (JSON.parse(String(r.items)) as StoredItem[]) };
 }
-
-export async function listRevisions(q: Q, storyId: number): Promise<StoryRevisionRecord[]> {
-  const rows = await q("story_revisions")
-    .where({ story_id: storyId })
-    .orderBy("number", "desc")
-    .select("number", "title", "intro", "slug", "audience", "status", "note", "author_name", "created_at");
-  return rows.map(toRevision);
-}
-
-export async function findRevision(q: Q, storyId: number, number: number): Promise<StoryRevisionRecord | null> {
-  const r = await q("story_revisions").where({ story_id: storyId, number }).first();
-  return r ? toRevision(r) : null;
-}
-
-// The scheduler
-
-/** Claims due scheduled stories for this transaction, skipping those another process holds (SKIP LOCKED). */
-export const claimDueStories = shared.claimDue;

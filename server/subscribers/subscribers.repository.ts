@@ -248,17 +248,14 @@ export async function listProjectEmails(q: Q, projectId: number): Promise<Set<st
 }
 
 /**
- * Confirmed, not suppressed subscribers of a project at one frequency (investor accounts
- * only while active): who a digest run may send to. Ordered by id so batches are stable.
+ * Confirmed, not suppressed subscribers of a project at one frequency, ordered by id so batches
+ * are stable. (Whether an investor's account is still active is the users module's to say.)
  */
 export async function listDigestRecipients(q: Q, projectId: number, frequency: Frequency): Promise<SubscriberRecord[]> {
   const rows = await base(q)
     .leftJoin("suppressions as x", "x.email_hash", "s.email_hash")
-    .leftJoin("users as u", "u.id", "s.user_id")
     .where({ "s.project_id": projectId, "s.frequency": frequency, "s.status": "confirmed" })
     .whereNull("x.id")
-    // A disabled investor account receives nothing, investor content above all.
-    .andWhere((w) => w.whereNull("s.user_id").orWhereNull("u.disabled_at"))
     .orderBy("s.id");
   return rows.map(toSubscriber);
 }
@@ -375,4 +372,31 @@ export async function listMailJobsOf(q: Q, subscriberIds: number[]) {
 export function isWriteConflict(err: unknown): boolean {
   const code = (err as { code?: unknown } | null)?.code;
   return code === "ER_DUP_ENTRY" || code === "ER_LOCK_DEADLOCK";
+}
+
+// What the digests module reads of subscribers (through subscribers.digest-reads.ts)
+
+/** Confirmed, not suppressed subscribers of a project at one frequency: the office's "recipients" figure. */
+export async function countDigestSubscribers(q: Q, projectId: number, frequency: Frequency): Promise<number> {
+  const r = await q("subscribers as s")
+    .leftJoin("suppressions as x", "x.email_hash", "s.email_hash")
+    .where({ "s.project_id": projectId, "s.frequency": frequency, "s.status": "confirmed" })
+    .whereNull("x.id")
+    .count({ n: "*" })
+    .first();
+  return Number(r?.n ?? 0);
+}
+
+/** The address and status of each of these subscribers (those that still exist). */
+export async function findAddressees(q: Q, ids: readonly number[]): Promise<Map<number, { email: string; status: SubscriberStatus }>> {
+  const out = new Map<number, { email: string; status: SubscriberStatus }>();
+  if (ids.length === 0) return out;
+  const rows = await q("subscribers").whereIn("id", [...ids]).select("id", "email", "status");
+  for (const r of rows as Array<{ id: number; email: string; status: string }>) out.set(Number(r.id), { email: String(r.email), status: r.status as SubscriberStatus });
+  return out;
+}
+
+export async function subscriberIdsByEmailHash(q: Q, emailHash: string): Promise<number[]> {
+  const rows = await q("subscribers").where({ email_hash: emailHash }).select("id");
+  return rows.map((r: { id: number }) => Number(r.id));
 }

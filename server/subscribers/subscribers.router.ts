@@ -1,6 +1,6 @@
 import type { NextFunction, Request, RequestHandler, Response } from "express";
 import { Router } from "express";
-import rateLimit from "express-rate-limit";
+import rateLimit, { type Store } from "express-rate-limit";
 import multer from "multer";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
@@ -16,8 +16,8 @@ import {
 } from "#shared/schemas/subscribers.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
-import type { RateLimitRepository } from "../rate-limit/rate-limit.repository.ts";
-import { SUBSCRIPTION_ACCEPTED, type SubscribersService } from "./subscribers.service.ts";
+import { SUBSCRIPTION_ACCEPTED } from "./subscribers.lifecycle.ts";
+import type { SubscribersService } from "./subscribers.service.ts";
 
 const limited = (message: string) => (_req: Request, _res: Response, next: NextFunction) => next(new AppError("rate_limited", message, 429));
 
@@ -28,7 +28,8 @@ const addressOf = (req: Request) => String((req.body as { email?: unknown } | un
 export function subscribersRouter(deps: {
   subscribers: SubscribersService;
   limits: { perIp: number; perAddress: number; windowMs: number };
-  stores: { ip: RateLimitRepository; address: RateLimitRepository };
+  /** Shared counters (in MariaDB), so every process counts the same requests. */
+  stores: { ip: Store; address: Store };
 }): Router {
   const { subscribers } = deps;
   const r = Router();

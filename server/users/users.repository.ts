@@ -50,6 +50,20 @@ export async function findUserById(q: Q, id: number): Promise<UserRecord | null>
   return r ? toUser(r) : null;
 }
 
+/** The names of these users (those that exist), by id. */
+export async function findUserNames(q: Q, ids: readonly number[]): Promise<Map<number, string>> {
+  if (ids.length === 0) return new Map();
+  const rows = (await q("users").whereIn("id", [...new Set(ids)]).select("id", "name")) as Array<{ id: number; name: string }>;
+  return new Map(rows.map((r) => [Number(r.id), String(r.name)]));
+}
+
+/** Which of these users are disabled. */
+export async function findDisabledUserIds(q: Q, ids: readonly number[]): Promise<Set<number>> {
+  if (ids.length === 0) return new Set();
+  const rows = (await q("users").whereIn("id", [...new Set(ids)]).whereNotNull("disabled_at").select("id")) as Array<{ id: number }>;
+  return new Set(rows.map((r) => Number(r.id)));
+}
+
 export async function listUsers(q: Q): Promise<UserRecord[]> {
   const rows = await q("users").orderBy([{ column: "role" }, { column: "email" }]);
   return rows.map(toUser);

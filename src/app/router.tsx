@@ -3,6 +3,7 @@ import type { ComponentType } from "react";
 import { createBrowserRouter, type LoaderFunction, type RouteObject } from "react-router-dom";
 import { homeLoader, HomePage } from "../features/projects/routes.tsx";
 import type { RouteLoader } from "../lib/loaders.ts";
+import { sessionLoader } from "../lib/session.ts";
 import { PublicLayout } from "./layouts/public-layout.tsx";
 import { FirstLoad, NotFoundPage, RouteErrorPage } from "./pages/misc-pages.tsx";
 
@@ -17,19 +18,28 @@ interface Where {
   what?: string;
   home?: string;
   homeLabel?: string;
+  /** The page's module brings its own error element (`ErrorBoundary`), in the page's own words (a used-up link). */
+  ownErrors?: boolean;
 }
 
 const OFFICE: Where = { home: "/office", homeLabel: "Site office" };
 const INVESTORS: Where = { home: "/investors", homeLabel: "Investor room" };
 
+interface LazyPage {
+  Component: ComponentType;
+  loader?: RouteLoader;
+  ErrorBoundary?: ComponentType;
+}
+
 /** A page of a lazily loaded module: its component, its loader when it has one, and an error element of its own. */
-function page(qc: QueryClient, path: string | undefined, load: () => Promise<{ Component: ComponentType; loader?: RouteLoader }>, where: Where = {}): RouteObject {
+function page(qc: QueryClient, path: string | undefined, load: () => Promise<LazyPage>, where: Where = {}): RouteObject {
   return {
     ...(path === undefined ? { index: true } : { path }),
-    errorElement: <RouteErrorPage {...where} />,
+    // A route's static error element would win over the one its module brings.
+    ...(where.ownErrors ? {} : { errorElement: <RouteErrorPage {...where} /> }),
     lazy: async () => {
-      const { Component, loader } = await load();
-      return loader ? { Component, loader: loader(qc) as LoaderFunction } : { Component };
+      const { Component, loader, ErrorBoundary } = await load();
+      return { Component, ...(loader ? { loader: loader(qc) as LoaderFunction } : {}), ...(where.ownErrors && ErrorBoundary ? { ErrorBoundary } : {}) };
     },
   };
 }
@@ -42,6 +52,7 @@ function routes(qc: QueryClient): RouteObject[] {
   const media = () => import("../features/media/routes.tsx");
   const stories = () => import("../features/stories/routes.tsx");
   const outbox = () => import("../features/outbox/routes.tsx");
+  const enquiries = () => import("../features/enquiries/routes.tsx");
   const admin = () => import("./pages/admin-pages.tsx");
   const investors = () => import("./pages/investor-pages.tsx");
   return [
@@ -61,15 +72,33 @@ function routes(qc: QueryClient): RouteObject[] {
         page(qc, "projects/:slug/gallery", async () => ({ Component: (await site()).GalleryPage, loader: (await site()).galleryLoader }), { what: "gallery" }),
         page(qc, "projects/:slug/search", async () => ({ Component: (await site()).SearchPage })),
         page(qc, "projects/:slug/stories/:storySlug", async () => ({ Component: (await site()).StoryPage, loader: (await site()).storyLoader }), { what: "photo story" }),
-        page(qc, "projects/:slug/timeline", async () => ({ Component: (await import("../features/programme/public-routes.tsx")).PublicTimelinePage }), { what: "timeline" }),
-        page(qc, "subscribe", async () => ({ Component: (await subscribers()).SubscribePage })),
-        page(qc, "projects/:slug/subscribe", async () => ({ Component: (await subscribers()).ProjectSubscribePage }), { what: "project" }),
-        page(qc, "subscriptions/confirm/:token", async () => ({ Component: (await subscribers()).ConfirmSubscriptionPage }), { what: "confirmation" }),
-        page(qc, "subscriptions/preferences/:token", async () => ({ Component: (await subscribers()).PreferencesPage }), { what: "subscription" }),
-        page(qc, "u/:token", async () => ({ Component: (await subscribers()).OneClickUnsubscribePage }), { what: "subscription" }),
-        page(qc, "projects/:slug/enquire", async () => ({ Component: (await import("../features/enquiries/routes.tsx")).EnquirePage }), { what: "project" }),
+        page(qc, "projects/:slug/timeline", async () => {
+          const m = await import("../features/programme/public-routes.tsx");
+          return { Component: m.PublicTimelinePage, loader: m.publicTimelineLoader };
+        }, { what: "project" }),
+        page(qc, "subscribe", async () => ({ Component: (await subscribers()).SubscribePage, loader: (await subscribers()).subscribeLoader })),
+        page(qc, "projects/:slug/subscribe", async () => ({ Component: (await subscribers()).ProjectSubscribePage, loader: (await subscribers()).projectSubscribeLoader }), { what: "project" }),
+        page(qc, "subscriptions/confirm/:token", async () => {
+          const m = await subscribers();
+          return { Component: m.ConfirmSubscriptionPage, loader: m.confirmationLoader, ErrorBoundary: m.ConfirmationLinkError };
+        }, { what: "confirmation", ownErrors: true }),
+        page(qc, "subscriptions/preferences/:token", async () => {
+          const m = await subscribers();
+          return { Component: m.PreferencesPage, loader: m.preferencesLoader, ErrorBoundary: m.PreferencesLinkError };
+        }, { what: "subscription", ownErrors: true }),
+        page(qc, "u/:token", async () => {
+          const m = await subscribers();
+          return { Component: m.OneClickUnsubscribePage, loader: m.unsubscribeLoader, ErrorBoundary: m.UnsubscribeLinkError };
+        }, { what: "subscription", ownErrors: true }),
+        page(qc, "projects/:slug/enquire", async () => {
+          const m = await enquiries();
+          return { Component: m.EnquirePage, loader: m.enquireLoader, ErrorBoundary: m.EnquireError };
+        }, { what: "project", ownErrors: true }),
         page(qc, "sign-in", async () => ({ Component: (await auth()).SignInPage })),
-        page(qc, "invitations/:token", async () => ({ Component: (await auth()).AcceptInvitationPage }), { what: "invitation" }),
+        page(qc, "invitations/:token", async () => {
+          const m = await auth();
+          return { Component: m.AcceptInvitationPage, loader: m.invitationLoader, ErrorBoundary: m.InvitationError };
+        }, { what: "invitation", ownErrors: true }),
         page(qc, "forgot-password", async () => ({ Component: (await auth()).ForgotPasswordPage })),
         page(qc, "reset-password/:token", async () => ({ Component: (await auth()).ResetPasswordPage })),
         { path: "*", element: <NotFoundPage /> },
@@ -79,13 +108,14 @@ function routes(qc: QueryClient): RouteObject[] {
       path: "/office",
       errorElement: <RouteErrorPage {...OFFICE} />,
       HydrateFallback: FirstLoad,
+      loader: sessionLoader(qc),
       lazy: async () => ({ Component: (await import("./layouts/office-layout.tsx")).OfficeLayout }),
       children: [
         page(qc, undefined, async () => ({ Component: (await import("./pages/office-home.tsx")).OfficeHomePage }), OFFICE),
-        page(qc, "programme", async () => ({ Component: (await programme()).ProgrammePage }), OFFICE),
-        page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage }), OFFICE),
-        page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage }), OFFICE),
-        page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage }), OFFICE),
+        page(qc, "programme", async () => ({ Component: (await programme()).ProgrammePage, loader: (await programme()).programmeLoader }), { ...OFFICE, what: "project" }),
+        page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage, loader: (await programme()).siteWalkLoader }), { ...OFFICE, what: "project" }),
+        page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage, loader: (await media()).mediaLibraryLoader }), OFFICE),
+        page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage, loader: (await media()).mediaReviewLoader }), OFFICE),
         page(qc, "updates", async () => {
           const m = await import("../features/posts/routes.tsx");
           return { Component: m.PostsPage, loader: m.postsLoader };
@@ -97,13 +127,16 @@ function routes(qc: QueryClient): RouteObject[] {
         }, { ...OFFICE, what: "update" }),
         page(qc, "stories", async () => ({ Component: (await stories()).StoriesPage, loader: (await stories()).storiesLoader }), OFFICE),
         page(qc, "stories/:id", async () => ({ Component: (await stories()).StoryEditorPage, loader: (await stories()).storyEditorLoader }), { ...OFFICE, what: "photo story" }),
-        page(qc, "outbox", async () => ({ Component: (await outbox()).OutboxPage }), OFFICE),
-        page(qc, "outbox/:id", async () => ({ Component: (await outbox()).OutboxMessagePage }), { ...OFFICE, what: "message" }),
-        page(qc, "subscribers", async () => ({ Component: (await subscribers()).SubscribersPage }), OFFICE),
-        page(qc, "enquiries", async () => ({ Component: (await import("../features/enquiries/routes.tsx")).EnquiriesPage }), OFFICE),
-        page(qc, "digests", async () => ({ Component: (await import("../features/digests/routes.tsx")).DigestsPage }), OFFICE),
-        page(qc, "users", async () => ({ Component: (await admin()).AdminUsersPage }), OFFICE),
-        page(qc, "audit", async () => ({ Component: (await admin()).AdminAuditPage }), OFFICE),
+        page(qc, "outbox", async () => ({ Component: (await outbox()).OutboxPage, loader: (await outbox()).outboxLoader }), OFFICE),
+        page(qc, "outbox/:id", async () => ({ Component: (await outbox()).OutboxMessagePage, loader: (await outbox()).outboxMessageLoader }), { ...OFFICE, what: "message" }),
+        page(qc, "subscribers", async () => ({ Component: (await subscribers()).SubscribersPage, loader: (await subscribers()).subscribersLoader }), OFFICE),
+        page(qc, "enquiries", async () => ({ Component: (await enquiries()).EnquiriesPage, loader: (await enquiries()).enquiriesLoader }), OFFICE),
+        page(qc, "digests", async () => {
+          const m = await import("../features/digests/routes.tsx");
+          return { Component: m.DigestsPage, loader: m.digestsLoader };
+        }, OFFICE),
+        page(qc, "users", async () => ({ Component: (await admin()).AdminUsersPage, loader: (await admin()).adminUsersLoader }), OFFICE),
+        page(qc, "audit", async () => ({ Component: (await admin()).AdminAuditPage, loader: (await admin()).adminAuditLoader }), OFFICE),
         { path: "*", element: <NotFoundPage /> },
       ],
     },
@@ -111,10 +144,11 @@ function routes(qc: QueryClient): RouteObject[] {
       path: "/investors",
       errorElement: <RouteErrorPage {...INVESTORS} />,
       HydrateFallback: FirstLoad,
+      loader: sessionLoader(qc),
       lazy: async () => ({ Component: (await import("./layouts/investor-layout.tsx")).InvestorLayout }),
       children: [
         page(qc, undefined, async () => ({ Component: (await investors()).InvestorHomePage, loader: (await investors()).investorHomeLoader }), INVESTORS),
-        page(qc, "digest", async () => ({ Component: (await subscribers()).InvestorDigestPage }), INVESTORS),
+        page(qc, "digest", async () => ({ Component: (await subscribers()).InvestorDigestPage, loader: (await subscribers()).investorDigestLoader }), INVESTORS),
         page(qc, "projects/:slug", async () => ({ Component: (await investors()).InvestorProjectPage, loader: (await investors()).investorProjectLoader }), { ...INVESTORS, what: "project" }),
         { path: "*", element: <NotFoundPage /> },
       ],

@@ -1,6 +1,5 @@
 import { queryOptions, useMutation, useQuery, useQueryClient, type QueryKey } from "@tanstack/react-query";
-import type { PostStatus, PublishingProblem, RevisionDiff, ScheduleInput, WorkflowAction, WorkflowResult } from "#shared/schemas/posts.ts";
-import type { PublishingEvent } from "#shared/schemas/stories.ts";
+import type { PostStatus, PublishingEvent, PublishingProblem, RevisionDiff, ScheduleInput, WorkflowAction, WorkflowResult } from "#shared/schemas/publishing.ts";
 import { api, ApiError, qs } from "./api-client.ts";
 import { formatInstant } from "./format.ts";
 

@@ -1,6 +1,7 @@
 import { queryOptions, useQuery } from "@tanstack/react-query";
-import type { User } from "#shared/schemas/auth.ts";
+import type { SignedIn, User } from "#shared/schemas/auth.ts";
 import { api, ApiError } from "./api-client.ts";
+import type { RouteLoader } from "./loaders.ts";
 
 /**
  * Who is signed in, asked once and cached under one key for the whole app. Every feature
@@ -18,7 +19,7 @@ export const meQueryOptions = () =>
     queryKey: sessionKeys.me(),
     queryFn: async (): Promise<User | null> => {
       try {
-        return (await api.get<{ user: User }>("/api/auth/me")).user;
+        return (await api.get<SignedIn>("/api/auth/me")).user;
       } catch (e) {
         if (e instanceof ApiError && e.status === 401) return null;
         throw e;
@@ -28,3 +29,12 @@ export const meQueryOptions = () =>
   });
 
 export const useMe = () => useQuery(meQueryOptions());
+
+/**
+ * Primes who is signed in, for an area's guard (`RequireRole`) to read without waiting. It lives
+ * here, not in loaders.ts, because the router imports it on the first page, and loaders.ts brings zod.
+ */
+export const sessionLoader: RouteLoader = (qc) => async () => {
+  await qc.ensureQueryData(meQueryOptions());
+  return null;
+};

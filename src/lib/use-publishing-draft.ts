@@ -4,7 +4,7 @@ import { useCallback, useEffect, useRef, useState } from "react";
 import { useForm, type DefaultValues, type FieldValues, type Path, type PathValue, type Resolver } from "react-hook-form";
 import { toast } from "sonner";
 import { z } from "zod";
-import { ContentSlugSchema, type PostStatus, type PublishingProblem, type WorkflowAction, type WorkflowResult } from "#shared/schemas/posts.ts";
+import { ContentSlugSchema, type PostStatus, type PublishingProblem, type WorkflowAction, type WorkflowResult } from "#shared/schemas/publishing.ts";
 import type { EditorFrame } from "../components/ui/editor-shell.tsx";
 import { ApiError } from "./api-client.ts";
 import { formatInstant } from "./format.ts";

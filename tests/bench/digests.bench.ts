@@ -10,7 +10,7 @@
 import { randomBytes } from "node:crypto";
 import nodemailer, { type TransportOptions } from "nodemailer";
 import { pino } from "pino";
-import { createApp } from "../../server/app.ts";
+import { createPlumbline } from "../helpers/plumbline.ts";
 import { loadConfig } from "../../server/config.ts";
 import { createDb, dropDatabase, ensureDatabase } from "../../server/db/knex.ts";
 import { migrateLatest } from "../../server/db/migrations.ts";
@@ -61,7 +61,7 @@ try {
   const sink = await startMailSink({ db, logger, host: "127.0.0.1", port: 0 });
   const config = loadConfig({ NODE_ENV: "production", SESSION_SECRET: "bench-secret-not-for-production-0123", DATABASE_URL: databaseUrl, PUBLIC_URL: "https://progress.kestrel.example", LOG_LEVEL: "silent", SERVE_CLIENT: "false" });
   const mailer = createMailer({ smtpUrl: `smtp://127.0.0.1:${sink.port}`, from: config.MAIL_FROM, mode: "local", logger });
-  const app = createApp({ db, config, logger, mailer });
+  const app = createPlumbline({ db, config, logger, mailer });
 
   // 1. One weekly run: planning (one render), then the workers' claim, send and record.
   const t0 = performance.now();
@@ -101,7 +101,7 @@ try {
   out(`  duplicates:      ${dupes.length} (must be 0); recipients reached ${reached}`);
   if (dupes.length > 0 || summary.counts.sent !== SUBSCRIBERS || reached !== SUBSCRIBERS) failed = true;
 
-  app.close();
+  await app.close();
   mailer.close();
   await sink.close();
 } finally {

@@ -21,7 +21,7 @@ import { availableParallelism, cpus, tmpdir } from "node:os";
 import path from "node:path";
 import express from "express";
 import { pino } from "pino";
-import { createApp } from "../../server/app.ts";
+import { createPlumbline } from "../helpers/plumbline.ts";
 import { loadConfig } from "../../server/config.ts";
 import { createDb, dropDatabase, ensureDatabase } from "../../server/db/knex.ts";
 import { migrateLatest } from "../../server/db/migrations.ts";
@@ -235,7 +235,7 @@ async function main(): Promise<void> {
   const logger = pino({ level: "silent" });
   const db = createDb(databaseUrl);
   const mailer = createMailer({ smtpUrl: "smtp://127.0.0.1:9", from: config.MAIL_FROM, mode: "smtp", logger });
-  const plumbline = createApp({ db, config, logger, mailer });
+  const plumbline = createPlumbline({ db, config, logger, mailer });
   const real = await listen(plumbline.app);
 
   // The same bytes, from memory, by a bare Express handler: the ceiling for this machine.
@@ -306,7 +306,7 @@ async function main(): Promise<void> {
 
   await new Promise<void>((r) => real.server.close(() => r()));
   await new Promise<void>((r) => bareServer.server.close(() => r()));
-  plumbline.close();
+  await plumbline.close();
   mailer.close();
   // Let background sweeps started by the app finish their current query before the pool closes.
   await new Promise((r) => setTimeout(r, 500));

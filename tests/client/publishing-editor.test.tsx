@@ -2,7 +2,7 @@ import { QueryClient, QueryClientProvider, useMutation } from "@tanstack/react-q
 import { act, fireEvent, render, screen, waitFor } from "@testing-library/react";
 import { createMemoryRouter, RouterProvider } from "react-router-dom";
 import { afterEach, describe, expect, it, vi } from "vitest";
-import type { PostStatus, WorkflowResult } from "../../src/shared/schemas/posts.ts";
+import type { PostStatus, WorkflowResult } from "../../src/shared/schemas/publishing.ts";
 import { StoryCreateInputSchema } from "../../src/shared/schemas/stories.ts";
 import { EditorShell, type EditorFrame } from "../../src/components/ui/editor-shell.tsx";
 import { TextField } from "../../src/components/ui/field.tsx";

@@ -5,7 +5,7 @@ import { inject } from "vitest";
 import request from "supertest";
 import type TestAgent from "supertest/lib/agent.js";
 import { pino } from "pino";
-import { createApp, type PlumblineApp } from "../../server/app.ts";
+import { createPlumbline, type PlumblineApp } from "./plumbline.ts";
 import { loadConfig, type Config } from "../../server/config.ts";
 import { createDb, type Db } from "../../server/db/knex.ts";
 import { createMailer, type Mailer } from "../../server/mail/mail.service.ts";
@@ -35,7 +35,8 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
-function freePort(): Promise<number> {
+/** A port nothing listens on at the moment of asking. */
+export function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const probe = createNetServer();
     probe.once("error", reject);
@@ -47,8 +48,9 @@ function freePort(): Promise<number> {
 }
 
 /** The real app over the test project's MariaDB and a real SMTP sink on a free port. */
-export async function startTestApp(env: Record<string, string> = {}, opts: { listen?: boolean; mediaWorker?: boolean } = {}): Promise<TestApp> {
-  const databaseUrl = inject("databaseUrl");
+export async function startTestApp(env: Record<string, string> = {}, opts: { listen?: boolean; mediaWorker?: boolean; databaseUrl?: string } = {}): Promise<TestApp> {
+  // Another database than the run's shared one, for tests whose own processes must touch nothing else.
+  const databaseUrl = opts.databaseUrl ?? inject("databaseUrl");
   // A listening app knows its port up front, so links and absolute image URLs in e-mail reach it.
   const port = opts.listen ? await freePort() : null;
   const config = loadConfig({
@@ -68,7 +70,7 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { lis
   const db = createDb(databaseUrl);
   const sink = await startMailSink({ db, logger, host: "127.0.0.1", port: 0, refuseRecipients: config.sinkRefusePattern });
   const mailer = createMailer({ smtpUrl: `smtp://127.0.0.1:${sink.port}`, from: config.MAIL_FROM, mode: "local", logger });
-  const plumbline = createApp({ db, config, logger, mailer });
+  const plumbline = createPlumbline({ db, config, logger, mailer });
   // Server tests drain the photo jobs themselves; browser tests want the worker running.
   if (opts.mediaWorker) await plumbline.mediaJobs.start();
   let server: Server | null = null;
@@ -89,7 +91,7 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { lis
     async close() {
       if (server) await new Promise<void>((resolve) => server!.close(() => resolve()));
       await plumbline.mediaJobs.stop();
-      plumbline.close();
+      await plumbline.close();
       mailer.close();
       await sink.close();
       await db.destroy();

@@ -2,6 +2,7 @@ import { randomBytes } from "node:crypto";
 import { pino } from "pino";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDigestJobs } from "../../server/digests/digests.jobs.ts";
+import { createOutboxService } from "../../server/mail/mail.service.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { DEMO, lastMailId, startTestApp, type TestApp } from "../helpers/app.ts";
 import { scheduledRun } from "../helpers/digests.ts";
@@ -94,7 +95,7 @@ describe("the site office's digest controls", () => {
 
   it("keeps to the configured sending rate", async () => {
     const p = await projectWithReaders(8);
-    const jobs = createDigestJobs({ db: t.db, mailer: t.mailer, logger: pino({ level: "silent" }), digests: t.plumbline.digests, subscribers: t.plumbline.subscribers }, { ratePerSecond: 10 });
+    const jobs = createDigestJobs({ db: t.db, mailer: t.mailer, logger: pino({ level: "silent" }), digests: t.plumbline.digests, subscribers: t.plumbline.subscribers, outbox: createOutboxService(t.db) }, { ratePerSecond: 10 });
     await startRun(p.slug);
     const started = Date.now();
     await jobs.drain();

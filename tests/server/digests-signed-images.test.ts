@@ -5,7 +5,7 @@ import path from "node:path";
 import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { MediaItem } from "../../src/shared/schemas/media.ts";
-import { MEDIA_LINK_TTL_DAYS } from "../../server/digests/digests.service.ts";
+import { MEDIA_LINK_TTL_DAYS } from "../../server/digests/digests.assemble.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { lastMailId, newClient, startTestApp, type TestApp } from "../helpers/app.ts";
 import { scheduledRun } from "../helpers/digests.ts";

@@ -22,14 +22,19 @@ afterAll(async () => {
   await t.close();
 });
 
-/** A real worker process: `node --import tsx server/digests/digest-worker.ts` against the test database and sink. */
+/**
+ * A real digest sender: `PLUMBLINE_ROLE=worker PLUMBLINE_WORKERS=digest-sending node --import tsx server/index.ts`
+ * against the test database and sink (only sending: the shared test database's other work is its tests' own).
+ */
 function startWorker(): ChildProcess {
   const databaseUrl = t.config.DATABASE_URL;
-  const child = spawn(process.execPath, ["--import", "tsx", "server/digests/digest-worker.ts"], {
+  const child = spawn(process.execPath, ["--import", "tsx", "server/index.ts"], {
     cwd: ROOT,
     env: {
       ...process.env,
       NODE_ENV: "test",
+      PLUMBLINE_ROLE: "worker",
+      PLUMBLINE_WORKERS: "digest-sending",
       DATABASE_URL: databaseUrl,
       SMTP_URL: `smtp://127.0.0.1:${t.sink.port}`,
       SESSION_SECRET: "test-secret-not-for-production-0123456789",

@@ -1,11 +1,11 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import request from "supertest";
 import { pino } from "pino";
-import { createApp } from "../../server/app.ts";
 import { loadConfig } from "../../server/config.ts";
 import { createDb } from "../../server/db/knex.ts";
 import { createMailer } from "../../server/mail/mail.service.ts";
 import { DEMO, newClient, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
+import { createPlumbline } from "../helpers/plumbline.ts";
 
 let t: TestApp;
 beforeAll(async () => {
@@ -26,13 +26,13 @@ describe("GET /api/health", () => {
     const logger = pino({ level: "silent" });
     const db = createDb(config.DATABASE_URL);
     const mailer = createMailer({ smtpUrl: "smtp://127.0.0.1:1", from: config.MAIL_FROM, mode: "local", logger });
-    const down = createApp({ db, config, logger, mailer });
+    const down = createPlumbline({ db, config, logger, mailer });
     try {
       const res = await request(down.app).get("/api/health");
       expect(res.status).toBe(503);
       expect(res.body).toEqual({ ok: false, db: "down" });
     } finally {
-      down.close();
+      await down.close();
       mailer.close();
       await db.destroy();
     }

@@ -1,13 +1,11 @@
-import { mkdtempSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import path from "node:path";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import type { MediaItem } from "../../src/shared/schemas/media.ts";
-import { DEMO, newClient, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
+import { DEMO, newClient, signIn, type Agent, type TestApp } from "../helpers/app.ts";
+import { useMediaFixture } from "../helpers/media-fixture.ts";
 import { makeGradientImage, makeJpegTakenAt } from "../helpers/images.ts";
 
+const f = useMediaFixture("media-library");
 let t: TestApp;
-let mediaDir: string;
 let project: { id: number; slug: string };
 let milestoneId: number;
 let otherMilestoneId: number;
@@ -51,18 +49,10 @@ const patch = (c: { agent: Agent; csrf: string }, id: number, body: unknown) => 
 const list = (c: { agent: Agent }, q: Record<string, string>) => c.agent.get("/api/media").query({ project: project.slug, ...q });
 
 beforeAll(async () => {
-  mediaDir = mkdtempSync(path.join(tmpdir(), "plumbline-media-library-"));
-  t = await startTestApp({ MEDIA_DIR: mediaDir });
-  project = await insertProject("media-library");
+  ({ t, project, marketing, lead } = f);
   milestoneId = await insertMilestone(project.id, "Chillers delivered and set");
   const other = await insertProject("media-other");
   otherMilestoneId = await insertMilestone(other.id, "Another project's milestone");
-  marketing = await signIn(t, DEMO.marketing);
-  lead = await signIn(t, DEMO.lead);
-});
-afterAll(async () => {
-  await t?.close();
-  rmSync(mediaDir, { recursive: true, force: true });
 });
 
 describe("PATCH /api/media/:id", () => {

@@ -1,27 +1,16 @@
-import { mkdtempSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import path from "node:path";
 import sharp from "sharp";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import { DerivativeLimitError, MAX_SIDE, derivativeLimitProblem, makeDerivatives } from "../../server/media/media.pipeline.ts";
-import { DEMO, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
+import type { Agent, TestApp } from "../helpers/app.ts";
+import { useMediaFixture } from "../helpers/media-fixture.ts";
 
+const f = useMediaFixture("media-limits");
 let t: TestApp;
-let mediaDir: string;
 let project: { id: number; slug: string };
 let marketing: { agent: Agent; csrf: string };
 
-beforeAll(async () => {
-  mediaDir = mkdtempSync(path.join(tmpdir(), "plumbline-media-limits-"));
-  t = await startTestApp({ MEDIA_DIR: mediaDir });
-  const slug = `media-limits-${Date.now().toString(36)}`;
-  const [id] = await t.db("projects").insert({ slug, name: `Media limits test ${slug}`, operator_name: "Kestrel Colocation", time_zone: "Europe/London" });
-  project = { id: Number(id), slug };
-  marketing = await signIn(t, DEMO.marketing);
-});
-afterAll(async () => {
-  await t?.close();
-  rmSync(mediaDir, { recursive: true, force: true });
+beforeAll(() => {
+  ({ t, project, marketing } = f);
 });
 
 /** A real image of the given stored size, cheap to make: two colour bands. */

@@ -1,30 +1,21 @@
-import { mkdtempSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import path from "node:path";
 import exifr from "exifr";
 import sharp from "sharp";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import { hasLocation } from "../../server/media/media.probe.ts";
 import { seedMedia } from "../../server/seed/media.seed.ts";
-import { DEMO, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
+import type { Agent, TestApp } from "../helpers/app.ts";
+import { useMediaFixture } from "../helpers/media-fixture.ts";
 import { insertJpegSegment, listMetadataBlocks, makeGradientImage, makeIptcSegment, makeXmpWithGps } from "../helpers/images.ts";
 
+const f = useMediaFixture("media-location");
 let t: TestApp;
 let mediaDir: string;
 let project: { id: number; slug: string };
 let marketing: { agent: Agent; csrf: string };
 
-beforeAll(async () => {
-  mediaDir = mkdtempSync(path.join(tmpdir(), "plumbline-media-location-"));
-  t = await startTestApp({ MEDIA_DIR: mediaDir });
-  const slug = `media-location-${Date.now().toString(36)}`;
-  const [id] = await t.db("projects").insert({ slug, name: `Media location test ${slug}`, operator_name: "Kestrel Colocation", time_zone: "Europe/London" });
-  project = { id: Number(id), slug };
-  marketing = await signIn(t, DEMO.marketing);
-});
-afterAll(async () => {
-  await t?.close();
-  rmSync(mediaDir, { recursive: true, force: true });
+beforeAll(() => {
+  ({ t, project, marketing } = f);
+  mediaDir = f.t.config.MEDIA_DIR;
 });
 
 let n = 0;

@@ -2,7 +2,7 @@ import { createHmac } from "node:crypto";
 import sharp from "sharp";
 import { beforeAll, describe, expect, it } from "vitest";
 import type { MediaItem } from "../../src/shared/schemas/media.ts";
-import { SIGNED_LINK_MAX_CACHE_SECONDS } from "../../server/media/media.service.ts";
+import { SIGNED_LINK_MAX_CACHE_SECONDS } from "../../server/media/media.links.ts";
 import { signToken } from "../../server/subscribers/subscribers.tokens.ts";
 import type { TestApp } from "../helpers/app.ts";
 import { useMediaFixture, type MediaFixture } from "../helpers/media-fixture.ts";

@@ -3,26 +3,20 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import exifr from "exifr";
 import sharp from "sharp";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import { DEMO, newClient, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
+import { useMediaFixture } from "../helpers/media-fixture.ts";
 import { makeGradientImage, makeJpegWithGps, makePatternedImage, makePngDeclaring } from "../helpers/images.ts";
 
+const f = useMediaFixture("media-upload");
 let t: TestApp;
 let mediaDir: string;
 let project: { id: number; slug: string };
 let marketing: { agent: Agent; csrf: string };
 
-beforeAll(async () => {
-  mediaDir = mkdtempSync(path.join(tmpdir(), "plumbline-media-upload-"));
-  t = await startTestApp({ MEDIA_DIR: mediaDir });
-  const slug = `media-upload-${Date.now().toString(36)}`;
-  const [id] = await t.db("projects").insert({ slug, name: `Media upload test ${slug}`, operator_name: "Kestrel Colocation", time_zone: "Europe/London" });
-  project = { id: Number(id), slug };
-  marketing = await signIn(t, DEMO.marketing);
-});
-afterAll(async () => {
-  await t?.close();
-  rmSync(mediaDir, { recursive: true, force: true });
+beforeAll(() => {
+  ({ t, project, marketing } = f);
+  mediaDir = f.t.config.MEDIA_DIR;
 });
 
 /** Every file under the media folder, temporary ones included. */

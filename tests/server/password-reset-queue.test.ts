@@ -3,9 +3,9 @@ import type { AddressInfo } from "node:net";
 import { Writable } from "node:stream";
 import { pino } from "pino";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { createApp, type PlumblineApp } from "../../server/app.ts";
 import { createMailer, type Mailer } from "../../server/mail/mail.service.ts";
 import { createUser, lastMailId, newClient, startTestApp, waitForMail, type TestApp } from "../helpers/app.ts";
+import { createPlumbline, type PlumblineApp } from "../helpers/plumbline.ts";
 
 /**
  * An SMTP gate between the app and the real sink: it accepts connections and holds them
@@ -59,7 +59,7 @@ function appThrough(t: TestApp, gatePort: number) {
   });
   const logger = pino({ level: "error" }, sinkStream);
   const mailer: Mailer = createMailer({ smtpUrl: `smtp://127.0.0.1:${gatePort}`, from: t.config.MAIL_FROM, mode: "local", logger });
-  const plumbline: PlumblineApp = createApp({ db: t.db, config: t.config, logger, mailer });
+  const plumbline: PlumblineApp = createPlumbline({ db: t.db, config: t.config, logger, mailer });
   return { plumbline, mailer, lines };
 }
 
@@ -93,7 +93,7 @@ describe("POST /api/auth/password-reset answers before the mail is handed over",
       expect(mail.text).toMatch(/\/reset-password\/[A-Za-z0-9_-]{43}/);
     } finally {
       app.mailer.close();
-      app.plumbline.close();
+      await app.plumbline.close();
       await gate.close();
     }
   });
@@ -111,7 +111,7 @@ describe("POST /api/auth/password-reset answers before the mail is handed over",
       expect(app.lines.map((l) => l.msg)).toContain("the password reset link could not be sent");
     } finally {
       app.mailer.close();
-      app.plumbline.close();
+      await app.plumbline.close();
       await gate.close();
     }
   });

@@ -1,6 +1,10 @@
-import { AuditPage } from "../../features/audit/routes.tsx";
+import { auditLoader, AuditPage } from "../../features/audit/routes.tsx";
 import { RequireRole } from "../../features/auth/components/require-role.tsx";
-import { UsersPage } from "../../features/users/routes.tsx";
+import { usersLoader, UsersPage } from "../../features/users/routes.tsx";
+
+// The pages' own loaders, which prime only for an administrator (the guard below refuses anyone else).
+export const adminUsersLoader = usersLoader;
+export const adminAuditLoader = auditLoader;
 
 export function AdminUsersPage() {
   return (

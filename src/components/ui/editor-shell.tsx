@@ -1,6 +1,6 @@
 import type { ReactNode } from "react";
 import type { Role } from "#shared/schemas/common.ts";
-import type { PostStatus, PublishingProblem, ScheduleInput, WorkflowAction } from "#shared/schemas/posts.ts";
+import type { PostStatus, PublishingProblem, ScheduleInput, WorkflowAction } from "#shared/schemas/publishing.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import { EditorHeader, NextStepBar, RefusalNotice, ReturnedNotice } from "./publishing-editor.tsx";
 import { Notice } from "./sheet.tsx";

@@ -1,7 +1,7 @@
 import type { ComponentProps, ReactNode } from "react";
 import { Link } from "react-router-dom";
 import type { Audience } from "#shared/schemas/common.ts";
-import type { PostStatus, PublishingProblem } from "#shared/schemas/posts.ts";
+import type { PostStatus, PublishingProblem } from "#shared/schemas/publishing.ts";
 import { AudienceMark } from "./audience-mark.tsx";
 import { Button } from "./button.tsx";
 import { SelectField } from "./field.tsx";

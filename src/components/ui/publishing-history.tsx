@@ -1,4 +1,4 @@
-import type { PublishingEvent } from "#shared/schemas/stories.ts";
+import type { PublishingEvent } from "#shared/schemas/publishing.ts";
 import { formatInstant } from "../../lib/format.ts";
 import { PUBLISH_STATUS_WORD } from "./publish-status.tsx";
 

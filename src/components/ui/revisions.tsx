@@ -1,5 +1,5 @@
 import { useState, type ReactNode } from "react";
-import type { PostStatus, RevisionDiff } from "#shared/schemas/posts.ts";
+import type { PostStatus, RevisionDiff } from "#shared/schemas/publishing.ts";
 import { formatInstant } from "../../lib/format.ts";
 import { Button } from "./button.tsx";
 import { Dialog } from "./dialog.tsx";

@@ -1,5 +1,6 @@
 import type { Role } from "#shared/schemas/common.ts";
-import { workflowStep, type PostStatus, type WorkflowAction } from "#shared/schemas/posts.ts";
+import { workflowStep } from "#shared/domain/publishing-workflow.ts";
+import type { PostStatus, WorkflowAction } from "#shared/schemas/publishing.ts";
 import { Button } from "./button.tsx";
 
 const LABEL: Record<WorkflowAction, string> = {

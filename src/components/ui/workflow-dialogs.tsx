@@ -1,5 +1,5 @@
 import { useState } from "react";
-import type { ScheduleInput } from "#shared/schemas/posts.ts";
+import type { ScheduleInput } from "#shared/schemas/publishing.ts";
 import { Button } from "./button.tsx";
 import { Dialog } from "./dialog.tsx";
 import { TextAreaField, TextField } from "./field.tsx";

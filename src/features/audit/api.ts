@@ -1,4 +1,4 @@
-import { queryOptions, useQuery } from "@tanstack/react-query";
+import { queryOptions } from "@tanstack/react-query";
 import type { AuditEvent } from "#shared/schemas/users.ts";
 import { api, qs } from "../../lib/api-client.ts";
 
@@ -10,4 +10,3 @@ export const auditKeys = {
 export const auditQueryOptions = (f: { action?: string } = {}) =>
   queryOptions({ queryKey: auditKeys.list(f), queryFn: () => api.get<AuditEvent[]>(`/api/audit${qs({ action: f.action, limit: 300 })}`) });
 
-export const useAudit = (f: { action?: string }) => useQuery(auditQueryOptions(f));

@@ -1,11 +1,18 @@
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, useReactTable } from "@tanstack/react-table";
 import { useSearchParams } from "react-router-dom";
 import type { AuditEvent } from "#shared/schemas/users.ts";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
-import { Notice, PageHeader, Spinner } from "../../components/ui/sheet.tsx";
+import { PageHeader } from "../../components/ui/sheet.tsx";
 import { formatInstant } from "../../lib/format.ts";
-import { useAudit } from "./api.ts";
+import { primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { auditQueryOptions } from "./api.ts";
+
+const filterOf = (params: URLSearchParams) => ({ action: params.get("action") || undefined });
+
+/** The audit log is for administrators (the route says so); only theirs is primed. */
+export const auditLoader: RouteLoader = (qc) => ({ request }) => primeWhenAllowed(qc, ["admin"], () => qc.ensureQueryData(auditQueryOptions(filterOf(new URL(request.url).searchParams))));
 
 const ACTIONS: Record<string, string> = {
   sign_in: "Signed in",
@@ -39,8 +46,8 @@ const columns = [
 export function AuditPage() {
   const [params, setParams] = useSearchParams();
   const action = params.get("action") ?? "";
-  const audit = useAudit({ action: action || undefined });
-  const table = useReactTable({ data: audit.data ?? [], columns, getCoreRowModel: getCoreRowModel() });
+  const audit = useSuspenseQuery(auditQueryOptions(filterOf(params))).data;
+  const table = useReactTable({ data: audit, columns, getCoreRowModel: getCoreRowModel() });
   return (
     <>
       <PageHeader sheet="Site office · Audit log" title="Audit log" description="Sign-ins, invitations, resets and account changes: who, when and from which address. Newest first." />
@@ -52,7 +59,7 @@ export function AuditPage() {
           options={[{ value: "", label: "Every kind of event" }, ...Object.entries(ACTIONS).map(([value, label]) => ({ value, label }))]}
         />
       </div>
-      {audit.isPending ? <Spinner /> : audit.isError ? <Notice tone="error">{audit.error.message}</Notice> : <DataTable table={table} caption="Audit events" empty="No events of this kind." />}
+      <DataTable table={table} caption="Audit events" empty="No events of this kind." />
     </>
   );
 }

@@ -1,5 +1,5 @@
 import { queryOptions, useMutation, useQueryClient } from "@tanstack/react-query";
-import type { LoginInput, User } from "#shared/schemas/auth.ts";
+import type { InvitationView, LoginInput, ResetRequested, SignedIn, User } from "#shared/schemas/auth.ts";
 import { api, resetCsrf } from "../../lib/api-client.ts";
 import { sessionKeys } from "../../lib/session.ts";
 
@@ -11,14 +11,14 @@ export const authKeys = {
 export const invitationQueryOptions = (token: string) =>
   queryOptions({
     queryKey: authKeys.invitation(token),
-    queryFn: () => api.get<{ email: string; role: User["role"] }>(`/api/auth/invitations/${token}`),
+    queryFn: () => api.get<InvitationView>(`/api/auth/invitations/${token}`),
     retry: false,
   });
 
 export function useLogin() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: LoginInput) => api.post<{ user: User }>("/api/auth/login", input),
+    mutationFn: (input: LoginInput) => api.post<SignedIn>("/api/auth/login", input),
     meta: { quiet: true },
     onSuccess: ({ user }) => {
       qc.clear();
@@ -42,7 +42,7 @@ export function useLogout() {
 export function useAcceptInvitation(token: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: { name: string; password: string }) => api.post<{ user: User }>(`/api/auth/invitations/${token}/accept`, input),
+    mutationFn: (input: { name: string; password: string }) => api.post<SignedIn>(`/api/auth/invitations/${token}/accept`, input),
     meta: { quiet: true },
     onSuccess: ({ user }) => {
       qc.clear();
@@ -53,7 +53,7 @@ export function useAcceptInvitation(token: string) {
 
 export function useRequestReset() {
   return useMutation({
-    mutationFn: (input: { email: string }) => api.post<{ ok: true; message: string }>("/api/auth/password-reset", input),
+    mutationFn: (input: { email: string }) => api.post<ResetRequested>("/api/auth/password-reset", input),
     meta: { quiet: true },
   });
 }
@@ -61,7 +61,7 @@ export function useRequestReset() {
 export function useResetPassword(token: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: { password: string }) => api.post<{ user: User }>(`/api/auth/password-reset/${token}`, input),
+    mutationFn: (input: { password: string }) => api.post<SignedIn>(`/api/auth/password-reset/${token}`, input),
     meta: { quiet: true },
     onSuccess: ({ user }) => {
       qc.clear();

@@ -1,15 +1,16 @@
 import { zodResolver } from "@hookform/resolvers/zod";
-import { useQuery } from "@tanstack/react-query";
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
-import { Link, useNavigate, useParams, useSearchParams } from "react-router-dom";
+import { Link, useNavigate, useParams, useRouteError, useSearchParams } from "react-router-dom";
 import { z } from "zod";
-import { LoginInputSchema, NewPasswordSchema, ResetRequestInputSchema, type LoginInput } from "#shared/schemas/auth.ts";
+import { AcceptInvitationInputSchema, LoginInputSchema, ResetPasswordInputSchema, ResetRequestInputSchema, type LoginInput } from "#shared/schemas/auth.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { TextField } from "../../components/ui/field.tsx";
-import { Notice, Spinner } from "../../components/ui/sheet.tsx";
+import { Notice } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { applyFieldErrors, ROLE_LABEL } from "../../lib/format.ts";
+import type { RouteLoader } from "../../lib/loaders.ts";
 import { homeFor, invitationQueryOptions, useAcceptInvitation, useLogin, useRequestReset, useResetPassword } from "./api.ts";
 import { safeReturnAddress } from "./return-address.ts";
 
@@ -65,29 +66,36 @@ export function SignInPage() {
   );
 }
 
-const AcceptFormSchema = z
-  .object({ name: z.string().trim().min(1, "is required").max(200), password: NewPasswordSchema, confirm: z.string() })
-  .refine((v) => v.password === v.confirm, { path: ["confirm"], message: "does not match the password" });
+/** The server's own schema, with the password typed twice. */
+const AcceptFormSchema = AcceptInvitationInputSchema.extend({ confirm: z.string() }).refine((v) => v.password === v.confirm, { path: ["confirm"], message: "does not match the password" });
+
+/** Primes the invitation the link names: its address and role. */
+export const invitationLoader: RouteLoader = (qc) => async ({ params }) => {
+  await qc.ensureQueryData(invitationQueryOptions(params.token ?? ""));
+  return null;
+};
+
+/** The invitation route's error element: an unknown, used or expired invitation, in the page's own words. */
+export function InvitationError() {
+  const error = useRouteError();
+  return (
+    <AuthCard title="This invitation cannot be used">
+      <Notice tone="error">{error instanceof Error ? error.message : "This invitation cannot be opened."}</Notice>
+      <p className="mt-4 text-sm">
+        <Link to="/sign-in" className="text-accent underline underline-offset-4">
+          Go to sign-in
+        </Link>
+      </p>
+    </AuthCard>
+  );
+}
 
 export function AcceptInvitationPage() {
   const { token = "" } = useParams();
   const navigate = useNavigate();
-  const invitation = useQuery(invitationQueryOptions(token));
+  const invitation = useSuspenseQuery(invitationQueryOptions(token));
   const accept = useAcceptInvitation(token);
   const form = useForm<z.infer<typeof AcceptFormSchema>>({ resolver: zodResolver(AcceptFormSchema), defaultValues: { name: "", password: "", confirm: "" } });
-  if (invitation.isPending) return <Spinner label="Opening your invitation" />;
-  if (invitation.isError) {
-    return (
-      <AuthCard title="This invitation cannot be used">
-        <Notice tone="error">{invitation.error.message}</Notice>
-        <p className="mt-4 text-sm">
-          <Link to="/sign-in" className="text-accent underline underline-offset-4">
-            Go to sign-in
-          </Link>
-        </p>
-      </AuthCard>
-    );
-  }
   const onSubmit = form.handleSubmit(async ({ name, password }) => {
     try {
       const { user } = await accept.mutateAsync({ name, password });
@@ -138,7 +146,7 @@ export function ForgotPasswordPage() {
   );
 }
 
-const ResetFormSchema = z.object({ password: NewPasswordSchema, confirm: z.string() }).refine((v) => v.password === v.confirm, { path: ["confirm"], message: "does not match the password" });
+const ResetFormSchema = ResetPasswordInputSchema.extend({ confirm: z.string() }).refine((v) => v.password === v.confirm, { path: ["confirm"], message: "does not match the password" });
 
 export function ResetPasswordPage() {
   const { token = "" } = useParams();

@@ -1,5 +1,5 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { DigestPreview, DigestRunInput, DigestRunSummary, DigestTestInput, DigestUpcoming } from "#shared/schemas/digests.ts";
+import type { DigestPreview, DigestRunInput, DigestRunStarted, DigestRunSummary, DigestTestInput, DigestTestSent, DigestUpcoming } from "#shared/schemas/digests.ts";
 import type { SubscriberList } from "#shared/schemas/subscribers.ts";
 import { api, qs } from "../../lib/api-client.ts";
 import { projectListQueryOptions } from "../../lib/projects.ts";
@@ -23,9 +23,8 @@ export const digestRunsQueryOptions = (project: string) =>
     refetchInterval: (q) => (sending(q.state.data) ? 1000 : false),
   });
 
-export const useDigestProjects = () => useQuery(projectListQueryOptions(digestKeys.projects()));
-export const useDigestRuns = (project: string) => useQuery({ ...digestRunsQueryOptions(project), enabled: project !== "" });
-export const useUpcomingDigests = (project: string) => useQuery({ queryKey: digestKeys.upcoming(project), queryFn: () => api.get<DigestUpcoming[]>(`/api/digests/upcoming${qs({ project })}`), enabled: project !== "" });
+export const digestProjectsQueryOptions = () => projectListQueryOptions(digestKeys.projects());
+export const upcomingDigestsQueryOptions = (project: string) => queryOptions({ queryKey: digestKeys.upcoming(project), queryFn: () => api.get<DigestUpcoming[]>(`/api/digests/upcoming${qs({ project })}`) });
 export const useDigestRecipients = (project: string) =>
   useQuery({ queryKey: digestKeys.recipients(project), queryFn: () => api.get<SubscriberList>(`/api/subscribers${qs({ projectSlug: project, status: "confirmed" })}`), enabled: project !== "" });
 export const useDigestPreview = (subscriberId: number | null) =>
@@ -34,7 +33,7 @@ export const useDigestPreview = (subscriberId: number | null) =>
 export function useRunDigest() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: DigestRunInput) => api.post<{ id: number; status: string }>("/api/digests/runs", input),
+    mutationFn: (input: DigestRunInput) => api.post<DigestRunStarted>("/api/digests/runs", input),
     onSuccess: () => qc.invalidateQueries({ queryKey: digestKeys.all }),
   });
 }
@@ -47,4 +46,4 @@ export function usePauseResume() {
   });
 }
 
-export const useSendTest = () => useMutation({ mutationFn: (input: DigestTestInput) => api.post<{ messageId: string }>("/api/digests/test", input) });
+export const useSendTest = () => useMutation({ mutationFn: (input: DigestTestInput) => api.post<DigestTestSent>("/api/digests/test", input) });

@@ -1,10 +1,12 @@
-import { useState } from "react";
+import { useSuspenseQuery } from "@tanstack/react-query";
+import { useDeferredValue, useState } from "react";
 import { toast } from "sonner";
 import type { DigestRunSummary } from "#shared/schemas/digests.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
-import { useDigestPreview, useDigestProjects, useDigestRecipients, useDigestRuns, usePauseResume, useRunDigest, useSendTest, useUpcomingDigests } from "./api.ts";
+import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { digestProjectsQueryOptions, digestRunsQueryOptions, upcomingDigestsQueryOptions, useDigestPreview, useDigestRecipients, usePauseResume, useRunDigest, useSendTest } from "./api.ts";
 
 const FREQUENCY_WORD = { immediate: "As it happens", weekly: "Weekly", monthly: "Monthly" } as const;
 const STATUS_WORD = { queued: "Waiting", running: "Sending", done: "Finished", failed: "Stopped by an error", paused: "Paused" } as const;
@@ -110,14 +112,43 @@ function PreviewPanel({ project, timeZone }: { project: string; timeZone?: strin
   );
 }
 
+/** Primes the builds, and the first one's runs and upcoming runs, which the page opens on. */
+export const digestsLoader: RouteLoader = (qc) => () =>
+  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
+    const first = (await qc.ensureQueryData(digestProjectsQueryOptions()))[0]?.slug;
+    if (first) await Promise.all([qc.ensureQueryData(digestRunsQueryOptions(first)), qc.ensureQueryData(upcomingDigestsQueryOptions(first))]);
+  });
+
+/** The build's upcoming runs and the history of its runs. */
+function BuildRuns({ project, timeZone }: { project: string; timeZone?: string }) {
+  const upcoming = useSuspenseQuery(upcomingDigestsQueryOptions(project)).data;
+  const runs = useSuspenseQuery(digestRunsQueryOptions(project)).data;
+  return (
+    <>
+      <Sheet label="Next" title="Upcoming runs">
+        <ul className="flex flex-col gap-1">
+          {upcoming.map((u) => (
+            <li key={`${u.project.slug}-${u.frequency}`}>
+              <strong>{FREQUENCY_WORD[u.frequency]}</strong>: {when(u.at, u.project.timeZone)} ({u.project.timeZone}), covering {day(u.windowStart, u.project.timeZone)} – {lastDay(u.windowEnd, u.project.timeZone)}, to {u.recipients} {u.recipients === 1 ? "subscriber" : "subscribers"}
+            </li>
+          ))}
+        </ul>
+      </Sheet>
+      <Sheet label="History" title="Runs">
+        <RunsTable runs={runs} timeZone={timeZone} />
+      </Sheet>
+    </>
+  );
+}
+
 /** The site office's Digests page: upcoming runs, history, a subscriber's preview, a test, run now, pause and resume. */
 export function DigestsPage() {
-  const projects = useDigestProjects();
+  const projects = useSuspenseQuery(digestProjectsQueryOptions()).data;
   const [picked, setPicked] = useState("");
-  const project = picked || projects.data?.[0]?.slug || "";
-  const timeZone = projects.data?.find((p) => p.slug === project)?.timeZone;
-  const runs = useDigestRuns(project);
-  const upcoming = useUpcomingDigests(project);
+  const project = picked || projects[0]?.slug || "";
+  // Another build's runs appear once they are here; until then the last ones stay.
+  const shown = useDeferredValue(project);
+  const timeZone = projects.find((p) => p.slug === shown)?.timeZone;
   const runNow = useRunDigest();
   const test = useSendTest();
   const start = (frequency: "weekly" | "monthly") =>
@@ -153,28 +184,17 @@ export function DigestsPage() {
         }
       />
       <div className="flex flex-col gap-6">
-        {projects.data && projects.data.length > 1 ? <SelectField label="Build" value={project} onChange={(e) => setPicked(e.target.value)} options={projects.data.map((p) => ({ value: p.slug, label: p.name }))} /> : null}
-        <Sheet label="Next" title="Upcoming runs">
-          {upcoming.isPending ? (
-            <Spinner />
-          ) : upcoming.isError ? (
-            <Notice tone="error">{upcoming.error.message}</Notice>
-          ) : (
-            <ul className="flex flex-col gap-1">
-              {upcoming.data.map((u) => (
-                <li key={`${u.project.slug}-${u.frequency}`}>
-                  <strong>{FREQUENCY_WORD[u.frequency]}</strong>: {when(u.at, u.project.timeZone)} ({u.project.timeZone}), covering {day(u.windowStart, u.project.timeZone)} – {lastDay(u.windowEnd, u.project.timeZone)}, to {u.recipients} {u.recipients === 1 ? "subscriber" : "subscribers"}
-                </li>
-              ))}
-            </ul>
-          )}
-        </Sheet>
-        <Sheet label="History" title="Runs">
-          {runs.isPending ? <Spinner /> : runs.isError ? <Notice tone="error">{runs.error.message}</Notice> : <RunsTable runs={runs.data} timeZone={timeZone} />}
-        </Sheet>
-        <Sheet label="Preview" title="What a subscriber would get now">
-          {project ? <PreviewPanel project={project} timeZone={timeZone} /> : <Spinner />}
-        </Sheet>
+        {projects.length > 1 ? <SelectField label="Build" value={project} onChange={(e) => setPicked(e.target.value)} options={projects.map((p) => ({ value: p.slug, label: p.name }))} /> : null}
+        {shown ? (
+          <>
+            <BuildRuns project={shown} timeZone={timeZone} />
+            <Sheet label="Preview" title="What a subscriber would get now">
+              <PreviewPanel project={shown} timeZone={timeZone} />
+            </Sheet>
+          </>
+        ) : (
+          <Notice>There is no project in this site office yet.</Notice>
+        )}
       </div>
     </>
   );

@@ -1,4 +1,4 @@
-import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { queryOptions, useMutation, useQueryClient } from "@tanstack/react-query";
 import type { EnquiryAccepted, EnquiryInput, EnquiryListQuery, EnquiryOwner, EnquiryPatch, EnquiryRow } from "#shared/schemas/enquiries.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { api, qs } from "../../lib/api-client.ts";
@@ -16,11 +16,6 @@ export const enquiryProjectQueryOptions = (slug: string) => queryOptions({ query
 export const enquiriesQueryOptions = (f: EnquiryListQuery) => queryOptions({ queryKey: enquiryKeys.list(f), queryFn: () => api.get<EnquiryRow[]>(`/api/enquiries${qs(f)}`) });
 export const enquiryQueryOptions = (id: number) => queryOptions({ queryKey: enquiryKeys.detail(id), queryFn: () => api.get<EnquiryRow>(`/api/enquiries/${id}`) });
 export const enquiryOwnersQueryOptions = () => queryOptions({ queryKey: enquiryKeys.owners(), queryFn: () => api.get<EnquiryOwner[]>("/api/enquiries/owners"), staleTime: 5 * 60_000 });
-
-export const useEnquiryProject = (slug: string) => useQuery(enquiryProjectQueryOptions(slug));
-export const useEnquiries = (f: EnquiryListQuery) => useQuery(enquiriesQueryOptions(f));
-export const useEnquiry = (id: number | null) => useQuery({ ...enquiryQueryOptions(id ?? 0), enabled: id !== null });
-export const useEnquiryOwners = () => useQuery(enquiryOwnersQueryOptions());
 
 export function useSendEnquiry(slug: string) {
   return useMutation({ mutationFn: (input: EnquiryInput) => api.post<EnquiryAccepted>(`/api/projects/${slug}/enquiries`, input), meta: { quiet: true } });

@@ -1,32 +1,45 @@
+import { zodResolver } from "@hookform/resolvers/zod";
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
-import { useEffect, useMemo, useState } from "react";
-import { Link, useParams, useSearchParams } from "react-router-dom";
+import { useMemo, useState } from "react";
+import { useForm } from "react-hook-form";
+import { Link, useParams, useRouteError, useSearchParams } from "react-router-dom";
 import { toast } from "sonner";
-import { EnquiryStatusSchema, type EnquiryRow, type EnquiryStatus } from "#shared/schemas/enquiries.ts";
+import { z } from "zod";
+import { EnquiryPatchSchema, EnquiryStatusSchema, type EnquiryPatch, type EnquiryRow, type EnquiryStatus } from "#shared/schemas/enquiries.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { SelectField, TextAreaField } from "../../components/ui/field.tsx";
-import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
-import { formatDate, formatInstant } from "../../lib/format.ts";
-import { useEnquiries, useEnquiry, useEnquiryOwners, useEnquiryProject, useUpdateEnquiry } from "./api.ts";
+import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { ApiError } from "../../lib/api-client.ts";
+import { applyFieldErrors, formatDate, formatInstant } from "../../lib/format.ts";
+import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { enquiriesQueryOptions, enquiryOwnersQueryOptions, enquiryProjectQueryOptions, enquiryQueryOptions, useUpdateEnquiry } from "./api.ts";
 import { EnquiryForm } from "./components/enquiry-form.tsx";
 import { ENQUIRY_STATUS_LOOK, enquirySummary, KIND_WORD } from "./words.ts";
+
+/** Primes the project the enquiry is about. */
+export const enquireLoader: RouteLoader = (qc) => async ({ params }) => {
+  await qc.ensureQueryData(enquiryProjectQueryOptions(params.slug ?? ""));
+  return null;
+};
+
+/** The enquiry route's error element: the project the address names is not there. */
+export function EnquireError() {
+  const error = useRouteError();
+  return (
+    <div className="mx-auto max-w-3xl px-4 py-10">
+      <Notice tone="error" title="Project not found">
+        {error instanceof Error ? error.message : "This project cannot be opened."}
+      </Notice>
+    </div>
+  );
+}
 
 /** /projects/:slug/enquire — ask about capacity, ask for a visit, or ask a question. */
 export function EnquirePage() {
   const { slug = "" } = useParams();
-  const project = useEnquiryProject(slug);
-  if (project.isPending) return <Spinner />;
-  if (project.isError) {
-    return (
-      <div className="mx-auto max-w-3xl px-4 py-10">
-        <Notice tone="error" title="Project not found">
-          {project.error.message}
-        </Notice>
-      </div>
-    );
-  }
-  const p = project.data;
+  const p = useSuspenseQuery(enquiryProjectQueryOptions(slug)).data;
   return (
     <div className="mx-auto w-full max-w-3xl px-4 py-8 sm:py-12">
       <p className="label-caps">
@@ -55,22 +68,30 @@ function StatusMark({ status }: { status: EnquiryStatus }) {
   );
 }
 
+/** The team's fields of an enquiry, checked by the schema the server parses (`ownerId` is a select's text here). */
+const DetailFormSchema = z.strictObject({ status: EnquiryStatusSchema, ownerId: z.string(), notes: EnquiryPatchSchema.shape.notes.unwrap() });
+type DetailValues = z.infer<typeof DetailFormSchema>;
+
+const detailValuesOf = (e: EnquiryRow): DetailValues => ({ status: e.status, ownerId: e.owner ? String(e.owner.id) : "", notes: e.notes });
+
 function Detail({ id, onClose }: { id: number; onClose: () => void }) {
-  const enquiry = useEnquiry(id);
-  const owners = useEnquiryOwners();
+  const e = useSuspenseQuery(enquiryQueryOptions(id)).data;
+  const owners = useSuspenseQuery(enquiryOwnersQueryOptions()).data;
   const update = useUpdateEnquiry();
-  const [status, setStatus] = useState<EnquiryStatus>("new");
-  const [ownerId, setOwnerId] = useState<string>("");
-  const [notes, setNotes] = useState("");
-  useEffect(() => {
-    if (!enquiry.data) return;
-    setStatus(enquiry.data.status);
-    setOwnerId(enquiry.data.owner ? String(enquiry.data.owner.id) : "");
-    setNotes(enquiry.data.notes);
-  }, [enquiry.data]);
-  if (enquiry.isPending) return <Spinner />;
-  if (enquiry.isError) return <Notice tone="error">{enquiry.error.message}</Notice>;
-  const e = enquiry.data;
+  // A fresh copy from the server (after saving) becomes the form's values.
+  const form = useForm<DetailValues>({ resolver: zodResolver(DetailFormSchema), values: detailValuesOf(e) });
+  const onSubmit = form.handleSubmit((v) => {
+    const patch: EnquiryPatch = { status: v.status, ownerId: v.ownerId ? Number(v.ownerId) : null, notes: v.notes };
+    update.mutate(
+      { id: e.id, ...patch },
+      {
+        onSuccess: () => toast.success("Enquiry saved"),
+        onError: (err) => {
+          if (err instanceof ApiError && Object.keys(err.fields).length) applyFieldErrors(err.fields, form.setError);
+        },
+      },
+    );
+  });
   const facts: Array<[string, string]> = [
     ["Project", e.project.name],
     ["From", `${e.name}${e.organisation ? `, ${e.organisation}` : ""}`],
@@ -80,6 +101,7 @@ function Detail({ id, onClose }: { id: number; onClose: () => void }) {
   ];
   if (e.kind === "capacity") facts.push(["Racks", String(e.racks)], ["kW per rack", String(e.kwPerRack)], ["Needed by", e.neededBy ? formatDate(e.neededBy) : "—"]);
   if (e.kind === "visit") facts.push(["People", String(e.partySize)], ["Preferred dates", e.preferredDates.map((d) => formatDate(d)).join(", ")], ["Site rules", "Shown and accepted"]);
+  const errors = form.formState.errors;
   return (
     <Sheet
       label={`${KIND_WORD[e.kind]} enquiry`}
@@ -99,17 +121,11 @@ function Detail({ id, onClose }: { id: number; onClose: () => void }) {
         ))}
       </dl>
       {e.message ? <p className="mt-3 whitespace-pre-wrap border-l-2 border-rule pl-3 font-serif">{e.message}</p> : null}
-      <form
-        className="mt-4 grid gap-3 sm:grid-cols-2"
-        onSubmit={(ev) => {
-          ev.preventDefault();
-          update.mutate({ id: e.id, status, ownerId: ownerId ? Number(ownerId) : null, notes }, { onSuccess: () => toast.success("Enquiry saved") });
-        }}
-      >
-        <SelectField label="Status" value={status} onChange={(ev) => setStatus(ev.target.value as EnquiryStatus)} options={EnquiryStatusSchema.options.map((s) => ({ value: s, label: ENQUIRY_STATUS_LOOK[s].word }))} />
-        <SelectField label="Owner" value={ownerId} onChange={(ev) => setOwnerId(ev.target.value)} options={[{ value: "", label: "Nobody yet" }, ...(owners.data ?? []).map((o) => ({ value: String(o.id), label: o.name }))]} />
+      <form className="mt-4 grid gap-3 sm:grid-cols-2" noValidate onSubmit={onSubmit}>
+        <SelectField label="Status" error={errors.status?.message} options={EnquiryStatusSchema.options.map((s) => ({ value: s, label: ENQUIRY_STATUS_LOOK[s].word }))} {...form.register("status")} />
+        <SelectField label="Owner" error={errors.ownerId?.message} options={[{ value: "", label: "Nobody yet" }, ...owners.map((o) => ({ value: String(o.id), label: o.name }))]} {...form.register("ownerId")} />
         <div className="sm:col-span-2">
-          <TextAreaField label="Notes" rows={4} value={notes} onChange={(ev) => setNotes(ev.target.value)} hint="For the team only; the enquirer never sees them." />
+          <TextAreaField label="Notes" rows={4} error={errors.notes?.message} hint="For the team only; the enquirer never sees them." {...form.register("notes")} />
         </div>
         <div>
           <Button type="submit" variant="primary" busy={update.isPending}>
@@ -123,12 +139,25 @@ function Detail({ id, onClose }: { id: number; onClose: () => void }) {
 
 const col = createColumnHelper<EnquiryRow>();
 
+/** The list's status filter, and the enquiry opened beside it, as the address carries them. */
+function viewOf(params: URLSearchParams): { status: EnquiryStatus | ""; open: number | null } {
+  return { status: (params.get("status") ?? "") as EnquiryStatus | "", open: params.get("open") ? Number(params.get("open")) : null };
+}
+
+export const enquiriesLoader: RouteLoader = (qc) => ({ request }) =>
+  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
+    const { status, open } = viewOf(new URL(request.url).searchParams);
+    await Promise.all([
+      qc.ensureQueryData(enquiriesQueryOptions({ status: status || undefined })),
+      open !== null ? Promise.all([qc.ensureQueryData(enquiryQueryOptions(open)), qc.ensureQueryData(enquiryOwnersQueryOptions())]) : null,
+    ]);
+  });
+
 /** /office/enquiries — marketing's list, with status, owner and notes. */
 export function EnquiriesPage() {
   const [params, setParams] = useSearchParams();
-  const status = (params.get("status") ?? "") as EnquiryStatus | "";
-  const open = params.get("open") ? Number(params.get("open")) : null;
-  const list = useEnquiries({ status: status || undefined });
+  const { status, open } = viewOf(params);
+  const list = useSuspenseQuery(enquiriesQueryOptions({ status: status || undefined })).data;
   const [sorting, setSorting] = useState<SortingState>([]);
   const setParam = (k: string, v: string | null) => {
     const next = new URLSearchParams(params);
@@ -164,7 +193,7 @@ export function EnquiriesPage() {
     ],
     [params],
   );
-  const table = useReactTable({ data: list.data ?? [], columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  const table = useReactTable({ data: list, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
   return (
     <>
       <PageHeader sheet="Site office · Enquiries" title="Enquiries" description="Capacity questions, visit requests and general questions from the public pages. Each new one is e-mailed to marketing." />
@@ -173,7 +202,7 @@ export function EnquiriesPage() {
           <SelectField label="Status" value={status} onChange={(e) => setParam("status", e.target.value || null)} options={[{ value: "", label: "Every status" }, ...EnquiryStatusSchema.options.map((s) => ({ value: s, label: ENQUIRY_STATUS_LOOK[s].word }))]} />
         </div>
         {open !== null ? <Detail key={open} id={open} onClose={() => setParam("open", null)} /> : null}
-        {list.isPending ? <Spinner /> : list.isError ? <Notice tone="error">{list.error.message}</Notice> : <DataTable table={table} caption="Enquiries, newest first" empty="No enquiries with this status." />}
+        <DataTable table={table} caption="Enquiries, newest first" empty="No enquiries with this status." />
       </div>
     </>
   );

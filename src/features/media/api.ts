@@ -2,6 +2,7 @@ import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient }
 import type { User } from "#shared/schemas/auth.ts";
 import type {
   BulkTagInput,
+  BulkTagResult,
   MediaItem,
   MediaListResponse,
   MediaPatchInput,
@@ -90,10 +91,6 @@ export const mediaItemQueryOptions = (id: number) =>
     refetchInterval: (query) => (query.state.data?.status === "processing" ? 1_000 : false),
   });
 
-export const useMediaProjects = () => useQuery(mediaProjectsQueryOptions());
-export const useVocabulary = (slug: string) => useQuery(vocabularyQueryOptions(slug));
-export const useMediaList = (slug: string, f: LibraryFilters) => useQuery(mediaListQueryOptions(slug, f));
-export const useReviewQueue = (slug: string) => useQuery(reviewQueueQueryOptions(slug));
 export const useMediaItem = (id: number) => useQuery(mediaItemQueryOptions(id));
 
 /** Leads and administrators decide sensitivity; the server checks it too. */
@@ -122,7 +119,7 @@ export function useUpdateMedia(slug: string) {
 export function useBulkTag(slug: string) {
   const invalidate = useInvalidateProject(slug);
   return useMutation({
-    mutationFn: (input: BulkTagInput) => api.post<{ updated: number; items: MediaItem[] }>("/api/media/bulk-tags", input),
+    mutationFn: (input: BulkTagInput) => api.post<BulkTagResult>("/api/media/bulk-tags", input),
     onSuccess: (_r, input) => invalidate(input.ids),
   });
 }

@@ -1,12 +1,15 @@
-import { useMemo, useState } from "react";
+import { useSuspenseQuery } from "@tanstack/react-query";
+import { useState } from "react";
 import { Link, useSearchParams } from "react-router-dom";
-import { SensitivitySchema } from "#shared/schemas/media.ts";
+import { SensitivitySchema, type MediaItem } from "#shared/schemas/media.ts";
 import { SystemSchema } from "#shared/schemas/programme.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
-import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
-import { useMe } from "../../lib/session.ts";
-import { canReview, LIBRARY_PAGE_SIZE, useMediaList, useMediaProjects, useReviewQueue, useVocabulary, type LibraryFilters } from "./api.ts";
+import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { officeProjectSlug } from "../../lib/projects.ts";
+import { meQueryOptions } from "../../lib/session.ts";
+import { canReview, LIBRARY_PAGE_SIZE, mediaListQueryOptions, mediaProjectsQueryOptions, reviewQueueQueryOptions, vocabularyQueryOptions, type LibraryFilters } from "./api.ts";
 import { BulkTagBar } from "./components/bulk-tag-bar.tsx";
 import { EditPanel } from "./components/edit-panel.tsx";
 import { LibraryFiltersForm } from "./components/library-filters.tsx";
@@ -17,11 +20,11 @@ import { UploadPanel } from "./components/upload-panel.tsx";
 /** The project the library shows: `?project=` or the first one (the server's default too). */
 function useProjectSlug() {
   const [params, setParams] = useSearchParams();
-  const projects = useMediaProjects();
-  const slug = params.get("project") ?? projects.data?.[0]?.slug ?? "";
-  const choices = (projects.data ?? []).map((p) => ({ value: p.slug, label: p.name }));
+  const projects = useSuspenseQuery(mediaProjectsQueryOptions()).data;
+  const slug = params.get("project") ?? projects[0]?.slug ?? "";
+  const choices = projects.map((p) => ({ value: p.slug, label: p.name }));
   const setSlug = (s: string) => setParams(new URLSearchParams({ project: s }));
-  return { slug, pending: projects.isPending, choices, setSlug, params, setParams };
+  return { slug, choices, setSlug, params, setParams };
 }
 
 const bool = (v: string | null) => (v === "true" ? true : undefined);
@@ -54,17 +57,31 @@ function toParams(slug: string, f: LibraryFilters): URLSearchParams {
   return p;
 }
 
+/** Primes the project's words for the pickers and the page of photos the address asks for. */
+export const mediaLibraryLoader: RouteLoader = (qc) => ({ request }) =>
+  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
+    const search = new URL(request.url).searchParams;
+    const slug = await officeProjectSlug(qc, mediaProjectsQueryOptions(), search);
+    if (slug) await Promise.all([qc.ensureQueryData(vocabularyQueryOptions(slug)), qc.ensureQueryData(mediaListQueryOptions(slug, filtersFrom(search)))]);
+  });
+
+/** Primes the review queue for the leads and administrators who decide on it. */
+export const mediaReviewLoader: RouteLoader = (qc) => ({ request }) =>
+  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
+    const slug = await officeProjectSlug(qc, mediaProjectsQueryOptions(), new URL(request.url).searchParams);
+    if (slug && canReview(await qc.ensureQueryData(meQueryOptions()))) await qc.ensureQueryData(reviewQueueQueryOptions(slug));
+  });
+
 function Library({ slug, filters, setFilters }: { slug: string; filters: LibraryFilters; setFilters: (f: LibraryFilters) => void }) {
-  const vocabulary = useVocabulary(slug);
-  const list = useMediaList(slug, filters);
+  const vocabulary = useSuspenseQuery(vocabularyQueryOptions(slug)).data;
+  const list = useSuspenseQuery(mediaListQueryOptions(slug, filters)).data;
   const [selected, setSelected] = useState<Set<number>>(new Set());
-  const [open, setOpen] = useState<number | null>(null);
-  const items = useMemo(() => list.data?.items ?? [], [list.data]);
-  const pages = list.data ? Math.max(1, Math.ceil(list.data.total / LIBRARY_PAGE_SIZE)) : 1;
+  // The photo being edited, as the grid showed it when it was opened.
+  const [openItem, setOpen] = useState<MediaItem | null>(null);
+  const items = list.items;
+  const pages = Math.max(1, Math.ceil(list.total / LIBRARY_PAGE_SIZE));
   const page = filters.page ?? 1;
 
-  if (vocabulary.isPending) return <Spinner label="Loading the library" />;
-  if (vocabulary.isError) return <Notice tone="error">{vocabulary.error.message}</Notice>;
   const toggle = (id: number) =>
     setSelected((s) => {
       const next = new Set(s);
@@ -77,22 +94,20 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
   return (
     <div className="flex flex-col gap-6">
       <Sheet label="Upload" title="Add photos">
-        <UploadPanel slug={slug} vocabulary={vocabulary.data} />
+        <UploadPanel slug={slug} vocabulary={vocabulary} />
       </Sheet>
       <Sheet label="Library" title="Find photos">
-        <LibraryFiltersForm filters={filters} onChange={setFilters} vocabulary={vocabulary.data} />
+        <LibraryFiltersForm filters={filters} onChange={setFilters} vocabulary={vocabulary} />
       </Sheet>
-      {selected.size > 0 ? <BulkTagBar slug={slug} ids={[...selected]} vocabulary={vocabulary.data} onDone={() => undefined} onClear={() => setSelected(new Set())} /> : null}
-      <div className={`grid gap-4 ${open ? "lg:grid-cols-[minmax(0,1fr)_26rem]" : ""}`}>
+      {selected.size > 0 ? <BulkTagBar slug={slug} ids={[...selected]} vocabulary={vocabulary} onDone={() => undefined} onClear={() => setSelected(new Set())} /> : null}
+      <div className={`grid gap-4 ${openItem ? "lg:grid-cols-[minmax(0,1fr)_26rem]" : ""}`}>
         <section aria-labelledby="media-grid-h" className="min-w-0">
           <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
             <h2 id="media-grid-h" className="text-lg font-semibold">
               Photos{" "}
-              {list.data ? (
-                <span className="tabular text-sm font-normal text-ink-soft">
-                  ({list.data.total} {list.data.total === 1 ? "photo" : "photos"})
-                </span>
-              ) : null}
+              <span className="tabular text-sm font-normal text-ink-soft">
+                ({list.total} {list.total === 1 ? "photo" : "photos"})
+              </span>
             </h2>
             {items.length > 0 ? (
               <Button size="sm" variant="ghost" onClick={() => setSelected((s) => (allOnPage ? new Set([...s].filter((id) => !items.some((i) => i.id === id))) : new Set([...s, ...items.map((i) => i.id)])))}>
@@ -100,14 +115,10 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
               </Button>
             ) : null}
           </div>
-          {list.isPending ? (
-            <Spinner label="Loading photos" />
-          ) : list.isError ? (
-            <Notice tone="error">{list.error.message}</Notice>
-          ) : items.length === 0 ? (
+          {items.length === 0 ? (
             <Notice>No photos match. Upload some, or change the filters.</Notice>
           ) : (
-            <MediaGrid items={items} selected={selected} onToggle={toggle} onOpen={setOpen} />
+            <MediaGrid items={items} selected={selected} onToggle={toggle} onOpen={(id) => setOpen(items.find((i) => i.id === id) ?? null)} />
           )}
           {pages > 1 ? (
             <nav aria-label="Pages" className="mt-4 flex items-center justify-between gap-2">
@@ -123,7 +134,7 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
             </nav>
           ) : null}
         </section>
-        {open ? <EditPanel key={open} id={open} slug={slug} vocabulary={vocabulary.data} onClose={() => setOpen(null)} /> : null}
+        {openItem ? <EditPanel key={openItem.id} shown={openItem} slug={slug} vocabulary={vocabulary} onClose={() => setOpen(null)} /> : null}
       </div>
     </div>
   );
@@ -131,8 +142,8 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
 
 /** Site office › Media: upload, find, tag and edit the project's photos. */
 export function MediaLibraryPage() {
-  const { slug, pending, choices, setSlug, params, setParams } = useProjectSlug();
-  const me = useMe();
+  const { slug, choices, setSlug, params, setParams } = useProjectSlug();
+  const me = useSuspenseQuery(meQueryOptions()).data;
   const filters = filtersFrom(params);
   return (
     <>
@@ -141,7 +152,7 @@ export function MediaLibraryPage() {
         title="Media library"
         description="Site photos for updates and photo stories. Location data is stripped from everything published; a project lead clears each photo before it can appear outside the site office."
         actions={
-          canReview(me.data) && slug ? (
+          canReview(me) && slug ? (
             <Link to={`/office/media/review?project=${slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
               Review queue
             </Link>
@@ -149,22 +160,20 @@ export function MediaLibraryPage() {
         }
       />
       <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="mb-4 w-full sm:w-72" />
-      {pending ? <Spinner /> : slug ? <Library key={slug} slug={slug} filters={filters} setFilters={(f) => setParams(toParams(slug, f))} /> : <Notice>There is no project in this site office yet.</Notice>}
+      {slug ? <Library key={slug} slug={slug} filters={filters} setFilters={(f) => setParams(toParams(slug, f))} /> : <Notice>There is no project in this site office yet.</Notice>}
     </>
   );
 }
 
 function Queue({ slug }: { slug: string }) {
-  const queue = useReviewQueue(slug);
-  if (queue.isPending) return <Spinner label="Loading the review queue" />;
-  if (queue.isError) return <Notice tone="error">{queue.error.message}</Notice>;
-  return <ReviewQueue items={queue.data} slug={slug} />;
+  const queue = useSuspenseQuery(reviewQueueQueryOptions(slug)).data;
+  return <ReviewQueue items={queue} slug={slug} />;
 }
 
 /** Site office › Media › Review: leads clear or restrict unreviewed photos. */
 export function MediaReviewPage() {
-  const { slug, pending, choices, setSlug } = useProjectSlug();
-  const me = useMe();
+  const { slug, choices, setSlug } = useProjectSlug();
+  const me = useSuspenseQuery(meQueryOptions()).data;
   return (
     <>
       <PageHeader
@@ -178,9 +187,7 @@ export function MediaReviewPage() {
         }
       />
       <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="mb-4 w-full sm:w-72" />
-      {me.isPending || pending ? (
-        <Spinner />
-      ) : !canReview(me.data) ? (
+      {!canReview(me) ? (
         <Notice>The review queue is for project leads and administrators, who decide what may be published.</Notice>
       ) : slug ? (
         <Queue key={slug} slug={slug} />

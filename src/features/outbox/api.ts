@@ -1,4 +1,4 @@
-import { queryOptions, useQuery } from "@tanstack/react-query";
+import { queryOptions } from "@tanstack/react-query";
 import type { OutboxMessage } from "#shared/schemas/outbox.ts";
 import { api, qs } from "../../lib/api-client.ts";
 
@@ -14,5 +14,3 @@ export const outboxListQueryOptions = (f: { to?: string } = {}) =>
 export const outboxMessageQueryOptions = (id: number) =>
   queryOptions({ queryKey: outboxKeys.detail(id), queryFn: () => api.get<OutboxMessage>(`/api/outbox/${id}`) });
 
-export const useOutbox = (f: { to?: string }, enabled = true) => useQuery({ ...outboxListQueryOptions(f), enabled });
-export const useOutboxMessage = (id: number, enabled = true) => useQuery({ ...outboxMessageQueryOptions(id), enabled });

@@ -1,3 +1,4 @@
+import { useQueryClient, useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
 import { useState } from "react";
 import { Link, useParams, useSearchParams } from "react-router-dom";
@@ -5,11 +6,12 @@ import type { OutboxMessage } from "#shared/schemas/outbox.ts";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { Button } from "../../components/ui/button.tsx";
 import { TextField } from "../../components/ui/field.tsx";
-import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { formatInstant } from "../../lib/format.ts";
-import { useMe } from "../../lib/session.ts";
-import { useOutbox, useOutboxMessage } from "./api.ts";
+import { primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { meQueryOptions } from "../../lib/session.ts";
+import { outboxListQueryOptions, outboxMessageQueryOptions } from "./api.ts";
 
 /**
  * The outbox holds other people's sign-in links (resets, invitations), so only administrators
@@ -28,11 +30,36 @@ function OutboxRefusal() {
 
 const refused = (e: unknown) => e instanceof ApiError && (e.status === 403 || e.status === 401);
 
-/** True once the signed-in user is known to be an administrator; null while asking. */
-function useIsAdmin(): boolean | null {
-  const me = useMe();
-  if (me.isPending) return null;
-  return me.data?.role === "admin";
+const toFilter = (params: URLSearchParams) => ({ to: params.get("to") || undefined });
+
+/** Only an administrator's page asks for messages; anyone else is refused without a request. */
+const ADMIN = ["admin"] as const;
+
+/**
+ * Asks for the messages. When the server refuses them (an administrator whose session ended or
+ * whose role changed meanwhile), the refusal stays in the cache and the page shows it.
+ */
+async function primeUnlessRefused(prime: () => Promise<unknown>): Promise<void> {
+  try {
+    await prime();
+  } catch (e) {
+    if (!refused(e)) throw e;
+  }
+}
+
+export const outboxLoader: RouteLoader = (qc) => ({ request }) =>
+  primeWhenAllowed(qc, ADMIN, () => primeUnlessRefused(() => qc.ensureQueryData(outboxListQueryOptions(toFilter(new URL(request.url).searchParams)))));
+
+export const outboxMessageLoader: RouteLoader = (qc) => ({ params }) => primeWhenAllowed(qc, ADMIN, () => primeUnlessRefused(() => qc.ensureQueryData(outboxMessageQueryOptions(Number(params.id)))));
+
+/** Whether the signed-in user is an administrator (the area's loader primed who it is). */
+function useIsAdmin(): boolean {
+  return useSuspenseQuery(meQueryOptions()).data?.role === "admin";
+}
+
+/** Whether the server refused this query when the loader asked (nothing to suspend on then). */
+function useRefusedByServer(queryKey: readonly unknown[]): boolean {
+  return refused(useQueryClient().getQueryState(queryKey)?.error);
 }
 
 const col = createColumnHelper<OutboxMessage>();
@@ -57,13 +84,19 @@ function OutboxTable({ rows }: { rows: OutboxMessage[] }) {
 }
 
 export function OutboxPage() {
-  const [params, setParams] = useSearchParams();
-  const to = params.get("to") ?? "";
-  const [draft, setDraft] = useState(to);
+  const [params] = useSearchParams();
+  const filter = toFilter(params);
   const isAdmin = useIsAdmin();
-  const list = useOutbox({ to: to || undefined }, isAdmin === true);
-  if (isAdmin === null) return <Spinner />;
-  if (!isAdmin || (list.isError && refused(list.error))) return <OutboxRefusal />;
+  const refusedByServer = useRefusedByServer(outboxListQueryOptions(filter).queryKey);
+  if (!isAdmin || refusedByServer) return <OutboxRefusal />;
+  return <OutboxList to={filter.to ?? ""} />;
+}
+
+function OutboxList({ to }: { to: string }) {
+  const [, setParams] = useSearchParams();
+  const [draft, setDraft] = useState(to);
+  const list = useSuspenseQuery(outboxListQueryOptions({ to: to || undefined }));
+  if (list.isError && refused(list.error)) return <OutboxRefusal />;
   return (
     <>
       <PageHeader
@@ -88,15 +121,7 @@ export function OutboxPage() {
         </div>
         <Button type="submit">Filter</Button>
       </form>
-      {list.isPending ? (
-        <Spinner />
-      ) : list.isError ? (
-        <Notice tone="error">{list.error.message}</Notice>
-      ) : list.data.length === 0 ? (
-        <Notice>No messages{to ? ` to ${to}` : ""} yet.</Notice>
-      ) : (
-        <OutboxTable rows={list.data} />
-      )}
+      {list.data.length === 0 ? <Notice>No messages{to ? ` to ${to}` : ""} yet.</Notice> : <OutboxTable rows={list.data} />}
     </>
   );
 }
@@ -106,13 +131,14 @@ type View = "html" | "text" | "headers";
 export function OutboxMessagePage() {
   const id = Number(useParams().id);
   const isAdmin = useIsAdmin();
-  const msg = useOutboxMessage(id, isAdmin === true);
+  const refusedByServer = useRefusedByServer(outboxMessageQueryOptions(id).queryKey);
+  if (!isAdmin || refusedByServer) return <OutboxRefusal />;
+  return <OutboxMessageView id={id} />;
+}
+
+function OutboxMessageView({ id }: { id: number }) {
+  const m = useSuspenseQuery(outboxMessageQueryOptions(id)).data;
   const [view, setView] = useState<View>("html");
-  if (isAdmin === null) return <Spinner />;
-  if (!isAdmin || (msg.isError && refused(msg.error))) return <OutboxRefusal />;
-  if (msg.isPending) return <Spinner />;
-  if (msg.isError) return <Notice tone="error">{msg.error.message}</Notice>;
-  const m = msg.data;
   return (
     <>
       <PageHeader sheet={`Site office · Outbox · message ${m.id}`} title={m.subject || "(no subject)"} description={`From ${m.from} to ${m.to} · ${formatInstant(m.receivedAt)}`} />

@@ -1,7 +1,8 @@
 import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaItem, MediaPatchInput } from "#shared/schemas/media.ts";
-import type { PostCreateInput, PostDetail, PostPatchInput, PostRevisionSummary, PostStatus, PostSummary } from "#shared/schemas/posts.ts";
+import type { PostCreateInput, PostDetail, PostPatchInput, PostSummary } from "#shared/schemas/posts.ts";
+import type { PostStatus, RevisionSummary as PostRevisionSummary } from "#shared/schemas/publishing.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { api, getPage, qs } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions, type PickerFilters } from "../../lib/media.ts";

@@ -3,7 +3,8 @@ import { getCoreRowModel, useReactTable, type ColumnDef } from "@tanstack/react-
 import { useEffect, useMemo, useState } from "react";
 import { Link, useSearchParams } from "react-router-dom";
 import type { Audience } from "#shared/schemas/common.ts";
-import { POSTS_PAGE_SIZE, PostStatusSchema, type PostStatus, type PostSummary } from "#shared/schemas/posts.ts";
+import { POSTS_PAGE_SIZE, type PostSummary } from "#shared/schemas/posts.ts";
+import { PostStatusSchema, type PostStatus } from "#shared/schemas/publishing.ts";
 import { AudienceMark } from "../../components/ui/audience-mark.tsx";
 import { Button, PrimaryLink } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
@@ -15,7 +16,7 @@ import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { publishingWhen } from "../../lib/publishing.ts";
-import { postListQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, usePostList, usePostsProject, type PostListFilters } from "./api.ts";
+import { postListQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, type PostListFilters } from "./api.ts";
 
 /** The project the site office is working on: `?project=` or the first one. */
 export function useOfficeProject() {
@@ -47,14 +48,26 @@ const AUDIENCE_CHOICES = [
 
 /** `/office/updates`: every update of the project by state, with filters. */
 export function PostsPage() {
-  const { slug, choices, setSlug } = useOfficeProject();
+  const office = useOfficeProject();
+  if (!office.slug) {
+    return (
+      <>
+        <PageHeader sheet="Site office · Updates" title="Updates" description="Write what changed on site; a lead reviews and publishes it. Every save keeps a revision." />
+        <Notice>There is no project in this site office yet.</Notice>
+      </>
+    );
+  }
+  return <ProjectPosts {...office} />;
+}
+
+function ProjectPosts({ slug, choices, setSlug }: ReturnType<typeof useOfficeProject>) {
   const [params, setParams] = useSearchParams();
   const { status, audience, q, page = 1 } = filtersOf(params);
   const [draftQ, setDraftQ] = useState(q ?? "");
   useEffect(() => setDraftQ(q ?? ""), [q]);
-  const project = usePostsProject(slug);
-  const zone = project.data?.timeZone ?? "Europe/London";
-  const list = usePostList(slug, { status, audience, q, page });
+  const project = useSuspenseQuery(postsProjectQueryOptions(slug)).data;
+  const zone = project.timeZone;
+  const list = useSuspenseQuery(postListQueryOptions(slug, { status, audience, q, page })).data;
 
   const set = (next: Record<string, string | undefined>) =>
     setParams((prev) => {
@@ -86,8 +99,8 @@ export function PostsPage() {
     ],
     [zone],
   );
-  const table = useReactTable({ data: list.data?.items ?? [], columns, getCoreRowModel: getCoreRowModel() });
-  const total = list.data?.total ?? 0;
+  const table = useReactTable({ data: list.items, columns, getCoreRowModel: getCoreRowModel() });
+  const total = list.total;
   const pages = Math.max(1, Math.ceil(total / POSTS_PAGE_SIZE));
   const tabs: Array<{ value: PostStatus | undefined; label: string }> = [{ value: undefined, label: "All" }, ...PostStatusSchema.options.map((s) => ({ value: s, label: PUBLISH_STATUS_WORD[s] }))];
 
@@ -130,7 +143,7 @@ export function PostsPage() {
           <SelectField label="Audience" value={audience ?? ""} onChange={(e) => set({ audience: e.target.value || undefined })} options={AUDIENCE_CHOICES} />
         </div>
       </div>
-      {list.isError ? <Notice tone="error">{list.error.message}</Notice> : <DataTable table={table} caption="Updates" empty={list.isPending ? "Loading…" : "No update matches."} />}
+      <DataTable table={table} caption="Updates" empty="No update matches." />
       {pages > 1 ? (
         <Pager page={page} pages={pages} onPage={(n) => set({ page: String(n) })} previous="← Newer" next="Older →" summary={` · ${total} updates`} />
       ) : (

@@ -1,42 +1,29 @@
 import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { z } from "zod";
 import type { User } from "#shared/schemas/auth.ts";
-import type { Audience } from "#shared/schemas/common.ts";
 import type {
   BaselineInput,
   BaselineVersion,
   CsvImportResult,
   CurveResponse,
   Milestone,
+  MilestoneListQuerySchema,
   MilestoneMovesRow,
   MilestoneEventRow,
   MilestonePatchInput,
   MilestoneRemovalInput,
+  ProgrammeHealthResponse,
   ShiftInput,
-  System,
 } from "#shared/schemas/programme.ts";
-import type { MilestoneStatus, ProgrammeHealth } from "#shared/domain/programme-health.ts";
 import type { DrivingLink } from "#shared/domain/programme-dependencies.ts";
 import { api, ApiError, qs } from "../../lib/api-client.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
 
-export interface MilestoneFilters {
-  audience?: Audience;
-  system?: System;
-  area?: string;
-  status?: MilestoneStatus;
-  /** Milestones removed from the programme: hidden unless asked for. */
-  removed?: "exclude" | "include" | "only";
-}
+/** The list's filters, as the milestones route reads its query (the status date aside). */
+export type MilestoneFilters = Omit<z.input<typeof MilestoneListQuerySchema>, "at">;
 
-/** GET /api/projects/:slug/health: the domain figures over what the caller may see. */
-export interface HealthResponse extends Omit<ProgrammeHealth, "milestones"> {
-  milestones?: ProgrammeHealth["milestones"];
-  drivers: { milestoneId: number; finish: string; chain: DrivingLink[] } | null;
-  timeZone: string;
-}
-
-export type { CurveResponse };
-export type MilestoneMoves = MilestoneMovesRow;
+/** The milestones removed from the programme, on their own. */
+export const REMOVED_ONLY: MilestoneFilters = { removed: "only" };
 
 /**
  * Keys: programme → project(slug) → kind → params, and programme → milestone(id) → kind.
@@ -71,7 +58,7 @@ export const milestonesQueryOptions = (slug: string, f: MilestoneFilters = {}) =
 export const healthQueryOptions = (slug: string, at?: string) =>
   queryOptions({
     queryKey: programmeKeys.health(slug, at),
-    queryFn: () => api.get<HealthResponse>(`/api/projects/${slug}/health${qs({ at })}`),
+    queryFn: () => api.get<ProgrammeHealthResponse>(`/api/projects/${slug}/health${qs({ at })}`),
     enabled: slug !== "",
   });
 
@@ -85,7 +72,7 @@ export const curveQueryOptions = (slug: string, range: { from: string; to: strin
 export const movesQueryOptions = (slug: string, range: { from: string; to: string }) =>
   queryOptions({
     queryKey: programmeKeys.moves(slug, range),
-    queryFn: () => api.get<MilestoneMoves[]>(`/api/projects/${slug}/moves${qs(range)}`),
+    queryFn: () => api.get<MilestoneMovesRow[]>(`/api/projects/${slug}/moves${qs(range)}`),
     enabled: slug !== "",
   });
 
@@ -98,13 +85,10 @@ export const eventsQueryOptions = (id: number) =>
 export const driversQueryOptions = (id: number) =>
   queryOptions({ queryKey: programmeKeys.drivers(id), queryFn: () => api.get<DrivingLink[]>(`/api/milestones/${id}/drivers`) });
 
-export const useProgrammeProjects = () => useQuery(programmeProjectsQueryOptions());
-export const useProgrammeProject = (slug: string) => useQuery(programmeProjectQueryOptions(slug));
 export const useMilestones = (slug: string, f: MilestoneFilters = {}) => useQuery(milestonesQueryOptions(slug, f));
 export const useHealth = (slug: string, at?: string) => useQuery(healthQueryOptions(slug, at));
 export const useCurve = (slug: string, range: { from: string; to: string }) => useQuery({ ...curveQueryOptions(slug, range), placeholderData: keepPreviousData });
 export const useMoves = (slug: string, range: { from: string; to: string }) => useQuery(movesQueryOptions(slug, range));
-export const useBaselines = (slug: string) => useQuery(baselinesQueryOptions(slug));
 export const useMilestoneEvents = (id: number) => useQuery(eventsQueryOptions(id));
 export const useMilestoneDrivers = (id: number) => useQuery(driversQueryOptions(id));
 

@@ -3,13 +3,16 @@
  * same pure function the server uses, over the loaded milestones before and after the
  * pending change, so the lead sees what a change does before saving it.
  */
-import type { Milestone, MilestonePatchInput } from "#shared/schemas/programme.ts";
+import { milestoneInputOf, type Milestone, type MilestonePatchInput } from "#shared/schemas/programme.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { addWorkingDays } from "#shared/domain/calendar.ts";
 import { computeProgrammeHealth, type MilestoneInput, type MilestoneStatus, type ProgrammeHealth, type ProgrammeSettings } from "#shared/domain/programme-health.ts";
 
+/** The fields the table edits in place, which a pending change may hold (the rest are edited in the milestone's own form). */
+const DRAFT_FIELDS = ["percentComplete", "forecastFinish", "actualFinish", "audience", "weight", "plannedStart"] as const satisfies ReadonlyArray<keyof MilestonePatchInput>;
+
 /** The editable fields of a milestone that a pending change may hold. */
-export type MilestoneDraft = Partial<Pick<MilestonePatchInput, "percentComplete" | "forecastFinish" | "actualFinish" | "audience" | "weight" | "plannedStart">>;
+export type MilestoneDraft = Partial<Pick<MilestonePatchInput, (typeof DRAFT_FIELDS)[number]>>;
 
 /** Pending changes by milestone id; baseline finishes only by re-baselining. */
 export type Drafts = Record<number, MilestoneDraft & { baselineFinish?: string }>;
@@ -23,20 +26,8 @@ export function settingsOf(project: Pick<Project, "settings">): ProgrammeSetting
   };
 }
 
-export function toMilestoneInput(m: Milestone): MilestoneInput {
-  return {
-    id: m.id,
-    name: m.name,
-    weight: m.weight,
-    percentComplete: m.percentComplete,
-    plannedStart: m.plannedStart,
-    baselineFinish: m.baselineFinish,
-    forecastFinish: m.forecastFinish,
-    actualFinish: m.actualFinish,
-    budget: m.budget,
-    dependsOn: m.dependsOn,
-  };
-}
+/** A loaded milestone as the health computation's input: the same fields the server computes from. */
+export const toMilestoneInput = (m: Milestone): MilestoneInput => milestoneInputOf(m);
 
 /** The milestones with the drafts laid over them (fields left out of a draft stay as they are). */
 export function applyDrafts(milestones: readonly Milestone[], drafts: Drafts): MilestoneInput[] {
@@ -44,15 +35,10 @@ export function applyDrafts(milestones: readonly Milestone[], drafts: Drafts): M
     const base = toMilestoneInput(m);
     const d = drafts[m.id];
     if (!d) return base;
-    return {
-      ...base,
-      ...(d.percentComplete !== undefined ? { percentComplete: d.percentComplete } : {}),
-      ...(d.forecastFinish !== undefined ? { forecastFinish: d.forecastFinish } : {}),
-      ...(d.actualFinish !== undefined ? { actualFinish: d.actualFinish } : {}),
-      ...(d.weight !== undefined ? { weight: d.weight } : {}),
-      ...(d.plannedStart !== undefined ? { plannedStart: d.plannedStart } : {}),
-      ...(d.baselineFinish !== undefined ? { baselineFinish: d.baselineFinish } : {}),
-    };
+    // Every drafted field the computation reads (the audience changes no figure).
+    const laid: MilestoneInput = { ...base };
+    for (const [key, value] of Object.entries(d)) if (value !== undefined && key in base) (laid as unknown as Record<string, unknown>)[key] = value;
+    return laid;
   });
 }
 
@@ -112,12 +98,9 @@ export function rebaselineDrafts(milestones: readonly Milestone[]): Drafts {
 /** The fields of a draft that differ from the milestone, as a PATCH body with the version read. */
 export function patchOf(m: Milestone, draft: MilestoneDraft, note?: string): MilestonePatchInput {
   const patch: MilestonePatchInput = { version: m.version };
-  if (draft.percentComplete !== undefined && draft.percentComplete !== m.percentComplete) patch.percentComplete = draft.percentComplete;
-  if (draft.forecastFinish !== undefined && draft.forecastFinish !== m.forecastFinish) patch.forecastFinish = draft.forecastFinish;
-  if (draft.actualFinish !== undefined && draft.actualFinish !== m.actualFinish) patch.actualFinish = draft.actualFinish;
-  if (draft.audience !== undefined && draft.audience !== m.audience) patch.audience = draft.audience;
-  if (draft.weight !== undefined && draft.weight !== m.weight) patch.weight = draft.weight;
-  if (draft.plannedStart !== undefined && draft.plannedStart !== m.plannedStart) patch.plannedStart = draft.plannedStart;
+  for (const key of DRAFT_FIELDS) {
+    if (draft[key] !== undefined && draft[key] !== m[key]) (patch as Record<string, unknown>)[key] = draft[key];
+  }
   if (note && note.trim() !== "") patch.note = note.trim();
   return patch;
 }

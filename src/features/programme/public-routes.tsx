@@ -1,9 +1,10 @@
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { Link, useParams } from "react-router-dom";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { milestoneFinish } from "#shared/domain/programme-health.ts";
-import { Notice, Spinner } from "../../components/ui/sheet.tsx";
 import { StatusIcon, STATUS_LOOK, StatusMark } from "../../components/ui/status-mark.tsx";
-import { useMilestones, useProgrammeProject } from "./api.ts";
+import type { RouteLoader } from "../../lib/loaders.ts";
+import { milestonesQueryOptions, programmeProjectQueryOptions } from "./api.ts";
 import { formatLongDate, todayIn } from "./dates.ts";
 import { countInWords, describePublicProgress, slipInWords } from "./words.ts";
 
@@ -94,30 +95,18 @@ function countsInWords(milestones: Milestone[]): string {
     .join(", ");
 }
 
+/** `/projects/:slug/timeline`: the project and its public milestones; an unknown project is the route's error element. */
+export const publicTimelineLoader: RouteLoader = (qc) => async ({ params }) => {
+  const slug = params.slug ?? "";
+  await Promise.all([qc.ensureQueryData(programmeProjectQueryOptions(slug)), qc.ensureQueryData(milestonesQueryOptions(slug, PUBLIC))]);
+  return null;
+};
+
 /** The public programme timeline of a project. */
 export function PublicTimelinePage() {
   const { slug = "" } = useParams();
-  const project = useProgrammeProject(slug);
-  const milestones = useMilestones(slug, PUBLIC);
-  if (project.isPending || milestones.isPending) return <Spinner />;
-  if (project.isError) {
-    return (
-      <div className="mx-auto max-w-3xl px-4 py-10">
-        <Notice tone="error" title="Project not found">
-          {project.error.message}
-        </Notice>
-      </div>
-    );
-  }
-  if (milestones.isError) {
-    return (
-      <div className="mx-auto max-w-3xl px-4 py-10">
-        <Notice tone="error">{milestones.error.message}</Notice>
-      </div>
-    );
-  }
-  const p = project.data;
-  const list = milestones.data;
+  const p = useSuspenseQuery(programmeProjectQueryOptions(slug)).data;
+  const list = useSuspenseQuery(milestonesQueryOptions(slug, PUBLIC)).data;
   const today = todayIn(p.timeZone);
   return (
     <div className="mx-auto max-w-3xl px-4 py-10">

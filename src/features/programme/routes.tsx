@@ -1,15 +1,26 @@
+import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
 import type { RowSelectionState } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
 import { Link } from "react-router-dom";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
-import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { StatusKey } from "../../components/ui/status-mark.tsx";
 import { formatDate } from "../../lib/format.ts";
-import { useProjectParam } from "../../lib/projects.ts";
-import { useMe } from "../../lib/session.ts";
-import { canEditProgramme, milestonesCsvUrl, useHealth, useMilestones, useProgrammeProject, useProgrammeProjects } from "./api.ts";
+import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
+import { meQueryOptions } from "../../lib/session.ts";
+import {
+  baselinesQueryOptions,
+  canEditProgramme,
+  healthQueryOptions,
+  milestonesCsvUrl,
+  milestonesQueryOptions,
+  programmeProjectQueryOptions,
+  programmeProjectsQueryOptions,
+  REMOVED_ONLY,
+} from "./api.ts";
 import { CsvPanel } from "./components/csv-panel.tsx";
 import { LazyProgrammeCharts } from "./components/lazy-charts.tsx";
 import { MilestoneHistoryDialog } from "./components/milestone-history.tsx";
@@ -20,41 +31,63 @@ import { HealthStrip } from "./components/programme-summary.tsx";
 import { RebaselineForm } from "./components/rebaseline-form.tsx";
 import { ShiftPanel } from "./components/shift-panel.tsx";
 import { SiteWalk } from "./components/site-walk.tsx";
-import { todayIn } from "./dates.ts";
 import { settingsOf } from "./preview.ts";
 import { useDraftEditor } from "./use-draft-editor.ts";
 
 /** The project the site office is working on: `?project=` or the first one. */
-function useProjectSlug(): { slug: string; pending: boolean; choices: Array<{ value: string; label: string }>; setSlug: (s: string) => void } {
-  const projects = useProgrammeProjects();
-  return { ...useProjectParam(projects.data), pending: projects.isPending };
+function useProjectSlug() {
+  return useProjectParam(useSuspenseQuery(programmeProjectsQueryOptions()).data);
+}
+
+/** What both programme pages show of the project: the project, its milestones and their health today. */
+function primeProgramme(qc: QueryClient, slug: string) {
+  return Promise.all([
+    qc.ensureQueryData(programmeProjectQueryOptions(slug)),
+    qc.ensureQueryData(milestonesQueryOptions(slug)),
+    qc.ensureQueryData(healthQueryOptions(slug)),
+  ]);
+}
+
+function officeLoader(prime: (qc: QueryClient, slug: string) => Promise<unknown>): RouteLoader {
+  return (qc) => ({ request }) =>
+    primeWhenAllowed(qc, OFFICE_ROLES, async () => {
+      const slug = await officeProjectSlug(qc, programmeProjectsQueryOptions(), new URL(request.url).searchParams);
+      if (slug) await prime(qc, slug);
+    });
+}
+
+/** `/office/programme`: the programme, the milestones removed from it and its baseline versions. */
+export const programmeLoader: RouteLoader = officeLoader((qc, slug) =>
+  Promise.all([primeProgramme(qc, slug), qc.ensureQueryData(milestonesQueryOptions(slug, REMOVED_ONLY)), qc.ensureQueryData(baselinesQueryOptions(slug))]),
+);
+
+/** `/office/programme/walk`: the programme as the table shows it. */
+export const siteWalkLoader: RouteLoader = officeLoader(primeProgramme);
+
+/** The project's programme as its route's loader primed it. */
+function useProgramme(slug: string) {
+  const project = useSuspenseQuery(programmeProjectQueryOptions(slug)).data;
+  const milestones = useSuspenseQuery(milestonesQueryOptions(slug)).data;
+  const health = useSuspenseQuery(healthQueryOptions(slug)).data;
+  return { project, milestones, health };
 }
 
 function ProgrammeEditor({ slug }: { slug: string }) {
-  const me = useMe();
-  const project = useProgrammeProject(slug);
-  const milestones = useMilestones(slug);
-  const health = useHealth(slug);
+  const me = useSuspenseQuery(meQueryOptions()).data;
+  const { project: p, milestones: list, health } = useProgramme(slug);
   const [open, setOpen] = useState<Milestone | null>(null);
   const [selection, setSelection] = useState<RowSelectionState>({});
   const [shifting, setShifting] = useState(false);
-  const settings = useMemo(() => (project.data ? settingsOf(project.data) : null), [project.data]);
-  const at = health.data?.at ?? (project.data ? todayIn(project.data.timeZone) : "");
-  const list = useMemo(() => milestones.data ?? [], [milestones.data]);
+  const settings = useMemo(() => settingsOf(p), [p]);
+  const at = health.at;
   const editor = useDraftEditor({ slug, milestones: list, settings, at });
-  const editable = canEditProgramme(me.data);
-
-  if (project.isPending || milestones.isPending || health.isPending) return <Spinner label="Loading the programme" />;
-  if (project.isError) return <Notice tone="error">{project.error.message}</Notice>;
-  if (milestones.isError) return <Notice tone="error">{milestones.error.message}</Notice>;
-  if (health.isError) return <Notice tone="error">{health.error.message}</Notice>;
-  const p = project.data;
+  const editable = canEditProgramme(me);
   const selected = Object.keys(selection).filter((k) => selection[k]).map(Number);
 
   return (
     <div className="flex flex-col gap-6">
-      <Sheet label={`Status at ${formatDate(health.data.at)} · ${p.timeZone.replace("_", " ")}`} title="Health of the programme">
-        <HealthStrip health={health.data} />
+      <Sheet label={`Status at ${formatDate(health.at)} · ${p.timeZone.replace("_", " ")}`} title="Health of the programme">
+        <HealthStrip health={health} />
       </Sheet>
 
       <section aria-labelledby="milestones-h" className="flex flex-col gap-3">
@@ -101,7 +134,7 @@ function ProgrammeEditor({ slug }: { slug: string }) {
             ) : null
           }
         />
-        {editable && shifting && settings ? (
+        {editable && shifting ? (
           <ShiftPanel
             slug={slug}
             milestones={list}
@@ -118,11 +151,11 @@ function ProgrammeEditor({ slug }: { slug: string }) {
       </section>
 
       <Sheet label="Charts" title="Progress, baseline against forecast, and slip">
-        <LazyProgrammeCharts slug={slug} milestones={list} health={health.data} />
+        <LazyProgrammeCharts slug={slug} milestones={list} health={health} />
       </Sheet>
 
       <Sheet label="Baselines" title="Re-baseline">
-        {settings ? <RebaselineForm slug={slug} milestones={list} settings={settings} at={at} timeZone={p.timeZone} editable={editable} /> : null}
+        <RebaselineForm slug={slug} milestones={list} settings={settings} at={at} timeZone={p.timeZone} editable={editable} />
       </Sheet>
 
       <Sheet label="Files" title="CSV export and import">
@@ -140,8 +173,8 @@ function ProgrammeEditor({ slug }: { slug: string }) {
 
 /** Site office › Programme: the milestone table, its live preview, charts, baselines and files. */
 export function ProgrammePage() {
-  const { slug, pending, choices, setSlug } = useProjectSlug();
-  const me = useMe();
+  const { slug, choices, setSlug } = useProjectSlug();
+  const me = useSuspenseQuery(meQueryOptions()).data;
   return (
     <>
       <PageHeader
@@ -151,7 +184,7 @@ export function ProgrammePage() {
         actions={
           slug ? (
             <>
-              {canEditProgramme(me.data) ? (
+              {canEditProgramme(me) ? (
                 <Link to={`/office/programme/walk?project=${slug}`} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 text-[0.95rem] font-medium text-white hover:bg-[#9a3412]">
                   Start a site walk
                 </Link>
@@ -164,27 +197,21 @@ export function ProgrammePage() {
         }
       />
       <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="w-64" />
-      {pending ? <Spinner /> : slug ? <ProgrammeEditor key={slug} slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
+      {slug ? <ProgrammeEditor key={slug} slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
     </>
   );
 }
 
 function WalkBody({ slug }: { slug: string }) {
-  const project = useProgrammeProject(slug);
-  const milestones = useMilestones(slug);
-  const health = useHealth(slug);
-  const me = useMe();
-  if (project.isPending || milestones.isPending || health.isPending || me.isPending) return <Spinner label="Loading the programme" />;
-  if (project.isError) return <Notice tone="error">{project.error.message}</Notice>;
-  if (milestones.isError) return <Notice tone="error">{milestones.error.message}</Notice>;
-  if (health.isError) return <Notice tone="error">{health.error.message}</Notice>;
-  if (!canEditProgramme(me.data)) return <Notice>The site walk records progress, so it is for project leads and administrators. The programme page shows the same milestones read-only.</Notice>;
-  return <SiteWalk slug={slug} milestones={milestones.data} settings={settingsOf(project.data)} at={health.data.at} />;
+  const { project, milestones, health } = useProgramme(slug);
+  const me = useSuspenseQuery(meQueryOptions()).data;
+  if (!canEditProgramme(me)) return <Notice>The site walk records progress, so it is for project leads and administrators. The programme page shows the same milestones read-only.</Notice>;
+  return <SiteWalk slug={slug} milestones={milestones} settings={settingsOf(project)} at={health.at} />;
 }
 
 /** The phone view of the programme for a walk round the site. */
 export function SiteWalkPage() {
-  const { slug, pending } = useProjectSlug();
+  const { slug } = useProjectSlug();
   return (
     <>
       <div className="mb-4 flex items-center justify-between gap-3 border-b-2 border-ink pb-2">
@@ -196,7 +223,7 @@ export function SiteWalkPage() {
           Back to the table
         </Link>
       </div>
-      {pending ? <Spinner /> : slug ? <WalkBody slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
+      {slug ? <WalkBody slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
     </>
   );
 }

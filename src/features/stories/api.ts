@@ -1,6 +1,6 @@
 import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { PostStatus } from "#shared/schemas/posts.ts";
-import type { StoryCreateInput, StoryDetail, StoryPatchInput, StoryRevisionSummary, StorySummary } from "#shared/schemas/stories.ts";
+import type { PostStatus, RevisionSummary as StoryRevisionSummary } from "#shared/schemas/publishing.ts";
+import type { StoryCreateInput, StoryDetail, StoryPatchInput, StorySummary } from "#shared/schemas/stories.ts";
 import { api } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions } from "../../lib/media.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";

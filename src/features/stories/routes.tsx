@@ -7,7 +7,7 @@ import { z } from "zod";
 import type { User } from "#shared/schemas/auth.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
-import type { WorkflowAction } from "#shared/schemas/posts.ts";
+import type { WorkflowAction } from "#shared/schemas/publishing.ts";
 import { StoryCreateInputSchema, type StoryCreateInput, type StoryDetail, type StoryItemInput, type StoryPatchInput, type StorySummary } from "#shared/schemas/stories.ts";
 import { AudienceMark } from "../../components/ui/audience-mark.tsx";
 import { Button, PrimaryLink } from "../../components/ui/button.tsx";
@@ -24,7 +24,7 @@ import { publishingProblemsOf, publishingWhen } from "../../lib/publishing.ts";
 import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
-import { storiesProjectQueryOptions, storiesProjectsQueryOptions, storyListQueryOptions, storyQueryOptions, useCreateStory, useSaveStory, useStoriesProject, useStoryList, useStoryWorkflow } from "./api.ts";
+import { storiesProjectQueryOptions, storiesProjectsQueryOptions, storyListQueryOptions, storyQueryOptions, useCreateStory, useSaveStory, useStoriesProject, useStoryWorkflow } from "./api.ts";
 import { StoryPhotoPicker } from "./components/photo-picker.tsx";
 import { StoryHistoryPanel, StoryRevisionsPanel } from "./components/revisions-panel.tsx";
 import { StoryItemsEditor, type EditItem, type PickTarget } from "./components/story-items.tsx";
@@ -57,10 +57,23 @@ export const storyEditorLoader: RouteLoader = (qc) => ({ params, request }) =>
 
 /** `/office/stories`: the project's photo stories by state. */
 export function StoriesPage() {
-  const { slug, choices, setSlug } = useOfficeProject();
-  const list = useStoryList(slug);
-  const project = useStoriesProject(slug);
-  const zone = project.data?.timeZone ?? "Europe/London";
+  const office = useOfficeProject();
+  if (!office.slug) {
+    return (
+      <>
+        <PageHeader sheet="Site office · Photo stories" title="Photo stories" description={STORIES_PAGE_WORDS} />
+        <Notice>There is no project in this site office yet.</Notice>
+      </>
+    );
+  }
+  return <ProjectStories {...office} />;
+}
+
+const STORIES_PAGE_WORDS = "Curated sequences of site photos, including then-and-now pairs of one area. Published through the same review as updates.";
+
+function ProjectStories({ slug, choices, setSlug }: ReturnType<typeof useOfficeProject>) {
+  const list = useSuspenseQuery(storyListQueryOptions(slug)).data;
+  const zone = useSuspenseQuery(storiesProjectQueryOptions(slug)).data.timeZone;
   const columns = useMemo<ColumnDef<StorySummary>[]>(
     () => [
       {
@@ -79,17 +92,17 @@ export function StoriesPage() {
     ],
     [zone],
   );
-  const table = useReactTable({ data: list.data ?? [], columns, getCoreRowModel: getCoreRowModel() });
+  const table = useReactTable({ data: list, columns, getCoreRowModel: getCoreRowModel() });
   return (
     <>
       <PageHeader
         sheet="Site office · Photo stories"
         title="Photo stories"
-        description="Curated sequences of site photos, including then-and-now pairs of one area. Published through the same review as updates."
+        description={STORIES_PAGE_WORDS}
         actions={<PrimaryLink to={`/office/stories/new?project=${slug}`}>New photo story</PrimaryLink>}
       />
       <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} />
-      {list.isError ? <Notice tone="error">{list.error.message}</Notice> : <DataTable table={table} caption="Photo stories" empty={list.isPending ? "Loading…" : "No photo story yet."} />}
+      <DataTable table={table} caption="Photo stories" empty="No photo story yet." />
     </>
   );
 }

@@ -1,4 +1,4 @@
-import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { queryOptions, useMutation, useQueryClient } from "@tanstack/react-query";
 import type {
   ConfirmationDone,
   ConfirmationView,
@@ -11,10 +11,10 @@ import type {
   SubscriberImportResult,
   SubscriberList,
   SubscriberListQuery,
-  SubscriberStatus,
   SubscriptionAccepted,
   SubscriptionInput,
   SubscriptionOptions,
+  SubscriptionStatusResult,
   UnsubscribeView,
 } from "#shared/schemas/subscribers.ts";
 import { api, qs } from "../../lib/api-client.ts";
@@ -53,14 +53,6 @@ export const unsubscribeQueryOptions = (token: string) =>
 export const subscribersQueryOptions = (f: SubscriberListQuery) => queryOptions({ queryKey: subscriberKeys.list(f), queryFn: () => api.get<SubscriberList>(`/api/subscribers${qs(f)}`) });
 export const investorDigestQueryOptions = () => queryOptions({ queryKey: investorDigestKeys.mine(), queryFn: () => api.get<InvestorDigestSetting[]>("/api/investors/digest") });
 
-export const useSubscriptionProjects = () => useQuery(subscriptionProjectsQueryOptions());
-export const useSubscriptionOptions = (slug: string) => useQuery(subscriptionOptionsQueryOptions(slug));
-export const useConfirmation = (token: string) => useQuery(confirmationQueryOptions(token));
-export const usePreferences = (token: string) => useQuery(preferencesQueryOptions(token));
-export const useUnsubscribeView = (token: string) => useQuery(unsubscribeQueryOptions(token));
-export const useSubscribers = (f: SubscriberListQuery) => useQuery(subscribersQueryOptions(f));
-export const useInvestorDigest = () => useQuery(investorDigestQueryOptions());
-
 /** The export link of the current filters (a download, not a query). */
 export const subscribersCsvUrl = (f: SubscriberListQuery) => `/api/subscribers/export.csv${qs(f)}`;
 export const personDataUrl = (id: number) => `/api/subscribers/${id}/export`;
@@ -90,7 +82,7 @@ export function useUpdatePreferences(token: string) {
 export function useLeaveFromPreferences(token: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: () => api.post<{ status: SubscriberStatus }>(`/api/subscriptions/preferences/${token}/unsubscribe`, {}),
+    mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/preferences/${token}/unsubscribe`, {}),
     onSuccess: () => qc.invalidateQueries({ queryKey: subscriptionKeys.preferences(token) }),
   });
 }
@@ -98,7 +90,7 @@ export function useLeaveFromPreferences(token: string) {
 export function useUnsubscribe(token: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: () => api.post<{ status: SubscriberStatus }>(`/api/subscriptions/unsubscribe/${token}`, {}),
+    mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/unsubscribe/${token}`, {}),
     onSuccess: () => qc.invalidateQueries({ queryKey: subscriptionKeys.unsubscribe(token) }),
   });
 }

@@ -1,7 +1,8 @@
 import { zodResolver } from "@hookform/resolvers/zod";
-import { useEffect, useState, type ReactNode } from "react";
+import { useSuspenseQuery } from "@tanstack/react-query";
+import { useDeferredValue, useState, type ReactNode } from "react";
 import { Controller, useForm } from "react-hook-form";
-import { Link, useParams } from "react-router-dom";
+import { Link, useParams, useRouteError } from "react-router-dom";
 import { toast } from "sonner";
 import type { z } from "zod";
 import {
@@ -17,22 +18,24 @@ import {
 } from "#shared/schemas/subscribers.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../components/ui/field.tsx";
-import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { applyFieldErrors, SYSTEM_WORD } from "../../lib/format.ts";
+import { INVESTOR_ROLES, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { meQueryOptions } from "../../lib/session.ts";
 import {
+  confirmationQueryOptions,
+  investorDigestQueryOptions,
+  preferencesQueryOptions,
   subscribersCsvUrl,
+  subscribersQueryOptions,
+  subscriptionOptionsQueryOptions,
+  subscriptionProjectsQueryOptions,
+  unsubscribeQueryOptions,
   useConfirm,
-  useConfirmation,
-  useInvestorDigest,
   useLeaveFromPreferences,
-  usePreferences,
   useSetInvestorDigest,
-  useSubscribers,
-  useSubscriptionOptions,
-  useSubscriptionProjects,
   useUnsubscribe,
-  useUnsubscribeView,
   useUpdatePreferences,
 } from "./api.ts";
 import { ConsentNote } from "./components/consent-note.tsx";
@@ -66,45 +69,82 @@ function LinkProblem({ error }: { error: Error }) {
   );
 }
 
+/**
+ * The error element of a page opened from a signed link: a link that is malformed, expired or
+ * no longer in use is the visitor's everyday problem, so it is said in the page's own words.
+ */
+function linkErrorElement(title: string) {
+  return function SubscriptionLinkError() {
+    const error = useRouteError();
+    return (
+      <PublicSheet label="Subscription" title={title}>
+        <LinkProblem error={error instanceof Error ? error : new Error("This link cannot be opened.")} />
+      </PublicSheet>
+    );
+  };
+}
+
+export const ConfirmationLinkError = linkErrorElement("Confirm your subscription");
+export const PreferencesLinkError = linkErrorElement("Your preferences");
+export const UnsubscribeLinkError = linkErrorElement("Unsubscribe");
+
+/** Primes the subscription form's options (areas, systems, consent wording) of the build. */
+export const projectSubscribeLoader: RouteLoader = (qc) => async ({ params }) => {
+  await qc.ensureQueryData(subscriptionOptionsQueryOptions(params.slug ?? ""));
+  return null;
+};
+
+/** Primes the builds and the first one's form, which the page opens on. */
+export const subscribeLoader: RouteLoader = (qc) => async () => {
+  const projects = await qc.ensureQueryData(subscriptionProjectsQueryOptions());
+  if (projects[0]) await qc.ensureQueryData(subscriptionOptionsQueryOptions(projects[0].slug));
+  return null;
+};
+
+export const confirmationLoader: RouteLoader = (qc) => async ({ params }) => {
+  await qc.ensureQueryData(confirmationQueryOptions(params.token ?? ""));
+  return null;
+};
+
+export const preferencesLoader: RouteLoader = (qc) => async ({ params }) => {
+  await qc.ensureQueryData(preferencesQueryOptions(params.token ?? ""));
+  return null;
+};
+
+export const unsubscribeLoader: RouteLoader = (qc) => async ({ params }) => {
+  await qc.ensureQueryData(unsubscribeQueryOptions(params.token ?? ""));
+  return null;
+};
+
 function SubscribeFor({ slug }: { slug: string }) {
-  const options = useSubscriptionOptions(slug);
-  if (options.isPending) return <Spinner />;
-  if (options.isError) return <Notice tone="error">{options.error.message}</Notice>;
-  return <SubscribeForm key={slug} options={options.data} />;
+  const options = useSuspenseQuery(subscriptionOptionsQueryOptions(slug)).data;
+  return <SubscribeForm key={slug} options={options} />;
 }
 
 /** /projects/:slug/subscribe */
 export function ProjectSubscribePage() {
   const { slug = "" } = useParams();
-  const options = useSubscriptionOptions(slug);
+  const options = useSuspenseQuery(subscriptionOptionsQueryOptions(slug)).data;
   return (
-    <PublicSheet label="Progress by e-mail" title={options.data ? `Follow ${options.data.project.name}` : "Follow this build"} lead="Progress e-mails from the site: what was built, commissioned and moved on the programme. Nothing is sent until you confirm.">
-      <SubscribeFor slug={slug} />
+    <PublicSheet label="Progress by e-mail" title={`Follow ${options.project.name}`} lead="Progress e-mails from the site: what was built, commissioned and moved on the programme. Nothing is sent until you confirm.">
+      <SubscribeForm key={slug} options={options} />
     </PublicSheet>
   );
 }
 
 /** /subscribe — the same form, with the project to choose. */
 export function SubscribePage() {
-  const projects = useSubscriptionProjects();
-  const [slug, setSlug] = useState("");
-  useEffect(() => {
-    if (!slug && projects.data?.[0]) setSlug(projects.data[0].slug);
-  }, [projects.data, slug]);
+  const projects = useSuspenseQuery(subscriptionProjectsQueryOptions()).data;
+  const [picked, setPicked] = useState("");
+  const slug = picked || projects[0]?.slug || "";
+  // Another build's form appears once its options are here; until then the chosen one stays.
+  const shown = useDeferredValue(slug);
   return (
     <PublicSheet label="Progress by e-mail" title="Subscribe to progress e-mails" lead="Choose a build, what you follow and how often. Nothing is sent until you confirm from the e-mail we send.">
-      {projects.isPending ? (
-        <Spinner />
-      ) : projects.isError ? (
-        <Notice tone="error">{projects.error.message}</Notice>
-      ) : (
-        <div className="flex flex-col gap-4">
-          {projects.data.length > 1 ? (
-            <SelectField label="Build" options={projects.data.map((p) => ({ value: p.slug, label: p.name }))} value={slug} onChange={(e) => setSlug(e.target.value)} />
-          ) : null}
-          {slug ? <SubscribeFor slug={slug} /> : <p className="text-ink-soft">No builds are published yet.</p>}
-        </div>
-      )}
+      <div className="flex flex-col gap-4">
+        {projects.length > 1 ? <SelectField label="Build" options={projects.map((p) => ({ value: p.slug, label: p.name }))} value={slug} onChange={(e) => setPicked(e.target.value)} /> : null}
+        {shown ? <SubscribeFor slug={shown} /> : <p className="text-ink-soft">No builds are published yet.</p>}
+      </div>
     </PublicSheet>
   );
 }
@@ -115,16 +155,8 @@ export function SubscribePage() {
  */
 export function ConfirmSubscriptionPage() {
   const { token = "" } = useParams();
-  const view = useConfirmation(token);
+  const v = useSuspenseQuery(confirmationQueryOptions(token)).data;
   const confirm = useConfirm(token);
-  if (view.isPending) return <Spinner label="Opening your confirmation" />;
-  if (view.isError)
-    return (
-      <PublicSheet label="Subscription" title="Confirm your subscription">
-        <LinkProblem error={view.error} />
-      </PublicSheet>
-    );
-  const v = view.data;
   if (confirm.isSuccess) {
     return (
       <PublicSheet label={v.project.name} title="Subscription confirmed">
@@ -210,15 +242,7 @@ function PreferencesForm({ token, view }: { token: string; view: PreferencesView
 /** /subscriptions/preferences/:token — no sign-in: the signed link is the key. */
 export function PreferencesPage() {
   const { token = "" } = useParams();
-  const view = usePreferences(token);
-  if (view.isPending) return <Spinner label="Opening your preferences" />;
-  if (view.isError)
-    return (
-      <PublicSheet label="Subscription" title="Your preferences">
-        <LinkProblem error={view.error} />
-      </PublicSheet>
-    );
-  const v = view.data;
+  const v = useSuspenseQuery(preferencesQueryOptions(token)).data;
   const look = STATUS_LOOK[v.status];
   return (
     <PublicSheet label={v.project.name} title="Your preferences" lead={`${v.email} · ${INTEREST_SHORT[v.interest]}`}>
@@ -242,16 +266,8 @@ export function PreferencesPage() {
 /** /u/:token — what a person sees opening the one-click link; the mail client's POST needs no page. */
 export function OneClickUnsubscribePage() {
   const { token = "" } = useParams();
-  const view = useUnsubscribeView(token);
+  const v = useSuspenseQuery(unsubscribeQueryOptions(token)).data;
   const leave = useUnsubscribe(token);
-  if (view.isPending) return <Spinner />;
-  if (view.isError)
-    return (
-      <PublicSheet label="Subscription" title="Unsubscribe">
-        <LinkProblem error={view.error} />
-      </PublicSheet>
-    );
-  const v = view.data;
   const gone = leave.isSuccess || v.status === "unsubscribed";
   return (
     <PublicSheet label={v.project.name} title={gone ? "You are unsubscribed" : "Unsubscribe"}>
@@ -314,27 +330,37 @@ function InvestorDigestForm({ setting }: { setting: InvestorDigestSetting }) {
   );
 }
 
+/** Digest settings belong to investor accounts: staff are told so, and nothing is asked for them. */
+const isInvestor = (me: { role: string } | null | undefined) => me?.role === "investor";
+
+export const investorDigestLoader: RouteLoader = (qc) => () =>
+  primeWhenAllowed(qc, INVESTOR_ROLES, async () => {
+    if (isInvestor(await qc.ensureQueryData(meQueryOptions()))) await qc.ensureQueryData(investorDigestQueryOptions());
+  });
+
+function InvestorDigestSettings() {
+  const settings = useSuspenseQuery(investorDigestQueryOptions()).data;
+  return (
+    <div className="flex flex-col gap-6">
+      {settings.map((s) => (
+        <Sheet key={s.project.slug} label={s.status ? STATUS_LOOK[s.status].word : "Not receiving"} title={s.project.name}>
+          <InvestorDigestForm key={`${s.status}-${s.frequency}-${JSON.stringify(s.topics)}`} setting={s} />
+        </Sheet>
+      ))}
+    </div>
+  );
+}
+
 /** /investors/digest — an investor account's own digest, with the investor audience. */
 export function InvestorDigestPage() {
-  const settings = useInvestorDigest();
-  const notInvestor = settings.error instanceof ApiError && settings.error.status === 403;
+  const me = useSuspenseQuery(meQueryOptions()).data;
   return (
     <>
       <PageHeader sheet="Investor room · Digest" title="Your digest" description="A digest by e-mail of what changed on each build, including investor-only updates and programme detail." />
-      {notInvestor ? (
-        <Notice title="For investor accounts">Digest settings belong to investor accounts. Staff see every digest in the site office.</Notice>
-      ) : settings.isPending ? (
-        <Spinner />
-      ) : settings.isError ? (
-        <Notice tone="error">{settings.error.message}</Notice>
+      {isInvestor(me) ? (
+        <InvestorDigestSettings />
       ) : (
-        <div className="flex flex-col gap-6">
-          {settings.data.map((s) => (
-            <Sheet key={s.project.slug} label={s.status ? STATUS_LOOK[s.status].word : "Not receiving"} title={s.project.name}>
-              <InvestorDigestForm key={`${s.status}-${s.frequency}-${JSON.stringify(s.topics)}`} setting={s} />
-            </Sheet>
-          ))}
-        </div>
+        <Notice title="For investor accounts">Digest settings belong to investor accounts. Staff see every digest in the site office.</Notice>
       )}
     </>
   );
@@ -342,21 +368,42 @@ export function InvestorDigestPage() {
 
 const any = (label: string) => ({ value: "", label });
 
+/** The office list's query: the filters, on the chosen build (the first one unless chosen). */
+function subscriberQuery(filters: SubscriberListQuery, firstSlug: string): SubscriberListQuery {
+  const projectSlug = filters.projectSlug ?? firstSlug;
+  return { ...filters, projectSlug: projectSlug || undefined };
+}
+
+export const subscribersLoader: RouteLoader = (qc) => () =>
+  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
+    const first = (await qc.ensureQueryData(subscriptionProjectsQueryOptions()))[0]?.slug ?? "";
+    await Promise.all([qc.ensureQueryData(subscribersQueryOptions(subscriberQuery({}, first))), first ? qc.ensureQueryData(subscriptionOptionsQueryOptions(first)) : null]);
+  });
+
+/** The topics a filter can name: the build's areas and the plant systems. */
+function useTopicOptions(projectSlug: string) {
+  const options = useSuspenseQuery(subscriptionOptionsQueryOptions(projectSlug)).data;
+  return [any("Any topic"), ...options.areas.map((a) => ({ value: `area:${a}`, label: a })), ...options.systems.map((s) => ({ value: `system:${s}`, label: SYSTEM_WORD[s] }))];
+}
+
+function TopicFilter({ projectSlug, value, onChange }: { projectSlug: string; value: string; onChange: (topic: SubscriberListQuery["topic"]) => void }) {
+  const options = useTopicOptions(projectSlug);
+  return <SelectField label="Topic" value={value} onChange={(e) => onChange((e.target.value || undefined) as SubscriberListQuery["topic"])} options={options} hint="Who would receive it: its followers and those following everything." />;
+}
+
 /** /office/subscribers — marketing's list: filters, the table, import and export. */
 export function SubscribersPage() {
-  const projects = useSubscriptionProjects();
+  const projects = useSuspenseQuery(subscriptionProjectsQueryOptions()).data;
   const [filters, setFilters] = useState<SubscriberListQuery>({});
-  const projectSlug = filters.projectSlug ?? projects.data?.[0]?.slug ?? "";
-  const query: SubscriberListQuery = { ...filters, projectSlug: projectSlug || undefined };
-  const options = useSubscriptionOptions(projectSlug);
-  const list = useSubscribers(query);
+  const first = projects[0]?.slug ?? "";
+  const query = subscriberQuery(filters, first);
+  const projectSlug = query.projectSlug ?? "";
+  // While the next filters' rows are asked for, the table keeps showing the last ones (and the fields keep their focus).
+  const shownFilters = useDeferredValue(filters);
+  const shownQuery = subscriberQuery(shownFilters, first);
+  const list = useSuspenseQuery(subscribersQueryOptions(shownQuery)).data;
   const set = (patch: Partial<SubscriberListQuery>) => setFilters((f) => ({ ...f, ...patch }));
-  const project = projects.data?.find((p) => p.slug === projectSlug);
-  const topicOptions = [
-    any("Any topic"),
-    ...(options.data?.areas ?? []).map((a) => ({ value: `area:${a}`, label: a })),
-    ...(options.data?.systems ?? []).map((s) => ({ value: `system:${s}`, label: SYSTEM_WORD[s] })),
-  ];
+  const project = projects.find((p) => p.slug === projectSlug);
   return (
     <>
       <PageHeader
@@ -372,21 +419,25 @@ export function SubscribersPage() {
       <div className="flex flex-col gap-6">
         <Sheet label="Filter" title="Find subscribers">
           <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-3">
-            {projects.data && projects.data.length > 1 ? (
-              <SelectField label="Build" value={projectSlug} onChange={(e) => set({ projectSlug: e.target.value, topic: undefined })} options={projects.data.map((p) => ({ value: p.slug, label: p.name }))} />
+            {projects.length > 1 ? (
+              <SelectField label="Build" value={projectSlug} onChange={(e) => set({ projectSlug: e.target.value, topic: undefined })} options={projects.map((p) => ({ value: p.slug, label: p.name }))} />
             ) : null}
             <SelectField label="Interest" value={filters.interest ?? ""} onChange={(e) => set({ interest: (e.target.value || undefined) as SubscriberListQuery["interest"] })} options={[any("Any interest"), ...InterestSchema.options.map((v) => ({ value: v, label: INTEREST_SHORT[v] }))]} />
             <SelectField label="Status" value={filters.status ?? ""} onChange={(e) => set({ status: (e.target.value || undefined) as SubscriberListQuery["status"] })} options={[any("Any status"), ...SubscriberStatusSchema.options.map((v) => ({ value: v, label: STATUS_LOOK[v].word }))]} />
             <SelectField label="How often" value={filters.frequency ?? ""} onChange={(e) => set({ frequency: (e.target.value || undefined) as SubscriberListQuery["frequency"] })} options={[any("Any frequency"), ...FrequencySchema.options.map((v) => ({ value: v, label: FREQUENCY_SHORT[v] }))]} />
-            <SelectField label="Topic" value={filters.topic ?? ""} onChange={(e) => set({ topic: (e.target.value || undefined) as SubscriberListQuery["topic"] })} options={topicOptions} hint="Who would receive it: its followers and those following everything." />
+            {shownQuery.projectSlug ? (
+              <TopicFilter projectSlug={shownQuery.projectSlug} value={filters.topic ?? ""} onChange={(topic) => set({ topic })} />
+            ) : (
+              <SelectField label="Topic" value="" onChange={() => undefined} options={[any("Any topic")]} hint="Who would receive it: its followers and those following everything." />
+            )}
             <TextField label="Name, e-mail or organisation" type="search" value={filters.q ?? ""} onChange={(e) => set({ q: e.target.value || undefined })} />
           </div>
         </Sheet>
         <section aria-labelledby="subs-h">
           <h2 id="subs-h" className="mb-2 text-lg font-semibold">
-            {list.data ? `${list.data.total} ${list.data.total === 1 ? "subscriber" : "subscribers"}${list.data.total > list.data.rows.length ? ` (the newest ${list.data.rows.length} shown; narrow the filters)` : ""}` : "Subscribers"}
+            {`${list.total} ${list.total === 1 ? "subscriber" : "subscribers"}${list.total > list.rows.length ? ` (the newest ${list.rows.length} shown; narrow the filters)` : ""}`}
           </h2>
-          {list.isPending ? <Spinner /> : list.isError ? <Notice tone="error">{list.error.message}</Notice> : <SubscribersTable rows={list.data.rows} />}
+          <SubscribersTable rows={list.rows} />
         </section>
         {project ? (
           <Sheet label="Import" title="Import from a CSV file">

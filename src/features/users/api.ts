@@ -1,5 +1,5 @@
-import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { InvitationRow, InviteInput, UserRow, UserUpdateInput } from "#shared/schemas/users.ts";
+import { queryOptions, useMutation, useQueryClient } from "@tanstack/react-query";
+import type { InvitationRow, InvitationSent, InviteInput, UserRow, UserUpdateInput } from "#shared/schemas/users.ts";
 import { api } from "../../lib/api-client.ts";
 
 export const userKeys = {
@@ -11,13 +11,10 @@ export const userKeys = {
 export const usersQueryOptions = () => queryOptions({ queryKey: userKeys.list(), queryFn: () => api.get<UserRow[]>("/api/users") });
 export const invitationsQueryOptions = () => queryOptions({ queryKey: userKeys.invitations(), queryFn: () => api.get<InvitationRow[]>("/api/users/invitations") });
 
-export const useUsers = () => useQuery(usersQueryOptions());
-export const useInvitations = () => useQuery(invitationsQueryOptions());
-
 export function useInvite() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: InviteInput) => api.post<{ id: number; email: string }>("/api/users/invitations", input),
+    mutationFn: (input: InviteInput) => api.post<InvitationSent>("/api/users/invitations", input),
     onSuccess: () => qc.invalidateQueries({ queryKey: userKeys.all }),
   });
 }

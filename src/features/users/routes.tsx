@@ -1,4 +1,5 @@
 import { zodResolver } from "@hookform/resolvers/zod";
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
 import { useForm } from "react-hook-form";
@@ -8,10 +9,14 @@ import { InviteInputSchema, type InvitationRow, type InviteInput, type UserRow }
 import { Button } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { SelectField, TextField } from "../../components/ui/field.tsx";
-import { PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
+import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { applyFieldErrors, formatInstant, ROLE_LABEL } from "../../lib/format.ts";
-import { useInvitations, useInvite, useUpdateUser, useUsers } from "./api.ts";
+import { primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { invitationsQueryOptions, useInvite, useUpdateUser, usersQueryOptions } from "./api.ts";
+
+/** The users page is for administrators (the route says so); only theirs is primed. */
+export const usersLoader: RouteLoader = (qc) => () => primeWhenAllowed(qc, ["admin"], () => Promise.all([qc.ensureQueryData(usersQueryOptions()), qc.ensureQueryData(invitationsQueryOptions())]));
 
 const roleOptions = RoleSchema.options.map((r) => ({ value: r, label: ROLE_LABEL[r] }));
 
@@ -121,8 +126,8 @@ function InvitationsTable({ rows }: { rows: InvitationRow[] }) {
 }
 
 export function UsersPage() {
-  const users = useUsers();
-  const invitations = useInvitations();
+  const users = useSuspenseQuery(usersQueryOptions()).data;
+  const invitations = useSuspenseQuery(invitationsQueryOptions()).data;
   return (
     <>
       <PageHeader sheet="Site office · Users" title="Users" description="Accounts exist by invitation only. Changing a role or disabling an account takes effect at once." />
@@ -134,13 +139,13 @@ export function UsersPage() {
           <h2 id="users-h" className="mb-2 text-lg font-semibold">
             Accounts
           </h2>
-          {users.isPending ? <Spinner /> : users.isError ? <p role="alert">{users.error.message}</p> : <UsersTable users={users.data} />}
+          <UsersTable users={users} />
         </section>
         <section aria-labelledby="inv-h">
           <h2 id="inv-h" className="mb-2 text-lg font-semibold">
             Invitations
           </h2>
-          {invitations.isPending ? <Spinner /> : invitations.isError ? <p role="alert">{invitations.error.message}</p> : <InvitationsTable rows={invitations.data} />}
+          <InvitationsTable rows={invitations} />
         </section>
       </div>
     </>

@@ -1,15 +1,73 @@
 /**
  * The rules that updates (posts) and photo stories share as they go through the publishing
- * workflow: their addresses, what each step changes, when an edit needs approval again, and
- * what the scheduler does with an item that is due. Which step is open to whom is
- * `workflowStep` in schemas/posts.ts (the browser offers the same steps). No clock: `at` is
- * passed in.
+ * workflow: which step is open to whom from which state (`workflowStep`: the server enforces it,
+ * the browser offers the same steps), their addresses, what each step changes, when an edit needs
+ * approval again, and what the scheduler does with an item that is due. No clock: `at` is passed in.
  */
 import type { Role } from "../schemas/common.ts";
-import type { PostStatus, PublishingProblem, WorkflowAction } from "../schemas/posts.ts";
+import type { PostStatus, PublishingProblem, WorkflowAction } from "../schemas/publishing.ts";
 
 /** The kinds of published content, as history rows and photo usages name their owner. */
 export type ContentKind = "post" | "story";
+
+/** Words for people (the codes stay in JSON). */
+export const STATUS_WORDS: Record<PostStatus, string> = {
+  draft: "a draft",
+  in_review: "in review",
+  approved: "approved",
+  scheduled: "scheduled",
+  published: "published",
+  withdrawn: "withdrawn",
+};
+
+/** Why a step is refused: the caller's role ("role", answered 403) or the item's state ("state", 409). */
+export type StepRefusal = { ok: false; reason: "role" | "state"; message: string };
+
+/**
+ * What the workflow allows. `by` is the caller's role; `ownWork` whether the caller wrote it.
+ * Answers the next status, or a reason the step is not open.
+ *
+ * draft → in_review (submit: marketing, lead, admin) → approved (approve: lead, admin)
+ * → published (publish) or scheduled (schedule: lead, admin) → withdrawn (withdraw: lead, admin).
+ * Return sends in_review, approved or scheduled back to draft with comments (lead, admin).
+ * A lead or admin may publish or schedule their own draft or in-review work without approval.
+ * Withdrawn work may be submitted again, or published again by a lead or admin.
+ * Withdrawing scheduled work cancels the schedule (back to approved).
+ */
+export function workflowStep(action: WorkflowAction, from: PostStatus, by: Role, ownWork: boolean): { ok: true; to: PostStatus } | StepRefusal {
+  const approver = by === "lead" || by === "admin";
+  const staff = approver || by === "marketing";
+  const role = (message: string): StepRefusal => ({ ok: false, reason: "role", message });
+  const state = (message: string): StepRefusal => ({ ok: false, reason: "state", message });
+  switch (action) {
+    case "submit":
+      if (!staff) return role("Only staff submit for review.");
+      if (from === "draft" || from === "withdrawn") return { ok: true, to: "in_review" };
+      return state(`It is ${STATUS_WORDS[from]}; only a draft or a withdrawn one can be submitted.`);
+    case "approve":
+      if (!approver) return role("Only a lead or an admin approves.");
+      if (from === "in_review") return { ok: true, to: "approved" };
+      return state(`It is ${STATUS_WORDS[from]}; only one in review can be approved.`);
+    case "return":
+      if (!approver) return role("Only a lead or an admin returns work with comments.");
+      if (from === "in_review" || from === "approved" || from === "scheduled") return { ok: true, to: "draft" };
+      return state(`It is ${STATUS_WORDS[from]}; only one in review, approved or scheduled can be returned.`);
+    case "publish":
+    case "schedule": {
+      if (!approver) return role("Only a lead or an admin publishes.");
+      const to: PostStatus = action === "publish" ? "published" : "scheduled";
+      if (from === "approved" || (action === "publish" && (from === "withdrawn" || from === "scheduled"))) return { ok: true, to };
+      if ((from === "draft" || from === "in_review") && ownWork) return { ok: true, to };
+      if (from === "draft" || from === "in_review") return state("It has not been approved yet; approve it first (a lead may publish only their own work without approval).");
+      return state(`It is ${STATUS_WORDS[from]} already.`);
+    }
+    case "withdraw":
+      if (!approver) return role("Only a lead or an admin withdraws.");
+      if (from === "published") return { ok: true, to: "withdrawn" };
+      if (from === "scheduled") return { ok: true, to: "approved" };
+      return state(`It is ${STATUS_WORDS[from]}; only a published or scheduled one can be withdrawn.`);
+  }
+}
 
 /** An address made from a title: lower-case ASCII words joined by hyphens (at most 80 characters). */
 export function slugFromTitle(title: string): string {

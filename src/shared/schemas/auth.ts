@@ -35,3 +35,15 @@ export const UserSchema = z.object({
   role: RoleSchema,
 });
 export type User = z.infer<typeof UserSchema>;
+
+/** GET /api/auth/me, and what signing in (login, an accepted invitation, a new password) answers. */
+export const SignedInSchema = z.object({ user: UserSchema });
+export type SignedIn = z.infer<typeof SignedInSchema>;
+
+/** GET /api/auth/invitations/:token — who the invitation is for; opening it changes nothing. */
+export const InvitationViewSchema = z.object({ email: z.string(), role: RoleSchema });
+export type InvitationView = z.infer<typeof InvitationViewSchema>;
+
+/** POST /api/auth/password-reset → 202, the same answer whether or not the address has an account. */
+export const ResetRequestedSchema = z.object({ ok: z.literal(true), message: z.string() });
+export type ResetRequested = z.infer<typeof ResetRequestedSchema>;

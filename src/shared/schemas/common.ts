@@ -26,6 +26,8 @@ export const CalendarDateSchema = z
     return t.getUTCFullYear() === y && t.getUTCMonth() === m - 1 && t.getUTCDate() === d;
   }, "is not a real calendar date");
 
-export interface ApiErrorBody {
-  error: { code: string; message: string; fields?: Record<string, string> };
-}
+/** Every error answer of the API: `{ error: { code, message, fields? } }` (the fixed shape). */
+export const ApiErrorBodySchema = z.object({
+  error: z.object({ code: z.string(), message: z.string(), fields: z.record(z.string(), z.string()).optional() }),
+});
+export type ApiErrorBody = z.infer<typeof ApiErrorBodySchema>;

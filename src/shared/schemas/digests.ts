@@ -1,5 +1,5 @@
 import { z } from "zod";
-import type { Frequency } from "./subscribers.ts";
+import { FrequencySchema } from "./subscribers.ts";
 import { plainText } from "./text.ts";
 
 /**
@@ -35,48 +35,63 @@ export const DigestPreviewQuerySchema = z.strictObject({ subscriberId: z.coerce.
 
 export const DigestWebParamSchema = z.strictObject({ token: z.string().min(10).max(400) });
 
-export interface DigestCounts {
-  total: number;
-  queued: number;
-  sent: number;
-  failed: number;
-  skipped: number;
-}
+export const DigestCountsSchema = z.object({
+  total: z.number(),
+  queued: z.number(),
+  sent: z.number(),
+  failed: z.number(),
+  skipped: z.number(),
+});
+export type DigestCounts = z.infer<typeof DigestCountsSchema>;
 
-export interface DigestRunSummary {
-  id: number;
-  project: { slug: string; name: string };
-  frequency: Frequency;
-  status: DigestRunStatus;
-  test: boolean;
-  windowStart: string;
-  windowEnd: string;
-  counts: DigestCounts;
-  createdAt: string;
-  startedAt: string | null;
-  finishedAt: string | null;
+/** GET /api/digests/runs (a list of these), GET /api/digests/runs/:id, and what pause and resume answer. */
+export const DigestRunSummarySchema = z.object({
+  id: z.number(),
+  project: z.object({ slug: z.string(), name: z.string() }),
+  frequency: FrequencySchema,
+  status: DigestRunStatusSchema,
+  test: z.boolean(),
+  windowStart: z.string(),
+  windowEnd: z.string(),
+  counts: DigestCountsSchema,
+  createdAt: z.string(),
+  startedAt: z.string().nullable(),
+  finishedAt: z.string().nullable(),
   /** Seconds from start to finish; null while unfinished. */
-  durationSeconds: number | null;
-}
+  durationSeconds: z.number().nullable(),
+});
+export type DigestRunSummary = z.infer<typeof DigestRunSummarySchema>;
 
-export interface DigestUpcoming {
-  project: { slug: string; name: string; timeZone: string };
-  frequency: Exclude<Frequency, "immediate">;
+/** POST /api/digests/runs → 201 (a new run) or 200 (that period's run already exists). */
+export const DigestRunStartedSchema = z.object({ id: z.number(), status: DigestRunStatusSchema });
+export type DigestRunStarted = z.infer<typeof DigestRunStartedSchema>;
+
+/** GET /api/digests/upcoming (a list of these). */
+export const DigestUpcomingSchema = z.object({
+  project: z.object({ slug: z.string(), name: z.string(), timeZone: z.string() }),
+  frequency: FrequencySchema.exclude(["immediate"]),
   /** When the run starts (UTC instant). */
-  at: string;
-  windowStart: string;
-  windowEnd: string;
-  recipients: number;
-}
+  at: z.string(),
+  windowStart: z.string(),
+  windowEnd: z.string(),
+  recipients: z.number(),
+});
+export type DigestUpcoming = z.infer<typeof DigestUpcomingSchema>;
 
-export interface DigestPreview {
-  subscriber: { id: number; email: string; audience: "public" | "investor"; frequency: Frequency };
-  windowStart: string;
-  windowEnd: string;
+/** GET /api/digests/preview?subscriberId= */
+export const DigestPreviewSchema = z.object({
+  subscriber: z.object({ id: z.number(), email: z.string(), audience: z.enum(["public", "investor"]), frequency: FrequencySchema }),
+  windowStart: z.string(),
+  windowEnd: z.string(),
   /** False when there is nothing to say: no e-mail would be sent. */
-  wouldSend: boolean;
-  subject: string;
-  preheader: string;
-  html: string;
-  text: string;
-}
+  wouldSend: z.boolean(),
+  subject: z.string(),
+  preheader: z.string(),
+  html: z.string(),
+  text: z.string(),
+});
+export type DigestPreview = z.infer<typeof DigestPreviewSchema>;
+
+/** POST /api/digests/test → 202: the test message, sent to the caller. */
+export const DigestTestSentSchema = z.object({ messageId: z.string() });
+export type DigestTestSent = z.infer<typeof DigestTestSentSchema>;

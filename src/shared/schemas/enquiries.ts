@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { CalendarDateSchema, EmailSchema } from "./common.ts";
+import { CalendarDateSchema, EmailSchema, STAFF_ROLES } from "./common.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -66,10 +66,8 @@ export const GeneralEnquirySchema = z.strictObject({
 export const EnquiryInputSchema = z.discriminatedUnion("kind", [CapacityEnquirySchema, VisitEnquirySchema, GeneralEnquirySchema]);
 export type EnquiryInput = z.infer<typeof EnquiryInputSchema>;
 
-export interface EnquiryAccepted {
-  ok: true;
-  message: string;
-}
+export const EnquiryAcceptedSchema = z.object({ ok: z.literal(true), message: z.string() });
+export type EnquiryAccepted = z.infer<typeof EnquiryAcceptedSchema>;
 
 /** GET /api/enquiries */
 export const EnquiryListQuerySchema = z.strictObject({
@@ -89,30 +87,29 @@ export const EnquiryPatchSchema = z
   .refine((v) => v.status !== undefined || v.ownerId !== undefined || v.notes !== undefined, { message: "change at least one thing" });
 export type EnquiryPatch = z.infer<typeof EnquiryPatchSchema>;
 
-export interface EnquiryRow {
-  id: number;
-  project: { slug: string; name: string };
-  kind: EnquiryKind;
-  name: string;
-  email: string;
-  organisation: string | null;
-  phone: string | null;
-  message: string | null;
-  racks: number | null;
-  kwPerRack: number | null;
-  neededBy: string | null;
-  preferredDates: string[];
-  partySize: number | null;
-  status: EnquiryStatus;
-  owner: { id: number; name: string } | null;
-  notes: string;
-  createdAt: string;
-  updatedAt: string;
-}
+/** GET /api/enquiries (a list of these), GET and PATCH /api/enquiries/:id. */
+export const EnquiryRowSchema = z.object({
+  id: z.number(),
+  project: z.object({ slug: z.string(), name: z.string() }),
+  kind: EnquiryKindSchema,
+  name: z.string(),
+  email: z.string(),
+  organisation: z.string().nullable(),
+  phone: z.string().nullable(),
+  message: z.string().nullable(),
+  racks: z.number().nullable(),
+  kwPerRack: z.number().nullable(),
+  neededBy: z.string().nullable(),
+  preferredDates: z.array(z.string()),
+  partySize: z.number().nullable(),
+  status: EnquiryStatusSchema,
+  owner: z.object({ id: z.number(), name: z.string() }).nullable(),
+  notes: z.string(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type EnquiryRow = z.infer<typeof EnquiryRowSchema>;
 
 /** GET /api/enquiries/owners — the staff an enquiry can be given to. */
-export interface EnquiryOwner {
-  id: number;
-  name: string;
-  role: "admin" | "lead" | "marketing";
-}
+export const EnquiryOwnerSchema = z.object({ id: z.number(), name: z.string(), role: z.enum(STAFF_ROLES) });
+export type EnquiryOwner = z.infer<typeof EnquiryOwnerSchema>;

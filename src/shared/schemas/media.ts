@@ -113,109 +113,122 @@ export type MediaListFilters = Omit<MediaListQuery, "page" | "pageSize">;
 export const ProjectQuerySchema = z.strictObject({ project: ProjectSlug.optional() });
 
 /** One derivative: a same-origin URL that never changes once the photo is published. */
-export interface MediaVariant {
-  url: string;
-  width: number;
-  height: number;
-  format: VariantFormat;
-  bytes: number;
-}
+export const MediaVariantSchema = z.object({
+  url: z.string(),
+  width: z.number(),
+  height: z.number(),
+  format: VariantFormatSchema,
+  bytes: z.number(),
+});
+export type MediaVariant = z.infer<typeof MediaVariantSchema>;
 
 /** A photo as the site office sees it (staff only: `hadGps` and the original's link included). */
-export interface MediaItem {
-  id: number;
-  projectId: number;
-  status: MediaStatus;
-  failureReason: string | null;
-  name: string;
-  mime: string;
-  bytes: number;
-  width: number;
-  height: number;
+export const MediaItemSchema = z.object({
+  id: z.number(),
+  projectId: z.number(),
+  status: MediaStatusSchema,
+  failureReason: z.string().nullable(),
+  name: z.string(),
+  mime: z.string(),
+  bytes: z.number(),
+  width: z.number(),
+  height: z.number(),
   /** Camera local time `YYYY-MM-DDTHH:mm:ss[.sss][±HH:MM]`, never shifted by a server's zone. */
-  takenAt: string | null;
+  takenAt: z.string().nullable(),
   /** Whether the original carried location data; the coordinates themselves are never kept. */
-  hadGps: boolean;
-  altText: string | null;
-  caption: string | null;
-  credit: string | null;
-  focal: Focal;
-  sensitivity: Sensitivity;
-  flaggedForReview: boolean;
-  reviewedAt: string | null;
-  reviewedBy: string | null;
-  placeholder: string | null;
-  dominantColor: string | null;
-  isIllustration: boolean;
-  tags: MediaTags;
-  variants: MediaVariant[];
-  originalUrl: string;
-  uploadedBy: string | null;
-  createdAt: string;
-  updatedAt: string;
-}
+  hadGps: z.boolean(),
+  altText: z.string().nullable(),
+  caption: z.string().nullable(),
+  credit: z.string().nullable(),
+  focal: FocalSchema,
+  sensitivity: SensitivitySchema,
+  flaggedForReview: z.boolean(),
+  reviewedAt: z.string().nullable(),
+  reviewedBy: z.string().nullable(),
+  placeholder: z.string().nullable(),
+  dominantColor: z.string().nullable(),
+  isIllustration: z.boolean(),
+  tags: MediaTagsSchema,
+  variants: z.array(MediaVariantSchema),
+  originalUrl: z.string(),
+  uploadedBy: z.string().nullable(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type MediaItem = z.infer<typeof MediaItemSchema>;
 
-export interface MediaListResponse {
-  items: MediaItem[];
-  total: number;
-  page: number;
-  pageSize: number;
-}
+/** GET /api/media */
+export const MediaListResponseSchema = z.object({
+  items: z.array(MediaItemSchema),
+  total: z.number(),
+  page: z.number(),
+  pageSize: z.number(),
+});
+export type MediaListResponse = z.infer<typeof MediaListResponseSchema>;
+
+/** POST /api/media/bulk-tags: how many photos changed, and each as it is now. */
+export const BulkTagResultSchema = z.object({ updated: z.number(), items: z.array(MediaItemSchema) });
+export type BulkTagResult = z.infer<typeof BulkTagResultSchema>;
 
 /** What POST /api/media answers for each file, in the order sent. */
-export interface MediaUploadResult {
-  id: number;
-  status: MediaStatus;
-  name: string;
-  width: number;
-  height: number;
-  takenAt: string | null;
+export const MediaUploadResultSchema = z.object({
+  id: z.number(),
+  status: MediaStatusSchema,
+  name: z.string(),
+  width: z.number(),
+  height: z.number(),
+  takenAt: z.string().nullable(),
   /** Set when the same bytes were already in the project's library: that item is offered instead. */
-  duplicateOf: number | null;
-}
+  duplicateOf: z.number().nullable(),
+});
+export type MediaUploadResult = z.infer<typeof MediaUploadResultSchema>;
 
 /** One refused file of an upload (in `error.files` of the 4xx answer). */
-export interface RefusedFile {
-  index: number;
-  name: string;
-  code: string;
-  status: number;
-  message: string;
-}
+export const RefusedFileSchema = z.object({
+  index: z.number(),
+  name: z.string(),
+  code: z.string(),
+  status: z.number(),
+  message: z.string(),
+});
+export type RefusedFile = z.infer<typeof RefusedFileSchema>;
 
-/** The words the library's tag pickers offer, and the upload limits. */
-export interface MediaVocabulary {
-  project: { id: number; slug: string; name: string };
-  areas: string[];
-  systems: System[];
-  milestones: Array<{ id: number; name: string }>;
-  limits: { maxFileMb: number; maxFiles: number; maxPixels: number };
-}
+/** GET /api/media/vocabulary: the words the library's tag pickers offer, and the upload limits. */
+export const MediaVocabularySchema = z.object({
+  project: z.object({ id: z.number(), slug: z.string(), name: z.string() }),
+  areas: z.array(z.string()),
+  systems: z.array(SystemSchema),
+  milestones: z.array(z.object({ id: z.number(), name: z.string() })),
+  limits: z.object({ maxFileMb: z.number(), maxFiles: z.number(), maxPixels: z.number() }),
+});
+export type MediaVocabulary = z.infer<typeof MediaVocabularySchema>;
 
 /** A derivative for srcset: `url` is same-origin (`/media/v/<key>`). */
-export interface PictureVariant {
-  url: string;
-  width: number;
-  height: number;
-  format: VariantFormat;
-}
+export const PictureVariantSchema = z.object({
+  url: z.string(),
+  width: z.number(),
+  height: z.number(),
+  format: VariantFormatSchema,
+});
+export type PictureVariant = z.infer<typeof PictureVariantSchema>;
 
 /** What a page, a feed or an e-mail needs to render a photo as `<picture>`. */
-export interface MediaPicture {
-  id: number;
-  width: number;
-  height: number;
-  altText: string | null;
-  caption: string | null;
-  credit: string | null;
-  placeholder: string | null;
-  dominantColor: string | null;
-  takenAt: string | null;
-  focal: Focal;
-  isIllustration: boolean;
+export const MediaPictureSchema = z.object({
+  id: z.number(),
+  width: z.number(),
+  height: z.number(),
+  altText: z.string().nullable(),
+  caption: z.string().nullable(),
+  credit: z.string().nullable(),
+  placeholder: z.string().nullable(),
+  dominantColor: z.string().nullable(),
+  takenAt: z.string().nullable(),
+  focal: FocalSchema,
+  isIllustration: z.boolean(),
   /** Each list in ascending width; empty until the photo is processed. */
-  sources: Record<VariantFormat, PictureVariant[]>;
-}
+  sources: z.record(VariantFormatSchema, z.array(PictureVariantSchema)),
+});
+export type MediaPicture = z.infer<typeof MediaPictureSchema>;
 
 /** GET /api/projects/:slug/gallery filters. */
 export const GalleryQuerySchema = z.strictObject({
@@ -226,19 +239,21 @@ export const GalleryQuerySchema = z.strictObject({
 export type GalleryQuery = z.infer<typeof GalleryQuerySchema>;
 
 /** One gallery photo: the picture, its area and system tags, and its month (capture, else upload). */
-export interface GalleryPhoto extends MediaPicture {
-  areas: string[];
-  systems: System[];
-  month: string | null;
-}
+export const GalleryPhotoSchema = MediaPictureSchema.extend({
+  areas: z.array(z.string()),
+  systems: z.array(SystemSchema),
+  month: z.string().nullable(),
+});
+export type GalleryPhoto = z.infer<typeof GalleryPhotoSchema>;
 
-/** The gallery answer: the photos after filtering, and the choices the filters offer (before filtering). */
-export interface Gallery {
-  items: GalleryPhoto[];
-  areas: string[];
-  systems: System[];
-  months: string[];
-}
+/** GET /api/projects/:slug/gallery: the photos after filtering, and the choices the filters offer (before filtering). */
+export const GallerySchema = z.object({
+  items: z.array(GalleryPhotoSchema),
+  areas: z.array(z.string()),
+  systems: z.array(SystemSchema),
+  months: z.array(z.string()),
+});
+export type Gallery = z.infer<typeof GallerySchema>;
 
 /**
  * GET /media/s/:name — a signed derivative link (investor images in e-mail): `exp`, the expiry in

@@ -1,6 +1,7 @@
 import { z } from "zod";
-import { AudienceSchema, CalendarDateSchema, type Audience, type Role } from "./common.ts";
+import { AudienceSchema, type Audience } from "./common.ts";
 import type { MediaPicture } from "./media.ts";
+import { ContentSlugSchema, PostStatusSchema, type PostStatus, type PublishingProblem, type RevisionSummary } from "./publishing.ts";
 import { RichTextDocSchema, type RichTextDoc } from "./rich-text.ts";
 import { multilineText, plainText } from "./text.ts";
 
@@ -9,23 +10,11 @@ import { multilineText, plainText } from "./text.ts";
  *
  * Lists are JSON arrays; the total number of matching posts is in the `X-Total-Count`
  * header (10 a page, `page` from 1). Instants are ISO 8601 with offset; calendar dates
- * `YYYY-MM-DD`. Errors are `{ error: { code, message, fields? } }`; a publishing check that
- * fails answers 422 `{ error: { code: "publishing_blocked", message, problems: PublishingProblem[] } }`.
+ * `YYYY-MM-DD`. Errors are `{ error: { code, message, fields? } }`. The workflow (states, steps,
+ * problems, schedule, revisions, history) is publishing.ts, the same for photo stories.
  */
 
 export const POSTS_PAGE_SIZE = 10;
-
-export const PostStatusSchema = z.enum(["draft", "in_review", "approved", "scheduled", "published", "withdrawn"]);
-export type PostStatus = z.infer<typeof PostStatusSchema>;
-
-/** A post or story address within its project: lower-case words joined by hyphens. */
-export const ContentSlugSchema = z
-  .string()
-  .trim()
-  .toLowerCase()
-  .min(1, "is required")
-  .max(120, "must be at most 120 characters")
-  .regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "may hold only lower-case letters, digits and single hyphens");
 
 /** A tag of a post: an area ("Hall 2A") or a system ("cooling"). */
 export const PostTagSchema = z.strictObject({
@@ -89,33 +78,6 @@ export const PostSlugParamsSchema = z.strictObject({
   postSlug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid address").max(120),
 });
 
-/** POST /api/posts/:id/return (lead, admin): back to draft with the reviewer's comments. */
-export const ReturnInputSchema = z.strictObject({
-  comment: multilineText({ error: "say what to change" }).min(1, "say what to change").max(4000, "must be at most 4000 characters"),
-});
-
-/**
- * POST /api/posts/:id/schedule (lead, admin): an instant with offset, or a wall-clock date and
- * time in the project's time zone. It must be in the future.
- */
-export const ScheduleInputSchema = z.strictObject({
-  at: z.union([
-    z.iso.datetime({ offset: true, error: "must be an instant with its offset, or { date, time }" }),
-    z.strictObject({
-      date: CalendarDateSchema,
-      time: z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, "must be a time as HH:MM"),
-    }),
-  ]),
-});
-export type ScheduleInput = z.infer<typeof ScheduleInputSchema>;
-
-/** GET /api/posts/:id/revisions/:n/diff?against=m (staff); without `against`, the revision before n. */
-export const RevisionParamsSchema = z.strictObject({
-  id: z.coerce.number().int().positive(),
-  n: z.coerce.number().int().positive(),
-});
-export const DiffQuerySchema = z.strictObject({ against: z.coerce.number().int().positive().optional() });
-
 /** Photos are described by the media module (pictureFor); re-exported for the pages that import posts only. */
 export type { MediaPicture, PictureVariant } from "./media.ts";
 
@@ -157,23 +119,6 @@ export interface PostSummary {
   updatedAt: string;
 }
 
-/** One problem that stops publication. */
-export interface PublishingProblem {
-  code: "no_cover" | "missing_alt_text" | "not_cleared" | "restricted" | "media_missing" | "media_not_ready" | "milestone_missing" | "milestone_not_visible" | "pair_dates" | "no_items";
-  message: string;
-  mediaId?: number;
-  milestoneId?: number;
-}
-
-export interface PostRevisionSummary {
-  number: number;
-  createdAt: string;
-  authorName: string;
-  title: string;
-  status: PostStatus;
-  note: string | null;
-}
-
 /**
  * GET /api/projects/:slug/posts/:postSlug and GET /api/posts/:id. `body`, `version`,
  * `revisions`, `reviewComment` and `problems` are for staff only (absent otherwise).
@@ -190,7 +135,7 @@ export interface PostDetail extends PostSummary {
   milestoneIds: number[];
   body?: RichTextDoc;
   version?: number;
-  revisions?: PostRevisionSummary[];
+  revisions?: RevisionSummary[];
   reviewComment?: string | null;
   problems?: PublishingProblem[];
 }
@@ -198,84 +143,3 @@ export interface PostDetail extends PostSummary {
 export interface PostRedirect {
   redirectTo: string;
 }
-
-/** The answer of every workflow action. */
-export interface WorkflowResult {
-  id: number;
-  status: PostStatus;
-  scheduledFor?: string | null;
-}
-
-/** GET /api/posts/:id/revisions/:n/diff: a word diff of the rendered text (newlines are their own parts). */
-export interface RevisionDiff {
-  from: number;
-  to: number;
-  parts: Array<{ op: "equal" | "insert" | "delete"; text: string }>;
-  inserted: number;
-  deleted: number;
-}
-
-// ---- The publishing workflow, shared with photo stories ----
-
-export type WorkflowAction = "submit" | "approve" | "return" | "publish" | "schedule" | "withdraw";
-
-/**
- * What the workflow allows. `by` is the caller's role; `ownWork` whether the caller wrote it.
- * Answers the next status, or a reason the step is not open ("role" → 403, "state" → 409).
- *
- * draft → in_review (submit: marketing, lead, admin) → approved (approve: lead, admin)
- * → published (publish) or scheduled (schedule: lead, admin) → withdrawn (withdraw: lead, admin).
- * Return sends in_review, approved or scheduled back to draft with comments (lead, admin).
- * A lead or admin may publish or schedule their own draft or in-review post without approval.
- * A withdrawn post may be submitted again, or published again by a lead or admin.
- * Withdrawing a scheduled post cancels the schedule (back to approved).
- */
-export function workflowStep(
-  action: WorkflowAction,
-  from: PostStatus,
-  by: Role,
-  ownWork: boolean,
-): { ok: true; to: PostStatus } | { ok: false; reason: "role" | "state"; message: string } {
-  const approver = by === "lead" || by === "admin";
-  const staff = approver || by === "marketing";
-  const role = (message: string) => ({ ok: false as const, reason: "role" as const, message });
-  const state = (message: string) => ({ ok: false as const, reason: "state" as const, message });
-  switch (action) {
-    case "submit":
-      if (!staff) return role("Only staff submit for review.");
-      if (from === "draft" || from === "withdrawn") return { ok: true, to: "in_review" };
-      return state(`It is ${STATUS_WORDS[from]}; only a draft or a withdrawn one can be submitted.`);
-    case "approve":
-      if (!approver) return role("Only a lead or an admin approves.");
-      if (from === "in_review") return { ok: true, to: "approved" };
-      return state(`It is ${STATUS_WORDS[from]}; only one in review can be approved.`);
-    case "return":
-      if (!approver) return role("Only a lead or an admin returns work with comments.");
-      if (from === "in_review" || from === "approved" || from === "scheduled") return { ok: true, to: "draft" };
-      return state(`It is ${STATUS_WORDS[from]}; only one in review, approved or scheduled can be returned.`);
-    case "publish":
-    case "schedule": {
-      if (!approver) return role("Only a lead or an admin publishes.");
-      const to: PostStatus = action === "publish" ? "published" : "scheduled";
-      if (from === "approved" || (action === "publish" && (from === "withdrawn" || from === "scheduled"))) return { ok: true, to };
-      if ((from === "draft" || from === "in_review") && ownWork) return { ok: true, to };
-      if (from === "draft" || from === "in_review") return state("It has not been approved yet; approve it first (a lead may publish only their own work without approval).");
-      return state(`It is ${STATUS_WORDS[from]} already.`);
-    }
-    case "withdraw":
-      if (!approver) return role("Only a lead or an admin withdraws.");
-      if (from === "published") return { ok: true, to: "withdrawn" };
-      if (from === "scheduled") return { ok: true, to: "approved" };
-      return state(`It is ${STATUS_WORDS[from]}; only a published or scheduled one can be withdrawn.`);
-  }
-}
-
-/** Words for people (the codes stay in JSON). */
-export const STATUS_WORDS: Record<PostStatus, string> = {
-  draft: "a draft",
-  in_review: "in review",
-  approved: "approved",
-  scheduled: "scheduled",
-  published: "published",
-  withdrawn: "withdrawn",
-};

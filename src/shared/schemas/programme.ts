@@ -1,6 +1,7 @@
 import { z } from "zod";
-import { AudienceSchema, CalendarDateSchema, type Audience } from "./common.ts";
-import type { MilestoneStatus } from "../domain/programme-health.ts";
+import { AudienceSchema, CalendarDateSchema } from "./common.ts";
+import type { MilestoneInput, MilestoneStatus, ProgrammeHealth } from "../domain/programme-health.ts";
+import type { ProjectDrivers } from "../domain/programme-dependencies.ts";
 import type { MilestoneMove } from "../domain/programme-changes.ts";
 import { multilineText, plainText } from "./text.ts";
 
@@ -18,57 +19,102 @@ const Weight = z.number({ error: "must be a number" }).gt(0, "must be greater th
 const Budget = z.number().int("must be whole minor units").min(0, "must not be negative").max(1e15);
 const DateOrNull = CalendarDateSchema.nullable();
 
-const MilestoneFields = {
-  name: Name,
-  phase: Name,
-  area: plainText().max(100).default(""),
-  system: SystemSchema,
-  description: multilineText({ trim: false }).max(5000).default(""),
-  weight: Weight,
-  percentComplete: Percent.default(0),
-  plannedStart: DateOrNull.default(null),
-  baselineFinish: CalendarDateSchema,
-  forecastFinish: DateOrNull.default(null),
-  actualFinish: DateOrNull.default(null),
-  audience: AudienceSchema,
-  budget: Budget.nullable().default(null),
-  dependsOn: z.array(z.number().int().positive()).max(100).default([]),
-};
+const DependsOn = z.array(z.number().int().positive()).max(100);
+
+/**
+ * How a field's value is written outside JSON: in a CSV cell and in its stored column.
+ * `line` one-line text (a line break a spreadsheet kept reads as a space), `text` text kept as
+ * typed, `code` a required code or date (trimmed), `number`, `optional-number` and
+ * `optional-date` (empty = none), `ids` milestone ids or names (`;` between them).
+ */
+export type MilestoneFieldKind = "line" | "text" | "code" | "number" | "optional-number" | "optional-date" | "ids";
+
+/**
+ * The fields a person writes on a milestone, once: their zod types and how each is written
+ * outside JSON. The create and patch schemas, the CSV columns, the repository's column map
+ * and the browser's preview input are all derived from this list; a new field is added here.
+ * The order is the create schema's (which orders its messages) and the CSV's, except that the
+ * CSV puts `description`, the long free text, last.
+ */
+export const MILESTONE_FIELDS = {
+  name: { type: Name, kind: "line" },
+  phase: { type: Name, kind: "line" },
+  area: { type: plainText().max(100), kind: "line" },
+  system: { type: SystemSchema, kind: "code" },
+  description: { type: multilineText({ trim: false }).max(5000), kind: "text" },
+  weight: { type: Weight, kind: "number" },
+  percentComplete: { type: Percent, kind: "number" },
+  plannedStart: { type: DateOrNull, kind: "optional-date" },
+  baselineFinish: { type: CalendarDateSchema, kind: "code" },
+  forecastFinish: { type: DateOrNull, kind: "optional-date" },
+  actualFinish: { type: DateOrNull, kind: "optional-date" },
+  audience: { type: AudienceSchema, kind: "code" },
+  budget: { type: Budget.nullable(), kind: "optional-number" },
+  dependsOn: { type: DependsOn, kind: "ids" },
+} as const satisfies Record<string, { type: z.ZodType; kind: MilestoneFieldKind }>;
+
+export type MilestoneFieldName = keyof typeof MILESTONE_FIELDS;
+export const MILESTONE_FIELD_NAMES = Object.keys(MILESTONE_FIELDS) as MilestoneFieldName[];
+
+/** The milestone fields as one object schema, each required, no defaults. */
+export const MilestoneFieldsSchema = z.object(
+  Object.fromEntries(MILESTONE_FIELD_NAMES.map((f) => [f, MILESTONE_FIELDS[f].type])) as { [F in MilestoneFieldName]: (typeof MILESTONE_FIELDS)[F]["type"] },
+);
+/** The values of a milestone's written fields. */
+export type MilestoneFieldValues = z.output<typeof MilestoneFieldsSchema>;
+
+type SnakeCase<S extends string> = S extends `${infer H}${infer T}` ? `${H extends Lowercase<H> ? H : `_${Lowercase<H>}`}${SnakeCase<T>}` : S;
+
+/** A field's name outside JSON: its CSV column and its stored column (`baselineFinish` → `baseline_finish`). */
+export function milestoneColumn<F extends MilestoneFieldName>(field: F): SnakeCase<F> {
+  return field.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`) as SnakeCase<F>;
+}
+
+const F = MilestoneFieldsSchema.shape;
+
+/** The fields the programme's figures are computed from (`computeProgrammeHealth`'s input). */
+const MILESTONE_INPUT_KEYS = ["id", "name", "weight", "percentComplete", "plannedStart", "baselineFinish", "forecastFinish", "actualFinish", "budget", "dependsOn"] as const satisfies ReadonlyArray<keyof MilestoneInput>;
+// Fails to compile when the health computation gains an input field this list lacks.
+const _everyInputKey: Record<Exclude<keyof MilestoneInput, (typeof MILESTONE_INPUT_KEYS)[number]>, never> = {};
+void _everyInputKey;
+
+/** A milestone (as stored or as the API gives it) as the health computation's input: server and browser compute from the same fields. */
+export function milestoneInputOf(m: Pick<MilestoneInput, (typeof MILESTONE_INPUT_KEYS)[number]>): MilestoneInput {
+  return Object.fromEntries(MILESTONE_INPUT_KEYS.map((k) => [k, m[k]])) as unknown as MilestoneInput;
+}
 
 const startBeforeFinish = (v: { plannedStart?: string | null; baselineFinish?: string }) =>
   !v.plannedStart || !v.baselineFinish || v.plannedStart <= v.baselineFinish;
 
-/** POST /api/projects/:slug/milestones. The server also refuses an actual finish in the future. */
+/** POST /api/projects/:slug/milestones: every field, with these defaults. The server also refuses an actual finish in the future. */
 export const MilestoneCreateInputSchema = z
-  .strictObject(MilestoneFields)
+  .strictObject({
+    ...F,
+    area: F.area.default(""),
+    description: F.description.default(""),
+    percentComplete: F.percentComplete.default(0),
+    plannedStart: F.plannedStart.default(null),
+    forecastFinish: F.forecastFinish.default(null),
+    actualFinish: F.actualFinish.default(null),
+    budget: F.budget.default(null),
+    dependsOn: F.dependsOn.default([]),
+  })
   .refine(startBeforeFinish, { path: ["baselineFinish"], message: "must not be before the planned start" });
 export type MilestoneCreateInput = z.infer<typeof MilestoneCreateInputSchema>;
 
 /**
- * PATCH /api/milestones/:id. `version` is the one the client last read; a stale one → 409.
- * The baseline finish changes only by re-baselining (POST …/baselines), which asks for a reason.
+ * PATCH /api/milestones/:id: any field but the baseline finish. `version` is the one the client
+ * last read; a stale one → 409. The baseline finish changes only by re-baselining (POST
+ * …/baselines), which asks for a reason.
  */
 export const MilestonePatchInputSchema = z.strictObject({
   version: z.number().int().min(1),
-  name: Name.optional(),
-  phase: Name.optional(),
-  area: plainText().max(100).optional(),
-  system: SystemSchema.optional(),
-  description: multilineText({ trim: false }).max(5000).optional(),
-  weight: Weight.optional(),
-  percentComplete: Percent.optional(),
-  plannedStart: DateOrNull.optional(),
-  forecastFinish: DateOrNull.optional(),
-  actualFinish: DateOrNull.optional(),
-  audience: AudienceSchema.optional(),
-  budget: Budget.nullable().optional(),
-  dependsOn: z.array(z.number().int().positive()).max(100).optional(),
+  ...MilestoneFieldsSchema.omit({ baselineFinish: true }).partial().shape,
   /** Kept with the change in the milestone's history. */
   note: multilineText().max(1000).optional(),
 });
 export type MilestonePatchInput = z.infer<typeof MilestonePatchInputSchema>;
 
-/** POST /api/projects/:slug/milestones/shift — move several forecasts by N working days. */
 /**
  * POST /api/milestones/:id/remove and /restore. A milestone that has been on record (in a
  * baseline, linked by an update or a photo, or moved since it was entered) is never deleted:
@@ -84,6 +130,7 @@ export const MilestoneDeleteInputSchema = z.strictObject({
   reason: multilineText().max(1000, "must be at most 1000 characters").optional(),
 });
 
+/** POST /api/projects/:slug/milestones/shift — move several forecasts by N working days. */
 export const ShiftInputSchema = z.strictObject({
   ids: z.array(z.number().int().positive()).min(1, "choose at least one milestone").max(500),
   workingDays: z.number().int().min(-500).max(500).refine((n) => n !== 0, "must not be 0"),
@@ -108,6 +155,8 @@ export type BaselineInput = z.infer<typeof BaselineInputSchema>;
 
 export const CostActualInputSchema = z.strictObject({ periodEnd: CalendarDateSchema, amount: Budget });
 
+export const MilestoneStatusSchema = z.enum(["complete", "on_programme", "at_risk", "behind"]) satisfies z.ZodType<MilestoneStatus>;
+
 export const HealthQuerySchema = z.strictObject({ at: CalendarDateSchema.optional() });
 export const RangeQuerySchema = z
   .strictObject({ from: CalendarDateSchema, to: CalendarDateSchema })
@@ -117,102 +166,84 @@ export const MilestoneListQuerySchema = z.strictObject({
   audience: AudienceSchema.optional(),
   system: SystemSchema.optional(),
   area: plainText({ trim: false }).max(100).optional(),
-  status: z.enum(["complete", "on_programme", "at_risk", "behind"]).optional(),
+  status: MilestoneStatusSchema.optional(),
   /** Milestones removed from the programme: hidden by default; `include` lists them too, `only` lists just them (each with `removal`). */
   removed: z.enum(["exclude", "include", "only"]).default("exclude"),
 });
 
+// Answers. Their types are inferred from these schemas; the server builds them and the browser
+// reads them. They describe what the server sends, not input: they are exported together in
+// PROGRAMME_ANSWERS (below) rather than one by one, so no one takes one for an input schema, and
+// the text-field check over exported input schemas leaves them out.
+
+const Instant = z.string();
+
+const MilestoneRemovalSchema = z.object({ at: Instant, by: z.string().nullable(), reason: z.string() });
+export type MilestoneRemoval = z.infer<typeof MilestoneRemovalSchema>;
+
 /** One milestone as the API returns it; status and slip are computed at the request's date. */
-export interface Milestone {
-  id: number;
-  name: string;
-  phase: string;
-  phaseId: number;
-  area: string;
-  system: System;
-  description: string;
-  weight: number;
-  percentComplete: number;
-  plannedStart: string | null;
-  baselineFinish: string;
-  forecastFinish: string | null;
-  actualFinish: string | null;
-  audience: Audience;
+const MilestoneSchema = z.object({
+  id: z.number(),
+  ...MilestoneFieldsSchema.shape,
+  phaseId: z.number(),
   /** Null for callers who may not see money (visitors) and where none is set. */
-  budget: number | null;
-  dependsOn: number[];
-  status: MilestoneStatus;
+  budget: F.budget,
+  status: MilestoneStatusSchema,
   /** Calendar days: (actual ?? forecast ?? baseline) − baseline finish. */
-  slipDays: number;
-  slipWorkingDays: number;
-  version: number;
-  updatedAt: string;
+  slipDays: z.number(),
+  slipWorkingDays: z.number(),
+  version: z.number(),
+  updatedAt: Instant,
   /** Set when the milestone was removed from the programme: it no longer counts in any figure. */
-  removal: MilestoneRemoval | null;
-}
+  removal: MilestoneRemovalSchema.nullable(),
+});
+export type Milestone = z.infer<typeof MilestoneSchema>;
 
-export interface MilestoneRemoval {
-  at: string;
-  by: string | null;
-  reason: string;
-}
-
-export type MilestoneEventFieldName =
-  | "forecast_finish"
-  | "actual_finish"
-  | "percent_complete"
-  | "baseline_finish"
-  | "audience"
-  | "planned_start"
-  | "weight"
-  /** "false" → "true" when removed from the programme, "true" → "false" when restored; the note is the reason. */
-  | "removed";
+/** The fields whose changes are events; `removed` is "false" → "true" when removed from the programme, "true" → "false" when restored, with the reason as note. */
+export const MilestoneEventFieldNameSchema = z.enum(["forecast_finish", "actual_finish", "percent_complete", "baseline_finish", "audience", "planned_start", "weight", "removed"]);
+export type MilestoneEventFieldName = z.infer<typeof MilestoneEventFieldNameSchema>;
 
 /** GET /api/milestones/:id/events and GET /api/projects/:slug/changes rows. */
-export interface MilestoneEventRow {
-  id: number;
-  milestoneId: number;
-  milestoneName: string;
-  field: MilestoneEventFieldName;
-  from: string | null;
-  to: string | null;
-  at: string;
-  by: string | null;
-  note: string | null;
-  baselineVersion: number | null;
-}
+const MilestoneEventRowSchema = z.object({
+  id: z.number(),
+  milestoneId: z.number(),
+  milestoneName: z.string(),
+  field: MilestoneEventFieldNameSchema,
+  from: z.string().nullable(),
+  to: z.string().nullable(),
+  at: Instant,
+  by: z.string().nullable(),
+  note: z.string().nullable(),
+  baselineVersion: z.number().nullable(),
+});
+export type MilestoneEventRow = z.infer<typeof MilestoneEventRowSchema>;
 
-export interface BaselineVersion {
-  number: number;
-  reason: string;
-  by: string | null;
-  at: string;
-  milestoneCount: number;
-}
+const BaselineVersionSchema = z.object({
+  number: z.number(),
+  reason: z.string(),
+  by: z.string().nullable(),
+  at: Instant,
+  milestoneCount: z.number(),
+});
+export type BaselineVersion = z.infer<typeof BaselineVersionSchema>;
 
 /** Error body of a refused CSV import (422, code `csv_invalid`): nothing was written. */
 export interface CsvImportErrorBody {
   error: { code: "csv_invalid"; message: string; rows: Array<{ line: number; reason: string }> };
 }
 
-/** The CSV columns, in order, for export and import (import matches rows by id when given, else by name). */
-export const MILESTONE_CSV_COLUMNS = [
+/** A CSV column: `id`, then each milestone field by its column name. */
+export type MilestoneCsvColumn = "id" | SnakeCase<MilestoneFieldName>;
+
+/**
+ * The CSV columns, in order, for export and import (import matches rows by id when given, else
+ * by name): the fields in their order, with the long free text last.
+ */
+export const MILESTONE_CSV_COLUMNS: readonly MilestoneCsvColumn[] = [
   "id",
-  "name",
-  "phase",
-  "area",
-  "system",
-  "weight",
-  "percent_complete",
-  "planned_start",
-  "baseline_finish",
-  "forecast_finish",
-  "actual_finish",
-  "audience",
-  "budget",
-  "depends_on",
-  "description",
-] as const;
+  ...MILESTONE_FIELD_NAMES.filter((f) => f !== "description").map(milestoneColumn),
+  milestoneColumn("description"),
+];
 
 /** GET /api/projects/:slug/curve. Without `from`/`to` the curve spans the visible programme. */
 export const CurveQuerySchema = z
@@ -234,43 +265,54 @@ export const BaselineParamSchema = z.strictObject({
 });
 
 /** One milestone's plan in a baseline version (GET /api/projects/:slug/baselines/:number). */
-export interface BaselineSnapshotMilestone {
-  id: number;
-  name: string;
-  audience: Audience;
-  plannedStart: string | null;
-  baselineFinish: string;
-  weight: number;
+const BaselineSnapshotMilestoneSchema = MilestoneFieldsSchema.pick({ name: true, audience: true, plannedStart: true, baselineFinish: true, weight: true }).extend({
+  id: z.number(),
   /** Null for visitors and where none was set. */
-  budget: number | null;
-}
+  budget: F.budget,
+});
+export type BaselineSnapshotMilestone = z.infer<typeof BaselineSnapshotMilestoneSchema>;
 
-export interface BaselineDetail extends BaselineVersion {
-  milestones: BaselineSnapshotMilestone[];
-}
+const BaselineDetailSchema = BaselineVersionSchema.extend({ milestones: z.array(BaselineSnapshotMilestoneSchema) });
+export type BaselineDetail = z.infer<typeof BaselineDetailSchema>;
 
 /** GET /api/projects/:slug/curve. */
-export interface CurveResponse {
-  at: string;
-  points: Array<{ date: string; plannedPercent: number; earnedPercent: number | null }>;
-}
+const CurveResponseSchema = z.object({
+  at: z.string(),
+  points: z.array(z.object({ date: z.string(), plannedPercent: z.number(), earnedPercent: z.number().nullable() })),
+});
+export type CurveResponse = z.infer<typeof CurveResponseSchema>;
 
-/** GET /api/projects/:slug/moves rows. */
-export interface MilestoneMovesRow {
-  milestoneId: number;
-  milestoneName: string;
-  moves: MilestoneMove[];
-}
+/** GET /api/projects/:slug/moves rows; each move as `summariseChanges` reports it. */
+const MilestoneMovesRowSchema = z.object({ milestoneId: z.number(), milestoneName: z.string(), moves: z.array(z.custom<MilestoneMove>()) });
+export type MilestoneMovesRow = z.infer<typeof MilestoneMovesRowSchema>;
 
 /** POST /api/projects/:slug/milestones/import → 200. */
-export interface CsvImportResult {
-  created: number;
-  updated: number;
+const CsvImportResultSchema = z.object({
+  created: z.number(),
+  updated: z.number(),
   /** Rows that matched a milestone and changed nothing. */
-  unchanged: number;
-}
+  unchanged: z.number(),
+});
+export type CsvImportResult = z.infer<typeof CsvImportResultSchema>;
 
-export interface CostActualRow {
-  periodEnd: string;
-  amount: number;
-}
+const CostActualRowSchema = z.object({ periodEnd: z.string(), amount: z.number() });
+export type CostActualRow = z.infer<typeof CostActualRowSchema>;
+
+/**
+ * GET /api/projects/:slug/health: the figures `computeProgrammeHealth` gives over what the caller
+ * may see (the domain's type: the shared pure function is their definition), what drives the
+ * forecast completion, and the project's time zone. Visitors get no money.
+ */
+export type ProgrammeHealthResponse = ProgrammeHealth & { drivers: ProjectDrivers | null; timeZone: string };
+
+/** The schemas of the programme's answers, by route; their types are the exported `Milestone`, `MilestoneEventRow`, …. */
+export const PROGRAMME_ANSWERS = {
+  milestone: MilestoneSchema,
+  milestoneEvent: MilestoneEventRowSchema,
+  baselineVersion: BaselineVersionSchema,
+  baselineDetail: BaselineDetailSchema,
+  curve: CurveResponseSchema,
+  moves: MilestoneMovesRowSchema,
+  csvImport: CsvImportResultSchema,
+  costActual: CostActualRowSchema,
+} as const;

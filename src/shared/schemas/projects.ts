@@ -4,22 +4,25 @@ export const SlugParamSchema = z.strictObject({
   slug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address").max(100),
 });
 
-export interface ProjectSettings {
-  toleranceWorkingDays: number;
-  behindWorkingDays: number;
-  weekendDays: number[];
-  holidays: string[];
-}
+export const ProjectSettingsSchema = z.object({
+  toleranceWorkingDays: z.number(),
+  behindWorkingDays: z.number(),
+  weekendDays: z.array(z.number()),
+  holidays: z.array(z.string()),
+});
+export type ProjectSettings = z.infer<typeof ProjectSettingsSchema>;
 
-export interface Project {
-  id: number;
-  slug: string;
-  name: string;
-  operatorName: string;
-  locationLabel: string;
-  timeZone: string;
-  description: string;
-  currency: string;
-  visitsOffered: boolean;
-  settings: ProjectSettings;
-}
+/** GET /api/projects (a list of these) and GET /api/projects/:slug. */
+export const ProjectSchema = z.object({
+  id: z.number(),
+  slug: z.string(),
+  name: z.string(),
+  operatorName: z.string(),
+  locationLabel: z.string(),
+  timeZone: z.string(),
+  description: z.string(),
+  currency: z.string(),
+  visitsOffered: z.boolean(),
+  settings: ProjectSettingsSchema,
+});
+export type Project = z.infer<typeof ProjectSchema>;

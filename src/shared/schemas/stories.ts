@@ -1,20 +1,21 @@
 import { z } from "zod";
 import { AudienceSchema, type Audience } from "./common.ts";
-import { ContentSlugSchema, type MediaPicture, type PostStatus, type PublishingProblem, type RevisionDiff } from "./posts.ts";
+import type { MediaPicture } from "./media.ts";
+import { ContentSlugSchema, type PostStatus, type PublishingProblem, type RevisionSummary } from "./publishing.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
  * The HTTP contract of photo stories (server/stories ↔ src/features/stories and the public pages).
- * Stories go through the same workflow as posts (`workflowStep` in posts.ts) and the same
- * photo checks (alt text, cleared, not restricted). A then-and-now pair must show two different
+ * Stories go through the same workflow as posts (publishing.ts; `workflowStep` in
+ * domain/publishing-workflow.ts) and the same photo checks (alt text, cleared, not restricted). A then-and-now pair must show two different
  * photos that both carry a capture time, taken on different calendar dates; the earlier one is
  * `before`. Lists are JSON arrays (no paging: a project has a handful of stories).
  *
- * Also as for posts: POST /api/stories/:id/schedule takes `ScheduleInputSchema` (posts.ts: an
- * instant with offset, or `{ date, time }` on the project's clock, in the future); every save
- * keeps a revision (GET /api/stories/:id/revisions, …/revisions/:n/diff?against=m with
- * `RevisionParamsSchema` and `DiffQuerySchema`, POST …/revisions/:n/restore); GET
- * /api/stories/:id/history lists the workflow steps; an old address answers 301 (see StoryDetail).
+ * Also as for posts (publishing.ts): POST /api/stories/:id/schedule takes `ScheduleInputSchema`;
+ * every save keeps a revision (GET /api/stories/:id/revisions, …/revisions/:n/diff, POST
+ * …/revisions/:n/restore); GET /api/stories/:id/history lists the workflow steps; an old address
+ * answers 301 (see StoryDetail). The diff compares the story's text as read: the title, the
+ * introduction, then one line per item in order (its kind, a pair's area, its caption).
  */
 
 const Caption = multilineText().max(1000, "must be at most 1000 characters");
@@ -113,38 +114,11 @@ export interface StoryDetail extends StorySummary {
   items: StoryItem[];
   version?: number;
   reviewComment?: string | null;
-  revisions?: StoryRevisionSummary[];
+  revisions?: RevisionSummary[];
   problems?: PublishingProblem[];
 }
 
 export interface StoryRedirect {
   /** The page path under the current slug. */
   redirectTo: string;
-}
-
-/** A row of GET /api/stories/:id/revisions (newest first). */
-export interface StoryRevisionSummary {
-  number: number;
-  createdAt: string;
-  authorName: string;
-  title: string;
-  status: PostStatus;
-  note: string | null;
-}
-
-/**
- * GET /api/stories/:id/revisions/:n/diff: a word diff of the story's text as read — the title,
- * the introduction, then one line per item in order (its kind, a pair's area, its caption).
- */
-export type StoryRevisionDiff = RevisionDiff;
-
-/** A row of GET /api/stories/:id/history (newest first): a workflow step, or the scheduler's. */
-export interface PublishingEvent {
-  action: string;
-  from: PostStatus;
-  to: PostStatus;
-  /** Who took the step; null when the scheduler held it back. */
-  by: string | null;
-  comment: string | null;
-  at: string;
 }

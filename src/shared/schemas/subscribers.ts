@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { EmailSchema } from "./common.ts";
-import { SystemSchema, type System } from "./programme.ts";
+import { SystemSchema } from "./programme.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -15,7 +15,8 @@ export const FrequencySchema = z.enum(["immediate", "weekly", "monthly"]);
 export type Frequency = z.infer<typeof FrequencySchema>;
 export const SubscriberStatusSchema = z.enum(["pending", "confirmed", "unsubscribed", "bounced", "complained"]);
 export type SubscriberStatus = z.infer<typeof SubscriberStatusSchema>;
-export type SubscriberAudience = "public" | "investor";
+export const SubscriberAudienceSchema = z.enum(["public", "investor"]);
+export type SubscriberAudience = z.infer<typeof SubscriberAudienceSchema>;
 
 /**
  * The consent wording shown beside the subscribe form. Its version is stored with each
@@ -67,10 +68,8 @@ export const SubscriptionInputSchema = z.strictObject({
 });
 export type SubscriptionInput = z.infer<typeof SubscriptionInputSchema>;
 
-export interface SubscriptionAccepted {
-  ok: true;
-  message: string;
-}
+export const SubscriptionAcceptedSchema = z.object({ ok: z.literal(true), message: z.string() });
+export type SubscriptionAccepted = z.infer<typeof SubscriptionAcceptedSchema>;
 
 /** The signed token of a confirmation, preferences or unsubscribe link. */
 export const SubscriberTokenParamSchema = z.strictObject({
@@ -102,56 +101,76 @@ export const InvestorDigestInputSchema = z.strictObject({
 });
 export type InvestorDigestInput = z.infer<typeof InvestorDigestInputSchema>;
 
+/** The project a subscription is about, as the pages name it. */
+const ProjectNameSchema = z.object({ slug: z.string(), name: z.string() });
+const ConsentWordingSchema = z.object({ version: z.string(), text: z.string() });
+/** The topics a subscriber may choose from: the project's public areas and the plant systems. */
+const TopicChoicesSchema = z.object({ areas: z.array(z.string()), systems: z.array(SystemSchema) });
+
 /** GET /api/projects/:slug/subscription-options */
-export interface SubscriptionOptions {
-  project: { slug: string; name: string; operatorName: string };
-  consent: { version: string; text: string };
+export const SubscriptionOptionsSchema = z.object({
+  project: z.object({ slug: z.string(), name: z.string(), operatorName: z.string() }),
+  consent: ConsentWordingSchema,
   /** Areas named by the project's public programme. */
-  areas: string[];
-  systems: System[];
-}
+  areas: z.array(z.string()),
+  systems: z.array(SystemSchema),
+});
+export type SubscriptionOptions = z.infer<typeof SubscriptionOptionsSchema>;
 
 /** GET /api/subscriptions/confirm/:token — describes the link; changes nothing. */
-export interface ConfirmationView {
-  email: string;
-  name: string;
-  project: { slug: string; name: string };
-  status: SubscriberStatus;
-  consent: { version: string; text: string };
-}
+export const ConfirmationViewSchema = z.object({
+  email: z.string(),
+  name: z.string(),
+  project: ProjectNameSchema,
+  status: SubscriberStatusSchema,
+  consent: ConsentWordingSchema,
+});
+export type ConfirmationView = z.infer<typeof ConfirmationViewSchema>;
 
-export interface ConfirmationDone {
-  status: "confirmed";
+/** POST /api/subscriptions/confirm/:token */
+export const ConfirmationDoneSchema = z.object({
+  status: z.literal("confirmed"),
   /** The subscriber's own preferences page (same-site path). */
-  preferencesPath: string;
-}
+  preferencesPath: z.string(),
+});
+export type ConfirmationDone = z.infer<typeof ConfirmationDoneSchema>;
 
-export interface PreferencesView {
-  email: string;
-  name: string;
-  organisation: string | null;
-  interest: Interest;
-  frequency: Frequency;
-  topics: Topics | null;
-  status: SubscriberStatus;
-  project: { slug: string; name: string };
-  options: { areas: string[]; systems: System[] };
-}
+/** GET and PATCH /api/subscriptions/preferences/:token */
+export const PreferencesViewSchema = z.object({
+  email: z.string(),
+  name: z.string(),
+  organisation: z.string().nullable(),
+  interest: InterestSchema,
+  frequency: FrequencySchema,
+  topics: TopicsSchema.nullable(),
+  status: SubscriberStatusSchema,
+  project: ProjectNameSchema,
+  options: TopicChoicesSchema,
+});
+export type PreferencesView = z.infer<typeof PreferencesViewSchema>;
 
-export interface UnsubscribeView {
-  email: string;
-  project: { slug: string; name: string };
-  status: SubscriberStatus;
-}
+/** GET /api/subscriptions/unsubscribe/:token */
+export const UnsubscribeViewSchema = z.object({
+  email: z.string(),
+  project: ProjectNameSchema,
+  status: SubscriberStatusSchema,
+});
+export type UnsubscribeView = z.infer<typeof UnsubscribeViewSchema>;
 
-export interface InvestorDigestSetting {
-  project: { slug: string; name: string };
-  enabled: boolean;
-  frequency: Frequency;
-  topics: Topics | null;
-  status: SubscriberStatus | null;
-  options: { areas: string[]; systems: System[] };
-}
+/** What leaving answers (from the preferences page or the unsubscribe page): the subscription's status now. */
+export const SubscriptionStatusResultSchema = z.object({ status: SubscriberStatusSchema });
+export type SubscriptionStatusResult = z.infer<typeof SubscriptionStatusResultSchema>;
+
+/** GET /api/investors/digest (one per project), PATCH /api/investors/digest/:slug */
+export const InvestorDigestSettingSchema = z.object({
+  project: ProjectNameSchema,
+  enabled: z.boolean(),
+  frequency: FrequencySchema,
+  topics: TopicsSchema.nullable(),
+  status: SubscriberStatusSchema.nullable(),
+  options: TopicChoicesSchema,
+});
+export type InvestorDigestSetting = z.infer<typeof InvestorDigestSettingSchema>;
 
 /** A topic filter or CSV topic: `area:Hall 2A` or `system:cooling`. */
 export const TopicRefSchema = z.union([
@@ -171,32 +190,35 @@ export const SubscriberListQuerySchema = z.strictObject({
 });
 export type SubscriberListQuery = z.infer<typeof SubscriberListQuerySchema>;
 
-export interface SubscriberRow {
-  id: number;
-  project: { slug: string; name: string };
-  email: string;
-  name: string;
-  organisation: string | null;
-  interest: Interest;
-  audience: SubscriberAudience;
-  frequency: Frequency;
-  topics: Topics | null;
-  status: SubscriberStatus;
+export const SubscriberRowSchema = z.object({
+  id: z.number(),
+  project: ProjectNameSchema,
+  email: z.string(),
+  name: z.string(),
+  organisation: z.string().nullable(),
+  interest: InterestSchema,
+  audience: SubscriberAudienceSchema,
+  frequency: FrequencySchema,
+  topics: TopicsSchema.nullable(),
+  status: SubscriberStatusSchema,
   /** Linked to an investor account (set in the investor room). */
-  account: boolean;
-  consentAt: string | null;
-  consentSource: string | null;
-  consentVersion: string | null;
-  confirmedAt: string | null;
-  lastDigestAt: string | null;
-  createdAt: string;
-}
+  account: z.boolean(),
+  consentAt: z.string().nullable(),
+  consentSource: z.string().nullable(),
+  consentVersion: z.string().nullable(),
+  confirmedAt: z.string().nullable(),
+  lastDigestAt: z.string().nullable(),
+  createdAt: z.string(),
+});
+export type SubscriberRow = z.infer<typeof SubscriberRowSchema>;
 
-export interface SubscriberList {
-  rows: SubscriberRow[];
+/** GET /api/subscribers */
+export const SubscriberListSchema = z.object({
+  rows: z.array(SubscriberRowSchema),
   /** Every match; `rows` holds at most the first SUBSCRIBER_LIST_LIMIT. */
-  total: number;
-}
+  total: z.number(),
+});
+export type SubscriberList = z.infer<typeof SubscriberListSchema>;
 export const SUBSCRIBER_LIST_LIMIT = 500;
 
 /**
@@ -231,25 +253,33 @@ export const SubscriberImportInputSchema = z.strictObject({
 });
 export type SubscriberImportInput = z.infer<typeof SubscriberImportInputSchema>;
 
-export interface SubscriberImportResult {
-  imported: number;
+/** A line of an imported file, and why it was left out or refused. */
+const ImportLineSchema = z.object({ line: z.number(), reason: z.string() });
+
+/** POST /api/subscribers/import */
+export const SubscriberImportResultSchema = z.object({
+  imported: z.number(),
   /** Imported as confirmed on the file's consent evidence. */
-  confirmedOnEvidence: number;
+  confirmedOnEvidence: z.number(),
   /** Sent a confirmation e-mail; receive nothing else until they confirm. */
-  confirmationsSent: number;
+  confirmationsSent: z.number(),
   /** Rows left out on purpose (already on the list, or suppressed), with their line numbers. */
-  skipped: Array<{ line: number; reason: string }>;
-}
+  skipped: z.array(ImportLineSchema),
+});
+export type SubscriberImportResult = z.infer<typeof SubscriberImportResultSchema>;
 
 /** Error body of a refused import (422, code `csv_invalid`): nothing was written. */
-export interface SubscriberImportErrorBody {
-  error: { code: "csv_invalid"; message: string; rows: Array<{ line: number; reason: string }> };
-}
+export const SubscriberImportErrorBodySchema = z.object({
+  error: z.object({ code: z.literal("csv_invalid"), message: z.string(), rows: z.array(ImportLineSchema) }),
+});
+export type SubscriberImportErrorBody = z.infer<typeof SubscriberImportErrorBodySchema>;
 
-export interface ErasureResult {
-  erased: { subscriptions: number; enquiries: number };
-  suppressed: true;
-}
+/** DELETE /api/subscribers/:id — what was erased; the address stays suppressed. */
+export const ErasureResultSchema = z.object({
+  erased: z.object({ subscriptions: z.number(), enquiries: z.number() }),
+  suppressed: z.literal(true),
+});
+export type ErasureResult = z.infer<typeof ErasureResultSchema>;
 
 /**
  * POST /api/webhooks/mail-events — a hosted provider's delivery events, signed with the
@@ -272,7 +302,5 @@ export const MailEventsInputSchema = z.strictObject({
 });
 export type MailEventsInput = z.infer<typeof MailEventsInputSchema>;
 
-export interface MailEventsResult {
-  processed: number;
-  ignored: number;
-}
+export const MailEventsResultSchema = z.object({ processed: z.number(), ignored: z.number() });
+export type MailEventsResult = z.infer<typeof MailEventsResultSchema>;

@@ -10,25 +10,33 @@ export const UserUpdateInputSchema = z
   .refine((v) => v.role !== undefined || v.disabled !== undefined, { message: "give a role or disabled" });
 export type UserUpdateInput = z.infer<typeof UserUpdateInputSchema>;
 
-export interface UserRow {
-  id: number;
-  email: string;
-  name: string;
-  role: z.infer<typeof RoleSchema>;
-  disabled: boolean;
-  lastSignInAt: string | null;
-  createdAt: string;
-}
+/** GET /api/users (a list of these); PATCH /api/users/:id answers the changed one. */
+export const UserRowSchema = z.object({
+  id: z.number(),
+  email: z.string(),
+  name: z.string(),
+  role: RoleSchema,
+  disabled: z.boolean(),
+  lastSignInAt: z.string().nullable(),
+  createdAt: z.string(),
+});
+export type UserRow = z.infer<typeof UserRowSchema>;
 
-export interface InvitationRow {
-  id: number;
-  email: string;
-  role: z.infer<typeof RoleSchema>;
-  invitedBy: string | null;
-  createdAt: string;
-  expiresAt: string;
-  status: "pending" | "accepted" | "expired" | "revoked";
-}
+/** GET /api/users/invitations (a list of these). */
+export const InvitationRowSchema = z.object({
+  id: z.number(),
+  email: z.string(),
+  role: RoleSchema,
+  invitedBy: z.string().nullable(),
+  createdAt: z.string(),
+  expiresAt: z.string(),
+  status: z.enum(["pending", "accepted", "expired", "revoked"]),
+});
+export type InvitationRow = z.infer<typeof InvitationRowSchema>;
+
+/** POST /api/users/invitations → 201: the invitation made (its link goes by e-mail only). */
+export const InvitationSentSchema = z.object({ id: z.number(), email: z.string(), role: RoleSchema, expiresAt: z.string() });
+export type InvitationSent = z.infer<typeof InvitationSentSchema>;
 
 export const AuditQuerySchema = z.strictObject({
   action: plainText({ trim: false }).max(64).optional(),
@@ -36,14 +44,16 @@ export const AuditQuerySchema = z.strictObject({
   limit: z.coerce.number().int().min(1).max(500).default(100),
 });
 
-export interface AuditEvent {
-  id: number;
-  at: string;
-  actorEmail: string | null;
-  action: string;
-  targetType: string | null;
-  targetId: string | null;
-  targetLabel: string | null;
-  ip: string | null;
-  detail: Record<string, unknown> | null;
-}
+/** GET /api/audit (a list of these, newest first). */
+export const AuditEventSchema = z.object({
+  id: z.number(),
+  at: z.string(),
+  actorEmail: z.string().nullable(),
+  action: z.string(),
+  targetType: z.string().nullable(),
+  targetId: z.string().nullable(),
+  targetLabel: z.string().nullable(),
+  ip: z.string().nullable(),
+  detail: z.record(z.string(), z.unknown()).nullable(),
+});
+export type AuditEvent = z.infer<typeof AuditEventSchema>;

@@ -1,15 +1,17 @@
+import { useSuspenseQuery } from "@tanstack/react-query";
 import type { ReactNode } from "react";
 import { Link, Navigate, useLocation } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
-import { Spinner } from "../../../components/ui/sheet.tsx";
-import { useMe } from "../../../lib/session.ts";
+import { meQueryOptions } from "../../../lib/session.ts";
 import { homeFor } from "../api.ts";
 
-/** Signed out → sign-in (then back here); signed in with the wrong role → a clear refusal. */
+/**
+ * Signed out → sign-in (then back here); signed in with the wrong role → a clear refusal.
+ * Who is signed in is primed by the area's loader (`sessionLoader` in lib/session.ts), so this never waits on its own.
+ */
 export function RequireRole({ roles, area, children }: { roles: Role[]; area: string; children: ReactNode }) {
-  const me = useMe();
+  const me = useSuspenseQuery(meQueryOptions());
   const location = useLocation();
-  if (me.isPending) return <Spinner label="Checking your sign-in" />;
   if (!me.data) {
     const next = encodeURIComponent(location.pathname + location.search);
     return <Navigate to={`/sign-in?next=${next}`} replace />;

@@ -1,4 +1,5 @@
 import { zodResolver } from "@hookform/resolvers/zod";
+import { useQuery } from "@tanstack/react-query";
 import { useEffect, useId, useRef, useState } from "react";
 import { Controller, useForm } from "react-hook-form";
 import { toast } from "sonner";
@@ -6,11 +7,11 @@ import type { z } from "zod";
 import { MediaPatchInputSchema, SensitivitySchema, type MediaItem, type MediaPatchInput, type MediaVocabulary } from "#shared/schemas/media.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
-import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
+import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { applyFieldErrors, SYSTEM_WORD } from "../../../lib/format.ts";
 import { useMe } from "../../../lib/session.ts";
-import { canReview, useMediaItem, useRetry, useUpdateMedia } from "../api.ts";
+import { canReview, mediaItemQueryOptions, useRetry, useUpdateMedia } from "../api.ts";
 import { formatBytes, formatTakenAt, SENSITIVITY_WORD } from "../words.ts";
 import { FocalPicker } from "./focal-picker.tsx";
 import { MissingAlt, SecurityFlag, SensitivityWord, StatusWord } from "./marks.tsx";
@@ -177,63 +178,67 @@ function EditForm({ item, slug, vocabulary, onClose }: { item: MediaItem; slug: 
   );
 }
 
-/** The edit panel beside the grid: the photo's facts, its focal point, words and tags. */
-export function EditPanel({ id, slug, vocabulary, onClose }: { id: number; slug: string; vocabulary: MediaVocabulary; onClose: () => void }) {
-  const item = useMediaItem(id);
-  const retry = useRetry(slug);
+/**
+ * The edit panel beside the grid: the photo's facts, its focal point, words and tags. It opens
+ * at once on the copy the grid already holds (`shown`), and takes the server's own copy when it
+ * arrives; a photo that cannot be read says so here, and the library stays.
+ */
+export function EditPanel({ shown, slug, vocabulary, onClose }: { shown: MediaItem; slug: string; vocabulary: MediaVocabulary; onClose: () => void }) {
+  const item = useQuery({ ...mediaItemQueryOptions(shown.id), placeholderData: shown });
   const heading = useRef<HTMLHeadingElement>(null);
-  useEffect(() => heading.current?.focus(), [id]);
+  useEffect(() => heading.current?.focus(), [shown.id]);
   return (
     <aside aria-labelledby="media-edit-h" className="flex flex-col gap-3 border border-ink bg-sheet p-4" onKeyDown={(e) => e.key === "Escape" && onClose()}>
       <h2 id="media-edit-h" ref={heading} tabIndex={-1} className="break-all text-lg font-semibold outline-none">
-        {item.data?.name ?? "Photo"}
+        {item.data?.name ?? shown.name}
       </h2>
-      {item.isPending ? (
-        <Spinner label="Loading the photo" />
-      ) : item.isError ? (
-        <Notice tone="error">{item.error.message}</Notice>
-      ) : (
-        <>
-          <dl className="grid grid-cols-[auto_1fr] gap-x-3 gap-y-0.5 text-sm">
-            <dt className="text-ink-faint">State</dt>
-            <dd className="flex flex-wrap gap-2">
-              <StatusWord status={item.data.status} />
-              <SensitivityWord sensitivity={item.data.sensitivity} />
-              {item.data.flaggedForReview ? <SecurityFlag /> : null}
-              {!item.data.altText ? <MissingAlt /> : null}
-            </dd>
-            <dt className="text-ink-faint">Taken</dt>
-            <dd>{formatTakenAt(item.data.takenAt)}</dd>
-            <dt className="text-ink-faint">Size</dt>
-            <dd className="tabular">
-              {item.data.width} × {item.data.height} px · {formatBytes(item.data.bytes)}
-            </dd>
-            <dt className="text-ink-faint">Location data</dt>
-            <dd>{item.data.hadGps ? "The original carried GPS; it is stripped from everything published." : "None in the original."}</dd>
-            {item.data.reviewedBy ? (
-              <>
-                <dt className="text-ink-faint">Reviewed by</dt>
-                <dd>{item.data.reviewedBy}</dd>
-              </>
-            ) : null}
-          </dl>
-          <p className="text-sm">
-            <a href={item.data.originalUrl} className="underline underline-offset-4" target="_blank" rel="noreferrer">
-              Open the original
-            </a>{" "}
-            <span className="text-ink-faint">(staff only; it keeps its metadata)</span>
-          </p>
-          {item.data.status === "failed" ? (
-            <Notice tone="error" title="Processing failed">
-              {item.data.failureReason}{" "}
-              <Button size="sm" onClick={() => retry.mutate(item.data.id)} busy={retry.isPending}>
-                Try again
-              </Button>
-            </Notice>
-          ) : null}
-          <EditForm item={item.data} slug={slug} vocabulary={vocabulary} onClose={onClose} />
-        </>
-      )}
+      {item.isError ? <Notice tone="error">{item.error.message}</Notice> : <EditPanelBody item={item.data ?? shown} slug={slug} vocabulary={vocabulary} onClose={onClose} />}
     </aside>
+  );
+}
+
+function EditPanelBody({ item, slug, vocabulary, onClose }: { item: MediaItem; slug: string; vocabulary: MediaVocabulary; onClose: () => void }) {
+  const retry = useRetry(slug);
+  return (
+    <>
+      <dl className="grid grid-cols-[auto_1fr] gap-x-3 gap-y-0.5 text-sm">
+        <dt className="text-ink-faint">State</dt>
+        <dd className="flex flex-wrap gap-2">
+          <StatusWord status={item.status} />
+          <SensitivityWord sensitivity={item.sensitivity} />
+          {item.flaggedForReview ? <SecurityFlag /> : null}
+          {!item.altText ? <MissingAlt /> : null}
+        </dd>
+        <dt className="text-ink-faint">Taken</dt>
+        <dd>{formatTakenAt(item.takenAt)}</dd>
+        <dt className="text-ink-faint">Size</dt>
+        <dd className="tabular">
+          {item.width} × {item.height} px · {formatBytes(item.bytes)}
+        </dd>
+        <dt className="text-ink-faint">Location data</dt>
+        <dd>{item.hadGps ? "The original carried GPS; it is stripped from everything published." : "None in the original."}</dd>
+        {item.reviewedBy ? (
+          <>
+            <dt className="text-ink-faint">Reviewed by</dt>
+            <dd>{item.reviewedBy}</dd>
+          </>
+        ) : null}
+      </dl>
+      <p className="text-sm">
+        <a href={item.originalUrl} className="underline underline-offset-4" target="_blank" rel="noreferrer">
+          Open the original
+        </a>{" "}
+        <span className="text-ink-faint">(staff only; it keeps its metadata)</span>
+      </p>
+      {item.status === "failed" ? (
+        <Notice tone="error" title="Processing failed">
+          {item.failureReason}{" "}
+          <Button size="sm" onClick={() => retry.mutate(item.id)} busy={retry.isPending}>
+            Try again
+          </Button>
+        </Notice>
+      ) : null}
+      <EditForm item={item} slug={slug} vocabulary={vocabulary} onClose={onClose} />
+    </>
   );
 }

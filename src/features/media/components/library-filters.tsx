@@ -1,3 +1,4 @@
+import { useEffect, useState } from "react";
 import { SensitivitySchema, type MediaVocabulary } from "#shared/schemas/media.ts";
 import type { System } from "#shared/schemas/programme.ts";
 import { Button } from "../../../components/ui/button.tsx";
@@ -10,9 +11,15 @@ import { SENSITIVITY_WORD } from "../words.ts";
 export function LibraryFiltersForm({ filters, onChange, vocabulary }: { filters: LibraryFilters; onChange: (f: LibraryFilters) => void; vocabulary: MediaVocabulary }) {
   const set = (change: Partial<LibraryFilters>) => onChange({ ...filters, ...change, page: 1 });
   const any = Object.entries(filters).some(([k, v]) => k !== "page" && v !== undefined && v !== "" && v !== false);
+  // The words field keeps what is typed while the library asks for the matching photos (the address follows).
+  const [q, setQ] = useState(filters.q ?? "");
+  useEffect(() => setQ(filters.q ?? ""), [filters.q]);
   return (
     <form role="search" aria-label="Filter the library" className="grid grid-cols-1 gap-3 sm:grid-cols-2 lg:grid-cols-4" onSubmit={(e) => e.preventDefault()}>
-      <TextField label="Words in name, caption or alt text" type="search" value={filters.q ?? ""} onChange={(e) => set({ q: e.target.value || undefined })} />
+      <TextField label="Words in name, caption or alt text" type="search" value={q} onChange={(e) => {
+          setQ(e.target.value);
+          set({ q: e.target.value || undefined });
+        }} />
       <SelectField
         label="Area"
         value={filters.area ?? ""}

@@ -1,6 +1,6 @@
 import { createContext, useContext } from "react";
 import type { MediaPicture } from "#shared/schemas/media.ts";
-import type { PublishingProblem } from "#shared/schemas/posts.ts";
+import type { PublishingProblem } from "#shared/schemas/publishing.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 
 /**

@@ -2,7 +2,7 @@ import { useEffect, useState } from "react";
 import { Link } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
-import type { PublishingProblem } from "#shared/schemas/posts.ts";
+import type { PublishingProblem } from "#shared/schemas/publishing.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { Dialog } from "../../../components/ui/dialog.tsx";
 import { TextAreaField } from "../../../components/ui/field.tsx";

@@ -1,7 +1,7 @@
 import { CartesianGrid, Line, LineChart, ReferenceLine, Tooltip, XAxis, YAxis } from "recharts";
 import { fromDayNumber, toDayNumber } from "#shared/domain/calendar.ts";
 import { formatDate } from "../../../lib/format.ts";
-import type { CurveResponse } from "../api.ts";
+import type { CurveResponse } from "#shared/schemas/programme.ts";
 import { formatAxisMonth, monthTicks } from "../dates.ts";
 import { formatPercent } from "../words.ts";
 import { ACCENT, ChartFrame, INK_SOFT, RULE } from "./chart-frame.tsx";

@@ -2,7 +2,7 @@ import type { ReactNode } from "react";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
 import { formatDate } from "../../../lib/format.ts";
-import type { HealthResponse } from "../api.ts";
+import type { ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
 import { formatIndex, formatMoney, formatPercent, slipInWords } from "../words.ts";
 
 function Figure({ label, value, children, testId }: { label: string; value: ReactNode; children: ReactNode; testId?: string }) {
@@ -36,7 +36,7 @@ export function explainSpiT(spiT: number | null, es: number | null, actualTime: 
  * The programme's health figures, each with one plain sentence of what it means at
  * its current value. Money figures appear only when the API sends them.
  */
-export function HealthFigures({ health, currency }: { health: HealthResponse; currency?: string | null }) {
+export function HealthFigures({ health, currency }: { health: ProgrammeHealthResponse; currency?: string | null }) {
   const es = health.earnedSchedule;
   const slip = health.completionSlipDays;
   const money = health.money;

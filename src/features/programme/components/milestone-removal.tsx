@@ -1,14 +1,15 @@
 import { zodResolver } from "@hookform/resolvers/zod";
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
 import { toast } from "sonner";
 import { MilestoneRemovalInputSchema, type Milestone, type MilestoneRemovalInput } from "#shared/schemas/programme.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { TextAreaField } from "../../../components/ui/field.tsx";
-import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
+import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { applyFieldErrors, formatInstant } from "../../../lib/format.ts";
-import { useDeleteMilestone, useMilestoneRemoval, useMilestones } from "../api.ts";
+import { milestonesQueryOptions, REMOVED_ONLY, useDeleteMilestone, useMilestoneRemoval } from "../api.ts";
 
 /**
  * Taking a milestone out of the programme, or putting it back, always with a reason that its
@@ -86,11 +87,9 @@ export function MilestoneRemoval({ slug, milestone, timeZone, onDone }: { slug: 
   );
 }
 
-/** The milestones removed from the programme, each opening its record (history, reason, restore). */
+/** The milestones removed from the programme, each opening its record (history, reason, restore); the page's loader primed them. */
 export function RemovedMilestones({ slug, timeZone, onOpen }: { slug: string; timeZone: string; onOpen: (m: Milestone) => void }) {
-  const removed = useMilestones(slug, { removed: "only" });
-  if (removed.isPending) return <Spinner label="Loading removed milestones" />;
-  if (removed.isError) return <Notice tone="error">{removed.error.message}</Notice>;
+  const removed = useSuspenseQuery(milestonesQueryOptions(slug, REMOVED_ONLY));
   if (removed.data.length === 0) return <p className="text-sm text-ink-soft">No milestone has been removed from the programme.</p>;
   return (
     <ul className="flex flex-col divide-y divide-rule text-sm" aria-label="Milestones removed from the programme">

@@ -1,6 +1,6 @@
 import type { MilestoneMove } from "#shared/domain/programme-changes.ts";
 import { formatDate } from "../../../lib/format.ts";
-import type { MilestoneMoves } from "../api.ts";
+import type { MilestoneMovesRow } from "#shared/schemas/programme.ts";
 import { AUDIENCE_WORD } from "../words.ts";
 
 function days(n: number | undefined): string {
@@ -45,7 +45,7 @@ const MARK: Record<MilestoneMove["kind"], string> = {
 };
 
 /** "What moved" between two dates, milestone by milestone, with the notes left at the time. */
-export function MovesList({ moves, from, to }: { moves: MilestoneMoves[]; from: string; to: string }) {
+export function MovesList({ moves, from, to }: { moves: MilestoneMovesRow[]; from: string; to: string }) {
   if (moves.length === 0) return <p className="text-sm text-ink-soft">Nothing moved between {formatDate(from)} and {formatDate(to)}.</p>;
   return (
     <ul className="flex flex-col divide-y divide-rule" data-testid="moves">

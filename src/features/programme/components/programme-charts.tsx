@@ -1,7 +1,7 @@
 import { useId, useRef, useState, type KeyboardEvent } from "react";
-import type { Milestone } from "#shared/schemas/programme.ts";
+import type { Milestone, ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
 import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
-import { useCurve, type HealthResponse } from "../api.ts";
+import { useCurve } from "../api.ts";
 import { SCurveChart } from "./chart-s-curve.tsx";
 import { SlipChart } from "./chart-slip.tsx";
 import { TimelineChart } from "./chart-timeline.tsx";
@@ -14,13 +14,13 @@ const TABS = [
 type TabId = (typeof TABS)[number]["id"];
 
 /** The date range of the S-curve: from the week progress was planned to begin to the later of baseline and forecast completion. */
-export function curveRange(health: Pick<HealthResponse, "earnedSchedule" | "baselineCompletion" | "forecastCompletion" | "at">): { from: string; to: string } {
+export function curveRange(health: Pick<ProgrammeHealthResponse, "earnedSchedule" | "baselineCompletion" | "forecastCompletion" | "at">): { from: string; to: string } {
   const from = health.earnedSchedule.start ?? health.at;
   const ends = [health.baselineCompletion, health.forecastCompletion, health.at].filter((d): d is string => Boolean(d)).sort();
   return { from, to: ends[ends.length - 1] ?? health.at };
 }
 
-function CurvePanel({ slug, health }: { slug: string; health: HealthResponse }) {
+function CurvePanel({ slug, health }: { slug: string; health: ProgrammeHealthResponse }) {
   const curve = useCurve(slug, curveRange(health));
   if (curve.isPending) return <Spinner label="Drawing the curve" />;
   if (curve.isError) return <Notice tone="error">{curve.error.message}</Notice>;
@@ -31,7 +31,7 @@ function CurvePanel({ slug, health }: { slug: string; health: HealthResponse }) 
  * The three programme charts behind tabs (one at a time keeps a phone screen
  * readable): the S-curve, baseline against forecast, and slip by milestone.
  */
-export function ProgrammeCharts({ slug, milestones, health, initial = "curve" }: { slug: string; milestones: Milestone[]; health: HealthResponse; initial?: TabId }) {
+export function ProgrammeCharts({ slug, milestones, health, initial = "curve" }: { slug: string; milestones: Milestone[]; health: ProgrammeHealthResponse; initial?: TabId }) {
   const [tab, setTab] = useState<TabId>(initial);
   const base = useId();
   const refs = useRef<Record<string, HTMLButtonElement | null>>({});

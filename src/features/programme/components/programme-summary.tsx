@@ -2,11 +2,12 @@ import { Link } from "react-router-dom";
 import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
 import { formatDate } from "../../../lib/format.ts";
-import { useHealth, type HealthResponse } from "../api.ts";
+import type { ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
+import { useHealth } from "../api.ts";
 import { formatIndex, formatPercent, signedDays } from "../words.ts";
 
 /** Counts by status, each as shape, word and number. */
-export function StatusCounts({ counts }: { counts: HealthResponse["counts"] }) {
+export function StatusCounts({ counts }: { counts: ProgrammeHealthResponse["counts"] }) {
   return (
     <ul className="flex flex-wrap gap-x-4 gap-y-1 text-sm" aria-label="Milestones by status">
       <li className="flex items-center gap-1.5">
@@ -26,7 +27,7 @@ export function StatusCounts({ counts }: { counts: HealthResponse["counts"] }) {
 }
 
 /** The programme's headline figures in one strip: percent complete, SPI, forecast against baseline completion, counts. */
-export function HealthStrip({ health }: { health: HealthResponse }) {
+export function HealthStrip({ health }: { health: ProgrammeHealthResponse }) {
   const slip = health.completionSlipDays;
   return (
     <div className="flex flex-col gap-3">

@@ -1,4 +1,5 @@
 import { zodResolver } from "@hookform/resolvers/zod";
+import { useSuspenseQuery } from "@tanstack/react-query";
 import { useMemo } from "react";
 import { useForm, useWatch } from "react-hook-form";
 import { toast } from "sonner";
@@ -6,17 +7,15 @@ import { BaselineInputSchema, type Milestone } from "#shared/schemas/programme.t
 import type { ProgrammeSettings } from "#shared/domain/programme-health.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { TextAreaField } from "../../../components/ui/field.tsx";
-import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { applyFieldErrors, formatInstant } from "../../../lib/format.ts";
-import { useBaselines, useRebaseline } from "../api.ts";
+import { baselinesQueryOptions, useRebaseline } from "../api.ts";
 import { previewDrafts, rebaselineDrafts } from "../preview.ts";
 import { HealthPreview } from "./health-preview.tsx";
 
+/** The baseline versions, as the page's loader primed them. */
 function Versions({ slug, timeZone }: { slug: string; timeZone: string }) {
-  const baselines = useBaselines(slug);
-  if (baselines.isPending) return <Spinner label="Loading baselines" />;
-  if (baselines.isError) return <Notice tone="error">{baselines.error.message}</Notice>;
+  const baselines = useSuspenseQuery(baselinesQueryOptions(slug));
   if (baselines.data.length === 0) return <p className="text-sm text-ink-soft">No baseline has been recorded yet.</p>;
   return (
     <ol className="flex flex-col divide-y divide-rule text-sm" aria-label="Baseline versions, newest first">

@@ -1,7 +1,7 @@
 import { closestCenter, DndContext, KeyboardSensor, PointerSensor, useSensor, useSensors, type DragEndEvent } from "@dnd-kit/core";
 import { arrayMove, SortableContext, sortableKeyboardCoordinates, useSortable, verticalListSortingStrategy } from "@dnd-kit/sortable";
 import type { MediaPicture } from "#shared/schemas/media.ts";
-import type { PublishingProblem } from "#shared/schemas/posts.ts";
+import type { PublishingProblem } from "#shared/schemas/publishing.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { Picture } from "../../../components/ui/picture.tsx";
 

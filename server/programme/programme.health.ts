@@ -1,0 +1,112 @@
+import type { CurveResponse, ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
+import { daysBetween } from "#shared/domain/calendar.ts";
+import { projectDrivers } from "#shared/domain/programme-dependencies.ts";
+import { computeProgrammeHealth, earnedCurve, earnedPercentOfMilestone, milestoneFinish } from "#shared/domain/programme-health.ts";
+import { AppError } from "../core/app-error.ts";
+import { endOfDateInZone } from "../projects/projects.service.ts";
+import { listCostActuals } from "./programme.baselines.repository.ts";
+import { toInput, viewerOf, type ProgrammeContext, type Reader, type View } from "./programme.context.ts";
+import { listProjectEvents } from "./programme.events.repository.ts";
+import { listMilestones, type MilestoneRecord } from "./programme.repository.ts";
+
+/** A curve of more points than this is a mistake in the query, not a chart. */
+const MAX_CURVE_POINTS = 2_000;
+
+/**
+ * The programme's figures: its health at a date (percent complete, planned percent, the
+ * schedule and cost indices, earned schedule, status counts, what drives completion) and the
+ * S-curve of planned against earned percent. A build has one set of headline figures; visitors
+ * get no money.
+ */
+export function createHealthUseCases(ctx: ProgrammeContext) {
+  const { db, projects } = ctx;
+
+  /**
+   * Earned percent at each past date, reconstructed from the current state by undoing,
+   * newest first, every percent and actual-finish event made after that date ended in
+   * the project's time zone. Weights are today's, like the planned curve's.
+   */
+  async function replayEarned(view: View, records: readonly MilestoneRecord[], dates: readonly string[]): Promise<Map<string, number>> {
+    const result = new Map<string, number>();
+    if (dates.length === 0) return result;
+    const tz = view.project.timeZone;
+    const state = new Map(records.map((m) => [m.id, toInput(m)]));
+    let totalWeight = 0;
+    for (const m of records) totalWeight += m.weight;
+    const events = await listProjectEvents(db, view.project.id, view.viewer, {
+      from: endOfDateInZone(dates[0]!, tz),
+      fields: ["percent_complete", "actual_finish"],
+    });
+    let next = 0;
+    for (const date of [...dates].sort().reverse()) {
+      const boundary = endOfDateInZone(date, tz).getTime();
+      while (next < events.length && Date.parse(events[next]!.at) >= boundary) {
+        const e = events[next]!;
+        next += 1;
+        const m = state.get(e.milestoneId);
+        if (!m) continue;
+        if (e.field === "percent_complete") m.percentComplete = e.from === null ? 0 : Number(e.from);
+        else m.actualFinish = e.from;
+      }
+      // The same sum, in the same order, as computeProgrammeHealth's percent complete, so the
+      // replayed point just before today and today's figure differ only by what changed.
+      let earned = 0;
+      for (const m of state.values()) earned += m.weight * (earnedPercentOfMilestone(m) / 100);
+      result.set(date, totalWeight > 0 ? (earned / totalWeight) * 100 : 0);
+    }
+    return result;
+  }
+
+  return {
+    async health(slug: string, query: { at?: string }, reader: Reader): Promise<ProgrammeHealthResponse> {
+      const view = ctx.viewOf(await projects.get(slug), viewerOf(reader), query.at);
+      const inputs = (await listMilestones(db, view.project.id, view.viewer)).map(toInput);
+      const costs = view.viewer === "public" ? [] : await listCostActuals(db, view.project.id);
+      const health = computeProgrammeHealth({
+        milestones: inputs,
+        at: view.at,
+        settings: view.settings,
+        // No cost actuals recorded means cost is not tracked (AC null), not that nothing was spent.
+        costActuals: costs.length > 0 ? costs : undefined,
+        currency: view.project.currency,
+      });
+      return {
+        ...health,
+        money: view.viewer === "public" ? null : health.money,
+        drivers: projectDrivers(inputs),
+        timeZone: view.project.timeZone,
+      };
+    },
+
+    async curve(slug: string, query: { from?: string; to?: string; step?: number }, reader: Reader): Promise<CurveResponse> {
+      const view = ctx.viewOf(await projects.get(slug), viewerOf(reader));
+      const records = await listMilestones(db, view.project.id, view.viewer);
+      const inputs = records.map(toInput);
+      const at = view.at;
+      if (inputs.length === 0) return { at, points: [] };
+      const from = query.from ?? inputs.reduce((min, m) => ((m.plannedStart ?? m.baselineFinish) < min ? (m.plannedStart ?? m.baselineFinish) : min), "9999-12-31");
+      const to =
+        query.to ??
+        inputs.reduce((max, m) => {
+          const latest = milestoneFinish(m) > m.baselineFinish ? milestoneFinish(m) : m.baselineFinish;
+          return latest > max ? latest : max;
+        }, "0000-01-01");
+      const step = query.step ?? 7;
+      if (to < from) throw new AppError("validation", "Check to.", 400, { to: "must not be before from" });
+      if (daysBetween(from, to) / step > MAX_CURVE_POINTS) {
+        throw new AppError("validation", "Check step.", 400, { step: `gives more than ${MAX_CURVE_POINTS} points between from and to; use a longer step` });
+      }
+      const grid = earnedCurve({ milestones: inputs, from, to, stepDays: step, at });
+      const pastDates = grid.map((p) => p.date).filter((d) => d < at);
+      const earned = await replayEarned(view, records, pastDates);
+      return {
+        at,
+        points: grid.map((p) => ({
+          date: p.date,
+          plannedPercent: p.plannedPercent,
+          earnedPercent: p.date < at ? (earned.get(p.date) ?? null) : p.date === at ? (p.earnedPercent ?? null) : null,
+        })),
+      };
+    },
+  };
+}

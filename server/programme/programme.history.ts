@@ -1,0 +1,65 @@
+import type { Project } from "#shared/schemas/projects.ts";
+import type { MilestoneEventRow, MilestoneMovesRow } from "#shared/schemas/programme.ts";
+import { summariseChanges } from "#shared/domain/programme-changes.ts";
+import { drivingChain, type DrivingLink } from "#shared/domain/programme-dependencies.ts";
+import { notFound } from "../core/app-error.ts";
+import { dateInZone, endOfDateInZone, startOfDateInZone } from "../projects/projects.service.ts";
+import { toInput, viewerOf, type ProgrammeContext, type Reader } from "./programme.context.ts";
+import { listMilestoneEvents, listProjectEvents } from "./programme.events.repository.ts";
+import { findMilestone, listMilestones, type Viewer } from "./programme.repository.ts";
+
+/** Dates of a range, inclusive, in the project's time zone. */
+type DateRange = { from: string; to: string };
+
+/**
+ * The programme's history: every change of a tracked field is an event, so "what moved since
+ * date X" is a query. A milestone's own history and what drives it; a project's changes and
+ * its moves (the changes summarised per milestone) over a range of dates.
+ */
+export function createHistoryUseCases(ctx: ProgrammeContext) {
+  const { db, projects } = ctx;
+
+  function eventsIn(project: Project, viewer: Viewer, range: DateRange): Promise<MilestoneEventRow[]> {
+    return listProjectEvents(db, project.id, viewer, {
+      from: startOfDateInZone(range.from, project.timeZone),
+      before: endOfDateInZone(range.to, project.timeZone),
+    });
+  }
+
+  return {
+    async events(id: number, reader: Reader): Promise<MilestoneEventRow[]> {
+      const m = await findMilestone(db, id, viewerOf(reader));
+      if (!m) throw notFound("That milestone");
+      return listMilestoneEvents(db, id);
+    },
+
+    async drivers(id: number, reader: Reader): Promise<DrivingLink[]> {
+      const viewer = viewerOf(reader);
+      const m = await findMilestone(db, id, viewer);
+      if (!m) throw notFound("That milestone");
+      // A removed milestone's history stays readable, and so does what drove it.
+      const visible = await listMilestones(db, m.projectId, viewer, { removed: m.removal ? "include" : "exclude" });
+      return drivingChain(id, visible.map(toInput));
+    },
+
+    /** Events in [from, to], dates inclusive in the project's time zone, of milestones the caller may see; newest first. */
+    async changes(slug: string, range: DateRange, reader: Reader): Promise<MilestoneEventRow[]> {
+      return eventsIn(await projects.get(slug), viewerOf(reader), range);
+    },
+
+    /** The changes in [from, to] summarised per milestone (later, earlier, completed, removed…). */
+    async moves(slug: string, range: DateRange, reader: Reader): Promise<MilestoneMovesRow[]> {
+      const project = await projects.get(slug);
+      const viewer = viewerOf(reader);
+      const events = await eventsIn(project, viewer, range);
+      const names = new Map(events.map((e) => [e.milestoneId, e.milestoneName]));
+      const summary = summariseChanges(
+        events.map((e) => ({ milestoneId: e.milestoneId, field: e.field, from: e.from, to: e.to, at: e.at, note: e.note })),
+        range.from,
+        range.to,
+        (at) => dateInZone(new Date(at), project.timeZone),
+      );
+      return summary.map((s) => ({ milestoneId: s.milestoneId, milestoneName: names.get(s.milestoneId) ?? "", moves: s.moves }));
+    },
+  };
+}

@@ -1,0 +1,143 @@
+import type { Config } from "./config.ts";
+import type { Logger } from "./core/logger.ts";
+import type { Db } from "./db/knex.ts";
+import { createAuditService } from "./audit/audit.service.ts";
+import { createAuthService } from "./auth/auth.service.ts";
+import { createSessionStore } from "./auth/session.service.ts";
+import type { Mailer } from "./mail/mail.service.ts";
+import { createOutboxService } from "./mail/mail.service.ts";
+import { createProjectsService } from "./projects/projects.service.ts";
+import { createProgrammeService } from "./programme/programme.service.ts";
+import { createMediaService } from "./media/media.service.ts";
+import { createLocalDiskStorage, createUploadArea } from "./media/media.storage.ts";
+import { createRateLimitStore } from "./rate-limit/rate-limit.service.ts";
+import { createSignInDelays } from "./rate-limit/sign-in-delays.service.ts";
+import { createUsersService } from "./users/users.service.ts";
+import { createEnquiriesService } from "./enquiries/enquiries.service.ts";
+import { createSubscribersService } from "./subscribers/subscribers.service.ts";
+import { createPostsService } from "./posts/posts.service.ts";
+import { createPublishingService } from "./publishing/publishing.service.ts";
+import { createStoriesService } from "./stories/stories.service.ts";
+import { createSiteService } from "./site/site.service.ts";
+import { createPublicCache } from "./site/public-cache.ts";
+import { createDigestsService } from "./digests/digests.service.ts";
+
+export interface ServiceDeps {
+  db: Db;
+  config: Config;
+  logger: Logger;
+  mailer: Mailer;
+}
+
+/**
+ * Builds every module's service from the configuration, the database, the logger and the
+ * mailer: the one place that knows how they depend on each other. Both roles start from it
+ * (server/app.ts serves it over HTTP, server/workers.ts runs its background work), so it
+ * starts no timer and opens no port.
+ */
+export function createServices(deps: ServiceDeps) {
+  const { db, config, logger, mailer } = deps;
+  // Visitors' answers for the public pages, kept a few seconds (production; tests see every write at once).
+  const publicCache = createPublicCache({ ttlMs: 5_000, enabled: config.NODE_ENV === "production" });
+  const sessions = createSessionStore(db, config.SESSION_IDLE_MINUTES * 60_000);
+  const audit = createAuditService(db);
+  const auth = createAuthService({ db, audit, mailer, sessions, logger, publicUrl: config.PUBLIC_URL });
+  const users = createUsersService({ db, audit, auth, mailer, publicUrl: config.PUBLIC_URL });
+  const outbox = createOutboxService(db);
+  const projects = createProjectsService(db);
+  const programme = createProgrammeService({
+    db,
+    projects,
+    audit,
+    // Posts and media read the programme, so they are built below; this runs only when a milestone is to be deleted.
+    references: async (milestoneId) => [
+      ...(await posts.linkingMilestone(milestoneId)).map((p) => ({ kind: "update" as const, id: p.id, label: `“${p.title}”` })),
+      ...(await media.taggedWithMilestone(milestoneId)).map((id) => ({ kind: "photo" as const, id, label: `#${id}` })),
+    ],
+  });
+  const mediaStorage = createLocalDiskStorage(config.MEDIA_DIR);
+  const mediaUploads = createUploadArea(config.MEDIA_DIR);
+  const media = createMediaService({
+    db,
+    storage: mediaStorage,
+    uploads: mediaUploads,
+    projects,
+    programme,
+    limits: { maxFileBytes: Math.round(config.MEDIA_MAX_FILE_MB * 1024 * 1024), maxFiles: config.MEDIA_MAX_FILES, maxPixels: config.MEDIA_MAX_PIXELS },
+    // Signed derivative links (investor images in e-mail) use a key derived from it under their own label.
+    tokenSecret: config.TOKEN_SECRET,
+  });
+  const rateLimits = {
+    ip: createRateLimitStore(db, "login-ip"),
+    resetRequests: createRateLimitStore(db, "reset-ip"),
+    subscribeIp: createRateLimitStore(db, "subscribe-ip"),
+    subscribeAddress: createRateLimitStore(db, "subscribe-address"),
+    enquiryIp: createRateLimitStore(db, "enquiry-ip"),
+  };
+  const signInDelays = createSignInDelays({ db, freeFailures: config.LOGIN_LIMIT_PER_ACCOUNT, forgetAfterMs: config.LOGIN_LIMIT_WINDOW_MINUTES * 60_000 });
+  const enquiries = createEnquiriesService({ db, mailer, logger, projects, users, publicUrl: config.PUBLIC_URL });
+  const subscribers = createSubscribersService({
+    db,
+    mailer,
+    logger,
+    projects,
+    programme,
+    enquiries,
+    publicUrl: config.PUBLIC_URL,
+    tokenSecret: config.TOKEN_SECRET,
+    unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
+    webhookSecret: config.MAIL_WEBHOOK_SECRET ?? null,
+  });
+  const publishingWorkflow = createPublishingService({ db });
+  const posts = createPostsService({ db, projects, programme, media, publishing: publishingWorkflow, onChange: publicCache.clear });
+  const stories = createStoriesService({ db, projects, media, publishing: publishingWorkflow, onChange: publicCache.clear });
+  const site = createSiteService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
+  const digests = createDigestsService({
+    db,
+    logger,
+    mailer,
+    projects,
+    programme,
+    media,
+    posts,
+    subscribers,
+    publicUrl: config.PUBLIC_URL,
+    tokenSecret: config.TOKEN_SECRET,
+    unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
+  });
+
+  return {
+    publicCache,
+    /** The session store: express-session reads and writes it; auth ends sessions; a worker sweeps it. */
+    sessions,
+    audit,
+    auth,
+    users,
+    outbox,
+    projects,
+    programme,
+    /** The media library's service (other modules' services take it too). */
+    media,
+    mediaStorage,
+    mediaUploads,
+    /** Rate-limit counters, exposed so tests can start from zero. */
+    rateLimits,
+    signInDelays,
+    enquiries,
+    /** Tests run the unconfirmed-address sweep with a chosen `now`; digests use it. */
+    subscribers,
+    /** Updates; tests run scheduled publication with a chosen `now` (posts.publishDue). */
+    posts,
+    /** Photo stories; tests run their scheduled publication with a chosen `now` (stories.publishDue). */
+    stories,
+    site,
+    /** Digests: runs, previews and web copies. */
+    digests,
+    /** The process is stopping: work that requests set going (the subscription mail they queued) starts no more. */
+    close(): void {
+      subscribers.stop();
+    },
+  };
+}
+
+export type Services = ReturnType<typeof createServices>;
