@@ -26,8 +26,8 @@ import { enquiriesRouter } from "./enquiries/enquiries.router.ts";
 import { mailEventsRouter, oneClickRouter, subscribersRouter } from "./subscribers/subscribers.router.ts";
 import { postsRouter } from "./posts/posts.router.ts";
 import { storiesRouter, storyPagesRouter } from "./stories/stories.router.ts";
-import { injectHead, type SiteService } from "./site/site.service.ts";
-import { siteRouter } from "./site/site.router.ts";
+import { injectHead, type FeedsService } from "./feeds/feeds.service.ts";
+import { feedsRouter } from "./feeds/feeds.router.ts";
 import { digestsRouter } from "./digests/digests.router.ts";
 import type { Services } from "./services.ts";
 
@@ -174,7 +174,7 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   // Derivatives, with the audience check on every request (or a signed, expiring link's).
   app.use(mediaFilesRouter(media));
   // The Atom feeds, sitemap.xml and robots.txt (before the client's static files).
-  app.use(siteRouter(site));
+  app.use(feedsRouter(site));
   // An old address of a photo story answers 301 to its current page (before the HTML shell).
   app.use(storyPagesRouter(stories));
 
@@ -187,7 +187,7 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
 const FALLBACK_SHELL = `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Plumbline</title></head><body><div id="root">The client has not been built yet: run npm start or npx vite build.</div></body></html>`;
 
 /** Static assets with long caching, and the HTML shell (200) for every page path. */
-function mountClient(app: Express, dir: string, site: SiteService): void {
+function mountClient(app: Express, dir: string, site: FeedsService): void {
   const indexPath = path.join(dir, "index.html");
   app.use("/assets", express.static(path.join(dir, "assets"), { immutable: true, maxAge: "365d", index: false, fallthrough: false }));
   app.use(express.static(dir, { index: false, maxAge: "1h" }));

@@ -12,14 +12,15 @@ import { createMediaService } from "./media/media.service.ts";
 import { createLocalDiskStorage, createUploadArea } from "./media/media.storage.ts";
 import { createRateLimitStore } from "./rate-limit/rate-limit.service.ts";
 import { createSignInDelays } from "./rate-limit/sign-in-delays.service.ts";
+import { createAccountsService } from "./users/users.accounts.ts";
 import { createUsersService } from "./users/users.service.ts";
 import { createEnquiriesService } from "./enquiries/enquiries.service.ts";
 import { createSubscribersService } from "./subscribers/subscribers.service.ts";
 import { createPostsService } from "./posts/posts.service.ts";
 import { createPublishingService } from "./publishing/publishing.service.ts";
 import { createStoriesService } from "./stories/stories.service.ts";
-import { createSiteService } from "./site/site.service.ts";
-import { createPublicCache } from "./site/public-cache.ts";
+import { createFeedsService } from "./feeds/feeds.service.ts";
+import { createPublicCache } from "./feeds/public-cache.ts";
 import { createDigestsService } from "./digests/digests.service.ts";
 
 export interface ServiceDeps {
@@ -41,13 +42,16 @@ export function createServices(deps: ServiceDeps) {
   const publicCache = createPublicCache({ ttlMs: 5_000, enabled: config.NODE_ENV === "production" });
   const sessions = createSessionStore(db, config.SESSION_IDLE_MINUTES * 60_000);
   const audit = createAuditService(db);
-  const auth = createAuthService({ db, audit, mailer, sessions, logger, publicUrl: config.PUBLIC_URL });
+  // What other modules read of accounts (sign-in, resets, people's names): one, shared, as it keeps no state.
+  const accounts = createAccountsService({ db });
+  const auth = createAuthService({ db, audit, accounts, mailer, sessions, logger, publicUrl: config.PUBLIC_URL });
   const users = createUsersService({ db, audit, auth, mailer, publicUrl: config.PUBLIC_URL });
   const outbox = createOutboxService(db);
   const projects = createProjectsService(db);
   const programme = createProgrammeService({
     db,
     projects,
+    accounts,
     audit,
     // Posts and media read the programme, so they are built below; this runs only when a milestone is to be deleted.
     references: async (milestoneId) => [
@@ -63,6 +67,7 @@ export function createServices(deps: ServiceDeps) {
     uploads: mediaUploads,
     projects,
     programme,
+    accounts,
     limits: { maxFileBytes: Math.round(config.MEDIA_MAX_FILE_MB * 1024 * 1024), maxFiles: config.MEDIA_MAX_FILES, maxPixels: config.MEDIA_MAX_PIXELS },
     // Signed derivative links (investor images in e-mail) use a key derived from it under their own label.
     tokenSecret: config.TOKEN_SECRET,
@@ -75,7 +80,7 @@ export function createServices(deps: ServiceDeps) {
     enquiryIp: createRateLimitStore(db, "enquiry-ip"),
   };
   const signInDelays = createSignInDelays({ db, freeFailures: config.LOGIN_LIMIT_PER_ACCOUNT, forgetAfterMs: config.LOGIN_LIMIT_WINDOW_MINUTES * 60_000 });
-  const enquiries = createEnquiriesService({ db, mailer, logger, projects, users, publicUrl: config.PUBLIC_URL });
+  const enquiries = createEnquiriesService({ db, mailer, logger, projects, users, accounts, publicUrl: config.PUBLIC_URL });
   const subscribers = createSubscribersService({
     db,
     mailer,
@@ -83,6 +88,7 @@ export function createServices(deps: ServiceDeps) {
     projects,
     programme,
     enquiries,
+    accounts,
     publicUrl: config.PUBLIC_URL,
     tokenSecret: config.TOKEN_SECRET,
     unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
@@ -91,7 +97,7 @@ export function createServices(deps: ServiceDeps) {
   const publishingWorkflow = createPublishingService({ db });
   const posts = createPostsService({ db, projects, programme, media, publishing: publishingWorkflow, onChange: publicCache.clear });
   const stories = createStoriesService({ db, projects, media, publishing: publishingWorkflow, onChange: publicCache.clear });
-  const site = createSiteService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
+  const site = createFeedsService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
   const digests = createDigestsService({
     db,
     logger,

@@ -1,6 +1,6 @@
 import type { Request, RequestHandler, Response } from "express";
 import { Router } from "express";
-import rateLimit, { ipKeyGenerator, type Store } from "express-rate-limit";
+import { ipKeyGenerator, type Store } from "express-rate-limit";
 import type { createPassport } from "./passport.ts";
 
 type Authenticator = ReturnType<typeof createPassport>;
@@ -15,6 +15,7 @@ import {
 import { AppError } from "../core/app-error.ts";
 import { actorOf } from "../core/auth.ts";
 import type { CsrfGuard } from "../core/csrf.ts";
+import { requestLimit } from "../core/request-limit.ts";
 import type { SignInDelays } from "../rate-limit/sign-in-delays.service.ts";
 import type { AuthService } from "./auth.service.ts";
 
@@ -51,32 +52,18 @@ export function authRouter(deps: {
   const { auth, passport } = deps;
   const r = Router();
 
-  const limited = (message: string) => (_req: Request, _res: Response, next: (e: unknown) => void) =>
-    next(new AppError("rate_limited", message, 429));
-
   // Failures only (wrong password, spent or forged link, bad input) from one client address, as
   // the trusted proxies report it: colleagues behind one address sign in as often as they like.
-  const perIp = rateLimit({
-    windowMs: deps.limits.windowMs,
-    limit: deps.limits.perIp,
-    standardHeaders: "draft-8",
-    legacyHeaders: false,
-    store: deps.stores.ip,
-    skipSuccessfulRequests: true,
-    // An X-Forwarded-For from a peer that is not a trusted proxy is ignored by design (TRUST_PROXY), not a fault to log.
-    validate: { xForwardedForHeader: false },
-    handler: limited("Too many failed attempts from this address. Wait a few minutes and try again."),
-  });
+  // An X-Forwarded-For from a peer that is not a trusted proxy is ignored by design (TRUST_PROXY), not a fault to log.
+  const perIp = requestLimit(
+    { windowMs: deps.limits.windowMs, limit: deps.limits.perIp, store: deps.stores.ip, message: "Too many failed attempts from this address. Wait a few minutes and try again." },
+    { skipSuccessfulRequests: true, validate: { xForwardedForHeader: false } },
+  );
   // Every reset request sends mail whether or not the address is known, so each one counts.
-  const resetRequestsPerIp = rateLimit({
-    windowMs: deps.limits.windowMs,
-    limit: deps.limits.perIp,
-    standardHeaders: "draft-8",
-    legacyHeaders: false,
-    store: deps.stores.resetRequests,
-    validate: { xForwardedForHeader: false },
-    handler: limited("Too many password-reset requests from this address. Wait a few minutes and try again."),
-  });
+  const resetRequestsPerIp = requestLimit(
+    { windowMs: deps.limits.windowMs, limit: deps.limits.perIp, store: deps.stores.resetRequests, message: "Too many password-reset requests from this address. Wait a few minutes and try again." },
+    { validate: { xForwardedForHeader: false } },
+  );
   /** The same client key as the limiters: an IPv6 client's /56, which one subscriber holds whole. */
   const clientKey = (req: Request) => ipKeyGenerator(req.ip ?? "unknown");
 

@@ -4,6 +4,7 @@ import { addDays } from "#shared/domain/calendar.ts";
 import type { MediaService } from "../media/media.service.ts";
 import type { PostsService, PublishedPostRecord } from "../posts/posts.service.ts";
 import type { ProgrammeService } from "../programme/programme.service.ts";
+import type { ProjectsService } from "../projects/projects.service.ts";
 import { topicsAllow } from "../subscribers/subscribers.topics.ts";
 import type { DigestDocument, DigestFigures } from "./digests.render.ts";
 import { localDate } from "./digests.windows.ts";
@@ -32,14 +33,7 @@ function postTopics(p: PublishedPostRecord) {
 }
 
 /** The project as a digest names it (`projects.sender`). */
-export interface DigestProject {
-  id: number;
-  slug: string;
-  name: string;
-  operatorName: string;
-  postalAddress: string | null;
-  timeZone: string;
-}
+export type DigestProject = Awaited<ReturnType<ProjectsService["sender"]>>;
 
 /** The figures of a reader's last digest: the baseline of "since your last digest". */
 export type PreviousFigures = { percentComplete: number | null; forecastReady: string | null } | null;

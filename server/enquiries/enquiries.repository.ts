@@ -1,12 +1,15 @@
 import type { Knex } from "knex";
-import type { EnquiryKind, EnquiryListQuery, EnquiryRow, EnquiryStatus } from "#shared/schemas/enquiries.ts";
+import type { EnquiryKind, EnquiryRow, EnquiryStatus } from "#shared/schemas/enquiries.ts";
 
 type Q = Knex | Knex.Transaction;
 
-function toEnquiry(r: Record<string, unknown>): EnquiryRow {
+/** An enquiry as stored: its project and owner by id (the projects and users modules name them). */
+export type EnquiryRecord = Omit<EnquiryRow, "project" | "owner"> & { projectId: number; ownerId: number | null };
+
+function toEnquiry(r: Record<string, unknown>): EnquiryRecord {
   return {
     id: Number(r.id),
-    project: { slug: String(r.project_slug), name: String(r.project_name) },
+    projectId: Number(r.project_id),
     kind: r.kind as EnquiryKind,
     name: String(r.name),
     email: String(r.email),
@@ -19,7 +22,7 @@ function toEnquiry(r: Record<string, unknown>): EnquiryRow {
     preferredDates: r.preferred_dates ? (JSON.parse(String(r.preferred_dates)) as string[]) : [],
     partySize: r.party_size == null ? null : Number(r.party_size),
     status: r.status as EnquiryStatus,
-    owner: r.owner_id == null ? null : { id: Number(r.owner_id), name: String(r.owner_name ?? "") },
+    ownerId: r.owner_id == null ? null : Number(r.owner_id),
     notes: String(r.notes ?? ""),
     createdAt: (r.created_at as Date).toISOString(),
     updatedAt: (r.updated_at as Date).toISOString(),
@@ -27,10 +30,7 @@ function toEnquiry(r: Record<string, unknown>): EnquiryRow {
 }
 
 function base(q: Q) {
-  return q("enquiries as e")
-    .join("projects as p", "p.id", "e.project_id")
-    .leftJoin("users as u", "u.id", "e.owner_id")
-    .select("e.*", "p.slug as project_slug", "p.name as project_name", "u.name as owner_name");
+  return q("enquiries as e").select("e.*");
 }
 
 export interface EnquiryInsert {
@@ -70,22 +70,23 @@ export async function insertEnquiry(q: Q, e: EnquiryInsert): Promise<number> {
   return Number(id);
 }
 
-export async function findEnquiry(q: Q, id: number, forUpdate = false): Promise<EnquiryRow | null> {
+export async function findEnquiry(q: Q, id: number, forUpdate = false): Promise<EnquiryRecord | null> {
   const query = base(q).where("e.id", id).first();
   if (forUpdate) query.forUpdate();
   const r = await query;
   return r ? toEnquiry(r) : null;
 }
 
-export async function listEnquiries(q: Q, f: EnquiryListQuery): Promise<EnquiryRow[]> {
+/** The newest thousand enquiries, newest first, of the status, kind and project given. */
+export async function listEnquiries(q: Q, f: { status?: EnquiryStatus; kind?: EnquiryKind; projectId?: number }): Promise<EnquiryRecord[]> {
   const query = base(q).orderBy([{ column: "e.created_at", order: "desc" }, { column: "e.id", order: "desc" }]).limit(1000);
   if (f.status) query.where("e.status", f.status);
   if (f.kind) query.where("e.kind", f.kind);
-  if (f.projectSlug) query.where("p.slug", f.projectSlug);
+  if (f.projectId !== undefined) query.where("e.project_id", f.projectId);
   return (await query).map(toEnquiry);
 }
 
-export async function listEnquiriesByEmail(q: Q, email: string): Promise<EnquiryRow[]> {
+export async function listEnquiriesByEmail(q: Q, email: string): Promise<EnquiryRecord[]> {
   return (await base(q).where("e.email", email).orderBy("e.id")).map(toEnquiry);
 }
 

@@ -1,10 +1,9 @@
-import type { Request, Response } from "express";
 import { Router } from "express";
-import rateLimit, { type Store } from "express-rate-limit";
+import type { Store } from "express-rate-limit";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { EnquiryInputSchema, EnquiryListQuerySchema, EnquiryPatchSchema } from "#shared/schemas/enquiries.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
-import { AppError } from "../core/app-error.ts";
+import { requestLimit } from "../core/request-limit.ts";
 import { actorOf, requireStaff } from "../core/auth.ts";
 import { ENQUIRY_ACCEPTED, type EnquiriesService } from "./enquiries.service.ts";
 
@@ -13,14 +12,11 @@ export function enquiriesRouter(deps: { enquiries: EnquiriesService; limit: { pe
   const r = Router();
 
   // A second spam guard beside the honeypot, shared by every app process through MariaDB.
-  const perIp = rateLimit({
+  const perIp = requestLimit({
     windowMs: deps.limit.windowMs,
     limit: deps.limit.perIp,
-    standardHeaders: "draft-8",
-    legacyHeaders: false,
     store: deps.store,
-    handler: (_req: Request, _res: Response, next: (e: unknown) => void) =>
-      next(new AppError("rate_limited", "Too many enquiries from this network. Wait an hour, or write to the operator directly.", 429)),
+    message: "Too many enquiries from this network. Wait an hour, or write to the operator directly.",
   });
 
   r.post("/projects/:slug/enquiries", perIp, async (req, res) => {

@@ -7,9 +7,10 @@ import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { Mailer } from "../mail/mail.service.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
+import type { AccountsService } from "../users/users.accounts.ts";
 import type { UsersService } from "../users/users.service.ts";
 import { enquiryNotification } from "./enquiries.mail.ts";
-import { deleteEnquiriesByEmail, findEnquiry, insertEnquiry, listEnquiries, listEnquiriesByEmail, updateEnquiry } from "./enquiries.repository.ts";
+import { deleteEnquiriesByEmail, findEnquiry, insertEnquiry, listEnquiries, listEnquiriesByEmail, updateEnquiry, type EnquiryRecord } from "./enquiries.repository.ts";
 
 export const ENQUIRY_ACCEPTED = {
   ok: true,
@@ -20,13 +21,38 @@ export function createEnquiriesService(deps: {
   db: Db;
   mailer: Mailer;
   logger: Logger;
+  /** Each enquiry's project by id, and the project a list is filtered by. */
   projects: ProjectsService;
   users: Pick<UsersService, "list">;
+  /** The names of the staff enquiries are given to. */
+  accounts: Pick<AccountsService, "namesOf">;
   publicUrl: string;
   now?: () => Date;
 }) {
-  const { db, mailer, logger, projects, users, publicUrl } = deps;
+  const { db, mailer, logger, projects, users, accounts, publicUrl } = deps;
   const now = deps.now ?? (() => new Date());
+
+  /** Enquiries as the office reads them, naming each one's project and owner: one read of each for the whole list. */
+  async function present(records: readonly EnquiryRecord[]): Promise<EnquiryRow[]> {
+    if (records.length === 0) return [];
+    const [byId, names] = await Promise.all([
+      projects.byIds(records.map((r) => r.projectId)),
+      accounts.namesOf([...new Set(records.flatMap((r) => (r.ownerId === null ? [] : [r.ownerId])))]),
+    ]);
+    // An enquiry goes with its project (deleting a project deletes them), so every one finds it.
+    return records.flatMap(({ projectId, ownerId, ...r }) => {
+      const project = byId.get(projectId);
+      if (!project) return [];
+      return [
+        {
+          ...r,
+          project: { slug: project.slug, name: project.name },
+          // A deleted owner's name reads as empty, as it always has.
+          owner: ownerId === null ? null : { id: ownerId, name: names.get(ownerId) ?? "" },
+        },
+      ];
+    });
+  }
 
   async function owners(): Promise<EnquiryOwner[]> {
     return (await users.list())
@@ -87,10 +113,16 @@ export function createEnquiriesService(deps: {
       void notifyMarketing(project.name, input, id).catch((err: unknown) => logger.error({ err, enquiryId: id }, "enquiry notification failed"));
     },
 
-    list: (f: EnquiryListQuery) => listEnquiries(db, f),
+    async list(f: EnquiryListQuery): Promise<EnquiryRow[]> {
+      // A slug that names no project matches no enquiry: an empty list, not an error.
+      const project = f.projectSlug ? await projects.findBySlug(f.projectSlug) : undefined;
+      if (project === null) return [];
+      return present(await listEnquiries(db, { status: f.status, kind: f.kind, projectId: project?.id }));
+    },
 
     async get(id: number): Promise<EnquiryRow> {
-      const e = await findEnquiry(db, id);
+      const found = await findEnquiry(db, id);
+      const [e] = found ? await present([found]) : [];
       if (!e) throw notFound("That enquiry");
       return e;
     },
@@ -106,11 +138,11 @@ export function createEnquiriesService(deps: {
         if (!e) throw notFound("That enquiry");
         await updateEnquiry(trx, id, patch, now());
       });
-      return (await findEnquiry(db, id))!;
+      return (await present([(await findEnquiry(db, id))!]))[0]!;
     },
 
     /** For a person's data export. */
-    listByEmail: (email: string) => listEnquiriesByEmail(db, email.trim().toLowerCase()),
+    listByEmail: async (email: string): Promise<EnquiryRow[]> => present(await listEnquiriesByEmail(db, email.trim().toLowerCase())),
     /** For erasure, inside the caller's transaction. */
     eraseByEmail: (email: string, trx?: Knex.Transaction) => deleteEnquiriesByEmail(trx ?? db, email.trim().toLowerCase()),
   };

@@ -1,6 +1,7 @@
 import { createHash } from "node:crypto";
 import { availableParallelism } from "node:os";
 import sharp, { type AvifOptions, type JpegOptions, type Sharp, type SharpOptions, type WebpOptions } from "sharp";
+import { runLimited } from "../core/run-limited.ts";
 
 /** The encodings every photo is published in: AVIF and WebP, with JPEG as the fallback. */
 export type DerivativeFormat = "avif" | "webp" | "jpeg";
@@ -277,17 +278,3 @@ async function findDominantColour(level: RawLevel): Promise<string> {
   return `#${hex(dominant.r)}${hex(dominant.g)}${hex(dominant.b)}`;
 }
 
-/** Runs `work` over `items` in order with at most `limit` in flight; results keep the order. */
-async function runLimited<T, R>(items: readonly T[], limit: number, work: (item: T) => Promise<R>): Promise<R[]> {
-  const results = new Array<R>(items.length);
-  let next = 0;
-  const lane = async () => {
-    while (next < items.length) {
-      const index = next;
-      next += 1;
-      results[index] = await work(items[index] as T);
-    }
-  };
-  await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, items.length)) }, lane));
-  return results;
-}

@@ -85,20 +85,9 @@ function itemsQuery(q: Q) {
   return q("media_items as i").select("i.*");
 }
 
-export interface NewMedia {
-  projectId: number;
-  sha256: string;
-  originalKey: string;
-  originalName: string;
-  mime: string;
-  bytes: number;
-  width: number;
-  height: number;
-  takenAt: string | null;
-  hadGps: boolean;
-  uploadedBy: number | null;
+export type NewMedia = Pick<MediaRecord, "projectId" | "sha256" | "originalKey" | "originalName" | "mime" | "bytes" | "width" | "height" | "takenAt" | "hadGps" | "uploadedBy"> & {
   isIllustration?: boolean;
-}
+};
 
 /** Inserts an item; null when the project already holds the same SHA-256 (a concurrent duplicate). */
 export async function insertMedia(q: Q, m: NewMedia): Promise<number | null> {

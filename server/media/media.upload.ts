@@ -1,5 +1,6 @@
 import type { MediaStatus, MediaUploadResult, RefusedFile } from "#shared/schemas/media.ts";
 import { AppError } from "../core/app-error.ts";
+import { runLimited } from "../core/run-limited.ts";
 import type { Actor } from "../core/types.ts";
 import { resolveProject, type MediaContext } from "./media.context.ts";
 import { originalKey, removeLocation } from "./media.originals.ts";
@@ -7,21 +8,6 @@ import { probeImage, type ProbedImage } from "./media.probe.ts";
 import { countItemsWithOriginal, findMediaBySha, insertMedia } from "./media.repository.ts";
 import { insertJob } from "./media.queue.repository.ts";
 import type { ReceivedFile } from "./media.storage.ts";
-
-/** Runs `work` over `items` with at most `limit` at a time; results keep the order. */
-async function runLimited<T, R>(items: readonly T[], limit: number, work: (item: T, index: number) => Promise<R>): Promise<R[]> {
-  const results = new Array<R>(items.length);
-  let next = 0;
-  const lane = async () => {
-    while (next < items.length) {
-      const i = next;
-      next += 1;
-      results[i] = await work(items[i] as T, i);
-    }
-  };
-  await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, items.length)) }, lane));
-  return results;
-}
 
 function refusal(refused: RefusedFile[], total: number): AppError {
   const first = refused[0]!;

@@ -6,6 +6,7 @@ import type { RichTextDoc } from "#shared/schemas/rich-text.ts";
 import type { Viewer } from "#shared/domain/audience.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
 import { visibleContent } from "../publishing/publishing.audience.ts";
+import { changedColumns, newDraftColumns, toWorkflowRecord, WORKFLOW_COLUMNS, type WorkflowRecord, type WorkflowUpdate } from "../publishing/publishing.columns.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -23,153 +24,52 @@ function visibleTo<T extends Knex.QueryBuilder>(query: T, viewer: Viewer, alias 
   return visibleContent(query, viewer, alias);
 }
 
-export interface PostRecord {
-  id: number;
-  projectId: number;
-  slug: string;
-  title: string;
+export interface PostRecord extends WorkflowRecord {
   summary: string;
   body: RichTextDoc;
   html: string;
   plainText: string;
-  audience: Audience;
-  status: PostStatus;
-  authorId: number | null;
-  authorName: string;
   coverMediaId: number | null;
-  scheduledFor: Date | null;
-  publishedAt: Date | null;
-  withdrawnAt: Date | null;
-  reviewComment: string | null;
-  version: number;
-  createdAt: Date;
-  updatedAt: Date;
 }
 
 /** A list row: everything but the body, its HTML and its text. */
 export type PostListRecord = Omit<PostRecord, "body" | "html" | "plainText">;
 
-const LIST_COLUMNS = [
-  "p.id",
-  "p.project_id",
-  "p.slug",
-  "p.title",
-  "p.summary",
-  "p.audience",
-  "p.status",
-  "p.author_id",
-  "p.author_name",
-  "p.cover_media_id",
-  "p.scheduled_for",
-  "p.published_at",
-  "p.withdrawn_at",
-  "p.review_comment",
-  "p.version",
-  "p.created_at",
-  "p.updated_at",
-];
-
-const dateOrNull = (v: unknown): Date | null => (v === null || v === undefined ? null : new Date(v as string));
+const LIST_COLUMNS = [...WORKFLOW_COLUMNS, "summary", "cover_media_id"].map((c) => `p.${c}`);
 
 function toListRecord(r: Record<string, unknown>): PostListRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    slug: String(r.slug),
-    title: String(r.title),
-    summary: String(r.summary ?? ""),
-    audience: r.audience as Audience,
-    status: r.status as PostStatus,
-    authorId: r.author_id === null ? null : Number(r.author_id),
-    authorName: String(r.author_name),
-    coverMediaId: r.cover_media_id === null ? null : Number(r.cover_media_id),
-    scheduledFor: dateOrNull(r.scheduled_for),
-    publishedAt: dateOrNull(r.published_at),
-    withdrawnAt: dateOrNull(r.withdrawn_at),
-    reviewComment: r.review_comment === null || r.review_comment === undefined ? null : String(r.review_comment),
-    version: Number(r.version),
-    createdAt: new Date(r.created_at as string),
-    updatedAt: new Date(r.updated_at as string),
-  };
+  return { ...toWorkflowRecord(r), summary: String(r.summary ?? ""), coverMediaId: r.cover_media_id === null ? null : Number(r.cover_media_id) };
 }
 
 function toRecord(r: Record<string, unknown>): PostRecord {
   return { ...toListRecord(r), body: JSON.parse(String(r.body)) as RichTextDoc, html: String(r.html), plainText: String(r.plain_text) };
 }
 
-export interface PostWrite {
-  slug: string;
-  title: string;
-  summary: string;
-  body: RichTextDoc;
-  html: string;
-  plainText: string;
-  audience: Audience;
-  coverMediaId: number | null;
-}
+/** What an update's save writes: its address, title and audience, and its own content. */
+export type PostWrite = Pick<PostRecord, "slug" | "title" | "summary" | "body" | "html" | "plainText" | "audience" | "coverMediaId">;
 
 export async function insertPost(q: Q, row: PostWrite & { projectId: number; authorId: number | null; authorName: string; at: Date }): Promise<number> {
   const [id] = await q("posts").insert({
-    project_id: row.projectId,
-    slug: row.slug,
-    title: row.title,
+    ...newDraftColumns(row),
     summary: row.summary,
     body: JSON.stringify(row.body),
     html: row.html,
     plain_text: row.plainText,
-    audience: row.audience,
-    status: "draft",
-    author_id: row.authorId,
-    author_name: row.authorName,
     cover_media_id: row.coverMediaId,
-    created_at: row.at,
-    updated_at: row.at,
   });
   return Number(id);
 }
 
-export interface PostUpdate {
-  slug?: string;
-  title?: string;
-  summary?: string;
-  body?: RichTextDoc;
-  html?: string;
-  plainText?: string;
-  audience?: Audience;
-  coverMediaId?: number | null;
-  status?: PostStatus;
-  scheduledFor?: Date | null;
-  publishedAt?: Date | null;
-  withdrawnAt?: Date | null;
-  reviewComment?: string | null;
-}
+export type PostUpdate = Partial<PostWrite> & WorkflowUpdate;
 
-const UPDATE_COLUMNS: Record<keyof PostUpdate, string> = {
-  slug: "slug",
-  title: "title",
-  summary: "summary",
-  body: "body",
-  html: "html",
-  plainText: "plain_text",
-  audience: "audience",
-  coverMediaId: "cover_media_id",
-  status: "status",
-  scheduledFor: "scheduled_for",
-  publishedAt: "published_at",
-  withdrawnAt: "withdrawn_at",
-  reviewComment: "review_comment",
-};
+const POST_COLUMNS = { summary: "summary", body: "body", html: "html", plainText: "plain_text", coverMediaId: "cover_media_id" };
 
 /**
  * Writes the changed fields and bumps the version. With `expectVersion`, only when the stored
  * version is still that one (optimistic concurrency); returns the rows changed (0 = stale).
  */
 export async function updatePost(q: Q, id: number, expectVersion: number | null, changes: PostUpdate, at: Date): Promise<number> {
-  const row: Record<string, unknown> = { updated_at: at, version: q.raw("version + 1") };
-  for (const [key, column] of Object.entries(UPDATE_COLUMNS) as Array<[keyof PostUpdate, string]>) {
-    if (changes[key] === undefined) continue;
-    row[column] = key === "body" ? JSON.stringify(changes.body) : changes[key];
-  }
+  const row = { updated_at: at, version: q.raw("version + 1"), ...changedColumns({ ...changes, body: changes.body && JSON.stringify(changes.body) }, POST_COLUMNS) };
   const query = q("posts").where({ id });
   if (expectVersion !== null) query.andWhere({ version: expectVersion });
   return query.update(row);

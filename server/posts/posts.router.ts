@@ -27,10 +27,7 @@ export function postsRouter(posts: PostsService): Router {
         plural: "posts",
         page: "updates",
         itemParam: "postSlug",
-        slugParams: (params) => {
-          const { slug, postSlug } = PostSlugParamsSchema.parse(params);
-          return { slug, itemSlug: postSlug };
-        },
+        slugParams: PostSlugParamsSchema,
         createInput: PostCreateInputSchema,
         patchInput: PostPatchInputSchema,
       },

@@ -13,13 +13,12 @@ import {
   type PostListQuery,
   type PostMilestone,
   type PostPatchInput,
-  type PostRedirect,
   type PostSummary,
   type PostTag,
 } from "#shared/schemas/posts.ts";
 import type { PostStatus, PublishingProblem } from "#shared/schemas/publishing.ts";
 import { imageIdsOf, milestoneBlockIdsOf, walkRichText, type RichTextDoc } from "#shared/schemas/rich-text.ts";
-import { AppError, notFound } from "../core/app-error.ts";
+import { AppError } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
@@ -129,6 +128,8 @@ export function createPostsService(deps: PostsDeps) {
     answerSchedule: "always",
     projects,
     find: findPostById,
+    findVisible: findVisiblePostBySlug,
+    detail: detailOf,
     problems: async (trx, project, post) => problemsOf(project, post, (await milestoneLinksOf(trx, post.id)).map((l) => l.milestoneId)),
     publish: publishIn,
     unpublish: (trx, post) => media.setUsages("post", post.id, mediaIdsOf(post), post.audience, false, trx),
@@ -274,7 +275,7 @@ export function createPostsService(deps: PostsDeps) {
   /** The shared path of PATCH and restore: the content rules, a new revision, and the checks for live posts. */
   async function saveChanges(id: number, input: Omit<PostPatchInput, "note"> & { note?: string | null }, actor: Actor): Promise<PostDetail> {
     const saved = await db.transaction(async (trx) => {
-      const post = await workflow.openForEdit(trx, id, input.version, actor, async (p) => detailOf(await projects.getById(p.projectId), p, actor));
+      const post = await workflow.openForEdit(trx, id, input.version, actor, (p) => workflow.detailOf(p, actor));
       const project = await projects.getById(post.projectId);
       const oldLinks = await milestoneLinksOf(trx, post.id);
       const next = {
@@ -314,7 +315,7 @@ export function createPostsService(deps: PostsDeps) {
     });
     workflow.changed();
     const post = (await findPostById(db, saved))!;
-    return detailOf(await projects.getById(post.projectId), post, actor);
+    return workflow.detailOf(post, actor);
   }
 
   return {
@@ -331,23 +332,6 @@ export function createPostsService(deps: PostsDeps) {
         audience: query.audience,
       });
       return { items: await summaries(rows), total };
-    },
-
-    /** A post by its address, or where it moved to; 404 when the caller may not read it. */
-    async getBySlug(slug: string, postSlug: string, actor: Actor): Promise<PostDetail | PostRedirect> {
-      const project = await projects.get(slug);
-      const viewer = viewerOf(actor);
-      const post = await findVisiblePostBySlug(db, project.id, postSlug, viewer);
-      if (post) return detailOf(project, post, actor);
-      const moved = await workflow.findRedirect(project.id, postSlug, viewer);
-      if (moved) return { redirectTo: moved };
-      throw notFound("That update");
-    },
-
-    /** Staff: the full post with body, version, revisions and the publishing problems. */
-    async getById(id: number, actor: Actor): Promise<PostDetail> {
-      const post = await workflow.existing(id);
-      return detailOf(await projects.getById(post.projectId), post, actor);
     },
 
     async create(slug: string, input: PostCreateInput, actor: Actor): Promise<{ id: number; slug: string; status: PostStatus }> {

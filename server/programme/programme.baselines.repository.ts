@@ -47,19 +47,19 @@ export async function insertBaseline(
   });
 }
 
+/** A baseline version as stored: who set it by user id (the users module names them). */
+export type BaselineVersionRecord = Omit<BaselineVersion, "by"> & { byUserId: number | null };
+
 function baselineQuery(q: Q, projectId: number) {
-  return q("baselines as b")
-    .leftJoin("users as u", "u.id", "b.by_user_id")
-    .where("b.project_id", projectId)
-    .select("b.*", "u.name as by_name");
+  return q("baselines").where({ project_id: projectId });
 }
 
-function toBaseline(r: Record<string, unknown>, viewer: Viewer): BaselineVersion & { milestones: BaselineSnapshotEntry[] } {
+function toBaseline(r: Record<string, unknown>, viewer: Viewer): BaselineVersionRecord & { milestones: BaselineSnapshotEntry[] } {
   const entries = visibleSnapshotEntries(JSON.parse(String(r.snapshot)) as BaselineSnapshotEntry[], viewer);
   return {
     number: Number(r.number),
     reason: String(r.reason),
-    by: (r.by_name as string | null) ?? null,
+    byUserId: r.by_user_id == null ? null : Number(r.by_user_id),
     at: (r.at as Date).toISOString(),
     milestoneCount: entries.length,
     milestones: entries,
@@ -67,8 +67,8 @@ function toBaseline(r: Record<string, unknown>, viewer: Viewer): BaselineVersion
 }
 
 /** The project's baseline versions, oldest first, each counting the milestones the viewer may see. */
-export async function listBaselines(q: Q, projectId: number, viewer: Viewer): Promise<BaselineVersion[]> {
-  const rows = (await baselineQuery(q, projectId).orderBy("b.number")) as Array<Record<string, unknown>>;
+export async function listBaselines(q: Q, projectId: number, viewer: Viewer): Promise<BaselineVersionRecord[]> {
+  const rows = (await baselineQuery(q, projectId).orderBy("number")) as Array<Record<string, unknown>>;
   return rows.map((r) => {
     const { milestones: _omitted, ...version } = toBaseline(r, viewer);
     return version;
@@ -76,7 +76,7 @@ export async function listBaselines(q: Q, projectId: number, viewer: Viewer): Pr
 }
 
 export async function findBaseline(q: Q, projectId: number, number: number, viewer: Viewer) {
-  const r = (await baselineQuery(q, projectId).where("b.number", number).first()) as Record<string, unknown> | undefined;
+  const r = (await baselineQuery(q, projectId).where({ number }).first()) as Record<string, unknown> | undefined;
   return r ? toBaseline(r, viewer) : null;
 }
 

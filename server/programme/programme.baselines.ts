@@ -1,29 +1,45 @@
 import type { BaselineDetail, BaselineInput, BaselineVersion, CostActualRow } from "#shared/schemas/programme.ts";
 import { notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
-import { findBaseline, insertBaseline, listBaselines, listCostActuals, maxBaselineNumber, upsertCostActual, type BaselineSnapshotEntry } from "./programme.baselines.repository.ts";
-import { fieldsOf, invalid, viewerOf, type ProgrammeContext, type Reader } from "./programme.context.ts";
-import { listMilestones, lockProject } from "./programme.repository.ts";
+import {
+  findBaseline,
+  insertBaseline,
+  listBaselines,
+  listCostActuals,
+  maxBaselineNumber,
+  upsertCostActual,
+  type BaselineSnapshotEntry,
+  type BaselineVersionRecord,
+} from "./programme.baselines.repository.ts";
+import { fieldsOf, invalid, userIdsOf, viewerOf, type ProgrammeContext, type Reader } from "./programme.context.ts";
+import { listMilestones } from "./programme.repository.ts";
 
 /**
  * The plans the programme is measured against, and what it cost: baseline versions (reading
  * them, and re-baselining with a reason, which keeps the old version) and cost actuals.
  */
 export function createBaselineUseCases(ctx: ProgrammeContext) {
-  const { db, projects, now, record } = ctx;
+  const { db, projects, accounts, now, record } = ctx;
+
+  /** Versions with the names of the people who set them, asked for in one read. */
+  async function named<T extends BaselineVersionRecord>(versions: readonly T[]): Promise<Array<Omit<T, "byUserId"> & { by: string | null }>> {
+    const names = await accounts.namesOf(userIdsOf(versions.map((v) => v.byUserId)));
+    return versions.map(({ byUserId, ...v }) => ({ ...v, by: (byUserId === null ? null : names.get(byUserId)) ?? null }));
+  }
 
   return {
     async baselines(slug: string, reader: Reader): Promise<BaselineVersion[]> {
       const project = await projects.get(slug);
-      return listBaselines(db, project.id, viewerOf(reader));
+      return named(await listBaselines(db, project.id, viewerOf(reader)));
     },
 
     async baseline(slug: string, number: number, reader: Reader): Promise<BaselineDetail> {
       const project = await projects.get(slug);
       const viewer = viewerOf(reader);
-      const b = await findBaseline(db, project.id, number, viewer);
-      if (!b) throw notFound("That baseline version");
-      return { ...b, milestones: b.milestones.map((e) => ({ ...e, budget: viewer === "public" ? null : e.budget })) };
+      const found = await findBaseline(db, project.id, number, viewer);
+      if (!found) throw notFound("That baseline version");
+      const [b] = await named([found]);
+      return { ...b!, milestones: b!.milestones.map((e) => ({ ...e, budget: viewer === "public" ? null : e.budget })) };
     },
 
     /**
@@ -35,7 +51,7 @@ export function createBaselineUseCases(ctx: ProgrammeContext) {
     async rebaseline(slug: string, input: BaselineInput, actor: Actor): Promise<BaselineVersion> {
       const project = await projects.get(slug);
       return db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const all = await listMilestones(trx, project.id, "staff");
         const byId = new Map(all.map((m) => [m.id, m]));
         const overrides = new Map<number, BaselineInput["overrides"][number]>();
@@ -100,7 +116,7 @@ export function createBaselineUseCases(ctx: ProgrammeContext) {
     async addCostActual(slug: string, input: { periodEnd: string; amount: number }, actor: Actor): Promise<CostActualRow> {
       const project = await projects.get(slug);
       await db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const previous = (await listCostActuals(trx, project.id)).find((c) => c.periodEnd === input.periodEnd)?.amount ?? null;
         await upsertCostActual(trx, project.id, { ...input, byUserId: actor.user?.id ?? null, at: now() });
         await record(trx, actor, "cost_actual_recorded", { type: "project", id: project.id, label: project.slug }, { periodEnd: input.periodEnd, amount: input.amount, previous, currency: project.currency });

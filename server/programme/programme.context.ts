@@ -9,6 +9,7 @@ import { AppError, notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
+import type { AccountsService } from "../users/users.accounts.ts";
 import { insertEvents, type NewMilestoneEvent } from "./programme.events.repository.ts";
 import {
   findMilestone,
@@ -42,7 +43,10 @@ export interface MilestoneReference {
 
 export interface ProgrammeDeps {
   db: Db;
+  /** The project's settings and time zone, and its lock, which serialises the programme's writes. */
   projects: ProjectsService;
+  /** The names of the people who removed milestones, set baselines and made changes. */
+  accounts: Pick<AccountsService, "namesOf">;
   /** Every programme write leaves an audit entry; the seed, which writes through its own path, may leave it out. */
   audit?: AuditService;
   /**
@@ -167,8 +171,11 @@ export interface View {
   viewer: Viewer;
 }
 
+/** The distinct ids among these, leaving out the nulls (records no signed-in person made). */
+export const userIdsOf = (ids: ReadonlyArray<number | null | undefined>): number[] => [...new Set(ids.filter((id): id is number => typeof id === "number"))];
+
 export function createProgrammeContext(deps: ProgrammeDeps) {
-  const { db, projects } = deps;
+  const { db, projects, accounts } = deps;
   const audit = deps.audit ?? createAuditService(db);
   const now = () => projects.now();
 
@@ -182,7 +189,8 @@ export function createProgrammeContext(deps: ProgrammeDeps) {
     return audit.record({ action, actor, target, detail }, trx);
   }
 
-  function present(m: MilestoneRecord, view: View): Milestone {
+  /** A milestone as the view shows it; `names` holds the name of whoever removed it (see `presentAll`). */
+  function present(m: MilestoneRecord, view: View, names: ReadonlyMap<number, string>): Milestone {
     const input = toInput(m);
     const slip = milestoneSlip(input, view.settings);
     return {
@@ -208,9 +216,18 @@ export function createProgrammeContext(deps: ProgrammeDeps) {
       slipWorkingDays: slip.slipWorkingDays,
       version: m.version,
       updatedAt: m.updatedAt.toISOString(),
-      removal: m.removal ? { at: m.removal.at.toISOString(), by: m.removal.by, reason: m.removal.reason } : null,
+      removal: m.removal ? { at: m.removal.at.toISOString(), by: (m.removal.byUserId === null ? null : names.get(m.removal.byUserId)) ?? null, reason: m.removal.reason } : null,
     };
   }
+
+  /** Milestones as the view shows them, with the names of those who removed any asked for in one read (none when nothing is removed). */
+  async function presentAll(records: readonly MilestoneRecord[], view: View, trx?: Trx): Promise<Milestone[]> {
+    const names = await accounts.namesOf(userIdsOf(records.map((m) => m.removal?.byUserId)), trx);
+    return records.map((m) => present(m, view, names));
+  }
+
+  /** One milestone as the view shows it (in the caller's transaction, when it has one). */
+  const presentOne = async (m: MilestoneRecord, view: View, trx?: Trx): Promise<Milestone> => (await presentAll([m], view, trx))[0]!;
 
   function viewOf(project: Project, viewer: Viewer, at?: string): View {
     return { project, settings: settingsOf(project), at: at ?? projects.today(project), viewer };
@@ -226,7 +243,7 @@ export function createProgrammeContext(deps: ProgrammeDeps) {
       "Someone else changed this milestone after you loaded it. The current values are attached; apply your change to them.",
       409,
       undefined,
-      { current: present(current, staffView(project)) },
+      { current: await presentOne(current, staffView(project), trx) },
     );
   }
 
@@ -283,7 +300,7 @@ export function createProgrammeContext(deps: ProgrammeDeps) {
     if (rows === 0) throw await conflictWith(trx, before.id, project);
   }
 
-  return { db, projects, now, record, present, viewOf, staffView, conflictWith, projectOfMilestone, checkDependencies, writeUpdate, touch };
+  return { db, projects, accounts, now, record, presentAll, presentOne, viewOf, staffView, conflictWith, projectOfMilestone, checkDependencies, writeUpdate, touch };
 }
 
 export type ProgrammeContext = ReturnType<typeof createProgrammeContext>;

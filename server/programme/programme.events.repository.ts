@@ -38,18 +38,20 @@ export async function insertEvents(q: Q, events: readonly NewMilestoneEvent[]): 
   );
 }
 
+/** An event as stored: who made it by user id (the users module names them). */
+export type MilestoneEventRecord = Omit<MilestoneEventRow, "by"> & { byUserId: number | null };
+
 function eventQuery(q: Q) {
   return q("milestone_events as e")
     .join("milestones as m", "m.id", "e.milestone_id")
-    .leftJoin("users as u", "u.id", "e.by_user_id")
-    .select("e.*", "m.name as milestone_name", "u.name as by_name")
+    .select("e.*", "m.name as milestone_name")
     .orderBy([
       { column: "e.at", order: "desc" },
       { column: "e.id", order: "desc" },
     ]);
 }
 
-function toEvent(r: Record<string, unknown>): MilestoneEventRow {
+function toEvent(r: Record<string, unknown>): MilestoneEventRecord {
   return {
     id: Number(r.id),
     milestoneId: Number(r.milestone_id),
@@ -58,14 +60,14 @@ function toEvent(r: Record<string, unknown>): MilestoneEventRow {
     from: (r.from_value as string | null) ?? null,
     to: (r.to_value as string | null) ?? null,
     at: (r.at as Date).toISOString(),
-    by: (r.by_name as string | null) ?? null,
+    byUserId: r.by_user_id == null ? null : Number(r.by_user_id),
     note: (r.note as string | null) ?? null,
     baselineVersion: r.baseline_version === null || r.baseline_version === undefined ? null : Number(r.baseline_version),
   };
 }
 
 /** A milestone's history, newest first (the caller has already been shown the milestone). */
-export async function listMilestoneEvents(q: Q, milestoneId: number): Promise<MilestoneEventRow[]> {
+export async function listMilestoneEvents(q: Q, milestoneId: number): Promise<MilestoneEventRecord[]> {
   return ((await eventQuery(q).where("e.milestone_id", milestoneId)) as Array<Record<string, unknown>>).map(toEvent);
 }
 
@@ -78,7 +80,7 @@ export async function listProjectEvents(
   projectId: number,
   viewer: Viewer,
   opts: { from?: Date; before?: Date; fields?: readonly MilestoneEventFieldName[] } = {},
-): Promise<MilestoneEventRow[]> {
+): Promise<MilestoneEventRecord[]> {
   const query = visibleTo(eventQuery(q).where("e.project_id", projectId), "m.audience", viewer);
   if (opts.from) query.where("e.at", ">=", opts.from);
   if (opts.before) query.where("e.at", "<", opts.before);

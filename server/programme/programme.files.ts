@@ -6,7 +6,7 @@ import type { Actor } from "../core/types.ts";
 import { cycleWords, eventsFor, fieldsOf, sameIds, storedValuesOf, uniqueSorted, type ProgrammeContext, type StoredValues, type Trx } from "./programme.context.ts";
 import { milestonesToCsv, parseMilestoneCsv, type CsvMilestoneRow } from "./programme.csv.ts";
 import { insertEvents } from "./programme.events.repository.ts";
-import { findOrCreatePhase, insertMilestone, listDependencyEdges, listMilestones, lockProject, replaceDependencies, type MilestoneFields, type MilestoneRecord } from "./programme.repository.ts";
+import { findOrCreatePhase, insertMilestone, listDependencyEdges, listMilestones, replaceDependencies, type MilestoneFields, type MilestoneRecord } from "./programme.repository.ts";
 
 /**
  * The programme as a CSV file: export every milestone, and import a file that adds and updates
@@ -163,7 +163,7 @@ export function createFileUseCases(ctx: ProgrammeContext) {
       const project = await projects.get(slug);
       const parsed = parseMilestoneCsv(csv);
       return db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const existing = await listMilestones(trx, project.id, "staff");
         const plans = await planImport(trx, project, existing, parsed);
         const at = now();

@@ -4,8 +4,8 @@ import { summariseChanges } from "#shared/domain/programme-changes.ts";
 import { drivingChain, type DrivingLink } from "#shared/domain/programme-dependencies.ts";
 import { notFound } from "../core/app-error.ts";
 import { dateInZone, endOfDateInZone, startOfDateInZone } from "../projects/projects.service.ts";
-import { toInput, viewerOf, type ProgrammeContext, type Reader } from "./programme.context.ts";
-import { listMilestoneEvents, listProjectEvents } from "./programme.events.repository.ts";
+import { toInput, userIdsOf, viewerOf, type ProgrammeContext, type Reader } from "./programme.context.ts";
+import { listMilestoneEvents, listProjectEvents, type MilestoneEventRecord } from "./programme.events.repository.ts";
 import { findMilestone, listMilestones, type Viewer } from "./programme.repository.ts";
 
 /** Dates of a range, inclusive, in the project's time zone. */
@@ -17,9 +17,15 @@ type DateRange = { from: string; to: string };
  * its moves (the changes summarised per milestone) over a range of dates.
  */
 export function createHistoryUseCases(ctx: ProgrammeContext) {
-  const { db, projects } = ctx;
+  const { db, projects, accounts } = ctx;
 
-  function eventsIn(project: Project, viewer: Viewer, range: DateRange): Promise<MilestoneEventRow[]> {
+  /** Events with the names of the people who made them, asked for in one read. */
+  async function named(events: readonly MilestoneEventRecord[]): Promise<MilestoneEventRow[]> {
+    const names = await accounts.namesOf(userIdsOf(events.map((e) => e.byUserId)));
+    return events.map(({ byUserId, ...e }) => ({ ...e, by: (byUserId === null ? null : names.get(byUserId)) ?? null }));
+  }
+
+  function eventsIn(project: Project, viewer: Viewer, range: DateRange): Promise<MilestoneEventRecord[]> {
     return listProjectEvents(db, project.id, viewer, {
       from: startOfDateInZone(range.from, project.timeZone),
       before: endOfDateInZone(range.to, project.timeZone),
@@ -30,7 +36,7 @@ export function createHistoryUseCases(ctx: ProgrammeContext) {
     async events(id: number, reader: Reader): Promise<MilestoneEventRow[]> {
       const m = await findMilestone(db, id, viewerOf(reader));
       if (!m) throw notFound("That milestone");
-      return listMilestoneEvents(db, id);
+      return named(await listMilestoneEvents(db, id));
     },
 
     async drivers(id: number, reader: Reader): Promise<DrivingLink[]> {
@@ -44,7 +50,7 @@ export function createHistoryUseCases(ctx: ProgrammeContext) {
 
     /** Events in [from, to], dates inclusive in the project's time zone, of milestones the caller may see; newest first. */
     async changes(slug: string, range: DateRange, reader: Reader): Promise<MilestoneEventRow[]> {
-      return eventsIn(await projects.get(slug), viewerOf(reader), range);
+      return named(await eventsIn(await projects.get(slug), viewerOf(reader), range));
     },
 
     /** The changes in [from, to] summarised per milestone (later, earlier, completed, removed…). */

@@ -17,7 +17,6 @@ import {
   listDependants,
   listMilestoneNames,
   listMilestones,
-  lockProject,
   replaceDependencies,
   existingMilestoneIds,
   setRemoval,
@@ -34,7 +33,7 @@ export type MilestoneListQuery = MilestoneFilter & { at?: string; status?: Miles
  * entered by mistake).
  */
 export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<ProgrammeDeps, "references">) {
-  const { db, projects, now, record, present, staffView } = ctx;
+  const { db, projects, now, record, presentAll, presentOne, staffView } = ctx;
 
   /** Each changed field as { from, to }, for the audit entry of an edit. */
   function changeDetail(before: MilestoneRecord, next: MilestoneFields, extra: { phase?: string; dependsOn?: number[] }): Record<string, { from: unknown; to: unknown }> {
@@ -107,7 +106,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
     async list(slug: string, query: MilestoneListQuery, reader: Reader): Promise<Milestone[]> {
       const view = ctx.viewOf(await projects.get(slug), viewerOf(reader), query.at);
       const records = await listMilestones(db, view.project.id, view.viewer, { audience: query.audience, system: query.system, area: query.area, removed: query.removed });
-      const list = records.map((m) => present(m, view));
+      const list = await presentAll(records, view);
       return query.status ? list.filter((m) => m.status === query.status) : list;
     },
 
@@ -126,7 +125,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
     async create(slug: string, input: MilestoneCreateInput, actor: Actor): Promise<Milestone> {
       const project = await projects.get(slug);
       return db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const all = await listMilestones(trx, project.id, "staff");
         const dependsOn = uniqueSorted(input.dependsOn);
         const fields: Record<string, string> = {};
@@ -148,14 +147,14 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
         await insertEvents(trx, eventsFor(null, next, { milestoneId: id, projectId: project.id, at, byUserId: actor.user?.id ?? null, note: null }));
         const { phaseId: _phaseId, ...values } = next;
         await record(trx, actor, "milestone_created", { type: "milestone", id, label: next.name }, { project: project.slug, ...values, phase: input.phase, dependsOn });
-        return present((await findMilestone(trx, id, "staff"))!, staffView(project));
+        return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
       });
     },
 
     async patch(id: number, input: MilestonePatchInput, actor: Actor): Promise<Milestone> {
       const project = await ctx.projectOfMilestone(id);
       return db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const before = await findMilestone(trx, id, "staff", { forUpdate: true });
         if (!before) throw notFound("That milestone");
         if (before.removal) throw removedError(before, project);
@@ -189,7 +188,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
         if (written || dependenciesChange) {
           await record(trx, actor, "milestone_updated", { type: "milestone", id, label: next.name }, { project: project.slug, changes, note: input.note ?? null });
         }
-        return present((await findMilestone(trx, id, "staff"))!, staffView(project));
+        return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
       });
     },
 
@@ -200,7 +199,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
     async delete(id: number, input: { reason?: string }, actor: Actor): Promise<void> {
       const project = await ctx.projectOfMilestone(id);
       await db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const m = await findMilestone(trx, id, "staff", { forUpdate: true });
         if (!m) throw notFound("That milestone");
         await refuseWhileDepended(trx, m, "all");
@@ -228,7 +227,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
     async removeFromProgramme(id: number, input: MilestoneRemovalInput, actor: Actor): Promise<Milestone> {
       const project = await ctx.projectOfMilestone(id);
       return db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const m = await findMilestone(trx, id, "staff", { forUpdate: true });
         if (!m) throw notFound("That milestone");
         if (m.removal) throw removedError(m, project);
@@ -238,7 +237,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
         if ((await setRemoval(trx, id, m.version, { at, byUserId, reason: input.reason }, at)) === 0) throw await ctx.conflictWith(trx, id, project);
         await insertEvents(trx, [{ milestoneId: id, projectId: project.id, field: "removed", from: "false", to: "true", at, byUserId, note: input.reason, baselineVersion: null }]);
         await record(trx, actor, "milestone_removed", { type: "milestone", id, label: m.name }, { project: project.slug, reason: input.reason });
-        return present((await findMilestone(trx, id, "staff"))!, staffView(project));
+        return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
       });
     },
 
@@ -246,7 +245,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
     async restore(id: number, input: MilestoneRemovalInput, actor: Actor): Promise<Milestone> {
       const project = await ctx.projectOfMilestone(id);
       return db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const m = await findMilestone(trx, id, "staff", { forUpdate: true });
         if (!m) throw notFound("That milestone");
         if (!m.removal) throw new AppError("not_removed", `${m.name} is in the programme; there is nothing to restore.`, 409);
@@ -260,7 +259,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
         if ((await setRemoval(trx, id, m.version, null, at)) === 0) throw await ctx.conflictWith(trx, id, project);
         await insertEvents(trx, [{ milestoneId: id, projectId: project.id, field: "removed", from: "true", to: "false", at, byUserId, note: input.reason, baselineVersion: null }]);
         await record(trx, actor, "milestone_restored", { type: "milestone", id, label: m.name }, { project: project.slug, reason: input.reason, removedAt: m.removal.at.toISOString(), removedReason: m.removal.reason });
-        return present((await findMilestone(trx, id, "staff"))!, staffView(project));
+        return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
       });
     },
 
@@ -269,7 +268,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
       const project = await projects.get(slug);
       const settings = settingsOf(project);
       return db.transaction(async (trx) => {
-        await lockProject(trx, project.id);
+        await projects.lockForWrite(trx, project.id);
         const all = await listMilestones(trx, project.id, "staff");
         const byId = new Map(all.map((m) => [m.id, m]));
         const ids = uniqueSorted(input.ids);
@@ -292,7 +291,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
           milestones: ids.map((i) => ({ id: i, name: byId.get(i)!.name, from: byId.get(i)!.forecastFinish ?? byId.get(i)!.baselineFinish })),
         });
         const view = staffView(project);
-        return (await listMilestones(trx, project.id, "staff")).filter((m) => ids.includes(m.id)).map((m) => present(m, view));
+        return presentAll((await listMilestones(trx, project.id, "staff")).filter((m) => ids.includes(m.id)), view, trx);
       });
     },
   };

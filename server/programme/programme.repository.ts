@@ -38,7 +38,8 @@ export interface MilestoneRecord extends MilestoneFields {
 
 export interface MilestoneRemovalRecord {
   at: Date;
-  by: string | null;
+  /** Who removed it (the users module names them); null when no one signed in did. */
+  byUserId: number | null;
   reason: string;
 }
 
@@ -93,15 +94,12 @@ function toMilestone(r: Record<string, unknown>, dependsOn: number[]): Milestone
     version: Number(r.version),
     createdAt: r.created_at as Date,
     updatedAt: r.updated_at as Date,
-    removal: r.removed_at ? { at: r.removed_at as Date, by: (r.removed_by_name as string | null) ?? null, reason: String(r.removed_reason ?? "") } : null,
+    removal: r.removed_at ? { at: r.removed_at as Date, byUserId: r.removed_by_user_id == null ? null : Number(r.removed_by_user_id), reason: String(r.removed_reason ?? "") } : null,
   };
 }
 
 function milestoneQuery(q: Q) {
-  return q("milestones as m")
-    .join("phases as p", "p.id", "m.phase_id")
-    .leftJoin("users as ru", "ru.id", "m.removed_by_user_id")
-    .select("m.*", "p.name as phase_name", "p.sort_order as phase_order", "ru.name as removed_by_name");
+  return q("milestones as m").join("phases as p", "p.id", "m.phase_id").select("m.*", "p.name as phase_name", "p.sort_order as phase_order");
 }
 
 /** Predecessor ids by milestone, of predecessors the viewer may see. */
@@ -224,11 +222,6 @@ export async function setRemoval(q: Q, id: number, version: number, removal: { a
       version: version + 1,
       updated_at: at,
     });
-}
-
-/** Serialises programme writes of one project (dependency cycles, phase creation, baseline numbers). */
-export async function lockProject(q: Q, projectId: number): Promise<void> {
-  await q("projects").where({ id: projectId }).forUpdate().first("id");
 }
 
 // Phases

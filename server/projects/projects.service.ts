@@ -1,8 +1,9 @@
+import type { Knex } from "knex";
 import { DateTime } from "luxon";
 import type { Project } from "#shared/schemas/projects.ts";
 import { notFound } from "../core/app-error.ts";
 import type { Db } from "../db/knex.ts";
-import { findProjectById, findProjectBySlug, findProjectSender, listProjects, type ProjectSender } from "./projects.repository.ts";
+import { findProjectById, findProjectBySlug, findProjectSender, findProjectSenders, findProjectsByIds, listProjects, lockProjectRow, type ProjectSender } from "./projects.repository.ts";
 
 /** The calendar date (`YYYY-MM-DD`) of an instant in an IANA time zone. */
 export function dateInZone(instant: Date, timeZone: string): string {
@@ -34,11 +35,21 @@ export function createProjectsService(db: Db, opts: { now?: () => Date } = {}) {
       if (!p) throw notFound("That project");
       return p;
     },
+    /** The project of a slug, or null when there is none (a filter naming no project matches nothing). */
+    findBySlug: (slug: string): Promise<Project | null> => findProjectBySlug(db, slug),
     async getById(id: number): Promise<Project> {
       const p = await findProjectById(db, id);
       if (!p) throw notFound("That project");
       return p;
     },
+    /** Projects by id, in one read, for lists that name each row's project (an unknown id is left out). */
+    byIds: (ids: readonly number[]): Promise<Map<number, Project>> => findProjectsByIds(db, ids),
+    /**
+     * Locks the project in the caller's transaction, so that writes which check the whole of a
+     * project's records before changing them (the programme's dependency cycles, phases, baseline
+     * numbers) take turns across processes. Held until the transaction ends.
+     */
+    lockForWrite: (trx: Knex.Transaction, projectId: number): Promise<void> => lockProjectRow(trx, projectId),
     /**
      * The project as its e-mails name it, with the operator's postal address for the footer (kept
      * out of the public project record, which the site serves to anyone).
@@ -47,6 +58,10 @@ export function createProjectsService(db: Db, opts: { now?: () => Date } = {}) {
       const p = await findProjectSender(db, id);
       if (!p) throw notFound("That project");
       return p;
+    },
+    /** The senders of several projects in one read, by id: for lists naming each row's project. */
+    async senders(ids: readonly number[]): Promise<Map<number, ProjectSender>> {
+      return new Map((await findProjectSenders(db, ids)).map((p) => [p.id, p]));
     },
     /** Today's date on site: the programme's "today" is the project's, not the server's. */
     today(project: Pick<Project, "timeZone">): string {

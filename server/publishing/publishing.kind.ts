@@ -1,36 +1,20 @@
 import type { Knex } from "knex";
+import type { Viewer } from "#shared/domain/audience.ts";
 import type { ContentKind } from "#shared/domain/publishing-workflow.ts";
-import type { Audience } from "#shared/schemas/common.ts";
 import type { Project } from "#shared/schemas/projects.ts";
-import type { PostStatus, PublishingProblem } from "#shared/schemas/publishing.ts";
+import type { PublishingProblem } from "#shared/schemas/publishing.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
+import type { WorkflowRecord, WorkflowUpdate } from "./publishing.columns.ts";
 import type { RevisionColumns, RevisionHead } from "./publishing.repository.ts";
 
 type Trx = Knex.Transaction;
 
 /** What the workflow reads of every item, whatever its kind. */
-export interface WorkflowItem {
-  id: number;
-  projectId: number;
-  slug: string;
-  title: string;
-  audience: Audience;
-  status: PostStatus;
-  authorId: number | null;
-  scheduledFor: Date | null;
-  publishedAt: Date | null;
-  version: number;
-}
+export type WorkflowItem = Pick<WorkflowRecord, "id" | "projectId" | "slug" | "title" | "audience" | "status" | "authorId" | "scheduledFor" | "publishedAt" | "version">;
 
 /** The workflow's fields of a content row, which a step writes. */
-export interface WorkflowChanges {
-  status?: PostStatus;
-  scheduledFor?: Date | null;
-  publishedAt?: Date | null;
-  withdrawnAt?: Date | null;
-  reviewComment?: string | null;
-}
+export type WorkflowChanges = Pick<WorkflowUpdate, "status" | "scheduledFor" | "publishedAt" | "withdrawnAt" | "reviewComment">;
 
 /**
  * A kind of published content (updates: server/posts; photo stories: server/stories), as the
@@ -51,11 +35,15 @@ export interface PublishedKind<Item extends WorkflowItem, Content, Detail> {
    * or only when the step sets or cancels one (photo stories). Kept as each kind answered before.
    */
   answerSchedule: "always" | "when-changed";
-  /** The project an item belongs to, and the clock. */
-  projects: { getById(id: number): Promise<Project>; now(): Date };
+  /** The project of an address or of an item, and the clock. */
+  projects: { get(slug: string): Promise<Project>; getById(id: number): Promise<Project>; now(): Date };
 
   /** Reads an item by id; `forUpdate` locks its row for the caller's transaction. */
   find(q: Db | Trx, id: number, opts?: { forUpdate?: boolean }): Promise<Item | null>;
+  /** The item at an address of a project, when the viewer may read it (the kind's audience rule). */
+  findVisible(q: Db, projectId: number, slug: string, viewer: Viewer): Promise<Item | null>;
+  /** The kind's answer to a read of the item, for this caller. */
+  detail(project: Project, item: Item, actor: Actor): Promise<Detail>;
   /** Every reason the item cannot be published for its audience now (the kind's checks). */
   problems(trx: Trx, project: Project, item: Item): Promise<PublishingProblem[]>;
   /** Renders the item for publication at `at` and opens its photos to its audience: the changes that publish it. */

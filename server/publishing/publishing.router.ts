@@ -37,15 +37,15 @@ export interface PublishedService<Detail, CreateInput, PatchInput> {
 }
 
 /** Where a kind lives in the API and on the site, and how its own inputs are read. */
-export interface PublishedRoutes<CreateInput, PatchInput> {
+export interface PublishedRoutes<CreateInput, PatchInput, ItemParam extends string> {
   /** The path segment of the API: `/api/projects/:slug/<plural>` and `/api/<plural>/:id`. */
   plural: string;
   /** The path segment of its pages (`/projects/:slug/<page>/:itemSlug`), named by a redirect. */
   page: string;
   /** The route parameter of the item's address (`postSlug`, `storySlug`: the names errors give). */
-  itemParam: string;
-  /** Reads the project's and the item's addresses from the route parameters (`:slug`, `:<itemParam>`). */
-  slugParams(params: unknown): { slug: string; itemSlug: string };
+  itemParam: ItemParam;
+  /** The schema of the route parameters: the project's and the item's addresses (`:slug`, `:<itemParam>`). */
+  slugParams: z.ZodType<{ slug: string } & Record<ItemParam, string>>;
   createInput: z.ZodType<CreateInput>;
   patchInput: z.ZodType<PatchInput>;
 }
@@ -57,13 +57,14 @@ export interface PublishedRoutes<CreateInput, PatchInput> {
  * audience in the service; writing is for staff; approving, returning, publishing, scheduling
  * and withdrawing for leads and admins (the workflow rules refine who may do what when).
  */
-export function publishingRouter<Detail, CreateInput, PatchInput>(routes: PublishedRoutes<CreateInput, PatchInput>, service: PublishedService<Detail, CreateInput, PatchInput>): Router {
+export function publishingRouter<Detail, CreateInput, PatchInput, ItemParam extends string>(routes: PublishedRoutes<CreateInput, PatchInput, ItemParam>, service: PublishedService<Detail, CreateInput, PatchInput>): Router {
   const r = Router();
   const { plural, page } = routes;
 
   r.get(`/projects/:slug/${plural}/:${routes.itemParam}`, async (req, res) => {
-    const { slug, itemSlug } = routes.slugParams(req.params);
-    const found = await service.getBySlug(slug, itemSlug, actorOf(req));
+    const params = routes.slugParams.parse(req.params);
+    const { slug } = params;
+    const found = await service.getBySlug(slug, params[routes.itemParam], actorOf(req));
     cacheForReader(req, res);
     if (found && typeof found === "object" && "redirectTo" in found) {
       // fetch() follows the Location to the current address; the body names the page to show.

@@ -137,8 +137,25 @@ export function createPublishingService(deps: { db: Db }) {
       return result;
     }
 
-    /** What every kind serves the same way: the steps, the revisions, the history, the scheduler's pass. */
+    /** The kind's answer to a read of the item, for this caller. */
+    const detailOf = async (item: Item, actor: Actor): Promise<Detail> => spec.detail(await projects.getById(item.projectId), item, actor);
+
+    /** What every kind serves the same way: its reads, the steps, the revisions, the history, the scheduler's pass. */
     const steps = {
+      /** An item by its address, or where it moved to; 404 when the caller may not read it. */
+      async getBySlug(projectSlug: string, itemSlug: string, actor: Actor): Promise<Detail | { redirectTo: string }> {
+        const project = await projects.get(projectSlug);
+        const viewer = viewerOf(actor);
+        const item = await spec.findVisible(db, project.id, itemSlug, viewer);
+        if (item) return spec.detail(project, item, actor);
+        const moved = await findRedirect(db, table, project.id, itemSlug, viewer);
+        if (moved) return { redirectTo: moved };
+        throw missing();
+      },
+
+      /** Staff: the whole item, with its version, revisions and publishing problems. */
+      getById: async (id: number, actor: Actor): Promise<Detail> => detailOf(await existing(id), actor),
+
       submit: (id: number, actor: Actor) => transition(id, "submit", actor),
       approve: (id: number, actor: Actor) => transition(id, "approve", actor),
       returnToDraft: (id: number, comment: string, actor: Actor) => transition(id, "return", actor, { comment }),
@@ -214,6 +231,7 @@ export function createPublishingService(deps: { db: Db }) {
       steps,
       changed,
       existing,
+      detailOf,
       writeRevision,
       /** The item's revisions for its detail (no existence check: the caller has the item). */
       revisionList: async (id: number): Promise<RevisionSummary[]> => (await listRevisions(db, kind, id)).map(revisionSummary),

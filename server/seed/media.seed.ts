@@ -10,6 +10,7 @@ import { createMediaService } from "../media/media.service.ts";
 import { createLocalDiskStorage, createUploadArea, testMediaDirFor } from "../media/media.storage.ts";
 import { createProgrammeService } from "../programme/programme.service.ts";
 import { createProjectsService } from "../projects/projects.service.ts";
+import { createAccountsService } from "../users/users.accounts.ts";
 
 /**
  * Illustrative site photos for the demo project: drawings made here from SVG, each marked
@@ -289,7 +290,8 @@ export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: 
   const uploads = createUploadArea(mediaDir);
   const projects = createProjectsService(db);
   const limits = { maxFileBytes: 40 * 1024 * 1024, maxFiles: 20, maxPixels: 100_000_000 };
-  const media = createMediaService({ db, storage, uploads, projects, programme: createProgrammeService({ db, projects }), limits });
+  const accounts = createAccountsService({ db });
+  const media = createMediaService({ db, storage, uploads, projects, programme: createProgrammeService({ db, projects, accounts }), accounts, limits });
   if ((await media.countOfProject(projectId)) > 0) {
     // Originals stored before location was removed at upload lose it now (issue 9).
     const { rewritten, notRemovable } = await media.removeLocationFromOriginals(projectId);

@@ -1,9 +1,10 @@
 import type { Knex } from "knex";
 import { DateTime } from "luxon";
+import { z } from "zod";
 import type { Viewer } from "#shared/domain/audience.ts";
 import { milestoneStatus } from "#shared/domain/programme-health.ts";
 import type { MediaItem } from "#shared/schemas/media.ts";
-import type { PostTag } from "#shared/schemas/posts.ts";
+import { PostTagSchema } from "#shared/schemas/posts.ts";
 import type { Milestone, MilestoneEventRow } from "#shared/schemas/programme.ts";
 import type { RichTextDoc, RichTextNode } from "#shared/schemas/rich-text.ts";
 import type { StoryItemInput } from "#shared/schemas/stories.ts";
@@ -15,6 +16,8 @@ import { createProgrammeService } from "../programme/programme.service.ts";
 import { createPublishingService } from "../publishing/publishing.service.ts";
 import { createProjectsService } from "../projects/projects.service.ts";
 import { createStoriesService } from "../stories/stories.service.ts";
+import { createAccountsService } from "../users/users.accounts.ts";
+import demoUpdates from "./demo-updates.json" with { type: "json" };
 import { seedMediaDir } from "./media.seed.ts";
 
 /**
@@ -31,160 +34,28 @@ import { seedMediaDir } from "./media.seed.ts";
 
 const TZ = "Europe/London";
 
-interface SeedPost {
-  weeksAgo: number;
-  title: string;
-  summary: string;
-  audience: "public" | "investor";
-  cover: string;
-  inline?: string;
+/** One demo update as `demo-updates.json` writes it (checked when the seed loads it). */
+const SeedPostSchema = z.strictObject({
+  weeksAgo: z.number().int().min(0),
+  title: z.string(),
+  summary: z.string(),
+  audience: z.enum(["public", "investor"]),
+  cover: z.string(),
+  inline: z.string().optional(),
   /** Starts of milestone names, linked and shown as blocks. */
-  milestones: string[];
-  tags: PostTag[];
-  paragraphs: string[];
-  heading?: string;
-}
+  milestones: z.array(z.string()),
+  tags: z.array(PostTagSchema),
+  /** The text: the inline photo after the first paragraph, the heading after the last. */
+  paragraphs: z.array(z.string()).min(1),
+  heading: z.string().optional(),
+});
+type SeedPost = z.infer<typeof SeedPostSchema>;
 
-const POSTS: SeedPost[] = [
-  {
-    weeksAgo: 36,
-    title: "Ground broken on Phase 2",
-    summary: "Enabling works are under way: the plant-yard slab is poured and the chiller bases set out.",
-    audience: "public",
-    cover: "plant-yard-slab.jpg",
-    milestones: ["Ground works"],
-    tags: [{ kind: "area", value: "Plant yard" }, { kind: "system", value: "building" }],
-    heading: "What happens next",
-    paragraphs: [
-      "Phase 2 at Aldermere Campus has started on site. The compound, hoarding and welfare cabins are in, and the escorted visitor route is marked.",
-      "In the plant yard the drainage runs are laid and the slab for the chillers is poured. The diverted HV and water services come next.",
-    ],
-  },
-  {
-    weeksAgo: 31,
-    title: "Hall 2A steel goes up",
-    summary: "Primary steel for Hall 2A is rising; cladding will follow from the west end.",
-    audience: "public",
-    cover: "hall-2a-frame.jpg",
-    inline: "plant-yard-slab.jpg",
-    milestones: ["Steel frame topped out", "Ground works"],
-    tags: [{ kind: "area", value: "Hall 2A" }, { kind: "system", value: "building" }],
-    paragraphs: [
-      "The portal frames of Hall 2A are going up two bays a week. The same crew moves on to the HD-1 suite and the Hall 2B shell once Hall 2A is topped out.",
-      "Ground works are finishing a week later than planned after the utility diversions; the frame was not held up.",
-    ],
-  },
-  {
-    weeksAgo: 21,
-    title: "Weathertight: roof and cladding complete",
-    summary: "The halls are dry, so fit-out can start; the roof plant is lifted in.",
-    audience: "public",
-    cover: "roof-plant.jpg",
-    inline: "hall-2a-frame.jpg",
-    milestones: ["Roof and cladding weathertight", "Steel frame topped out"],
-    tags: [{ kind: "area", value: "Hall 2A" }, { kind: "system", value: "building" }, { kind: "system", value: "cooling" }],
-    heading: "Why weathertight matters",
-    paragraphs: [
-      "Raised floors, busbar and racks cannot go into a wet building. With the roof membrane and cladding complete, Hall 2A is ready for its fit-out trades.",
-      "The roof plant and its louvres were lifted in over two weekends with the road closed.",
-    ],
-  },
-  {
-    weeksAgo: 17,
-    title: "Bulk fuel tank installed and tested",
-    summary: "The 40,000 L double-skinned tank is on its bund and has passed its pressure test.",
-    audience: "public",
-    cover: "fuel-tank.jpg",
-    milestones: ["Bulk fuel tank installed"],
-    tags: [{ kind: "area", value: "Plant yard" }, { kind: "system", value: "fuel" }],
-    paragraphs: [
-      "The bulk tank holds the fuel the generators would burn in a long mains failure. It is double-skinned, with leak detection between the skins, and sits in a bund.",
-      "Transfer pumps and the day tanks in the energy centre are connected next. Any autonomy figure we quote is indicative: the design is for the engineers under local codes.",
-    ],
-  },
-  {
-    weeksAgo: 13,
-    title: "Three generator sets on site",
-    summary: "All three 1,250 kVA sets are delivered and set; two carry the load and the third is the spare (N+1).",
-    audience: "public",
-    cover: "generator-hall.jpg",
-    inline: "fuel-tank.jpg",
-    milestones: ["Generators delivered"],
-    tags: [{ kind: "area", value: "Energy centre" }, { kind: "system", value: "power" }],
-    paragraphs: [
-      "The generator sets arrived on low loaders and were skated into the generator hall. Each stands on its own plinth with its exhaust stack through the roof.",
-      "Commissioning, including a load bank test of each set at full load, follows once the fuel system is proven.",
-    ],
-  },
-  {
-    weeksAgo: 10,
-    title: "Chillers on their plinths",
-    summary: "Four of the five 400 kW chillers are set; the fifth follows the crane.",
-    audience: "public",
-    cover: "chiller-row.jpg",
-    inline: "roof-plant.jpg",
-    milestones: ["Chillers delivered", "Hall 2A ready for service"],
-    tags: [{ kind: "area", value: "Plant yard" }, { kind: "system", value: "cooling" }],
-    heading: "N+1 cooling",
-    paragraphs: [
-      "Four chillers carry the design load; the fifth is the spare, so one can be maintained or fail without the halls warming up.",
-      "The fifth chiller's delivery slipped with the crane booking. We show the forecast below as it stood when we wrote this, and today's beside it.",
-    ],
-  },
-  {
-    weeksAgo: 7,
-    title: "Investor briefing: energy centre and UPS",
-    summary: "The energy centre is complete and UPS installation has begun; the forecast for the UPS modules has moved.",
-    audience: "investor",
-    cover: "ups-room.jpg",
-    inline: "generator-hall.jpg",
-    milestones: ["Energy centre building complete", "UPS modules installed"],
-    tags: [{ kind: "area", value: "Energy centre" }, { kind: "system", value: "power" }],
-    paragraphs: [
-      "For our investors: the energy centre building is complete and weathertight, and the first UPS modules and battery strings are going in.",
-      "The UPS forecast has moved with the battery delivery; the programme's float absorbs it for now. Detail is in the investor room.",
-    ],
-  },
-  {
-    weeksAgo: 1,
-    title: "HD-1 containment goes up",
-    summary: "Sealed containment is up over the first rack row of the high-density suite.",
-    audience: "public",
-    cover: "hd1-containment.jpg",
-    inline: "chiller-row.jpg",
-    milestones: ["HD-1 high-density", "HD-1 ready for service"],
-    tags: [{ kind: "area", value: "HD-1" }, { kind: "system", value: "fit-out" }],
-    paragraphs: [
-      "HD-1 takes 20 racks at up to 25 kW each. Its containment is sealed so that the cold air goes through the equipment and nowhere else.",
-      "Dual busbar follows. Ready-for-service dates are shown as forecast today.",
-    ],
-  },
-];
-
-const SCHEDULED: SeedPost = {
-  weeksAgo: 0,
-  title: "Integrated systems testing: what to expect",
-  summary: "Before Hall 2A is ready for service, every system is tested together under heat load.",
-  audience: "public",
-  cover: "chiller-row.jpg",
-  milestones: ["L5 integrated systems test", "Hall 2A ready for service"],
-  tags: [{ kind: "area", value: "Hall 2A" }, { kind: "system", value: "commissioning" }],
-  paragraphs: [
-    "The integrated systems test (commissioning level 5) proves that the plant works as one: the mains supply is cut, the generators start, the UPS carries the load in between and the cooling restarts, with heat-load banks standing in for the racks.",
-  ],
-};
-
-const IN_REVIEW: SeedPost = {
-  weeksAgo: 0,
-  title: "Hall 2A corridor: second fix",
-  summary: "Lighting and finishes in the Hall 2A corridor.",
-  audience: "public",
-  cover: "hd1-containment.jpg",
-  inline: "hall-2a-corridor.jpg",
-  milestones: ["Hall 2A raised floor"],
-  tags: [{ kind: "area", value: "Hall 2A" }, { kind: "system", value: "fit-out" }],
-  paragraphs: ["Second-fix lighting is complete in the corridor that leads to Hall 2A. (Waiting for the lead: the corridor photo still needs its alt text.)"],
-};
+/** The demo's updates are content, not code: they live in a data file, checked here. */
+const DEMO_UPDATES = z.strictObject({ published: z.array(SeedPostSchema), scheduled: SeedPostSchema, inReview: SeedPostSchema }).parse(demoUpdates);
+const POSTS = DEMO_UPDATES.published;
+const SCHEDULED = DEMO_UPDATES.scheduled;
+const IN_REVIEW = DEMO_UPDATES.inReview;
 
 /** The titles the demo's updates carry, by what the seed does with them. */
 export const DEMO_UPDATE_TITLES = {
@@ -234,13 +105,14 @@ function programmeAsAt(
 export async function seedPosts(db: Knex, projectSlug: string, opts: { mediaDir?: string; today?: DateTime } = {}): Promise<{ created: string[] }> {
   const created: string[] = [];
   const projects = createProjectsService(db);
+  const accounts = createAccountsService({ db });
   const project = await projects.get(projectSlug).catch(() => null);
   if (!project) return { created };
   if (await db("posts").where({ project_id: project.id }).first("id")) return { created };
 
   const mediaDir = opts.mediaDir ?? seedMediaDir(db);
   const limits = { maxFileBytes: 40 * 1024 * 1024, maxFiles: 20, maxPixels: 100_000_000 };
-  const media = createMediaService({ db, storage: createLocalDiskStorage(mediaDir), uploads: createUploadArea(mediaDir), projects, programme: createProgrammeService({ db, projects }), limits });
+  const media = createMediaService({ db, storage: createLocalDiskStorage(mediaDir), uploads: createUploadArea(mediaDir), projects, programme: createProgrammeService({ db, projects, accounts }), accounts, limits });
   const photos = new Map<string, MediaItem>(
     (await media.list({ project: projectSlug, page: 1, pageSize: 100 })).items.filter((i) => i.status === "ready").map((i) => [i.name, i]),
   );
@@ -255,7 +127,7 @@ export async function seedPosts(db: Knex, projectSlug: string, opts: { mediaDir?
   const lead = await actorFor("lead@kestrel.example", "lead");
   if (!marketing.user || !lead.user) return { created };
 
-  const programme = createProgrammeService({ db, projects });
+  const programme = createProgrammeService({ db, projects, accounts });
   const publishing = createPublishingService({ db });
   const milestones = await programme.list(projectSlug, {}, lead);
   const eventCache = new Map<number, MilestoneEventRow[]>();

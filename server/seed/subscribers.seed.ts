@@ -1,53 +1,42 @@
 import type { Knex } from "knex";
-import { CONSENT, type Frequency, type Interest, type SubscriberStatus, type Topics } from "#shared/schemas/subscribers.ts";
+import { z } from "zod";
+import { EnquiryKindSchema, EnquiryStatusSchema } from "#shared/schemas/enquiries.ts";
+import { CONSENT, InterestSchema, type Frequency, type SubscriberStatus, type Topics } from "#shared/schemas/subscribers.ts";
 import { hashAddress } from "../subscribers/subscribers.tokens.ts";
 import { topicsKey } from "../subscribers/subscribers.topics.ts";
+import demoSubscribers from "./demo-subscribers.json" with { type: "json" };
 
 const DAY = 24 * 60 * 60 * 1000;
 
-// Invented people at reserved example domains (RFC 2606), for the demo only.
-const PEOPLE: Array<[name: string, organisation: string | null, interest: Interest]> = [
-  ["Rowan Achterberg", "Fenwick Data Services", "prospect"],
-  ["Imogen Saltmarsh", "Corrow Analytics", "prospect"],
-  ["Tobias Quayle", "Brightwater Media Group", "prospect"],
-  ["Anjali Verhoeven", "Lowmoor Clinical Systems", "prospect"],
-  ["Declan Ormsby", "Tamsin Freight", "prospect"],
-  ["Hester Lindqvist", "Skelwith Games", "prospect"],
-  ["Marcus Oduya", "Parrfield Insurance", "prospect"],
-  ["Sunniva Pell", "Greyhope Research", "prospect"],
-  ["Callum Tregarthen", "Ashby Render Farm", "prospect"],
-  ["Yusra Kettleborough", "Northlight Payments", "prospect"],
-  ["Felix Amberley", "Halcombe Hosting", "prospect"],
-  ["Odette Marchetti", null, "investor"],
-  ["Benedikt Roper", "Sable Point Capital", "investor"],
-  ["Priyanka Holloway", "Whitcombe Pension Trust", "investor"],
-  ["Gideon Farrelly", "Meridian Vale Partners", "investor"],
-  ["Lorna Castellanos", "Eastmere Infrastructure Fund", "investor"],
-  ["Ravi Stonehouse", null, "investor"],
-  ["Ingrid Mallory", "Tidewater Lending", "investor"],
-  ["Cormac Ellery", "Harrowgate Family Office", "investor"],
-  ["Wren Delacroix", "The Aldermere Courier", "press"],
-  ["Samuel Achebe-Ward", "Data Hall Weekly", "press"],
-  ["Petra Llewellyn", "Regional Business Review", "press"],
-  ["Oskar Brannigan", "Critical Build Journal", "press"],
-  ["Maeve Thornbury", null, "press"],
-  ["Jasper Whitcliffe", "Infrastructure Desk", "press"],
-  ["Agnes Pemberton", null, "neighbour"],
-  ["Hamish Ockenden", "Aldermere Residents' Association", "neighbour"],
-  ["Leonie Fairbrother", null, "neighbour"],
-  ["Ezra Blackwood", null, "neighbour"],
-  ["Constance Mireault", "Aldermere Primary School", "neighbour"],
-  ["Dominic Asheworth", null, "neighbour"],
-  ["Thea Valcourt", null, "neighbour"],
-  ["Niall Greenhalgh", "Mill Lane Allotments", "neighbour"],
-  ["Beatrix Oyelaran", null, "neighbour"],
-  ["Ambrose Kilbride", null, "neighbour"],
-  ["Saoirse Dunmore", "Fenwick Data Services", "prospect"],
-  ["Lucian Hartigan", "Corrow Analytics", "prospect"],
-  ["Freya Nakamura-Bell", "Brightwater Media Group", "press"],
-  ["Otto Prendergast", null, "neighbour"],
-  ["Clementine Rusk", "Sable Point Capital", "investor"],
-];
+/**
+ * The demo's people and enquiries are content, not code: they live in a data file, checked here.
+ * The people are invented, at reserved example domains (RFC 2606), for the demo only. An
+ * enquiry's dates are days before (or, for what it asks for, after) the seed's `now`.
+ */
+const DemoSubscribersSchema = z.strictObject({
+  people: z.array(z.tuple([z.string(), z.string().nullable(), InterestSchema])),
+  enquiries: z.array(
+    z.strictObject({
+      daysAgo: z.number(),
+      updatedDaysAgo: z.number(),
+      kind: EnquiryKindSchema,
+      name: z.string(),
+      email: z.string(),
+      organisation: z.string(),
+      message: z.string(),
+      racks: z.number().optional(),
+      kwPerRack: z.number().optional(),
+      neededInDays: z.number().optional(),
+      preferredInDays: z.array(z.number()).optional(),
+      partySize: z.number().optional(),
+      rulesAcceptedDaysAgo: z.number().optional(),
+      status: EnquiryStatusSchema,
+      ownedByMarketing: z.boolean().optional(),
+      notes: z.string().optional(),
+    }),
+  ),
+});
+const { people: PEOPLE, enquiries: ENQUIRIES } = DemoSubscribersSchema.parse(demoSubscribers);
 
 const DOMAINS = ["example.com", "example.org", "example.net"];
 const FREQUENCIES: Frequency[] = ["weekly", "weekly", "monthly", "immediate"];
@@ -134,53 +123,27 @@ export async function seedSubscribers(db: Knex, projectSlug: string, now: Date =
   const hasEnquiries = await db("enquiries").where({ project_id: projectId }).first("id");
   if (!hasEnquiries) {
     const marketing = await db("users").where({ email: "marketing@kestrel.example" }).first("id");
-    const date = (days: number) => new Date(now.getTime() + days * DAY).toISOString().slice(0, 10);
-    await db("enquiries").insert([
-      {
+    const at = (days: number) => new Date(now.getTime() + days * DAY);
+    const date = (days: number) => at(days).toISOString().slice(0, 10);
+    // A column the demo enquiry does not fill is left out of its row (the table's default), as a form would.
+    await db("enquiries").insert(
+      ENQUIRIES.map((e) => ({
         project_id: projectId,
-        kind: "capacity",
-        name: "Rowan Achterberg",
-        email: "rowan.achterberg@example.com",
-        organisation: "Fenwick Data Services",
-        message: "We are planning a migration out of our current hall and need to know whether HD-1 will take our GPU racks.",
-        racks: 12,
-        kw_per_rack: 18,
-        needed_by: date(150),
-        status: "new",
-        created_at: new Date(now.getTime() - 1 * DAY),
-        updated_at: new Date(now.getTime() - 1 * DAY),
-      },
-      {
-        project_id: projectId,
-        kind: "visit",
-        name: "Anjali Verhoeven",
-        email: "anjali.verhoeven@example.org",
-        organisation: "Lowmoor Clinical Systems",
-        message: "Two of us from infrastructure and one from procurement.",
-        preferred_dates: JSON.stringify([date(9), date(16)]),
-        party_size: 3,
-        rules_accepted_at: new Date(now.getTime() - 4 * DAY),
-        status: "contacted",
-        owner_id: marketing ? marketing.id : null,
-        notes: "Called back; induction booked for the first date, subject to the lead's approval.",
-        created_at: new Date(now.getTime() - 4 * DAY),
-        updated_at: new Date(now.getTime() - 2 * DAY),
-      },
-      {
-        project_id: projectId,
-        kind: "general",
-        name: "Hamish Ockenden",
-        email: "hamish.ockenden@example.net",
-        organisation: "Aldermere Residents' Association",
-        message: "Will the generator testing happen at weekends? Residents on Mill Lane would like to know the hours.",
-        status: "closed",
-        owner_id: marketing ? marketing.id : null,
-        notes: "Answered: monthly tests on weekday mornings only, 10:00 to 11:00.",
-        created_at: new Date(now.getTime() - 20 * DAY),
-        updated_at: new Date(now.getTime() - 18 * DAY),
-      },
-    ]);
-    created.push("3 enquiries");
+        kind: e.kind,
+        name: e.name,
+        email: e.email,
+        organisation: e.organisation,
+        message: e.message,
+        ...(e.racks === undefined ? {} : { racks: e.racks, kw_per_rack: e.kwPerRack, needed_by: date(e.neededInDays!) }),
+        ...(e.preferredInDays === undefined ? {} : { preferred_dates: JSON.stringify(e.preferredInDays.map(date)), party_size: e.partySize, rules_accepted_at: at(-e.rulesAcceptedDaysAgo!) }),
+        status: e.status,
+        ...(e.ownedByMarketing ? { owner_id: marketing ? marketing.id : null } : {}),
+        ...(e.notes === undefined ? {} : { notes: e.notes }),
+        created_at: at(-e.daysAgo),
+        updated_at: at(-e.updatedDaysAgo),
+      })),
+    );
+    created.push(`${ENQUIRIES.length} enquiries`);
   }
   return { created };
 }

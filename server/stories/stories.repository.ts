@@ -1,9 +1,9 @@
 import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
-import type { PostStatus } from "#shared/schemas/publishing.ts";
 import type { StoryItemInput } from "#shared/schemas/stories.ts";
 import type { Viewer } from "#shared/domain/audience.ts";
 import { visibleContent } from "../publishing/publishing.audience.ts";
+import { changedColumns, newDraftColumns, toWorkflowRecord, type WorkflowRecord, type WorkflowUpdate } from "../publishing/publishing.columns.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -22,97 +22,28 @@ function visibleTo<T extends Knex.QueryBuilder>(query: T, viewer: Viewer): T {
   return visibleContent(query, viewer, "s");
 }
 
-export interface StoryRecord {
-  id: number;
-  projectId: number;
-  slug: string;
-  title: string;
+export interface StoryRecord extends WorkflowRecord {
   intro: string;
-  audience: Audience;
-  status: PostStatus;
-  authorId: number | null;
-  authorName: string;
-  scheduledFor: Date | null;
-  publishedAt: Date | null;
-  withdrawnAt: Date | null;
-  reviewComment: string | null;
-  version: number;
-  createdAt: Date;
-  updatedAt: Date;
 }
 
-const dateOrNull = (v: unknown): Date | null => (v === null || v === undefined ? null : new Date(v as string));
-
 function toRecord(r: Record<string, unknown>): StoryRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    slug: String(r.slug),
-    title: String(r.title),
-    intro: String(r.intro ?? ""),
-    audience: r.audience as Audience,
-    status: r.status as PostStatus,
-    authorId: r.author_id === null ? null : Number(r.author_id),
-    authorName: String(r.author_name),
-    scheduledFor: dateOrNull(r.scheduled_for),
-    publishedAt: dateOrNull(r.published_at),
-    withdrawnAt: dateOrNull(r.withdrawn_at),
-    reviewComment: r.review_comment === null || r.review_comment === undefined ? null : String(r.review_comment),
-    version: Number(r.version),
-    createdAt: new Date(r.created_at as string),
-    updatedAt: new Date(r.updated_at as string),
-  };
+  return { ...toWorkflowRecord(r), intro: String(r.intro ?? "") };
 }
 
 export async function insertStory(
   q: Q,
   row: { projectId: number; slug: string; title: string; intro: string; audience: Audience; authorId: number | null; authorName: string; at: Date },
 ): Promise<number> {
-  const [id] = await q("stories").insert({
-    project_id: row.projectId,
-    slug: row.slug,
-    title: row.title,
-    intro: row.intro,
-    audience: row.audience,
-    status: "draft",
-    author_id: row.authorId,
-    author_name: row.authorName,
-    created_at: row.at,
-    updated_at: row.at,
-  });
+  const [id] = await q("stories").insert({ ...newDraftColumns(row), intro: row.intro });
   return Number(id);
 }
 
-export interface StoryUpdate {
-  slug?: string;
-  title?: string;
-  intro?: string;
-  audience?: Audience;
-  status?: PostStatus;
-  scheduledFor?: Date | null;
-  publishedAt?: Date | null;
-  withdrawnAt?: Date | null;
-  reviewComment?: string | null;
-}
-
-const COLUMNS: Record<keyof StoryUpdate, string> = {
-  slug: "slug",
-  title: "title",
-  intro: "intro",
-  audience: "audience",
-  status: "status",
-  scheduledFor: "scheduled_for",
-  publishedAt: "published_at",
-  withdrawnAt: "withdrawn_at",
-  reviewComment: "review_comment",
-};
+export type StoryUpdate = WorkflowUpdate & { intro?: string };
 
 export async function updateStory(q: Q, id: number, changes: StoryUpdate, at: Date): Promise<void> {
-  const row: Record<string, unknown> = { updated_at: at, version: q.raw("version + 1") };
-  for (const [key, column] of Object.entries(COLUMNS) as Array<[keyof StoryUpdate, string]>) {
-    if (changes[key] !== undefined) row[column] = changes[key];
-  }
-  await q("stories").where({ id }).update(row);
+  await q("stories")
+    .where({ id })
+    .update({ updated_at: at, version: q.raw("version + 1"), ...changedColumns(changes, { intro: "intro" }) });
 }
 
 export async function findStoryById(q: Q, id: number, opts: { forUpdate?: boolean } = {}): Promise<StoryRecord | null> {

@@ -26,10 +26,7 @@ export function storiesRouter(stories: StoriesService): Router {
         plural: "stories",
         page: "stories",
         itemParam: "storySlug",
-        slugParams: (params) => {
-          const { slug, storySlug } = StorySlugParamsSchema.parse(params);
-          return { slug, itemSlug: storySlug };
-        },
+        slugParams: StorySlugParamsSchema,
         createInput: StoryCreateInputSchema,
         patchInput: StoryPatchInputSchema,
       },

@@ -4,8 +4,8 @@ import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import type { PostStatus, PublishingProblem } from "#shared/schemas/publishing.ts";
-import type { StoryCreateInput, StoryDetail, StoryItem, StoryItemInput, StoryPatchInput, StoryRedirect, StorySummary } from "#shared/schemas/stories.ts";
-import { AppError, notFound } from "../core/app-error.ts";
+import type { StoryCreateInput, StoryDetail, StoryItem, StoryItemInput, StoryPatchInput, StorySummary } from "#shared/schemas/stories.ts";
+import { AppError } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
@@ -96,6 +96,8 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     answerSchedule: "when-changed",
     projects,
     find: findStoryById,
+    findVisible: findVisibleStoryBySlug,
+    detail: detailOf,
     problems: async (trx, project, story) => problemsOf(project, story, await itemsIn(trx, story.id)),
     publish: async (trx, _project, story, at) => publishIn(trx, story, await itemsIn(trx, story.id), at),
     unpublish: async (trx, story) => media.setUsages("story", story.id, mediaIdsOf(await itemsIn(trx, story.id)), story.audience, false, trx),
@@ -203,7 +205,7 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
    */
   async function saveChanges(id: number, input: Omit<StoryPatchInput, "note"> & { note?: string | null }, actor: Actor): Promise<StoryDetail> {
     await db.transaction(async (trx) => {
-      const story = await workflow.openForEdit(trx, id, input.version, actor, async (s) => detailOf(await projects.getById(s.projectId), s, actor));
+      const story = await workflow.openForEdit(trx, id, input.version, actor, (s) => workflow.detailOf(s, actor));
       const project = await projects.getById(story.projectId);
       const items = input.items ?? (await itemsIn(trx, story.id));
       if (input.items) await checkReferences(project, input.items);
@@ -225,29 +227,13 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     });
     workflow.changed();
     const story = (await findStoryById(db, id))!;
-    return detailOf(await projects.getById(story.projectId), story, actor);
+    return workflow.detailOf(story, actor);
   }
 
   return {
     async list(slug: string, actor: Actor): Promise<StorySummary[]> {
       const project = await projects.get(slug);
       return summaries(await listStories(db, project.id, viewerOf(actor)));
-    },
-
-    /** A story by its address, or where it moved to; 404 when the caller may not read it. */
-    async getBySlug(slug: string, storySlug: string, actor: Actor): Promise<StoryDetail | StoryRedirect> {
-      const project = await projects.get(slug);
-      const viewer = viewerOf(actor);
-      const story = await findVisibleStoryBySlug(db, project.id, storySlug, viewer);
-      if (story) return detailOf(project, story, actor);
-      const moved = await workflow.findRedirect(project.id, storySlug, viewer);
-      if (moved) return { redirectTo: moved };
-      throw notFound("That photo story");
-    },
-
-    async getById(id: number, actor: Actor): Promise<StoryDetail> {
-      const story = await workflow.existing(id);
-      return detailOf(await projects.getById(story.projectId), story, actor);
     },
 
     async create(slug: string, input: StoryCreateInput, actor: Actor): Promise<{ id: number; slug: string; status: PostStatus }> {

@@ -30,12 +30,15 @@ export interface SubscribersDeps {
   now?: () => Date;
 }
 
+/** A subscription's project as its pages and e-mails name it (the projects module's sender). */
+export type SubscriberProject = Awaited<ReturnType<ProjectsService["sender"]>>;
+
 /**
  * What the subscribers' use cases (subscribers.lifecycle, .office, .mail-queue, .bounces) share:
  * their dependencies, the clock, and the checks and links every one of them needs.
  */
 export function createSubscribersContext(deps: SubscribersDeps) {
-  const { db, programme, publicUrl, tokenSecret, unsubscribeMailto } = deps;
+  const { db, programme, projects, publicUrl, tokenSecret, unsubscribeMailto } = deps;
   const now = deps.now ?? (() => new Date());
 
   return {
@@ -64,6 +67,19 @@ export function createSubscribersContext(deps: SubscribersDeps) {
       const s = await findSubscriberById(trx ?? db, t.subscriberId, Boolean(trx));
       if (!s) throw new AppError("not_found", "This link belongs to a subscription that no longer exists.", 404);
       return { s, t };
+    },
+
+    /**
+     * Each subscriber with its project, the projects read in one call for the whole list. A
+     * subscriber whose project has just gone is left out, as it goes with its project.
+     */
+    async withProjects<T extends Pick<SubscriberRecord, "projectId">>(rows: readonly T[]): Promise<Array<T & { project: SubscriberProject }>> {
+      if (rows.length === 0) return [];
+      const senders = await projects.senders(rows.map((r) => r.projectId));
+      return rows.flatMap((r) => {
+        const project = senders.get(r.projectId);
+        return project ? [{ ...r, project }] : [];
+      });
     },
 
     linksFor(s: Pick<SubscriberRecord, "id">): SubscriberLinks {

@@ -53,7 +53,15 @@ export function createSubscriptionLifecycle(ctx: SubscribersContext, sendQueuedM
     return deletePendingBefore(db, new Date(at.getTime() - PENDING_RETENTION_MS));
   }
 
-  function preferencesView(s: SubscriberRecord, options: { areas: string[]; systems: SubscriptionOptions["systems"] }): PreferencesView {
+  /** The project a subscription page names (read from the projects module, by id). */
+  async function projectName(s: Pick<SubscriberRecord, "projectId">): Promise<{ slug: string; name: string }> {
+    const p = await projects.sender(s.projectId);
+    return { slug: p.slug, name: p.name };
+  }
+
+  async function preferencesView(s: SubscriberRecord): Promise<PreferencesView> {
+    const project = await projectName(s);
+    const options = await optionsFor(s.projectId);
     return {
       email: s.email,
       name: s.name,
@@ -62,7 +70,7 @@ export function createSubscriptionLifecycle(ctx: SubscribersContext, sendQueuedM
       frequency: s.frequency,
       topics: s.topics,
       status: s.status,
-      project: { slug: s.project.slug, name: s.project.name },
+      project,
       options,
     };
   }
@@ -165,7 +173,7 @@ export function createSubscriptionLifecycle(ctx: SubscribersContext, sendQueuedM
     /** What a confirmation link is for. A GET: mail scanners fetch links, so this changes nothing. */
     async describeConfirmation(token: string): Promise<ConfirmationView> {
       const { s } = await subscriberFor(token, "confirm");
-      return { email: s.email, name: s.name, project: { slug: s.project.slug, name: s.project.name }, status: s.status, consent: { ...CONSENT } };
+      return { email: s.email, name: s.name, project: await projectName(s), status: s.status, consent: { ...CONSENT } };
     },
 
     /** The button on the confirmation page: single use, within 7 days. */
@@ -190,7 +198,7 @@ export function createSubscriptionLifecycle(ctx: SubscribersContext, sendQueuedM
 
     async describePreferences(token: string): Promise<PreferencesView> {
       const { s } = await subscriberFor(token, "preferences");
-      return preferencesView(s, await optionsFor(s.projectId));
+      return preferencesView(s);
     },
 
     async updatePreferences(token: string, patch: PreferencesInput): Promise<PreferencesView> {
@@ -215,7 +223,7 @@ export function createSubscriptionLifecycle(ctx: SubscribersContext, sendQueuedM
         );
       });
       const after = await findSubscriberById(db, before.id);
-      return preferencesView(after!, await optionsFor(after!.projectId));
+      return preferencesView(after!);
     },
 
     /** "Unsubscribe" on the preferences page. */
@@ -225,7 +233,7 @@ export function createSubscriptionLifecycle(ctx: SubscribersContext, sendQueuedM
 
     async describeUnsubscribe(token: string): Promise<UnsubscribeView> {
       const { s } = await subscriberFor(token, "unsubscribe");
-      return { email: s.email, project: { slug: s.project.slug, name: s.project.name }, status: s.status };
+      return { email: s.email, project: await projectName(s), status: s.status };
     },
 
     /** RFC 8058 one-click, and the button on the /u/ page: unsubscribes at once. */

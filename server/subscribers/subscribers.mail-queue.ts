@@ -1,4 +1,4 @@
-import type { SubscribersContext } from "./subscribers.context.ts";
+import type { SubscriberProject, SubscribersContext } from "./subscribers.context.ts";
 import { alreadySubscribedMail, confirmationMail, welcomeMail, type RenderedMail } from "./subscribers.mail.ts";
 import { claimMailJobs, findSubscriberById, finishMailJob, isSuppressed, type MailJob, type SubscriberRecord } from "./subscribers.repository.ts";
 import { CONFIRM_TTL_MS, signToken } from "./subscribers.tokens.ts";
@@ -22,26 +22,26 @@ export function createMailQueue(
   ctx: SubscribersContext,
   markUndeliverable: (email: string, reason: "bounced", source: string) => Promise<void>,
 ) {
-  const { db, mailer, logger, publicUrl, tokenSecret, now, linksFor } = ctx;
+  const { db, mailer, logger, projects, publicUrl, tokenSecret, now, linksFor } = ctx;
 
-  function render(job: MailJob, s: SubscriberRecord): RenderedMail & { headers?: Record<string, string> } {
+  function render(job: MailJob, s: SubscriberRecord, project: SubscriberProject): RenderedMail & { headers?: Record<string, string> } {
     if (job.kind === "confirmation") {
       const token = signToken(tokenSecret, { subscriberId: s.id, purpose: "confirm", expiresAt: new Date(now().getTime() + CONFIRM_TTL_MS), nonce: s.confirmNonce });
-      return confirmationMail({ project: s.project, name: s.name, confirmUrl: `${publicUrl}/subscriptions/confirm/${token}`, imported: s.consentAt === null });
+      return confirmationMail({ project, name: s.name, confirmUrl: `${publicUrl}/subscriptions/confirm/${token}`, imported: s.consentAt === null });
     }
     const links = linksFor(s);
-    const mail = job.kind === "welcome" ? welcomeMail({ project: s.project, name: s.name, frequency: s.frequency, topics: s.topics, links }) : alreadySubscribedMail({ project: s.project, name: s.name, links });
+    const mail = job.kind === "welcome" ? welcomeMail({ project, name: s.name, frequency: s.frequency, topics: s.topics, links }) : alreadySubscribedMail({ project, name: s.name, links });
     return { ...mail, headers: links.headers };
   }
 
-  async function processJob(job: MailJob): Promise<"sent" | "skipped" | "failed" | "retry"> {
+  async function processJob(job: MailJob, projectOf: (projectId: number) => Promise<SubscriberProject>): Promise<"sent" | "skipped" | "failed" | "retry"> {
     const s = await findSubscriberById(db, job.subscriberId);
     const due = job.kind === "confirmation" ? "pending" : "confirmed";
     if (!s || s.status !== due || (job.kind === "confirmation" && !s.confirmNonce) || (await isSuppressed(db, s.emailHash))) {
       await finishMailJob(db, job.id, { status: "skipped", error: s ? `subscriber is ${s.status}` : "subscriber gone" });
       return "skipped";
     }
-    const mail = render(job, s);
+    const mail = render(job, s, await projectOf(s.projectId));
     try {
       const { messageId } = await mailer.send({ to: s.email, ...mail });
       await finishMailJob(db, job.id, { status: "sent", messageId, sentAt: now() });
@@ -77,7 +77,14 @@ export function createMailQueue(
     for (;;) {
       const jobs = await claimMailJobs(db, now(), MAIL_LEASE_MS, MAIL_BATCH);
       if (jobs.length === 0) return sent;
-      for (const job of jobs) if ((await processJob(job)) === "sent") sent++;
+      // Each project of a batch is read once, not once per e-mail.
+      const read = new Map<number, Promise<SubscriberProject>>();
+      const projectOf = (projectId: number) => {
+        let p = read.get(projectId);
+        if (!p) read.set(projectId, (p = projects.sender(projectId)));
+        return p;
+      };
+      for (const job of jobs) if ((await processJob(job, projectOf)) === "sent") sent++;
     }
   }
 

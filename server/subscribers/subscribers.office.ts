@@ -8,7 +8,7 @@ import {
   type SubscriberRow,
 } from "#shared/schemas/subscribers.ts";
 import { AppError, notFound } from "../core/app-error.ts";
-import type { SubscribersContext } from "./subscribers.context.ts";
+import type { SubscriberProject, SubscribersContext } from "./subscribers.context.ts";
 import { parseSubscriberCsv, subscribersToCsv } from "./subscribers.csv.ts";
 import {
   deleteSubscribersByEmailHash,
@@ -22,13 +22,14 @@ import {
   listSubscribers,
   listSubscribersByEmailHash,
   suppressedAmong,
+  type SubscriberFilter,
   type SubscriberRecord,
 } from "./subscribers.repository.ts";
 import { hashAddress, newNonce } from "./subscribers.tokens.ts";
 import { topicsKey } from "./subscribers.topics.ts";
 
 /** A subscriber as the site office lists them. */
-function toRow(s: SubscriberRecord): SubscriberRow {
+function toRow(s: SubscriberRecord & { project: SubscriberProject }): SubscriberRow {
   return {
     id: s.id,
     project: { slug: s.project.slug, name: s.project.name },
@@ -55,17 +56,28 @@ function toRow(s: SubscriberRecord): SubscriberRow {
  * data, erasure. `sendQueuedMail` starts sending the confirmations an import queued.
  */
 export function createSubscriberOffice(ctx: SubscribersContext, sendQueuedMail: () => void) {
-  const { db, projects, programme, enquiries, now } = ctx;
+  const { db, projects, programme, enquiries, now, withProjects } = ctx;
   const kick = sendQueuedMail;
+
+  /** The filters with the project slug resolved to its id; null when the slug names no project (nothing matches). */
+  async function resolveFilter({ projectSlug, ...rest }: SubscriberListQuery): Promise<SubscriberFilter | null> {
+    if (!projectSlug) return rest;
+    const project = await projects.findBySlug(projectSlug);
+    return project ? { ...rest, projectId: project.id } : null;
+  }
 
   return {
     async list(f: SubscriberListQuery): Promise<SubscriberList> {
-      const { rows, total } = await listSubscribers(db, f, SUBSCRIBER_LIST_LIMIT);
-      return { rows: rows.map(toRow), total };
+      const filter = await resolveFilter(f);
+      if (!filter) return { rows: [], total: 0 };
+      const { rows, total } = await listSubscribers(db, filter, SUBSCRIBER_LIST_LIMIT);
+      return { rows: (await withProjects(rows)).map(toRow), total };
     },
 
+    /** The export names no project, so it reads none. */
     async exportCsv(f: SubscriberListQuery): Promise<string> {
-      const { rows } = await listSubscribers(db, f, null);
+      const filter = await resolveFilter(f);
+      const { rows } = filter ? await listSubscribers(db, filter, null) : { rows: [] };
       return subscribersToCsv(rows);
     },
 
@@ -123,7 +135,7 @@ export function createSubscriberOffice(ctx: SubscribersContext, sendQueuedMail: 
     async personData(id: number) {
       const s = await findSubscriberById(db, id);
       if (!s) throw notFound("That subscriber");
-      const all = await listSubscribersByEmailHash(db, s.emailHash);
+      const all = await withProjects(await listSubscribersByEmailHash(db, s.emailHash));
       const suppression = await findSuppression(db, s.emailHash);
       return {
         exportedAt: now().toISOString(),

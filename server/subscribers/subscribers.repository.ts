@@ -5,8 +5,8 @@ type Q = Knex | Knex.Transaction;
 
 export interface SubscriberRecord {
   id: number;
+  /** The project is the projects module's to read (projects.sender / projects.senders). */
   projectId: number;
-  project: { slug: string; name: string; operatorName: string; postalAddress: string | null; timeZone: string };
   userId: number | null;
   email: string;
   emailHash: string;
@@ -40,13 +40,6 @@ function toSubscriber(r: Record<string, unknown>): SubscriberRecord {
   return {
     id: Number(r.id),
     projectId: Number(r.project_id),
-    project: {
-      slug: String(r.project_slug),
-      name: String(r.project_name),
-      operatorName: String(r.project_operator_name),
-      postalAddress: str(r.project_postal_address),
-      timeZone: String(r.project_time_zone),
-    },
     userId: r.user_id == null ? null : Number(r.user_id),
     email: String(r.email),
     emailHash: String(r.email_hash),
@@ -75,30 +68,14 @@ function toSubscriber(r: Record<string, unknown>): SubscriberRecord {
 }
 
 function base(q: Q) {
-  return q("subscribers as s")
-    .join("projects as p", "p.id", "s.project_id")
-    .select(
-      "s.*",
-      "p.slug as project_slug",
-      "p.name as project_name",
-      "p.operator_name as project_operator_name",
-      "p.postal_address as project_postal_address",
-      "p.time_zone as project_time_zone",
-    );
+  return q("subscribers as s").select("s.*");
 }
 
-/**
- * Reads one subscriber with its project. With `forUpdate` the subscriber row alone is
- * locked first: a locking read of the join would lock the project row too and queue
- * every other confirmation of that project behind this one.
- */
+/** Reads one subscriber; with `forUpdate` its row (and only its row) is locked. */
 async function findOne(q: Q, where: Record<string, unknown>, forUpdate: boolean): Promise<SubscriberRecord | null> {
-  if (forUpdate) {
-    const locked = await q("subscribers").where(where).forUpdate().first("id");
-    if (!locked) return null;
-  }
-  const prefixed = Object.fromEntries(Object.entries(where).map(([k, v]) => [`s.${k}`, v]));
-  const r = await base(q).where(prefixed).first();
+  const query = q("subscribers").where(where);
+  if (forUpdate) query.forUpdate();
+  const r = await query.first();
   return r ? toSubscriber(r) : null;
 }
 
@@ -214,9 +191,12 @@ function likeEscape(s: string): string {
   return s.replace(/[\\%_]/g, (c) => `\\${c}`);
 }
 
-function filtered(q: Q, f: SubscriberListQuery) {
+/** The office's list filters, with the project already resolved from its slug to its id. */
+export type SubscriberFilter = Omit<SubscriberListQuery, "projectSlug"> & { projectId?: number };
+
+function filtered(q: Q, f: SubscriberFilter) {
   const query = base(q);
-  if (f.projectSlug) query.where("p.slug", f.projectSlug);
+  if (f.projectId !== undefined) query.where("s.project_id", f.projectId);
   if (f.interest) query.where("s.interest", f.interest);
   if (f.status) query.where("s.status", f.status);
   if (f.frequency) query.where("s.frequency", f.frequency);
@@ -233,7 +213,7 @@ function filtered(q: Q, f: SubscriberListQuery) {
   return query;
 }
 
-export async function listSubscribers(q: Q, f: SubscriberListQuery, limit: number | null): Promise<{ rows: SubscriberRecord[]; total: number }> {
+export async function listSubscribers(q: Q, f: SubscriberFilter, limit: number | null): Promise<{ rows: SubscriberRecord[]; total: number }> {
   const query = filtered(q, f).orderBy([{ column: "s.created_at", order: "desc" }, { column: "s.id", order: "desc" }]);
   if (limit !== null) query.limit(limit);
   const rows = (await query).map(toSubscriber);

@@ -1,6 +1,6 @@
-import type { NextFunction, Request, RequestHandler, Response } from "express";
+import type { Request, RequestHandler } from "express";
 import { Router } from "express";
-import rateLimit, { type Store } from "express-rate-limit";
+import type { Store } from "express-rate-limit";
 import multer from "multer";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
@@ -15,11 +15,10 @@ import {
   SubscriptionInputSchema,
 } from "#shared/schemas/subscribers.ts";
 import { AppError } from "../core/app-error.ts";
+import { requestLimit } from "../core/request-limit.ts";
 import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
 import { SUBSCRIPTION_ACCEPTED } from "./subscribers.lifecycle.ts";
 import type { SubscribersService } from "./subscribers.service.ts";
-
-const limited = (message: string) => (_req: Request, _res: Response, next: NextFunction) => next(new AppError("rate_limited", message, 429));
 
 const tokenOf = (req: Request) => SubscriberTokenParamSchema.parse(req.params).token;
 const addressOf = (req: Request) => String((req.body as { email?: unknown } | undefined)?.email ?? "").trim().toLowerCase();
@@ -36,25 +35,22 @@ export function subscribersRouter(deps: {
 
   // Confirmations are limited per network and per address, whether or not the address is
   // known, so the limit itself tells nothing.
-  const perIp = rateLimit({
+  const perIp = requestLimit({
     windowMs: deps.limits.windowMs,
     limit: deps.limits.perIp,
-    standardHeaders: "draft-8",
-    legacyHeaders: false,
     store: deps.stores.ip,
-    handler: limited("Too many subscription requests from this network. Wait an hour and try again."),
+    message: "Too many subscription requests from this network. Wait an hour and try again.",
   });
-  const perAddress = rateLimit({
-    windowMs: deps.limits.windowMs,
-    limit: deps.limits.perAddress,
-    standardHeaders: false,
-    legacyHeaders: false,
-    store: deps.stores.address,
+  const perAddress = requestLimit(
+    {
+      windowMs: deps.limits.windowMs,
+      limit: deps.limits.perAddress,
+      store: deps.stores.address,
+      message: "Too many subscription requests for this address. Check your inbox, or wait an hour and try again.",
+    },
     // A request naming no address confirms nothing; validation refuses it.
-    skip: (req) => addressOf(req) === "",
-    keyGenerator: (req) => addressOf(req),
-    handler: limited("Too many subscription requests for this address. Check your inbox, or wait an hour and try again."),
-  });
+    { standardHeaders: false, skip: (req) => addressOf(req) === "", keyGenerator: (req) => addressOf(req) },
+  );
 
   r.get("/projects/:slug/subscription-options", async (req, res) => {
     const { slug } = SlugParamSchema.parse(req.params);

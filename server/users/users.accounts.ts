@@ -44,8 +44,11 @@ export function createAccountsService(deps: { db: Db }) {
   }
 
   return {
-    /** Display names by user id, for records that name who did something (a deleted user has none). */
-    namesOf: (ids: readonly number[]): Promise<Map<number, string>> => findUserNames(db, ids),
+    /**
+     * Display names by user id, for records that name who did something (a deleted user has none).
+     * A caller inside a transaction passes it, so the read takes no second connection from the pool.
+     */
+    namesOf: (ids: readonly number[], trx?: Knex.Transaction): Promise<Map<number, string>> => findUserNames(trx ?? db, ids),
 
     /** Which of these accounts are disabled (an unknown id is not). */
     disabledAmong: (ids: readonly number[]): Promise<Set<number>> => findDisabledUserIds(db, ids),

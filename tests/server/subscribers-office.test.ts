@@ -81,6 +81,29 @@ describe("GET /api/subscribers (marketing, lead, admin)", () => {
     expect(bad.body.error.fields).toMatchObject({ interest: expect.any(String), colour: "is not a known field" });
   });
 
+  it("names each row's own project, and a slug naming no project matches nothing (list and export)", async () => {
+    const here = address("own-project-here");
+    await insertSubscriber({ email: here, interest: "press" });
+    const otherSlug = `office-other-${randomBytes(3).toString("hex")}`;
+    const [otherId] = await t.db("projects").insert({ slug: otherSlug, name: "Office Test Annex", operator_name: "Kestrel Colocation", time_zone: "Europe/London" });
+    const there = address("own-project-there");
+    await t.db("subscribers").insert({ project_id: Number(otherId), email: there, email_hash: hashAddress(there), name: "Hester Lindqvist", interest: "press", frequency: "weekly", topics: null, topics_key: topicsKey(null), status: "confirmed" });
+    const m = await signIn(t, DEMO.marketing);
+
+    // Without a project filter the rows of both projects come back, each with its own project.
+    const all = (await m.agent.get(`/api/subscribers?q=own-project-`).expect(200)).body as { rows: Array<{ email: string; project: unknown }>; total: number };
+    expect(all.total).toBe(2);
+    expect(all.rows.find((r) => r.email === here)?.project).toEqual({ slug, name: "Office Test Campus" });
+    expect(all.rows.find((r) => r.email === there)?.project).toEqual({ slug: otherSlug, name: "Office Test Annex" });
+
+    const none = await m.agent.get(`/api/subscribers?projectSlug=no-such-project`).expect(200);
+    expect(none.body).toEqual({ rows: [], total: 0 });
+    const csv = await m.agent.get(`/api/subscribers/export.csv?projectSlug=no-such-project`).expect(200);
+    const parsed = Papa.parse<Record<string, string>>(csv.text.trim(), { header: true });
+    expect(parsed.meta.fields).toEqual([...SUBSCRIBER_EXPORT_COLUMNS]);
+    expect(parsed.data).toEqual([]);
+  });
+
   it("is closed to investors (403) and visitors (401)", async () => {
     expect((await (await signIn(t, DEMO.investor)).agent.get("/api/subscribers")).status).toBe(403);
     expect((await (await newClient(t)).agent.get("/api/subscribers")).status).toBe(401);

@@ -1,7 +1,7 @@
 import { Router } from "express";
 import { z } from "zod";
 import { AppError } from "../core/app-error.ts";
-import type { SiteService } from "./site.service.ts";
+import type { FeedsService } from "./feeds.service.ts";
 
 const FeedParamSchema = z.strictObject({
   file: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*\.atom$/, "is not a feed address").max(110),
@@ -11,7 +11,7 @@ const FeedParamSchema = z.strictObject({
 const PUBLIC_CACHE = "public, max-age=300, stale-while-revalidate=600";
 
 /** The feed, sitemap and robots.txt, mounted at the root (not under /api). */
-export function siteRouter(site: SiteService): Router {
+export function feedsRouter(site: FeedsService): Router {
   const r = Router();
   r.get("/feed/:file", async (req, res) => {
     const parsed = FeedParamSchema.safeParse(req.params);

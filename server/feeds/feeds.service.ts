@@ -30,7 +30,7 @@ function previewImage(p: MediaPicture | null): { url: string; width: number; hei
   return best ? { url: best.url, width: best.width, height: best.height, alt: p.altText ?? "" } : null;
 }
 
-export function createSiteService(deps: { projects: ProjectsService; posts: PostsService; stories: StoriesService; publicUrl: string }) {
+export function createFeedsService(deps: { projects: ProjectsService; posts: PostsService; stories: StoriesService; publicUrl: string }) {
   const { projects, posts, stories } = deps;
   const base = deps.publicUrl.replace(/\/+$/, "");
   const host = new URL(base).hostname;
@@ -189,7 +189,7 @@ export function createSiteService(deps: { projects: ProjectsService; posts: Post
   };
 }
 
-export type SiteService = ReturnType<typeof createSiteService>;
+export type FeedsService = ReturnType<typeof createFeedsService>;
 
 /** Puts a page's title and preview tags into the HTML shell. */
 export function injectHead(shell: string, head: PageHead): string {
