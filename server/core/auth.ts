@@ -15,7 +15,6 @@ export function requireRole(...roles: Role[]): RequestHandler {
 }
 
 export const requireStaff = () => requireRole("admin", "lead", "marketing");
-export const requireSignedIn = () => requireRole();
 
 export function actorOf(req: Request): Actor {
   return { user: req.user ?? null, ip: req.ip ?? null };

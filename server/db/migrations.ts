@@ -33,6 +33,3 @@ export async function migrateLatest(db: Knex): Promise<string[]> {
   return applied;
 }
 
-export async function migrateRollbackAll(db: Knex): Promise<void> {
-  await db.migrate.rollback({ migrationSource: source }, true);
-}

@@ -348,19 +348,6 @@ export async function replaceUsages(
   await replaceChildRows(q, "media_usages", parent, ["media_id"], [...new Set(mediaIds)].map((media_id) => ({ ...parent, media_id, audience, published })));
 }
 
-export async function countUsages(q: Q, mediaIds: readonly number[]): Promise<Map<number, { total: number; published: number }>> {
-  const out = new Map<number, { total: number; published: number }>(mediaIds.map((id) => [id, { total: 0, published: 0 }]));
-  if (mediaIds.length === 0) return out;
-  const rows = (await q("media_usages")
-    .whereIn("media_id", [...new Set(mediaIds)])
-    .groupBy("media_id")
-    .select("media_id")
-    .count({ total: "*" })
-    .sum({ published: "published" })) as Array<{ media_id: number; total: number; published: number | string | null }>;
-  for (const r of rows) out.set(Number(r.media_id), { total: Number(r.total), published: Number(r.published ?? 0) });
-  return out;
-}
-
 /** Every stored original of a project, for rewriting their metadata. */
 export async function listOriginals(q: Q, projectId: number): Promise<Array<{ id: number; originalKey: string; mime: string; bytes: number }>> {
   const rows = (await q("media_items").where({ project_id: projectId }).orderBy("id").select("id", "original_key", "mime", "bytes")) as Array<Record<string, unknown>>;

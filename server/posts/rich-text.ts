@@ -35,9 +35,8 @@ export function dateInWords(date: string): string {
   return DateTime.fromISO(date, { zone: "UTC" }).toFormat("d LLLL yyyy");
 }
 
-/** Inline images sit in a text column of about 45 rem; covers span the page up to 64 rem. */
+/** Inline images sit in a text column of about 45 rem. */
 export const INLINE_SIZES = "(min-width: 48rem) 720px, 100vw";
-export const COVER_SIZES = "(min-width: 64rem) 1024px, 100vw";
 
 const srcset = (variants: MediaPicture["sources"]["jpeg"]) => variants.map((v) => `${v.url} ${v.width}w`).join(", ");
 

@@ -44,6 +44,21 @@ function page(qc: QueryClient, path: string | undefined, load: () => Promise<Laz
   };
 }
 
+/**
+ * A signed-in area at `where.home` (the site office, the investor room): the session is read
+ * first, the layout loads on the first visit, and an unknown address inside it is not found there.
+ */
+function area(qc: QueryClient, where: Where, layout: () => Promise<ComponentType>, children: RouteObject[]): RouteObject {
+  return {
+    path: where.home,
+    errorElement: <RouteErrorPage {...where} />,
+    HydrateFallback: FirstLoad,
+    loader: sessionLoader(qc),
+    lazy: async () => ({ Component: await layout() }),
+    children: [...children, { path: "*", element: <NotFoundPage /> }],
+  };
+}
+
 function routes(qc: QueryClient): RouteObject[] {
   const site = () => import("../features/public-site/routes.tsx");
   const subscribers = () => import("../features/subscribers/routes.tsx");
@@ -104,55 +119,39 @@ function routes(qc: QueryClient): RouteObject[] {
         { path: "*", element: <NotFoundPage /> },
       ],
     },
-    {
-      path: "/office",
-      errorElement: <RouteErrorPage {...OFFICE} />,
-      HydrateFallback: FirstLoad,
-      loader: sessionLoader(qc),
-      lazy: async () => ({ Component: (await import("./layouts/office-layout.tsx")).OfficeLayout }),
-      children: [
-        page(qc, undefined, async () => ({ Component: (await import("./pages/office-home.tsx")).OfficeHomePage }), OFFICE),
-        page(qc, "programme", async () => ({ Component: (await programme()).ProgrammePage, loader: (await programme()).programmeLoader }), { ...OFFICE, what: "project" }),
-        page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage, loader: (await programme()).siteWalkLoader }), { ...OFFICE, what: "project" }),
-        page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage, loader: (await media()).mediaLibraryLoader }), OFFICE),
-        page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage, loader: (await media()).mediaReviewLoader }), OFFICE),
-        page(qc, "updates", async () => {
-          const m = await import("../features/posts/routes.tsx");
-          return { Component: m.PostsPage, loader: m.postsLoader };
-        }, OFFICE),
-        // The editor (tiptap) is its own chunk: only someone opening an update loads it.
-        page(qc, "updates/:id", async () => {
-          const m = await import("../features/posts/editor-page.tsx");
-          return { Component: m.PostEditorPage, loader: m.postEditorLoader };
-        }, { ...OFFICE, what: "update" }),
-        page(qc, "stories", async () => ({ Component: (await stories()).StoriesPage, loader: (await stories()).storiesLoader }), OFFICE),
-        page(qc, "stories/:id", async () => ({ Component: (await stories()).StoryEditorPage, loader: (await stories()).storyEditorLoader }), { ...OFFICE, what: "photo story" }),
-        page(qc, "outbox", async () => ({ Component: (await outbox()).OutboxPage, loader: (await outbox()).outboxLoader }), OFFICE),
-        page(qc, "outbox/:id", async () => ({ Component: (await outbox()).OutboxMessagePage, loader: (await outbox()).outboxMessageLoader }), { ...OFFICE, what: "message" }),
-        page(qc, "subscribers", async () => ({ Component: (await subscribers()).SubscribersPage, loader: (await subscribers()).subscribersLoader }), OFFICE),
-        page(qc, "enquiries", async () => ({ Component: (await enquiries()).EnquiriesPage, loader: (await enquiries()).enquiriesLoader }), OFFICE),
-        page(qc, "digests", async () => {
-          const m = await import("../features/digests/routes.tsx");
-          return { Component: m.DigestsPage, loader: m.digestsLoader };
-        }, OFFICE),
-        page(qc, "users", async () => ({ Component: (await admin()).AdminUsersPage, loader: (await admin()).adminUsersLoader }), OFFICE),
-        page(qc, "audit", async () => ({ Component: (await admin()).AdminAuditPage, loader: (await admin()).adminAuditLoader }), OFFICE),
-        { path: "*", element: <NotFoundPage /> },
-      ],
-    },
-    {
-      path: "/investors",
-      errorElement: <RouteErrorPage {...INVESTORS} />,
-      HydrateFallback: FirstLoad,
-      loader: sessionLoader(qc),
-      lazy: async () => ({ Component: (await import("./layouts/investor-layout.tsx")).InvestorLayout }),
-      children: [
-        page(qc, undefined, async () => ({ Component: (await investors()).InvestorHomePage, loader: (await investors()).investorHomeLoader }), INVESTORS),
-        page(qc, "digest", async () => ({ Component: (await subscribers()).InvestorDigestPage, loader: (await subscribers()).investorDigestLoader }), INVESTORS),
-        page(qc, "projects/:slug", async () => ({ Component: (await investors()).InvestorProjectPage, loader: (await investors()).investorProjectLoader }), { ...INVESTORS, what: "project" }),
-        { path: "*", element: <NotFoundPage /> },
-      ],
-    },
+    area(qc, OFFICE, async () => (await import("./layouts/office-layout.tsx")).OfficeLayout, [
+      page(qc, undefined, async () => ({ Component: (await import("./pages/office-home.tsx")).OfficeHomePage }), OFFICE),
+      page(qc, "programme", async () => ({ Component: (await programme()).ProgrammePage, loader: (await programme()).programmeLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage, loader: (await programme()).siteWalkLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage, loader: (await media()).mediaLibraryLoader }), OFFICE),
+      page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage, loader: (await media()).mediaReviewLoader }), OFFICE),
+      page(qc, "updates", async () => {
+        const m = await import("../features/posts/routes.tsx");
+        return { Component: m.PostsPage, loader: m.postsLoader };
+      }, OFFICE),
+      // The editor (tiptap) is its own chunk: only someone opening an update loads it.
+      page(qc, "updates/:id", async () => {
+        const m = await import("../features/posts/editor-page.tsx");
+        return { Component: m.PostEditorPage, loader: m.postEditorLoader };
+      }, { ...OFFICE, what: "update" }),
+      page(qc, "stories", async () => ({ Component: (await stories()).StoriesPage, loader: (await stories()).storiesLoader }), OFFICE),
+      page(qc, "stories/:id", async () => ({ Component: (await stories()).StoryEditorPage, loader: (await stories()).storyEditorLoader }), { ...OFFICE, what: "photo story" }),
+      page(qc, "outbox", async () => ({ Component: (await outbox()).OutboxPage, loader: (await outbox()).outboxLoader }), OFFICE),
+      page(qc, "outbox/:id", async () => ({ Component: (await outbox()).OutboxMessagePage, loader: (await outbox()).outboxMessageLoader }), { ...OFFICE, what: "message" }),
+      page(qc, "subscribers", async () => ({ Component: (await subscribers()).SubscribersPage, loader: (await subscribers()).subscribersLoader }), OFFICE),
+      page(qc, "enquiries", async () => ({ Component: (await enquiries()).EnquiriesPage, loader: (await enquiries()).enquiriesLoader }), OFFICE),
+      page(qc, "digests", async () => {
+        const m = await import("../features/digests/routes.tsx");
+        return { Component: m.DigestsPage, loader: m.digestsLoader };
+      }, OFFICE),
+      page(qc, "users", async () => ({ Component: (await admin()).AdminUsersPage, loader: (await admin()).adminUsersLoader }), OFFICE),
+      page(qc, "audit", async () => ({ Component: (await admin()).AdminAuditPage, loader: (await admin()).adminAuditLoader }), OFFICE),
+    ]),
+    area(qc, INVESTORS, async () => (await import("./layouts/investor-layout.tsx")).InvestorLayout, [
+      page(qc, undefined, async () => ({ Component: (await investors()).InvestorHomePage, loader: (await investors()).investorHomeLoader }), INVESTORS),
+      page(qc, "digest", async () => ({ Component: (await subscribers()).InvestorDigestPage, loader: (await subscribers()).investorDigestLoader }), INVESTORS),
+      page(qc, "projects/:slug", async () => ({ Component: (await investors()).InvestorProjectPage, loader: (await investors()).investorProjectLoader }), { ...INVESTORS, what: "project" }),
+    ]),
   ];
 }
 

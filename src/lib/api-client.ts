@@ -84,6 +84,11 @@ export interface Page<T> {
   total: number;
 }
 
+/** How many pages `total` items fill at `pageSize` a page; an empty list still shows one. */
+export function pageCount(total: number, pageSize: number): number {
+  return Math.max(1, Math.ceil(total / pageSize));
+}
+
 /**
  * GET a list whose total comes in `X-Total-Count` (the posts contract). `api.get` returns
  * bodies only, so this reads the header itself and raises the same error type.

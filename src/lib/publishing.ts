@@ -1,4 +1,5 @@
 import { queryOptions, useMutation, useQuery, useQueryClient, type QueryKey } from "@tanstack/react-query";
+import type { Role } from "#shared/schemas/common.ts";
 import type { PostStatus, PublishingEvent, PublishingProblem, RevisionDiff, ScheduleInput, WorkflowAction, WorkflowResult } from "#shared/schemas/publishing.ts";
 import { api, ApiError, qs } from "./api-client.ts";
 import { formatInstant } from "./format.ts";
@@ -28,11 +29,13 @@ function workflowBody(input: WorkflowInput): object {
 }
 
 /**
- * The queries and hooks of the workflow for `base` (`/api/posts` or `/api/stories`).
+ * The queries and hooks of the workflow for one kind (`posts` or `stories`), whose items live
+ * under `/api/<kind>/:id` and are created in `/api/projects/:slug/<kind>`.
  * `TDetail` is the item as the API answers with it; `TPatch` what a save sends;
- * `TRevision` a row of its revision list.
+ * `TRevision` a row of its revision list; `TCreate` what creating one sends.
  */
-export function publishingApi<TDetail extends { projectSlug: string }, TPatch, TRevision>(base: string, keys: PublishingKeys) {
+export function publishingApi<TDetail extends { projectSlug: string }, TPatch, TRevision, TCreate>(kind: "posts" | "stories", keys: PublishingKeys) {
+  const base = `/api/${kind}`;
   const revisionsQueryOptions = (id: number) => queryOptions({ queryKey: keys.revisions(id), queryFn: () => api.get<TRevision[]>(`${base}/${id}/revisions`), enabled: id > 0 });
 
   const diffQueryOptions = (id: number, n: number, against?: number) =>
@@ -62,6 +65,16 @@ export function publishingApi<TDetail extends { projectSlug: string }, TPatch, T
     useRevisions: (id: number) => useQuery(revisionsQueryOptions(id)),
     useDiff: (id: number, n: number, against?: number) => useQuery(diffQueryOptions(id, n, against)),
     useHistory: (id: number) => useQuery(historyQueryOptions(id)),
+
+    /** Creates a draft in the project; the project's lists go stale. */
+    useCreate(slug: string) {
+      const qc = useQueryClient();
+      return useMutation({
+        mutationFn: (input: TCreate) => api.post<{ id: number; slug: string; status: PostStatus }>(`/api/projects/${slug}/${kind}`, input),
+        meta: { quiet: true },
+        onSuccess: () => qc.invalidateQueries({ queryKey: keys.project(slug) }),
+      });
+    },
 
     /** Saves the item (a new revision). */
     useSave(id: number) {
@@ -113,4 +126,26 @@ export function publishingWhen(item: { status: PostStatus; scheduledFor: string 
   if (item.status === "scheduled" && item.scheduledFor) return `goes out ${formatInstant(item.scheduledFor, zone)}`;
   if (item.publishedAt && (item.status === "published" || item.status === "withdrawn")) return `published ${formatInstant(item.publishedAt, zone)}`;
   return `edited ${formatInstant(item.updatedAt, zone)}`;
+}
+
+/**
+ * What the editor shell shows of an item, the same for every kind: its state, when it goes out
+ * (on the project's clock), where it is published (`publishedBase` + its address), whether it is
+ * saved yet, the reviewer's comment, and whether the person editing wrote it.
+ */
+export function editorStateOf(
+  item: { status: PostStatus; scheduledFor: string | null; slug: string; authorName: string; reviewComment?: string | null } | null,
+  me: { role: Role; name: string },
+  zone: string,
+  publishedBase: string,
+) {
+  return {
+    status: item?.status ?? "draft",
+    goesOut: item?.status === "scheduled" && item.scheduledFor ? formatInstant(item.scheduledFor, zone) : null,
+    publishedHref: item?.status === "published" ? `${publishedBase}/${item.slug}` : null,
+    saved: Boolean(item),
+    reviewComment: item?.reviewComment,
+    role: me.role,
+    ownWork: !item || item.authorName === me.name,
+  };
 }

@@ -1,12 +1,11 @@
-import { Suspense } from "react";
-import { Link, NavLink, Outlet } from "react-router-dom";
+import { Link, NavLink } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
 import { Logo } from "../../components/ui/logo.tsx";
-import { Spinner } from "../../components/ui/sheet.tsx";
 import { useLogout } from "../../features/auth/api.ts";
 import { RequireRole } from "../../features/auth/components/require-role.tsx";
 import { ROLE_LABEL } from "../../lib/format.ts";
 import { useMe } from "../../lib/session.ts";
+import { PageOutlet, SkipLink } from "./page-frame.tsx";
 
 export interface AreaLink {
   to: string;
@@ -61,9 +60,7 @@ function AreaNav({ links }: { links: AreaLink[] }) {
 export function AreaLayout({ name, roles, links }: { name: string; roles: Role[]; links: AreaLink[] }) {
   return (
     <div className="flex min-h-screen flex-col">
-      <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:bg-sheet focus:p-2">
-        Skip to content
-      </a>
+      <SkipLink />
       <header className="border-b-2 border-ink bg-paper">
         <div className="mx-auto flex max-w-7xl flex-wrap items-center justify-between gap-3 px-4 py-3">
           <div className="flex items-center gap-3">
@@ -80,10 +77,7 @@ export function AreaLayout({ name, roles, links }: { name: string; roles: Role[]
         <div className="mx-auto grid w-full max-w-7xl flex-1 gap-6 px-4 py-6 md:grid-cols-[13rem_1fr]">
           <AreaNav links={links} />
           <main id="main" className="min-w-0">
-            {/* A page whose data its loader did not prime (one that follows a choice on the page) waits here. */}
-            <Suspense fallback={<Spinner />}>
-              <Outlet />
-            </Suspense>
+            <PageOutlet />
           </main>
         </div>
       </RequireRole>

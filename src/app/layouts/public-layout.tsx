@@ -1,17 +1,14 @@
-import { Suspense } from "react";
-import { Link, NavLink, Outlet } from "react-router-dom";
+import { Link, NavLink } from "react-router-dom";
 import { Logo } from "../../components/ui/logo.tsx";
-import { Spinner } from "../../components/ui/sheet.tsx";
 import { homeFor } from "../../features/auth/api.ts";
 import { useMe } from "../../lib/session.ts";
+import { PageOutlet, SkipLink } from "./page-frame.tsx";
 
 export function PublicLayout() {
   const me = useMe();
   return (
     <div className="flex min-h-screen flex-col">
-      <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:bg-sheet focus:p-2">
-        Skip to content
-      </a>
+      <SkipLink />
       <header className="border-b border-rule bg-paper">
         <div className="mx-auto flex max-w-5xl items-center justify-between gap-4 px-4 py-3">
           <Link to="/" aria-label="Plumbline home">
@@ -31,10 +28,7 @@ export function PublicLayout() {
         </div>
       </header>
       <main id="main" className="flex-1">
-        {/* A page whose data its loader did not prime (one that follows a choice on the page) waits here. */}
-        <Suspense fallback={<Spinner />}>
-          <Outlet />
-        </Suspense>
+        <PageOutlet />
       </main>
       <footer className="border-t border-rule">
         <div className="mx-auto max-w-5xl px-4 py-6 text-xs text-ink-faint">Published with Plumbline. Engineering figures on these pages are indicative; design and operation are for qualified engineers under local codes.</div>

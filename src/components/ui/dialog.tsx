@@ -1,10 +1,29 @@
 import { useEffect, useId, useRef, type ReactNode } from "react";
+import { Button } from "./button.tsx";
+import { keepTabInside } from "./focus-trap.ts";
 
 /**
  * A modal panel over the page: focus moves into it and back to the opener when it
  * closes; Escape and the close button close it; Tab stays inside.
  */
-export function Dialog({ open, title, onClose, children, footer, wide = false }: { open: boolean; title: string; onClose: () => void; children: ReactNode; footer?: ReactNode; wide?: boolean }) {
+export function Dialog({
+  open,
+  title,
+  onClose,
+  children,
+  footer,
+  dismiss,
+  wide = false,
+}: {
+  open: boolean;
+  title: string;
+  onClose: () => void;
+  children: ReactNode;
+  footer?: ReactNode;
+  /** The label of a button that closes the dialog, first in the footer ("Cancel", "Close"). */
+  dismiss?: string;
+  wide?: boolean;
+}) {
   const titleId = useId();
   const panel = useRef<HTMLDivElement>(null);
   useEffect(() => {
@@ -22,17 +41,7 @@ export function Dialog({ open, title, onClose, children, footer, wide = false }:
       e.stopPropagation();
       onClose();
     } else if (e.key === "Tab") {
-      const focusable = panel.current?.querySelectorAll<HTMLElement>("button:not([disabled]), [href], input:not([disabled]), select, textarea, [tabindex]:not([tabindex='-1'])");
-      if (!focusable || focusable.length === 0) return;
-      const first = focusable[0] as HTMLElement;
-      const last = focusable[focusable.length - 1] as HTMLElement;
-      if (e.shiftKey && document.activeElement === first) {
-        e.preventDefault();
-        last.focus();
-      } else if (!e.shiftKey && document.activeElement === last) {
-        e.preventDefault();
-        first.focus();
-      }
+      keepTabInside(e, panel.current, "button:not([disabled]), [href], input:not([disabled]), select, textarea, [tabindex]:not([tabindex='-1'])");
     }
   };
   return (
@@ -55,7 +64,12 @@ export function Dialog({ open, title, onClose, children, footer, wide = false }:
           </button>
         </header>
         <div className="min-h-0 flex-1 overflow-y-auto p-4">{children}</div>
-        {footer ? <footer className="flex flex-wrap justify-end gap-2 border-t border-rule px-4 py-3">{footer}</footer> : null}
+        {footer || dismiss ? (
+          <footer className="flex flex-wrap justify-end gap-2 border-t border-rule px-4 py-3">
+            {dismiss ? <Button onClick={onClose}>{dismiss}</Button> : null}
+            {footer}
+          </footer>
+        ) : null}
       </div>
     </div>
   );

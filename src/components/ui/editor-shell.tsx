@@ -1,8 +1,7 @@
 import type { ReactNode } from "react";
 import type { Role } from "#shared/schemas/common.ts";
 import type { PostStatus, PublishingProblem, ScheduleInput, WorkflowAction } from "#shared/schemas/publishing.ts";
-import type { Audience } from "#shared/schemas/common.ts";
-import { EditorHeader, NextStepBar, RefusalNotice, ReturnedNotice } from "./publishing-editor.tsx";
+import { EditorHeader, NextStepBar, RefusalNotice, ReturnedNotice, type EditorHeading } from "./publishing-editor.tsx";
 import { Notice } from "./sheet.tsx";
 import { ReturnDialog, ScheduleDialog } from "./workflow-dialogs.tsx";
 
@@ -30,19 +29,9 @@ export interface EditorFrame {
   errors: Record<string, string | undefined>;
 }
 
-export interface EditorShellProps extends EditorFrame {
-  /** The sheet reference above the title ("Site office · Updates"). */
-  sheet: string;
-  title: string;
+export interface EditorShellProps extends EditorFrame, EditorHeading {
   /** What the work is called in sentences ("update", "photo story"). */
   noun: string;
-  status: PostStatus;
-  audience: Audience;
-  byline?: ReactNode;
-  goesOut?: string | null;
-  publishedHref?: string | null;
-  /** Whether the item exists on the server yet (a new one saves as a draft first). */
-  saved: boolean;
   reviewComment?: string | null;
   role: Role;
   ownWork: boolean;

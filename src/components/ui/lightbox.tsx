@@ -1,4 +1,5 @@
 import { useEffect, useRef, type ReactNode } from "react";
+import { keepTabInside } from "./focus-trap.ts";
 import { Picture, type PictureData } from "./picture.tsx";
 
 export interface LightboxItem {
@@ -48,18 +49,7 @@ export function Lightbox({ items, index, onIndexChange, label = "Photo" }: { ite
       e.preventDefault();
       step(-1);
     } else if (e.key === "Tab") {
-      // Keep focus inside the dialog while it is open.
-      const focusable = dialogRef.current?.querySelectorAll<HTMLElement>("button, [href], [tabindex]:not([tabindex='-1'])");
-      if (!focusable || focusable.length === 0) return;
-      const first = focusable[0] as HTMLElement;
-      const last = focusable[focusable.length - 1] as HTMLElement;
-      if (e.shiftKey && document.activeElement === first) {
-        e.preventDefault();
-        last.focus();
-      } else if (!e.shiftKey && document.activeElement === last) {
-        e.preventDefault();
-        first.focus();
-      }
+      keepTabInside(e, dialogRef.current, "button, [href], [tabindex]:not([tabindex='-1'])");
     }
   };
 

@@ -15,6 +15,23 @@ import { openActions, WorkflowActions } from "./workflow-actions.tsx";
  * keeps the item, the draft and the requests.
  */
 
+/** What the head of an editor shows of the item: its title, state, audience and whereabouts. */
+export interface EditorHeading {
+  /** The sheet reference above the title ("Site office · Updates"). */
+  sheet: string;
+  title: string;
+  status: PostStatus;
+  audience: Audience;
+  /** Who wrote it, after the marks. */
+  byline?: ReactNode;
+  /** The scheduled time, as people read it, while the item is scheduled. */
+  goesOut?: string | null;
+  /** The published page, while the item is published. */
+  publishedHref?: string | null;
+  /** Whether the item has been saved at all (a new one saves as a draft first). */
+  saved: boolean;
+}
+
 /**
  * The head of an editor: the title, the item's state and audience, when it goes out or where
  * it is published, and the save button with whether everything is saved.
@@ -31,23 +48,7 @@ export function EditorHeader({
   saving,
   dirty,
   onSave,
-}: {
-  sheet: string;
-  title: string;
-  status: PostStatus;
-  audience: Audience;
-  /** Who wrote it, after the marks. */
-  byline?: ReactNode;
-  /** The scheduled time, as people read it, while the item is scheduled. */
-  goesOut?: string | null;
-  /** The published page, while the item is published. */
-  publishedHref?: string | null;
-  /** Whether the item has been saved at all (a new one saves as a draft). */
-  saved: boolean;
-  saving: boolean;
-  dirty: boolean;
-  onSave: () => void;
-}) {
+}: EditorHeading & { saving: boolean; dirty: boolean; onSave: () => void }) {
   return (
     <PageHeader
       sheet={sheet}

@@ -32,13 +32,11 @@ export function ScheduleDialog({ timeZone, busy, error, onClose, onSchedule }: {
       open
       title="Schedule publication"
       onClose={onClose}
+      dismiss="Cancel"
       footer={
-        <>
-          <Button onClick={onClose}>Cancel</Button>
-          <Button variant="primary" busy={busy} disabled={!date || !time} onClick={() => onSchedule({ date, time })}>
-            Schedule
-          </Button>
-        </>
+        <Button variant="primary" busy={busy} disabled={!date || !time} onClick={() => onSchedule({ date, time })}>
+          Schedule
+        </Button>
       }
     >
       <form
@@ -86,13 +84,11 @@ export function ReturnDialog({
       open
       title="Return with comments"
       onClose={onClose}
+      dismiss="Cancel"
       footer={
-        <>
-          <Button onClick={onClose}>Cancel</Button>
-          <Button variant="primary" busy={busy} disabled={!comment.trim()} onClick={() => onReturn(comment.trim())}>
-            Return to the writer
-          </Button>
-        </>
+        <Button variant="primary" busy={busy} disabled={!comment.trim()} onClick={() => onReturn(comment.trim())}>
+          Return to the writer
+        </Button>
       }
     >
       <TextAreaField label="What should change?" rows={5} value={comment} onChange={(e) => setComment(e.target.value)} error={error} hint={hint} />

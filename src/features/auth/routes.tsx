@@ -1,7 +1,7 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { useForm } from "react-hook-form";
+import { useForm, type FieldErrors, type UseFormRegisterReturn } from "react-hook-form";
 import { Link, useNavigate, useParams, useRouteError, useSearchParams } from "react-router-dom";
 import { z } from "zod";
 import { AcceptInvitationInputSchema, LoginInputSchema, ResetPasswordInputSchema, ResetRequestInputSchema, type LoginInput } from "#shared/schemas/auth.ts";
@@ -66,8 +66,23 @@ export function SignInPage() {
   );
 }
 
+/** A new password typed twice: the second must match the first. */
+type PasswordTwice = { password: string; confirm: string };
+const passwordsMatch = (v: PasswordTwice) => v.password === v.confirm;
+const PASSWORDS_DIFFER = { path: ["confirm"], message: "does not match the password" };
+
 /** The server's own schema, with the password typed twice. */
-const AcceptFormSchema = AcceptInvitationInputSchema.extend({ confirm: z.string() }).refine((v) => v.password === v.confirm, { path: ["confirm"], message: "does not match the password" });
+const AcceptFormSchema = AcceptInvitationInputSchema.extend({ confirm: z.string() }).refine(passwordsMatch, PASSWORDS_DIFFER);
+
+/** The new password and the same again, on the pages that set one. */
+function NewPasswordFields({ label, hint, errors, password, confirm }: { label: string; hint: string; errors: FieldErrors<PasswordTwice>; password: UseFormRegisterReturn; confirm: UseFormRegisterReturn }) {
+  return (
+    <>
+      <TextField label={label} type="password" autoComplete="new-password" hint={hint} error={errors.password?.message} {...password} />
+      <TextField label="The same password again" type="password" autoComplete="new-password" error={errors.confirm?.message} {...confirm} />
+    </>
+  );
+}
 
 /** Primes the invitation the link names: its address and role. */
 export const invitationLoader: RouteLoader = (qc) => async ({ params }) => {
@@ -108,8 +123,13 @@ export function AcceptInvitationPage() {
     <AuthCard title="Accept your invitation" lead={`${invitation.data.email} · ${ROLE_LABEL[invitation.data.role]}`}>
       <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
         <TextField label="Your name" autoComplete="name" error={form.formState.errors.name?.message} {...form.register("name")} />
-        <TextField label="Choose a password" type="password" autoComplete="new-password" hint="At least 12 characters; common passwords are refused. A short sentence works well." error={form.formState.errors.password?.message} {...form.register("password")} />
-        <TextField label="The same password again" type="password" autoComplete="new-password" error={form.formState.errors.confirm?.message} {...form.register("confirm")} />
+        <NewPasswordFields
+          label="Choose a password"
+          hint="At least 12 characters; common passwords are refused. A short sentence works well."
+          errors={form.formState.errors}
+          password={form.register("password")}
+          confirm={form.register("confirm")}
+        />
         <Button type="submit" variant="primary" busy={accept.isPending}>
           Create my account
         </Button>
@@ -146,7 +166,7 @@ export function ForgotPasswordPage() {
   );
 }
 
-const ResetFormSchema = ResetPasswordInputSchema.extend({ confirm: z.string() }).refine((v) => v.password === v.confirm, { path: ["confirm"], message: "does not match the password" });
+const ResetFormSchema = ResetPasswordInputSchema.extend({ confirm: z.string() }).refine(passwordsMatch, PASSWORDS_DIFFER);
 
 export function ResetPasswordPage() {
   const { token = "" } = useParams();
@@ -164,8 +184,7 @@ export function ResetPasswordPage() {
   return (
     <AuthCard title="Choose a new password" lead="Setting it signs you out on every other device.">
       <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
-        <TextField label="New password" type="password" autoComplete="new-password" hint="At least 12 characters; common passwords are refused." error={form.formState.errors.password?.message} {...form.register("password")} />
-        <TextField label="The same password again" type="password" autoComplete="new-password" error={form.formState.errors.confirm?.message} {...form.register("confirm")} />
+        <NewPasswordFields label="New password" hint="At least 12 characters; common passwords are refused." errors={form.formState.errors} password={form.register("password")} confirm={form.register("confirm")} />
         <Button type="submit" variant="primary" busy={reset.isPending}>
           Set the password
         </Button>

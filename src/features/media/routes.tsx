@@ -6,6 +6,7 @@ import { SystemSchema } from "#shared/schemas/programme.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { pageCount } from "../../lib/api-client.ts";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug } from "../../lib/projects.ts";
 import { meQueryOptions } from "../../lib/session.ts";
@@ -79,7 +80,7 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
   // The photo being edited, as the grid showed it when it was opened.
   const [openItem, setOpen] = useState<MediaItem | null>(null);
   const items = list.items;
-  const pages = Math.max(1, Math.ceil(list.total / LIBRARY_PAGE_SIZE));
+  const pages = pageCount(list.total, LIBRARY_PAGE_SIZE);
   const page = filters.page ?? 1;
 
   const toggle = (id: number) =>

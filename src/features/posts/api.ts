@@ -7,6 +7,7 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import { api, getPage, qs } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions, type PickerFilters } from "../../lib/media.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import type { RevisionHooks } from "../../lib/publishing-panels.tsx";
 import { publishingApi } from "../../lib/publishing.ts";
 
 export interface PostListFilters {
@@ -37,7 +38,7 @@ export const postKeys = {
   history: (id: number) => [...postKeys.detail(id), "history"] as const,
 };
 
-const publishing = publishingApi<PostDetail, PostPatchInput, PostRevisionSummary>("/api/posts", postKeys);
+const publishing = publishingApi<PostDetail, PostPatchInput, PostRevisionSummary, PostCreateInput>("posts", postKeys);
 
 export const postsProjectsQueryOptions = () => projectListQueryOptions(postKeys.projects());
 export const postsProjectQueryOptions = (slug: string) => projectDetailQueryOptions(postKeys.projectDetail(slug), slug);
@@ -57,25 +58,14 @@ export const postMilestonesQueryOptions = (slug: string) =>
 
 const mediaPickerQueryOptions = (slug: string, f: MediaPickerFilters = {}) => pickerMediaQueryOptions(postKeys.media(slug, f), slug, f);
 
-export const usePostsProject = (slug: string) => useQuery(postsProjectQueryOptions(slug));
 export const usePostList = (slug: string, f: PostListFilters = {}) => useQuery({ ...postListQueryOptions(slug, f), placeholderData: keepPreviousData });
-export const useRevisions = publishing.useRevisions;
-export const useDiff = publishing.useDiff;
-export const usePostHistory = publishing.useHistory;
+/** What the revisions and history panels of the editor read through. */
+export const postRevisionHooks: RevisionHooks = publishing;
 export const usePostMilestones = (slug: string) => useQuery(postMilestonesQueryOptions(slug));
 export const useMediaPicker = (slug: string, f: MediaPickerFilters = {}) => useQuery({ ...mediaPickerQueryOptions(slug, f), placeholderData: keepPreviousData });
 
-export function useCreatePost(slug: string) {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (input: PostCreateInput) => api.post<{ id: number; slug: string; status: PostStatus }>(`/api/projects/${slug}/posts`, input),
-    meta: { quiet: true },
-    onSuccess: () => qc.invalidateQueries({ queryKey: postKeys.project(slug) }),
-  });
-}
-
+export const useCreatePost = publishing.useCreate;
 export const useSavePost = publishing.useSave;
-export const useRestoreRevision = publishing.useRestore;
 export const useWorkflow = publishing.useWorkflow;
 
 /** Alt text, caption or (for leads) clearance of a library photo, from where the editor found it missing. */

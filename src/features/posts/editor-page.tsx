@@ -1,6 +1,6 @@
-import { useSuspenseQuery } from "@tanstack/react-query";
+import { toast } from "sonner";
 import { useCallback, useMemo, useRef, useState } from "react";
-import { useNavigate, useParams } from "react-router-dom";
+import { useNavigate } from "react-router-dom";
 import type { User } from "#shared/schemas/auth.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
@@ -15,18 +15,18 @@ import { Picture } from "../../components/ui/picture.tsx";
 import { AudienceSheet } from "../../components/ui/publishing-editor.tsx";
 import { Sheet } from "../../components/ui/sheet.tsx";
 import { StatusMark } from "../../components/ui/status-mark.tsx";
-import { formatInstant, SYSTEM_WORD } from "../../lib/format.ts";
+import { SYSTEM_WORD } from "../../lib/format.ts";
+import { editorStateOf } from "../../lib/publishing.ts";
+import { PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
+import { RevisionSheets } from "../../lib/publishing-panels.tsx";
 import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug } from "../../lib/projects.ts";
-import { meQueryOptions } from "../../lib/session.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
-import { postMilestonesQueryOptions, postQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, useCreatePost, usePostMilestones, usePostsProject, useSavePost, useWorkflow } from "./api.ts";
+import { postMilestonesQueryOptions, postQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, postRevisionHooks, useCreatePost, usePostMilestones, useSavePost, useWorkflow } from "./api.ts";
 import { FixPhotoDialog } from "./components/fix-photo-dialog.tsx";
 import { MediaPickerDialog } from "./components/media-picker.tsx";
 import { MilestonePickerDialog } from "./components/milestone-picker.tsx";
-import { PostHistoryPanel, RevisionsPanel } from "./components/revisions-panel.tsx";
 import { RichTextEditor } from "./components/rich-text-editor.tsx";
-import { useOfficeProject } from "./routes.tsx";
 
 interface Draft {
   title: string;
@@ -172,7 +172,6 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
   const coverProblem = problems.find((p) => p.code === "no_cover" || (p.mediaId !== undefined && p.mediaId === d.coverMediaId));
   const areas = useMemo(() => [...new Set((milestones.data ?? []).map((m) => m.area).filter(Boolean))], [milestones.data]);
   const linked = d.milestoneIds.map((mid) => milestoneMap.get(mid) ?? ({ id: mid, name: `Milestone ${mid}` } as Milestone));
-  const status = post?.status ?? "draft";
   const imagesInBody = imageIdsOf(d.body).length;
   const problemLine = (p: PublishingProblem) => <ProblemLine key={`${p.code}-${p.mediaId ?? ""}-${p.milestoneId ?? ""}`} p={p} onFixPhoto={setFixing} onShowCover={() => setDialog("cover")} />;
 
@@ -183,15 +182,9 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
         sheet="Site office · Updates"
         title={post ? d.title || "Untitled update" : "New update"}
         noun="update"
-        status={status}
+        {...editorStateOf(post, me, zone, `/projects/${slug}/updates`)}
         audience={d.audience}
         byline={post ? `by ${post.authorName}` : null}
-        goesOut={post?.status === "scheduled" && post.scheduledFor ? formatInstant(post.scheduledFor, zone) : null}
-        publishedHref={post?.status === "published" ? `/projects/${slug}/updates/${post.slug}` : null}
-        saved={Boolean(post)}
-        reviewComment={post?.reviewComment}
-        role={me.role}
-        ownWork={!post || post.authorName === me.name}
         waiting={WAITING_FOR}
         unsavedNote="Save the draft first; then it can be submitted for review."
         renderProblem={problemLine}
@@ -256,16 +249,7 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
                 <ul className="flex flex-col gap-1 text-sm text-bad">{problems.map(problemLine)}</ul>
               </Sheet>
             ) : null}
-            {post ? (
-              <>
-                <Sheet label="Revisions">
-                  <RevisionsPanel postId={post.id} zone={zone} onRestored={() => draft.setDirty(false)} />
-                </Sheet>
-                <Sheet label="Publishing history">
-                  <PostHistoryPanel postId={post.id} zone={zone} />
-                </Sheet>
-              </>
-            ) : null}
+            {post ? <RevisionSheets hooks={postRevisionHooks} id={post.id} zone={zone} onRestored={() => draft.setDirty(false)} onRestoreError={(e) => toast.error(e instanceof Error ? e.message : "Not restored.")} /> : null}
           </>
         }
       >
@@ -357,22 +341,12 @@ export const postEditorLoader: RouteLoader = (qc) => ({ params, request }) =>
 
 /** `/office/updates/new` and `/office/updates/:id`: the editor, the fields, revisions and the workflow. */
 export function PostEditorPage() {
-  const id = idParam(useParams().id);
-  return id > 0 ? <SavedPostEditor key={id} id={id} /> : <NewPostEditor />;
-}
-
-function SavedPostEditor({ id }: { id: number }) {
-  const me = useSuspenseQuery(meQueryOptions()).data;
-  const post = useSuspenseQuery(postQueryOptions(id)).data;
-  const project = useSuspenseQuery(postsProjectQueryOptions(post.projectSlug)).data;
-  if (!me) return null;
-  return <PostForm post={post} slug={post.projectSlug} me={me} zone={project.timeZone} />;
-}
-
-function NewPostEditor() {
-  const me = useSuspenseQuery(meQueryOptions()).data;
-  const { slug } = useOfficeProject();
-  const project = usePostsProject(slug);
-  if (!me || !slug) return null;
-  return <PostForm key="new" post={null} slug={slug} me={me} zone={project.data?.timeZone ?? "Europe/London"} />;
+  return (
+    <PublishingEditorRoute
+      itemQuery={postQueryOptions}
+      projectsQuery={postsProjectsQueryOptions}
+      projectQuery={postsProjectQueryOptions}
+      form={(p) => <PostForm post={p.item} slug={p.slug} me={p.me} zone={p.zone} />}
+    />
+  );
 }

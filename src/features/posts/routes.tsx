@@ -13,6 +13,7 @@ import { PublishStatusMark, PUBLISH_STATUS_WORD } from "../../components/ui/publ
 import { Pager } from "../../components/ui/pager.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
+import { pageCount } from "../../lib/api-client.ts";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { publishingWhen } from "../../lib/publishing.ts";
@@ -101,7 +102,7 @@ function ProjectPosts({ slug, choices, setSlug }: ReturnType<typeof useOfficePro
   );
   const table = useReactTable({ data: list.items, columns, getCoreRowModel: getCoreRowModel() });
   const total = list.total;
-  const pages = Math.max(1, Math.ceil(total / POSTS_PAGE_SIZE));
+  const pages = pageCount(total, POSTS_PAGE_SIZE);
   const tabs: Array<{ value: PostStatus | undefined; label: string }> = [{ value: undefined, label: "All" }, ...PostStatusSchema.options.map((s) => ({ value: s, label: PUBLISH_STATUS_WORD[s] }))];
 
   return (

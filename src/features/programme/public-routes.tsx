@@ -41,6 +41,23 @@ function TimelineItem({ m }: { m: Milestone }) {
   );
 }
 
+/** One side of today on the timeline, left out when it has no milestone. */
+function TimelinePart({ id, title, milestones }: { id: string; title: string; milestones: Milestone[] }) {
+  if (milestones.length === 0) return null;
+  return (
+    <section aria-labelledby={id}>
+      <h2 id={id} className="label-caps mb-3">
+        {title}
+      </h2>
+      <ol>
+        {milestones.map((m) => (
+          <TimelineItem key={m.id} m={m} />
+        ))}
+      </ol>
+    </section>
+  );
+}
+
 /** Milestones in date order, with "today" between what is done and what is to come. */
 function Timeline({ milestones, today }: { milestones: Milestone[]; today: string }) {
   const ordered = [...milestones].sort((a, b) => milestoneFinish(a).localeCompare(milestoneFinish(b)) || a.id - b.id);
@@ -48,35 +65,13 @@ function Timeline({ milestones, today }: { milestones: Milestone[]; today: strin
   const future = ordered.filter((m) => milestoneFinish(m) > today);
   return (
     <div className="flex flex-col gap-4">
-      {past.length > 0 ? (
-        <section aria-labelledby="tl-past">
-          <h2 id="tl-past" className="label-caps mb-3">
-            Up to today
-          </h2>
-          <ol>
-            {past.map((m) => (
-              <TimelineItem key={m.id} m={m} />
-            ))}
-          </ol>
-        </section>
-      ) : null}
+      <TimelinePart id="tl-past" title="Up to today" milestones={past} />
       <p className="flex items-center gap-2 text-sm font-semibold text-accent" aria-label={`Today, ${formatLongDate(today)}`}>
         <span aria-hidden className="h-0.5 w-6 bg-accent" />
         Today · {formatLongDate(today)}
         <span aria-hidden className="h-0.5 flex-1 bg-accent/40" />
       </p>
-      {future.length > 0 ? (
-        <section aria-labelledby="tl-future">
-          <h2 id="tl-future" className="label-caps mb-3">
-            Still to come
-          </h2>
-          <ol>
-            {future.map((m) => (
-              <TimelineItem key={m.id} m={m} />
-            ))}
-          </ol>
-        </section>
-      ) : null}
+      <TimelinePart id="tl-future" title="Still to come" milestones={future} />
     </div>
   );
 }

@@ -1,8 +1,16 @@
-import type { Milestone } from "#shared/schemas/programme.ts";
+import type { Milestone, ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
 import type { MilestoneEventFieldName } from "#shared/schemas/programme.ts";
 import type { Audience } from "#shared/schemas/common.ts";
-import { milestoneFinish } from "#shared/domain/programme-health.ts";
+import { milestoneFinish, type MilestoneStatus } from "#shared/domain/programme-health.ts";
 import { formatMonthYear } from "./dates.ts";
+
+/** The statuses the health counts, in the order they are shown, each with its count's name. */
+export const COUNTED_STATUSES: readonly { status: MilestoneStatus; count: keyof ProgrammeHealthResponse["counts"] }[] = [
+  { status: "complete", count: "complete" },
+  { status: "on_programme", count: "onProgramme" },
+  { status: "at_risk", count: "atRisk" },
+  { status: "behind", count: "behind" },
+];
 
 export const AUDIENCE_WORD: Record<Audience, string> = { public: "Public", investor: "Investors", internal: "Internal" };
 

@@ -1,7 +1,8 @@
 import { useEffect, useMemo, useState, type FormEvent, type ReactNode } from "react";
-import { useSuspenseQuery } from "@tanstack/react-query";
-import { Link, Navigate, useLocation, useParams, useSearchParams } from "react-router-dom";
-import type { MediaPicture, PostDetail, PostTag } from "#shared/schemas/posts.ts";
+import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
+import { Link, Navigate, useLocation, useParams, useSearchParams, type LoaderFunctionArgs } from "react-router-dom";
+import type { MediaPicture, PostDetail, PostRedirect, PostTag } from "#shared/schemas/posts.ts";
+import type { Project } from "#shared/schemas/projects.ts";
 import type { StoryDetail, StoryItem } from "#shared/schemas/stories.ts";
 import { AudienceMark } from "../../components/ui/audience-mark.tsx";
 import { Button } from "../../components/ui/button.tsx";
@@ -9,6 +10,7 @@ import { CompareSlider } from "../../components/ui/compare-slider.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
 import { Lightbox, type LightboxItem } from "../../components/ui/lightbox.tsx";
 import { Picture } from "../../components/ui/picture.tsx";
+import { pageCount } from "../../lib/api-client.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
 import { galleryQueryOptions, isRedirect, siteProjectQueryOptions, storyQueryOptions, updateQueryOptions, updatesQueryOptions, type GalleryFilters, type GalleryPhoto, type UpdateFilters } from "./api.ts";
 import { MilestonesThenNow } from "./components/milestone-then-now.tsx";
@@ -32,29 +34,19 @@ function galleryFiltersOf(params: URLSearchParams): GalleryFilters {
 
 const searchOf = (request: Request) => new URL(request.url).searchParams;
 
-export const updatesLoader: RouteLoader = (qc) => async ({ params, request }) => {
-  const slug = params.slug ?? "";
-  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(updatesQueryOptions(slug, updateFiltersOf(searchOf(request))))]);
-  return null;
-};
+/** A project page's loader: the project for the masthead, and (from `prime`) what the page shows. */
+function projectPageLoader(prime: (qc: QueryClient, slug: string, args: LoaderFunctionArgs) => Promise<unknown>): RouteLoader {
+  return (qc) => async (args) => {
+    const slug = args.params.slug ?? "";
+    await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), prime(qc, slug, args)]);
+    return null;
+  };
+}
 
-export const postLoader: RouteLoader = (qc) => async ({ params }) => {
-  const slug = params.slug ?? "";
-  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(updateQueryOptions(slug, params.postSlug ?? ""))]);
-  return null;
-};
-
-export const galleryLoader: RouteLoader = (qc) => async ({ params, request }) => {
-  const slug = params.slug ?? "";
-  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(galleryQueryOptions(slug, galleryFiltersOf(searchOf(request))))]);
-  return null;
-};
-
-export const storyLoader: RouteLoader = (qc) => async ({ params }) => {
-  const slug = params.slug ?? "";
-  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(storyQueryOptions(slug, params.storySlug ?? ""))]);
-  return null;
-};
+export const updatesLoader = projectPageLoader((qc, slug, { request }) => qc.ensureQueryData(updatesQueryOptions(slug, updateFiltersOf(searchOf(request)))));
+export const postLoader = projectPageLoader((qc, slug, { params }) => qc.ensureQueryData(updateQueryOptions(slug, params.postSlug ?? "")));
+export const galleryLoader = projectPageLoader((qc, slug, { request }) => qc.ensureQueryData(galleryQueryOptions(slug, galleryFiltersOf(searchOf(request)))));
+export const storyLoader = projectPageLoader((qc, slug, { params }) => qc.ensureQueryData(storyQueryOptions(slug, params.storySlug ?? "")));
 
 function Frame({ children, wide = false }: { children: ReactNode; wide?: boolean }) {
   return <div className={`mx-auto px-4 py-8 ${wide ? "max-w-6xl" : "max-w-5xl"}`}>{children}</div>;
@@ -73,7 +65,7 @@ function useTitle(title: string | undefined) {
 }
 
 function Pager({ page, total, pageSize, hrefFor }: { page: number; total: number; pageSize: number; hrefFor: (p: number) => string }) {
-  const pages = Math.max(1, Math.ceil(total / pageSize));
+  const pages = pageCount(total, pageSize);
   if (pages <= 1) return null;
   return (
     <nav aria-label="Pages of updates" className="mt-8 flex flex-wrap items-center justify-between gap-3 border-t border-rule pt-4 text-sm">
@@ -272,22 +264,45 @@ function PostArticle({ post, slug, zone }: { post: PostDetail; slug: string; zon
   );
 }
 
+/**
+ * A published update or photo story under the project's masthead. An address the item left
+ * (`asked`) leads to where it is now: the API follows an old slug to the item, and the address
+ * bar should say the new one too.
+ */
+function PublishedItem<T extends { slug: string; title: string }>({
+  slug,
+  project,
+  kind,
+  asked,
+  answer,
+  article,
+}: {
+  /** The project's address as the page was asked for. */
+  slug: string;
+  project: Project;
+  kind: "updates" | "stories";
+  asked: string;
+  answer: T | PostRedirect;
+  article: (item: T) => ReactNode;
+}) {
+  const data = isRedirect(answer) ? null : answer;
+  useTitle(data?.title);
+  if (isRedirect(answer)) return <Navigate to={redirectTarget(slug, kind, answer.redirectTo)} replace />;
+  if (data && data.slug !== asked) return <Navigate to={`/projects/${slug}/${kind}/${data.slug}`} replace />;
+  return (
+    <Frame>
+      <ProjectMasthead slug={slug} projectName={project.name} operatorName={project.operatorName} />
+      {data ? article(data) : null}
+    </Frame>
+  );
+}
+
 /** `/projects/:slug/updates/:postSlug`: one update, its photos responsive, its milestones then and now. */
 export function PostPage() {
   const { slug = "", postSlug = "" } = useParams();
-  const project = useSuspenseQuery(siteProjectQueryOptions(slug));
-  const post = useSuspenseQuery(updateQueryOptions(slug, postSlug));
-  const data = isRedirect(post.data) ? null : post.data;
-  useTitle(data?.title);
-  if (isRedirect(post.data)) return <Navigate to={redirectTarget(slug, "updates", post.data.redirectTo)} replace />;
-  // The API follows an old slug to the new post; the address bar should say the new one too.
-  if (data && data.slug !== postSlug) return <Navigate to={`/projects/${slug}/updates/${data.slug}`} replace />;
-  return (
-    <Frame>
-      <ProjectMasthead slug={slug} projectName={project.data.name} operatorName={project.data.operatorName} />
-      {data ? <PostArticle post={data} slug={slug} zone={project.data.timeZone} /> : null}
-    </Frame>
-  );
+  const project = useSuspenseQuery(siteProjectQueryOptions(slug)).data;
+  const post = useSuspenseQuery(updateQueryOptions(slug, postSlug)).data;
+  return <PublishedItem slug={slug} project={project} kind="updates" asked={postSlug} answer={post} article={(p) => <PostArticle post={p} slug={slug} zone={project.timeZone} />} />;
 }
 
 function photoMeta(p: Pick<MediaPicture, "takenAt" | "credit" | "isIllustration">, extra: string[] = []): string {
@@ -462,16 +477,7 @@ function StoryArticle({ story, slug, zone }: { story: StoryDetail; slug: string;
 /** `/projects/:slug/stories/:storySlug`: a photo story, then-and-now pairs as comparison sliders. */
 export function StoryPage() {
   const { slug = "", storySlug = "" } = useParams();
-  const project = useSuspenseQuery(siteProjectQueryOptions(slug));
-  const story = useSuspenseQuery(storyQueryOptions(slug, storySlug));
-  const data = isRedirect(story.data) ? null : story.data;
-  useTitle(data?.title);
-  if (isRedirect(story.data)) return <Navigate to={redirectTarget(slug, "stories", story.data.redirectTo)} replace />;
-  if (data && data.slug !== storySlug) return <Navigate to={`/projects/${slug}/stories/${data.slug}`} replace />;
-  return (
-    <Frame>
-      <ProjectMasthead slug={slug} projectName={project.data.name} operatorName={project.data.operatorName} />
-      {data ? <StoryArticle story={data} slug={slug} zone={project.data.timeZone} /> : null}
-    </Frame>
-  );
+  const project = useSuspenseQuery(siteProjectQueryOptions(slug)).data;
+  const story = useSuspenseQuery(storyQueryOptions(slug, storySlug)).data;
+  return <PublishedItem slug={slug} project={project} kind="stories" asked={storySlug} answer={story} article={(s) => <StoryArticle story={s} slug={slug} zone={project.timeZone} />} />;
 }

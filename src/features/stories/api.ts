@@ -1,9 +1,10 @@
-import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { PostStatus, RevisionSummary as StoryRevisionSummary } from "#shared/schemas/publishing.ts";
+import { keepPreviousData, queryOptions, useQuery } from "@tanstack/react-query";
+import type { RevisionSummary as StoryRevisionSummary } from "#shared/schemas/publishing.ts";
 import type { StoryCreateInput, StoryDetail, StoryPatchInput, StorySummary } from "#shared/schemas/stories.ts";
 import { api } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions } from "../../lib/media.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import type { RevisionHooks } from "../../lib/publishing-panels.tsx";
 import { publishingApi } from "../../lib/publishing.ts";
 
 export interface StoryMediaFilters {
@@ -26,7 +27,7 @@ export const storyKeys = {
   history: (id: number) => [...storyKeys.detail(id), "history"] as const,
 };
 
-const publishing = publishingApi<StoryDetail, StoryPatchInput, StoryRevisionSummary>("/api/stories", storyKeys);
+const publishing = publishingApi<StoryDetail, StoryPatchInput, StoryRevisionSummary, StoryCreateInput>("stories", storyKeys);
 
 export const storiesProjectsQueryOptions = () => projectListQueryOptions(storyKeys.projects());
 export const storiesProjectQueryOptions = (slug: string) => projectDetailQueryOptions(storyKeys.projectDetail(slug), slug);
@@ -35,22 +36,11 @@ export const storyListQueryOptions = (slug: string) =>
 export const storyQueryOptions = (id: number) => queryOptions({ queryKey: storyKeys.detail(id), queryFn: () => api.get<StoryDetail>(`/api/stories/${id}`), enabled: id > 0 });
 const storyMediaQueryOptions = (slug: string, f: StoryMediaFilters = {}) => pickerMediaQueryOptions(storyKeys.media(slug, f), slug, f);
 
-export const useStoriesProject = (slug: string) => useQuery(storiesProjectQueryOptions(slug));
 export const useStoryList = (slug: string) => useQuery(storyListQueryOptions(slug));
-export const useStoryRevisions = publishing.useRevisions;
-export const useStoryDiff = publishing.useDiff;
-export const useStoryHistory = publishing.useHistory;
+/** What the revisions and history panels of the editor read through. */
+export const storyRevisionHooks: RevisionHooks = publishing;
 export const useStoryMedia = (slug: string, f: StoryMediaFilters = {}) => useQuery({ ...storyMediaQueryOptions(slug, f), placeholderData: keepPreviousData });
 
-export function useCreateStory(slug: string) {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (input: StoryCreateInput) => api.post<{ id: number; slug: string; status: PostStatus }>(`/api/projects/${slug}/stories`, input),
-    meta: { quiet: true },
-    onSuccess: () => qc.invalidateQueries({ queryKey: storyKeys.project(slug) }),
-  });
-}
-
+export const useCreateStory = publishing.useCreate;
 export const useSaveStory = publishing.useSave;
-export const useRestoreStoryRevision = publishing.useRestore;
 export const useStoryWorkflow = publishing.useWorkflow;

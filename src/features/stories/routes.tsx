@@ -1,7 +1,7 @@
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { getCoreRowModel, useReactTable, type ColumnDef } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
-import { Link, useNavigate, useParams } from "react-router-dom";
+import { Link, useNavigate } from "react-router-dom";
 import { toast } from "sonner";
 import { z } from "zod";
 import type { User } from "#shared/schemas/auth.ts";
@@ -18,15 +18,14 @@ import { PublishStatusMark } from "../../components/ui/publish-status.tsx";
 import { EditorShell } from "../../components/ui/editor-shell.tsx";
 import { AudienceSheet } from "../../components/ui/publishing-editor.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
-import { formatInstant } from "../../lib/format.ts";
 import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
-import { publishingProblemsOf, publishingWhen } from "../../lib/publishing.ts";
+import { PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
+import { RevisionSheets } from "../../lib/publishing-panels.tsx";
+import { editorStateOf, publishingProblemsOf, publishingWhen } from "../../lib/publishing.ts";
 import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
-import { meQueryOptions } from "../../lib/session.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
-import { storiesProjectQueryOptions, storiesProjectsQueryOptions, storyListQueryOptions, storyQueryOptions, useCreateStory, useSaveStory, useStoriesProject, useStoryWorkflow } from "./api.ts";
+import { storiesProjectQueryOptions, storiesProjectsQueryOptions, storyListQueryOptions, storyQueryOptions, storyRevisionHooks, useCreateStory, useSaveStory, useStoryWorkflow } from "./api.ts";
 import { StoryPhotoPicker } from "./components/photo-picker.tsx";
-import { StoryHistoryPanel, StoryRevisionsPanel } from "./components/revisions-panel.tsx";
 import { StoryItemsEditor, type EditItem, type PickTarget } from "./components/story-items.tsx";
 
 /** The steps the stories API offers: the same workflow and rules as updates. */
@@ -201,7 +200,6 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
     else toast.error(e instanceof Error ? e.message : "Not restored.");
   };
 
-  const status = story?.status ?? "draft";
   const pickingItem = picking ? d.items.find((i) => i.key === picking.key) : undefined;
   return (
     <>
@@ -210,14 +208,8 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
         sheet="Site office · Photo stories"
         title={story ? d.title || "Untitled story" : "New photo story"}
         noun="photo story"
-        status={status}
+        {...editorStateOf(story, me, zone, `/projects/${slug}/stories`)}
         audience={d.audience}
-        goesOut={story?.status === "scheduled" && story.scheduledFor ? formatInstant(story.scheduledFor, zone) : null}
-        publishedHref={story?.status === "published" ? `/projects/${slug}/stories/${story.slug}` : null}
-        saved={Boolean(story)}
-        reviewComment={story?.reviewComment}
-        role={me.role}
-        ownWork={!story || story.authorName === me.name}
         offered={STORY_ACTIONS}
         waiting={WAITING}
         renderProblem={(p) => <li key={`${p.code}-${p.mediaId ?? ""}`}>▲ {p.message}</li>}
@@ -231,14 +223,20 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
               <p className="text-sm text-ink-soft">Then-and-now pairs become a comparison slider with each photo's capture date; single photos open in a lightbox. Both photos of a pair need capture dates on different days.</p>
             </Sheet>
             {story ? (
-              <>
-                <Sheet label="Revisions">
-                  <StoryRevisionsPanel storyId={story.id} zone={zone} onRestored={() => { draft.setDirty(false); toast.success("Restored as a new revision"); }} onError={onRestoreError} />
-                </Sheet>
-                <Sheet label="Publishing history">
-                  <StoryHistoryPanel storyId={story.id} zone={zone} />
-                </Sheet>
-              </>
+              <RevisionSheets
+                hooks={storyRevisionHooks}
+                id={story.id}
+                zone={zone}
+                restoreWhat="The title, introduction and items of that revision become a new revision (the address and audience stay); nothing is lost, and you can restore the current one again later."
+                onRestored={() => {
+                  draft.setDirty(false);
+                  toast.success("Restored as a new revision");
+                }}
+                onRestoreError={(e, done) => {
+                  done();
+                  onRestoreError(e);
+                }}
+              />
             ) : null}
           </>
         }
@@ -296,22 +294,12 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
 
 /** `/office/stories/new` and `/office/stories/:id`. */
 export function StoryEditorPage() {
-  const id = idParam(useParams().id);
-  return id > 0 ? <SavedStoryEditor key={id} id={id} /> : <NewStoryEditor />;
-}
-
-function SavedStoryEditor({ id }: { id: number }) {
-  const me = useSuspenseQuery(meQueryOptions()).data;
-  const story = useSuspenseQuery(storyQueryOptions(id)).data;
-  const project = useSuspenseQuery(storiesProjectQueryOptions(story.projectSlug)).data;
-  if (!me) return null;
-  return <StoryForm story={story} slug={story.projectSlug} me={me} zone={project.timeZone} />;
-}
-
-function NewStoryEditor() {
-  const me = useSuspenseQuery(meQueryOptions()).data;
-  const { slug } = useOfficeProject();
-  const project = useStoriesProject(slug);
-  if (!me || !slug) return null;
-  return <StoryForm key="new" story={null} slug={slug} me={me} zone={project.data?.timeZone ?? "Europe/London"} />;
+  return (
+    <PublishingEditorRoute
+      itemQuery={storyQueryOptions}
+      projectsQuery={storiesProjectsQueryOptions}
+      projectQuery={storiesProjectQueryOptions}
+      form={(p) => <StoryForm story={p.item} slug={p.slug} me={p.me} zone={p.zone} />}
+    />
+  );
 }

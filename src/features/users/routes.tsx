@@ -1,7 +1,7 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
-import { useMemo, useState } from "react";
+import { useMemo, useState, type ReactNode } from "react";
 import { useForm } from "react-hook-form";
 import { toast } from "sonner";
 import { RoleSchema } from "#shared/schemas/common.ts";
@@ -125,6 +125,18 @@ function InvitationsTable({ rows }: { rows: InvitationRow[] }) {
   return <DataTable table={table} caption="Invitations" empty="No invitations sent yet." />;
 }
 
+/** A headed section of the page around one table. */
+function TableSection({ id, title, children }: { id: string; title: string; children: ReactNode }) {
+  return (
+    <section aria-labelledby={id}>
+      <h2 id={id} className="mb-2 text-lg font-semibold">
+        {title}
+      </h2>
+      {children}
+    </section>
+  );
+}
+
 export function UsersPage() {
   const users = useSuspenseQuery(usersQueryOptions()).data;
   const invitations = useSuspenseQuery(invitationsQueryOptions()).data;
@@ -135,18 +147,12 @@ export function UsersPage() {
         <Sheet label="Invite" title="Invite someone">
           <InviteForm />
         </Sheet>
-        <section aria-labelledby="users-h">
-          <h2 id="users-h" className="mb-2 text-lg font-semibold">
-            Accounts
-          </h2>
+        <TableSection id="users-h" title="Accounts">
           <UsersTable users={users} />
-        </section>
-        <section aria-labelledby="inv-h">
-          <h2 id="inv-h" className="mb-2 text-lg font-semibold">
-            Invitations
-          </h2>
+        </TableSection>
+        <TableSection id="inv-h" title="Invitations">
           <InvitationsTable rows={invitations} />
-        </section>
+        </TableSection>
       </div>
     </>
   );

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { ProjectSchema } from "./projects.ts";
 import { FrequencySchema } from "./subscribers.ts";
 import { plainText } from "./text.ts";
 
@@ -47,7 +48,7 @@ export type DigestCounts = z.infer<typeof DigestCountsSchema>;
 /** GET /api/digests/runs (a list of these), GET /api/digests/runs/:id, and what pause and resume answer. */
 export const DigestRunSummarySchema = z.object({
   id: z.number(),
-  project: z.object({ slug: z.string(), name: z.string() }),
+  project: ProjectSchema.pick({ slug: true, name: true }),
   frequency: FrequencySchema,
   status: DigestRunStatusSchema,
   test: z.boolean(),
@@ -68,7 +69,7 @@ export type DigestRunStarted = z.infer<typeof DigestRunStartedSchema>;
 
 /** GET /api/digests/upcoming (a list of these). */
 export const DigestUpcomingSchema = z.object({
-  project: z.object({ slug: z.string(), name: z.string(), timeZone: z.string() }),
+  project: ProjectSchema.pick({ slug: true, name: true, timeZone: true }),
   frequency: FrequencySchema.exclude(["immediate"]),
   /** When the run starts (UTC instant). */
   at: z.string(),

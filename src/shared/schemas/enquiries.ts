@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { CalendarDateSchema, EmailSchema, STAFF_ROLES } from "./common.ts";
+import { ProjectSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -90,7 +91,7 @@ export type EnquiryPatch = z.infer<typeof EnquiryPatchSchema>;
 /** GET /api/enquiries (a list of these), GET and PATCH /api/enquiries/:id. */
 export const EnquiryRowSchema = z.object({
   id: z.number(),
-  project: z.object({ slug: z.string(), name: z.string() }),
+  project: ProjectSchema.pick({ slug: true, name: true }),
   kind: EnquiryKindSchema,
   name: z.string(),
   email: z.string(),

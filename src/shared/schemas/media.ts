@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { CalendarDateSchema } from "./common.ts";
 import { SystemSchema, type System } from "./programme.ts";
+import { ProjectSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -112,14 +113,17 @@ export type MediaListFilters = Omit<MediaListQuery, "page" | "pageSize">;
 
 export const ProjectQuerySchema = z.strictObject({ project: ProjectSlug.optional() });
 
-/** One derivative: a same-origin URL that never changes once the photo is published. */
-export const MediaVariantSchema = z.object({
+/** A derivative for srcset: `url` is same-origin (`/media/v/<key>`). */
+export const PictureVariantSchema = z.object({
   url: z.string(),
   width: z.number(),
   height: z.number(),
   format: VariantFormatSchema,
-  bytes: z.number(),
 });
+export type PictureVariant = z.infer<typeof PictureVariantSchema>;
+
+/** One derivative with its size in bytes: a same-origin URL that never changes once the photo is published. */
+export const MediaVariantSchema = PictureVariantSchema.extend({ bytes: z.number() });
 export type MediaVariant = z.infer<typeof MediaVariantSchema>;
 
 /** A photo as the site office sees it (staff only: `hadGps` and the original's link included). */
@@ -195,22 +199,13 @@ export type RefusedFile = z.infer<typeof RefusedFileSchema>;
 
 /** GET /api/media/vocabulary: the words the library's tag pickers offer, and the upload limits. */
 export const MediaVocabularySchema = z.object({
-  project: z.object({ id: z.number(), slug: z.string(), name: z.string() }),
+  project: ProjectSchema.pick({ id: true, slug: true, name: true }),
   areas: z.array(z.string()),
   systems: z.array(SystemSchema),
   milestones: z.array(z.object({ id: z.number(), name: z.string() })),
   limits: z.object({ maxFileMb: z.number(), maxFiles: z.number(), maxPixels: z.number() }),
 });
 export type MediaVocabulary = z.infer<typeof MediaVocabularySchema>;
-
-/** A derivative for srcset: `url` is same-origin (`/media/v/<key>`). */
-export const PictureVariantSchema = z.object({
-  url: z.string(),
-  width: z.number(),
-  height: z.number(),
-  format: VariantFormatSchema,
-});
-export type PictureVariant = z.infer<typeof PictureVariantSchema>;
 
 /** What a page, a feed or an e-mail needs to render a photo as `<picture>`. */
 export const MediaPictureSchema = z.object({

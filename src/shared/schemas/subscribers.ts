@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { EmailSchema } from "./common.ts";
 import { SystemSchema } from "./programme.ts";
+import { ProjectSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -102,7 +103,7 @@ export const InvestorDigestInputSchema = z.strictObject({
 export type InvestorDigestInput = z.infer<typeof InvestorDigestInputSchema>;
 
 /** The project a subscription is about, as the pages name it. */
-const ProjectNameSchema = z.object({ slug: z.string(), name: z.string() });
+const ProjectNameSchema = ProjectSchema.pick({ slug: true, name: true });
 const ConsentWordingSchema = z.object({ version: z.string(), text: z.string() });
 /** The topics a subscriber may choose from: the project's public areas and the plant systems. */
 const TopicChoicesSchema = z.object({ areas: z.array(z.string()), systems: z.array(SystemSchema) });

@@ -1,6 +1,6 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useQuery } from "@tanstack/react-query";
-import { useEffect, useId, useRef, useState } from "react";
+import { useEffect, useId, useRef, useState, type ReactNode } from "react";
 import { Controller, useForm } from "react-hook-form";
 import { toast } from "sonner";
 import type { z } from "zod";
@@ -83,6 +83,29 @@ function AreaTags({ value, onChange, known }: { value: string[]; onChange: (v: s
   );
 }
 
+/** A group of tags under its name. */
+function TagSet({ legend, children }: { legend: string; children: ReactNode }) {
+  return (
+    <fieldset className="flex flex-col gap-1">
+      <legend className="text-sm font-medium">{legend}</legend>
+      {children}
+    </fieldset>
+  );
+}
+
+/** Tags chosen by ticking: each box puts its key in `value` or takes it out. `multiline` tops the box for labels that wrap. */
+function Ticks<K extends string | number>({ options, value, onChange, multiline = false }: { options: readonly { key: K; label: string }[]; value: readonly K[]; onChange: (v: K[]) => void; multiline?: boolean }) {
+  return options.map(({ key, label }) => {
+    const on = value.includes(key);
+    return (
+      <label key={key} className={`inline-flex ${multiline ? "items-start" : "items-center"} gap-1.5 text-sm`}>
+        <input type="checkbox" className={multiline ? "mt-1" : undefined} checked={on} onChange={() => onChange(on ? value.filter((x) => x !== key) : [...value, key])} />
+        {label}
+      </label>
+    );
+  });
+}
+
 function EditForm({ item, slug, vocabulary, onClose }: { item: MediaItem; slug: string; vocabulary: MediaVocabulary; onClose: () => void }) {
   const me = useMe();
   const reviewer = canReview(me.data);
@@ -117,43 +140,25 @@ function EditForm({ item, slug, vocabulary, onClose }: { item: MediaItem; slug: 
         control={form.control}
         name="tags.systems"
         render={({ field }) => (
-          <fieldset className="flex flex-col gap-1">
-            <legend className="text-sm font-medium">Systems</legend>
+          <TagSet legend="Systems">
             <div className="flex flex-wrap gap-x-4 gap-y-1">
-              {vocabulary.systems.map((s) => {
-                const on = (field.value ?? []).includes(s);
-                return (
-                  <label key={s} className="inline-flex items-center gap-1.5 text-sm">
-                    <input type="checkbox" checked={on} onChange={() => field.onChange(on ? (field.value ?? []).filter((x) => x !== s) : [...(field.value ?? []), s])} />
-                    {SYSTEM_WORD[s]}
-                  </label>
-                );
-              })}
+              <Ticks options={vocabulary.systems.map((s) => ({ key: s, label: SYSTEM_WORD[s] }))} value={field.value ?? []} onChange={field.onChange} />
             </div>
             <p className="text-xs text-ink-faint">Tagging security sends the photo to a lead's review before it can be published.</p>
-          </fieldset>
+          </TagSet>
         )}
       />
       <Controller
         control={form.control}
         name="tags.milestones"
         render={({ field }) => (
-          <fieldset className="flex flex-col gap-1">
-            <legend className="text-sm font-medium">Milestones</legend>
+          <TagSet legend="Milestones">
             {vocabulary.milestones.length === 0 ? <p className="text-sm text-ink-faint">The project has no milestones yet.</p> : null}
             <div className="flex max-h-40 flex-col gap-0.5 overflow-y-auto border border-rule p-2">
-              {vocabulary.milestones.map((m) => {
-                const on = (field.value ?? []).includes(m.id);
-                return (
-                  <label key={m.id} className="inline-flex items-start gap-1.5 text-sm">
-                    <input type="checkbox" className="mt-1" checked={on} onChange={() => field.onChange(on ? (field.value ?? []).filter((x) => x !== m.id) : [...(field.value ?? []), m.id])} />
-                    {m.name}
-                  </label>
-                );
-              })}
+              <Ticks options={vocabulary.milestones.map((m) => ({ key: m.id, label: m.name }))} value={field.value ?? []} onChange={field.onChange} multiline />
             </div>
             {errors.tags?.milestones ? <p role="alert" className="text-sm text-bad">{errors.tags.milestones.message}</p> : null}
-          </fieldset>
+          </TagSet>
         )}
       />
       {reviewer ? (

@@ -1,24 +1,22 @@
 import type { MediaStatus, Sensitivity } from "#shared/schemas/media.ts";
 import { SENSITIVITY_WORD, STATUS_WORD } from "../words.ts";
 
-export function StatusWord({ status }: { status: MediaStatus }) {
-  const s = STATUS_WORD[status];
+/** A state as glyph and word in its tone, so it never rests on colour alone. */
+function Mark({ look, ...data }: { look: { glyph: string; word: string; tone: string } } & Record<`data-${string}`, string>) {
   return (
-    <span className={`inline-flex items-center gap-1 whitespace-nowrap text-xs font-medium ${s.tone}`} data-status={status}>
-      <span aria-hidden>{s.glyph}</span>
-      {s.word}
+    <span className={`inline-flex items-center gap-1 whitespace-nowrap text-xs font-medium ${look.tone}`} {...data}>
+      <span aria-hidden>{look.glyph}</span>
+      {look.word}
     </span>
   );
 }
 
+export function StatusWord({ status }: { status: MediaStatus }) {
+  return <Mark look={STATUS_WORD[status]} data-status={status} />;
+}
+
 export function SensitivityWord({ sensitivity }: { sensitivity: Sensitivity }) {
-  const s = SENSITIVITY_WORD[sensitivity];
-  return (
-    <span className={`inline-flex items-center gap-1 whitespace-nowrap text-xs font-medium ${s.tone}`} data-sensitivity={sensitivity}>
-      <span aria-hidden>{s.glyph}</span>
-      {s.word}
-    </span>
-  );
+  return <Mark look={SENSITIVITY_WORD[sensitivity]} data-sensitivity={sensitivity} />;
 }
 
 /** Photos tagged with the security system wait for a lead before anything else happens. */

@@ -47,9 +47,9 @@ export function FixPhotoDialog({
       open
       title="Fix this photo"
       onClose={onClose}
+      dismiss="Close"
       footer={
         <>
-          <Button onClick={onClose}>Close</Button>
           {lead && needsClearance && !cleared ? (
             <Button
               busy={patch.isPending && patch.variables?.patch.sensitivity === "cleared"}

@@ -4,6 +4,7 @@ import { SystemSchema } from "#shared/schemas/programme.ts";
 import { SelectField } from "../../../components/ui/field.tsx";
 import type { PhotoChoice } from "../../../components/ui/photo-choice.tsx";
 import { PhotoPickerDialog } from "../../../components/ui/photo-picker.tsx";
+import { pageCount } from "../../../lib/api-client.ts";
 import { SYSTEM_WORD } from "../../../lib/format.ts";
 import { mediaItemTitle, pictureOfMediaItem } from "../../../lib/media.ts";
 import { useMediaPicker } from "../api.ts";
@@ -30,7 +31,7 @@ export function MediaPickerDialog({ slug, open, title, onClose, onChoose }: { sl
   const [page, setPage] = useState(1);
   const media = useMediaPicker(open ? slug : "", { q: search || undefined, system: system || undefined, page });
   const items = media.data?.items ?? [];
-  const pages = media.data ? Math.max(1, Math.ceil(media.data.total / media.data.pageSize)) : 1;
+  const pages = media.data ? pageCount(media.data.total, media.data.pageSize) : 1;
   return (
     <PhotoPickerDialog
       open={open}

@@ -139,13 +139,11 @@ function LinkDialog({ editor, open, onClose }: { editor: Editor; open: boolean; 
       open={open}
       title="Link"
       onClose={onClose}
+      dismiss="Cancel"
       footer={
-        <>
-          <Button onClick={onClose}>Cancel</Button>
-          <Button variant="primary" onClick={apply}>
-            {href.trim() ? "Set the link" : "Remove the link"}
-          </Button>
-        </>
+        <Button variant="primary" onClick={apply}>
+          {href.trim() ? "Set the link" : "Remove the link"}
+        </Button>
       }
     >
       <form

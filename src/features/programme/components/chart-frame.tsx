@@ -1,10 +1,13 @@
 import { useLayoutEffect, useRef, useState, type ReactNode } from "react";
+import { YAxis } from "recharts";
 
 export const INK = "#1d1f24";
 export const INK_SOFT = "#4a4e57";
 export const RULE = "#d9d3c4";
 export const RULE_STRONG = "#b9b09c";
 export const ACCENT = "#c2410c";
+/** The band behind the row under the pointer in a sideways bar chart. */
+export const ROW_CURSOR = { fill: "rgba(29,31,36,0.05)" };
 
 /** Width of an element, kept up to date: charts draw at a known pixel width, so they fit a phone. */
 function useElementWidth<T extends HTMLElement>(): [React.RefObject<T | null>, number] {
@@ -72,4 +75,13 @@ export function tickOneLine(maxChars: number) {
       </text>
     );
   };
+}
+
+/**
+ * The milestone names down a sideways bar chart. On a phone (`narrow`) the names sit above
+ * their rows; on a wide screen, in a column beside them. Called as a function rather than
+ * drawn as a component, so the chart gets the axis itself as its child.
+ */
+export function milestoneNameAxis(width: number, narrow: boolean) {
+  return <YAxis type="category" dataKey="label" width={narrow ? 2 : 220} interval={0} tick={narrow ? tickAboveRow(Math.floor(width / 5.8)) : tickOneLine(33)} tickLine={false} />;
 }

@@ -1,9 +1,9 @@
-import { Bar, BarChart, CartesianGrid, ReferenceLine, Tooltip, XAxis, YAxis, type BarShapeProps, type TooltipContentProps } from "recharts";
+import { Bar, BarChart, CartesianGrid, ReferenceLine, Tooltip, XAxis, type BarShapeProps, type TooltipContentProps } from "recharts";
 import type { NameType, ValueType } from "recharts/types/component/DefaultTooltipContent";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { STATUS_LOOK, StatusKey, StatusMark, StatusShape } from "../../../components/ui/status-mark.tsx";
 import { signedDays } from "../words.ts";
-import { ChartFrame, INK, INK_SOFT, RULE, tickAboveRow, tickOneLine } from "./chart-frame.tsx";
+import { ChartFrame, INK, INK_SOFT, milestoneNameAxis, ROW_CURSOR, RULE } from "./chart-frame.tsx";
 
 interface Row {
   label: string;
@@ -72,8 +72,6 @@ export function SlipChart({ milestones }: { milestones: Milestone[] }) {
     <ChartFrame title="Slip by milestone" summary={summary} testId="chart-slip" footer={<StatusKey />}>
       {(width) => {
         const narrow = width < 520;
-        // On a phone the names sit above their rows; on a wide screen, in a column beside them.
-        const axisWidth = narrow ? 2 : 220;
         const { lo, hi, ticks } = axis(narrow ? 4 : 7);
         return (
           <BarChart width={width} height={rows.length * (narrow ? 36 : 26) + 48} barSize={narrow ? 9 : undefined} data={rows} layout="vertical" barCategoryGap="25%" margin={{ top: 8, right: 12, bottom: 4, left: narrow ? 14 : 0 }}>
@@ -88,15 +86,8 @@ export function SlipChart({ milestones }: { milestones: Milestone[] }) {
               stroke={INK_SOFT}
               allowDecimals={false}
             />
-            <YAxis
-              type="category"
-              dataKey="label"
-              width={axisWidth}
-              interval={0}
-              tick={narrow ? tickAboveRow(Math.floor(width / 5.8)) : tickOneLine(33)}
-              tickLine={false}
-            />
-            <Tooltip content={SlipTooltip} isAnimationActive={false} cursor={{ fill: "rgba(29,31,36,0.05)" }} />
+            {milestoneNameAxis(width, narrow)}
+            <Tooltip content={SlipTooltip} isAnimationActive={false} cursor={ROW_CURSOR} />
             <ReferenceLine x={0} stroke={INK} />
             <Bar dataKey="slip" name="Slip" shape={SlipBar} isAnimationActive={false} minPointSize={0} />
           </BarChart>

@@ -1,4 +1,4 @@
-import { Bar, BarChart, CartesianGrid, ReferenceLine, Tooltip, XAxis, YAxis, type BarShapeProps, type TooltipContentProps } from "recharts";
+import { Bar, BarChart, CartesianGrid, ReferenceLine, Tooltip, XAxis, type BarShapeProps, type TooltipContentProps } from "recharts";
 import type { NameType, ValueType } from "recharts/types/component/DefaultTooltipContent";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { toDayNumber } from "#shared/domain/calendar.ts";
@@ -7,7 +7,7 @@ import { STATUS_LOOK, StatusKey, StatusMark, StatusShape } from "../../../compon
 import { formatDate } from "../../../lib/format.ts";
 import { formatAxisMonth, monthTicks } from "../dates.ts";
 import { signedDays } from "../words.ts";
-import { ACCENT, ChartFrame, INK_SOFT, RULE, RULE_STRONG, tickAboveRow, tickOneLine } from "./chart-frame.tsx";
+import { ACCENT, ChartFrame, INK_SOFT, milestoneNameAxis, ROW_CURSOR, RULE, RULE_STRONG } from "./chart-frame.tsx";
 
 interface Row {
   id: number;
@@ -132,8 +132,6 @@ export function TimelineChart({ milestones, at }: { milestones: Milestone[]; at:
     <ChartFrame title="Baseline and forecast" summary={summary} testId="chart-timeline" footer={<div className="flex flex-col gap-1"><BarKey /><StatusKey /></div>}>
       {(width) => {
         const narrow = width < 520;
-        // On a phone the names sit above their rows; on a wide screen, in a column beside them.
-        const axisWidth = narrow ? 2 : 220;
         return (
           <BarChart
             width={width}
@@ -156,15 +154,8 @@ export function TimelineChart({ milestones, at }: { milestones: Milestone[]; at:
               stroke={INK_SOFT}
               allowDataOverflow
             />
-            <YAxis
-              type="category"
-              dataKey="label"
-              width={axisWidth}
-              interval={0}
-              tick={narrow ? tickAboveRow(Math.floor(width / 5.8)) : tickOneLine(33)}
-              tickLine={false}
-            />
-            <Tooltip content={TimelineTooltip} isAnimationActive={false} cursor={{ fill: "rgba(29,31,36,0.05)" }} />
+            {milestoneNameAxis(width, narrow)}
+            <Tooltip content={TimelineTooltip} isAnimationActive={false} cursor={ROW_CURSOR} />
             <ReferenceLine x={today} stroke={ACCENT} strokeDasharray="3 2" label={{ value: "Today", position: "top", fill: ACCENT, fontSize: 11 }} />
             <Bar dataKey="baseline" name="Baseline" shape={BaselineBar} isAnimationActive={false} />
             <Bar dataKey="forecast" name="Forecast" shape={ForecastBar} isAnimationActive={false} />

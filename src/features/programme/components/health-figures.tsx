@@ -3,7 +3,7 @@ import { Notice } from "../../../components/ui/sheet.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import type { ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
-import { formatIndex, formatMoney, formatPercent, slipInWords } from "../words.ts";
+import { COUNTED_STATUSES, formatIndex, formatMoney, formatPercent, slipInWords } from "../words.ts";
 
 function Figure({ label, value, children, testId }: { label: string; value: ReactNode; children: ReactNode; testId?: string }) {
   return (
@@ -64,18 +64,11 @@ export function HealthFigures({ health, currency }: { health: ProgrammeHealthRes
         </Figure>
         <Figure label="Milestones by status" value={health.counts.complete + health.counts.onProgramme + health.counts.atRisk + health.counts.behind}>
           <span className="flex flex-col gap-0.5">
-            <span className="flex items-center gap-2">
-              <StatusMark status="complete" /> {health.counts.complete}
-            </span>
-            <span className="flex items-center gap-2">
-              <StatusMark status="on_programme" /> {health.counts.onProgramme}
-            </span>
-            <span className="flex items-center gap-2">
-              <StatusMark status="at_risk" /> {health.counts.atRisk}
-            </span>
-            <span className="flex items-center gap-2">
-              <StatusMark status="behind" /> {health.counts.behind}
-            </span>
+            {COUNTED_STATUSES.map(({ status, count }) => (
+              <span key={status} className="flex items-center gap-2">
+                <StatusMark status={status} /> {health.counts[count]}
+              </span>
+            ))}
           </span>
         </Figure>
       </dl>

@@ -1,4 +1,4 @@
-import { useEffect, useRef } from "react";
+import { useEffect, useRef, type ReactNode } from "react";
 import type { Milestone, MilestoneEventRow } from "#shared/schemas/programme.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
@@ -15,6 +15,16 @@ function valueOf(e: MilestoneEventRow, v: string | null): string {
   if (e.field === "audience") return AUDIENCE_WORD[v as keyof typeof AUDIENCE_WORD] ?? v;
   if (e.field === "removed") return v === "true" ? "removed" : "in the programme";
   return v;
+}
+
+/** One of the milestone's figures: its name over its value. */
+function Fact({ term, children }: { term: string; children: ReactNode }) {
+  return (
+    <div>
+      <dt className="label-caps">{term}</dt>
+      <dd>{children}</dd>
+    </div>
+  );
 }
 
 function DrivingChain({ id }: { id: number }) {
@@ -112,34 +122,16 @@ export function MilestoneHistoryDialog({
           </header>
           {milestone.description ? <p className="font-serif text-ink-soft">{milestone.description}</p> : null}
           <dl className="tabular grid grid-cols-2 gap-2 text-sm sm:grid-cols-3">
-            <div>
-              <dt className="label-caps">Planned start</dt>
-              <dd>{formatDate(milestone.plannedStart)}</dd>
-            </div>
-            <div>
-              <dt className="label-caps">Baseline finish</dt>
-              <dd>{formatDate(milestone.baselineFinish)}</dd>
-            </div>
-            <div>
-              <dt className="label-caps">Forecast finish</dt>
-              <dd>{formatDate(milestone.forecastFinish)}</dd>
-            </div>
-            <div>
-              <dt className="label-caps">Actual finish</dt>
-              <dd>{formatDate(milestone.actualFinish)}</dd>
-            </div>
-            <div>
-              <dt className="label-caps">Slip</dt>
-              <dd>
-                {signedDays(milestone.slipDays)} ({milestone.slipWorkingDays} working days)
-              </dd>
-            </div>
-            <div>
-              <dt className="label-caps">Done · weight</dt>
-              <dd>
-                {milestone.percentComplete}% · {milestone.weight}
-              </dd>
-            </div>
+            <Fact term="Planned start">{formatDate(milestone.plannedStart)}</Fact>
+            <Fact term="Baseline finish">{formatDate(milestone.baselineFinish)}</Fact>
+            <Fact term="Forecast finish">{formatDate(milestone.forecastFinish)}</Fact>
+            <Fact term="Actual finish">{formatDate(milestone.actualFinish)}</Fact>
+            <Fact term="Slip">
+              {signedDays(milestone.slipDays)} ({milestone.slipWorkingDays} working days)
+            </Fact>
+            <Fact term="Done · weight">
+              {milestone.percentComplete}% · {milestone.weight}
+            </Fact>
           </dl>
           <section>
             <h3 className="mb-2 font-semibold">What sets its forecast</h3>

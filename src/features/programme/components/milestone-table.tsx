@@ -1,6 +1,5 @@
 import {
   createColumnHelper,
-  flexRender,
   getCoreRowModel,
   getExpandedRowModel,
   getFilteredRowModel,
@@ -16,6 +15,7 @@ import { useMemo, useState, type ReactNode } from "react";
 import { AudienceSchema } from "#shared/schemas/common.ts";
 import { SystemSchema, type Milestone } from "#shared/schemas/programme.ts";
 import type { MilestoneStatus } from "#shared/domain/programme-health.ts";
+import { DataTable } from "../../../components/ui/data-table.tsx";
 import { SelectField } from "../../../components/ui/field.tsx";
 import { STATUS_LOOK, STATUS_ORDER, StatusMark } from "../../../components/ui/status-mark.tsx";
 import { formatDate, SYSTEM_WORD } from "../../../lib/format.ts";
@@ -282,7 +282,6 @@ export function MilestoneTable(props: MilestoneTableProps) {
   const areas = useMemo(() => [...new Set(milestones.map((m) => m.area).filter(Boolean))].sort(), [milestones]);
   const filterValue = (id: string) => (filters.find((f) => f.id === id)?.value as string | undefined) ?? "";
   const setFilter = (id: string, value: string) => setFilters((fs) => [...fs.filter((f) => f.id !== id), ...(value ? [{ id, value }] : [])]);
-  const visible = table.getVisibleLeafColumns().length;
   const shown = table.getFilteredRowModel().rows.length;
 
   return (
@@ -301,63 +300,26 @@ export function MilestoneTable(props: MilestoneTableProps) {
         </p>
         {props.toolbar}
       </div>
-      <div className="overflow-x-auto border border-rule bg-sheet">
-        <table className="w-full border-collapse text-left text-sm">
-          <caption className="sr-only">{caption}</caption>
-          <thead>
-            {table.getHeaderGroups().map((hg) => (
-              <tr key={hg.id} className="border-b-2 border-ink">
-                {hg.headers.map((h) => {
-                  const sorted = h.column.getIsSorted();
-                  const canSort = h.column.getCanSort() && h.column.id !== "select";
-                  return (
-                    <th key={h.id} scope="col" className="label-caps whitespace-nowrap px-1.5 py-2" aria-sort={sorted === "asc" ? "ascending" : sorted === "desc" ? "descending" : undefined}>
-                      {h.isPlaceholder ? null : canSort ? (
-                        <button type="button" className="inline-flex items-center gap-1 uppercase" onClick={h.column.getToggleSortingHandler()}>
-                          {flexRender(h.column.columnDef.header, h.getContext())}
-                          <span aria-hidden>{sorted === "asc" ? "↑" : sorted === "desc" ? "↓" : "↕"}</span>
-                        </button>
-                      ) : (
-                        flexRender(h.column.columnDef.header, h.getContext())
-                      )}
-                    </th>
-                  );
-                })}
-              </tr>
-            ))}
-          </thead>
-          <tbody>
-            {table.getRowModel().rows.length === 0 ? (
-              <tr>
-                <td colSpan={visible} className="px-3 py-6 text-center text-ink-soft">
-                  No milestone matches these filters.
-                </td>
-              </tr>
-            ) : (
-              table.getRowModel().rows.map((row) =>
-                row.getIsGrouped() ? (
-                  <tr key={row.id} className="border-b border-rule bg-paper">
-                    <th scope="rowgroup" colSpan={visible} className="px-2 pb-1 pt-3 text-left">
-                      <span className="font-semibold">{String(row.groupingValue)}</span>{" "}
-                      <span className="text-xs font-normal text-ink-faint">
-                        {row.subRows.length} milestone{row.subRows.length === 1 ? "" : "s"}
-                      </span>
-                    </th>
-                  </tr>
-                ) : (
-                  <tr key={row.id} data-milestone-id={row.original.id} className={`border-b border-rule last:border-b-0 ${props.drafts?.[row.original.id] ? "bg-[#fef6f0] shadow-[inset_4px_0_0_#c2410c]" : "hover:bg-paper"}`}>
-                    {row.getVisibleCells().map((cell) => (
-                      <td key={cell.id} className="px-1.5 py-1.5 align-top">
-                        {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                      </td>
-                    ))}
-                  </tr>
-                ),
-              )
-            )}
-          </tbody>
-        </table>
-      </div>
+      <DataTable
+        table={table}
+        caption={caption}
+        empty="No milestone matches these filters."
+        dense
+        rowProps={(row) => ({
+          "data-milestone-id": row.original.id,
+          className: `border-b border-rule last:border-b-0 ${props.drafts?.[row.original.id] ? "bg-[#fef6f0] shadow-[inset_4px_0_0_#c2410c]" : "hover:bg-paper"}`,
+        })}
+        renderGroupRow={(row, colSpan) => (
+          <tr key={row.id} className="border-b border-rule bg-paper">
+            <th scope="rowgroup" colSpan={colSpan} className="px-2 pb-1 pt-3 text-left">
+              <span className="font-semibold">{String(row.groupingValue)}</span>{" "}
+              <span className="text-xs font-normal text-ink-faint">
+                {row.subRows.length} milestone{row.subRows.length === 1 ? "" : "s"}
+              </span>
+            </th>
+          </tr>
+        )}
+      />
     </div>
   );
 }

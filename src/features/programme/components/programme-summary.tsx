@@ -4,24 +4,17 @@ import { StatusMark } from "../../../components/ui/status-mark.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import type { ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
 import { useHealth } from "../api.ts";
-import { formatIndex, formatPercent, signedDays } from "../words.ts";
+import { COUNTED_STATUSES, formatIndex, formatPercent, signedDays } from "../words.ts";
 
 /** Counts by status, each as shape, word and number. */
 export function StatusCounts({ counts }: { counts: ProgrammeHealthResponse["counts"] }) {
   return (
     <ul className="flex flex-wrap gap-x-4 gap-y-1 text-sm" aria-label="Milestones by status">
-      <li className="flex items-center gap-1.5">
-        <StatusMark status="complete" /> <span className="tabular">{counts.complete}</span>
-      </li>
-      <li className="flex items-center gap-1.5">
-        <StatusMark status="on_programme" /> <span className="tabular">{counts.onProgramme}</span>
-      </li>
-      <li className="flex items-center gap-1.5">
-        <StatusMark status="at_risk" /> <span className="tabular">{counts.atRisk}</span>
-      </li>
-      <li className="flex items-center gap-1.5">
-        <StatusMark status="behind" /> <span className="tabular">{counts.behind}</span>
-      </li>
+      {COUNTED_STATUSES.map(({ status, count }) => (
+        <li key={status} className="flex items-center gap-1.5">
+          <StatusMark status={status} /> <span className="tabular">{counts[count]}</span>
+        </li>
+      ))}
     </ul>
   );
 }

@@ -2,6 +2,7 @@ import { useState } from "react";
 import type { MediaItem, MediaPicture } from "#shared/schemas/media.ts";
 import type { PhotoChoice } from "../../../components/ui/photo-choice.tsx";
 import { PhotoPickerDialog } from "../../../components/ui/photo-picker.tsx";
+import { pageCount } from "../../../lib/api-client.ts";
 import { mediaItemTitle, pictureOfMediaItem } from "../../../lib/media.ts";
 import { useStoryMedia } from "../api.ts";
 
@@ -24,7 +25,7 @@ export function StoryPhotoPicker({ slug, title, area, onClose, onChoose }: { slu
   const [page, setPage] = useState(1);
   const media = useStoryMedia(slug, { q: search || undefined, area: onlyArea && area ? area : undefined, page });
   const items = media.data?.items ?? [];
-  const pages = media.data ? Math.max(1, Math.ceil(media.data.total / media.data.pageSize)) : 1;
+  const pages = media.data ? pageCount(media.data.total, media.data.pageSize) : 1;
   return (
     <PhotoPickerDialog
       title={title}

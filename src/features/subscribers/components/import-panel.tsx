@@ -6,6 +6,20 @@ import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { useImportSubscribers } from "../api.ts";
 
+/** The rows of the file that an import names, by line; nothing when there are none. */
+function LineList({ label, rows }: { label: string; rows: readonly { line: number; reason: string }[] }) {
+  if (rows.length === 0) return null;
+  return (
+    <ul className="mt-2 list-disc pl-5" aria-label={label}>
+      {rows.map((r) => (
+        <li key={`${r.line}-${r.reason}`}>
+          Line {r.line}: {r.reason}
+        </li>
+      ))}
+    </ul>
+  );
+}
+
 /** CSV import: every row is checked first; one bad row and nothing is imported. */
 export function ImportPanel({ projectSlug, projectName }: { projectSlug: string; projectName: string }) {
   const importer = useImportSubscribers();
@@ -42,15 +56,7 @@ export function ImportPanel({ projectSlug, projectName }: { projectSlug: string;
       {problems ? (
         <Notice tone="error" title="Nothing was imported">
           <p>{problems.message}</p>
-          {problems.rows.length ? (
-            <ul className="mt-2 list-disc pl-5" aria-label="Rows with problems">
-              {problems.rows.map((r) => (
-                <li key={`${r.line}-${r.reason}`}>
-                  Line {r.line}: {r.reason}
-                </li>
-              ))}
-            </ul>
-          ) : null}
+          <LineList label="Rows with problems" rows={problems.rows} />
         </Notice>
       ) : null}
       {result ? (
@@ -58,15 +64,7 @@ export function ImportPanel({ projectSlug, projectName }: { projectSlug: string;
           <p>
             {result.imported} imported: {result.confirmedOnEvidence} on consent evidence, {result.confirmationsSent} sent a confirmation e-mail.
           </p>
-          {result.skipped.length ? (
-            <ul className="mt-2 list-disc pl-5" aria-label="Rows left out">
-              {result.skipped.map((r) => (
-                <li key={r.line}>
-                  Line {r.line}: {r.reason}
-                </li>
-              ))}
-            </ul>
-          ) : null}
+          <LineList label="Rows left out" rows={result.skipped} />
         </Notice>
       ) : null}
     </div>

@@ -1,6 +1,7 @@
 import { useId } from "react";
 import type { System } from "#shared/schemas/programme.ts";
 import type { Topics } from "#shared/schemas/subscribers.ts";
+import { FieldError } from "../../../components/ui/field.tsx";
 import { SYSTEM_WORD } from "../../../lib/format.ts";
 
 function Check({ label, checked, onChange }: { label: string; checked: boolean; onChange: (on: boolean) => void }) {
@@ -65,12 +66,7 @@ export function TopicsPicker({
           </fieldset>
         </div>
       ) : null}
-      {error ? (
-        <p id={`${name}-error`} role="alert" className="flex items-start gap-1 text-sm text-bad">
-          <span aria-hidden>▲</span>
-          {error}
-        </p>
-      ) : null}
+      <FieldError id={`${name}-error`} error={error} />
     </fieldset>
   );
 }
