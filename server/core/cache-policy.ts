@@ -94,6 +94,10 @@ function headerText(value: number | string | string[] | undefined): string | und
   return Array.isArray(value) ? value.join(", ") : String(value);
 }
 
+function isFlatList(value: unknown): value is string[] {
+  return Array.isArray(value) && (value.length === 0 || typeof value[0] === "string");
+}
+
 /** Headers handed to writeHead itself (an object, a flat name/value list or a list of pairs), applied as Node would. */
 function applyWriteHeadHeaders(res: Response, headers: unknown): void {
   if (Array.isArray(headers)) {
@@ -126,6 +130,24 @@ export function cachePolicy(): RequestHandler {
       if (!applied) {
         applied = true;
         const last = rest[rest.length - 1];
+        // The public cache's replays hand a flat name/value list: decide on it in place and keep
+        // Node's fast path (applying it header by header costs about a tenth of the throughput).
+        if (isFlatList(last) && res.getHeader("cache-control") === undefined && res.getHeader("vary") === undefined && res.getHeader("set-cookie") === undefined) {
+          const flat = [...last];
+          const at = (name: string) => flat.findIndex((v, i) => i % 2 === 0 && v.toLowerCase() === name);
+          const cc = at("cache-control");
+          const decision = decideCachePolicy({ path, status: statusCode, signedIn: Boolean(req.user), setsCookie: at("set-cookie") >= 0, routePolicy: cc >= 0 ? flat[cc + 1] : undefined });
+          if (decision.cacheControl === undefined) {
+            if (cc >= 0) flat.splice(cc, 2);
+          } else if (cc >= 0) flat[cc + 1] = decision.cacheControl;
+          else flat.push("cache-control", decision.cacheControl);
+          if (decision.varyCookie) {
+            const vi = at("vary");
+            if (vi < 0) flat.push("vary", "Cookie");
+            else if (!/(^|,)\s*(cookie|\*)\s*(,|$)/i.test(flat[vi + 1]!)) flat[vi + 1] = `${flat[vi + 1]}, Cookie`;
+          }
+          return (writeHead as (...a: unknown[]) => Response).call(this, statusCode, ...rest.slice(0, -1), flat);
+        }
         if (last !== null && typeof last === "object") {
           applyWriteHeadHeaders(res, last);
           rest = rest.slice(0, -1);

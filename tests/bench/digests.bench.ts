@@ -65,7 +65,10 @@ try {
 
   // 1. One weekly run: planning (one render), then the workers' claim, send and record.
   const t0 = performance.now();
-  const run = await app.digests.requestRun({ projectSlug: "bench-campus", frequency: "weekly", at: new Date(Date.now() + 7 * 86_400_000).toISOString() }, { user: null, ip: null });
+  // The run the scheduler starts once this week has ended (staff cannot ask for a future `at`).
+  const { id: runId, created } = await app.digests.createRun({ projectId: Number(projectId), frequency: "weekly", at: new Date(Date.now() + 7 * 86_400_000), timeZone: "Europe/London" });
+  if (created) await app.digests.planRun(runId);
+  const run = { id: runId };
   await app.digestJobs.drain();
   const digestMs = performance.now() - t0;
   const summary = await app.digests.summary(run.id);
