@@ -76,6 +76,9 @@ describe("signing in through the form, as each demo user", () => {
       await page.getByRole("link", { name: "Audit log" }).click();
       await page.getByRole("cell", { name: "Signed in" }).first().waitFor();
       await page.getByRole("link", { name: "Users" }).click();
+      // The audit log (whose rows also name the admin) stays on screen until the users page's loader is done.
+      await page.waitForURL(/\/office\/users$/);
+      await page.getByRole("heading", { name: "Users", level: 1 }).waitFor();
       await page.getByRole("cell", { name: DEMO.admin, exact: true }).waitFor();
       await screenshot(page, "office-users");
       expect(await page.getByRole("alert").count()).toBe(0);
