@@ -7,35 +7,23 @@ import { baselinesQueryOptions, healthQueryOptions, milestonesQueryOptions, prog
 import { PublicTimelinePage, publicTimelineLoader } from "../../src/features/programme/public-routes.tsx";
 import { programmeLoader, siteWalkLoader } from "../../src/features/programme/routes.tsx";
 import type { RouteLoader } from "../../src/lib/loaders.ts";
+import { makeMilestone } from "./milestone-fixture.ts";
 
 afterEach(() => vi.unstubAllGlobals());
 
 const SLUG = "aldermere-phase-2";
 const PROJECT = { id: 1, slug: SLUG, name: "Aldermere Campus, Phase 2", timeZone: "Europe/London", settings: { toleranceWorkingDays: 5, behindWorkingDays: 15, weekendDays: [6, 0], holidays: [] } };
-const MILESTONE = {
+const MILESTONE = makeMilestone({
   id: 11,
   name: "Hall 2A ready for service",
   phase: "Handover",
   phaseId: 3,
-  area: "Hall 2A",
   system: "fit-out",
-  description: "",
   weight: 3,
-  percentComplete: 0,
-  plannedStart: null,
   baselineFinish: "2099-03-01",
   forecastFinish: "2099-03-01",
-  actualFinish: null,
-  audience: "public",
-  budget: null,
-  dependsOn: [],
-  status: "on_programme",
-  slipDays: 0,
-  slipWorkingDays: 0,
-  version: 1,
   updatedAt: "2026-01-05T09:00:00.000Z",
-  removal: null,
-};
+});
 const LEAD = { user: { id: 2, email: "lead@kestrel.example", name: "Lead", role: "lead" } };
 
 type Answers = Record<string, { status: number; body: unknown }>;

@@ -8,6 +8,7 @@ import { MilestoneTable } from "../../src/features/programme/components/mileston
 import { PendingChanges } from "../../src/features/programme/components/pending-changes.tsx";
 import { patchOf, previewDrafts, shiftDrafts } from "../../src/features/programme/preview.ts";
 import { draftErrors, useDraftEditor } from "../../src/features/programme/use-draft-editor.ts";
+import { makeMilestone } from "./milestone-fixture.ts";
 
 afterEach(cleanup);
 
@@ -16,31 +17,8 @@ afterEach(cleanup);
 const settings: ProgrammeSettings = { toleranceWorkingDays: 5, behindWorkingDays: 15, calendar: { weekendDays: [6, 7], holidays: [] } };
 const AT = "2027-01-04";
 
-function milestone(over: Partial<Milestone> & Pick<Milestone, "id" | "name">): Milestone {
-  return {
-    phase: "Plant",
-    phaseId: 1,
-    area: "Plant yard",
-    system: "power",
-    description: "",
-    weight: 1,
-    percentComplete: 0,
-    plannedStart: null,
-    baselineFinish: "2027-01-11",
-    forecastFinish: null,
-    actualFinish: null,
-    audience: "public",
-    budget: null,
-    dependsOn: [],
-    status: "on_programme",
-    slipDays: 0,
-    slipWorkingDays: 0,
-    version: 1,
-    updatedAt: "2027-01-04T09:00:00Z",
-    removal: null,
-    ...over,
-  };
-}
+const milestone = (over: Partial<Milestone> & Pick<Milestone, "id" | "name">): Milestone =>
+  makeMilestone({ phase: "Plant", area: "Plant yard", system: "power", baselineFinish: "2027-01-11", updatedAt: "2027-01-04T09:00:00Z", ...over });
 
 // A: weight 1, done. B: weight 3, 50 % done, planned linearly 28 Dec → 11 Jan, so half planned on 4 Jan.
 // PV = 1 + 3 × 0.5 = 2.5, EV = 1 + 3 × 0.5 = 2.5 → SPI 1.00, percent complete 2.5 / 4 = 62.5 %.

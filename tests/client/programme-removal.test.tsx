@@ -3,6 +3,7 @@ import { afterEach, describe, expect, it, vi } from "vitest";
 import type { Milestone } from "../../src/shared/schemas/programme.ts";
 import { MilestoneRemoval } from "../../src/features/programme/components/milestone-removal.tsx";
 import { renderWithApp } from "./render.tsx";
+import { makeMilestone } from "./milestone-fixture.ts";
 
 afterEach(() => {
   cleanup();
@@ -10,31 +11,8 @@ afterEach(() => {
 });
 
 // Our own example milestone of the demo scenario.
-const milestone = (over: Partial<Milestone> = {}): Milestone => ({
-  id: 7,
-  name: "Temporary cabins cleared",
-  phase: "Enabling works",
-  phaseId: 1,
-  area: "Site compound",
-  system: "building",
-  description: "",
-  weight: 1,
-  percentComplete: 10,
-  plannedStart: null,
-  baselineFinish: "2027-03-01",
-  forecastFinish: "2027-03-01",
-  actualFinish: null,
-  audience: "public",
-  budget: null,
-  dependsOn: [],
-  status: "on_programme",
-  slipDays: 0,
-  slipWorkingDays: 0,
-  version: 3,
-  updatedAt: "2026-12-01T09:00:00Z",
-  removal: null,
-  ...over,
-});
+const milestone = (over: Partial<Milestone> = {}): Milestone =>
+  makeMilestone({ id: 7, name: "Temporary cabins cleared", area: "Site compound", percentComplete: 10, forecastFinish: "2027-03-01", version: 3, ...over });
 
 /** The server as the component meets it: a CSRF token, then whatever `answer` says for the call. */
 function stubServer(answer: (method: string, url: string, body: unknown) => { status: number; body?: unknown }) {

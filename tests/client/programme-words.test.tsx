@@ -3,6 +3,7 @@ import type { Milestone } from "../../src/shared/schemas/programme.ts";
 import { addMonths, todayIn } from "../../src/features/programme/dates.ts";
 import { describePublicProgress, slipInWords } from "../../src/features/programme/words.ts";
 import { describeDates } from "../../src/features/programme/public-routes.tsx";
+import { makeMilestone } from "./milestone-fixture.ts";
 
 // Our own examples: the plain words of the public pages.
 describe("slipInWords", () => {
@@ -22,29 +23,8 @@ describe("slipInWords", () => {
   });
 });
 
-const m = (over: Partial<Milestone> & Pick<Milestone, "id" | "name">): Milestone => ({
-  phase: "Ready for service",
-  phaseId: 1,
-  area: "Hall 2A",
-  system: "commissioning",
-  description: "",
-  weight: 1,
-  percentComplete: 0,
-  plannedStart: null,
-  baselineFinish: "2027-03-12",
-  forecastFinish: null,
-  actualFinish: null,
-  audience: "public",
-  budget: null,
-  dependsOn: [],
-  status: "on_programme",
-  slipDays: 0,
-  slipWorkingDays: 0,
-  version: 1,
-  updatedAt: "2026-12-01T09:00:00Z",
-  removal: null,
-  ...over,
-});
+const m = (over: Partial<Milestone> & Pick<Milestone, "id" | "name">): Milestone =>
+  makeMilestone({ phase: "Ready for service", system: "commissioning", baselineFinish: "2027-03-12", ...over });
 
 describe("describePublicProgress", () => {
   it("counts the complete ones and names the next ready-for-service date with its slip", () => {

@@ -1,19 +1,14 @@
 import { randomBytes } from "node:crypto";
 import { DateTime } from "luxon";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
-import { DEMO, lastMailId, startTestApp, type TestApp } from "../helpers/app.ts";
-import { createPhoto, createProject, postInput, signInAll } from "./posts-fixtures.ts";
+import { DEMO, lastMailId, type TestApp } from "../helpers/app.ts";
+import { createPhoto, createProject, postInput, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 const TZ = "Europe/London";
 const HOUR = 3_600_000;

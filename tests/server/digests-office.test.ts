@@ -1,22 +1,17 @@
 import { randomBytes } from "node:crypto";
 import { pino } from "pino";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import { createDigestJobs } from "../../server/digests/digests.jobs.ts";
 import { createOutboxService } from "../../server/mail/mail.service.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
-import { DEMO, lastMailId, startTestApp, type TestApp } from "../helpers/app.ts";
+import { DEMO, lastMailId, type TestApp } from "../helpers/app.ts";
 import { scheduledRun } from "../helpers/digests.ts";
-import { createPhoto, createProject, postInput, signInAll } from "./posts-fixtures.ts";
+import { createPhoto, createProject, postInput, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 const nextWeek = () => new Date(Date.now() + 7 * 86_400_000);
 

@@ -1,19 +1,14 @@
 import { randomBytes } from "node:crypto";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
-import { lastMailId, startTestApp, type TestApp } from "../helpers/app.ts";
+import { lastMailId, type TestApp } from "../helpers/app.ts";
 import { scheduledRun } from "../helpers/digests.ts";
-import { createMilestone, createProject, signInAll } from "./posts-fixtures.ts";
+import { createMilestone, createProject, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 const DAY = 86_400_000;
 

@@ -1,6 +1,6 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { newClient, startTestApp, type TestApp } from "../helpers/app.ts";
-import { createPhoto, createProject, doc, parseHtmlFragment, parseXml, postInput, signInAll, type Client } from "./posts-fixtures.ts";
+import { beforeAll, describe, expect, it } from "vitest";
+import { newClient, type TestApp } from "../helpers/app.ts";
+import { createPhoto, createProject, doc, parseHtmlFragment, parseXml, postInput, type Client, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
 /**
  * Issue #9 item 2: whatever staff type, the Atom feed and the sitemap stay well-formed, and what
@@ -11,15 +11,10 @@ import { createPhoto, createProject, doc, parseHtmlFragment, parseXml, postInput
 const ATOM = "http://www.w3.org/2005/Atom";
 const SITEMAP = "http://www.sitemaps.org/schemas/sitemap/0.9";
 
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 const hex = (c: string) => `U+${c.charCodeAt(0).toString(16).toUpperCase().padStart(4, "0")}`;
 // Source: XML 1.0 (Fifth Edition) §2.2 [2] Char; the issue's list: U+0000–U+0008, U+000B, U+000C, U+000E–U+001F.

@@ -1,16 +1,11 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { newClient, startTestApp, type TestApp } from "../helpers/app.ts";
-import { createPhoto, createProject, doc, image, postInput, signInAll, text, type Client } from "./posts-fixtures.ts";
+import { beforeAll, describe, expect, it } from "vitest";
+import { newClient, type TestApp } from "../helpers/app.ts";
+import { createPhoto, createProject, doc, image, postInput, text, type Client, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 function create(c: Client, projectSlug: string, body: Record<string, unknown>) {
   return c.agent.post(`/api/projects/${projectSlug}/posts`).set("X-CSRF-Token", c.csrf).send(body);

@@ -1,6 +1,7 @@
 import { randomBytes } from "node:crypto";
 import sharp from "sharp";
-import { DEMO, signIn, type TestApp } from "../helpers/app.ts";
+import { afterAll, beforeAll } from "vitest";
+import { DEMO, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
 import type { Audience } from "../../src/shared/schemas/common.ts";
 import type { RichTextDoc, RichTextNode } from "../../src/shared/schemas/rich-text.ts";
 
@@ -117,10 +118,28 @@ export function postInput(coverMediaId: number | null, over: Record<string, unkn
 
 export type Client = Awaited<ReturnType<typeof signIn>>;
 
+export type EveryRole = Record<"admin" | "lead" | "marketing" | "investor", Client>;
+
 /** Signs in each demo role once for a test file. */
-export async function signInAll(t: TestApp): Promise<Record<"admin" | "lead" | "marketing" | "investor", Client>> {
+export async function signInAll(t: TestApp): Promise<EveryRole> {
   const [admin, lead, marketing, investor] = await Promise.all([signIn(t, DEMO.admin), signIn(t, DEMO.lead), signIn(t, DEMO.marketing), signIn(t, DEMO.investor)]);
   return { admin, lead, marketing, investor };
+}
+
+/**
+ * A test app for the file and a signed-in client of each demo role: started in beforeAll, closed
+ * in afterAll. Read the fields inside hooks and tests (they are filled in beforeAll).
+ */
+export function useAppAsEveryRole(env: Record<string, string> = {}): { t: TestApp; as: EveryRole } {
+  const f = {} as { t: TestApp; as: EveryRole };
+  beforeAll(async () => {
+    f.t = await startTestApp(env);
+    f.as = await signInAll(f.t);
+  });
+  afterAll(async () => {
+    await f.t?.close();
+  });
+  return f;
 }
 
 interface DomWindow {

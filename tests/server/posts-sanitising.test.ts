@@ -1,17 +1,12 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { newClient, startTestApp, type TestApp } from "../helpers/app.ts";
+import { beforeAll, describe, expect, it } from "vitest";
+import { newClient, type TestApp } from "../helpers/app.ts";
 import { sanitizePostHtml } from "../../server/posts/rich-text.ts";
-import { createPhoto, createProject, doc, image, parseHtmlFragment, parseXml, postInput, signInAll } from "./posts-fixtures.ts";
+import { createPhoto, createProject, doc, image, parseHtmlFragment, parseXml, postInput, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 /** Everything in the HTML that could run script or load something from elsewhere. */
 async function dangers(html: string): Promise<string[]> {

@@ -1,6 +1,6 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { createUser, newClient, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
-import { createMilestone, createPhoto, createProject, doc, image, milestoneBlock, postInput, signInAll, text, type Client } from "./posts-fixtures.ts";
+import { beforeAll, describe, expect, it } from "vitest";
+import { createUser, newClient, signIn, type TestApp } from "../helpers/app.ts";
+import { createMilestone, createPhoto, createProject, doc, image, milestoneBlock, postInput, text, type Client, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
 /**
  * The publishing workflow, the same for every kind of published content (server/publishing):
@@ -9,15 +9,10 @@ import { createMilestone, createPhoto, createProject, doc, image, milestoneBlock
  * then-and-now pairs) follow in their own parts.
  */
 
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 type Path = "posts" | "stories";
 

@@ -1,17 +1,12 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { newClient, startTestApp, type TestApp } from "../helpers/app.ts";
-import { createPhoto, createProject, doc, parseXml, postInput, signInAll, text, type Client } from "./posts-fixtures.ts";
+import { beforeAll, describe, expect, it } from "vitest";
+import { newClient, type TestApp } from "../helpers/app.ts";
+import { createPhoto, createProject, doc, parseXml, postInput, text, type Client, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
 const ATOM = "http://www.w3.org/2005/Atom";
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 /** A published post by the lead (who may publish their own). */
 async function published(projectSlug: string, projectId: number, over: Record<string, unknown> = {}, by: Client = as.lead) {

@@ -1,16 +1,11 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { newClient, startTestApp, type TestApp } from "../helpers/app.ts";
-import { createPhoto, createProject, signInAll, type Client } from "./posts-fixtures.ts";
+import { beforeAll, describe, expect, it } from "vitest";
+import { newClient, type TestApp } from "../helpers/app.ts";
+import { createPhoto, createProject, type Client, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
+const app = useAppAsEveryRole();
 let t: TestApp;
-let as: Awaited<ReturnType<typeof signInAll>>;
-beforeAll(async () => {
-  t = await startTestApp();
-  as = await signInAll(t);
-});
-afterAll(async () => {
-  await t.close();
-});
+let as: EveryRole;
+beforeAll(() => ({ t, as } = app));
 
 const patch = (c: Client, id: number, body: Record<string, unknown>) => c.agent.patch(`/api/stories/${id}`).set("X-CSRF-Token", c.csrf).send(body);
 const act = (c: Client, id: number, action: string) => c.agent.post(`/api/stories/${id}/${action}`).set("X-CSRF-Token", c.csrf);
