@@ -672,3 +672,38 @@ export function capacityRamp(
   }
   return points;
 }
+
+// ---------------------------------------------------------------------------------
+// Site facts for prospects
+// ---------------------------------------------------------------------------------
+
+/**
+ * Mean air velocity in a rectangular duct or opening: V̇ / (width × height).
+ * @param flowM3s airflow in m³/s
+ * @param widthM inside width in m
+ * @param heightM inside height in m
+ * @returns velocity in m/s
+ * @throws RangeError on a negative flow or a side that is not greater than zero
+ */
+export function ductVelocityMs(flowM3s: number, widthM: number, heightM: number): number {
+  const flow = requireNonNegative("flowM3s", flowM3s);
+  return flow / (requirePositive("widthM", widthM) * requirePositive("heightM", heightM));
+}
+
+/**
+ * Whether a rack passes through a door standing upright: its height under the door's
+ * clear height, and its narrower plan side (width or depth, whichever way it is turned)
+ * within the clear width. Pass the rack as delivered (on its casters or skates, loaded);
+ * the door as its clear opening, frame and closers taken off.
+ * @throws RangeError on a dimension that is not greater than zero
+ */
+export function rackFitsThroughDoor(
+  door: { doorHeightM: number; doorWidthM: number },
+  rack: { rackHeightM: number; rackWidthM: number; rackDepthM: number },
+): boolean {
+  const doorHeight = requirePositive("doorHeightM", door.doorHeightM);
+  const doorWidth = requirePositive("doorWidthM", door.doorWidthM);
+  const height = requirePositive("rackHeightM", rack.rackHeightM);
+  const narrower = Math.min(requirePositive("rackWidthM", rack.rackWidthM), requirePositive("rackDepthM", rack.rackDepthM));
+  return height <= doorHeight && narrower <= doorWidth;
+}
