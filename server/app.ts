@@ -20,6 +20,7 @@ import { healthRouter } from "./health/health.router.ts";
 import { outboxRouter } from "./mail/mail.router.ts";
 import { projectsRouter } from "./projects/projects.router.ts";
 import { programmeRouter } from "./programme/programme.router.ts";
+import { facilityRouter } from "./facility/facility.router.ts";
 import { mediaFilesRouter, mediaRouter } from "./media/media.router.ts";
 import { usersRouter } from "./users/users.router.ts";
 import { enquiriesRouter } from "./enquiries/enquiries.router.ts";
@@ -47,7 +48,7 @@ export interface HttpAppDeps {
  */
 export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   const { db, config, logger } = deps;
-  const { publicCache, sessions, auth, users, audit, outbox, projects, programme, media, mediaUploads, rateLimits, signInDelays, enquiries, subscribers, posts, stories, site, digests } = services;
+  const { publicCache, sessions, auth, users, audit, outbox, projects, programme, facility, media, mediaUploads, rateLimits, signInDelays, enquiries, subscribers, posts, stories, site, digests } = services;
   const app = express();
   app.disable("x-powered-by");
   app.set("trust proxy", config.TRUST_PROXY);
@@ -163,6 +164,7 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
     }),
   );
   api.use(programmeRouter(programme));
+  api.use(facilityRouter(facility));
   api.use(mediaRouter(media, mediaUploads));
   api.use(postsRouter(posts));
   api.use(storiesRouter(stories));

@@ -8,6 +8,7 @@ import type { Mailer } from "./mail/mail.service.ts";
 import { createOutboxService } from "./mail/mail.service.ts";
 import { createProjectsService } from "./projects/projects.service.ts";
 import { createProgrammeService } from "./programme/programme.service.ts";
+import { createFacilityService } from "./facility/facility.service.ts";
 import { createMediaService } from "./media/media.service.ts";
 import { createLocalDiskStorage, createUploadArea } from "./media/media.storage.ts";
 import { createRateLimitStore } from "./rate-limit/rate-limit.service.ts";
@@ -53,12 +54,15 @@ export function createServices(deps: ServiceDeps) {
     projects,
     accounts,
     audit,
-    // Posts and media read the programme, so they are built below; this runs only when a milestone is to be deleted.
+    // Posts, media and the facility read the programme, so they are built below; this runs only when a milestone is to be deleted.
     references: async (milestoneId) => [
       ...(await posts.linkingMilestone(milestoneId)).map((p) => ({ kind: "update" as const, id: p.id, label: `“${p.title}”` })),
       ...(await media.taggedWithMilestone(milestoneId)).map((id) => ({ kind: "photo" as const, id, label: `#${id}` })),
+      ...(await facility.milestoneLinks(milestoneId)).map((l) => ({ kind: l.kind, id: l.id, label: l.name })),
     ],
   });
+  // Capacity blocks, plant and site features: readiness reads the programme's milestone dates.
+  const facility = createFacilityService({ db, projects, programme, accounts, audit });
   const mediaStorage = createLocalDiskStorage(config.MEDIA_DIR);
   const mediaUploads = createUploadArea(config.MEDIA_DIR);
   const media = createMediaService({
@@ -69,6 +73,8 @@ export function createServices(deps: ServiceDeps) {
     programme,
     accounts,
     limits: { maxFileBytes: Math.round(config.MEDIA_MAX_FILE_MB * 1024 * 1024), maxFiles: config.MEDIA_MAX_FILES, maxPixels: config.MEDIA_MAX_PIXELS },
+    // Photos may be tagged with the facility's capacity blocks and plant systems.
+    facility,
     // Signed derivative links (investor images in e-mail) use a key derived from it under their own label.
     tokenSecret: config.TOKEN_SECRET,
   });
@@ -95,9 +101,9 @@ export function createServices(deps: ServiceDeps) {
     webhookSecret: config.MAIL_WEBHOOK_SECRET ?? null,
   });
   const publishingWorkflow = createPublishingService({ db });
-  const posts = createPostsService({ db, projects, programme, media, publishing: publishingWorkflow, onChange: publicCache.clear });
+  const posts = createPostsService({ db, projects, programme, media, publishing: publishingWorkflow, facility, onChange: publicCache.clear });
   const stories = createStoriesService({ db, projects, media, publishing: publishingWorkflow, onChange: publicCache.clear });
-  const site = createFeedsService({ projects, posts, stories, publicUrl: config.PUBLIC_URL });
+  const site = createFeedsService({ projects, posts, stories, facility, publicUrl: config.PUBLIC_URL });
   const digests = createDigestsService({
     db,
     logger,
@@ -106,6 +112,7 @@ export function createServices(deps: ServiceDeps) {
     programme,
     media,
     posts,
+    facility,
     subscribers,
     publicUrl: config.PUBLIC_URL,
     tokenSecret: config.TOKEN_SECRET,
@@ -122,6 +129,8 @@ export function createServices(deps: ServiceDeps) {
     outbox,
     projects,
     programme,
+    /** The facility: blocks, plant systems and units, site features, their figures (digests read `figuresAt`). */
+    facility,
     /** The media library's service (other modules' services take it too). */
     media,
     mediaStorage,

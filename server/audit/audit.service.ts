@@ -23,7 +23,21 @@ export type AuditAction =
   | "milestones_shifted"
   | "programme_rebaselined"
   | "programme_imported"
-  | "cost_actual_recorded";
+  | "cost_actual_recorded"
+  // Facility writes (server/facility): blocks, plant systems, their units, site features.
+  | "facility_block_created"
+  | "facility_block_updated"
+  | "facility_block_deleted"
+  | "facility_system_created"
+  | "facility_system_updated"
+  | "facility_system_deleted"
+  | "facility_unit_created"
+  | "facility_unit_updated"
+  | "facility_unit_stage_changed"
+  | "facility_unit_deleted"
+  | "facility_feature_created"
+  | "facility_feature_updated"
+  | "facility_feature_deleted";
 
 export interface AuditService {
   record(

@@ -6,6 +6,7 @@ import type { PostsService, PublishedPostRecord } from "../posts/posts.service.t
 import type { ProgrammeService } from "../programme/programme.service.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import { topicsAllow } from "../subscribers/subscribers.topics.ts";
+import { createFacilityMovesCache, type DigestFacilitySource, type FacilityMovesCache } from "./digests.facility.ts";
 import type { DigestDocument, DigestFigures } from "./digests.render.ts";
 import { localDate } from "./digests.windows.ts";
 
@@ -50,19 +51,22 @@ export interface AssembleInput {
   previous: PreviousFigures;
   /** The post of an "as it happens" digest. */
   postId?: number | null;
+  /** The run's facility moves, shared by its readers (`newRunCache`); a lone digest works its own out. */
+  facilityMoves?: FacilityMovesCache;
 }
 
 export interface DigestAssemblerDeps {
   programme: Pick<ProgrammeService, "list" | "moves" | "health">;
   media: Pick<MediaService, "pictureFor" | "signedVariantUrl">;
   posts: Pick<PostsService, "publishedBetween" | "findPublished">;
+  facility: DigestFacilitySource;
   publicUrl: string;
   now: () => Date;
 }
 
 /** What goes into one reader's digest. */
 export function createDigestAssembler(deps: DigestAssemblerDeps) {
-  const { programme, media, posts, publicUrl, now } = deps;
+  const { programme, media, posts, facility, publicUrl, now } = deps;
 
   /**
    * Each post's cover picture by post id, as an absolute URL for e-mail: a public post's is the
@@ -86,10 +90,13 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
     return out;
   }
 
+  /** A cache for one run: each (audience, window) asks the facility once, whoever reads it. */
+  const newRunCache = () => createFacilityMovesCache(facility);
+
   /**
    * What one reader's digest holds: posts published in the window that the audience and
-   * topics allow, the programme's moves in the window, milestones due in the next 30 days,
-   * and the headline figures against those of the reader's last digest.
+   * topics allow, the programme's and the facility's moves in the window, milestones due in
+   * the next 30 days, and the headline figures against those of the reader's last digest.
    */
   async function assemble(p: AssembleInput): Promise<DigestDocument> {
     const { project, audience, topics } = p;
@@ -119,6 +126,7 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
         image: pictures.get(x.id) ?? null,
       })),
       moves: [],
+      facility: [],
       dueSoon: [],
       figures: { percentComplete: null, forecastReady: null, previousPercent: null, previousForecast: null },
     };
@@ -133,8 +141,9 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
       const m = byId.get(id);
       return m ? topicsAllow(topics, { areas: m.area ? [m.area] : [], systems: [m.system] }) : false;
     };
+    const firstDay = localDate(p.windowStart, project.timeZone);
     const lastDay = localDate(new Date(p.windowEnd.getTime() - 1), project.timeZone);
-    const moves = await programme.moves(project.slug, { from: localDate(p.windowStart, project.timeZone), to: lastDay }, audience);
+    const moves = await programme.moves(project.slug, { from: firstDay, to: lastDay }, audience);
     doc.moves = moves
       .filter((row) => within(row.milestoneId))
       .flatMap((row) =>
@@ -142,6 +151,9 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
           .filter((m) => NEWS_MOVES.has(m.kind))
           .map((m) => ({ milestoneName: row.milestoneName, kind: m.kind, days: m.days, from: m.from, to: m.to, ...(m.kind === "removed" || m.kind === "restored" ? { reason: m.notes.join("; ") } : {}) })),
       );
+    // The facility's moves are the same for every reader of this audience and window: worked out once per run.
+    const facilityMoves = await (p.facilityMoves ?? newRunCache())(project.id, audience, firstDay, lastDay);
+    doc.facility = facilityMoves.filter((x) => topicsAllow(topics, x.topics)).map((x) => x.item);
     const today = localDate(p.windowEnd, project.timeZone);
     const horizon = addDays(today, 30);
     doc.dueSoon = milestones
@@ -160,6 +172,6 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
     return doc;
   }
 
-  return { assemble };
+  return { assemble, newRunCache };
 }
 export type DigestAssembler = ReturnType<typeof createDigestAssembler>;

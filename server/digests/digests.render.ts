@@ -1,8 +1,10 @@
 import mjml2html from "mjml";
 import { DateTime } from "luxon";
 import { digestPeriodTitle } from "#shared/domain/digest-period.ts";
+import { INDICATIVE_CAUTION } from "#shared/domain/facility.ts";
 import type { MoveKind } from "#shared/domain/programme-changes.ts";
 import { escapeHtml } from "../mail/mail.layout.ts";
+import type { DigestFacilityItem } from "./digests.facility.ts";
 
 /** Personal links, filled in per delivery; everything else is shared by every reader of a content. */
 export const PLACEHOLDERS = {
@@ -53,6 +55,8 @@ export interface DigestDocument {
   projectUrl: string;
   posts: DigestPostItem[];
   moves: DigestMoveItem[];
+  /** What the facility did in the window: blocks' ready dates, readiness, redundancy, units commissioned. */
+  facility: DigestFacilityItem[];
   dueSoon: DigestDueItem[];
   figures: DigestFigures;
 }
@@ -64,9 +68,9 @@ export interface RenderedDigest {
   text: string;
 }
 
-/** Whether a digest has news: posts, programme moves, or a changed headline figure. Due dates alone are not news. */
+/** Whether a digest has news: posts, programme or facility moves, or a changed headline figure. Due dates alone are not news. */
 export function hasNews(d: DigestDocument): boolean {
-  return d.posts.length > 0 || d.moves.length > 0 || figureDelta(d.figures).changed;
+  return d.posts.length > 0 || d.moves.length > 0 || d.facility.length > 0 || figureDelta(d.figures).changed;
 }
 
 /** The change of the headline figures since the reader's last digest (percentage points; calendar days). */
@@ -100,6 +104,28 @@ export function describeMove(m: DigestMoveItem): string {
   }
 }
 
+const unitNames = (units: readonly string[]) => (units.length <= 1 ? units.join("") : `${units.slice(0, -1).join(", ")} and ${units[units.length - 1]}`);
+
+/**
+ * A facility move in plain words, after the block's or system's name:
+ * ": ready for service later by 9 days (…)", " now N+1, as designed (was N)".
+ */
+export function describeFacilityMove(m: DigestFacilityItem): string {
+  switch (m.kind) {
+    case "block_forecast_moved":
+      return `: ready for service ${describeMove({ milestoneName: m.name, kind: m.days > 0 ? "later" : "earlier", days: m.days, from: m.from, to: m.to })}`;
+    case "block_ready":
+      return `: ready for service${m.on ? ` from ${longDate(m.on)}` : ""}`;
+    case "system_label":
+      return m.reachedDesign ? ` now ${m.to}, its design level (was ${m.from})` : ` now ${m.to} (was ${m.from}; design ${m.design})`;
+    case "units_commissioned":
+      return `: ${unitNames(m.units)} commissioned${m.now ? ` (now ${m.now})` : ""}`;
+  }
+}
+
+/** Redundancy labels are engineering figures: a facility section showing one carries the caution. */
+const showsEngineeringFigure = (items: readonly DigestFacilityItem[]) => items.some((m) => m.kind === "system_label" || (m.kind === "units_commissioned" && m.now !== null));
+
 /** The days the window covers in the project's zone (its end is exclusive), named by `digestPeriodTitle`. */
 export function periodLabel(d: Pick<DigestDocument, "frequency" | "windowStart" | "windowEnd" | "soFar" | "project">): string {
   const zone = d.project.timeZone;
@@ -132,6 +158,7 @@ function preheaderOf(d: DigestDocument): string {
   const parts: string[] = [];
   if (d.posts.length) parts.push(`${d.posts.length} update${d.posts.length === 1 ? "" : "s"}`);
   if (d.moves.length) parts.push(`${d.moves.length} programme change${d.moves.length === 1 ? "" : "s"}`);
+  if (d.facility.length) parts.push(`${d.facility.length} facility change${d.facility.length === 1 ? "" : "s"}`);
   if (d.dueSoon.length) parts.push(`${d.dueSoon.length} milestone${d.dueSoon.length === 1 ? "" : "s"} due in the next 30 days`);
   const lead = d.frequency === "immediate" && d.posts[0] ? d.posts[0].summary || d.posts[0].title : parts.join(", ");
   return lead.slice(0, 140);
@@ -162,9 +189,13 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
       </mj-column></mj-section>`,
     )
     .join("");
-  const list = (title: string, items: string[]) =>
-    items.length ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0">${i}</mj-text>`).join("")}</mj-column></mj-section>` : "";
+  const list = (title: string, items: string[], note?: string) =>
+    items.length
+      ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0">${i}</mj-text>`).join("")}${note ? `<mj-text font-size="12px" color="#5a5e66" padding="6px 0 0 0">${e(note)}</mj-text>` : ""}</mj-column></mj-section>`
+      : "";
   const moveItems = d.moves.map((m) => `<strong>${e(m.milestoneName)}</strong>: ${e(describeMove(m))}`);
+  const facilityItems = d.facility.map((m) => `<strong>${e(m.name)}</strong>${e(describeFacilityMove(m))}`);
+  const caution = showsEngineeringFigure(d.facility) ? INDICATIVE_CAUTION : undefined;
   const dueItems = d.dueSoon.map((m) => `<strong>${e(m.name)}</strong>: due ${e(longDate(m.date))}`);
   const mj = `<mjml lang="en">
   <mj-head>
@@ -182,6 +213,7 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
       ${figures.length ? `<mj-section padding="8px 0"><mj-column>${figures.map((f) => `<mj-text padding="2px 0">${e(f)}</mj-text>`).join("")}</mj-column></mj-section>` : ""}
       ${posts}
       ${list("Programme changes", moveItems)}
+      ${list("Facility changes", facilityItems, caution)}
       ${list("Due in the next 30 days", dueItems)}
     </mj-wrapper>
     <mj-section padding="12px"><mj-column>
@@ -200,6 +232,7 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
     ...(figures.length ? [...figures, ""] : []),
     ...d.posts.flatMap((p) => [p.title, ...(p.summary ? [p.summary] : []), `Read the update: ${p.url}`, ""]),
     ...(d.moves.length ? ["Programme changes", ...d.moves.map((m) => `- ${m.milestoneName}: ${describeMove(m)}`), ""] : []),
+    ...(d.facility.length ? ["Facility changes", ...d.facility.map((m) => `- ${m.name}${describeFacilityMove(m)}`), ...(caution ? [caution] : []), ""] : []),
     ...(d.dueSoon.length ? ["Due in the next 30 days", ...d.dueSoon.map((m) => `- ${m.name}: due ${longDate(m.date)}`), ""] : []),
     `View in the browser: ${PLACEHOLDERS.webUrl}`,
     "",

@@ -10,6 +10,7 @@ import type { ProgrammeService } from "../programme/programme.service.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import type { SubscribersService } from "../subscribers/subscribers.service.ts";
 import { createDigestAssembler } from "./digests.assemble.ts";
+import type { DigestFacilitySource } from "./digests.facility.ts";
 import { createDigestPlanner } from "./digests.plan.ts";
 import { createDigestPreview } from "./digests.preview.ts";
 import { deliveredSubscriberIds, findRun, findRunByKey, listRuns, postsWithImmediateRun, setRunStatus, type DigestRunRecord } from "./digests.repository.ts";
@@ -30,6 +31,8 @@ export interface DigestsDeps {
   projects: ProjectsService;
   programme: ProgrammeService;
   media: MediaService;
+  /** The facility as it stood on a day: its moves in a window are news. */
+  facility: DigestFacilitySource;
   /** Published updates: what a digest tells of. */
   posts: Pick<PostsService, "publishedBetween" | "findPublished" | "publishedSince">;
   subscribers: SubscribersService;
@@ -67,7 +70,7 @@ export function createDigestsService(deps: DigestsDeps) {
   const now = deps.now ?? (() => new Date());
   const host = new URL(publicUrl).hostname || "plumbline.local";
 
-  const assembler = createDigestAssembler({ programme: deps.programme, media: deps.media, posts, publicUrl, now });
+  const assembler = createDigestAssembler({ programme: deps.programme, media: deps.media, posts, facility: deps.facility, publicUrl, now });
   const planner = createDigestPlanner({ db, logger: deps.logger, projects, posts, subscribers, assembler, host, now });
   const previews = createDigestPreview({ db, mailer: deps.mailer, projects, subscribers, assembler, publicUrl, host, now });
   const web = createDigestWebCopy({ db, media: deps.media, publicUrl, tokenSecret: deps.tokenSecret, unsubscribeMailto: deps.unsubscribeMailto, now });

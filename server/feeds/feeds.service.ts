@@ -1,3 +1,4 @@
+import type { FacilityAnswer } from "#shared/schemas/facility.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import type { PostsService } from "../posts/posts.service.ts";
@@ -30,8 +31,34 @@ function previewImage(p: MediaPicture | null): { url: string; width: number; hei
   return best ? { url: best.url, width: best.width, height: best.height, alt: p.altText ?? "" } : null;
 }
 
-export function createFeedsService(deps: { projects: ProjectsService; posts: PostsService; stories: StoriesService; publicUrl: string }) {
-  const { projects, posts, stories } = deps;
+/** The facility as the public sees it (the facility module's read, asked as a visitor). */
+export interface PublicFacilityReader {
+  facility(slug: string, query: { at?: string }, reader: "public"): Promise<FacilityAnswer>;
+}
+
+const longDate = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
+const figure = new Intl.NumberFormat("en-GB", { maximumFractionDigits: 1 });
+const dayWords = (date: string) => longDate.format(new Date(`${date.slice(0, 10)}T00:00:00Z`));
+
+/**
+ * The facility page's description for link previews and readers without JavaScript: each
+ * public block's racks, IT load, density and ready-for-service date, in one paragraph.
+ */
+export function facilityDescription(projectName: string, f: Pick<FacilityAnswer, "blocks">): string {
+  if (f.blocks.length === 0) return `Capacity and readiness of ${projectName}: not published yet.`;
+  const blocks = f.blocks.map((b) => {
+    const ready = b.readyForService
+      ? "ready for service"
+      : b.forecastReadyDate
+        ? `ready for service: forecast ${dayWords(b.forecastReadyDate)}${b.baselineReadyDate && b.baselineReadyDate !== b.forecastReadyDate ? ` (planned ${dayWords(b.baselineReadyDate)})` : ""}`
+        : "ready-for-service date not set";
+    return `${b.name}: ${figure.format(b.racks)} racks, ${figure.format(b.itKw)} kW IT, up to ${figure.format(b.maxKwPerRack)} kW per rack, ${ready}.`;
+  });
+  return [`Capacity blocks of ${projectName}.`, ...blocks].join(" ");
+}
+
+export function createFeedsService(deps: { projects: ProjectsService; posts: PostsService; stories: StoriesService; facility: PublicFacilityReader; publicUrl: string }) {
+  const { projects, posts, stories, facility } = deps;
   const base = deps.publicUrl.replace(/\/+$/, "");
   const host = new URL(base).hostname;
   const abs = (path: string) => (path.startsWith("/") ? base + path : path);
@@ -77,7 +104,7 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
           textElement("updated", p.updatedAt.toISOString()),
           p.publishedAt ? textElement("published", p.publishedAt.toISOString()) : "",
           element("author", {}, textElement("name", p.authorName)),
-          ...p.tags.map((t) => element("category", { term: t.value, label: t.value })),
+          ...p.tags.map((t) => element("category", { term: t.value, label: t.name ?? t.value })),
           p.summary ? textElement("summary", p.summary, { type: "text" }) : "",
           textElement("content", absolutizeHtml(p.html, base), { type: "html" }),
         ]),
@@ -110,7 +137,7 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
       const slugOf = new Map(list.map((p) => [p.id, p.slug]));
       const urls: Array<{ loc: string; lastmod?: Date }> = [{ loc: `${base}/` }];
       for (const p of list) {
-        urls.push({ loc: `${base}/projects/${p.slug}` }, { loc: `${base}/projects/${p.slug}/updates` }, { loc: `${base}/projects/${p.slug}/gallery` });
+        urls.push({ loc: `${base}/projects/${p.slug}` }, { loc: `${base}/projects/${p.slug}/updates` }, { loc: `${base}/projects/${p.slug}/gallery` }, { loc: `${base}/projects/${p.slug}/facility` });
       }
       for (const a of postAddresses) {
         const project = slugOf.get(a.projectId);
@@ -165,6 +192,22 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
             siteName: found.project.name,
             image: previewImage(found.story.cover),
             published: found.story.publishedAt,
+          }),
+        };
+      }
+      const facilityPage = /^\/projects\/([a-z0-9-]{1,100})\/facility\/?$/.exec(path);
+      if (facilityPage) {
+        const project = await projects.get(facilityPage[1]!).catch(() => null);
+        if (!project) return null;
+        const seen = await facility.facility(project.slug, {}, "public");
+        return {
+          head: head({
+            title: "Capacity and readiness",
+            description: facilityDescription(project.name, seen),
+            url: `${base}/projects/${project.slug}/facility`,
+            type: "website",
+            siteName: project.name,
+            image: null,
           }),
         };
       }

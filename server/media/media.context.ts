@@ -1,3 +1,4 @@
+import type { FacilityForTags } from "#shared/domain/facility-tags.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { AppError } from "../core/app-error.ts";
 import type { Db } from "../db/knex.ts";
@@ -25,6 +26,8 @@ export interface MediaContext {
   programme: Pick<ProgrammeService, "allAreas" | "milestoneNames" | "milestoneIdsOf">;
   /** People's names (who uploaded, who reviewed) are the users module's. */
   accounts: Pick<AccountsService, "namesOf">;
+  /** The capacity blocks and plant systems a photo may be tagged with are the facility's. */
+  facility: FacilityForTags;
   limits: MediaLimits;
 }
 

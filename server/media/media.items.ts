@@ -43,7 +43,7 @@ function toItem(r: MediaRecord, tags: MediaTags | undefined, variants: VariantRe
     placeholder: r.placeholder,
     dominantColor: r.dominantColor,
     isIllustration: r.isIllustration,
-    tags: tags ?? { areas: [], systems: [], milestones: [] },
+    tags: tags ?? { areas: [], systems: [], milestones: [], blocks: [], plants: [] },
     variants: (variants ?? []).map((v) => ({ url: variantUrl(v.storageKey), width: v.width, height: v.height, format: v.format, bytes: v.bytes })),
     originalUrl: `/api/media/${r.id}/original`,
     uploadedBy: nameOf(r.uploadedBy),

@@ -1,3 +1,5 @@
+import { facilityTagProblem, type FacilityTagKind } from "#shared/domain/facility-tags.ts";
+import type { Audience } from "#shared/schemas/common.ts";
 import {
   SECURITY_SYSTEM,
   type BulkTagInput,
@@ -5,6 +7,7 @@ import {
   type MediaListQuery,
   type MediaListResponse,
   type MediaPatchInput,
+  type MediaTags,
   type MediaTagsPatch,
   type MediaVocabulary,
   type ReviewInput,
@@ -40,8 +43,24 @@ function tagEntries(t: MediaTagsPatch | undefined): Array<[TagKind, string[]]> {
   if (t.areas) out.push(["area", [...new Set(t.areas)]]);
   if (t.systems) out.push(["system", [...new Set(t.systems)]]);
   if (t.milestones) out.push(["milestone", [...new Set(t.milestones)].map(String)]);
+  if (t.blocks) out.push(["block", [...new Set(t.blocks)].map(String)]);
+  if (t.plants) out.push(["plant", [...new Set(t.plants)].map(String)]);
   return out;
 }
+
+/**
+ * The widest audience a photo may reach: a restricted one stays with staff; any other may be
+ * cleared and published, so it may not name an internal block or system. Investor-only ones are
+ * allowed, as every reader sees only the blocks and systems of their own audience.
+ */
+const reachOf = (sensitivity: Sensitivity): Audience => (sensitivity === "restricted" ? "internal" : "investor");
+
+type FacilityTags = Pick<MediaTags, "blocks" | "plants">;
+
+const FACILITY_KINDS: Array<[FacilityTagKind, "blocks" | "plants"]> = [
+  ["block", "blocks"],
+  ["plant", "plants"],
+];
 
 /**
  * Tagging a photo with the security system sends it (back) to the review queue: a cleared
@@ -55,8 +74,26 @@ function securityReview(before: MediaRecord, beforeSystems: readonly string[], a
 
 /** The site office's library: find photos, describe and tag them, and a lead's review. */
 export function createMediaLibrary(ctx: MediaContext, items: ItemReader) {
-  const { db, projects, programme, limits } = ctx;
+  const { db, projects, programme, facility, limits } = ctx;
   const { itemsOf, getItem } = items;
+
+  /**
+   * Refuses block and plant tags that are not of the photo's project, or that a photo of this
+   * sensitivity may not carry (422, naming the field). A tag the photo already had whose block
+   * or system has since been deleted is let be: it names nothing any more.
+   */
+  async function checkFacilityTags(projectId: number, tags: FacilityTags, sensitivity: Sensitivity, prefix: string, had: FacilityTags): Promise<void> {
+    if (tags.blocks.length === 0 && tags.plants.length === 0) return;
+    const subjects = await facility.tagSubjects(projectId);
+    const fields: Record<string, string> = {};
+    for (const [kind, key] of FACILITY_KINDS) {
+      const exists = (id: number) => subjects.some((s) => s.kind === kind && s.id === id);
+      const ids = tags[key].filter((id) => exists(id) || !had[key].includes(id));
+      const problem = facilityTagProblem(kind, ids, subjects, reachOf(sensitivity));
+      if (problem) fields[`${prefix}.${key}`] = sensitivity === "restricted" ? problem : `${problem}: only a restricted photo may carry it`;
+    }
+    if (Object.keys(fields).length > 0) throw new AppError("invalid_tags", `Check ${Object.entries(fields).map(([k, v]) => `${k}: ${v}`).join("; ")}.`, 422, fields);
+  }
 
   async function checkMilestones(projectId: number, ids: readonly number[], field: string): Promise<void> {
     if (ids.length === 0) return;
@@ -107,6 +144,11 @@ export function createMediaLibrary(ctx: MediaContext, items: ItemReader) {
         if (!before) throw notFound("That photo");
         const beforeTags = (await tagsOf(trx, [id])).get(id)!;
         if (patch.tags?.milestones) await checkMilestones(before.projectId, patch.tags.milestones, "tags.milestones");
+        // Block and plant tags as they will stand, against the sensitivity the photo will have.
+        if (patch.tags?.blocks || patch.tags?.plants || patch.sensitivity) {
+          const after = { blocks: patch.tags?.blocks ?? beforeTags.blocks, plants: patch.tags?.plants ?? beforeTags.plants };
+          await checkFacilityTags(before.projectId, after, patch.sensitivity ?? before.sensitivity, "tags", beforeTags);
+        }
         for (const [kind, values] of tagEntries(patch.tags)) await replaceTags(trx, id, kind, values);
         const u: MediaUpdate = {};
         if (patch.altText !== undefined) u.altText = patch.altText;
@@ -140,6 +182,9 @@ export function createMediaLibrary(ctx: MediaContext, items: ItemReader) {
         for (const [kind, values] of tagEntries(input.remove)) await removeTags(trx, ids, kind, values);
         for (const [kind, values] of tagEntries(input.add)) await addTags(trx, ids, kind, values);
         const after = await tagsOf(trx, ids);
+        if (input.add?.blocks?.length || input.add?.plants?.length) {
+          for (const r of records) await checkFacilityTags(r.projectId, after.get(r.id)!, r.sensitivity, "add", before.get(r.id)!);
+        }
         for (const r of records) {
           const u = securityReview(r, before.get(r.id)!.systems, after.get(r.id)!.systems);
           await updateMedia(trx, r.id, u);
@@ -154,6 +199,10 @@ export function createMediaLibrary(ctx: MediaContext, items: ItemReader) {
       return db.transaction(async (trx) => {
         const item = await findMediaById(trx, id, true);
         if (!item) throw notFound("That photo");
+        if (input.sensitivity === "cleared") {
+          const tags = (await tagsOf(trx, [id])).get(id)!;
+          await checkFacilityTags(item.projectId, tags, "cleared", "tags", tags);
+        }
         await updateMedia(trx, id, { sensitivity: input.sensitivity, flaggedForReview: false, reviewedBy: actor.user?.id ?? null, reviewedAt: new Date() });
         return getItem(id, trx);
       });

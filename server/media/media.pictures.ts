@@ -1,7 +1,9 @@
 import type { Knex } from "knex";
+import type { Viewer } from "#shared/domain/audience.ts";
+import { visibleFacilitySubject, visibleFacilityTags } from "#shared/domain/facility-tags.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { Gallery, GalleryPhoto, GalleryQuery, MediaPicture, MediaStatus, PictureVariant, Sensitivity, VariantFormat } from "#shared/schemas/media.ts";
-import { AppError } from "../core/app-error.ts";
+import { AppError, notFound } from "../core/app-error.ts";
 import type { MediaContext } from "./media.context.ts";
 import { variantUrl } from "./media.items.ts";
 import { countMediaOfProject, findMediaByIds, listGalleryMedia, mediaTaggedWithMilestone, replaceUsages, tagsOf, variantsOf } from "./media.repository.ts";
@@ -11,7 +13,7 @@ import { countMediaOfProject, findMediaByIds, listGalleryMedia, mediaTaggedWithM
  * publishing checks, the usages that decide who may fetch a derivative, pictures and the gallery.
  */
 export function createMediaPictures(ctx: MediaContext) {
-  const { db, projects } = ctx;
+  const { db, projects, facility } = ctx;
 
   /** What rendering a `<picture>` needs, for each existing photo asked for. */
   async function pictureFor(ids: number[]): Promise<Map<number, MediaPicture>> {
@@ -84,10 +86,16 @@ export function createMediaPictures(ctx: MediaContext) {
 
     /**
      * The project's gallery for a reader of the given audiences: cleared photos used in published
-     * content they may see, newest capture first, filtered by area, system and month.
+     * content they may see, newest capture first, filtered by area, system, capacity block, plant
+     * system and month. A block or system the reader may not see is not found (404), so the
+     * filter tells nothing of it; each photo names only the blocks and systems the reader may see.
      */
     async gallery(slug: string, audiences: Audience[], f: GalleryQuery): Promise<Gallery> {
       const project = await projects.get(slug);
+      const viewer: Viewer = audiences.includes("internal") ? "staff" : audiences.includes("investor") ? "investor" : "public";
+      const subjects = await facility.tagSubjects(project.id);
+      if (f.block && !visibleFacilitySubject("block", f.block, subjects, viewer)) throw notFound("That capacity block");
+      if (f.plant && !visibleFacilitySubject("plant", f.plant, subjects, viewer)) throw notFound("That plant system");
       const rows = await listGalleryMedia(db, project.id, audiences);
       const ids = rows.map((r) => r.id);
       const [tags, pictures] = await Promise.all([tagsOf(db, ids), pictureFor(ids)]);
@@ -97,11 +105,20 @@ export function createMediaPictures(ctx: MediaContext) {
         if (!picture) continue;
         const t = tags.get(r.id);
         const month = r.takenAt && /^\d{4}-\d{2}/.test(r.takenAt) ? r.takenAt.slice(0, 7) : r.createdAt.toISOString().slice(0, 7);
-        all.push({ ...picture, areas: t?.areas ?? [], systems: t?.systems ?? [], month });
+        const facilityTags = visibleFacilityTags(
+          [...(t?.blocks ?? []).map((id) => ({ kind: "block", value: String(id) })), ...(t?.plants ?? []).map((id) => ({ kind: "plant", value: String(id) }))],
+          subjects,
+          viewer,
+        ).map(({ kind, id, name }) => ({ kind, id, name }));
+        all.push({ ...picture, areas: t?.areas ?? [], systems: t?.systems ?? [], facilityTags, month });
       }
+      const tagged = (kind: "block" | "plant", id: number | undefined) => (p: GalleryPhoto) => !id || p.facilityTags.some((x) => x.kind === kind && x.id === id);
       const uniq = <T extends string>(xs: T[]) => [...new Set(xs)].sort();
       return {
-        items: all.filter((p) => (!f.area || p.areas.includes(f.area)) && (!f.system || p.systems.includes(f.system)) && (!f.month || p.month === f.month)),
+        items: all
+          .filter((p) => (!f.area || p.areas.includes(f.area)) && (!f.system || p.systems.includes(f.system)) && (!f.month || p.month === f.month))
+          .filter(tagged("block", f.block))
+          .filter(tagged("plant", f.plant)),
         areas: uniq(all.flatMap((p) => p.areas)),
         systems: uniq(all.flatMap((p) => p.systems)),
         months: uniq(all.flatMap((p) => (p.month ? [p.month] : []))).reverse(),

@@ -164,6 +164,8 @@ export async function listMedia(
   if (f.area) base.whereExists(hasTag("area", f.area));
   if (f.system) base.whereExists(hasTag("system", f.system));
   if (f.milestone) base.whereExists(hasTag("milestone", String(f.milestone)));
+  if (f.block) base.whereExists(hasTag("block", String(f.block)));
+  if (f.plant) base.whereExists(hasTag("plant", String(f.plant)));
   if (f.takenFrom) base.where("i.taken_on", ">=", f.takenFrom);
   if (f.takenTo) base.where("i.taken_on", "<=", f.takenTo);
   if (f.sensitivity) base.where("i.sensitivity", f.sensitivity);
@@ -226,7 +228,7 @@ export async function updateMedia(q: Q, id: number, u: MediaUpdate): Promise<voi
 
 // Tags
 
-const EMPTY_TAGS = (): MediaTags => ({ areas: [], systems: [], milestones: [] });
+const EMPTY_TAGS = (): MediaTags => ({ areas: [], systems: [], milestones: [], blocks: [], plants: [] });
 
 export async function tagsOf(q: Q, ids: readonly number[]): Promise<Map<number, MediaTags>> {
   const out = new Map<number, MediaTags>(ids.map((id) => [id, EMPTY_TAGS()]));
@@ -236,10 +238,12 @@ export async function tagsOf(q: Q, ids: readonly number[]): Promise<Map<number, 
     const tags = out.get(Number(r.media_id)) ?? EMPTY_TAGS();
     if (r.kind === "area") tags.areas.push(r.value);
     else if (r.kind === "system") tags.systems.push(r.value as System);
-    else tags.milestones.push(Number(r.value));
+    else if (r.kind === "milestone") tags.milestones.push(Number(r.value));
+    else if (r.kind === "block") tags.blocks.push(Number(r.value));
+    else if (r.kind === "plant") tags.plants.push(Number(r.value));
     out.set(Number(r.media_id), tags);
   }
-  for (const tags of out.values()) tags.milestones.sort((a, b) => a - b);
+  for (const tags of out.values()) for (const ids of [tags.milestones, tags.blocks, tags.plants]) ids.sort((a, b) => a - b);
   return out;
 }
 

@@ -1,3 +1,4 @@
+import { NO_FACILITY, type FacilityForTags } from "#shared/domain/facility-tags.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import { createAccountsService } from "../users/users.accounts.ts";
@@ -27,10 +28,12 @@ export function createMediaService(deps: {
   /** The users module's accounts (people's names); by default one over `db` (it keeps no state). */
   accounts?: MediaContext["accounts"];
   limits: MediaLimits;
+  /** The facility's blocks and systems, for block and plant tags (without it, none can be tagged). */
+  facility?: FacilityForTags;
   /** config TOKEN_SECRET; without it no signed link is made or accepted (the seed needs none). */
   tokenSecret?: string;
 }) {
-  const ctx: MediaContext = { db: deps.db, storage: deps.storage, uploads: deps.uploads, projects: deps.projects, programme: deps.programme, accounts: deps.accounts ?? createAccountsService({ db: deps.db }), limits: deps.limits };
+  const ctx: MediaContext = { db: deps.db, storage: deps.storage, uploads: deps.uploads, projects: deps.projects, programme: deps.programme, accounts: deps.accounts ?? createAccountsService({ db: deps.db }), facility: deps.facility ?? NO_FACILITY, limits: deps.limits };
   const items = createItemReader(ctx);
   const { notifyQueued, ...queue } = createMediaQueue(ctx, items);
   return {

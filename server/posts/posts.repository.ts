@@ -92,6 +92,8 @@ export interface ListFilter {
   page: number;
   pageSize: number;
   tag?: string;
+  /** Tagged with each of these (kind and value exactly): a capacity block or plant system. */
+  tagged?: ReadonlyArray<{ kind: "block" | "plant"; value: string }>;
   q?: string;
   status?: PostStatus;
   audience?: Audience;
@@ -106,7 +108,9 @@ export async function listPosts(q: Q, projectId: number, viewer: Viewer, f: List
     const query = visibleTo(q("posts as p").where("p.project_id", projectId), viewer);
     if (viewer === "staff" && f.status) query.andWhere("p.status", f.status);
     if (f.audience) query.andWhere("p.audience", f.audience);
-    if (f.tag) query.whereExists(q("post_tags as t").whereRaw("t.post_id = p.id").andWhere("t.value", f.tag));
+    // Topics only: a block or plant tag is asked for by kind and id (`tagged`), never by its bare number.
+    if (f.tag) query.whereExists(q("post_tags as t").whereRaw("t.post_id = p.id").whereIn("t.kind", ["area", "system"]).andWhere("t.value", f.tag));
+    for (const t of f.tagged ?? []) query.whereExists(q("post_tags as t").whereRaw("t.post_id = p.id").andWhere({ "t.kind": t.kind, "t.value": t.value }));
     if (f.q) query.whereRaw("MATCH (p.title, p.summary, p.plain_text) AGAINST (? IN NATURAL LANGUAGE MODE)", [f.q]);
     return query;
   };

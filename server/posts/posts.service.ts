@@ -1,5 +1,6 @@
 import type { Knex } from "knex";
 import type { Viewer } from "#shared/domain/audience.ts";
+import { facilityTagProblem, NO_FACILITY, visibleFacilitySubject, visibleFacilityTags, type FacilityForTags, type FacilityTagKind, type FacilityTagSubject } from "#shared/domain/facility-tags.ts";
 import { slugFromTitle } from "#shared/domain/publishing-workflow.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
@@ -15,10 +16,11 @@ import {
   type PostPatchInput,
   type PostSummary,
   type PostTag,
+  type PostTagAnswer,
 } from "#shared/schemas/posts.ts";
 import type { PostStatus, PublishingProblem } from "#shared/schemas/publishing.ts";
 import { imageIdsOf, milestoneBlockIdsOf, walkRichText, type RichTextDoc } from "#shared/schemas/rich-text.ts";
-import { AppError } from "../core/app-error.ts";
+import { AppError, notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
@@ -112,12 +114,27 @@ export interface PostsDeps {
   media: MediaForContent;
   /** The publishing workflow (server/publishing): the steps, revisions, history and schedule. */
   publishing: PublishingService;
+  /** The facility's blocks and systems, for block and plant tags (without it, none can be tagged). */
+  facility?: FacilityForTags;
   /** Called after every change that readers could see (public caches drop their copies). */
   onChange?: () => void;
 }
 
+const FACILITY_KINDS: readonly FacilityTagKind[] = ["block", "plant"];
+
+/** The block and plant tags a reader may see, each with its name; the others left out. Area and system tags as they are. */
+function tagsForReader(tags: readonly PostTag[], subjects: readonly FacilityTagSubject[], viewer: Viewer): PostTagAnswer[] {
+  const visible = visibleFacilityTags(tags, subjects, viewer);
+  return tags.flatMap((t) => {
+    if (t.kind !== "block" && t.kind !== "plant") return [t];
+    const s = visible.find((x) => x.kind === t.kind && String(x.id) === t.value);
+    return s ? [{ ...t, name: s.name }] : [];
+  });
+}
+
 export function createPostsService(deps: PostsDeps) {
   const { db, projects, programme, media, publishing } = deps;
+  const facility = deps.facility ?? NO_FACILITY;
   const now = () => projects.now();
 
   /** An update as the publishing workflow sees it: its checks, its rendering for publication, what a revision keeps. */
@@ -177,9 +194,29 @@ export function createPostsService(deps: PostsDeps) {
     return problems;
   }
 
-  /** Refuses media and milestones that are not this project's, before anything is written. */
-  async function checkReferences(project: Project, input: { coverMediaId: number | null; body: RichTextDoc }, milestoneIds: readonly number[]) {
+  /**
+   * Refuses media, milestones, blocks and plant systems that are not this project's, and blocks
+   * and systems the post's audience may not see, before anything is written. A tag the post
+   * already had whose block or system has since been deleted is let be.
+   */
+  async function checkReferences(
+    project: Project,
+    input: { coverMediaId: number | null; body: RichTextDoc },
+    milestoneIds: readonly number[],
+    tagging: { tags: readonly PostTag[]; audience: Audience; had: readonly PostTag[] } | null = null,
+  ) {
     const fields: Record<string, string> = {};
+    if (tagging && tagging.tags.some((t) => t.kind === "block" || t.kind === "plant")) {
+      const subjects = await facility.tagSubjects(project.id);
+      const problems = FACILITY_KINDS.flatMap((kind) => {
+        const exists = (id: number) => subjects.some((s) => s.kind === kind && s.id === id);
+        const hadIt = (id: number) => tagging.had.some((t) => t.kind === kind && t.value === String(id));
+        const ids = tagging.tags.filter((t) => t.kind === kind).map((t) => Number(t.value));
+        const problem = facilityTagProblem(kind, ids.filter((id) => exists(id) || !hadIt(id)), subjects, tagging.audience);
+        return problem ? [problem] : [];
+      });
+      if (problems.length) fields.tags = problems.join("; ");
+    }
     const ids = mediaIdsOf(input);
     if (ids.length) {
       const described = await media.describeForPublishing(ids);
@@ -198,13 +235,18 @@ export function createPostsService(deps: PostsDeps) {
     }
   }
 
-  async function summaries(rows: readonly PostListRecord[]): Promise<PostSummary[]> {
+  /** Rows of one project as summaries for a reader. */
+  async function summaries(projectId: number, rows: readonly PostListRecord[], viewer: Viewer): Promise<PostSummary[]> {
     const ids = rows.map((r) => r.id);
-    const [tags, pictures] = await Promise.all([tagsFor(db, ids), media.pictureFor(rows.flatMap((r) => (r.coverMediaId ? [r.coverMediaId] : [])))]);
-    return rows.map((r) => summaryOf(r, tags.get(r.id) ?? [], r.coverMediaId ? (pictures.get(r.coverMediaId) ?? null) : null));
+    const [tags, pictures, subjects] = await Promise.all([
+      tagsFor(db, ids),
+      media.pictureFor(rows.flatMap((r) => (r.coverMediaId ? [r.coverMediaId] : []))),
+      facility.tagSubjects(projectId),
+    ]);
+    return rows.map((r) => summaryOf(r, tagsForReader(tags.get(r.id) ?? [], subjects, viewer), r.coverMediaId ? (pictures.get(r.coverMediaId) ?? null) : null));
   }
 
-  function summaryOf(r: PostListRecord, tags: PostTag[], cover: MediaPicture | null): PostSummary {
+  function summaryOf(r: PostListRecord, tags: PostTagAnswer[], cover: MediaPicture | null): PostSummary {
     return {
       id: r.id,
       slug: r.slug,
@@ -225,7 +267,7 @@ export function createPostsService(deps: PostsDeps) {
     const viewer = viewerOf(actor);
     const links = await milestoneLinksOf(db, post.id);
     const inline = imageIdsOf(post.body);
-    const [tags, pictures, current] = await Promise.all([tagsFor(db, [post.id]), media.pictureFor(mediaIdsOf(post)), milestonesFor(project, viewer)]);
+    const [tags, pictures, current, subjects] = await Promise.all([tagsFor(db, [post.id]), media.pictureFor(mediaIdsOf(post)), milestonesFor(project, viewer), facility.tagSubjects(project.id)]);
     const milestones: PostMilestone[] = [];
     for (const l of links) {
       const now = current.get(l.milestoneId);
@@ -237,7 +279,7 @@ export function createPostsService(deps: PostsDeps) {
     // Published HTML is the record of what was published; staff previews of unpublished work render afresh.
     const html = viewer === "staff" && post.status !== "published" ? (await renderFor(project, post, links)).html : post.html;
     const detail: PostDetail = {
-      ...summaryOf(post, tags.get(post.id) ?? [], post.coverMediaId ? (pictures.get(post.coverMediaId) ?? null) : null),
+      ...summaryOf(post, tagsForReader(tags.get(post.id) ?? [], subjects, viewer), post.coverMediaId ? (pictures.get(post.coverMediaId) ?? null) : null),
       projectSlug: project.slug,
       html,
       milestones,
@@ -288,7 +330,8 @@ export function createPostsService(deps: PostsDeps) {
       };
       const explicit = input.milestoneIds ?? oldLinks.filter((l) => l.explicit).map((l) => l.milestoneId);
       const links = linksOf(explicit, next.body);
-      await checkReferences(project, next, input.milestoneIds ?? []);
+      const had = input.tags || input.audience ? ((await tagsFor(trx, [post.id])).get(post.id) ?? []) : [];
+      await checkReferences(project, next, input.milestoneIds ?? [], input.tags || input.audience ? { tags: input.tags ?? had, audience: next.audience, had } : null);
       await workflow.moveSlug(trx, post, next.slug);
       await replaceMilestoneLinks(trx, post.id, links);
       if (input.tags) await replaceTags(trx, post.id, input.tags);
@@ -323,15 +366,23 @@ export function createPostsService(deps: PostsDeps) {
     async list(slug: string, query: PostListQuery, actor: Actor): Promise<{ items: PostSummary[]; total: number }> {
       const project = await projects.get(slug);
       const viewer = viewerOf(actor);
+      // A block or system the reader may not see is not found, so the filter tells nothing of it.
+      const subjects = query.block || query.plant ? await facility.tagSubjects(project.id) : [];
+      if (query.block && !visibleFacilitySubject("block", query.block, subjects, viewer)) throw notFound("That capacity block");
+      if (query.plant && !visibleFacilitySubject("plant", query.plant, subjects, viewer)) throw notFound("That plant system");
       const { rows, total } = await listPosts(db, project.id, viewer, {
         page: query.page,
         pageSize: POSTS_PAGE_SIZE,
         tag: query.tag,
+        tagged: [
+          ...(query.block ? [{ kind: "block" as const, value: String(query.block) }] : []),
+          ...(query.plant ? [{ kind: "plant" as const, value: String(query.plant) }] : []),
+        ],
         q: query.q,
         status: viewer === "staff" ? query.status : undefined,
         audience: query.audience,
       });
-      return { items: await summaries(rows), total };
+      return { items: await summaries(project.id, rows, viewer), total };
     },
 
     async create(slug: string, input: PostCreateInput, actor: Actor): Promise<{ id: number; slug: string; status: PostStatus }> {
@@ -339,7 +390,7 @@ export function createPostsService(deps: PostsDeps) {
       const user = actor.user!;
       const coverMediaId = input.coverMediaId ?? null;
       const milestoneIds = input.milestoneIds ?? [];
-      await checkReferences(project, { coverMediaId, body: input.body }, milestoneIds);
+      await checkReferences(project, { coverMediaId, body: input.body }, milestoneIds, { tags: input.tags ?? [], audience: input.audience, had: [] });
       const { html, plainText } = await renderFor(project, { body: input.body, audience: input.audience, coverMediaId }, []);
       return workflow.create(project.id, input.slug ?? slugFromTitle(input.title), input.slug !== undefined, actor, async (trx, postSlug, at) => {
         const id = await insertPost(trx, {
@@ -374,8 +425,8 @@ export function createPostsService(deps: PostsDeps) {
       const project = await projects.get(slug);
       const posts = await listPublicPosts(db, project.id, limit);
       const updated = await latestPublicChange(db, project.id);
-      const tags = await tagsFor(db, posts.map((p) => p.id));
-      return { project, updated, posts: posts.map((p) => ({ ...p, tags: tags.get(p.id) ?? [] })) };
+      const [tags, subjects] = await Promise.all([tagsFor(db, posts.map((p) => p.id)), facility.tagSubjects(project.id)]);
+      return { project, updated, posts: posts.map((p) => ({ ...p, tags: tagsForReader(tags.get(p.id) ?? [], subjects, "public") })) };
     },
 
     /** Published posts of a project in these audiences with `publishedAt` in [from, before), oldest first, with their tags (digests). */
@@ -398,7 +449,7 @@ export function createPostsService(deps: PostsDeps) {
       const project = await projects.get(slug).catch(() => null);
       if (!project) return null;
       const post = await findVisiblePostBySlug(db, project.id, postSlug, "public");
-      if (post) return { post: (await summaries([post]))[0]!, project };
+      if (post) return { post: (await summaries(project.id, [post], "public"))[0]!, project };
       const moved = await workflow.findRedirect(project.id, postSlug, "public");
       return moved ? { redirectTo: moved } : null;
     },

@@ -36,7 +36,8 @@ export type Trx = Knex.Transaction;
  * milestone is on record: it can be removed from the programme but not deleted.
  */
 export interface MilestoneReference {
-  kind: "update" | "story" | "photo";
+  /** `block` and `system`: a capacity block or a plant system of the facility depends on it. */
+  kind: "update" | "story" | "photo" | "block" | "system";
   id: number;
   label: string;
 }
@@ -50,7 +51,7 @@ export interface ProgrammeDeps {
   /** Every programme write leaves an audit entry; the seed, which writes through its own path, may leave it out. */
   audit?: AuditService;
   /**
-   * What else links a milestone (updates, photos). Those modules read the programme, so they
+   * What else links a milestone (updates, photos, the facility's blocks and plant systems). Those modules read the programme, so they
    * are built after it and this is asked only when a milestone is to be deleted.
    */
   references?: (milestoneId: number) => Promise<MilestoneReference[]>;

@@ -1,3 +1,4 @@
+import type { Audience } from "#shared/schemas/common.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import type { MilestoneEventRow, MilestoneMovesRow } from "#shared/schemas/programme.ts";
 import { summariseChanges } from "#shared/domain/programme-changes.ts";
@@ -10,6 +11,16 @@ import { findMilestone, listMilestones, type Viewer } from "./programme.reposito
 
 /** Dates of a range, inclusive, in the project's time zone. */
 type DateRange = { from: string; to: string };
+
+/** A milestone's finish dates as they stood on a day, with what other modules need to show it (or hide it). */
+export interface MilestoneDatesAt {
+  id: number;
+  name: string;
+  audience: Audience;
+  baselineFinish: string;
+  forecastFinish: string | null;
+  actualFinish: string | null;
+}
 
 /**
  * The programme's history: every change of a tracked field is an event, so "what moved since
@@ -51,6 +62,28 @@ export function createHistoryUseCases(ctx: ProgrammeContext) {
     /** Events in [from, to], dates inclusive in the project's time zone, of milestones the caller may see; newest first. */
     async changes(slug: string, range: DateRange, reader: Reader): Promise<MilestoneEventRow[]> {
       return named(await eventsIn(await projects.get(slug), viewerOf(reader), range));
+    },
+
+    /**
+     * Every milestone of the project (any audience, removed or not) that existed when `date` ended
+     * in the project's time zone, with its baseline, forecast and actual finish as they stood then:
+     * today's values with every later change of those fields undone, newest first. Callers filter
+     * by audience themselves (the facility computes readiness over the whole record).
+     */
+    async milestoneDatesAt(projectId: number, date: string): Promise<MilestoneDatesAt[]> {
+      const project = await projects.getById(projectId);
+      const boundary = endOfDateInZone(date, project.timeZone);
+      const records = (await listMilestones(db, projectId, "staff", { removed: "include" })).filter((m) => m.createdAt < boundary);
+      const state = new Map(records.map((m) => [m.id, { id: m.id, name: m.name, audience: m.audience, baselineFinish: m.baselineFinish, forecastFinish: m.forecastFinish, actualFinish: m.actualFinish }]));
+      const later = await listProjectEvents(db, projectId, "staff", { from: boundary, fields: ["baseline_finish", "forecast_finish", "actual_finish"] });
+      for (const e of later) {
+        const m = state.get(e.milestoneId);
+        if (!m) continue;
+        if (e.field === "baseline_finish") m.baselineFinish = e.from ?? m.baselineFinish;
+        else if (e.field === "forecast_finish") m.forecastFinish = e.from;
+        else m.actualFinish = e.from;
+      }
+      return [...state.values()];
     },
 
     /** The changes in [from, to] summarised per milestone (later, earlier, completed, removed…). */

@@ -58,9 +58,11 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
     const versions = await baselinesHolding(trx, m.projectId, m.id);
     if (versions.length > 0) reasons.push(`it is in baseline ${versions.map((n) => `v${n}`).join(", ")}`);
     const refs = deps.references ? await deps.references(m.id) : [];
-    for (const kind of ["update", "story", "photo"] as const) {
+    const nouns = { update: "update", story: "story", photo: "photo", block: "capacity block", system: "plant system" } as const;
+    for (const kind of ["update", "story", "photo", "block", "system"] as const) {
       const of = refs.filter((r) => r.kind === kind);
-      if (of.length > 0) reasons.push(`${of.length === 1 ? `a ${kind} links it` : `${of.length} ${kind === "story" ? "stories" : `${kind}s`} link it`} (${of.map((r) => r.label).join(", ")})`);
+      const one = nouns[kind];
+      if (of.length > 0) reasons.push(`${of.length === 1 ? `a ${one} links it` : `${of.length} ${kind === "story" ? "stories" : `${one}s`} link it`} (${of.map((r) => r.label).join(", ")})`);
     }
     if (m.removal) reasons.push("it has been removed from the programme");
     else if ((await countEventsSince(trx, m.id, m.createdAt)) > 0) reasons.push("its history records changes since it was entered");
@@ -78,6 +80,25 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
     if (plannedStart !== null && plannedStart > baselineFinish) {
       fields.plannedStart = `must not be after the baseline finish (${baselineFinish})`;
     }
+  }
+
+  /**
+   * A write to one milestone, in one transaction: the project's write lock first (writes to one
+   * project queue behind each other), then the milestone's row; 404 when it is not there.
+   */
+  async function changeMilestone<T>(id: number, change: (trx: Trx, m: MilestoneRecord, project: Project) => Promise<T>): Promise<T> {
+    const project = await ctx.projectOfMilestone(id);
+    return db.transaction(async (trx) => {
+      await projects.lockForWrite(trx, project.id);
+      const m = await findMilestone(trx, id, "staff", { forUpdate: true });
+      if (!m) throw notFound("That milestone");
+      return change(trx, m, project);
+    });
+  }
+
+  /** A milestone as the staff see it, read again inside the write that changed it. */
+  async function presentWritten(trx: Trx, id: number, project: Project): Promise<Milestone> {
+    return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
   }
 
   function removedError(m: MilestoneRecord, project: Project): AppError {
@@ -147,16 +168,12 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
         await insertEvents(trx, eventsFor(null, next, { milestoneId: id, projectId: project.id, at, byUserId: actor.user?.id ?? null, note: null }));
         const { phaseId: _phaseId, ...values } = next;
         await record(trx, actor, "milestone_created", { type: "milestone", id, label: next.name }, { project: project.slug, ...values, phase: input.phase, dependsOn });
-        return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
+        return presentWritten(trx, id, project);
       });
     },
 
     async patch(id: number, input: MilestonePatchInput, actor: Actor): Promise<Milestone> {
-      const project = await ctx.projectOfMilestone(id);
-      return db.transaction(async (trx) => {
-        await projects.lockForWrite(trx, project.id);
-        const before = await findMilestone(trx, id, "staff", { forUpdate: true });
-        if (!before) throw notFound("That milestone");
+      return changeMilestone(id, async (trx, before, project) => {
         if (before.removal) throw removedError(before, project);
         if (before.version !== input.version) throw await ctx.conflictWith(trx, id, project);
 
@@ -188,7 +205,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
         if (written || dependenciesChange) {
           await record(trx, actor, "milestone_updated", { type: "milestone", id, label: next.name }, { project: project.slug, changes, note: input.note ?? null });
         }
-        return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
+        return presentWritten(trx, id, project);
       });
     },
 
@@ -197,11 +214,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
      * `onRecord`); otherwise 409 `on_record`, and the caller removes it from the programme.
      */
     async delete(id: number, input: { reason?: string }, actor: Actor): Promise<void> {
-      const project = await ctx.projectOfMilestone(id);
-      await db.transaction(async (trx) => {
-        await projects.lockForWrite(trx, project.id);
-        const m = await findMilestone(trx, id, "staff", { forUpdate: true });
-        if (!m) throw notFound("That milestone");
+      await changeMilestone(id, async (trx, m, project) => {
         await refuseWhileDepended(trx, m, "all");
         const reasons = await onRecord(trx, m);
         if (reasons.length > 0) {
@@ -225,11 +238,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
      * and "what moved" and digests report it to the audiences that may see it.
      */
     async removeFromProgramme(id: number, input: MilestoneRemovalInput, actor: Actor): Promise<Milestone> {
-      const project = await ctx.projectOfMilestone(id);
-      return db.transaction(async (trx) => {
-        await projects.lockForWrite(trx, project.id);
-        const m = await findMilestone(trx, id, "staff", { forUpdate: true });
-        if (!m) throw notFound("That milestone");
+      return changeMilestone(id, async (trx, m, project) => {
         if (m.removal) throw removedError(m, project);
         await refuseWhileDepended(trx, m, "in programme");
         const at = now();
@@ -237,17 +246,13 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
         if ((await setRemoval(trx, id, m.version, { at, byUserId, reason: input.reason }, at)) === 0) throw await ctx.conflictWith(trx, id, project);
         await insertEvents(trx, [{ milestoneId: id, projectId: project.id, field: "removed", from: "false", to: "true", at, byUserId, note: input.reason, baselineVersion: null }]);
         await record(trx, actor, "milestone_removed", { type: "milestone", id, label: m.name }, { project: project.slug, reason: input.reason });
-        return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
+        return presentWritten(trx, id, project);
       });
     },
 
     /** Puts a removed milestone back into the programme, with a reason (a `removed` event "true" → "false"). */
     async restore(id: number, input: MilestoneRemovalInput, actor: Actor): Promise<Milestone> {
-      const project = await ctx.projectOfMilestone(id);
-      return db.transaction(async (trx) => {
-        await projects.lockForWrite(trx, project.id);
-        const m = await findMilestone(trx, id, "staff", { forUpdate: true });
-        if (!m) throw notFound("That milestone");
+      return changeMilestone(id, async (trx, m, project) => {
         if (!m.removal) throw new AppError("not_removed", `${m.name} is in the programme; there is nothing to restore.`, 409);
         const removedPredecessors = (await listMilestones(trx, project.id, "staff", { removed: "only" })).filter((x) => m.dependsOn.includes(x.id));
         if (removedPredecessors.length > 0) {
@@ -259,7 +264,7 @@ export function createMilestoneUseCases(ctx: ProgrammeContext, deps: Pick<Progra
         if ((await setRemoval(trx, id, m.version, null, at)) === 0) throw await ctx.conflictWith(trx, id, project);
         await insertEvents(trx, [{ milestoneId: id, projectId: project.id, field: "removed", from: "true", to: "false", at, byUserId, note: input.reason, baselineVersion: null }]);
         await record(trx, actor, "milestone_restored", { type: "milestone", id, label: m.name }, { project: project.slug, reason: input.reason, removedAt: m.removal.at.toISOString(), removedReason: m.removal.reason });
-        return presentOne((await findMilestone(trx, id, "staff"))!, staffView(project), trx);
+        return presentWritten(trx, id, project);
       });
     },
 

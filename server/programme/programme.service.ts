@@ -3,10 +3,10 @@ import { createBaselineUseCases } from "./programme.baselines.ts";
 import { createProgrammeContext, type MilestoneReference, type ProgrammeDeps, type Reader } from "./programme.context.ts";
 import { createFileUseCases } from "./programme.files.ts";
 import { createHealthUseCases } from "./programme.health.ts";
-import { createHistoryUseCases } from "./programme.history.ts";
+import { createHistoryUseCases, type MilestoneDatesAt } from "./programme.history.ts";
 import { createMilestoneUseCases } from "./programme.milestones.ts";
 
-export type { MilestoneReference, ProgrammeHealthResponse, Reader };
+export type { MilestoneDatesAt, MilestoneReference, ProgrammeHealthResponse, Reader };
 
 /**
  * The programme service: one object for the router and the other modules, made of the
@@ -19,7 +19,7 @@ export type { MilestoneReference, ProgrammeHealthResponse, Reader };
  * - files (programme.files.ts): CSV export and import.
  * Reads take the caller, or, from another module reading for an audience, that audience's
  * viewer (`"public"`, `"investor"`, `"staff"`): no made-up user. Other modules also ask by
- * project id: `publicAreas`, `allAreas`, `milestoneNames`, `milestoneIdsOf`.
+ * project id: `publicAreas`, `allAreas`, `milestoneNames`, `milestoneIdsOf`, `milestoneDatesAt`.
  */
 export function createProgrammeService(deps: ProgrammeDeps) {
   const ctx = createProgrammeContext(deps);

@@ -19,6 +19,7 @@ function toProject(r: Record<string, unknown>): Project {
       behindWorkingDays: Number(r.behind_working_days),
       weekendDays: JSON.parse(String(r.weekend_days ?? "[6,7]")) as number[],
       holidays: r.holidays ? (JSON.parse(String(r.holidays)) as string[]) : [],
+      availableFromLevel: r.available_from_level == null ? 4 : Number(r.available_from_level),
     },
   };
 }

@@ -6,6 +6,7 @@ import { seedDigests } from "./digests.seed.ts";
 import { seedProgramme } from "./programme.seed.ts";
 import { seedMedia } from "./media.seed.ts";
 import { seedPosts } from "./posts.seed.ts";
+import { seedFacility } from "./facility.seed.ts";
 
 export const DEMO_PROJECT_SLUG = "aldermere-phase-2";
 
@@ -60,6 +61,9 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
   if (photos.rewritten > 0) created.push(`${photos.rewritten} photo originals rewritten without their location`);
   // Updates and the photo story (after the photos and the programme they show).
   created.push(...(await seedPosts(db, DEMO_PROJECT_SLUG)).created);
+  // The facility (after the programme its blocks depend on, and the photos and updates it tags).
+  const facilityLead = await db("users").where({ email: "lead@kestrel.example" }).first("id");
+  created.push(...(await seedFacility(db, Number(project.id), { byUserId: facilityLead ? Number(facilityLead.id) : null })).created);
   created.push(...(await seedSubscribers(db, DEMO_PROJECT_SLUG)).created);
   created.push(...(await seedDigests(db, DEMO_PROJECT_SLUG)).created);
   return { created };

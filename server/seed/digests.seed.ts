@@ -64,6 +64,7 @@ export async function seedDigests(db: Knex, projectSlug: string, now: Date = new
             projectUrl: `/projects/${project.slug}`,
             posts: posts.map((p) => ({ title: p.title, summary: p.summary, url: `/projects/${project.slug}/updates/${p.slug}`, publishedAt: p.publishedAt, image: null })),
             moves: [],
+            facility: [],
             dueSoon: [],
             figures: { percentComplete: null, forecastReady: null, previousPercent: null, previousForecast: null },
           });

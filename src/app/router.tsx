@@ -64,6 +64,7 @@ function routes(qc: QueryClient): RouteObject[] {
   const subscribers = () => import("../features/subscribers/routes.tsx");
   const auth = () => import("../features/auth/routes.tsx");
   const programme = () => import("../features/programme/routes.tsx");
+  const facility = () => import("../features/facility/routes.tsx");
   const media = () => import("../features/media/routes.tsx");
   const stories = () => import("../features/stories/routes.tsx");
   const outbox = () => import("../features/outbox/routes.tsx");
@@ -90,6 +91,10 @@ function routes(qc: QueryClient): RouteObject[] {
         page(qc, "projects/:slug/timeline", async () => {
           const m = await import("../features/programme/public-routes.tsx");
           return { Component: m.PublicTimelinePage, loader: m.publicTimelineLoader };
+        }, { what: "project" }),
+        page(qc, "projects/:slug/facility", async () => {
+          const m = await import("../features/public-site/facility-routes.tsx");
+          return { Component: m.FacilityPage, loader: m.facilityLoader };
         }, { what: "project" }),
         page(qc, "subscribe", async () => ({ Component: (await subscribers()).SubscribePage, loader: (await subscribers()).subscribeLoader })),
         page(qc, "projects/:slug/subscribe", async () => ({ Component: (await subscribers()).ProjectSubscribePage, loader: (await subscribers()).projectSubscribeLoader }), { what: "project" }),
@@ -123,6 +128,8 @@ function routes(qc: QueryClient): RouteObject[] {
       page(qc, undefined, async () => ({ Component: (await import("./pages/office-home.tsx")).OfficeHomePage }), OFFICE),
       page(qc, "programme", async () => ({ Component: (await programme()).ProgrammePage, loader: (await programme()).programmeLoader }), { ...OFFICE, what: "project" }),
       page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage, loader: (await programme()).siteWalkLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "facility", async () => ({ Component: (await facility()).FacilityPage, loader: (await facility()).facilityLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "facility/walk", async () => ({ Component: (await facility()).FacilityWalkPage, loader: (await facility()).facilityWalkLoader }), { ...OFFICE, what: "project" }),
       page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage, loader: (await media()).mediaLibraryLoader }), OFFICE),
       page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage, loader: (await media()).mediaReviewLoader }), OFFICE),
       page(qc, "updates", async () => {

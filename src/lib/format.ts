@@ -1,4 +1,5 @@
 import type { System } from "#shared/schemas/programme.ts";
+import { ApiError } from "./api-client.ts";
 
 const dateFmt = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
 
@@ -32,4 +33,15 @@ export const ROLE_LABEL = { admin: "Administrator", lead: "Project lead", market
 /** Applies a server's field errors to a react-hook-form form. */
 export function applyFieldErrors(fields: Record<string, string>, setError: (name: never, e: { message: string }) => void): void {
   for (const [name, message] of Object.entries(fields)) setError(name as never, { message });
+}
+
+/**
+ * Shows a refused request in the form: the server's field errors beside their fields or, when it
+ * names no field, its message beside `fallback` (when given). A failure that is not the server's
+ * answer is left to the mutation cache.
+ */
+export function applyApiError(e: unknown, setError: (name: never, e: { message: string }) => void, fallback?: string): void {
+  if (!(e instanceof ApiError)) return;
+  if (Object.keys(e.fields).length) applyFieldErrors(e.fields, setError);
+  else if (fallback !== undefined) applyFieldErrors({ [fallback]: e.message }, setError);
 }

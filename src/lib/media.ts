@@ -1,6 +1,6 @@
 import { queryOptions, type QueryKey } from "@tanstack/react-query";
 import type { MediaItem, MediaListResponse, MediaPicture } from "#shared/schemas/media.ts";
-import { api, qs } from "./api-client.ts";
+import { api, pageCount, qs } from "./api-client.ts";
 
 /** What the photo pickers of the editors narrow the library by. */
 export interface PickerFilters {
@@ -47,4 +47,21 @@ export function pictureOfMediaItem(item: MediaItem): MediaPicture {
 /** What a library photo shows, in words: its alt text, else its caption, else its file name. */
 export function mediaItemTitle(item: MediaItem): string {
   return item.altText?.trim() || item.caption?.trim() || item.name;
+}
+
+/**
+ * What a photo picker shows of one page of the library: its items, how many pages there are,
+ * and choosing one by id. A restricted photo is listed but cannot be chosen: it never appears
+ * in public or investor content.
+ */
+export function pickerPage(data: MediaListResponse | undefined, onChoose: (item: MediaItem, picture: MediaPicture) => void): { items: MediaItem[]; pages: number; choose: (id: number) => void } {
+  const items = data?.items ?? [];
+  return {
+    items,
+    pages: data ? pageCount(data.total, data.pageSize) : 1,
+    choose: (id) => {
+      const item = items.find((i) => i.id === id);
+      if (item && item.sensitivity !== "restricted") onChoose(item, pictureOfMediaItem(item));
+    },
+  };
 }

@@ -200,6 +200,12 @@ describe("text fields of the shared schemas", () => {
     expect([...ANSWERS].filter((a) => !schemas.has(a))).toEqual([]);
   });
 
+  it("walks the facility's input schemas and leaves its answers out (grouped in FACILITY_ANSWERS, as the programme's are in PROGRAMME_ANSWERS)", () => {
+    const paths = textFields.map((f) => f.path);
+    for (const input of ["facility.BlockCreateInputSchema.name", "facility.SystemPatchInputSchema.notes", "facility.UnitStageInputSchema.note", "facility.FeatureCreateInputSchema.detail"]) expect(paths).toContain(input);
+    expect(found.filter((f) => /^facility\.\w*(Answer|Event)Schema\./.test(f.path)).map((f) => f.path)).toEqual([]);
+  });
+
   describe.each(textFields.map((f) => [f.path, f] as const))("%s", (_path, field) => {
     it("accepts ordinary text, with letters from beyond the Basic Multilingual Plane", () => {
       const r = field.schema.safeParse("Chillers on their plinths — Hall 2A 🏗");

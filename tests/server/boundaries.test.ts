@@ -23,6 +23,7 @@ const OWNERS: Record<string, readonly string[]> = {
   auth: ["sessions"],
   digests: ["digest_runs", "digest_contents", "digest_deliveries"],
   enquiries: ["enquiries"],
+  facility: ["capacity_blocks", "capacity_block_milestones", "plant_systems", "plant_system_blocks", "plant_system_milestones", "plant_units", "site_features", "facility_events"],
   mail: ["mail_messages", "mail_recipients"],
   media: ["media_items", "media_variants", "media_tags", "media_jobs", "media_usages"],
   posts: ["posts", "post_milestones", "post_tags", "post_media"],

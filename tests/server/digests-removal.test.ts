@@ -1,8 +1,6 @@
-import { randomBytes } from "node:crypto";
 import { beforeAll, describe, expect, it } from "vitest";
-import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { lastMailId, type TestApp } from "../helpers/app.ts";
-import { scheduledRun } from "../helpers/digests.ts";
+import { digestSubscriber, digestsTo as digestMail, scheduledRun } from "../helpers/digests.ts";
 import { createMilestone, createProject, useAppAsEveryRole, type EveryRole } from "./posts-fixtures.ts";
 
 const app = useAppAsEveryRole();
@@ -11,17 +9,8 @@ let as: EveryRole;
 beforeAll(() => ({ t, as } = app));
 
 const DAY = 86_400_000;
-
-async function subscriber(projectId: number, audience: "public" | "investor") {
-  const email = `removal-${audience}-${randomBytes(3).toString("hex")}@example.org`;
-  await t.db("subscribers").insert({ project_id: projectId, email, email_hash: hashAddress(email), name: audience, interest: audience === "investor" ? "investor" : "prospect", audience, frequency: "weekly", topics_key: "all", status: "confirmed", confirmed_at: new Date() });
-  return email;
-}
-
-async function digestsTo(email: string, after: number): Promise<string[]> {
-  const rows = await t.db("mail_messages as m").join("mail_recipients as r", "r.message_id", "m.id").where("r.address", email).andWhere("m.id", ">", after).andWhere("m.message_id", "like", "<digest.%").select("m.text");
-  return rows.map((r: { text: string }) => r.text);
-}
+const subscriber = (projectId: number, audience: "public" | "investor") => digestSubscriber(t, projectId, audience, "removal");
+const digestsTo = async (email: string, after: number) => (await digestMail(t, email, after)).map((m) => m.text);
 
 describe("a weekly digest reports milestones removed from the programme", () => {
   it("to the audiences that could see each one, with the reason, and to no one else", async () => {

@@ -77,7 +77,7 @@ describe("PATCH /api/media/:id", () => {
     const cleared = await patch(marketing, p.id, { credit: "", tags: { areas: [] } }).expect(200);
     expect(cleared.body.credit).toBeNull();
     // Only the kinds named are replaced.
-    expect(cleared.body.tags).toEqual({ areas: [], systems: ["cooling"], milestones: [milestoneId] });
+    expect(cleared.body.tags).toEqual({ areas: [], systems: ["cooling"], milestones: [milestoneId], blocks: [], plants: [] });
   });
 
   it("refuses a focal point outside 0..1, unknown fields and an empty patch with 400 naming the field, changing nothing", async () => {
@@ -157,11 +157,11 @@ describe("POST /api/media/bulk-tags", () => {
       .expect(200);
     expect(res.body.updated).toBe(2);
     for (const item of res.body.items as MediaItem[]) {
-      expect(item.tags).toEqual({ areas: ["Hall 2A"], systems: ["security"], milestones: [milestoneId] });
+      expect(item.tags).toEqual({ areas: ["Hall 2A"], systems: ["security"], milestones: [milestoneId], blocks: [], plants: [] });
       expect(item.flaggedForReview).toBe(true);
     }
     const untouched = await marketing.agent.get(`/api/media/${c.id}`).expect(200);
-    expect(untouched.body.tags).toEqual({ areas: [], systems: [], milestones: [] });
+    expect(untouched.body.tags).toEqual({ areas: [], systems: [], milestones: [], blocks: [], plants: [] });
   });
 
   it("an unknown photo among the ids refuses the whole request with 404 and tags none", async () => {

@@ -33,6 +33,18 @@ export interface MatrixIds {
   otherSubscriber: number;
   enquiry: number;
   digestRun: number;
+  /** A project of the matrix's own facility (made through the API), with blocks, systems, units and features of each audience. */
+  facilitySlug: string;
+  internalBlock: number;
+  investorBlock: number;
+  publicBlock: number;
+  internalSystem: number;
+  publicSystem: number;
+  internalUnit: number;
+  investorUnit: number;
+  publicUnit: number;
+  internalFeature: number;
+  publicFeature: number;
 }
 
 export interface MatrixRow {
@@ -112,6 +124,23 @@ const REAL_OBJECT_ROWS: MatrixRow[] = [
   { method: "get", path: (ids) => `/api/enquiries/${ids.enquiry}`, expect: staffOnly(200) },
   { method: "patch", path: (ids) => `/api/enquiries/${ids.enquiry}`, body: {}, expect: staffOnly(400) },
   { method: "get", path: (ids) => `/api/digests/runs/${ids.digestRun}`, expect: staffOnly(200) },
+  // Facility: each caller reads the facility their audience allows; a unit's history follows its system's audience; writes are for leads and admins.
+  { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/facility`, expect: all(200) },
+  { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/facility?at=2026-06-30`, expect: { admin: 200, lead: 200, marketing: 200, investor: 403, anonymous: 403 } },
+  { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/facility/events`, expect: staffOnly(200) },
+  { method: "patch", path: (ids) => `/api/facility/blocks/${ids.internalBlock}`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/facility/blocks/${ids.investorBlock}`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/facility/blocks/${ids.publicBlock}`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/facility/systems/${ids.internalSystem}`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/facility/systems/${ids.publicSystem}`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/facility/systems/${ids.internalSystem}/units`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/facility/units/${ids.internalUnit}`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/facility/units/${ids.internalUnit}/stage`, body: {}, expect: writers(400) },
+  { method: "get", path: (ids) => `/api/facility/units/${ids.internalUnit}/events`, expect: staffSeeOthersNotFound(200) },
+  { method: "get", path: (ids) => `/api/facility/units/${ids.investorUnit}/events`, expect: investorAudience(200) },
+  { method: "get", path: (ids) => `/api/facility/units/${ids.publicUnit}/events`, expect: all(200) },
+  { method: "patch", path: (ids) => `/api/facility/features/${ids.internalFeature}`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/facility/features/${ids.publicFeature}`, body: {}, expect: writers(400) },
 ];
 
 export const ROLE_MATRIX: MatrixRow[] = [
@@ -285,6 +314,27 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: "/projects/aldermere-phase-2/updates/no-such-update", expect: all(200) },
   { method: "get", path: "/projects/aldermere-phase-2/stories/no-such-story", expect: all(200) },
   { method: "get", path: "/api/projects/aldermere-phase-2/gallery", expect: all(200) },
+  // Facility (decision 029): the fixed read for everyone by audience; another day for staff; writes for leads and admins.
+  { method: "get", path: `${DEMO_PROGRAMME}/facility`, expect: all(200) },
+  { method: "get", path: "/api/projects/no-such-project/facility", expect: all(404) },
+  { method: "get", path: `${DEMO_PROGRAMME}/facility?at=not-a-day`, expect: all(400) },
+  { method: "get", path: `${DEMO_PROGRAMME}/facility?colour=orange`, expect: all(400) },
+  { method: "get", path: `${DEMO_PROGRAMME}/facility/events?from=2026-01-01&to=2026-12-31`, expect: staffOnly(200) },
+  { method: "get", path: `${DEMO_PROGRAMME}/facility/events?from=2026-02-01&to=2026-01-01`, expect: staffOnly(400) },
+  { method: "post", path: `${DEMO_PROGRAMME}/facility/blocks`, body: {}, expect: writers(400) },
+  { method: "patch", path: "/api/facility/blocks/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "delete", path: "/api/facility/blocks/999999999", expect: writers(404) },
+  { method: "post", path: `${DEMO_PROGRAMME}/facility/systems`, body: {}, expect: writers(400) },
+  { method: "patch", path: "/api/facility/systems/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "delete", path: "/api/facility/systems/999999999", expect: writers(404) },
+  { method: "post", path: "/api/facility/systems/999999999/units", body: { label: "Fan 9" }, expect: writers(404) },
+  { method: "patch", path: "/api/facility/units/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "post", path: "/api/facility/units/999999999/stage", body: { version: 1, stage: "L4" }, expect: writers(404) },
+  { method: "get", path: "/api/facility/units/999999999/events", expect: all(404) },
+  { method: "delete", path: "/api/facility/units/999999999", expect: writers(404) },
+  { method: "post", path: `${DEMO_PROGRAMME}/facility/features`, body: {}, expect: writers(400) },
+  { method: "patch", path: "/api/facility/features/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "delete", path: "/api/facility/features/999999999", expect: writers(404) },
   { method: "post", path: "/api/auth/logout", expect: all(204) },
   ...REAL_OBJECT_ROWS,
 ];

@@ -66,6 +66,8 @@ async function resolveIds(): Promise<MatrixIds> {
   const run = (await t.db("digest_runs").where({ project_id: project.id }).orderBy("id").first("id")) as { id: number } | undefined;
   if (!subscriber || !enquiry || !run || !investorUser) throw new Error("the demo lacks subscribers, enquiries or digest runs");
 
+  const facility = await matrixFacility();
+
   return {
     internalMilestone: pick(milestones, "internal milestone", (m) => m.audience === "internal").id,
     investorMilestone: pick(milestones, "investor milestone", (m) => m.audience === "investor").id,
@@ -85,6 +87,39 @@ async function resolveIds(): Promise<MatrixIds> {
     otherSubscriber: Number(subscriber.id),
     enquiry: Number(enquiry.id),
     digestRun: Number(run.id),
+    ...facility,
+  };
+}
+
+/**
+ * A facility of the matrix's own, made through the API in a project of its own (the demo's
+ * facility stays as seeded for the tests that read it): something of each audience.
+ */
+async function matrixFacility() {
+  const lead = await signIn(t, DEMO.lead);
+  const slug = `matrix-facility-${Date.now().toString(36)}`;
+  await t.db("projects").insert({ slug, name: "Role matrix facility", operator_name: "Kestrel Colocation", time_zone: "Europe/London", currency: "GBP" });
+  const post = async (path: string, body: object): Promise<{ id: number }> => {
+    const res = await lead.agent.post(path).set("X-CSRF-Token", lead.csrf).send(body);
+    if (res.status !== 201) throw new Error(`${path}: ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
+    return res.body as { id: number };
+  };
+  const block = (audience: string) => post(`/api/projects/${slug}/facility/blocks`, { name: `Hall (${audience})`, racks: 10, itKw: 100, maxKwPerRack: 10, audience });
+  const system = (audience: string) => post(`/api/projects/${slug}/facility/systems`, { name: `Fans (${audience})`, kind: "air_movement", audience, neededPerSystem: 1 });
+  const feature = (audience: string) => post(`/api/projects/${slug}/facility/features`, { kind: "client", name: `Meeting room (${audience})`, status: "planned", audience });
+  const [internalSystem, investorSystem, publicSystem] = [await system("internal"), await system("investor"), await system("public")];
+  return {
+    facilitySlug: slug,
+    internalBlock: (await block("internal")).id,
+    investorBlock: (await block("investor")).id,
+    publicBlock: (await block("public")).id,
+    internalSystem: internalSystem.id,
+    publicSystem: publicSystem.id,
+    internalUnit: (await post(`/api/facility/systems/${internalSystem.id}/units`, { label: "Fan 1" })).id,
+    investorUnit: (await post(`/api/facility/systems/${investorSystem.id}/units`, { label: "Fan 1" })).id,
+    publicUnit: (await post(`/api/facility/systems/${publicSystem.id}/units`, { label: "Fan 1" })).id,
+    internalFeature: (await feature("internal")).id,
+    publicFeature: (await feature("public")).id,
   };
 }
 

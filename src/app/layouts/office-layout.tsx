@@ -8,6 +8,7 @@ export function OfficeLayout() {
       links={[
         { to: "/office", label: "Overview", end: true },
         { to: "/office/programme", label: "Programme" },
+        { to: "/office/facility", label: "Facility", roles: ["marketing", "lead", "admin"] },
         { to: "/office/media", label: "Media" },
         { to: "/office/updates", label: "Updates" },
         { to: "/office/stories", label: "Photo stories" },

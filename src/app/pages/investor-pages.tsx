@@ -4,6 +4,7 @@ import { PageHeader } from "../../components/ui/sheet.tsx";
 import { InvestorProgramme } from "../../features/programme/components/investor-programme.tsx";
 import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
 import { projectQueryOptions, projectsQueryOptions } from "../../features/projects/api.ts";
+import { InvestorFacility } from "../../features/public-site/components/facility-investor.tsx";
 import { INVESTOR_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 
 export const investorHomeLoader: RouteLoader = (qc) => () => primeWhenAllowed(qc, INVESTOR_ROLES, () => qc.ensureQueryData(projectsQueryOptions()));
@@ -40,8 +41,20 @@ export function InvestorProjectPage() {
   const project = useSuspenseQuery(projectQueryOptions(slug));
   return (
     <>
-      <PageHeader sheet="Investor room · Project" title={project.data.name} description={project.data.description} />
-      <InvestorProgramme slug={slug} currency={project.data.currency} />
+      <PageHeader
+        sheet="Investor room · Project"
+        title={project.data.name}
+        description={project.data.description}
+        actions={
+          <a href="#facility" className="text-sm font-medium underline underline-offset-4">
+            Capacity ramp and readiness ↓
+          </a>
+        }
+      />
+      <div className="flex flex-col gap-6">
+        <InvestorProgramme slug={slug} currency={project.data.currency} />
+        <InvestorFacility slug={slug} />
+      </div>
     </>
   );
 }

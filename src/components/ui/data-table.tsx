@@ -28,7 +28,7 @@ export function DataTable<T>({
   const sortable = Boolean(table.options.getSortedRowModel);
   const pad = dense ? "px-1.5" : "px-3";
   return (
-    <div className="overflow-x-auto border border-rule bg-sheet">
+    <div className="relative overflow-x-auto border border-rule bg-sheet">
       <table className="w-full border-collapse text-left text-sm">
         <caption className="sr-only">{caption}</caption>
         <thead>

@@ -60,6 +60,15 @@ export const TextField = forwardRef<HTMLInputElement, TextFieldProps>(function T
   );
 });
 
+/** The choices of a select, each shown by its label. */
+export function SelectOptions({ options }: { options: ReadonlyArray<{ value: string; label: string }> }) {
+  return options.map((o) => (
+    <option key={o.value} value={o.value}>
+      {o.label}
+    </option>
+  ));
+}
+
 export type SelectFieldProps = SelectHTMLAttributes<HTMLSelectElement> & FieldWords & { options: ReadonlyArray<{ value: string; label: string }> };
 
 export const SelectField = forwardRef<HTMLSelectElement, SelectFieldProps>(function SelectField({ label, error, hint, id, options, className = "", ...rest }, ref) {
@@ -67,11 +76,7 @@ export const SelectField = forwardRef<HTMLSelectElement, SelectFieldProps>(funct
   return (
     <FieldShell label={label} error={error} hint={hint} id={fid}>
       <select ref={ref} {...controlProps(fid, error, className)} {...rest}>
-        {options.map((o) => (
-          <option key={o.value} value={o.value}>
-            {o.label}
-          </option>
-        ))}
+        <SelectOptions options={options} />
       </select>
     </FieldShell>
   );

@@ -107,6 +107,15 @@ export function RefusalNotice({ message, problems, renderProblem }: { message: s
   );
 }
 
+/** The refused step's problems that belong to one piece of the item (a photo, a block), each as an alert beside it. */
+export function ProblemAlerts({ problems, className = "" }: { problems: readonly PublishingProblem[]; className?: string }) {
+  return problems.map((p, i) => (
+    <p key={`${p.code}-${i}`} role="alert" className={`text-sm font-medium text-bad ${className}`}>
+      ▲ {p.message}
+    </p>
+  ));
+}
+
 /** The steps this person may take now, or what happens next when there is none. */
 export function NextStepBar({ waiting, ...actions }: ComponentProps<typeof WorkflowActions> & { /** What happens next, said when this person has no step to take. */ waiting: string }) {
   return (

@@ -9,7 +9,7 @@ import { Button } from "../../components/ui/button.tsx";
 import { TextField } from "../../components/ui/field.tsx";
 import { Notice } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
-import { applyFieldErrors, ROLE_LABEL } from "../../lib/format.ts";
+import { applyApiError, ROLE_LABEL } from "../../lib/format.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
 import { homeFor, invitationQueryOptions, useAcceptInvitation, useLogin, useRequestReset, useResetPassword } from "./api.ts";
 import { safeReturnAddress } from "./return-address.ts";
@@ -39,7 +39,7 @@ export function SignInPage() {
       const { user } = await login.mutateAsync(values);
       navigate(safeReturnAddress(params.get("next")) ?? homeFor(user), { replace: true });
     } catch (e) {
-      if (e instanceof ApiError && Object.keys(e.fields).length) applyFieldErrors(e.fields, form.setError);
+      applyApiError(e, form.setError);
     }
   });
   const err = login.error instanceof ApiError && !Object.keys(login.error.fields).length ? login.error : null;
@@ -116,7 +116,7 @@ export function AcceptInvitationPage() {
       const { user } = await accept.mutateAsync({ name, password });
       navigate(homeFor(user), { replace: true });
     } catch (e) {
-      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { password: e.message }, form.setError);
+      applyApiError(e, form.setError, "password");
     }
   });
   return (
@@ -147,7 +147,7 @@ export function ForgotPasswordPage() {
       const r = await request.mutateAsync(v);
       setSent(r.message);
     } catch (e) {
-      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { email: e.message }, form.setError);
+      applyApiError(e, form.setError, "email");
     }
   });
   return (
@@ -178,7 +178,7 @@ export function ResetPasswordPage() {
       const { user } = await reset.mutateAsync({ password });
       navigate(homeFor(user), { replace: true });
     } catch (e) {
-      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { password: e.message }, form.setError);
+      applyApiError(e, form.setError, "password");
     }
   });
   return (

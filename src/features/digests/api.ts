@@ -1,12 +1,13 @@
-import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { queryOptions, useMutation, useQuery } from "@tanstack/react-query";
 import type { DigestPreview, DigestRunInput, DigestRunStarted, DigestRunSummary, DigestTestInput, DigestTestSent, DigestUpcoming } from "#shared/schemas/digests.ts";
 import type { SubscriberList } from "#shared/schemas/subscribers.ts";
 import { api, qs } from "../../lib/api-client.ts";
+import { useRefreshingMutation } from "../../lib/mutations.ts";
 import { projectListQueryOptions } from "../../lib/projects.ts";
+import { featureKeys } from "../../lib/query-keys.ts";
 
 export const digestKeys = {
-  all: ["digests"] as const,
-  projects: () => [...digestKeys.all, "projects"] as const,
+  ...featureKeys("digests"),
   runs: (project: string) => [...digestKeys.all, "runs", project] as const,
   upcoming: (project: string) => [...digestKeys.all, "upcoming", project] as const,
   preview: (subscriberId: number) => [...digestKeys.all, "preview", subscriberId] as const,
@@ -30,20 +31,9 @@ export const useDigestRecipients = (project: string) =>
 export const useDigestPreview = (subscriberId: number | null) =>
   useQuery({ queryKey: digestKeys.preview(subscriberId ?? 0), queryFn: () => api.get<DigestPreview>(`/api/digests/preview${qs({ subscriberId })}`), enabled: subscriberId !== null });
 
-export function useRunDigest() {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (input: DigestRunInput) => api.post<DigestRunStarted>("/api/digests/runs", input),
-    onSuccess: () => qc.invalidateQueries({ queryKey: digestKeys.all }),
-  });
-}
+export const useRunDigest = () => useRefreshingMutation(digestKeys.all, { mutationFn: (input: DigestRunInput) => api.post<DigestRunStarted>("/api/digests/runs", input) });
 
-export function usePauseResume() {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (p: { id: number; action: "pause" | "resume" }) => api.post<DigestRunSummary>(`/api/digests/runs/${p.id}/${p.action}`),
-    onSuccess: () => qc.invalidateQueries({ queryKey: digestKeys.all }),
-  });
-}
+export const usePauseResume = () =>
+  useRefreshingMutation(digestKeys.all, { mutationFn: (p: { id: number; action: "pause" | "resume" }) => api.post<DigestRunSummary>(`/api/digests/runs/${p.id}/${p.action}`) });
 
 export const useSendTest = () => useMutation({ mutationFn: (input: DigestTestInput) => api.post<DigestTestSent>("/api/digests/test", input) });

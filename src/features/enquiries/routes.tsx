@@ -1,5 +1,5 @@
 import { zodResolver } from "@hookform/resolvers/zod";
-import { useSuspenseQuery } from "@tanstack/react-query";
+import { useQuery, useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
 import { useForm } from "react-hook-form";
@@ -14,15 +14,30 @@ import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { applyFieldErrors, formatDate, formatInstant } from "../../lib/format.ts";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
-import { enquiriesQueryOptions, enquiryOwnersQueryOptions, enquiryProjectQueryOptions, enquiryQueryOptions, useUpdateEnquiry } from "./api.ts";
-import { EnquiryForm } from "./components/enquiry-form.tsx";
+import { enquiriesQueryOptions, enquiryFacilityQueryOptions, enquiryOwnersQueryOptions, enquiryProjectQueryOptions, enquiryQueryOptions, useUpdateEnquiry } from "./api.ts";
+import { EnquiryForm, type EnquiryAbout } from "./components/enquiry-form.tsx";
 import { ENQUIRY_STATUS_LOOK, enquirySummary, KIND_WORD } from "./words.ts";
 
-/** Primes the project the enquiry is about. */
-export const enquireLoader: RouteLoader = (qc) => async ({ params }) => {
-  await qc.ensureQueryData(enquiryProjectQueryOptions(params.slug ?? ""));
+/** `?block=ID`: the capacity block an enquiry from its card is about. */
+const blockParam = (params: URLSearchParams) => Number(params.get("block")) || 0;
+
+/** Primes the project the enquiry is about, and the facility when it comes from a block's card. */
+export const enquireLoader: RouteLoader = (qc) => async ({ params, request }) => {
+  const slug = params.slug ?? "";
+  const block = blockParam(new URL(request.url).searchParams);
+  // A block that cannot be read (hidden, gone) only leaves the form blank: no error page for it.
+  await Promise.all([qc.ensureQueryData(enquiryProjectQueryOptions(slug)), block ? qc.ensureQueryData(enquiryFacilityQueryOptions(slug)).catch(() => null) : null]);
   return null;
 };
+
+/** The block an enquiry is about, from `?block=ID`, when the caller may see it. */
+function useBlockAbout(slug: string): EnquiryAbout | undefined {
+  const [params] = useSearchParams();
+  const id = blockParam(params);
+  const facility = useQuery({ ...enquiryFacilityQueryOptions(slug), enabled: id > 0, retry: false });
+  const b = facility.data?.blocks.find((x) => x.id === id);
+  return b ? { name: b.name, racks: b.racks, kwPerRack: b.maxKwPerRack } : undefined;
+}
 
 /** The enquiry route's error element: the project the address names is not there. */
 export function EnquireError() {
@@ -40,6 +55,7 @@ export function EnquireError() {
 export function EnquirePage() {
   const { slug = "" } = useParams();
   const p = useSuspenseQuery(enquiryProjectQueryOptions(slug)).data;
+  const about = useBlockAbout(slug);
   return (
     <div className="mx-auto w-full max-w-3xl px-4 py-8 sm:py-12">
       <p className="label-caps">
@@ -53,7 +69,7 @@ export function EnquirePage() {
         </Link>
       </p>
       <div className="mt-6 border border-rule bg-sheet p-4 sm:p-6">
-        <EnquiryForm project={p} />
+        <EnquiryForm key={about?.name ?? ""} project={p} about={about} />
       </div>
     </div>
   );

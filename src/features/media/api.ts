@@ -12,6 +12,7 @@ import type {
 } from "#shared/schemas/media.ts";
 import type { System } from "#shared/schemas/programme.ts";
 import { api, qs } from "../../lib/api-client.ts";
+import { facilityTagChoicesQueryOptions } from "../../lib/facility-tags.ts";
 import { projectListQueryOptions } from "../../lib/projects.ts";
 
 /** The library's filters as the page keeps them (and the query string carries them). */
@@ -39,6 +40,7 @@ export const mediaKeys = {
   projects: () => [...mediaKeys.all, "projects"] as const,
   project: (slug: string) => [...mediaKeys.all, "project", slug] as const,
   vocabulary: (slug: string) => [...mediaKeys.project(slug), "vocabulary"] as const,
+  facilityTags: (slug: string) => [...mediaKeys.project(slug), "facility-tags"] as const,
   lists: (slug: string) => [...mediaKeys.project(slug), "list"] as const,
   list: (slug: string, f: LibraryFilters) => [...mediaKeys.lists(slug), f] as const,
   review: (slug: string) => [...mediaKeys.project(slug), "review"] as const,
@@ -50,6 +52,9 @@ export const mediaProjectsQueryOptions = () => queryOptions({ ...projectListQuer
 
 export const vocabularyQueryOptions = (slug: string) =>
   queryOptions({ queryKey: mediaKeys.vocabulary(slug), queryFn: () => api.get<MediaVocabulary>(`/api/media/vocabulary${qs({ project: slug })}`), enabled: slug !== "", staleTime: 60_000 });
+
+/** The capacity blocks and plant systems a photo may be tagged with. */
+export const mediaFacilityTagsQueryOptions = (slug: string) => queryOptions({ ...facilityTagChoicesQueryOptions(mediaKeys.facilityTags(slug), slug), staleTime: 60_000 });
 
 const anyProcessing = (items: MediaItem[] | undefined) => Boolean(items?.some((i) => i.status === "processing"));
 

@@ -4,6 +4,7 @@ import type { MediaItem, MediaPatchInput } from "#shared/schemas/media.ts";
 import type { PostCreateInput, PostDetail, PostPatchInput, PostSummary } from "#shared/schemas/posts.ts";
 import type { PostStatus, RevisionSummary as PostRevisionSummary } from "#shared/schemas/publishing.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
+import { facilityTagChoicesQueryOptions } from "../../lib/facility-tags.ts";
 import { api, getPage, qs } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions, type PickerFilters } from "../../lib/media.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
@@ -31,6 +32,7 @@ export const postKeys = {
   projectDetail: (slug: string) => [...postKeys.project(slug), "detail"] as const,
   list: (slug: string, f: PostListFilters = {}) => [...postKeys.project(slug), "list", f] as const,
   milestones: (slug: string) => [...postKeys.project(slug), "milestones"] as const,
+  facilityTags: (slug: string) => [...postKeys.project(slug), "facility-tags"] as const,
   media: (slug: string, f: MediaPickerFilters = {}) => [...postKeys.project(slug), "media", f] as const,
   detail: (id: number) => [...postKeys.all, "post", id] as const,
   revisions: (id: number) => [...postKeys.detail(id), "revisions"] as const,
@@ -52,6 +54,9 @@ export const postListQueryOptions = (slug: string, f: PostListFilters = {}) =>
 
 export const postQueryOptions = (id: number) => queryOptions({ queryKey: postKeys.detail(id), queryFn: () => api.get<PostDetail>(`/api/posts/${id}`), enabled: id > 0 });
 
+
+/** The capacity blocks and plant systems an update may be tagged with. */
+export const postFacilityTagsQueryOptions = (slug: string) => queryOptions({ ...facilityTagChoicesQueryOptions(postKeys.facilityTags(slug), slug), staleTime: 60_000 });
 
 export const postMilestonesQueryOptions = (slug: string) =>
   queryOptions({ queryKey: postKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });

@@ -1,6 +1,7 @@
 import { toast } from "sonner";
 import { useCallback, useMemo, useRef, useState } from "react";
 import { useNavigate } from "react-router-dom";
+import { useQuery } from "@tanstack/react-query";
 import type { User } from "#shared/schemas/auth.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
@@ -15,6 +16,7 @@ import { Picture } from "../../components/ui/picture.tsx";
 import { AudienceSheet } from "../../components/ui/publishing-editor.tsx";
 import { Sheet } from "../../components/ui/sheet.tsx";
 import { StatusMark } from "../../components/ui/status-mark.tsx";
+import { facilityChoiceLabel, type FacilityTagChoices } from "../../lib/facility-tags.ts";
 import { SYSTEM_WORD } from "../../lib/format.ts";
 import { editorStateOf } from "../../lib/publishing.ts";
 import { PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
@@ -22,7 +24,7 @@ import { RevisionSheets } from "../../lib/publishing-panels.tsx";
 import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug } from "../../lib/projects.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
-import { postMilestonesQueryOptions, postQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, postRevisionHooks, useCreatePost, usePostMilestones, useSavePost, useWorkflow } from "./api.ts";
+import { postFacilityTagsQueryOptions, postMilestonesQueryOptions, postQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, postRevisionHooks, useCreatePost, usePostMilestones, useSavePost, useWorkflow } from "./api.ts";
 import { FixPhotoDialog } from "./components/fix-photo-dialog.tsx";
 import { MediaPickerDialog } from "./components/media-picker.tsx";
 import { MilestonePickerDialog } from "./components/milestone-picker.tsx";
@@ -48,7 +50,8 @@ function draftOf(p: PostDetail): Draft {
     summary: p.summary,
     audience: p.audience,
     coverMediaId: p.coverMediaId,
-    tags: p.tags,
+    // The answer names a block's or system's tag; what is saved is its kind and id.
+    tags: p.tags.map(({ kind, value }) => ({ kind, value })),
     milestoneIds: p.milestoneIds,
     body: p.body ?? EMPTY_RICH_TEXT_DOC,
   };
@@ -62,8 +65,8 @@ function fieldsOf(d: Draft) {
   return { title: d.title, summary: d.summary, body: d.body, audience: d.audience, coverMediaId: d.coverMediaId, milestoneIds: d.milestoneIds, tags: d.tags };
 }
 
-/** Tags of two kinds, each a toggle: the programme's systems and the areas of the site. */
-function TagPicker({ tags, areas, onChange }: { tags: PostTag[]; areas: string[]; onChange: (t: PostTag[]) => void }) {
+/** Tags, each a toggle: the programme's systems, the areas of the site, and the facility's capacity blocks and plant systems. */
+function TagPicker({ tags, areas, facility, onChange }: { tags: PostTag[]; areas: string[]; facility: FacilityTagChoices | undefined; onChange: (t: PostTag[]) => void }) {
   const [newArea, setNewArea] = useState("");
   const has = (t: PostTag) => tags.some((x) => x.kind === t.kind && x.value === t.value);
   const toggle = (t: PostTag) => onChange(has(t) ? tags.filter((x) => !(x.kind === t.kind && x.value === t.value)) : [...tags, t]);
@@ -81,6 +84,19 @@ function TagPicker({ tags, areas, onChange }: { tags: PostTag[]; areas: string[]
       <div className="flex flex-wrap gap-1.5">{SystemSchema.options.map((s) => chip({ kind: "system", value: s }, SYSTEM_WORD[s]))}</div>
       <p className="label-caps">Areas</p>
       <div className="flex flex-wrap gap-1.5">{allAreas.map((a) => chip({ kind: "area", value: a }, a))}</div>
+      {(
+        [
+          ["block", "Block", facility?.blocks],
+          ["plant", "Plant system", facility?.plants],
+        ] as const
+      ).map(([kind, label, choices]) =>
+        choices && choices.length > 0 ? (
+          <div key={kind} className="flex flex-col gap-2">
+            <p className="label-caps">{label}</p>
+            <div className="flex flex-wrap gap-1.5">{choices.map((c) => chip({ kind, value: String(c.id) }, facilityChoiceLabel(c)))}</div>
+          </div>
+        ) : null,
+      )}
       <form
         className="flex items-end gap-2"
         onSubmit={(e) => {
@@ -141,6 +157,7 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
   const save = useSavePost(id);
   const workflow = useWorkflow(id, slug);
   const milestones = usePostMilestones(slug);
+  const facility = useQuery(postFacilityTagsQueryOptions(slug));
   const coverRef = useRef<HTMLDivElement>(null);
   const draft = usePublishingDraft({
     item: post,
@@ -242,7 +259,7 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
               </Button>
             </Sheet>
             <Sheet label="Topics">
-              <TagPicker tags={d.tags} areas={areas} onChange={(t) => change("tags", t)} />
+              <TagPicker tags={d.tags} areas={areas} facility={facility.data} onChange={(t) => change("tags", t)} />
             </Sheet>
             {problems.length > 0 && !refusal ? (
               <Sheet label="Before it can be published">

@@ -1,4 +1,4 @@
-import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient, type QueryClient } from "@tanstack/react-query";
 import type { z } from "zod";
 import type { User } from "#shared/schemas/auth.ts";
 import type {
@@ -17,7 +17,9 @@ import type {
 } from "#shared/schemas/programme.ts";
 import type { DrivingLink } from "#shared/domain/programme-dependencies.ts";
 import { api, ApiError, qs } from "../../lib/api-client.ts";
+import { useRefreshingMutation } from "../../lib/mutations.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { featureKeys } from "../../lib/query-keys.ts";
 
 /** The list's filters, as the milestones route reads its query (the status date aside). */
 export type MilestoneFilters = Omit<z.input<typeof MilestoneListQuerySchema>, "at">;
@@ -30,9 +32,7 @@ export const REMOVED_ONLY: MilestoneFilters = { removed: "only" };
  * Invalidating a project's key refreshes every figure derived from its milestones.
  */
 export const programmeKeys = {
-  all: ["programme"] as const,
-  projects: () => [...programmeKeys.all, "projects"] as const,
-  project: (slug: string) => [...programmeKeys.all, "project", slug] as const,
+  ...featureKeys("programme"),
   detail: (slug: string) => [...programmeKeys.project(slug), "detail"] as const,
   milestones: (slug: string, f: MilestoneFilters = {}) => [...programmeKeys.project(slug), "milestones", f] as const,
   health: (slug: string, at?: string) => [...programmeKeys.project(slug), "health", at ?? "today"] as const,
@@ -104,16 +104,19 @@ export function conflictCurrent(e: unknown): Milestone | null {
   return body?.error?.current ?? null;
 }
 
+/** After milestones changed (or a change of them was refused): their project's figures and their own histories are read again. */
+function refreshMilestones(qc: QueryClient, slug: string, ids: readonly number[]): void {
+  void qc.invalidateQueries({ queryKey: programmeKeys.project(slug) });
+  for (const id of ids) void qc.invalidateQueries({ queryKey: programmeKeys.milestone(id) });
+}
+
 export function usePatchMilestone(slug: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ id, patch }: { id: number; patch: MilestonePatchInput }) => api.patch<Milestone>(`/api/milestones/${id}`, patch),
     // The editor shows conflicts and field errors beside the change itself.
     meta: { quiet: true },
-    onSettled: (_data, _err, vars) => {
-      void qc.invalidateQueries({ queryKey: programmeKeys.project(slug) });
-      void qc.invalidateQueries({ queryKey: programmeKeys.milestone(vars.id) });
-    },
+    onSettled: (_data, _err, vars) => refreshMilestones(qc, slug, [vars.id]),
   });
 }
 
@@ -121,29 +124,15 @@ export function useShiftForecasts(slug: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: ShiftInput) => api.post<Milestone[]>(`/api/projects/${slug}/milestones/shift`, input),
-    onSuccess: (rows) => {
-      void qc.invalidateQueries({ queryKey: programmeKeys.project(slug) });
-      for (const m of rows) void qc.invalidateQueries({ queryKey: programmeKeys.milestone(m.id) });
-    },
+    onSuccess: (rows) => refreshMilestones(qc, slug, rows.map((m) => m.id)),
   });
 }
 
-export function useRebaseline(slug: string) {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (input: BaselineInput) => api.post<{ number: number }>(`/api/projects/${slug}/baselines`, input),
-    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all }),
-  });
-}
+export const useRebaseline = (slug: string) =>
+  useRefreshingMutation(programmeKeys.all, { mutationFn: (input: BaselineInput) => api.post<{ number: number }>(`/api/projects/${slug}/baselines`, input) });
 
-export function useImportMilestones(slug: string) {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (csv: string) => api.post<CsvImportResult>(`/api/projects/${slug}/milestones/import`, { csv }),
-    meta: { quiet: true },
-    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.all }),
-  });
-}
+export const useImportMilestones = (slug: string) =>
+  useRefreshingMutation(programmeKeys.all, { mutationFn: (csv: string) => api.post<CsvImportResult>(`/api/projects/${slug}/milestones/import`, { csv }), meta: { quiet: true } });
 
 /**
  * Removing a milestone from the programme (with a reason) or putting it back: it stays on
@@ -154,22 +143,13 @@ export function useMilestoneRemoval(slug: string) {
   return useMutation({
     mutationFn: ({ id, action, input }: { id: number; action: "remove" | "restore"; input: MilestoneRemovalInput }) => api.post<Milestone>(`/api/milestones/${id}/${action}`, input),
     meta: { quiet: true },
-    onSettled: (_data, _err, vars) => {
-      void qc.invalidateQueries({ queryKey: programmeKeys.project(slug) });
-      void qc.invalidateQueries({ queryKey: programmeKeys.milestone(vars.id) });
-    },
+    onSettled: (_data, _err, vars) => refreshMilestones(qc, slug, [vars.id]),
   });
 }
 
 /** Deleting a milestone entered by mistake; one on record answers 409 `on_record` (remove it instead). */
-export function useDeleteMilestone(slug: string) {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: ({ id }: { id: number }) => api.delete<void>(`/api/milestones/${id}`),
-    meta: { quiet: true },
-    onSuccess: () => qc.invalidateQueries({ queryKey: programmeKeys.project(slug) }),
-  });
-}
+export const useDeleteMilestone = (slug: string) =>
+  useRefreshingMutation(programmeKeys.project(slug), { mutationFn: ({ id }: { id: number }) => api.delete<void>(`/api/milestones/${id}`), meta: { quiet: true } });
 
 /** Where the CSV export is downloaded from (a plain link: the browser handles the file). */
 export const milestonesCsvUrl = (slug: string) => `/api/projects/${slug}/milestones.csv`;

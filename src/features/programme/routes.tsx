@@ -7,6 +7,7 @@ import { Button } from "../../components/ui/button.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { StatusKey } from "../../components/ui/status-mark.tsx";
+import { WalkHeader } from "../../components/ui/walk-frame.tsx";
 import { formatDate } from "../../lib/format.ts";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
@@ -214,15 +215,7 @@ export function SiteWalkPage() {
   const { slug } = useProjectSlug();
   return (
     <>
-      <div className="mb-4 flex items-center justify-between gap-3 border-b-2 border-ink pb-2">
-        <div>
-          <p className="label-caps">Site office · Programme</p>
-          <h1 className="text-2xl font-semibold tracking-tight">Site walk</h1>
-        </div>
-        <Link to={`/office/programme${slug ? `?project=${slug}` : ""}`} className="text-sm underline underline-offset-4">
-          Back to the table
-        </Link>
-      </div>
+      <WalkHeader sheet="Site office · Programme" title="Site walk" back={`/office/programme${slug ? `?project=${slug}` : ""}`} backLabel="Back to the table" />
       {slug ? <WalkBody slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
     </>
   );

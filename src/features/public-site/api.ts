@@ -4,13 +4,19 @@ import type { StoryDetail, StorySummary } from "#shared/schemas/stories.ts";
 import { api, getPage, qs } from "../../lib/api-client.ts";
 import { projectDetailQueryOptions } from "../../lib/projects.ts";
 
-export interface UpdateFilters {
+/** A capacity block or plant system of the facility, by id (as the address carries it). */
+export interface FacilityFilter {
+  block?: string;
+  plant?: string;
+}
+
+export interface UpdateFilters extends FacilityFilter {
   page?: number;
   tag?: string;
   q?: string;
 }
 
-export interface GalleryFilters {
+export interface GalleryFilters extends FacilityFilter {
   area?: string;
   system?: string;
   /** `YYYY-MM`. */
@@ -54,7 +60,7 @@ export const siteProjectQueryOptions = (slug: string) => projectDetailQueryOptio
 export const updatesQueryOptions = (slug: string, f: UpdateFilters = {}) =>
   queryOptions({
     queryKey: siteKeys.updates(slug, f),
-    queryFn: () => getPage<PostSummary>(`/api/projects/${slug}/posts${qs({ page: f.page && f.page > 1 ? f.page : undefined, tag: f.tag, q: f.q, status: "published" })}`),
+    queryFn: () => getPage<PostSummary>(`/api/projects/${slug}/posts${qs({ page: f.page && f.page > 1 ? f.page : undefined, tag: f.tag, block: f.block, plant: f.plant, q: f.q, status: "published" })}`),
     enabled: slug !== "",
   });
 

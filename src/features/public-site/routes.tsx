@@ -12,24 +12,39 @@ import { Lightbox, type LightboxItem } from "../../components/ui/lightbox.tsx";
 import { Picture } from "../../components/ui/picture.tsx";
 import { pageCount } from "../../lib/api-client.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
-import { galleryQueryOptions, isRedirect, siteProjectQueryOptions, storyQueryOptions, updateQueryOptions, updatesQueryOptions, type GalleryFilters, type GalleryPhoto, type UpdateFilters } from "./api.ts";
+import { galleryQueryOptions, isRedirect, siteProjectQueryOptions, storyQueryOptions, updateQueryOptions, updatesQueryOptions, type FacilityFilter, type GalleryFilters, type GalleryPhoto, type UpdateFilters } from "./api.ts";
 import { MilestonesThenNow } from "./components/milestone-then-now.tsx";
 import { PostBody } from "./components/post-body.tsx";
 import { PostCard } from "./components/post-card.tsx";
 import { ProjectMasthead } from "./components/project-nav.tsx";
-import { capturedOn, dayOf, monthWords, SYSTEM_TAGS, tagWord } from "./words.ts";
+import { useTitle } from "./use-title.ts";
+import { capturedOn, dayOf, monthWords, SYSTEM_TAGS, tagFilter, tagWord } from "./words.ts";
 
 /*
  * Each page's loader primes the project (for the masthead) and what the page shows; the pages
  * read both with useSuspenseQuery. A missing update or story ends in the route's error element.
  */
 
+/** `?block=ID` / `?plant=ID`: the updates or photos of one capacity block or plant system (from the facility page). */
+function facilityFilterOf(params: URLSearchParams): FacilityFilter {
+  return { block: params.get("block") ?? undefined, plant: params.get("plant") ?? undefined };
+}
+
 function updateFiltersOf(params: URLSearchParams): UpdateFilters {
-  return { page: Math.max(1, Number(params.get("page")) || 1), tag: params.get("tag") ?? undefined, q: params.get("q") ?? undefined };
+  return { page: Math.max(1, Number(params.get("page")) || 1), tag: params.get("tag") ?? undefined, q: params.get("q") ?? undefined, ...facilityFilterOf(params) };
 }
 
 function galleryFiltersOf(params: URLSearchParams): GalleryFilters {
-  return { area: params.get("area") ?? undefined, system: params.get("system") ?? undefined, month: params.get("month") ?? undefined };
+  return { area: params.get("area") ?? undefined, system: params.get("system") ?? undefined, month: params.get("month") ?? undefined, ...facilityFilterOf(params) };
+}
+
+/** The name of the block or plant system a list is filtered to, from the tags of what it found. */
+function facilityFilterName(f: FacilityFilter, tagSets: ReadonlyArray<ReadonlyArray<{ kind: string; value?: string; id?: number; name?: string }>>): string | null {
+  const kind = f.block ? "block" : f.plant ? "plant" : null;
+  if (!kind) return null;
+  const id = kind === "block" ? f.block : f.plant;
+  for (const tags of tagSets) for (const t of tags) if (t.kind === kind && String(t.value ?? t.id) === id && t.name) return t.name;
+  return kind === "block" ? "this capacity block" : "this plant system";
 }
 
 const searchOf = (request: Request) => new URL(request.url).searchParams;
@@ -52,17 +67,6 @@ function Frame({ children, wide = false }: { children: ReactNode; wide?: boolean
   return <div className={`mx-auto px-4 py-8 ${wide ? "max-w-6xl" : "max-w-5xl"}`}>{children}</div>;
 }
 
-/** Sets the document title while a page is shown. */
-function useTitle(title: string | undefined) {
-  useEffect(() => {
-    if (!title) return;
-    const before = document.title;
-    document.title = `${title} · Plumbline`;
-    return () => {
-      document.title = before;
-    };
-  }, [title]);
-}
 
 function Pager({ page, total, pageSize, hrefFor }: { page: number; total: number; pageSize: number; hrefFor: (p: number) => string }) {
   const pages = pageCount(total, pageSize);
@@ -100,6 +104,7 @@ export function UpdatesPage() {
   useEffect(() => setDraft(q ?? ""), [q]);
   const project = useSuspenseQuery(siteProjectQueryOptions(slug));
   const updates = useSuspenseQuery(updatesQueryOptions(slug, filters));
+  const about = facilityFilterName(filters, updates.data.items.map((p) => p.tags));
   useTitle(`Updates · ${project.data.name}`);
 
   const set = (next: Record<string, string | undefined>) =>
@@ -139,7 +144,7 @@ export function UpdatesPage() {
   return (
     <Frame>
       <ProjectMasthead slug={slug} projectName={project.data.name} operatorName={project.data.operatorName} />
-      <h1 className="mt-6 text-3xl font-semibold tracking-tight">{q ? `Updates mentioning “${q}”` : "Updates from the site"}</h1>
+      <h1 className="mt-6 text-3xl font-semibold tracking-tight">{about ? `Updates about ${about}` : q ? `Updates mentioning “${q}”` : "Updates from the site"}</h1>
       <p className="mt-2 max-w-2xl text-ink-soft">What changed on site, in the operator's words, with photographs from the site walks.</p>
       <div className="mt-6 flex flex-col gap-4 border border-rule bg-sheet p-4 sm:flex-row sm:items-end">
         <form role="search" onSubmit={onSearch} className="flex min-w-0 flex-1 items-end gap-2">
@@ -163,16 +168,16 @@ export function UpdatesPage() {
           <SelectField label="Topic" value={tag ?? ""} onChange={(e) => set({ tag: e.target.value || undefined })} options={tagChoices} />
         </div>
       </div>
-      {q || tag ? (
+      {q || tag || about ? (
         <p className="mt-3 text-sm">
-          <button type="button" className="underline underline-offset-4" onClick={() => set({ q: undefined, tag: undefined })}>
-            Clear the search and topic
+          <button type="button" className="underline underline-offset-4" onClick={() => set({ q: undefined, tag: undefined, block: undefined, plant: undefined })}>
+            {about ? "Show every update" : "Clear the search and topic"}
           </button>
         </p>
       ) : null}
       <div className="mt-6">
         {updates.data.items.length === 0 ? (
-          <p className="text-ink-soft">{q || tag ? "No published update matches. Try other words or another topic." : "No updates have been published yet."}</p>
+          <p className="text-ink-soft">{about ? `No published update is about ${about} yet.` : q || tag ? "No published update matches. Try other words or another topic." : "No updates have been published yet."}</p>
         ) : (
           <>
             <p className="sr-only" aria-live="polite">
@@ -206,13 +211,13 @@ function redirectTarget(slug: string, kind: "updates" | "stories", to: string): 
   return `/projects/${slug}/${kind}/${last}`;
 }
 
-function TagList({ tags, slug }: { tags: PostTag[]; slug: string }) {
+function TagList({ tags, slug }: { tags: Array<PostTag & { name?: string }>; slug: string }) {
   if (tags.length === 0) return null;
   return (
     <ul className="flex flex-wrap gap-1.5" aria-label="Topics">
       {tags.map((t) => (
         <li key={`${t.kind}:${t.value}`}>
-          <Link to={`/projects/${slug}/updates?tag=${encodeURIComponent(t.value)}`} className="block border border-rule px-2 py-0.5 text-sm text-ink-soft hover:border-ink hover:text-ink">
+          <Link to={`/projects/${slug}/updates?${tagFilter(t)}`} className="block border border-rule px-2 py-0.5 text-sm text-ink-soft hover:border-ink hover:text-ink">
             {tagWord(t)}
           </Link>
         </li>
@@ -349,11 +354,19 @@ export function GalleryPage() {
   }));
 
   const g = gallery.data;
+  const about = facilityFilterName(filters, items.map((p) => (p as GalleryPhoto & { facilityTags?: Array<{ kind: string; id: number; name: string }> }).facilityTags ?? []));
   return (
     <Frame wide>
       <ProjectMasthead slug={slug} projectName={project.data.name} operatorName={project.data.operatorName} />
-      <h1 className="mt-6 text-3xl font-semibold tracking-tight">Photographs from the site</h1>
+      <h1 className="mt-6 text-3xl font-semibold tracking-tight">{about ? `Photographs of ${about}` : "Photographs from the site"}</h1>
       <p className="mt-2 max-w-2xl text-ink-soft">Photos published with the updates and photo stories, cleared for the public. Some are illustrations, marked as such in their captions.</p>
+      {about ? (
+        <p className="mt-2 text-sm">
+          <button type="button" className="underline underline-offset-4" onClick={() => set(filters.block ? "block" : "plant", "")}>
+            Show every photograph
+          </button>
+        </p>
+      ) : null}
       <div className="mt-6 grid gap-3 border border-rule bg-sheet p-4 sm:grid-cols-3">
         <SelectField label="Area" value={filters.area ?? ""} onChange={(e) => set("area", e.target.value)} options={[{ value: "", label: "All areas" }, ...g.areas.map((a) => ({ value: a, label: a }))]} />
         <SelectField

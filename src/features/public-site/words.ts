@@ -32,9 +32,15 @@ export function capturedOn(takenAt: string | null | undefined): string | null {
   return longDate(takenAt.slice(0, 10));
 }
 
-/** A tag as a person reads it: areas as named, systems capitalised. */
-export function tagWord(tag: PostTag): string {
+/** A tag as a person reads it: areas as named, systems capitalised, blocks and plant systems by their names. */
+export function tagWord(tag: PostTag & { name?: string }): string {
+  if (tag.kind === "block" || tag.kind === "plant") return tag.name ?? (tag.kind === "block" ? "Capacity block" : "Plant system");
   return tag.kind === "system" ? ((SYSTEM_WORD as Record<string, string>)[tag.value] ?? tag.value) : tag.value;
+}
+
+/** Where the updates with a tag are listed: blocks and plant systems by id, the rest by topic. */
+export function tagFilter(tag: PostTag): string {
+  return tag.kind === "block" || tag.kind === "plant" ? `${tag.kind}=${encodeURIComponent(tag.value)}` : `tag=${encodeURIComponent(tag.value)}`;
 }
 
 /** The systems the programme knows, for the tag filter (areas come from the posts themselves). */

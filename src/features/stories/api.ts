@@ -6,6 +6,7 @@ import { pickerMediaQueryOptions } from "../../lib/media.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
 import type { RevisionHooks } from "../../lib/publishing-panels.tsx";
 import { publishingApi } from "../../lib/publishing.ts";
+import { featureKeys } from "../../lib/query-keys.ts";
 
 export interface StoryMediaFilters {
   q?: string;
@@ -15,9 +16,7 @@ export interface StoryMediaFilters {
 
 /** Keys: stories → project(slug) → kind → params; stories → story(id) → revisions, diff, history. */
 export const storyKeys = {
-  all: ["stories"] as const,
-  projects: () => [...storyKeys.all, "projects"] as const,
-  project: (slug: string) => [...storyKeys.all, "project", slug] as const,
+  ...featureKeys("stories"),
   projectDetail: (slug: string) => [...storyKeys.project(slug), "detail"] as const,
   list: (slug: string) => [...storyKeys.project(slug), "list"] as const,
   media: (slug: string, f: StoryMediaFilters = {}) => [...storyKeys.project(slug), "media", f] as const,

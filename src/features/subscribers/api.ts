@@ -18,12 +18,13 @@ import type {
   UnsubscribeView,
 } from "#shared/schemas/subscribers.ts";
 import { api, qs } from "../../lib/api-client.ts";
+import { useRefreshingMutation } from "../../lib/mutations.ts";
 import { projectListQueryOptions } from "../../lib/projects.ts";
+import { featureKeys } from "../../lib/query-keys.ts";
 
 /** Visitors' side: the form's options and the pages opened from signed links. */
 export const subscriptionKeys = {
-  all: ["subscriptions"] as const,
-  projects: () => [...subscriptionKeys.all, "projects"] as const,
+  ...featureKeys("subscriptions"),
   options: (slug: string) => [...subscriptionKeys.all, "options", slug] as const,
   confirmation: (token: string) => [...subscriptionKeys.all, "confirmation", token] as const,
   preferences: (token: string) => [...subscriptionKeys.all, "preferences", token] as const,
@@ -61,14 +62,8 @@ export function useSubscribe() {
   return useMutation({ mutationFn: (input: SubscriptionInput) => api.post<SubscriptionAccepted>("/api/subscriptions", input), meta: { quiet: true } });
 }
 
-export function useConfirm(token: string) {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: () => api.post<ConfirmationDone>(`/api/subscriptions/confirm/${token}`, {}),
-    meta: { quiet: true },
-    onSuccess: () => qc.invalidateQueries({ queryKey: subscriptionKeys.confirmation(token) }),
-  });
-}
+export const useConfirm = (token: string) =>
+  useRefreshingMutation(subscriptionKeys.confirmation(token), { mutationFn: () => api.post<ConfirmationDone>(`/api/subscriptions/confirm/${token}`, {}), meta: { quiet: true } });
 
 export function useUpdatePreferences(token: string) {
   const qc = useQueryClient();
@@ -79,44 +74,19 @@ export function useUpdatePreferences(token: string) {
   });
 }
 
-export function useLeaveFromPreferences(token: string) {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/preferences/${token}/unsubscribe`, {}),
-    onSuccess: () => qc.invalidateQueries({ queryKey: subscriptionKeys.preferences(token) }),
-  });
-}
+export const useLeaveFromPreferences = (token: string) =>
+  useRefreshingMutation(subscriptionKeys.preferences(token), { mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/preferences/${token}/unsubscribe`, {}) });
 
-export function useUnsubscribe(token: string) {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/unsubscribe/${token}`, {}),
-    onSuccess: () => qc.invalidateQueries({ queryKey: subscriptionKeys.unsubscribe(token) }),
-  });
-}
+export const useUnsubscribe = (token: string) =>
+  useRefreshingMutation(subscriptionKeys.unsubscribe(token), { mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/unsubscribe/${token}`, {}) });
 
-export function useSetInvestorDigest() {
-  const qc = useQueryClient();
-  return useMutation({
+export const useSetInvestorDigest = () =>
+  useRefreshingMutation(investorDigestKeys.all, {
     mutationFn: ({ slug, ...input }: InvestorDigestInput & { slug: string }) => api.patch<InvestorDigestSetting>(`/api/investors/digest/${slug}`, input),
     meta: { quiet: true },
-    onSuccess: () => qc.invalidateQueries({ queryKey: investorDigestKeys.all }),
   });
-}
 
-export function useImportSubscribers() {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (input: SubscriberImportInput) => api.post<SubscriberImportResult>("/api/subscribers/import", input),
-    meta: { quiet: true },
-    onSuccess: () => qc.invalidateQueries({ queryKey: subscriberKeys.all }),
-  });
-}
+export const useImportSubscribers = () =>
+  useRefreshingMutation(subscriberKeys.all, { mutationFn: (input: SubscriberImportInput) => api.post<SubscriberImportResult>("/api/subscribers/import", input), meta: { quiet: true } });
 
-export function useEraseSubscriber() {
-  const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (id: number) => api.delete<ErasureResult>(`/api/subscribers/${id}`),
-    onSuccess: () => qc.invalidateQueries({ queryKey: subscriberKeys.all }),
-  });
-}
+export const useEraseSubscriber = () => useRefreshingMutation(subscriberKeys.all, { mutationFn: (id: number) => api.delete<ErasureResult>(`/api/subscribers/${id}`) });

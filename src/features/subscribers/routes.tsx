@@ -20,7 +20,7 @@ import { Button } from "../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
-import { applyFieldErrors, SYSTEM_WORD } from "../../lib/format.ts";
+import { applyApiError, SYSTEM_WORD } from "../../lib/format.ts";
 import { INVESTOR_ROLES, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import {
@@ -209,7 +209,7 @@ function PreferencesForm({ token, view }: { token: string; view: PreferencesView
       await update.mutateAsync(v);
       toast.success("Preferences saved");
     } catch (e) {
-      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { frequency: e.message }, form.setError);
+      applyApiError(e, form.setError, "frequency");
     }
   });
   const errors = form.formState.errors;
@@ -305,7 +305,7 @@ function InvestorDigestForm({ setting }: { setting: InvestorDigestSetting }) {
       await save.mutateAsync({ slug: setting.project.slug, ...v });
       toast.success(v.enabled ? "Digest saved" : "Digest turned off");
     } catch (e) {
-      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { frequency: e.message }, form.setError);
+      applyApiError(e, form.setError, "frequency");
     }
   });
   return (

@@ -8,10 +8,9 @@ import { RoleSchema } from "#shared/schemas/common.ts";
 import { InviteInputSchema, type InvitationRow, type InviteInput, type UserRow } from "#shared/schemas/users.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
-import { SelectField, TextField } from "../../components/ui/field.tsx";
+import { SelectField, SelectOptions, TextField } from "../../components/ui/field.tsx";
 import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
-import { ApiError } from "../../lib/api-client.ts";
-import { applyFieldErrors, formatInstant, ROLE_LABEL } from "../../lib/format.ts";
+import { applyApiError, formatInstant, ROLE_LABEL } from "../../lib/format.ts";
 import { primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { invitationsQueryOptions, useInvite, useUpdateUser, usersQueryOptions } from "./api.ts";
 
@@ -29,7 +28,7 @@ function InviteForm() {
       toast.success(`Invitation sent to ${v.email}`);
       form.reset({ email: "", role: v.role });
     } catch (e) {
-      if (e instanceof ApiError && Object.keys(e.fields).length) applyFieldErrors(e.fields, form.setError);
+      applyApiError(e, form.setError);
     }
   });
   return (
@@ -62,11 +61,7 @@ function UsersTable({ users }: { users: UserRow[] }) {
               value={c.getValue()}
               onChange={(e) => update.mutate({ id: c.row.original.id, role: e.target.value as UserRow["role"] }, { onSuccess: () => toast.success("Role changed") })}
             >
-              {roleOptions.map((o) => (
-                <option key={o.value} value={o.value}>
-                  {o.label}
-                </option>
-              ))}
+              <SelectOptions options={roleOptions} />
             </select>
           </label>
         ),

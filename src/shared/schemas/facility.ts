@@ -90,15 +90,25 @@ export type RatingUnit = z.infer<typeof RatingUnitSchema>;
  * - power generation: rating per unit in kVA or kW (full generator load = N units at rating,
  *   kVA at a power factor of 0.8).
  */
+const DESIGN_FIELDS = {
+  airflowM3s: Positive(10_000).nullable(),
+  deltaTK: Positive(100).nullable(),
+  chilledWaterFlowKgS: Positive(10_000).nullable(),
+  chilledWaterSupplyC: z.number().min(-20).max(60).nullable(),
+  chilledWaterReturnC: z.number().min(-20).max(80).nullable(),
+  supplyAirC: z.number().min(-20).max(60).nullable(),
+  usableFuelLitres: Positive(100_000_000).nullable(),
+  specificFuelConsumption: Positive(5),
+} as const;
 export const DesignFiguresSchema = z.strictObject({
-  airflowM3s: Positive(10_000).nullable().default(null),
-  deltaTK: Positive(100).nullable().default(null),
-  chilledWaterFlowKgS: Positive(10_000).nullable().default(null),
-  chilledWaterSupplyC: z.number().min(-20).max(60).nullable().default(null),
-  chilledWaterReturnC: z.number().min(-20).max(80).nullable().default(null),
-  supplyAirC: z.number().min(-20).max(60).nullable().default(null),
-  usableFuelLitres: Positive(100_000_000).nullable().default(null),
-  specificFuelConsumption: Positive(5).default(0.27),
+  airflowM3s: DESIGN_FIELDS.airflowM3s.default(null),
+  deltaTK: DESIGN_FIELDS.deltaTK.default(null),
+  chilledWaterFlowKgS: DESIGN_FIELDS.chilledWaterFlowKgS.default(null),
+  chilledWaterSupplyC: DESIGN_FIELDS.chilledWaterSupplyC.default(null),
+  chilledWaterReturnC: DESIGN_FIELDS.chilledWaterReturnC.default(null),
+  supplyAirC: DESIGN_FIELDS.supplyAirC.default(null),
+  usableFuelLitres: DESIGN_FIELDS.usableFuelLitres.default(null),
+  specificFuelConsumption: DESIGN_FIELDS.specificFuelConsumption.default(0.27),
 });
 export type DesignFigures = z.infer<typeof DesignFiguresSchema>;
 
@@ -143,7 +153,8 @@ export type SystemCreateInput = z.infer<typeof SystemCreateInputSchema>;
 /** PATCH: rating and unit, when either is sent, are checked together against the stored pair by the service. */
 export const SystemPatchInputSchema = z.strictObject({
   ...z.object(SYSTEM_FIELDS).partial().shape,
-  design: DesignFiguresSchema.partial().optional(),
+  // Without defaults: a figure left out of a PATCH keeps its stored value.
+  design: z.strictObject(DESIGN_FIELDS).partial().optional(),
   version: z.number().int().positive(),
 });
 export type SystemPatchInput = z.infer<typeof SystemPatchInputSchema>;
@@ -240,6 +251,11 @@ export type FeaturePatchInput = z.infer<typeof FeaturePatchInputSchema>;
 
 /** GET /api/projects/:slug/facility?at=YYYY-MM-DD (staff only may ask for another day). */
 export const FacilityQuerySchema = z.strictObject({ at: CalendarDateSchema.optional() });
+
+/** GET /api/projects/:slug/facility/events?from&to: days recorded, inclusive, in the project's time zone; either end may be left open. */
+export const FacilityEventsQuerySchema = z
+  .strictObject({ from: CalendarDateSchema.optional(), to: CalendarDateSchema.optional() })
+  .refine((v) => v.from === undefined || v.to === undefined || v.from <= v.to, { path: ["to"], message: "must not be before from" });
 
 // ---------------------------------------------------------------------------------------------
 // Answers

@@ -19,7 +19,8 @@ export type Sensitivity = z.infer<typeof SensitivitySchema>;
 export const VariantFormatSchema = z.enum(["avif", "webp", "jpeg"]);
 export type VariantFormat = z.infer<typeof VariantFormatSchema>;
 
-export const TagKindSchema = z.enum(["area", "system", "milestone"]);
+/** `block` and `plant`: a capacity block or a plant system of the facility, the id as text. */
+export const TagKindSchema = z.enum(["area", "system", "milestone", "block", "plant"]);
 export type TagKind = z.infer<typeof TagKindSchema>;
 
 /** The system whose photos may show access points, cameras and door hardware. */
@@ -27,11 +28,17 @@ export const SECURITY_SYSTEM: System = "security";
 
 const Area = plainText().min(1, "must not be empty").max(100, "must be at most 100 characters");
 
-/** Tags by kind; milestones are milestone ids of the photo's own project. */
+/**
+ * Tags by kind; milestones, blocks and plants are ids of the photo's own project's milestones,
+ * capacity blocks and plant systems. A photo that can be published (not restricted) may not
+ * carry an internal block or system.
+ */
 export const MediaTagsSchema = z.strictObject({
   areas: z.array(Area).max(20, "at most 20 areas"),
   systems: z.array(SystemSchema).max(SystemSchema.options.length),
   milestones: z.array(z.number().int().positive()).max(50, "at most 50 milestones"),
+  blocks: z.array(z.number().int().positive()).max(20, "at most 20 capacity blocks"),
+  plants: z.array(z.number().int().positive()).max(50, "at most 50 plant systems"),
 });
 export type MediaTags = z.infer<typeof MediaTagsSchema>;
 
@@ -76,7 +83,7 @@ export const BulkTagInputSchema = z
 export type BulkTagInput = z.infer<typeof BulkTagInputSchema>;
 
 function countTags(t: MediaTagsPatch | undefined): number {
-  return t ? (t.areas?.length ?? 0) + (t.systems?.length ?? 0) + (t.milestones?.length ?? 0) : 0;
+  return t ? (t.areas?.length ?? 0) + (t.systems?.length ?? 0) + (t.milestones?.length ?? 0) + (t.blocks?.length ?? 0) + (t.plants?.length ?? 0) : 0;
 }
 
 /** POST /api/media/:id/review: the lead's decision on an unreviewed photo. */
@@ -97,6 +104,10 @@ export const MediaListQuerySchema = z
     area: Area.optional(),
     system: SystemSchema.optional(),
     milestone: z.coerce.number().int().positive().optional(),
+    /** Tagged with this capacity block (id). */
+    block: z.coerce.number().int().positive().optional(),
+    /** Tagged with this plant system (id). */
+    plant: z.coerce.number().int().positive().optional(),
     takenFrom: CalendarDateSchema.optional(),
     takenTo: CalendarDateSchema.optional(),
     sensitivity: SensitivitySchema.optional(),
@@ -225,18 +236,28 @@ export const MediaPictureSchema = z.object({
 });
 export type MediaPicture = z.infer<typeof MediaPictureSchema>;
 
-/** GET /api/projects/:slug/gallery filters. */
+/**
+ * GET /api/projects/:slug/gallery filters. `block` / `plant`: photos tagged with that capacity
+ * block or plant system (404 when the reader may not see it).
+ */
 export const GalleryQuerySchema = z.strictObject({
   area: plainText().max(100).optional(),
   system: SystemSchema.optional(),
+  block: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a block's id").optional(),
+  plant: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a plant system's id").optional(),
   month: z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, "must be a month as YYYY-MM").optional(),
 });
 export type GalleryQuery = z.infer<typeof GalleryQuerySchema>;
 
-/** One gallery photo: the picture, its area and system tags, and its month (capture, else upload). */
+/** A capacity block or plant system a photo or an update is tagged with, named for the reader (only those they may see). */
+const FacilityTagSchema = z.object({ kind: z.enum(["block", "plant"]), id: z.number(), name: z.string() });
+export type FacilityTag = z.infer<typeof FacilityTagSchema>;
+
+/** One gallery photo: the picture, its area, system and facility tags, and its month (capture, else upload). */
 export const GalleryPhotoSchema = MediaPictureSchema.extend({
   areas: z.array(z.string()),
   systems: z.array(SystemSchema),
+  facilityTags: z.array(FacilityTagSchema),
   month: z.string().nullable(),
 });
 export type GalleryPhoto = z.infer<typeof GalleryPhotoSchema>;

@@ -16,12 +16,20 @@ import { multilineText, plainText } from "./text.ts";
 
 export const POSTS_PAGE_SIZE = 10;
 
-/** A tag of a post: an area ("Hall 2A") or a system ("cooling"). */
-export const PostTagSchema = z.strictObject({
-  kind: z.enum(["area", "system"]),
-  value: plainText().min(1, "is empty").max(100, "must be at most 100 characters"),
-});
+/**
+ * A tag of a post: an area ("Hall 2A"), a system ("cooling"), or a capacity block or plant system
+ * of the facility (`block` / `plant`, the id as text: "12"). A block or system must be one of the
+ * post's project, and one its audience may see (422 otherwise).
+ */
+export const PostTagSchema = z
+  .strictObject({
+    kind: z.enum(["area", "system", "block", "plant"]),
+    value: plainText().min(1, "is empty").max(100, "must be at most 100 characters"),
+  })
+  .refine((t) => (t.kind !== "block" && t.kind !== "plant") || /^[1-9][0-9]{0,9}$/.test(t.value), { message: "must be the id of a block or plant system", path: ["value"] });
 export type PostTag = z.infer<typeof PostTagSchema>;
+/** A tag as an answer gives it: a block or plant system carries its name (tags the reader may not see are left out). */
+export type PostTagAnswer = PostTag & { name?: string };
 
 const Title = plainText({ error: "is required" }).min(1, "is required").max(200, "must be at most 200 characters");
 const Summary = multilineText().max(600, "must be at most 600 characters");
@@ -67,6 +75,10 @@ export type PostPatchInput = z.infer<typeof PostPatchInputSchema>;
 export const PostListQuerySchema = z.strictObject({
   page: z.coerce.number({ error: "must be a number" }).int().min(1).max(10_000).default(1),
   tag: plainText().min(1).max(100).optional(),
+  /** Updates tagged with this capacity block (id); 404 when the reader may not see it. */
+  block: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a block's id").optional(),
+  /** Updates tagged with this plant system (id); 404 when the reader may not see it. */
+  plant: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a plant system's id").optional(),
   q: plainText().min(1, "is empty").max(200, "must be at most 200 characters").optional(),
   status: PostStatusSchema.optional(),
   audience: AudienceSchema.optional(),
@@ -114,7 +126,7 @@ export interface PostSummary {
   publishedAt: string | null;
   scheduledFor: string | null;
   cover: MediaPicture | null;
-  tags: PostTag[];
+  tags: PostTagAnswer[];
   authorName: string;
   updatedAt: string;
 }

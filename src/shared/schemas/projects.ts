@@ -9,6 +9,8 @@ export const ProjectSettingsSchema = z.object({
   behindWorkingDays: z.number(),
   weekendDays: z.array(z.number()),
   holidays: z.array(z.string()),
+  /** The commissioning level (1 … 5) from which a plant unit counts as available to carry load; default 4 (functional test). */
+  availableFromLevel: z.number(),
 });
 export type ProjectSettings = z.infer<typeof ProjectSettingsSchema>;
 

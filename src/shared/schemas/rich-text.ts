@@ -237,26 +237,20 @@ export function walkRichText(node: RichTextNode, visit: (n: RichTextNode) => voi
   for (const child of node.content ?? []) walkRichText(child, visit);
 }
 
-/** The media ids of a document's inline images, in order of first appearance. */
-export function imageIdsOf(doc: RichTextDoc): number[] {
+/** The ids a document's nodes of one type carry in one attribute, in order of first appearance. */
+function idsOfNodes(doc: RichTextDoc, type: string, attr: string): number[] {
   const ids: number[] = [];
   walkRichText(doc, (n) => {
-    if (n.type === "image") {
-      const id = Number((n.attrs as { mediaId?: unknown }).mediaId);
+    if (n.type === type) {
+      const id = Number((n.attrs as Record<string, unknown>)[attr]);
       if (!ids.includes(id)) ids.push(id);
     }
   });
   return ids;
 }
 
+/** The media ids of a document's inline images, in order of first appearance. */
+export const imageIdsOf = (doc: RichTextDoc): number[] => idsOfNodes(doc, "image", "mediaId");
+
 /** The milestone ids of a document's milestone blocks, in order of first appearance. */
-export function milestoneBlockIdsOf(doc: RichTextDoc): number[] {
-  const ids: number[] = [];
-  walkRichText(doc, (n) => {
-    if (n.type === "milestone") {
-      const id = Number((n.attrs as { milestoneId?: unknown }).milestoneId);
-      if (!ids.includes(id)) ids.push(id);
-    }
-  });
-  return ids;
-}
+export const milestoneBlockIdsOf = (doc: RichTextDoc): number[] => idsOfNodes(doc, "milestone", "milestoneId");

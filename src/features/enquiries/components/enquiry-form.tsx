@@ -2,13 +2,13 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { useState } from "react";
 import { Controller, useForm } from "react-hook-form";
 import type { z } from "zod";
-import { EnquiryInputSchema, EnquiryKindSchema, VISIT_MAX_PARTY, type EnquiryKind } from "#shared/schemas/enquiries.ts";
+import { CapacityEnquirySchema, EnquiryInputSchema, EnquiryKindSchema, VISIT_MAX_PARTY, type EnquiryKind } from "#shared/schemas/enquiries.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { TextAreaField, TextField } from "../../../components/ui/field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
-import { applyFieldErrors } from "../../../lib/format.ts";
+import { applyApiError } from "../../../lib/format.ts";
 import { useSendEnquiry } from "../api.ts";
 import { VisitRules } from "./visit-rules.tsx";
 
@@ -57,16 +57,40 @@ function PreferredDates({ value, onChange, errors }: { value: string[]; onChange
   );
 }
 
-/** An enquiry about one project: capacity, a site visit (with the site rules) or a question. */
-export function EnquiryForm({ project }: { project: Project }) {
+/** The capacity block an enquiry starts from ("Ask about this block" on the facility page). */
+export interface EnquiryAbout {
+  name: string;
+  racks: number;
+  kwPerRack: number;
+}
+
+/**
+ * The line that names the block at the head of the message: the enquiry schema has no block
+ * field, and the message is what marketing reads first, in the office and in the e-mail.
+ */
+export function aboutLine(about: EnquiryAbout): string {
+  return `About ${about.name} (${about.racks} racks, up to ${about.kwPerRack} kW per rack).`;
+}
+
+/** Racks and density from the block, where the enquiry's limits take them. */
+function prefillOf(about: EnquiryAbout | undefined): { racks?: number; kwPerRack?: number } {
+  if (!about) return {};
+  const racks = CapacityEnquirySchema.shape.racks.safeParse(about.racks);
+  const kw = CapacityEnquirySchema.shape.kwPerRack.safeParse(about.kwPerRack);
+  return { ...(racks.success ? { racks: racks.data } : {}), ...(kw.success ? { kwPerRack: kw.data } : {}) };
+}
+
+/** An enquiry about one project: capacity, a site visit (with the site rules) or a question; pre-filled from a block when `about` names one. */
+export function EnquiryForm({ project, about: given }: { project: Project; about?: EnquiryAbout }) {
   const send = useSendEnquiry(project.slug);
   const [done, setDone] = useState<string | null>(null);
+  const [about, setAbout] = useState(given);
   const kinds = EnquiryKindSchema.options.filter((k) => k !== "visit" || project.visitsOffered);
   const form = useForm<Values>({
     resolver: zodResolver(EnquiryInputSchema),
     // Fields of the kinds not chosen leave the values, so the strict schema sees only this kind's.
     shouldUnregister: true,
-    defaultValues: { kind: "capacity", name: "", email: "", organisation: "", phone: "", message: "", website: "" } as Values,
+    defaultValues: { kind: "capacity", name: "", email: "", organisation: "", phone: "", message: "", website: "", ...prefillOf(given) } as Values,
   });
   const kind = form.watch("kind");
   const errors = form.formState.errors as unknown as Errors;
@@ -76,10 +100,11 @@ export function EnquiryForm({ project }: { project: Project }) {
   };
   const onSubmit = form.handleSubmit(async (v) => {
     try {
-      const r = await send.mutateAsync(v as z.output<typeof EnquiryInputSchema>);
+      const input = v as z.output<typeof EnquiryInputSchema>;
+      const r = await send.mutateAsync(about ? { ...input, message: [aboutLine(about), input.message?.trim()].filter(Boolean).join("\n\n") } : input);
       setDone(r.message);
     } catch (e) {
-      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { message: e.message }, form.setError);
+      applyApiError(e, form.setError, "message");
     }
   });
   if (done) {
@@ -106,6 +131,17 @@ export function EnquiryForm({ project }: { project: Project }) {
           ))}
         </div>
       </fieldset>
+
+      {about ? (
+        <div className="flex flex-wrap items-baseline justify-between gap-2 border-l-4 border-ink bg-paper px-3 py-2 text-sm" data-testid="enquiry-about">
+          <p>
+            <span className="font-semibold">Asking about {about.name}</span>: {about.racks} racks, up to {about.kwPerRack} kW per rack. The message starts with this line.
+          </p>
+          <button type="button" className="underline underline-offset-4" onClick={() => setAbout(undefined)}>
+            Not about this block
+          </button>
+        </div>
+      ) : null}
 
       {kind === "capacity" ? (
         <div className="grid gap-4 sm:grid-cols-3">

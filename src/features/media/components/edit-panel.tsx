@@ -9,9 +9,10 @@ import { Button } from "../../../components/ui/button.tsx";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
+import { facilityChoiceLabel } from "../../../lib/facility-tags.ts";
 import { applyFieldErrors, SYSTEM_WORD } from "../../../lib/format.ts";
 import { useMe } from "../../../lib/session.ts";
-import { canReview, mediaItemQueryOptions, useRetry, useUpdateMedia } from "../api.ts";
+import { canReview, mediaFacilityTagsQueryOptions, mediaItemQueryOptions, useRetry, useUpdateMedia } from "../api.ts";
 import { formatBytes, formatTakenAt, SENSITIVITY_WORD } from "../words.ts";
 import { FocalPicker } from "./focal-picker.tsx";
 import { MissingAlt, SecurityFlag, SensitivityWord, StatusWord } from "./marks.tsx";
@@ -24,7 +25,7 @@ function defaultsOf(item: MediaItem): FormInput {
     caption: item.caption ?? "",
     credit: item.credit ?? "",
     focal: item.focal,
-    tags: { areas: item.tags.areas, systems: item.tags.systems, milestones: item.tags.milestones },
+    tags: { areas: item.tags.areas, systems: item.tags.systems, milestones: item.tags.milestones, blocks: item.tags.blocks, plants: item.tags.plants },
     sensitivity: item.sensitivity,
   };
 }
@@ -110,6 +111,7 @@ function EditForm({ item, slug, vocabulary, onClose }: { item: MediaItem; slug: 
   const me = useMe();
   const reviewer = canReview(me.data);
   const update = useUpdateMedia(slug);
+  const facility = useQuery(mediaFacilityTagsQueryOptions(slug));
   const form = useForm<FormInput, unknown, MediaPatchInput>({ resolver: zodResolver(MediaPatchInputSchema), defaultValues: defaultsOf(item) });
   const { errors } = form.formState;
 
@@ -161,6 +163,28 @@ function EditForm({ item, slug, vocabulary, onClose }: { item: MediaItem; slug: 
           </TagSet>
         )}
       />
+      {(
+        [
+          ["tags.blocks", "Block", "blocks", "The project has no capacity blocks yet."],
+          ["tags.plants", "Plant system", "plants", "The project has no plant systems yet."],
+        ] as const
+      ).map(([name, legend, key, none]) => (
+        <Controller
+          key={name}
+          control={form.control}
+          name={name}
+          render={({ field }) => (
+            <TagSet legend={legend}>
+              {facility.data && facility.data[key].length === 0 ? <p className="text-sm text-ink-faint">{none}</p> : null}
+              <div className="flex flex-wrap gap-x-4 gap-y-1">
+                <Ticks options={(facility.data?.[key] ?? []).map((c) => ({ key: c.id, label: facilityChoiceLabel(c) }))} value={field.value ?? []} onChange={field.onChange} />
+              </div>
+              {errors.tags?.[key] ? <p role="alert" className="text-sm text-bad">{errors.tags[key]?.message}</p> : null}
+            </TagSet>
+          )}
+        />
+      ))}
+      <p className="text-xs text-ink-faint">An internal block or system may tag a restricted photo only.</p>
       {reviewer ? (
         <SelectField
           label="Sensitivity"

@@ -1,6 +1,7 @@
 import { Image } from "@tiptap/extension-image";
 import { mergeAttributes, Node, NodeViewWrapper, ReactNodeViewRenderer, type ReactNodeViewProps } from "@tiptap/react";
 import { Picture } from "../../../components/ui/picture.tsx";
+import { ProblemAlerts } from "../../../components/ui/publishing-editor.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import { useEditorData } from "./editor-context.ts";
@@ -56,11 +57,7 @@ function ImageView({ node, updateAttributes, selected, deleteNode }: ReactNodeVi
             Remove photo
           </button>
         </div>
-        {mine.map((p) => (
-          <p key={`${p.code}-${p.message}`} role="alert" className="font-sans text-sm font-medium text-bad">
-            ▲ {p.message}
-          </p>
-        ))}
+        <ProblemAlerts problems={mine} className="font-sans" />
       </div>
     </NodeViewWrapper>
   );
@@ -111,11 +108,7 @@ function MilestoneView({ node, selected, deleteNode }: ReactNodeViewProps) {
             </span>
           </p>
         ) : null}
-        {mine.map((p) => (
-          <p key={p.message} role="alert" className="mt-1 text-sm font-medium text-bad">
-            ▲ {p.message}
-          </p>
-        ))}
+        <ProblemAlerts problems={mine} className="mt-1" />
         <button type="button" className="mt-1 text-xs underline underline-offset-2" onClick={() => deleteNode()}>
           Remove block
         </button>

@@ -4,9 +4,8 @@ import { SystemSchema } from "#shared/schemas/programme.ts";
 import { SelectField } from "../../../components/ui/field.tsx";
 import type { PhotoChoice } from "../../../components/ui/photo-choice.tsx";
 import { PhotoPickerDialog } from "../../../components/ui/photo-picker.tsx";
-import { pageCount } from "../../../lib/api-client.ts";
 import { SYSTEM_WORD } from "../../../lib/format.ts";
-import { mediaItemTitle, pictureOfMediaItem } from "../../../lib/media.ts";
+import { mediaItemTitle, pickerPage, pictureOfMediaItem } from "../../../lib/media.ts";
 import { useMediaPicker } from "../api.ts";
 
 const SENSITIVITY_WORD = { unreviewed: "Not yet reviewed", cleared: "Cleared", restricted: "Restricted" } as const;
@@ -30,8 +29,7 @@ export function MediaPickerDialog({ slug, open, title, onClose, onChoose }: { sl
   const [system, setSystem] = useState("");
   const [page, setPage] = useState(1);
   const media = useMediaPicker(open ? slug : "", { q: search || undefined, system: system || undefined, page });
-  const items = media.data?.items ?? [];
-  const pages = media.data ? pageCount(media.data.total, media.data.pageSize) : 1;
+  const { items, pages, choose } = pickerPage(media.data, onChoose);
   return (
     <PhotoPickerDialog
       open={open}
@@ -58,11 +56,7 @@ export function MediaPickerDialog({ slug, open, title, onClose, onChoose }: { sl
       pending={media.isPending}
       error={media.isError ? media.error.message : null}
       choices={items.map(choiceOf)}
-      onChoose={(id) => {
-        const item = items.find((i) => i.id === id);
-        if (!item || item.sensitivity === "restricted") return;
-        onChoose(item, pictureOfMediaItem(item));
-      }}
+      onChoose={choose}
       note="Photos need alt text and a lead's clearance before the update can be published. Restricted photos cannot be used."
       page={page}
       pages={pages}

@@ -1,5 +1,5 @@
 import { useLayoutEffect, useRef, useState, type ReactNode } from "react";
-import { YAxis } from "recharts";
+import { YAxis, type BarShapeProps } from "recharts";
 
 export const INK = "#1d1f24";
 export const INK_SOFT = "#4a4e57";
@@ -8,6 +8,15 @@ export const RULE_STRONG = "#b9b09c";
 export const ACCENT = "#c2410c";
 /** The band behind the row under the pointer in a sideways bar chart. */
 export const ROW_CURSOR = { fill: "rgba(29,31,36,0.05)" };
+
+/**
+ * A sideways bar's row and its box from left to right (recharts gives a bar that grows
+ * leftwards, a negative value, a negative width), at least `minWidth` pixels wide so a
+ * zero-length bar still shows; `cy` is the bar's middle.
+ */
+export function barBox<R>(p: BarShapeProps, minWidth = 0): { row: R; x: number; w: number; cy: number } {
+  return { row: p.payload as R, x: Math.min(p.x, p.x + p.width), w: Math.max(minWidth, Math.abs(p.width)), cy: p.y + p.height / 2 };
+}
 
 /** Width of an element, kept up to date: charts draw at a known pixel width, so they fit a phone. */
 function useElementWidth<T extends HTMLElement>(): [React.RefObject<T | null>, number] {

@@ -1,5 +1,6 @@
 import { CartesianGrid, Line, LineChart, ReferenceLine, Tooltip, XAxis, YAxis } from "recharts";
 import { fromDayNumber, toDayNumber } from "#shared/domain/calendar.ts";
+import { LineKey, type KeyLine } from "../../../components/ui/line-key.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import type { CurveResponse } from "#shared/schemas/programme.ts";
 import { formatAxisMonth, monthTicks } from "../dates.ts";
@@ -12,30 +13,11 @@ interface Point {
   earned: number | null;
 }
 
-function LineKey() {
-  return (
-    <ul className="flex flex-wrap gap-x-5 gap-y-1 text-sm" aria-label="Key">
-      <li className="flex items-center gap-2">
-        <svg aria-hidden width="28" height="8">
-          <line x1="0" y1="4" x2="28" y2="4" stroke={INK_SOFT} strokeWidth="2" strokeDasharray="6 4" />
-        </svg>
-        Planned (baseline)
-      </li>
-      <li className="flex items-center gap-2">
-        <svg aria-hidden width="28" height="8">
-          <line x1="0" y1="4" x2="28" y2="4" stroke={ACCENT} strokeWidth="3" />
-        </svg>
-        Earned (work done)
-      </li>
-      <li className="flex items-center gap-2">
-        <svg aria-hidden width="12" height="14">
-          <line x1="6" y1="0" x2="6" y2="14" stroke={ACCENT} strokeWidth="1.5" strokeDasharray="3 2" />
-        </svg>
-        Today
-      </li>
-    </ul>
-  );
-}
+const KEY: readonly KeyLine[] = [
+  { label: "Planned (baseline)", stroke: INK_SOFT, width: 2, dash: "6 4" },
+  { label: "Earned (work done)", stroke: ACCENT, width: 3 },
+  { label: "Today", stroke: ACCENT, width: 1.5, dash: "3 2", upright: true },
+];
 
 /**
  * The S-curve: weighted planned percent from the current baseline against earned
@@ -52,7 +34,7 @@ export function SCurveChart({ curve }: { curve: CurveResponse }) {
     ? `On ${formatDate(curve.at)} the baseline planned ${formatPercent(atPoint.plannedPercent)} of the work to be done; ${formatPercent(atPoint.earnedPercent)} is done.`
     : "No points to draw yet.";
   return (
-    <ChartFrame title="Planned against earned" summary={summary} testId="chart-s-curve" footer={<LineKey />}>
+    <ChartFrame title="Planned against earned" summary={summary} testId="chart-s-curve" footer={<LineKey lines={KEY} />}>
       {(width) => (
         <LineChart width={width} height={width < 480 ? 240 : 320} data={points} margin={{ top: 16, right: 16, bottom: 4, left: 0 }}>
           <CartesianGrid stroke={RULE} strokeDasharray="2 4" />

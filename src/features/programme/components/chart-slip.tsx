@@ -3,7 +3,7 @@ import type { NameType, ValueType } from "recharts/types/component/DefaultToolti
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { STATUS_LOOK, StatusKey, StatusMark, StatusShape } from "../../../components/ui/status-mark.tsx";
 import { signedDays } from "../words.ts";
-import { ChartFrame, INK, INK_SOFT, milestoneNameAxis, ROW_CURSOR, RULE } from "./chart-frame.tsx";
+import { barBox, ChartFrame, INK, INK_SOFT, milestoneNameAxis, ROW_CURSOR, RULE } from "./chart-frame.tsx";
 
 interface Row {
   label: string;
@@ -12,11 +12,8 @@ interface Row {
 }
 
 function SlipBar(p: BarShapeProps) {
-  const row = p.payload as Row;
-  const x = Math.min(p.x, p.x + p.width);
-  const w = Math.abs(p.width);
+  const { row, x, w, cy } = barBox<Row>(p);
   const { color } = STATUS_LOOK[row.m.status];
-  const cy = p.y + p.height / 2;
   // The label sits beyond the bar's end, on the side it grows towards.
   const later = row.slip >= 0;
   const end = later ? x + w : x;

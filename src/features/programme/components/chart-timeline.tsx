@@ -7,7 +7,7 @@ import { STATUS_LOOK, StatusKey, StatusMark, StatusShape } from "../../../compon
 import { formatDate } from "../../../lib/format.ts";
 import { formatAxisMonth, monthTicks } from "../dates.ts";
 import { signedDays } from "../words.ts";
-import { ACCENT, ChartFrame, INK_SOFT, milestoneNameAxis, ROW_CURSOR, RULE, RULE_STRONG } from "./chart-frame.tsx";
+import { ACCENT, barBox, ChartFrame, INK_SOFT, milestoneNameAxis, ROW_CURSOR, RULE, RULE_STRONG } from "./chart-frame.tsx";
 
 interface Row {
   id: number;
@@ -27,20 +27,15 @@ interface Row {
 }
 
 function BaselineBar(p: BarShapeProps) {
-  const row = p.payload as Row;
-  const x = Math.min(p.x, p.x + p.width);
-  const w = Math.max(2, Math.abs(p.width));
+  const { row, x, w } = barBox<Row>(p, 2);
   // A point milestone's baseline is a tick on its date.
   if (row.point) return <rect x={x + w - 1.5} y={p.y - 1} width={3} height={p.height + 2} fill={RULE_STRONG} />;
   return <rect x={x} y={p.y} width={w} height={p.height} fill={RULE} stroke={RULE_STRONG} strokeWidth={1} />;
 }
 
 function ForecastBar(p: BarShapeProps) {
-  const row = p.payload as Row;
-  const x = Math.min(p.x, p.x + p.width);
-  const w = Math.max(2, Math.abs(p.width));
+  const { row, x, w, cy } = barBox<Row>(p, 2);
   const { color } = STATUS_LOOK[row.status];
-  const cy = p.y + p.height / 2;
   if (row.point) {
     // From the baseline date to the forecast: the slip as a line, the forecast as the status shape.
     const end = x + Math.abs(p.width);

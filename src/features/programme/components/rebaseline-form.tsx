@@ -7,8 +7,7 @@ import { BaselineInputSchema, type Milestone } from "#shared/schemas/programme.t
 import type { ProgrammeSettings } from "#shared/domain/programme-health.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { TextAreaField } from "../../../components/ui/field.tsx";
-import { ApiError } from "../../../lib/api-client.ts";
-import { applyFieldErrors, formatInstant } from "../../../lib/format.ts";
+import { applyApiError, formatInstant } from "../../../lib/format.ts";
 import { baselinesQueryOptions, useRebaseline } from "../api.ts";
 import { previewDrafts, rebaselineDrafts } from "../preview.ts";
 import { HealthPreview } from "./health-preview.tsx";
@@ -50,7 +49,7 @@ export function RebaselineForm({ slug, milestones, settings, at, timeZone, edita
       toast.success(`Baseline v${r.number} recorded`);
       form.reset({ reason: "", adoptForecasts: true, overrides: [] });
     } catch (e) {
-      if (e instanceof ApiError && Object.keys(e.fields).length) applyFieldErrors(e.fields, form.setError);
+      applyApiError(e, form.setError);
     }
   });
   return (

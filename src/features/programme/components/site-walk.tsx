@@ -8,6 +8,7 @@ import { Button } from "../../../components/ui/button.tsx";
 import { SelectField } from "../../../components/ui/field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
+import { WalkSteps } from "../../../components/ui/walk-frame.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { applyFieldErrors, formatDate, SYSTEM_WORD } from "../../../lib/format.ts";
 import { conflictCurrent, usePatchMilestone } from "../api.ts";
@@ -203,14 +204,7 @@ export function SiteWalk({ slug, milestones, settings, at }: { slug: string; mil
       ) : current ? (
         <StepForm key={`${current.id}`} slug={slug} m={current} milestones={milestones} settings={settings} at={at} position={`${index + 1} of ${ids.length}`} onSaved={() => setIndex((i) => i + 1)} />
       ) : null}
-      <nav aria-label="Walk steps" className="grid grid-cols-2 gap-2">
-        <Button className={big} disabled={index === 0} onClick={() => setIndex((i) => Math.max(0, i - 1))}>
-          ← Previous
-        </Button>
-        <Button className={big} disabled={index >= ids.length} onClick={() => setIndex((i) => Math.min(ids.length, i + 1))}>
-          Skip →
-        </Button>
-      </nav>
+      <WalkSteps index={index} count={ids.length} setIndex={setIndex} />
     </div>
   );
 }

@@ -2,8 +2,7 @@ import { useState } from "react";
 import type { MediaItem, MediaPicture } from "#shared/schemas/media.ts";
 import type { PhotoChoice } from "../../../components/ui/photo-choice.tsx";
 import { PhotoPickerDialog } from "../../../components/ui/photo-picker.tsx";
-import { pageCount } from "../../../lib/api-client.ts";
-import { mediaItemTitle, pictureOfMediaItem } from "../../../lib/media.ts";
+import { mediaItemTitle, pickerPage, pictureOfMediaItem } from "../../../lib/media.ts";
 import { useStoryMedia } from "../api.ts";
 
 function choiceOf(item: MediaItem): PhotoChoice {
@@ -24,8 +23,7 @@ export function StoryPhotoPicker({ slug, title, area, onClose, onChoose }: { slu
   const [onlyArea, setOnlyArea] = useState(Boolean(area));
   const [page, setPage] = useState(1);
   const media = useStoryMedia(slug, { q: search || undefined, area: onlyArea && area ? area : undefined, page });
-  const items = media.data?.items ?? [];
-  const pages = media.data ? pageCount(media.data.total, media.data.pageSize) : 1;
+  const { items, pages, choose } = pickerPage(media.data, onChoose);
   return (
     <PhotoPickerDialog
       title={title}
@@ -44,10 +42,7 @@ export function StoryPhotoPicker({ slug, title, area, onClose, onChoose }: { slu
       pending={media.isPending}
       error={media.isError ? media.error.message : null}
       choices={items.map(choiceOf)}
-      onChoose={(id) => {
-        const item = items.find((i) => i.id === id);
-        if (item && item.sensitivity !== "restricted") onChoose(item, pictureOfMediaItem(item));
-      }}
+      onChoose={choose}
       page={page}
       pages={pages}
       onPage={setPage}

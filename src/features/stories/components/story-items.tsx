@@ -4,6 +4,7 @@ import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { PublishingProblem } from "#shared/schemas/publishing.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { Picture } from "../../../components/ui/picture.tsx";
+import { ProblemAlerts } from "../../../components/ui/publishing-editor.tsx";
 
 export type EditItem =
   | { key: string; kind: "photo"; mediaId: number | null; caption: string }
@@ -123,11 +124,7 @@ function ItemCard({
           <span className="font-medium">Caption</span>
           <textarea rows={2} value={item.caption} onChange={(e) => onChange({ ...item, caption: e.target.value })} maxLength={1000} className="rounded-sm border border-rule-strong bg-sheet px-2 py-1.5 font-serif" />
         </label>
-        {mine.map((p) => (
-          <p key={`${p.code}-${p.mediaId}`} role="alert" className="text-sm font-medium text-bad">
-            ▲ {p.message}
-          </p>
-        ))}
+        <ProblemAlerts problems={mine} />
       </div>
     </li>
   );

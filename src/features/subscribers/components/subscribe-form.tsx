@@ -7,7 +7,7 @@ import { Button } from "../../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../../components/ui/field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
-import { applyFieldErrors } from "../../../lib/format.ts";
+import { applyApiError } from "../../../lib/format.ts";
 import { useSubscribe } from "../api.ts";
 import { FREQUENCY_WORD, INTEREST_WORD } from "../words.ts";
 import { ConsentNote } from "./consent-note.tsx";
@@ -32,7 +32,7 @@ export function SubscribeForm({ options }: { options: SubscriptionOptions }) {
       const r = await subscribe.mutateAsync({ ...v, projectSlug: options.project.slug });
       setDone(r.message);
     } catch (e) {
-      if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { email: e.message }, form.setError);
+      applyApiError(e, form.setError, "email");
     }
   });
   if (done) {
