@@ -105,7 +105,9 @@ function PreviewPanel({ project, timeZone }: { project: string; timeZone?: strin
           <p className="text-sm text-ink-soft">
             {preview.data.preheader} · news since {when(preview.data.windowStart, timeZone)}
           </p>
-          <iframe title="Digest preview" className="h-[36rem] w-full border border-rule bg-white" sandbox="" srcDoc={preview.data.html} />
+          {/* No scripts run in the preview (no allow-scripts); allow-same-origin lets it load this site's
+              own images, which answer with a same-origin resource policy an opaque sandbox would refuse. */}
+          <iframe title="Digest preview" className="h-[36rem] w-full border border-rule bg-white" sandbox="allow-same-origin" srcDoc={preview.data.html} />
         </div>
       ) : null}
     </div>
