@@ -30,6 +30,10 @@ import { storiesRouter, storyPagesRouter } from "./stories/stories.router.ts";
 import { injectHead, type FeedsService } from "./feeds/feeds.service.ts";
 import { feedsRouter } from "./feeds/feeds.router.ts";
 import { digestsRouter } from "./digests/digests.router.ts";
+import { risksRouter } from "./risks/risks.router.ts";
+import { decisionsRouter } from "./decisions/decisions.router.ts";
+import { budgetRouter } from "./budget/budget.router.ts";
+import { documentsRouter } from "./documents/documents.router.ts";
 import type { Services } from "./services.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
@@ -169,6 +173,10 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   api.use(postsRouter(posts));
   api.use(storiesRouter(stories));
   api.use(digestsRouter(digests));
+  api.use(risksRouter(services.risks));
+  api.use(decisionsRouter(services.decisions));
+  api.use(budgetRouter(services.budget));
+  api.use(documentsRouter(services.documents, mediaUploads));
   api.use(apiNotFound);
   app.use("/api", api);
   // RFC 8058 one-click unsubscribe (POST); a GET of the same path is the client's page.

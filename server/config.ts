@@ -37,6 +37,9 @@ const ConfigSchema = z.object({
   MEDIA_MAX_PIXELS: z.coerce.number().int().positive().default(100_000_000),
   // Derivative jobs run at once in this process; 0 leaves them to other processes.
   MEDIA_WORKERS: z.coerce.number().int().min(0).max(16).default(1),
+  // The document library (server/documents): one file's size, and a PDF's pages.
+  DOCUMENT_MAX_FILE_MB: z.coerce.number().positive().max(1024).default(50),
+  DOCUMENT_MAX_PAGES: z.coerce.number().int().positive().default(1000),
   PUBLIC_URL: z.url({ error: "must be an absolute URL such as https://progress.example.com" }).optional(),
   SESSION_SECRET: z.string().min(16, "must be at least 16 characters"),
   SESSION_IDLE_MINUTES: z.coerce.number().int().positive().default(120),

@@ -9,6 +9,9 @@ import { createOutboxService } from "./mail/mail.service.ts";
 import { createProjectsService } from "./projects/projects.service.ts";
 import { createProgrammeService } from "./programme/programme.service.ts";
 import { createFacilityService } from "./facility/facility.service.ts";
+import { createRisksService } from "./risks/risks.service.ts";
+import { createDecisionsService } from "./decisions/decisions.service.ts";
+import { createBudgetService } from "./budget/budget.service.ts";
 import { createMediaService } from "./media/media.service.ts";
 import { createLocalDiskStorage, createUploadArea } from "./media/media.storage.ts";
 import { createRateLimitStore } from "./rate-limit/rate-limit.service.ts";
@@ -23,6 +26,7 @@ import { createStoriesService } from "./stories/stories.service.ts";
 import { createFeedsService } from "./feeds/feeds.service.ts";
 import { createPublicCache } from "./feeds/public-cache.ts";
 import { createDigestsService } from "./digests/digests.service.ts";
+import { createDocumentsService } from "./documents/documents.service.ts";
 
 export interface ServiceDeps {
   db: Db;
@@ -63,6 +67,34 @@ export function createServices(deps: ServiceDeps) {
   });
   // Capacity blocks, plant and site features: readiness reads the programme's milestone dates.
   const facility = createFacilityService({ db, projects, programme, accounts, audit });
+  // The investor record's risks and issues register, and decisions needed (which link risks).
+  const risks = createRisksService({
+    db,
+    projects,
+    programme,
+    facility,
+    accounts,
+    audit,
+    // The budget's remaining contingency beside the risks' expected exposure (the budget is built just below; asked only at request time).
+    contingencyRemaining: (projectId) => budget.contingencyRemaining(projectId),
+    // A risk a decision or a budget change links is on record: not deleted (both are built just below; asked only at request time).
+    references: async (riskId) => [...(await decisions.linkingRisk(riskId)), ...(await budget.riskReferences(riskId))],
+  });
+  const decisions = createDecisionsService({
+    db,
+    projects,
+    programme,
+    risks,
+    accounts,
+    audit,
+    // Documents attached to a decision (the library is built below; asked only at request time).
+    documents: {
+      documentIdsOf: (projectId, ids) => documents.documentIdsOf(projectId, ids),
+      documentsNamed: (projectId, ids, actor) => documents.documentsNamed(projectId, ids, actor),
+    },
+  });
+  // Budget changes and the cost position: the original budget, PV, EV and AC from the programme's health.
+  const budget = createBudgetService({ db, projects, programme, accounts, risks, audit });
   const mediaStorage = createLocalDiskStorage(config.MEDIA_DIR);
   const mediaUploads = createUploadArea(config.MEDIA_DIR);
   const media = createMediaService({
@@ -77,6 +109,21 @@ export function createServices(deps: ServiceDeps) {
     facility,
     // Signed derivative links (investor images in e-mail) use a key derived from it under their own label.
     tokenSecret: config.TOKEN_SECRET,
+  });
+  // The document library: files kept privately in the media storage, each investor's copy stamped for them.
+  const documents = createDocumentsService({
+    db,
+    projects,
+    accounts,
+    audit,
+    organisations: {
+      ofUser: (userId) => users.organisationOf(userId),
+      // Organisations are few: one read of them all names any of them.
+      namesOf: async (ids) => new Map((await users.listOrganisations()).filter((o) => ids.includes(o.id)).map((o) => [o.id, o.name])),
+    },
+    storage: mediaStorage,
+    uploads: mediaUploads,
+    limits: { maxFileBytes: Math.round(config.DOCUMENT_MAX_FILE_MB * 1024 * 1024), maxPages: config.DOCUMENT_MAX_PAGES },
   });
   const rateLimits = {
     ip: createRateLimitStore(db, "login-ip"),
@@ -113,6 +160,14 @@ export function createServices(deps: ServiceDeps) {
     media,
     posts,
     facility,
+    // The investor record's moves in a window, for investor digests (decision 041); the currency names their money.
+    record: {
+      risks,
+      decisions,
+      budget,
+      documents,
+      currency: async (projectId) => (await projects.getById(projectId)).currency,
+    },
     subscribers,
     publicUrl: config.PUBLIC_URL,
     tokenSecret: config.TOKEN_SECRET,
@@ -146,6 +201,14 @@ export function createServices(deps: ServiceDeps) {
     /** Photo stories; tests run their scheduled publication with a chosen `now` (stories.publishDue). */
     stories,
     site,
+    /** The document library: documents, versions, stamped copies, the view log; `movesIn` for digests. */
+    documents,
+    /** The risks and issues register; `movesIn` for digests, `riskIdsOf` / `risksNamed` / `exposure` for the budget. */
+    risks,
+    /** Decisions needed; `movesIn` for digests. */
+    decisions,
+    /** Budget changes and the cost position; `contingencyRemaining` for the risks register, `movesIn` for digests. */
+    budget,
     /** Digests: runs, previews and web copies. */
     digests,
     /** The process is stopping: work that requests set going (the subscription mail they queued) starts no more. */

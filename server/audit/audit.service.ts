@@ -37,7 +37,36 @@ export type AuditAction =
   | "facility_unit_deleted"
   | "facility_feature_created"
   | "facility_feature_updated"
-  | "facility_feature_deleted";
+  | "facility_feature_deleted"
+  // Risks and issues register (server/risks): entries, the risk → issue step, mitigation actions.
+  | "risk_created"
+  | "risk_updated"
+  | "risk_deleted"
+  | "risk_became_issue"
+  | "issue_created"
+  | "issue_updated"
+  | "issue_deleted"
+  | "risk_mitigation_added"
+  | "risk_mitigation_updated"
+  | "risk_mitigation_deleted"
+  // Decisions needed (server/decisions): requests, their outcome or withdrawal.
+  | "decision_created"
+  | "decision_updated"
+  | "decision_decided"
+  | "decision_withdrawn"
+  // Budget writes (server/budget): changes, and the contingency and projected final cost settings.
+  | "budget_change_created"
+  | "budget_change_updated"
+  | "budget_change_deleted"
+  | "budget_settings_changed"
+  // Investor organisations (server/users).
+  | "organisation_created"
+  | "user_organisation_changed"
+  // The document library (server/documents): documents, their versions.
+  | "document_created"
+  | "document_version_added"
+  | "document_updated"
+  | "document_deleted";
 
 export interface AuditService {
   record(

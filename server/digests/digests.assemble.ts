@@ -7,6 +7,7 @@ import type { ProgrammeService } from "../programme/programme.service.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import { topicsAllow } from "../subscribers/subscribers.topics.ts";
 import { createFacilityMovesCache, type DigestFacilitySource, type FacilityMovesCache } from "./digests.facility.ts";
+import { createRecordMovesCache, emptyRecord, investorRoomUrl, type DigestRecordSource, type RecordMovesCache } from "./digests.record.ts";
 import type { DigestDocument, DigestFigures } from "./digests.render.ts";
 import { localDate } from "./digests.windows.ts";
 
@@ -51,8 +52,14 @@ export interface AssembleInput {
   previous: PreviousFigures;
   /** The post of an "as it happens" digest. */
   postId?: number | null;
-  /** The run's facility moves, shared by its readers (`newRunCache`); a lone digest works its own out. */
-  facilityMoves?: FacilityMovesCache;
+  /** The run's facility and record moves, shared by its readers (`newRunCache`); a lone digest works its own out. */
+  runCache?: DigestRunCache;
+}
+
+/** What a run works out once per (project, audience, window) and shares between its readers. */
+export interface DigestRunCache {
+  facility: FacilityMovesCache;
+  record: RecordMovesCache;
 }
 
 export interface DigestAssemblerDeps {
@@ -60,13 +67,15 @@ export interface DigestAssemblerDeps {
   media: Pick<MediaService, "pictureFor" | "signedVariantUrl">;
   posts: Pick<PostsService, "publishedBetween" | "findPublished">;
   facility: DigestFacilitySource;
+  /** The investor record (risks, decisions, budget changes, documents): its moves are investors' news. */
+  record: DigestRecordSource;
   publicUrl: string;
   now: () => Date;
 }
 
 /** What goes into one reader's digest. */
 export function createDigestAssembler(deps: DigestAssemblerDeps) {
-  const { programme, media, posts, facility, publicUrl, now } = deps;
+  const { programme, media, posts, facility, record, publicUrl, now } = deps;
 
   /**
    * Each post's cover picture by post id, as an absolute URL for e-mail: a public post's is the
@@ -90,13 +99,14 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
     return out;
   }
 
-  /** A cache for one run: each (audience, window) asks the facility once, whoever reads it. */
-  const newRunCache = () => createFacilityMovesCache(facility);
+  /** A cache for one run: each (audience, window) asks the facility and the record once, whoever reads it. */
+  const newRunCache = (): DigestRunCache => ({ facility: createFacilityMovesCache(facility), record: createRecordMovesCache(record) });
 
   /**
    * What one reader's digest holds: posts published in the window that the audience and
-   * topics allow, the programme's and the facility's moves in the window, milestones due in
-   * the next 30 days, and the headline figures against those of the reader's last digest.
+   * topics allow, the programme's and the facility's moves in the window, for an investor the
+   * record's (risks, decisions, approved changes, documents), milestones due in the next 30 days,
+   * and the headline figures against those of the reader's last digest.
    */
   async function assemble(p: AssembleInput): Promise<DigestDocument> {
     const { project, audience, topics } = p;
@@ -111,6 +121,7 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
     postRows = postRows.filter((x) => allowed.includes(x.audience) && topicsAllow(topics, postTopics(x)));
     const pictures = await posterUrls(postRows, audience);
     const projectUrl = `${publicUrl}/projects/${project.slug}`;
+    const roomUrl = investorRoomUrl(publicUrl, project.slug);
     const doc: DigestDocument = {
       project: { name: project.name, slug: project.slug, operatorName: project.operatorName, postalAddress: project.postalAddress, timeZone: project.timeZone },
       frequency: p.frequency,
@@ -127,6 +138,7 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
       })),
       moves: [],
       facility: [],
+      record: emptyRecord(roomUrl),
       dueSoon: [],
       figures: { percentComplete: null, forecastReady: null, previousPercent: null, previousForecast: null },
     };
@@ -151,9 +163,13 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
           .filter((m) => NEWS_MOVES.has(m.kind))
           .map((m) => ({ milestoneName: row.milestoneName, kind: m.kind, days: m.days, from: m.from, to: m.to, ...(m.kind === "removed" || m.kind === "restored" ? { reason: m.notes.join("; ") } : {}) })),
       );
-    // The facility's moves are the same for every reader of this audience and window: worked out once per run.
-    const facilityMoves = await (p.facilityMoves ?? newRunCache())(project.id, audience, firstDay, lastDay);
+    // The facility's and the record's moves are the same for every reader of this audience and window: worked out once per run.
+    const cache = p.runCache ?? newRunCache();
+    const facilityMoves = await cache.facility(project.id, audience, firstDay, lastDay);
     doc.facility = facilityMoves.filter((x) => topicsAllow(topics, x.topics)).map((x) => x.item);
+    // Nothing of the record is public. It is the project's record as a whole, so a reader's topics
+    // (areas and systems of the programme) do not narrow it: a decision asked of investors reaches each of them.
+    if (audience === "investor") doc.record = { ...(await cache.record(project.id, p.windowStart, p.windowEnd)), roomUrl };
     const today = localDate(p.windowEnd, project.timeZone);
     const horizon = addDays(today, 30);
     doc.dueSoon = milestones

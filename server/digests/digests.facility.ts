@@ -2,6 +2,7 @@ import type { FacilityAnswer, PlantKind } from "#shared/schemas/facility.ts";
 import type { System } from "#shared/schemas/programme.ts";
 import { addDays } from "#shared/domain/calendar.ts";
 import { facilityMoves, type FacilityMovesInput } from "#shared/domain/facility-record.ts";
+import { createRunMemo } from "./digests.run-memo.ts";
 
 /**
  * One facility move as a digest tells it. Names are the block's or the system's; dates are
@@ -94,18 +95,13 @@ export function facilityItems(before: FacilityAnswer, after: FacilityAnswer): To
  * programme's moves cover too).
  */
 export function createFacilityMovesCache(source: DigestFacilitySource) {
-  const figures = new Map<string, Promise<FacilityAnswer>>();
-  const moves = new Map<string, Promise<TopicalFacilityItem[]>>();
-  const once = <T>(memo: Map<string, Promise<T>>, key: string, make: () => Promise<T>): Promise<T> => {
-    let hit = memo.get(key);
-    if (!hit) memo.set(key, (hit = make()));
-    return hit;
-  };
-  const figuresOn = (projectId: number, day: string, viewer: DigestViewer) => once(figures, `${projectId}|${viewer}|${day}`, () => source.figuresAt(projectId, day, viewer));
+  const figures = createRunMemo<FacilityAnswer>();
+  const moves = createRunMemo<TopicalFacilityItem[]>();
+  const figuresOn = (projectId: number, day: string, viewer: DigestViewer) => figures(`${projectId}|${viewer}|${day}`, () => source.figuresAt(projectId, day, viewer));
 
   /** Moves over the days `firstDay` … `lastDay` (inclusive, in the project's zone). */
   return function movesIn(projectId: number, viewer: DigestViewer, firstDay: string, lastDay: string): Promise<TopicalFacilityItem[]> {
-    return once(moves, `${projectId}|${viewer}|${firstDay}|${lastDay}`, async () => facilityItems(await figuresOn(projectId, addDays(firstDay, -1), viewer), await figuresOn(projectId, lastDay, viewer)));
+    return moves(`${projectId}|${viewer}|${firstDay}|${lastDay}`, async () => facilityItems(await figuresOn(projectId, addDays(firstDay, -1), viewer), await figuresOn(projectId, lastDay, viewer)));
   };
 }
 export type FacilityMovesCache = ReturnType<typeof createFacilityMovesCache>;

@@ -67,7 +67,7 @@ export function createDigestPlanner(deps: DigestPlannerDeps) {
     const todo = recipients.filter((s) => !already.has(s.id));
     const previous = run.frequency === "immediate" ? new Map() : await lastFiguresOf(db, todo.map((s) => s.id));
     const contents = new Map<string, { id: number; empty: boolean }>();
-    const facilityMoves = assembler.newRunCache();
+    const runCache = assembler.newRunCache();
     const rows: DeliveryInsert[] = [];
     for (const s of todo) {
       const windowStart = windowStartOf(s, run);
@@ -79,7 +79,7 @@ export function createDigestPlanner(deps: DigestPlannerDeps) {
       const key = contentKeyOf({ audience: s.audience, topicsKey: s.topicsKey, windowStart, windowEnd: run.windowEnd, previous: prev });
       let content = contents.get(key);
       if (!content) {
-        const doc = await assembler.assemble({ project, frequency: run.frequency, audience: s.audience, topics: s.topics, windowStart, windowEnd: run.windowEnd, previous: prev, postId: run.postId, facilityMoves });
+        const doc = await assembler.assemble({ project, frequency: run.frequency, audience: s.audience, topics: s.topics, windowStart, windowEnd: run.windowEnd, previous: prev, postId: run.postId, runCache });
         const news = hasNews(doc);
         const rendered: RenderedDigest = news ? await renderDigest(doc) : { subject: "", preheader: "", html: "", text: "" };
         const id = await insertContent(db, run.id, {

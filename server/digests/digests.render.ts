@@ -5,6 +5,7 @@ import { INDICATIVE_CAUTION } from "#shared/domain/facility.ts";
 import type { MoveKind } from "#shared/domain/programme-changes.ts";
 import { escapeHtml } from "../mail/mail.layout.ts";
 import type { DigestFacilityItem } from "./digests.facility.ts";
+import { recordCounts, recordHasNews, recordSections, type DigestRecord } from "./digests.record.ts";
 
 /** Personal links, filled in per delivery; everything else is shared by every reader of a content. */
 export const PLACEHOLDERS = {
@@ -57,6 +58,8 @@ export interface DigestDocument {
   moves: DigestMoveItem[];
   /** What the facility did in the window: blocks' ready dates, readiness, redundancy, units commissioned. */
   facility: DigestFacilityItem[];
+  /** What the investor record did in the window (investor digests only; none in the seeded history). */
+  record?: DigestRecord;
   dueSoon: DigestDueItem[];
   figures: DigestFigures;
 }
@@ -68,9 +71,9 @@ export interface RenderedDigest {
   text: string;
 }
 
-/** Whether a digest has news: posts, programme or facility moves, or a changed headline figure. Due dates alone are not news. */
+/** Whether a digest has news: posts, programme, facility or record moves, or a changed headline figure. Due dates alone are not news. */
 export function hasNews(d: DigestDocument): boolean {
-  return d.posts.length > 0 || d.moves.length > 0 || d.facility.length > 0 || figureDelta(d.figures).changed;
+  return d.posts.length > 0 || d.moves.length > 0 || d.facility.length > 0 || (d.record !== undefined && recordHasNews(d.record)) || figureDelta(d.figures).changed;
 }
 
 /** The change of the headline figures since the reader's last digest (percentage points; calendar days). */
@@ -159,6 +162,7 @@ function preheaderOf(d: DigestDocument): string {
   if (d.posts.length) parts.push(`${d.posts.length} update${d.posts.length === 1 ? "" : "s"}`);
   if (d.moves.length) parts.push(`${d.moves.length} programme change${d.moves.length === 1 ? "" : "s"}`);
   if (d.facility.length) parts.push(`${d.facility.length} facility change${d.facility.length === 1 ? "" : "s"}`);
+  if (d.record) parts.push(...recordCounts(d.record));
   if (d.dueSoon.length) parts.push(`${d.dueSoon.length} milestone${d.dueSoon.length === 1 ? "" : "s"} due in the next 30 days`);
   const lead = d.frequency === "immediate" && d.posts[0] ? d.posts[0].summary || d.posts[0].title : parts.join(", ");
   return lead.slice(0, 140);
@@ -189,10 +193,11 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
       </mj-column></mj-section>`,
     )
     .join("");
-  const list = (title: string, items: string[], note?: string) =>
+  const list = (title: string, items: string[], note?: string, link?: { url: string; label: string }) =>
     items.length
-      ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0">${i}</mj-text>`).join("")}${note ? `<mj-text font-size="12px" color="#5a5e66" padding="6px 0 0 0">${e(note)}</mj-text>` : ""}</mj-column></mj-section>`
+      ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0">${i}</mj-text>`).join("")}${link ? `<mj-text padding="6px 0 0 0" font-size="13px"><a href="${e(link.url)}" style="color:#b34709">${e(link.label)}</a></mj-text>` : ""}${note ? `<mj-text font-size="12px" color="#5a5e66" padding="6px 0 0 0">${e(note)}</mj-text>` : ""}</mj-column></mj-section>`
       : "";
+  const record = d.record ? recordSections(d.record) : [];
   const moveItems = d.moves.map((m) => `<strong>${e(m.milestoneName)}</strong>: ${e(describeMove(m))}`);
   const facilityItems = d.facility.map((m) => `<strong>${e(m.name)}</strong>${e(describeFacilityMove(m))}`);
   const caution = showsEngineeringFigure(d.facility) ? INDICATIVE_CAUTION : undefined;
@@ -214,6 +219,7 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
       ${posts}
       ${list("Programme changes", moveItems)}
       ${list("Facility changes", facilityItems, caution)}
+      ${record.map((x) => list(x.title, x.lines.map((l) => `<strong>${e(l.name)}</strong>${e(l.rest)}`), undefined, x.link)).join("")}
       ${list("Due in the next 30 days", dueItems)}
     </mj-wrapper>
     <mj-section padding="12px"><mj-column>
@@ -233,6 +239,7 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
     ...d.posts.flatMap((p) => [p.title, ...(p.summary ? [p.summary] : []), `Read the update: ${p.url}`, ""]),
     ...(d.moves.length ? ["Programme changes", ...d.moves.map((m) => `- ${m.milestoneName}: ${describeMove(m)}`), ""] : []),
     ...(d.facility.length ? ["Facility changes", ...d.facility.map((m) => `- ${m.name}${describeFacilityMove(m)}`), ...(caution ? [caution] : []), ""] : []),
+    ...record.flatMap((x) => [x.title, ...x.lines.map((l) => `- ${l.name}${l.rest}`), ...(x.link ? [`${x.link.label}: ${x.link.url}`] : []), ""]),
     ...(d.dueSoon.length ? ["Due in the next 30 days", ...d.dueSoon.map((m) => `- ${m.name}: due ${longDate(m.date)}`), ""] : []),
     `View in the browser: ${PLACEHOLDERS.webUrl}`,
     "",

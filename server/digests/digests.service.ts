@@ -11,6 +11,7 @@ import type { ProjectsService } from "../projects/projects.service.ts";
 import type { SubscribersService } from "../subscribers/subscribers.service.ts";
 import { createDigestAssembler } from "./digests.assemble.ts";
 import type { DigestFacilitySource } from "./digests.facility.ts";
+import type { DigestRecordSource } from "./digests.record.ts";
 import { createDigestPlanner } from "./digests.plan.ts";
 import { createDigestPreview } from "./digests.preview.ts";
 import { deliveredSubscriberIds, findRun, findRunByKey, listRuns, postsWithImmediateRun, setRunStatus, type DigestRunRecord } from "./digests.repository.ts";
@@ -33,6 +34,8 @@ export interface DigestsDeps {
   media: MediaService;
   /** The facility as it stood on a day: its moves in a window are news. */
   facility: DigestFacilitySource;
+  /** The investor record: risks, decisions, approved budget changes and documents that moved in a window. */
+  record: DigestRecordSource;
   /** Published updates: what a digest tells of. */
   posts: Pick<PostsService, "publishedBetween" | "findPublished" | "publishedSince">;
   subscribers: SubscribersService;
@@ -70,7 +73,7 @@ export function createDigestsService(deps: DigestsDeps) {
   const now = deps.now ?? (() => new Date());
   const host = new URL(publicUrl).hostname || "plumbline.local";
 
-  const assembler = createDigestAssembler({ programme: deps.programme, media: deps.media, posts, facility: deps.facility, publicUrl, now });
+  const assembler = createDigestAssembler({ programme: deps.programme, media: deps.media, posts, facility: deps.facility, record: deps.record, publicUrl, now });
   const planner = createDigestPlanner({ db, logger: deps.logger, projects, posts, subscribers, assembler, host, now });
   const previews = createDigestPreview({ db, mailer: deps.mailer, projects, subscribers, assembler, publicUrl, host, now });
   const web = createDigestWebCopy({ db, media: deps.media, publicUrl, tokenSecret: deps.tokenSecret, unsubscribeMailto: deps.unsubscribeMailto, now });

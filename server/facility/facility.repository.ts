@@ -268,7 +268,8 @@ function toUnit(r: Record<string, unknown>): UnitRecord {
   };
 }
 
-const unitRow = (fields: Partial<UnitFields>) => rowOf(fields, { label: "label", tag: "tag", train: "train", stage: "stage", stageOn: "stage_on" });
+/** The columns of a unit's written fields (the demo seed writes its units' dated history with them). */
+export const unitRow = (fields: Partial<UnitFields>) => rowOf(fields, { label: "label", tag: "tag", train: "train", stage: "stage", stageOn: "stage_on" });
 
 /** Units of these systems, by system, then order of entry. */
 export async function listUnits(q: Q, systemIds: readonly number[]): Promise<UnitRecord[]> {

@@ -1,4 +1,4 @@
-import { Router } from "express";
+import { Router, type RequestHandler } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import {
   BlockCreateInputSchema,
@@ -15,6 +15,7 @@ import {
 } from "#shared/schemas/facility.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
+import type { Actor } from "../core/types.ts";
 import type { FacilityService } from "./facility.service.ts";
 
 const writers = () => requireRole("lead", "admin");
@@ -38,78 +39,59 @@ export function facilityRouter(facility: FacilityService): Router {
     res.json(await facility.projectEvents(slug, range));
   });
 
-  r.post("/projects/:slug/facility/blocks", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = BlockCreateInputSchema.parse(req.body);
-    res.status(201).json(await facility.createBlock(slug, input, actorOf(req)));
-  });
-  r.patch("/facility/blocks/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = BlockPatchInputSchema.parse(req.body);
-    res.json(await facility.patchBlock(id, input, actorOf(req)));
-  });
-  r.delete("/facility/blocks/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await facility.deleteBlock(id, actorOf(req));
-    res.status(204).end();
-  });
+  r.post("/projects/:slug/facility/blocks", writers(), createInProject(BlockCreateInputSchema, facility.createBlock));
+  r.patch("/facility/blocks/:id", writers(), writeEntry(BlockPatchInputSchema, facility.patchBlock));
+  r.delete("/facility/blocks/:id", writers(), deleteEntry(facility.deleteBlock));
 
-  r.post("/projects/:slug/facility/systems", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = SystemCreateInputSchema.parse(req.body);
-    res.status(201).json(await facility.createSystem(slug, input, actorOf(req)));
-  });
-  r.patch("/facility/systems/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = SystemPatchInputSchema.parse(req.body);
-    res.json(await facility.patchSystem(id, input, actorOf(req)));
-  });
-  r.delete("/facility/systems/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await facility.deleteSystem(id, actorOf(req));
-    res.status(204).end();
-  });
+  r.post("/projects/:slug/facility/systems", writers(), createInProject(SystemCreateInputSchema, facility.createSystem));
+  r.patch("/facility/systems/:id", writers(), writeEntry(SystemPatchInputSchema, facility.patchSystem));
+  r.delete("/facility/systems/:id", writers(), deleteEntry(facility.deleteSystem));
 
-  r.post("/facility/systems/:id/units", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = UnitCreateInputSchema.parse(req.body);
-    res.status(201).json(await facility.createUnit(id, input, actorOf(req)));
-  });
-  r.patch("/facility/units/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = UnitPatchInputSchema.parse(req.body);
-    res.json(await facility.patchUnit(id, input, actorOf(req)));
-  });
-  r.post("/facility/units/:id/stage", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = UnitStageInputSchema.parse(req.body);
-    res.json(await facility.setUnitStage(id, input, actorOf(req)));
-  });
+  r.post("/facility/systems/:id/units", writers(), writeEntry(UnitCreateInputSchema, facility.createUnit, 201));
+  r.patch("/facility/units/:id", writers(), writeEntry(UnitPatchInputSchema, facility.patchUnit));
+  r.post("/facility/units/:id/stage", writers(), writeEntry(UnitStageInputSchema, facility.setUnitStage));
   r.get("/facility/units/:id/events", async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);
     res.json(await facility.unitEvents(id, actorOf(req)));
   });
-  r.delete("/facility/units/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await facility.deleteUnit(id, actorOf(req));
-    res.status(204).end();
-  });
+  r.delete("/facility/units/:id", writers(), deleteEntry(facility.deleteUnit));
 
-  r.post("/projects/:slug/facility/features", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = FeatureCreateInputSchema.parse(req.body);
-    res.status(201).json(await facility.createFeature(slug, input, actorOf(req)));
-  });
-  r.patch("/facility/features/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = FeaturePatchInputSchema.parse(req.body);
-    res.json(await facility.patchFeature(id, input, actorOf(req)));
-  });
-  r.delete("/facility/features/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await facility.deleteFeature(id, actorOf(req));
-    res.status(204).end();
-  });
+  r.post("/projects/:slug/facility/features", writers(), createInProject(FeatureCreateInputSchema, facility.createFeature));
+  r.patch("/facility/features/:id", writers(), writeEntry(FeaturePatchInputSchema, facility.patchFeature));
+  r.delete("/facility/features/:id", writers(), deleteEntry(facility.deleteFeature));
 
   return r;
+}
+
+/** What a write's body is parsed with (a schema from #shared/schemas/facility.ts). */
+interface BodySchema<I> {
+  parse(body: unknown): I;
+}
+
+// Every write route is the same adapter: the path's slug or id and the body parsed, one call
+// to the service, its answer sent. A new entry answers 201, a delete 204 with no body.
+
+/** A new block, system or feature in the project named by `:slug`. */
+function createInProject<I>(schema: BodySchema<I>, create: (slug: string, input: I, actor: Actor) => Promise<unknown>): RequestHandler {
+  return async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    res.status(201).json(await create(slug, schema.parse(req.body), actorOf(req)));
+  };
+}
+
+/** A write to the entry `:id` (or, answering 201, a new unit of the system `:id`). */
+function writeEntry<I>(schema: BodySchema<I>, write: (id: number, input: I, actor: Actor) => Promise<unknown>, status: 200 | 201 = 200): RequestHandler {
+  return async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    res.status(status).json(await write(id, schema.parse(req.body), actorOf(req)));
+  };
+}
+
+/** Deletes the entry `:id`. */
+function deleteEntry(remove: (id: number, actor: Actor) => Promise<void>): RequestHandler {
+  return async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    await remove(id, actorOf(req));
+    res.status(204).end();
+  };
 }

@@ -8,6 +8,9 @@ import { deleteUnit, findSystem, findUnit, findUnitIdByLabel, insertUnit, update
 
 const namedFields = (u: Pick<UnitRecord, "label" | "tag" | "train">) => ({ label: u.label, tag: u.tag, train: u.train });
 
+/** A unit as its events and audit entries name it: by its label, the audit log with its system's name too. */
+const unitNamed = (system: SystemRecord, id: number, label: string) => ({ subject: "unit" as const, id, name: label, label: `${system.name}: ${label}` });
+
 /** The unit, locked, with its system (read in the same transaction); null when it has gone. */
 async function findUnitWithSystem(trx: Trx, id: number, opts: { forUpdate: boolean }): Promise<{ unit: UnitRecord; system: SystemRecord } | null> {
   const unit = await findUnit(trx, id, opts);
@@ -47,10 +50,7 @@ export function createUnitUseCases(ctx: FacilityContext, figures: Pick<FigureUse
           // Its first stage, on its day: the start of the unit's dated history.
           await recordCreate(trx, actor, project, {
             action: "facility_unit_created",
-            subject: "unit",
-            id,
-            name: input.label,
-            label: `${system.name}: ${input.label}`,
+            ...unitNamed(system, id, input.label),
             to: input.stage,
             at,
             on,
@@ -74,7 +74,7 @@ export function createUnitUseCases(ctx: FacilityContext, figures: Pick<FigureUse
           if (Object.keys(fields).length > 0) throw invalid(fields);
           const at = now();
           if ((await updateUnit(trx, id, unit.version, next, at)) === 0) throw conflict("unit", await findUnit(trx, id));
-          await recordUpdate(trx, actor, project, { action: "facility_unit_updated", subject: "unit", id, name: next.label, label: `${system.name}: ${next.label}`, was: namedFields(unit), will: next, at });
+          await recordUpdate(trx, actor, project, { action: "facility_unit_updated", ...unitNamed(system, id, next.label), was: namedFields(unit), will: next, at });
           return id;
         }),
       );
@@ -99,10 +99,7 @@ export function createUnitUseCases(ctx: FacilityContext, figures: Pick<FigureUse
           if ((await updateUnit(trx, id, unit.version, { stage: input.stage, stageOn: on }, at)) === 0) throw conflict("unit", await findUnit(trx, id));
           await recordWrite(trx, actor, project, {
             action: "facility_unit_stage_changed",
-            subject: "unit",
-            id,
-            name: unit.label,
-            label: `${system.name}: ${unit.label}`,
+            ...unitNamed(system, id, unit.label),
             events: [{ ...eventBase(project, "unit", id, unit.label, actor, at, { on, note }), field: "stage", from: unit.stage, to: input.stage }],
             detail: { system: system.name, from: unit.stage, to: input.stage, on, note },
           });
@@ -117,10 +114,7 @@ export function createUnitUseCases(ctx: FacilityContext, figures: Pick<FigureUse
         await deleteUnit(trx, id);
         await recordDelete(trx, actor, project, {
           action: "facility_unit_deleted",
-          subject: "unit",
-          id,
-          name: unit.label,
-          label: `${system.name}: ${unit.label}`,
+          ...unitNamed(system, id, unit.label),
           from: unit.stage,
           detail: { system: system.name, ...namedFields(unit), stage: unit.stage, stageOn: unit.stageOn },
         });

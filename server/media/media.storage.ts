@@ -142,8 +142,8 @@ export function createUploadArea(root: string) {
   return {
     dir: uploads,
 
-    /** multer writing each file of field `files` into the temporary folder, within the limits. */
-    receiver(limits: { maxFileBytes: number; maxFiles: number }): RequestHandler {
+    /** multer writing each file of field `files` (or the one named) into the temporary folder, within the limits. */
+    receiver(limits: { maxFileBytes: number; maxFiles: number; field?: string }): RequestHandler {
       const storage = multer.diskStorage({
         destination: (_req, _file, cb) => {
           mkdir(uploads, { recursive: true }).then(() => cb(null, uploads), (err: Error) => cb(err, uploads));
@@ -155,7 +155,7 @@ export function createUploadArea(root: string) {
         // Browsers send file names as UTF-8; busboy would read them as Latin-1.
         defParamCharset: "utf8",
         limits: { fileSize: limits.maxFileBytes, files: limits.maxFiles, fields: 10, fieldSize: 10_000, parts: limits.maxFiles + 10 },
-      }).array("files", limits.maxFiles);
+      }).array(limits.field ?? "files", limits.maxFiles);
     },
 
     /** Multer's file objects as the service sees them. */

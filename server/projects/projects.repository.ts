@@ -1,5 +1,7 @@
 import type { Knex } from "knex";
+import type { BudgetSettingsInput } from "#shared/schemas/budget.ts";
 import type { Project } from "#shared/schemas/projects.ts";
+import { DEFAULT_RISK_SCALE, RiskScaleSchema, type RiskScale } from "#shared/schemas/risks.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -75,4 +77,31 @@ export async function findProjectSender(q: Q, id: number): Promise<ProjectSender
 export async function findProjectSenders(q: Q, ids: readonly number[]): Promise<ProjectSender[]> {
   if (ids.length === 0) return [];
   return (await q("projects").whereIn("id", [...new Set(ids)]).select(...SENDER_COLUMNS)).map(toSender);
+}
+
+/**
+ * The project's risk scale (levels of likelihood and impact, band edges). A stored setting that no
+ * longer reads as a scale (edited by hand) falls back to the default rather than failing every read.
+ */
+export async function findRiskScale(q: Q, id: number): Promise<RiskScale | null> {
+  const r = (await q("projects").where({ id }).first("risk_likelihood_levels", "risk_impact_levels", "risk_band_edges")) as Record<string, unknown> | undefined;
+  if (!r) return null;
+  let edges: unknown = null;
+  try {
+    edges = JSON.parse(String(r.risk_band_edges));
+  } catch {
+    edges = null;
+  }
+  const parsed = RiskScaleSchema.safeParse({ likelihoodLevels: Number(r.risk_likelihood_levels), impactLevels: Number(r.risk_impact_levels), bandEdges: edges });
+  return parsed.success ? parsed.data : DEFAULT_RISK_SCALE;
+}
+
+/** The project's budget settings: the contingency held and the EAC the lead chose (kept out of the public project record). */
+export async function findBudgetSettings(q: Q, id: number): Promise<BudgetSettingsInput | null> {
+  const r = await q("projects").where({ id }).first("contingency_held", "projected_final_cost_method");
+  return r ? { contingencyHeld: Number(r.contingency_held), projectedFinalCostMethod: r.projected_final_cost_method } : null;
+}
+
+export async function updateBudgetSettings(q: Q, id: number, settings: BudgetSettingsInput): Promise<void> {
+  await q("projects").where({ id }).update({ contingency_held: settings.contingencyHeld, projected_final_cost_method: settings.projectedFinalCostMethod });
 }

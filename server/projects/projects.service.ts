@@ -1,9 +1,23 @@
 import type { Knex } from "knex";
 import { DateTime } from "luxon";
+import type { BudgetSettingsInput } from "#shared/schemas/budget.ts";
 import type { Project } from "#shared/schemas/projects.ts";
+import type { RiskScale } from "#shared/schemas/risks.ts";
 import { notFound } from "../core/app-error.ts";
 import type { Db } from "../db/knex.ts";
-import { findProjectById, findProjectBySlug, findProjectSender, findProjectSenders, findProjectsByIds, listProjects, lockProjectRow, type ProjectSender } from "./projects.repository.ts";
+import {
+  findBudgetSettings,
+  findProjectById,
+  findProjectBySlug,
+  findProjectSender,
+  findProjectSenders,
+  findProjectsByIds,
+  findRiskScale,
+  listProjects,
+  lockProjectRow,
+  updateBudgetSettings,
+  type ProjectSender,
+} from "./projects.repository.ts";
 
 /** The calendar date (`YYYY-MM-DD`) of an instant in an IANA time zone. */
 export function dateInZone(instant: Date, timeZone: string): string {
@@ -63,6 +77,20 @@ export function createProjectsService(db: Db, opts: { now?: () => Date } = {}) {
     async senders(ids: readonly number[]): Promise<Map<number, ProjectSender>> {
       return new Map((await findProjectSenders(db, ids)).map((p) => [p.id, p]));
     },
+    /** The project's risk scale setting (levels of likelihood and impact, band edges): the risks register's. */
+    async riskScale(projectId: number, trx?: Knex.Transaction): Promise<RiskScale> {
+      const scale = await findRiskScale(trx ?? db, projectId);
+      if (!scale) throw notFound("That project");
+      return scale;
+    },
+    /** The contingency held and the projected final cost's method (the budget module reads and writes them; never public). */
+    async budgetSettings(id: number, trx?: Knex.Transaction): Promise<BudgetSettingsInput> {
+      const settings = await findBudgetSettings(trx ?? db, id);
+      if (!settings) throw notFound("That project");
+      return settings;
+    },
+    /** Writes the budget settings in the caller's transaction (the budget module records the event and the audit entry). */
+    writeBudgetSettings: (trx: Knex.Transaction, id: number, settings: BudgetSettingsInput): Promise<void> => updateBudgetSettings(trx, id, settings),
     /** Today's date on site: the programme's "today" is the project's, not the server's. */
     today(project: Pick<Project, "timeZone">): string {
       return dateInZone(now(), project.timeZone);

@@ -7,6 +7,8 @@ import { seedProgramme } from "./programme.seed.ts";
 import { seedMedia } from "./media.seed.ts";
 import { seedPosts } from "./posts.seed.ts";
 import { seedFacility } from "./facility.seed.ts";
+import { seedRecord } from "./record.seed.ts";
+import { seedDocuments } from "./documents.seed.ts";
 
 export const DEMO_PROJECT_SLUG = "aldermere-phase-2";
 
@@ -64,7 +66,11 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
   // The facility (after the programme its blocks depend on, and the photos and updates it tags).
   const facilityLead = await db("users").where({ email: "lead@kestrel.example" }).first("id");
   created.push(...(await seedFacility(db, Number(project.id), { byUserId: facilityLead ? Number(facilityLead.id) : null })).created);
+  // The investor's record: organisations, risks and issues, decisions, budget changes (after the programme and facility they link).
+  created.push(...(await seedRecord(db, Number(project.id), { password: opts.password })).created);
   created.push(...(await seedSubscribers(db, DEMO_PROJECT_SLUG)).created);
   created.push(...(await seedDigests(db, DEMO_PROJECT_SLUG)).created);
+  // The document library, after the record seed (its organisations limit the lender pack).
+  created.push(...(await seedDocuments(db, DEMO_PROJECT_SLUG)).created);
   return { created };
 }

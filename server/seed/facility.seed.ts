@@ -1,18 +1,20 @@
 import type { Knex } from "knex";
 import { DateTime } from "luxon";
 import { addDays } from "#shared/domain/calendar.ts";
-import type { Audience } from "#shared/schemas/common.ts";
+import { DesignFiguresSchema, type DesignFigures, type SecurityLayer, type UnitStage } from "#shared/schemas/facility.ts";
+import { insertFacilityEvents, type NewFacilityEvent } from "../facility/facility.events.repository.ts";
 import {
-  DesignFiguresSchema,
-  type Containment,
-  type DesignFigures,
-  type FeatureKind,
-  type FeatureStatus,
-  type PlantKind,
-  type RatingUnit,
-  type SecurityLayer,
-  type UnitStage,
-} from "#shared/schemas/facility.ts";
+  blockFieldsOf,
+  insertBlock,
+  insertFeature,
+  insertSystem,
+  replaceBlockMilestones,
+  replaceSystemLinks,
+  unitRow,
+  type BlockFields,
+  type FeatureFields,
+  type SystemFields,
+} from "../facility/facility.repository.ts";
 import { demoAnchor } from "./programme.seed.ts";
 
 /**
@@ -39,19 +41,10 @@ const PROGRAMME_HISTORY_WEEKS = 39;
 /** [week relative to the anchor, weekday 0 = Monday]: the programme seed's way of placing a day. */
 type Day = readonly [week: number, weekday: number];
 
-interface SeedBlock {
+interface SeedBlock extends BlockFields {
   key: string;
-  name: string;
-  racks: number;
-  itKw: number;
-  maxKwPerRack: number;
-  coolingApproach: string;
-  containment: Containment;
-  audience: Audience;
-  stage: string;
   /** Starts of programme milestone names. */
   dependsOn: string[];
-  notes: string;
 }
 
 const BLOCKS: SeedBlock[] = [
@@ -104,20 +97,14 @@ interface SeedUnit {
   steps: Array<{ stage: UnitStage; on: Day; note?: string }>;
 }
 
-interface SeedSystem {
+interface SeedSystem extends Omit<SystemFields, "design"> {
   key: string;
-  name: string;
-  kind: PlantKind;
-  audience: Audience;
+  /** Keys of the blocks it serves. */
   serves: string[];
-  neededPerSystem: number;
-  independentSystems: number;
-  ratingPerUnit: number | null;
-  ratingUnit: RatingUnit | null;
+  /** Only the figures given; the rest take the schema's defaults. */
   design: Partial<DesignFigures>;
   /** Starts of programme milestone names. */
   linkedMilestones: string[];
-  notes: string;
   units: SeedUnit[];
 }
 
@@ -286,14 +273,9 @@ const SYSTEMS: SeedSystem[] = [
   },
 ];
 
-interface SeedFeature {
-  kind: FeatureKind;
-  name: string;
-  detail: string;
+interface SeedFeature extends Omit<FeatureFields, "layer" | "statusDate"> {
   layer?: SecurityLayer;
-  status: FeatureStatus;
   statusDate?: Day;
-  audience: Audience;
 }
 
 const FEATURES: SeedFeature[] = [
@@ -350,63 +332,29 @@ export async function seedFacility(db: Knex, projectId: number, opts: { byUserId
     starts.map((s) => milestones.find((m) => m.name.startsWith(s))).filter((m): m is { id: number; name: string } => m !== undefined).map((m) => Number(m.id));
 
   return db.transaction(async (trx) => {
+    // Entered through the facility's repository, as a lead's writes are; the units' stage
+    // history is written as it happened, so their rows and events carry the demo's own days.
     const createdAt = instant(addDays(anchor, -7 * 30), 9);
     const blockIds = new Map<string, number>();
-    for (const [i, b] of BLOCKS.entries()) {
-      const [id] = await trx("capacity_blocks").insert({
-        project_id: projectId,
-        name: b.name,
-        racks: b.racks,
-        it_kw: b.itKw,
-        max_kw_per_rack: b.maxKwPerRack,
-        cooling_approach: b.coolingApproach,
-        containment: b.containment,
-        audience: b.audience,
-        stage: b.stage,
-        notes: b.notes,
-        sort_order: i + 1,
-        created_at: createdAt,
-        updated_at: createdAt,
-      });
-      blockIds.set(b.key, Number(id));
-      const deps = milestoneIds(b.dependsOn).map((milestone_id) => ({ block_id: Number(id), milestone_id }));
-      if (deps.length > 0) await trx("capacity_block_milestones").insert(deps);
+    for (const b of BLOCKS) {
+      const id = await insertBlock(trx, projectId, blockFieldsOf(b), createdAt);
+      blockIds.set(b.key, id);
+      await replaceBlockMilestones(trx, id, milestoneIds(b.dependsOn));
     }
 
-    const events: Array<Record<string, unknown>> = [];
+    const events: NewFacilityEvent[] = [];
     const systemIds = new Map<string, number>();
     let unitCount = 0;
-    for (const [i, s] of SYSTEMS.entries()) {
-      const [id] = await trx("plant_systems").insert({
-        project_id: projectId,
-        name: s.name,
-        kind: s.kind,
-        audience: s.audience,
-        needed_per_system: s.neededPerSystem,
-        independent_systems: s.independentSystems,
-        rating_per_unit: s.ratingPerUnit,
-        rating_unit: s.ratingUnit,
-        design: JSON.stringify(DesignFiguresSchema.parse(s.design)),
-        notes: s.notes,
-        sort_order: i + 1,
-        created_at: createdAt,
-        updated_at: createdAt,
-      });
-      const systemId = Number(id);
+    for (const s of SYSTEMS) {
+      const systemId = await insertSystem(trx, projectId, { ...s, design: DesignFiguresSchema.parse(s.design) }, createdAt);
       systemIds.set(s.key, systemId);
-      await trx("plant_system_blocks").insert(s.serves.map((k) => ({ system_id: systemId, block_id: blockIds.get(k)! })));
-      const linked = milestoneIds(s.linkedMilestones).map((milestone_id) => ({ system_id: systemId, milestone_id }));
-      if (linked.length > 0) await trx("plant_system_milestones").insert(linked);
+      await replaceSystemLinks(trx, systemId, { serves: s.serves.map((k) => blockIds.get(k)!), linkedMilestones: milestoneIds(s.linkedMilestones) });
 
       for (const [j, u] of s.units.entries()) {
         const last = u.steps.at(-1)!;
         const [unitId] = await trx("plant_units").insert({
+          ...unitRow({ label: u.label, tag: u.tag, train: 1, stage: last.stage, stageOn: day(last.on) }),
           system_id: systemId,
-          label: u.label,
-          tag: u.tag,
-          train: 1,
-          stage: last.stage,
-          stage_on: day(last.on),
           sort_order: j + 1,
           // One version a stage written, like the programme's milestones.
           version: u.steps.length,
@@ -416,40 +364,28 @@ export async function seedFacility(db: Knex, projectId: number, opts: { byUserId
         unitCount += 1;
         u.steps.forEach((step, k) => {
           events.push({
-            project_id: projectId,
+            projectId,
             subject: "unit",
-            subject_id: Number(unitId),
-            subject_name: u.label,
+            subjectId: Number(unitId),
+            subjectName: u.label,
             field: "stage",
-            from_value: k === 0 ? null : u.steps[k - 1]!.stage,
-            to_value: step.stage,
-            on_date: day(step.on),
+            from: k === 0 ? null : u.steps[k - 1]!.stage,
+            to: step.stage,
+            on: day(step.on),
             // Recorded at the end of the site walk that day.
             at: instant(day(step.on), 15 + (j % 3)),
-            by_user_id: opts.byUserId,
+            byUserId: opts.byUserId,
             note: step.note ?? null,
           });
         });
       }
     }
-    events.sort((a, b) => (a.at as Date).getTime() - (b.at as Date).getTime());
-    await trx("facility_events").insert(events);
+    events.sort((a, b) => a.at.getTime() - b.at.getTime());
+    await insertFacilityEvents(trx, events);
 
-    await trx("site_features").insert(
-      FEATURES.map((f, i) => ({
-        project_id: projectId,
-        kind: f.kind,
-        name: f.name,
-        detail: f.detail,
-        layer: f.layer ?? null,
-        status: f.status,
-        status_date: f.statusDate ? day(f.statusDate) : null,
-        audience: f.audience,
-        sort_order: i + 1,
-        created_at: createdAt,
-        updated_at: createdAt,
-      })),
-    );
+    for (const f of FEATURES) {
+      await insertFeature(trx, projectId, { ...f, layer: f.layer ?? null, statusDate: f.statusDate ? day(f.statusDate) : null }, createdAt);
+    }
 
     const tagged = await tagDemoContent(trx, projectId, blockIds, systemIds);
     return {
@@ -479,8 +415,8 @@ const PHOTO_TAGS: Array<{ file: string; blocks?: string[]; systems?: string[] }>
 
 /**
  * Adds block and plant tags to the demo's photos and to the updates whose titles are about them.
- * Written straight to the tag tables like the rest of the seed: the tags are added after the
- * updates' revisions were kept, as a lead tagging them later would.
+ * Written straight to the media and posts modules' tag tables (the seed may; decision 015): the
+ * tags are added after the updates' revisions were kept, as a lead tagging them later would.
  */
 async function tagDemoContent(trx: Knex.Transaction, projectId: number, blockIds: Map<string, number>, systemIds: Map<string, number>): Promise<number> {
   let count = 0;

@@ -13,6 +13,7 @@ export interface UserRecord {
   disabledAt: Date | null;
   lastSignInAt: Date | null;
   createdAt: Date;
+  organisationId: number | null;
 }
 
 function toUser(r: Record<string, unknown>): UserRecord {
@@ -25,10 +26,11 @@ function toUser(r: Record<string, unknown>): UserRecord {
     disabledAt: (r.disabled_at as Date | null) ?? null,
     lastSignInAt: (r.last_sign_in_at as Date | null) ?? null,
     createdAt: r.created_at as Date,
+    organisationId: r.organisation_id == null ? null : Number(r.organisation_id),
   };
 }
 
-export function toUserRow(u: UserRecord): UserRow {
+export function toUserRow(u: UserRecord, organisations: ReadonlyMap<number, Organisation>): UserRow {
   return {
     id: u.id,
     email: u.email,
@@ -37,6 +39,7 @@ export function toUserRow(u: UserRecord): UserRow {
     disabled: u.disabledAt !== null,
     lastSignInAt: u.lastSignInAt?.toISOString() ?? null,
     createdAt: u.createdAt.toISOString(),
+    organisation: u.organisationId === null ? null : (organisations.get(u.organisationId) ?? null),
   };
 }
 
@@ -88,9 +91,50 @@ export async function updateUser(
   await q("users").where({ id }).update(row);
 }
 
+/** Sets or clears a user's organisation. */
+export async function setUserOrganisation(q: Q, id: number, organisationId: number | null): Promise<void> {
+  await q("users").where({ id }).update({ organisation_id: organisationId, updated_at: new Date() });
+}
+
 export async function countActiveAdmins(q: Q): Promise<number> {
   const r = await q("users").where({ role: "admin" }).whereNull("disabled_at").count({ n: "*" }).first();
   return Number(r?.n ?? 0);
+}
+
+// Organisations of investor accounts
+
+export interface Organisation {
+  id: number;
+  name: string;
+}
+
+/** Every organisation by name, with how many investor accounts belong to it. */
+export async function listOrganisations(q: Q): Promise<Array<Organisation & { investors: number }>> {
+  const rows = (await q("organisations as o")
+    .leftJoin("users as u", function () {
+      this.on("u.organisation_id", "o.id").andOnVal("u.role", "investor");
+    })
+    .groupBy("o.id", "o.name")
+    .orderBy("o.name")
+    .select("o.id", "o.name", q.raw("COUNT(u.id) as investors"))) as Array<Record<string, unknown>>;
+  return rows.map((r) => ({ id: Number(r.id), name: String(r.name), investors: Number(r.investors) }));
+}
+
+/** Organisations by id (an unknown id is left out). */
+export async function findOrganisations(q: Q, ids: readonly number[]): Promise<Map<number, Organisation>> {
+  if (ids.length === 0) return new Map();
+  const rows = (await q("organisations").whereIn("id", [...new Set(ids)]).select("id", "name")) as Array<Record<string, unknown>>;
+  return new Map(rows.map((r) => [Number(r.id), { id: Number(r.id), name: String(r.name) }]));
+}
+
+export async function findOrganisationIdByName(q: Q, name: string): Promise<number | null> {
+  const r = await q("organisations").where({ name }).first("id");
+  return r ? Number(r.id) : null;
+}
+
+export async function insertOrganisation(q: Q, name: string): Promise<number> {
+  const [id] = await q("organisations").insert({ name });
+  return Number(id);
 }
 
 // Invitations

@@ -1,4 +1,4 @@
-import type { InviteInput, UserUpdateInput } from "#shared/schemas/users.ts";
+import type { InviteInput, UserRow, UserUpdateInput } from "#shared/schemas/users.ts";
 import { AppError, notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
@@ -11,13 +11,20 @@ import {
   countActiveAdmins,
   deleteInvitation,
   findUserByEmail,
+  findOrganisationIdByName,
+  findOrganisations,
   findUserById,
   insertInvitation,
+  insertOrganisation,
   listInvitations,
+  listOrganisations,
   listUsers,
   revokeOpenInvitations,
+  setUserOrganisation,
   toUserRow,
   updateUser,
+  type Organisation,
+  type UserRecord,
 } from "./users.repository.ts";
 
 export const INVITATION_TTL_MS = 7 * 24 * 60 * 60 * 1000;
@@ -28,8 +35,20 @@ export function createUsersService(deps: { db: Db; audit: AuditService; auth: Au
   const { db, audit, auth, mailer, publicUrl } = deps;
   const now = deps.now ?? (() => new Date());
 
+  /** Users as the admin's list shows them, with their organisations named (one read for all). */
+  async function rows(users: readonly UserRecord[]): Promise<UserRow[]> {
+    const organisations = await findOrganisations(db, users.flatMap((u) => (u.organisationId === null ? [] : [u.organisationId])));
+    return users.map((u) => toUserRow(u, organisations));
+  }
+
   return {
-    list: async () => (await listUsers(db)).map(toUserRow),
+    list: async () => rows(await listUsers(db)),
+    /** Active staff by name (id, name, role): who may own a risk or an action, for the lead's forms. */
+    listStaff: async () =>
+      (await listUsers(db))
+        .filter((u) => u.role !== "investor" && u.disabledAt === null)
+        .map((u) => ({ id: u.id, name: u.name, role: u.role }))
+        .sort((a, b) => a.name.localeCompare(b.name)),
     listInvitations: () => listInvitations(db, now()),
 
     /** Creates a single-use invitation valid 7 days and e-mails its link. */
@@ -79,6 +98,8 @@ export function createUsersService(deps: { db: Db; audit: AuditService; auth: Au
         }
         if (patch.role !== undefined && patch.role !== target.role) {
           await updateUser(trx, id, { role: patch.role });
+          // Only investors belong to an organisation: staff read every document anyway.
+          if (patch.role !== "investor" && target.organisationId !== null) await setUserOrganisation(trx, id, null);
           await audit.record({ action: "role_changed", actor, target: { type: "user", id, label: target.email }, detail: { from: target.role, to: patch.role } }, trx);
         }
         if (patch.disabled !== undefined && patch.disabled !== (target.disabledAt !== null)) {
@@ -89,7 +110,50 @@ export function createUsersService(deps: { db: Db; audit: AuditService; auth: Au
       // A disabled user is signed out everywhere at once; a new role takes effect on the next request anyway.
       if (patch.disabled === true) await auth.endSessionsOf(id);
       const updated = await findUserById(db, id);
-      return toUserRow(updated!);
+      return (await rows([updated!]))[0]!;
+    },
+
+    /** Investor organisations by name, with how many investor accounts each has. */
+    listOrganisations: () => listOrganisations(db),
+
+    async createOrganisation(input: { name: string }, actor: Actor): Promise<Organisation & { investors: number }> {
+      const id = await db.transaction(async (trx) => {
+        if ((await findOrganisationIdByName(trx, input.name)) !== null) {
+          throw new AppError("organisation_exists", "An organisation of that name exists already.", 409, { name: "is already the name of an organisation" });
+        }
+        const newId = await insertOrganisation(trx, input.name);
+        await audit.record({ action: "organisation_created", actor, target: { type: "organisation", id: newId, label: input.name } }, trx);
+        return newId;
+      });
+      return { id, name: input.name, investors: 0 };
+    },
+
+    /** Gives an investor an organisation, or none: only investors may have one (documents may be limited to organisations). */
+    async setOrganisation(id: number, input: { organisationId: number | null }, actor: Actor): Promise<UserRow> {
+      const target = await findUserById(db, id);
+      if (!target) throw notFound("That user");
+      if (input.organisationId !== null && target.role !== "investor") {
+        throw new AppError("not_an_investor", "Only investors belong to an organisation.", 422, { organisationId: "may be set only for an investor" });
+      }
+      const organisation = input.organisationId === null ? null : ((await findOrganisations(db, [input.organisationId])).get(input.organisationId) ?? null);
+      if (input.organisationId !== null && !organisation) throw new AppError("invalid_organisation", "Check organisationId.", 422, { organisationId: "names no organisation" });
+      if (target.organisationId !== input.organisationId) {
+        await db.transaction(async (trx) => {
+          await setUserOrganisation(trx, id, input.organisationId);
+          await audit.record(
+            { action: "user_organisation_changed", actor, target: { type: "user", id, label: target.email }, detail: { from: target.organisationId, to: input.organisationId, organisation: organisation?.name ?? null } },
+            trx,
+          );
+        });
+      }
+      return (await rows([(await findUserById(db, id))!]))[0]!;
+    },
+
+    /** A user's organisation (the documents' stamp and limits name it); null when they have none. */
+    async organisationOf(userId: number): Promise<Organisation | null> {
+      const user = await findUserById(db, userId);
+      if (!user || user.organisationId === null) return null;
+      return (await findOrganisations(db, [user.organisationId])).get(user.organisationId) ?? null;
     },
   };
 }

@@ -130,6 +130,23 @@ function routes(qc: QueryClient): RouteObject[] {
       page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage, loader: (await programme()).siteWalkLoader }), { ...OFFICE, what: "project" }),
       page(qc, "facility", async () => ({ Component: (await facility()).FacilityPage, loader: (await facility()).facilityLoader }), { ...OFFICE, what: "project" }),
       page(qc, "facility/walk", async () => ({ Component: (await facility()).FacilityWalkPage, loader: (await facility()).facilityWalkLoader }), { ...OFFICE, what: "project" }),
+      // The investor record's office pages: each feature in its own chunk, loaded when visited.
+      page(qc, "risks", async () => {
+        const m = await import("../features/risks/routes.tsx");
+        return { Component: m.RisksPage, loader: m.risksLoader };
+      }, { ...OFFICE, what: "project" }),
+      page(qc, "decisions", async () => {
+        const m = await import("../features/decisions/routes.tsx");
+        return { Component: m.DecisionsPage, loader: m.decisionsLoader };
+      }, { ...OFFICE, what: "project" }),
+      page(qc, "budget", async () => {
+        const m = await import("../features/budget/routes.tsx");
+        return { Component: m.BudgetPage, loader: m.budgetLoader };
+      }, { ...OFFICE, what: "project" }),
+      page(qc, "documents", async () => {
+        const m = await import("../features/documents/routes.tsx");
+        return { Component: m.DocumentsPage, loader: m.documentsLoader };
+      }, { ...OFFICE, what: "project" }),
       page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage, loader: (await media()).mediaLibraryLoader }), OFFICE),
       page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage, loader: (await media()).mediaReviewLoader }), OFFICE),
       page(qc, "updates", async () => {
@@ -158,6 +175,11 @@ function routes(qc: QueryClient): RouteObject[] {
       page(qc, undefined, async () => ({ Component: (await investors()).InvestorHomePage, loader: (await investors()).investorHomeLoader }), INVESTORS),
       page(qc, "digest", async () => ({ Component: (await subscribers()).InvestorDigestPage, loader: (await subscribers()).investorDigestLoader }), INVESTORS),
       page(qc, "projects/:slug", async () => ({ Component: (await investors()).InvestorProjectPage, loader: (await investors()).investorProjectLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/risks", async () => ({ Component: (await investors()).InvestorRisksPage, loader: (await investors()).investorRisksLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/decisions", async () => ({ Component: (await investors()).InvestorDecisionsPage, loader: (await investors()).investorDecisionsLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/cost", async () => ({ Component: (await investors()).InvestorCostPage, loader: (await investors()).investorCostLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/documents", async () => ({ Component: (await investors()).InvestorDocumentsPage, loader: (await investors()).investorDocumentsLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/documents/:id", async () => ({ Component: (await investors()).InvestorDocumentPage, loader: (await investors()).investorDocumentsLoader }), { ...INVESTORS, what: "document" }),
     ]),
   ];
 }

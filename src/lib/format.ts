@@ -28,6 +28,23 @@ export const SYSTEM_WORD: Record<System, string> = {
   commissioning: "Commissioning",
 };
 
+/** Money in minor units → "£12.4m" / "£850k" / "£1,200": investor figures are indicative, so compact. */
+export function formatMoney(minor: number | null | undefined, currency: string | null | undefined): string {
+  if (minor === null || minor === undefined || !Number.isFinite(minor)) return "—";
+  const major = minor / 100;
+  try {
+    return new Intl.NumberFormat("en-GB", { style: "currency", currency: currency ?? "GBP", notation: Math.abs(major) >= 100_000 ? "compact" : "standard", maximumFractionDigits: Math.abs(major) >= 100_000 ? 1 : 0 }).format(major);
+  } catch {
+    return `${major.toFixed(0)} ${currency ?? ""}`.trim();
+  }
+}
+
+/** "2.4 MB" / "380 KB": a file's size. */
+export function formatBytes(bytes: number): string {
+  if (bytes >= 1024 * 1024) return `${(bytes / (1024 * 1024)).toFixed(1)} MB`;
+  return `${Math.max(1, Math.round(bytes / 1024))} KB`;
+}
+
 export const ROLE_LABEL = { admin: "Administrator", lead: "Project lead", marketing: "Marketing", investor: "Investor" } as const;
 
 /** Applies a server's field errors to a react-hook-form form. */

@@ -45,10 +45,24 @@ export interface MatrixIds {
   publicUnit: number;
   internalFeature: number;
   publicFeature: number;
+  /** A project of the matrix's own risks register and decisions (made through the API): one of each audience. */
+  recordSlug: string;
+  investorRisk: number;
+  internalRisk: number;
+  investorDecision: number;
+  internalDecision: number;
+  /** A project of the matrix's own document library (made through the API): an investor document, an internal one, one limited to an organisation the demo investor is not in. */
+  documentsSlug: string;
+  investorDocument: number;
+  internalDocument: number;
+  otherOrganisationDocument: number;
+  /** Budget changes of the demo project: one of each audience. */
+  investorChange: number;
+  internalChange: number;
 }
 
 export interface MatrixRow {
-  method: "get" | "head" | "post" | "patch" | "delete";
+  method: "get" | "head" | "post" | "put" | "patch" | "delete";
   path: string | ((ids: MatrixIds) => string);
   body?: unknown;
   expect: Record<Caller, number>;
@@ -141,6 +155,108 @@ const REAL_OBJECT_ROWS: MatrixRow[] = [
   { method: "get", path: (ids) => `/api/facility/units/${ids.publicUnit}/events`, expect: all(200) },
   { method: "patch", path: (ids) => `/api/facility/features/${ids.internalFeature}`, body: {}, expect: writers(400) },
   { method: "patch", path: (ids) => `/api/facility/features/${ids.publicFeature}`, body: {}, expect: writers(400) },
+  // Documents (decision 038): signed-in readers by audience and organisation; an investor's copy is stamped, staff's clean; writes for leads and admins.
+  { method: "get", path: (ids) => `/api/projects/${ids.documentsSlug}/documents`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/projects/${ids.documentsSlug}/documents?category=certificate`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/projects/${ids.documentsSlug}/documents?category=gossip`, expect: signedIn(400) },
+  { method: "get", path: (ids) => `/api/documents/${ids.investorDocument}`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/documents/${ids.internalDocument}`, expect: { admin: 200, lead: 200, marketing: 404, investor: 404, anonymous: 401 } },
+  { method: "get", path: (ids) => `/api/documents/${ids.otherOrganisationDocument}`, expect: { admin: 200, lead: 200, marketing: 200, investor: 404, anonymous: 401 } },
+  { method: "get", path: (ids) => `/api/documents/${ids.investorDocument}/file?as=view`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/documents/${ids.investorDocument}/file?clean=1`, expect: { admin: 200, lead: 200, marketing: 200, investor: 403, anonymous: 401 } },
+  { method: "get", path: (ids) => `/api/documents/${ids.internalDocument}/file`, expect: { admin: 200, lead: 200, marketing: 404, investor: 404, anonymous: 401 } },
+  { method: "get", path: (ids) => `/api/documents/${ids.otherOrganisationDocument}/file`, expect: { admin: 200, lead: 200, marketing: 200, investor: 404, anonymous: 401 } },
+  { method: "get", path: (ids) => `/api/documents/${ids.investorDocument}/views`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/documents/${ids.internalDocument}/views`, expect: { admin: 200, lead: 200, marketing: 404, investor: 403, anonymous: 401 } },
+  { method: "get", path: (ids) => `/api/projects/${ids.documentsSlug}/document-views`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/projects/${ids.documentsSlug}/document-views?format=csv`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/projects/${ids.documentsSlug}/my-document-views`, expect: investorOnly(200) },
+  { method: "post", path: (ids) => `/api/projects/${ids.documentsSlug}/documents`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/documents/${ids.investorDocument}/versions`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/documents/${ids.internalDocument}`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/documents/${ids.otherOrganisationDocument}`, body: {}, expect: writers(400) },
+  { method: "get", path: "/api/documents/999999999", expect: { admin: 404, lead: 404, marketing: 404, investor: 404, anonymous: 401 } },
+  { method: "get", path: "/api/documents/999999999/file", expect: { admin: 404, lead: 404, marketing: 404, investor: 404, anonymous: 401 } },
+  { method: "delete", path: "/api/documents/999999999", expect: writers(404) },
+];
+
+/** Staff with the whole record see it; investors and marketing are told it does not exist; visitors must sign in (decision 036). */
+const internalRecord = (ok: number): Record<Caller, number> => ({ admin: ok, lead: ok, marketing: 404, investor: 404, anonymous: 401 });
+
+/** Risks and decisions needed (decision 036): signed-in readers by audience, writes for leads and admins, nothing public. */
+const RECORD_ROWS: MatrixRow[] = [
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/risks`, expect: signedIn(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/risks?band=high&kind=risk&status=open`, expect: signedIn(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/risks?band=scarlet`, expect: signedIn(400) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/risks/summary`, expect: signedIn(200) },
+  { method: "get", path: "/api/projects/no-such-project/risks", expect: signedIn(404) },
+  { method: "post", path: `/api/projects/${DEMO_SLUG}/risks`, body: {}, expect: writers(400) },
+  { method: "get", path: "/api/risks/999999999", expect: signedIn(404) },
+  { method: "get", path: "/api/risks/999999999/events", expect: signedIn(404) },
+  { method: "patch", path: "/api/risks/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "post", path: "/api/risks/999999999/issue", body: { version: 1, impactNow: "Late" }, expect: writers(404) },
+  { method: "delete", path: "/api/risks/999999999", expect: writers(404) },
+  { method: "post", path: "/api/risks/999999999/mitigations", body: {}, expect: writers(400) },
+  { method: "patch", path: "/api/mitigations/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "delete", path: "/api/mitigations/999999999", expect: writers(404) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/decisions`, expect: signedIn(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/decisions?status=open`, expect: signedIn(200) },
+  { method: "post", path: `/api/projects/${DEMO_SLUG}/decisions`, body: {}, expect: writers(400) },
+  { method: "get", path: "/api/decisions/999999999", expect: signedIn(404) },
+  { method: "get", path: "/api/decisions/999999999/events", expect: signedIn(404) },
+  { method: "patch", path: "/api/decisions/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "post", path: "/api/decisions/999999999/outcome", body: {}, expect: writers(400) },
+  { method: "post", path: "/api/decisions/999999999/withdraw", body: { version: 1, reason: "x" }, expect: writers(404) },
+  // Real objects of each audience: an investor risk and decision, an internal risk and decision.
+  { method: "get", path: (ids) => `/api/projects/${ids.recordSlug}/risks`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/projects/${ids.recordSlug}/decisions`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/risks/${ids.investorRisk}`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/risks/${ids.investorRisk}/events`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/risks/${ids.internalRisk}`, expect: internalRecord(200) },
+  { method: "get", path: (ids) => `/api/risks/${ids.internalRisk}/events`, expect: internalRecord(200) },
+  { method: "patch", path: (ids) => `/api/risks/${ids.investorRisk}`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/risks/${ids.internalRisk}`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/risks/${ids.internalRisk}/issue`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/risks/${ids.internalRisk}/mitigations`, body: {}, expect: writers(400) },
+  { method: "get", path: (ids) => `/api/decisions/${ids.investorDecision}`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/decisions/${ids.investorDecision}/events`, expect: signedIn(200) },
+  { method: "get", path: (ids) => `/api/decisions/${ids.internalDecision}`, expect: internalRecord(200) },
+  { method: "get", path: (ids) => `/api/decisions/${ids.internalDecision}/events`, expect: internalRecord(200) },
+  { method: "patch", path: (ids) => `/api/decisions/${ids.internalDecision}`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/decisions/${ids.investorDecision}/outcome`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/decisions/${ids.internalDecision}/withdraw`, body: {}, expect: writers(400) },
+];
+
+/** Money (decision 037): investors read investor-audience changes and the position; leads and admins everything; marketing none of it. */
+const moneyReaders = (ok: number): Record<Caller, number> => ({ admin: ok, lead: ok, marketing: 403, investor: ok, anonymous: 401 });
+
+/** Budget changes, the cost position and investor organisations (decision 037). */
+const BUDGET_ROWS: MatrixRow[] = [
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/budget-changes`, expect: moneyReaders(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/budget-changes?status=approved`, expect: moneyReaders(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/budget-changes?status=pending`, expect: moneyReaders(400) },
+  { method: "get", path: "/api/projects/no-such-project/budget-changes", expect: moneyReaders(404) },
+  { method: "post", path: `/api/projects/${DEMO_SLUG}/budget-changes`, body: {}, expect: writers(400) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/budget`, expect: moneyReaders(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/budget?at=2026-06-30`, expect: moneyReaders(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/budget?at=not-a-day`, expect: moneyReaders(400) },
+  { method: "put", path: `/api/projects/${DEMO_SLUG}/budget/settings`, body: {}, expect: writers(400) },
+  { method: "get", path: "/api/budget-changes/999999999", expect: moneyReaders(404) },
+  { method: "get", path: "/api/budget-changes/999999999/events", expect: moneyReaders(404) },
+  { method: "patch", path: "/api/budget-changes/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "delete", path: "/api/budget-changes/999999999", expect: writers(404) },
+  // Real objects: an investor change is the investor's to read; an internal one exists for leads and admins only.
+  { method: "get", path: (ids) => `/api/budget-changes/${ids.investorChange}`, expect: moneyReaders(200) },
+  { method: "get", path: (ids) => `/api/budget-changes/${ids.investorChange}/events`, expect: moneyReaders(200) },
+  { method: "get", path: (ids) => `/api/budget-changes/${ids.internalChange}`, expect: { admin: 200, lead: 200, marketing: 403, investor: 404, anonymous: 401 } },
+  { method: "get", path: (ids) => `/api/budget-changes/${ids.internalChange}/events`, expect: { admin: 200, lead: 200, marketing: 403, investor: 404, anonymous: 401 } },
+  { method: "patch", path: (ids) => `/api/budget-changes/${ids.investorChange}`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/budget-changes/${ids.internalChange}`, body: {}, expect: writers(400) },
+  // Organisations: staff read them; admins add them and give investors one.
+  { method: "get", path: "/api/organisations", expect: staffOnly(200) },
+  { method: "post", path: "/api/organisations", body: {}, expect: adminOnly(400) },
+  { method: "patch", path: "/api/users/1/organisation", body: {}, expect: adminOnly(400) },
+  { method: "patch", path: "/api/users/999999999/organisation", body: { organisationId: null }, expect: adminOnly(404) },
 ];
 
 export const ROLE_MATRIX: MatrixRow[] = [
@@ -154,6 +270,7 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "post", path: "/api/auth/password-reset/aaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaa", body: {}, expect: all(400) },
   { method: "get", path: "/api/users", expect: adminOnly(200) },
   { method: "get", path: "/api/users/invitations", expect: adminOnly(200) },
+  { method: "get", path: "/api/users/staff", expect: staffOnly(200) },
   { method: "post", path: "/api/users/invitations", body: {}, expect: adminOnly(400) },
   { method: "patch", path: "/api/users/1", body: {}, expect: adminOnly(400) },
   { method: "get", path: "/api/audit", expect: adminOnly(200) },
@@ -337,6 +454,8 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "delete", path: "/api/facility/features/999999999", expect: writers(404) },
   { method: "post", path: "/api/auth/logout", expect: all(204) },
   ...REAL_OBJECT_ROWS,
+  ...BUDGET_ROWS,
+  ...RECORD_ROWS,
 ];
 
 /** HEAD answers as GET does, for every GET a visitor may call. */

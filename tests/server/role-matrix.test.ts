@@ -1,6 +1,7 @@
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { DEMO, newClient, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
+import { plainPdf } from "./documents-fixtures.ts";
 import { pathOf, ROLE_MATRIX, ROLE_MATRIX_WITH_HEAD, type Caller, type MatrixIds, type MatrixRow } from "./role-matrix.table.ts";
 
 const SLUG = "aldermere-phase-2";
@@ -66,7 +67,17 @@ async function resolveIds(): Promise<MatrixIds> {
   const run = (await t.db("digest_runs").where({ project_id: project.id }).orderBy("id").first("id")) as { id: number } | undefined;
   if (!subscriber || !enquiry || !run || !investorUser) throw new Error("the demo lacks subscribers, enquiries or digest runs");
 
+  // Budget changes of each audience, from the seeded demo.
+  const changeOf = async (audience: string) => {
+    const row = (await t.db("budget_changes").where({ project_id: project.id, audience }).orderBy("id").first("id")) as { id: number } | undefined;
+    if (!row) throw new Error(`the demo has no ${audience} budget change`);
+    return Number(row.id);
+  };
+  const [investorChange, internalChange] = [await changeOf("investor"), await changeOf("internal")];
+
   const facility = await matrixFacility();
+  const documents = await matrixDocuments();
+  const record = await matrixRecord();
 
   return {
     internalMilestone: pick(milestones, "internal milestone", (m) => m.audience === "internal").id,
@@ -87,7 +98,41 @@ async function resolveIds(): Promise<MatrixIds> {
     otherSubscriber: Number(subscriber.id),
     enquiry: Number(enquiry.id),
     digestRun: Number(run.id),
+    investorChange,
+    internalChange,
     ...facility,
+    ...documents,
+    ...record,
+  };
+}
+
+/**
+ * A document library of the matrix's own, in a project of its own: an investor document, an
+ * internal one, and one limited to an organisation the demo investor does not belong to.
+ */
+async function matrixDocuments() {
+  const lead = await signIn(t, DEMO.lead);
+  const slug = `matrix-documents-${Date.now().toString(36)}`;
+  await t.db("projects").insert({ slug, name: "Role matrix documents", operator_name: "Kestrel Colocation", time_zone: "Europe/London", currency: "GBP" });
+  const [other] = await t.db("organisations").insert({ name: `Matrix other fund ${Date.now().toString(36)} (invented)` });
+  const pdf = await plainPdf(1, "Matrix document");
+  const upload = async (title: string, audience: string, organisationIds: number[]): Promise<number> => {
+    const res = await lead.agent
+      .post(`/api/projects/${slug}/documents`)
+      .set("X-CSRF-Token", lead.csrf)
+      .field("title", title)
+      .field("category", "certificate")
+      .field("audience", audience)
+      .field("organisationIds", JSON.stringify(organisationIds))
+      .attach("file", pdf, "matrix.pdf");
+    if (res.status !== 201) throw new Error(`document ${title}: ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
+    return Number(res.body.id);
+  };
+  return {
+    documentsSlug: slug,
+    investorDocument: await upload("Investor certificate", "investor", []),
+    internalDocument: await upload("Internal certificate", "internal", []),
+    otherOrganisationDocument: await upload("Another fund's certificate", "investor", [Number(other)]),
   };
 }
 
@@ -95,6 +140,29 @@ async function resolveIds(): Promise<MatrixIds> {
  * A facility of the matrix's own, made through the API in a project of its own (the demo's
  * facility stays as seeded for the tests that read it): something of each audience.
  */
+/** A risks register and decisions of the matrix's own, made through the API in a project of its own: one of each audience. */
+async function matrixRecord() {
+  const lead = await signIn(t, DEMO.lead);
+  const slug = `matrix-record-${Date.now().toString(36)}`;
+  await t.db("projects").insert({ slug, name: "Role matrix record", operator_name: "Kestrel Colocation", time_zone: "Europe/London", currency: "GBP" });
+  const leadId = Number(((await t.db("users").where({ email: DEMO.lead }).first("id")) as { id: number }).id);
+  const post = async (path: string, body: object): Promise<{ id: number }> => {
+    const res = await lead.agent.post(path).set("X-CSRF-Token", lead.csrf).send(body);
+    if (res.status !== 201) throw new Error(`${path}: ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
+    return res.body as { id: number };
+  };
+  const risk = (audience: string) => post(`/api/projects/${slug}/risks`, { title: `Late chiller (${audience})`, category: "supply_chain", ownerId: leadId, likelihood: 3, impact: 4, audience });
+  const decision = (audience: string) =>
+    post(`/api/projects/${slug}/decisions`, { title: `Second generator (${audience})`, question: "Order now?", options: [{ label: "Yes" }, { label: "No" }], decider: "Board", neededBy: "2099-01-15", audience });
+  return {
+    recordSlug: slug,
+    investorRisk: (await risk("investor")).id,
+    internalRisk: (await risk("internal")).id,
+    investorDecision: (await decision("investor")).id,
+    internalDecision: (await decision("internal")).id,
+  };
+}
+
 async function matrixFacility() {
   const lead = await signIn(t, DEMO.lead);
   const slug = `matrix-facility-${Date.now().toString(36)}`;

@@ -1,11 +1,75 @@
-import { useSuspenseQuery } from "@tanstack/react-query";
-import { Link, useParams } from "react-router-dom";
-import { PageHeader } from "../../components/ui/sheet.tsx";
+import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
+import type { ReactNode } from "react";
+import { Link, NavLink, useParams, useSearchParams } from "react-router-dom";
+import type { Role } from "#shared/schemas/common.ts";
+import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
+import { budgetChangesQueryOptions, budgetPositionQueryOptions } from "../../features/budget/api.ts";
+import { InvestorCost } from "../../features/budget/investor-cost.tsx";
+import { decisionsQueryOptions } from "../../features/decisions/api.ts";
+import { InvestorDecisions } from "../../features/decisions/investor-decisions.tsx";
+import { investorDocumentsQueryOptions } from "../../features/documents/investor-api.ts";
+import { InvestorDocument, InvestorDocuments } from "../../features/documents/investor-documents.tsx";
 import { InvestorProgramme } from "../../features/programme/components/investor-programme.tsx";
 import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
 import { projectQueryOptions, projectsQueryOptions } from "../../features/projects/api.ts";
 import { InvestorFacility } from "../../features/public-site/components/facility-investor.tsx";
-import { INVESTOR_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { riskSummaryQueryOptions, risksQueryOptions } from "../../features/risks/api.ts";
+import { InvestorRisks } from "../../features/risks/investor-risks.tsx";
+import { idParam, INVESTOR_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { useMe } from "../../lib/session.ts";
+
+/** Who may read money figures: marketing reads risks, decisions and documents, never the cost (decision 040). */
+const MONEY_ROLES: readonly Role[] = ["investor", "lead", "admin"];
+
+interface Section {
+  path: string;
+  label: string;
+  roles?: readonly Role[];
+}
+
+/** The parts of one build's record in the investor room, in the order an investor reads them. */
+const SECTIONS: readonly Section[] = [
+  { path: "", label: "Programme and capacity" },
+  { path: "risks", label: "Risks" },
+  { path: "decisions", label: "Decisions" },
+  { path: "cost", label: "Cost", roles: MONEY_ROLES },
+  { path: "documents", label: "Documents" },
+];
+
+const sectionHref = (slug: string, path: string) => `/investors/projects/${slug}${path ? `/${path}` : ""}`;
+
+/** The sections of a project, as tabs under its head; on a phone they scroll sideways. */
+function ProjectSections({ slug }: { slug: string }) {
+  const role = useMe().data?.role;
+  return (
+    <nav aria-label="Project sections" className="-mx-4 mb-6 overflow-x-auto px-4 sm:mx-0 sm:px-0">
+      <ul className="flex gap-1 border-b border-rule">
+        {SECTIONS.filter((s) => !s.roles || (role && s.roles.includes(role))).map((s) => (
+          <li key={s.path}>
+            <NavLink
+              to={sectionHref(slug, s.path)}
+              end={s.path === ""}
+              className={({ isActive }) => `-mb-px block whitespace-nowrap border-b-2 px-3 py-2 text-sm ${isActive ? "border-accent font-semibold text-ink" : "border-transparent text-ink-soft hover:text-ink"}`}
+            >
+              {s.label}
+            </NavLink>
+          </li>
+        ))}
+      </ul>
+    </nav>
+  );
+}
+
+/** The head of every page of one build in the investor room: the build's name, a line, the sections. */
+function ProjectHead({ slug, sheet, description, actions }: { slug: string; sheet: string; description?: string; actions?: ReactNode }) {
+  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
+  return (
+    <>
+      <PageHeader sheet={`Investor room · ${sheet}`} title={project.name} description={description ?? project.description} actions={actions} />
+      <ProjectSections slug={slug} />
+    </>
+  );
+}
 
 export const investorHomeLoader: RouteLoader = (qc) => () => primeWhenAllowed(qc, INVESTOR_ROLES, () => qc.ensureQueryData(projectsQueryOptions()));
 
@@ -13,9 +77,10 @@ export const investorProjectLoader: RouteLoader = (qc) => ({ params }) => primeW
 
 export function InvestorHomePage() {
   const projects = useSuspenseQuery(projectsQueryOptions());
+  const role = useMe().data?.role;
   return (
     <>
-      <PageHeader sheet="Investor room" title="Your projects" description="Programme health, capacity and documents of the builds you follow. Figures are computed over the milestones shared with investors." />
+      <PageHeader sheet="Investor room" title="Your projects" description="Programme health, capacity, risks, decisions, cost and documents of the builds you follow. Figures are computed over the milestones shared with investors." />
       <ul className="grid gap-4 lg:grid-cols-2">
           {projects.data.map((p) => (
             <li key={p.id} className="flex flex-col gap-3 border border-rule bg-sheet p-5">
@@ -29,6 +94,15 @@ export function InvestorHomePage() {
                 <p className="mt-1 line-clamp-2 text-sm text-ink-soft">{p.description}</p>
               </div>
               <ProjectHealthSummary slug={p.slug} href={`/investors/projects/${p.slug}`} linkLabel="Programme health, charts and what moved" />
+              <ul aria-label={`The record of ${p.name}`} className="flex flex-wrap gap-x-4 gap-y-1 border-t border-rule pt-3 text-sm">
+                {SECTIONS.filter((s) => s.path !== "" && (!s.roles || (role && s.roles.includes(role)))).map((s) => (
+                  <li key={s.path}>
+                    <Link to={sectionHref(p.slug, s.path)} className="font-medium underline underline-offset-4">
+                      {s.label}
+                    </Link>
+                  </li>
+                ))}
+              </ul>
             </li>
           ))}
         </ul>
@@ -41,10 +115,9 @@ export function InvestorProjectPage() {
   const project = useSuspenseQuery(projectQueryOptions(slug));
   return (
     <>
-      <PageHeader
-        sheet="Investor room · Project"
-        title={project.data.name}
-        description={project.data.description}
+      <ProjectHead
+        slug={slug}
+        sheet="Programme and capacity"
         actions={
           <a href="#facility" className="text-sm font-medium underline underline-offset-4">
             Capacity ramp and readiness ↓
@@ -55,6 +128,81 @@ export function InvestorProjectPage() {
         <InvestorProgramme slug={slug} currency={project.data.currency} />
         <InvestorFacility slug={slug} />
       </div>
+    </>
+  );
+}
+
+/** A section's loader: for a role that may read it, the project and what the section reads of it. */
+function sectionLoader(roles: readonly Role[], reads: (qc: QueryClient, slug: string) => Promise<unknown>[]): RouteLoader {
+  return (qc) =>
+    ({ params }) =>
+      primeWhenAllowed(qc, roles, () => {
+        const slug = params.slug ?? "";
+        return Promise.all([qc.ensureQueryData(projectQueryOptions(slug)), ...reads(qc, slug)]);
+      });
+}
+
+export const investorRisksLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(risksQueryOptions(slug)), qc.ensureQueryData(riskSummaryQueryOptions(slug))]);
+
+export function InvestorRisksPage() {
+  const { slug = "" } = useParams();
+  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
+  return (
+    <>
+      <ProjectHead slug={slug} sheet="Risks" description="What could go wrong, who owns it and what is being done, and what has already happened. Only the risks shared with investors." />
+      <InvestorRisks slug={slug} currency={project.currency} />
+    </>
+  );
+}
+
+export const investorDecisionsLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(decisionsQueryOptions(slug))]);
+
+export function InvestorDecisionsPage() {
+  const { slug = "" } = useParams();
+  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
+  return (
+    <>
+      <ProjectHead slug={slug} sheet="Decisions" description="What the investors, the lender or the board are asked to decide, and by when; and what was decided." />
+      <InvestorDecisions slug={slug} currency={project.currency} />
+    </>
+  );
+}
+
+export const investorCostLoader = sectionLoader(MONEY_ROLES, (qc, slug) => [qc.ensureQueryData(budgetPositionQueryOptions(slug)), qc.ensureQueryData(budgetChangesQueryOptions(slug))]);
+
+export function InvestorCostPage() {
+  const { slug = "" } = useParams();
+  const role = useMe().data?.role;
+  const allowed = role !== undefined && MONEY_ROLES.includes(role);
+  return (
+    <>
+      <ProjectHead slug={slug} sheet="Cost" description="Where the money stands: the approved budget after changes, the contingency, and what the build may cost in the end." />
+      {allowed ? <InvestorCost slug={slug} /> : <Notice title="Not shown to your role">The cost of a build is read by its investors and its project lead.</Notice>}
+    </>
+  );
+}
+
+export const investorDocumentsLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(investorDocumentsQueryOptions(slug))]);
+
+export function InvestorDocumentsPage() {
+  const { slug = "" } = useParams();
+  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
+  return (
+    <>
+      <ProjectHead slug={slug} sheet="Documents" description="Monitoring reports, lender packs, certificates and the other papers of the build." />
+      <InvestorDocuments slug={slug} timeZone={project.timeZone} />
+    </>
+  );
+}
+
+export function InvestorDocumentPage() {
+  const { slug = "", id } = useParams();
+  const [search] = useSearchParams();
+  const version = search.get("version");
+  return (
+    <>
+      <ProjectHead slug={slug} sheet="Documents" description="Your own copy: each page carries your name, your organisation and the time." />
+      <InvestorDocument slug={slug} id={idParam(id)} version={version ? Number(version) : undefined} />
     </>
   );
 }

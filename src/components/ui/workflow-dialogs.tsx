@@ -18,7 +18,7 @@ export function zoneAbbreviation(timeZone: string, date: string): string {
 }
 
 /** Today's date in a zone, as `YYYY-MM-DD`. */
-function todayIn(timeZone: string): string {
+export function todayIn(timeZone: string): string {
   return new Intl.DateTimeFormat("en-CA", { timeZone, year: "numeric", month: "2-digit", day: "2-digit" }).format(new Date());
 }
 

@@ -20,6 +20,7 @@ import type {
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { api, ApiError } from "../../lib/api-client.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { featureKeys } from "../../lib/query-keys.ts";
 
 /**
  * Keys: facility → project(slug) → kind, and facility → unit(id) → events. Every write
@@ -27,9 +28,7 @@ import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/pr
  * readiness of every block the system serves, so nothing narrower is safe.
  */
 export const facilityKeys = {
-  all: ["facility"] as const,
-  projects: () => [...facilityKeys.all, "projects"] as const,
-  project: (slug: string) => [...facilityKeys.all, "project", slug] as const,
+  ...featureKeys("facility"),
   detail: (slug: string) => [...facilityKeys.project(slug), "detail"] as const,
   facility: (slug: string) => [...facilityKeys.project(slug), "facility"] as const,
   milestones: (slug: string) => [...facilityKeys.project(slug), "milestones"] as const,

@@ -64,6 +64,13 @@ function FacilityBody({ slug }: { slug: string }) {
   const [editing, setEditing] = useState<Editing | null>(null);
   const close = () => setEditing(null);
   const systemOf = (id: number) => facility.systems.find((s) => s.id === id);
+  /** A sheet's button for entering a new block or system, for those who keep the facility. */
+  const newButton = (what: "block" | "system", label: string) =>
+    editable ? (
+      <Button size="sm" variant="primary" onClick={() => setEditing({ what, id: null })}>
+        {label}
+      </Button>
+    ) : null;
 
   const dialog = (() => {
     if (!editable || !editing) return null;
@@ -92,13 +99,7 @@ function FacilityBody({ slug }: { slug: string }) {
       <Sheet
         label={`Status at ${formatDate(facility.at)} · ${project.timeZone.replace("_", " ")}`}
         title="Capacity blocks"
-        actions={
-          editable ? (
-            <Button size="sm" variant="primary" onClick={() => setEditing({ what: "block", id: null })}>
-              New block
-            </Button>
-          ) : null
-        }
+        actions={newButton("block", "New block")}
       >
         <p className="mb-3 text-sm text-ink-soft">
           A block is ready for service when every milestone it depends on is complete and every system serving it carries its load (units commissioned to L{facility.availableFromLevel} or beyond). Slip is in working days.
@@ -109,13 +110,7 @@ function FacilityBody({ slug }: { slug: string }) {
       <Sheet
         label="Plant"
         title="Plant systems and their units"
-        actions={
-          editable ? (
-            <Button size="sm" variant="primary" onClick={() => setEditing({ what: "system", id: null })}>
-              New system
-            </Button>
-          ) : null
-        }
+        actions={newButton("system", "New system")}
       >
         <StageKey availableFromLevel={facility.availableFromLevel} className="mb-3" />
         <SystemTable

@@ -13,11 +13,8 @@ export const SENSITIVITY_WORD: Record<Sensitivity, { glyph: string; word: string
   restricted: { glyph: "■", word: "Restricted", tone: "text-bad" },
 };
 
-/** Bytes for people: "3.4 MB", "820 KB". */
-export function formatBytes(bytes: number): string {
-  if (bytes >= 1024 * 1024) return `${(bytes / (1024 * 1024)).toFixed(1)} MB`;
-  return `${Math.max(1, Math.round(bytes / 1024))} KB`;
-}
+// File sizes are worded once for every feature (the document library too).
+export { formatBytes } from "../../lib/format.ts";
 
 /** A camera's local capture time (`YYYY-MM-DDTHH:mm…`) as "14 Mar 2026, 10:20", never shifted by a zone. */
 export function formatTakenAt(takenAt: string | null): string {

@@ -74,16 +74,8 @@ export function formatIndex(v: number | null | undefined): string {
   return v.toFixed(2);
 }
 
-/** Money in minor units → "£12.4m" / "£850k" / "£1,200": investor figures are indicative, so compact. */
-export function formatMoney(minor: number | null | undefined, currency: string | null | undefined): string {
-  if (minor === null || minor === undefined || !Number.isFinite(minor)) return "—";
-  const major = minor / 100;
-  try {
-    return new Intl.NumberFormat("en-GB", { style: "currency", currency: currency ?? "GBP", notation: Math.abs(major) >= 100_000 ? "compact" : "standard", maximumFractionDigits: Math.abs(major) >= 100_000 ? 1 : 0 }).format(major);
-  } catch {
-    return `${major.toFixed(0)} ${currency ?? ""}`.trim();
-  }
-}
+// Money is worded once for every feature (the investor room's cost, risks and decisions too).
+export { formatMoney } from "../../lib/format.ts";
 
 /** Whether a milestone marks a space becoming ready for service (the dates prospects care about). */
 export function isReadyForService(m: Pick<Milestone, "name">): boolean {

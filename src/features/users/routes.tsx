@@ -5,6 +5,7 @@ import { useMemo, useState, type ReactNode } from "react";
 import { useForm } from "react-hook-form";
 import { toast } from "sonner";
 import { RoleSchema } from "#shared/schemas/common.ts";
+import { OrganisationInputSchema } from "#shared/schemas/documents.ts";
 import { InviteInputSchema, type InvitationRow, type InviteInput, type UserRow } from "#shared/schemas/users.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { DataTable } from "../../components/ui/data-table.tsx";
@@ -12,10 +13,11 @@ import { SelectField, SelectOptions, TextField } from "../../components/ui/field
 import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { applyApiError, formatInstant, ROLE_LABEL } from "../../lib/format.ts";
 import { primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
-import { invitationsQueryOptions, useInvite, useUpdateUser, usersQueryOptions } from "./api.ts";
+import { invitationsQueryOptions, organisationsQueryOptions, useCreateOrganisation, useInvite, useSetOrganisation, useUpdateUser, usersQueryOptions, type Organisation } from "./api.ts";
 
 /** The users page is for administrators (the route says so); only theirs is primed. */
-export const usersLoader: RouteLoader = (qc) => () => primeWhenAllowed(qc, ["admin"], () => Promise.all([qc.ensureQueryData(usersQueryOptions()), qc.ensureQueryData(invitationsQueryOptions())]));
+export const usersLoader: RouteLoader = (qc) => () =>
+  primeWhenAllowed(qc, ["admin"], () => Promise.all([qc.ensureQueryData(usersQueryOptions()), qc.ensureQueryData(invitationsQueryOptions()), qc.ensureQueryData(organisationsQueryOptions())]));
 
 const roleOptions = RoleSchema.options.map((r) => ({ value: r, label: ROLE_LABEL[r] }));
 
@@ -44,8 +46,9 @@ function InviteForm() {
 
 const col = createColumnHelper<UserRow>();
 
-function UsersTable({ users }: { users: UserRow[] }) {
+function UsersTable({ users, organisations }: { users: UserRow[]; organisations: Organisation[] }) {
   const update = useUpdateUser();
+  const setOrganisation = useSetOrganisation();
   const [sorting, setSorting] = useState<SortingState>([]);
   const columns = useMemo(
     () => [
@@ -65,6 +68,26 @@ function UsersTable({ users }: { users: UserRow[] }) {
             </select>
           </label>
         ),
+      }),
+      col.accessor((u) => u.organisation?.name ?? "", {
+        id: "organisation",
+        header: "Organisation",
+        cell: (c) => {
+          const u = c.row.original;
+          if (u.role !== "investor") return <span className="text-ink-faint">—</span>;
+          return (
+            <label className="block">
+              <span className="sr-only">Organisation of {u.email}</span>
+              <select
+                className="rounded-sm border border-rule-strong bg-sheet px-2 py-1"
+                value={u.organisation ? String(u.organisation.id) : ""}
+                onChange={(e) => setOrganisation.mutate({ id: u.id, organisationId: e.target.value === "" ? null : Number(e.target.value) }, { onSuccess: () => toast.success("Organisation set") })}
+              >
+                <SelectOptions options={[{ value: "", label: "None" }, ...organisations.map((o) => ({ value: String(o.id), label: o.name }))]} />
+              </select>
+            </label>
+          );
+        },
       }),
       col.accessor("disabled", {
         header: "Status",
@@ -100,7 +123,7 @@ function UsersTable({ users }: { users: UserRow[] }) {
         },
       }),
     ],
-    [update],
+    [update, setOrganisation, organisations],
   );
   const table = useReactTable({ data: users, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
   return <DataTable table={table} caption="Users of the site office and investor room" />;
@@ -120,6 +143,45 @@ function InvitationsTable({ rows }: { rows: InvitationRow[] }) {
   return <DataTable table={table} caption="Invitations" empty="No invitations sent yet." />;
 }
 
+/** Investor organisations: an administrator adds them, then gives each investor theirs in the table above. */
+function OrganisationsSection({ organisations }: { organisations: Organisation[] }) {
+  const create = useCreateOrganisation();
+  const form = useForm<{ name: string }>({ resolver: zodResolver(OrganisationInputSchema), defaultValues: { name: "" } });
+  const onSubmit = form.handleSubmit(async (v) => {
+    try {
+      await create.mutateAsync(v);
+      toast.success(`${v.name} added`);
+      form.reset({ name: "" });
+    } catch (e) {
+      applyApiError(e, form.setError, "name");
+    }
+  });
+  return (
+    <div className="flex flex-col gap-3">
+      {organisations.length === 0 ? (
+        <p className="text-sm text-ink-soft">No organisation yet.</p>
+      ) : (
+        <ul className="flex flex-col divide-y divide-rule border border-rule bg-sheet text-sm" aria-label="Investor organisations">
+          {organisations.map((o) => (
+            <li key={o.id} className="flex justify-between gap-3 px-3 py-2">
+              <span className="font-medium">{o.name}</span>
+              <span className="tabular text-ink-soft">
+                {o.investors} investor{o.investors === 1 ? "" : "s"}
+              </span>
+            </li>
+          ))}
+        </ul>
+      )}
+      <form onSubmit={onSubmit} noValidate className="grid gap-3 sm:grid-cols-[1fr_auto] sm:items-end" aria-label="Add an organisation">
+        <TextField label="New organisation" error={form.formState.errors.name?.message} {...form.register("name")} />
+        <Button type="submit" busy={create.isPending}>
+          Add organisation
+        </Button>
+      </form>
+    </div>
+  );
+}
+
 /** A headed section of the page around one table. */
 function TableSection({ id, title, children }: { id: string; title: string; children: ReactNode }) {
   return (
@@ -135,6 +197,7 @@ function TableSection({ id, title, children }: { id: string; title: string; chil
 export function UsersPage() {
   const users = useSuspenseQuery(usersQueryOptions()).data;
   const invitations = useSuspenseQuery(invitationsQueryOptions()).data;
+  const organisations = useSuspenseQuery(organisationsQueryOptions()).data;
   return (
     <>
       <PageHeader sheet="Site office · Users" title="Users" description="Accounts exist by invitation only. Changing a role or disabling an account takes effect at once." />
@@ -143,10 +206,13 @@ export function UsersPage() {
           <InviteForm />
         </Sheet>
         <TableSection id="users-h" title="Accounts">
-          <UsersTable users={users} />
+          <UsersTable users={users} organisations={organisations} />
         </TableSection>
         <TableSection id="inv-h" title="Invitations">
           <InvitationsTable rows={invitations} />
+        </TableSection>
+        <TableSection id="org-h" title="Investor organisations">
+          <OrganisationsSection organisations={organisations} />
         </TableSection>
       </div>
     </>

@@ -106,14 +106,21 @@ export const RiskToIssueInputSchema = z.strictObject({
 });
 export type RiskToIssueInput = z.infer<typeof RiskToIssueInputSchema>;
 
-export const MitigationInputSchema = z.strictObject({
+const MITIGATION_FIELDS = {
   description: Title,
   ownerId: z.number().int().positive(),
-  dueDate: CalendarDateSchema.nullable().default(null),
-  status: ActionStatusSchema.default("planned"),
+  dueDate: CalendarDateSchema.nullable(),
+  status: ActionStatusSchema,
+} as const;
+export const MitigationInputSchema = z.strictObject({
+  ...MITIGATION_FIELDS,
+  dueDate: MITIGATION_FIELDS.dueDate.default(null),
+  status: MITIGATION_FIELDS.status.default("planned"),
 });
 export type MitigationInput = z.infer<typeof MitigationInputSchema>;
-export const MitigationPatchInputSchema = z.strictObject({ ...MitigationInputSchema.partial().shape, version: z.number().int().positive() });
+/** PATCH: any subset (no defaults: a field left out keeps its value); `version` read (409 when stale). */
+export const MitigationPatchInputSchema = z.strictObject({ ...z.object(MITIGATION_FIELDS).partial().shape, version: z.number().int().positive() });
+export type MitigationPatchInput = z.infer<typeof MitigationPatchInputSchema>;
 
 /** GET /api/projects/:slug/risks?status&category&ownerId&band&kind&since — filters all optional. */
 export const RiskListQuerySchema = z.strictObject({
@@ -222,8 +229,9 @@ const RiskSummarySchema = z.object({
   openRisks: z.number(),
   openIssues: z.number(),
   byBand: z.record(RiskBandSchema, z.number()),
-  totalExpectedCost: z.number(),
-  totalExpectedCostPert: z.number(),
+  /** Summed expected cost of the open risks, both ways (null for callers who may not see money). */
+  totalExpectedCost: z.number().nullable(),
+  totalExpectedCostPert: z.number().nullable(),
   /** Remaining contingency (null for callers who may not see money). */
   contingencyRemaining: z.number().nullable(),
   windowStart: z.string(),

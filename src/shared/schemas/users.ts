@@ -19,6 +19,8 @@ export const UserRowSchema = z.object({
   disabled: z.boolean(),
   lastSignInAt: z.string().nullable(),
   createdAt: z.string(),
+  /** An investor's organisation (documents may be limited to some); null for staff and for an investor without one. */
+  organisation: z.object({ id: z.number(), name: z.string() }).nullable(),
 });
 export type UserRow = z.infer<typeof UserRowSchema>;
 

@@ -9,8 +9,7 @@ import type { WorkingCalendar } from "#shared/domain/calendar.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { FieldError } from "../../../components/ui/field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
-import { ApiError } from "../../../lib/api-client.ts";
-import { applyFieldErrors } from "../../../lib/format.ts";
+import { applyApiError } from "../../../lib/format.ts";
 import { conflictCurrent, useSetUnitStage } from "../api.ts";
 import { previewStage } from "../preview.ts";
 import { goesBackwards, KIND_WORD, nextStage, STAGE_MEANING, STAGE_SHORT, stageWords } from "../words.ts";
@@ -82,7 +81,7 @@ export function UnitStageForm({ slug, unit, system, facility, milestones, calend
     } catch (e) {
       const current = conflictCurrent<UnitAnswer>(e);
       if (current) setConflict(current);
-      else if (e instanceof ApiError) applyFieldErrors(Object.keys(e.fields).length ? e.fields : { note: e.message }, form.setError);
+      else applyApiError(e, form.setError, "note");
     }
   };
   const onSubmit = form.handleSubmit((v) => send(v, unit.version));

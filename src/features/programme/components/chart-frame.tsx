@@ -1,5 +1,6 @@
-import { useLayoutEffect, useRef, useState, type ReactNode } from "react";
+import type { ReactNode } from "react";
 import { YAxis, type BarShapeProps } from "recharts";
+import { useElementWidth } from "../../../lib/use-element-width.ts";
 
 export const INK = "#1d1f24";
 export const INK_SOFT = "#4a4e57";
@@ -16,22 +17,6 @@ export const ROW_CURSOR = { fill: "rgba(29,31,36,0.05)" };
  */
 export function barBox<R>(p: BarShapeProps, minWidth = 0): { row: R; x: number; w: number; cy: number } {
   return { row: p.payload as R, x: Math.min(p.x, p.x + p.width), w: Math.max(minWidth, Math.abs(p.width)), cy: p.y + p.height / 2 };
-}
-
-/** Width of an element, kept up to date: charts draw at a known pixel width, so they fit a phone. */
-function useElementWidth<T extends HTMLElement>(): [React.RefObject<T | null>, number] {
-  const ref = useRef<T>(null);
-  const [width, setWidth] = useState(0);
-  useLayoutEffect(() => {
-    const el = ref.current;
-    if (!el) return;
-    setWidth(el.clientWidth);
-    if (typeof ResizeObserver === "undefined") return;
-    const ro = new ResizeObserver(() => setWidth(el.clientWidth));
-    ro.observe(el);
-    return () => ro.disconnect();
-  }, []);
-  return [ref, width];
 }
 
 /**

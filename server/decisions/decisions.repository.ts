@@ -1,0 +1,177 @@
+import type { Knex } from "knex";
+import type { DecisionStatus } from "#shared/schemas/decisions.ts";
+import type { RecordAudience } from "#shared/schemas/risks.ts";
+import { replaceChildRows } from "../core/child-rows.ts";
+
+export type Q = Knex | Knex.Transaction;
+
+/**
+ * Decisions needed as stored: the request (options kept whole as JSON with it), its outcome or
+ * withdrawal, and its links to milestones, risks and documents. Every read that serves a caller
+ * takes the audiences that caller may see and filters in the query (`visibleTo`), in that one place.
+ */
+
+export interface DecisionOption {
+  label: string;
+  consequence: string;
+  cost: number | null;
+}
+
+/** The written fields of a request (links in their own tables). */
+export interface DecisionFields {
+  title: string;
+  question: string;
+  background: string;
+  options: DecisionOption[];
+  recommendedOption: number | null;
+  recommendation: string;
+  decider: string;
+  neededBy: string;
+  audience: RecordAudience;
+}
+
+export interface DecisionLinks {
+  linkedMilestones: number[];
+  linkedRisks: number[];
+  documentIds: number[];
+}
+
+/** The outcome of a decided request, or why it was withdrawn. */
+export interface DecisionClose {
+  status: DecisionStatus;
+  chosenOption: number | null;
+  outcome: string | null;
+  decidedBy: string | null;
+  decidedOn: string | null;
+  outcomeRecordedBy: number | null;
+  withdrawnReason: string | null;
+}
+
+export interface DecisionRecord extends DecisionFields, DecisionLinks, DecisionClose {
+  id: number;
+  projectId: number;
+  number: number;
+  version: number;
+  createdAt: string;
+  updatedAt: string;
+}
+
+const LINKS = {
+  linkedMilestones: { table: "decision_milestones", column: "milestone_id" },
+  linkedRisks: { table: "decision_risks", column: "risk_id" },
+  documentIds: { table: "decision_documents", column: "document_id" },
+} as const;
+
+function toDecision(r: Record<string, unknown>, links: DecisionLinks): DecisionRecord {
+  return {
+    id: Number(r.id),
+    projectId: Number(r.project_id),
+    number: Number(r.number),
+    title: String(r.title),
+    question: String(r.question),
+    background: String(r.background ?? ""),
+    options: JSON.parse(String(r.options)) as DecisionOption[],
+    recommendedOption: r.recommended_option == null ? null : Number(r.recommended_option),
+    recommendation: String(r.recommendation ?? ""),
+    decider: String(r.decider),
+    neededBy: String(r.needed_by),
+    audience: r.audience as RecordAudience,
+    status: r.status as DecisionStatus,
+    chosenOption: r.chosen_option == null ? null : Number(r.chosen_option),
+    outcome: (r.outcome as string | null) ?? null,
+    decidedBy: (r.decided_by as string | null) ?? null,
+    decidedOn: r.decided_on == null ? null : String(r.decided_on),
+    outcomeRecordedBy: r.outcome_recorded_by == null ? null : Number(r.outcome_recorded_by),
+    withdrawnReason: (r.withdrawn_reason as string | null) ?? null,
+    ...links,
+    version: Number(r.version),
+    createdAt: (r.created_at as Date).toISOString(),
+    updatedAt: (r.updated_at as Date).toISOString(),
+  };
+}
+
+function decisionRow(f: Partial<DecisionFields & DecisionClose>): Record<string, unknown> {
+  const row: Record<string, unknown> = {
+    title: f.title,
+    question: f.question,
+    background: f.background,
+    options: f.options === undefined ? undefined : JSON.stringify(f.options),
+    recommended_option: f.recommendedOption,
+    recommendation: f.recommendation,
+    decider: f.decider,
+    needed_by: f.neededBy,
+    audience: f.audience,
+    status: f.status,
+    chosen_option: f.chosenOption,
+    outcome: f.outcome,
+    decided_by: f.decidedBy,
+    decided_on: f.decidedOn,
+    outcome_recorded_by: f.outcomeRecordedBy,
+    withdrawn_reason: f.withdrawnReason,
+  };
+  return Object.fromEntries(Object.entries(row).filter(([, v]) => v !== undefined));
+}
+
+/** The one audience filter of the decisions' reads. */
+const visibleTo = <T extends Knex.QueryBuilder>(query: T, audiences: readonly RecordAudience[]): T => query.whereIn("audience", [...audiences]) as T;
+
+async function decisionsFrom(q: Q, rows: Array<Record<string, unknown>>): Promise<DecisionRecord[]> {
+  const ids = rows.map((r) => Number(r.id));
+  const links = new Map<number, DecisionLinks>(ids.map((id) => [id, { linkedMilestones: [], linkedRisks: [], documentIds: [] }]));
+  if (ids.length > 0) {
+    for (const [key, { table, column }] of Object.entries(LINKS) as Array<[keyof DecisionLinks, { table: string; column: string }]>) {
+      const found = (await q(table).whereIn("decision_id", ids).select("decision_id", column).orderBy(column)) as Array<Record<string, unknown>>;
+      for (const r of found) links.get(Number(r.decision_id))![key].push(Number(r[column]));
+    }
+  }
+  return rows.map((r) => toDecision(r, links.get(Number(r.id))!));
+}
+
+/** A project's decisions of these audiences, by number. */
+export async function listDecisions(q: Q, projectId: number, audiences: readonly RecordAudience[]): Promise<DecisionRecord[]> {
+  return decisionsFrom(q, (await visibleTo(q("decisions").where({ project_id: projectId }), audiences).orderBy("number")) as Array<Record<string, unknown>>);
+}
+
+/** One decision when it is of these audiences; `forUpdate` locks its row for the rest of the transaction. */
+export async function findDecision(q: Q, id: number, audiences: readonly RecordAudience[], opts: { forUpdate?: boolean } = {}): Promise<DecisionRecord | null> {
+  const query = visibleTo(q("decisions").where({ id }), audiences).first();
+  if (opts.forUpdate) query.forUpdate();
+  const r = (await query) as Record<string, unknown> | undefined;
+  return r ? (await decisionsFrom(q, [r]))[0]! : null;
+}
+
+export async function findDecisionProjectId(q: Q, id: number): Promise<number | null> {
+  const r = await q("decisions").where({ id }).first("project_id");
+  return r ? Number(r.project_id) : null;
+}
+
+/** The decisions (any audience) that link a risk, by number: what keeps the risk on record. */
+export async function listDecisionsLinkingRisk(q: Q, riskId: number): Promise<Array<{ id: number; number: number; title: string }>> {
+  const rows = (await q("decisions as d").join("decision_risks as l", "l.decision_id", "d.id").where("l.risk_id", riskId).orderBy("d.number").select("d.id", "d.number", "d.title")) as Array<Record<string, unknown>>;
+  return rows.map((r) => ({ id: Number(r.id), number: Number(r.number), title: String(r.title) }));
+}
+
+export async function nextDecisionNumber(q: Q, projectId: number): Promise<number> {
+  const r = (await q("decisions").where({ project_id: projectId }).max({ n: "number" }).first()) as { n: number | null } | undefined;
+  return Number(r?.n ?? 0) + 1;
+}
+
+export async function insertDecision(q: Q, d: DecisionFields & { projectId: number; number: number }, at: Date): Promise<number> {
+  const [id] = await q("decisions").insert({ ...decisionRow(d), project_id: d.projectId, number: d.number, status: "open", version: 1, created_at: at, updated_at: at });
+  return Number(id);
+}
+
+/** Optimistic concurrency: changes the row only while it still has `version` (0 = someone else saved first). */
+export function updateDecision(q: Q, id: number, version: number, fields: Partial<DecisionFields & DecisionClose>, at: Date): Promise<number> {
+  return q("decisions")
+    .where({ id, version })
+    .update({ ...decisionRow(fields), version: version + 1, updated_at: at });
+}
+
+export async function replaceDecisionLinks(q: Q, decisionId: number, links: Partial<DecisionLinks>): Promise<void> {
+  for (const [key, { table, column }] of Object.entries(LINKS) as Array<[keyof DecisionLinks, { table: string; column: string }]>) {
+    const ids = links[key];
+    if (ids === undefined) continue;
+    await replaceChildRows(q, table, { decision_id: decisionId }, [column], ids.map((id) => ({ decision_id: decisionId, [column]: id })));
+  }
+}

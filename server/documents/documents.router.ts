@@ -1,0 +1,142 @@
+import { Router, type RequestHandler } from "express";
+import { MulterError } from "multer";
+import { z } from "zod";
+import { IdParamSchema } from "#shared/schemas/common.ts";
+import {
+  DocumentCreateFieldsSchema,
+  DocumentFileQuerySchema,
+  DocumentListQuerySchema,
+  DocumentPatchInputSchema,
+  DocumentVersionFieldsSchema,
+  ViewLogQuerySchema,
+} from "#shared/schemas/documents.ts";
+import { SlugParamSchema } from "#shared/schemas/projects.ts";
+import { AppError } from "../core/app-error.ts";
+import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
+import type { UploadArea } from "../media/media.storage.ts";
+import type { DocumentsService } from "./documents.service.ts";
+
+const writers = () => requireRole("lead", "admin");
+const signedIn = () => requireRole();
+
+/** multer's refusals in the house's error shape, naming the field. */
+function uploadError(err: unknown, maxFileBytes: number): unknown {
+  if (!(err instanceof MulterError)) return err;
+  if (err.code === "LIMIT_FILE_SIZE") {
+    const mb = Math.round(maxFileBytes / (1024 * 1024));
+    return new AppError("too_large", `The file is larger than ${mb} MB, the limit for one document; nothing was kept.`, 413, { file: `at most ${mb} MB` });
+  }
+  if (err.code === "LIMIT_UNEXPECTED_FILE" || err.code === "LIMIT_FILE_COUNT") {
+    return new AppError("unexpected_file", "Send one file, in the field `file`; nothing was kept.", 400, { [err.field ?? "file"]: "send one file, in the field `file`" });
+  }
+  return new AppError("bad_upload", `The upload could not be read (${err.message}).`, 400);
+}
+
+/**
+ * A multipart form's text fields as the shared schema reads them: `organisationIds` arrives as
+ * JSON text, an empty `periodEnd` means none.
+ */
+function formFields(body: unknown): Record<string, unknown> {
+  const fields: Record<string, unknown> = { ...(body as Record<string, unknown> | undefined) };
+  if (typeof fields.organisationIds === "string") {
+    try {
+      fields.organisationIds = fields.organisationIds.trim() === "" ? [] : (JSON.parse(fields.organisationIds) as unknown);
+    } catch {
+      throw new AppError("validation", "organisationIds must be a JSON list of organisation ids, such as [1, 2].", 400, { organisationIds: "must be a JSON list of ids" });
+    }
+  }
+  if (fields.periodEnd === "") fields.periodEnd = null;
+  return fields;
+}
+
+const ContentDisposition = (kind: "inline" | "attachment", name: string) =>
+  `${kind}; filename="${name.replace(/[^\x20-\x7e]|["\\]/g, "_")}"; filename*=UTF-8''${encodeURIComponent(name)}`;
+
+/**
+ * The document library API. Every read is for signed-in callers, by audience (the service
+ * decides per caller); writes are for leads and admins; the view log is staff's, and an
+ * investor's own log is theirs.
+ */
+export function documentsRouter(documents: DocumentsService, uploads: UploadArea): Router {
+  const r = Router();
+  const receive = uploads.receiver({ maxFileBytes: documents.limits.maxFileBytes, maxFiles: 1, field: "file" });
+  const receiveFile: RequestHandler = (req, res, next) => receive(req, res, (err?: unknown) => next(err ? uploadError(err, documents.limits.maxFileBytes) : undefined));
+  /** Parses the form's fields; a refusal removes the received file at once. */
+  const parseForm = async <T>(req: Parameters<RequestHandler>[0], parse: () => T): Promise<{ input: T; file: ReturnType<UploadArea["filesOf"]>[number] | undefined }> => {
+    const files = uploads.filesOf(req.files);
+    try {
+      return { input: parse(), file: files[0] };
+    } catch (err) {
+      await uploads.discard(files);
+      throw err;
+    }
+  };
+
+  r.get("/projects/:slug/documents", signedIn(), async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    const filter = DocumentListQuerySchema.parse({ ...req.query });
+    res.json(await documents.list(slug, filter, actorOf(req)));
+  });
+  r.post("/projects/:slug/documents", writers(), receiveFile, async (req, res) => {
+    const { input, file } = await parseForm(req, () => ({ slug: SlugParamSchema.parse(req.params).slug, fields: DocumentCreateFieldsSchema.parse(formFields(req.body)) }));
+    res.status(201).json(await documents.create(input.slug, input.fields, file, actorOf(req)));
+  });
+  r.get("/documents/:id", signedIn(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    res.json(await documents.get(id, actorOf(req)));
+  });
+  r.post("/documents/:id/versions", writers(), receiveFile, async (req, res) => {
+    const { input, file } = await parseForm(req, () => ({ id: IdParamSchema.parse(req.params).id, fields: DocumentVersionFieldsSchema.parse(formFields(req.body)) }));
+    res.status(201).json(await documents.addVersion(input.id, input.fields, file, actorOf(req)));
+  });
+  r.patch("/documents/:id", writers(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const input = DocumentPatchInputSchema.parse(req.body);
+    res.json(await documents.patch(id, input, actorOf(req)));
+  });
+  r.delete("/documents/:id", writers(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    await documents.remove(id, actorOf(req));
+    res.status(204).end();
+  });
+
+  // The file: an investor's copy is made for them on each request and sent whole (no ranges), so
+  // one request is one entry in the view log; staff get the stored original.
+  r.get("/documents/:id/file", signedIn(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    const query = DocumentFileQuerySchema.parse({ ...req.query });
+    const file = await documents.file(id, query, actorOf(req), { address: req.ip ?? "", agent: req.get("user-agent") ?? "", record: req.method === "GET" });
+    res.set({
+      "Content-Type": file.mime,
+      "Content-Disposition": ContentDisposition(file.disposition, file.name),
+      "Cache-Control": "private, no-store",
+      "Accept-Ranges": "none",
+    });
+    if ("bytes" in file) {
+      res.set("Content-Length", String(file.bytes.length)).end(Buffer.from(file.bytes.buffer, file.bytes.byteOffset, file.bytes.byteLength));
+      return;
+    }
+    res.set("Content-Length", String(file.length));
+    file.stream.on("error", (err) => res.destroy(err));
+    file.stream.pipe(res);
+  });
+
+  r.get("/documents/:id/views", requireStaff(), async (req, res) => {
+    const { id } = IdParamSchema.parse(req.params);
+    res.json(await documents.documentViews(id, actorOf(req)));
+  });
+  r.get("/projects/:slug/document-views", requireStaff(), async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    const query = ViewLogQuerySchema.parse({ ...req.query });
+    const rows = await documents.projectViews(slug, query, actorOf(req));
+    if (query.format === "json") return res.json(rows);
+    res.type("text/csv; charset=utf-8").attachment(`${slug}-document-views.csv`).send(documents.toCsv(rows));
+  });
+  r.get("/projects/:slug/my-document-views", requireRole("investor"), async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    z.strictObject({}).parse({ ...req.query });
+    res.json(await documents.myViews(slug, actorOf(req)));
+  });
+
+  return r;
+}

@@ -1,0 +1,43 @@
+import type { UseQueryResult } from "@tanstack/react-query";
+import { formatInstant } from "../../lib/format.ts";
+import { Notice, Spinner } from "./sheet.tsx";
+
+/** One recorded change of a record (a risk, a decision): what moved, from what to what, who, when and why. */
+export interface RecordedChange {
+  id: number;
+  field: string;
+  from: string | null;
+  to: string | null;
+  at: string;
+  by: string | null;
+  note: string | null;
+}
+
+/**
+ * A record's history as the server keeps it, newest first, read through `events` (its query):
+ * each change named in the feature's words (`fieldWord`), with the instant on the project's clock.
+ */
+export function ChangeHistory({ events, fieldWord, timeZone, testId }: { events: UseQueryResult<RecordedChange[]>; fieldWord: Readonly<Record<string, string>>; timeZone: string; testId?: string }) {
+  if (events.isPending) return <Spinner label="Loading the history" />;
+  if (events.isError) return <Notice tone="error">{events.error.message}</Notice>;
+  if (events.data.length === 0) return <p className="text-sm text-ink-soft">No change recorded yet.</p>;
+  return (
+    <ol className="flex flex-col divide-y divide-rule text-sm" aria-label="Changes, newest first" data-testid={testId}>
+      {[...events.data].sort((a, b) => b.at.localeCompare(a.at) || b.id - a.id).map((e) => (
+        <li key={e.id} className="py-1.5">
+          <span className="font-medium">{fieldWord[e.field] ?? e.field}</span>
+          {e.from !== null || e.to !== null ? (
+            <>
+              : {e.from ?? "none"} → <span className="font-semibold">{e.to ?? "none"}</span>
+            </>
+          ) : null}
+          <span className="block text-xs text-ink-faint">
+            {formatInstant(e.at, timeZone)}
+            {e.by ? ` · ${e.by}` : ""}
+          </span>
+          {e.note ? <span className="block font-serif text-ink-soft">“{e.note}”</span> : null}
+        </li>
+      ))}
+    </ol>
+  );
+}

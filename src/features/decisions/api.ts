@@ -1,0 +1,47 @@
+import { queryOptions, useQuery } from "@tanstack/react-query";
+import type { DecisionAnswer, DecisionCreateInput, DecisionEvent, DecisionOutcomeInput, DecisionPatchInput } from "#shared/schemas/decisions.ts";
+import type { DocumentAnswer } from "#shared/schemas/documents.ts";
+import type { Milestone } from "#shared/schemas/programme.ts";
+import type { RiskAnswer } from "#shared/schemas/risks.ts";
+import { api } from "../../lib/api-client.ts";
+import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { featureKeys } from "../../lib/query-keys.ts";
+
+/** Keys: decisions → project(slug) → kind, and decisions → decision(id) → events. */
+export const decisionKeys = {
+  ...featureKeys("decisions"),
+  detail: (slug: string) => [...decisionKeys.project(slug), "detail"] as const,
+  list: (slug: string) => [...decisionKeys.project(slug), "list"] as const,
+  milestones: (slug: string) => [...decisionKeys.project(slug), "milestones"] as const,
+  risks: (slug: string) => [...decisionKeys.project(slug), "risks"] as const,
+  documents: (slug: string) => [...decisionKeys.project(slug), "documents"] as const,
+  decision: (id: number) => [...decisionKeys.all, "decision", id] as const,
+  events: (id: number) => [...decisionKeys.decision(id), "events"] as const,
+};
+
+export const decisionProjectsQueryOptions = () => projectListQueryOptions(decisionKeys.projects());
+export const decisionProjectQueryOptions = (slug: string) => projectDetailQueryOptions(decisionKeys.detail(slug), slug);
+
+/** The decisions the caller may see, as the server orders them: open first, overdue first, then by needed-by. */
+export const decisionsQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: decisionKeys.list(slug), queryFn: () => api.get<DecisionAnswer[]>(`/api/projects/${slug}/decisions`), enabled: slug !== "" });
+
+/** What a decision may be linked to or carry: milestones, risks, documents of the library. */
+export const decisionMilestonesQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: decisionKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });
+export const decisionRisksQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: decisionKeys.risks(slug), queryFn: () => api.get<RiskAnswer[]>(`/api/projects/${slug}/risks`), enabled: slug !== "" });
+export const decisionDocumentsQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: decisionKeys.documents(slug), queryFn: () => api.get<DocumentAnswer[]>(`/api/projects/${slug}/documents`), enabled: slug !== "" });
+
+export const decisionEventsQueryOptions = (id: number) => queryOptions({ queryKey: decisionKeys.events(id), queryFn: () => api.get<DecisionEvent[]>(`/api/decisions/${id}/events`) });
+export const useDecisionEvents = (id: number) => useQuery(decisionEventsQueryOptions(id));
+
+// A write refreshes the whole feature: the list's order, days left and the decision's history move together.
+const useDecisionWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useRefreshingMutation<R, V>(decisionKeys.all, { mutationFn, meta: { quiet: true } });
+
+export const useCreateDecision = (slug: string) => useDecisionWrite((input: DecisionCreateInput) => api.post<DecisionAnswer>(`/api/projects/${slug}/decisions`, input));
+export const usePatchDecision = () => useDecisionWrite(({ id, patch }: { id: number; patch: DecisionPatchInput }) => api.patch<DecisionAnswer>(`/api/decisions/${id}`, patch));
+export const useRecordOutcome = () => useDecisionWrite(({ id, input }: { id: number; input: DecisionOutcomeInput }) => api.post<DecisionAnswer>(`/api/decisions/${id}/outcome`, input));
+export const useWithdrawDecision = () => useDecisionWrite(({ id, reason, version }: { id: number; reason: string; version: number }) => api.post<DecisionAnswer>(`/api/decisions/${id}/withdraw`, { reason, version }));

@@ -1,0 +1,67 @@
+import { queryOptions, useQuery } from "@tanstack/react-query";
+import type { User } from "#shared/schemas/auth.ts";
+import type { FacilityAnswer } from "#shared/schemas/facility.ts";
+import type { Milestone } from "#shared/schemas/programme.ts";
+import type { MitigationInput, RiskAnswer, RiskCreateInput, RiskEvent, RiskPatchInput, RiskSummary, RiskToIssueInput } from "#shared/schemas/risks.ts";
+import { api } from "../../lib/api-client.ts";
+import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { featureKeys } from "../../lib/query-keys.ts";
+
+/** A staff member who may own a risk or an action. */
+export interface StaffMember {
+  id: number;
+  name: string;
+  role: User["role"];
+}
+
+/**
+ * Keys: risks → project(slug) → kind, and risks → risk(id) → events. A write refreshes the
+ * whole feature: one risk's score moves the register, the summary's grid and totals, and its
+ * own history at once.
+ */
+export const riskKeys = {
+  ...featureKeys("risks"),
+  detail: (slug: string) => [...riskKeys.project(slug), "detail"] as const,
+  list: (slug: string) => [...riskKeys.project(slug), "list"] as const,
+  summary: (slug: string) => [...riskKeys.project(slug), "summary"] as const,
+  milestones: (slug: string) => [...riskKeys.project(slug), "milestones"] as const,
+  facility: (slug: string) => [...riskKeys.project(slug), "facility"] as const,
+  staff: () => [...riskKeys.all, "staff"] as const,
+  risk: (id: number) => [...riskKeys.all, "risk", id] as const,
+  events: (id: number) => [...riskKeys.risk(id), "events"] as const,
+};
+
+export const riskProjectsQueryOptions = () => projectListQueryOptions(riskKeys.projects());
+export const riskProjectQueryOptions = (slug: string) => projectDetailQueryOptions(riskKeys.detail(slug), slug);
+
+/** Every risk and issue the caller may see (the register filters on the page). */
+export const risksQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: riskKeys.list(slug), queryFn: () => api.get<RiskAnswer[]>(`/api/projects/${slug}/risks`), enabled: slug !== "" });
+
+/** The scale, the grid of open risks and the totals. */
+export const riskSummaryQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: riskKeys.summary(slug), queryFn: () => api.get<RiskSummary>(`/api/projects/${slug}/risks/summary`), enabled: slug !== "" });
+
+/** What a risk may be linked to: milestones, and the facility's blocks and systems. */
+export const riskMilestonesQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: riskKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });
+export const riskFacilityQueryOptions = (slug: string) =>
+  queryOptions({ queryKey: riskKeys.facility(slug), queryFn: () => api.get<FacilityAnswer>(`/api/projects/${slug}/facility`), enabled: slug !== "" });
+
+/** The staff who may own a risk or an action. */
+export const staffQueryOptions = () => queryOptions({ queryKey: riskKeys.staff(), queryFn: () => api.get<StaffMember[]>("/api/users/staff") });
+
+export const riskEventsQueryOptions = (id: number) => queryOptions({ queryKey: riskKeys.events(id), queryFn: () => api.get<RiskEvent[]>(`/api/risks/${id}/events`) });
+export const useRiskEvents = (id: number) => useQuery(riskEventsQueryOptions(id));
+
+const useRiskWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useRefreshingMutation<R, V>(riskKeys.all, { mutationFn, meta: { quiet: true } });
+
+export const useCreateRisk = (slug: string) => useRiskWrite((input: RiskCreateInput) => api.post<RiskAnswer>(`/api/projects/${slug}/risks`, input));
+export const usePatchRisk = () => useRiskWrite(({ id, patch }: { id: number; patch: RiskPatchInput }) => api.patch<RiskAnswer>(`/api/risks/${id}`, patch));
+export const useRiskToIssue = () => useRiskWrite(({ id, input }: { id: number; input: RiskToIssueInput }) => api.post<RiskAnswer>(`/api/risks/${id}/issue`, input));
+export const useDeleteRisk = () => useRiskWrite(({ id }: { id: number }) => api.delete<void>(`/api/risks/${id}`));
+export const useAddMitigation = () => useRiskWrite(({ riskId, input }: { riskId: number; input: MitigationInput }) => api.post<unknown>(`/api/risks/${riskId}/mitigations`, input));
+export const usePatchMitigation = () =>
+  useRiskWrite(({ id, patch }: { id: number; patch: Partial<MitigationInput> & { version: number } }) => api.patch<unknown>(`/api/mitigations/${id}`, patch));
+export const useDeleteMitigation = () => useRiskWrite(({ id }: { id: number }) => api.delete<void>(`/api/mitigations/${id}`));
