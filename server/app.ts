@@ -34,6 +34,8 @@ import { risksRouter } from "./risks/risks.router.ts";
 import { decisionsRouter } from "./decisions/decisions.router.ts";
 import { budgetRouter } from "./budget/budget.router.ts";
 import { documentsRouter } from "./documents/documents.router.ts";
+import { calendarFeedsRouter, calendarFilesRouter } from "./calendars/calendars.router.ts";
+import { reportsRouter } from "./reports/reports.router.ts";
 import type { Services } from "./services.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
@@ -177,6 +179,8 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   api.use(decisionsRouter(services.decisions));
   api.use(budgetRouter(services.budget));
   api.use(documentsRouter(services.documents, mediaUploads));
+  api.use(calendarFeedsRouter(services.calendars));
+  api.use(reportsRouter(services.reports));
   api.use(apiNotFound);
   app.use("/api", api);
   // RFC 8058 one-click unsubscribe (POST); a GET of the same path is the client's page.
@@ -185,6 +189,8 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   app.use(mediaFilesRouter(media));
   // The Atom feeds, sitemap.xml and robots.txt (before the client's static files).
   app.use(feedsRouter(site));
+  // The milestone calendars (.ics), public and personal (before the client's pages).
+  app.use(calendarFilesRouter(services.calendars));
   // An old address of a photo story answers 301 to its current page (before the HTML shell).
   app.use(storyPagesRouter(stories));
 

@@ -27,6 +27,8 @@ import { createFeedsService } from "./feeds/feeds.service.ts";
 import { createPublicCache } from "./feeds/public-cache.ts";
 import { createDigestsService } from "./digests/digests.service.ts";
 import { createDocumentsService } from "./documents/documents.service.ts";
+import { createCalendarsService } from "./calendars/calendars.service.ts";
+import { createReportsService } from "./reports/reports.service.ts";
 
 export interface ServiceDeps {
   db: Db;
@@ -174,6 +176,11 @@ export function createServices(deps: ServiceDeps) {
     unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
   });
 
+  // Monthly investor reports: figures as at a month end from every module above, the PDF kept in the document library.
+  const reports = createReportsService({ db, logger, projects, programme, facility, budget, risks, decisions, media, mediaStorage, documents, users, mailer, outbox, audit, publicUrl: config.PUBLIC_URL });
+  // Milestone calendars: the public feed and personal feeds behind a revocable token.
+  const calendars = createCalendarsService({ db, projects, programme, facility, decisions, reports, accounts, publicUrl: config.PUBLIC_URL });
+
   return {
     publicCache,
     /** The session store: express-session reads and writes it; auth ends sessions; a worker sweeps it. */
@@ -211,6 +218,10 @@ export function createServices(deps: ServiceDeps) {
     budget,
     /** Digests: runs, previews and web copies. */
     digests,
+    /** Milestone calendars (RFC 5545): public and personal feeds. */
+    calendars,
+    /** Monthly investor reports; the worker sends their notices (`sendNotices`). */
+    reports,
     /** The process is stopping: work that requests set going (the subscription mail they queued) starts no more. */
     close(): void {
       subscribers.stop();

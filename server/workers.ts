@@ -32,6 +32,8 @@ export interface Workers {
   digestSchedule: DigestScheduler;
   /** The subscription mail queue's poll (retries, and mail queued by other processes). */
   subscriptionMail: IntervalTask;
+  /** Issued reports' notices, one e-mail per reader (run with the subscription mail); tests call `services.reports.sendNotices`. */
+  reportNotices: IntervalTask;
   /** Expired sessions, and unconfirmed subscriptions past their retention. */
   sweeps: { sessions: IntervalTask; unconfirmedSubscribers: IntervalTask };
   /** What `start` started, in order (for the log, and for tests of the roles). */
@@ -61,6 +63,7 @@ export function createWorkers(services: Services, deps: WorkerDeps): Workers {
     run: async () => subscribers.sendQueuedMail(),
     logger,
   });
+  const reportNotices = createIntervalTask({ name: "report notices", everyMs: SUBSCRIPTION_MAIL_EVERY_MS, run: () => services.reports.sendNotices(), logger });
   const sweeps = {
     sessions: createIntervalTask({ name: "session sweep", everyMs: SESSION_SWEEP_EVERY_MS, run: () => sessions.deleteExpired(), logger }),
     unconfirmedSubscribers: createIntervalTask({ name: "unconfirmed subscriber purge", everyMs: UNCONFIRMED_PURGE_EVERY_MS, run: () => subscribers.purgeUnconfirmed(), logger }),
@@ -73,7 +76,17 @@ export function createWorkers(services: Services, deps: WorkerDeps): Workers {
     publishing,
     "digest-runs": { start: () => digestSchedule.start(), stop: () => digestSchedule.stop() },
     "digest-sending": digestJobs,
-    "subscription-mail": subscriptionMail,
+    // Transactional mail from the record: subscription mail and issued reports' notices.
+    "subscription-mail": {
+      start: () => {
+        subscriptionMail.start();
+        reportNotices.start();
+      },
+      stop: async () => {
+        await subscriptionMail.stop();
+        await reportNotices.stop();
+      },
+    },
     sweeps: {
       start: () => {
         sweeps.sessions.start();
@@ -93,6 +106,7 @@ export function createWorkers(services: Services, deps: WorkerDeps): Workers {
     digestJobs,
     digestSchedule,
     subscriptionMail,
+    reportNotices,
     sweeps,
     started,
     async start() {

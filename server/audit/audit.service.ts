@@ -66,7 +66,12 @@ export type AuditAction =
   | "document_created"
   | "document_version_added"
   | "document_updated"
-  | "document_deleted";
+  | "document_deleted"
+  // Monthly investor reports (server/reports): drafts, commentary, issue, corrections.
+  | "report_drafted"
+  | "report_updated"
+  | "report_issued"
+  | "report_correction_drafted";
 
 export interface AuditService {
   record(

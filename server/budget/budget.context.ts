@@ -4,6 +4,7 @@ import type { Viewer } from "#shared/domain/audience.ts";
 import { recordReaderOf, recordReaderOfViewer, type RecordReader } from "#shared/domain/record-audience.ts";
 import { createAuditService, type AuditAction, type AuditService } from "../audit/audit.service.ts";
 import { forbidden, notFound } from "../core/app-error.ts";
+import { recordWriter } from "../core/record-write.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProgrammeService } from "../programme/programme.service.ts";
@@ -57,8 +58,10 @@ export function createBudgetContext(deps: BudgetDeps) {
   const audit = deps.audit ?? createAuditService(db);
   const now = () => projects.now();
 
-  /** The events of a write and its audit entry, in the write's transaction. */
-  async function recordWrite(
+  const writeEvents = recordWriter(audit, insertBudgetEvents);
+
+  /** The events of a write (all at one instant, of one change or of the settings) and its audit entry, in the write's transaction. */
+  function recordWrite(
     trx: Trx,
     actor: Actor,
     project: Project,
@@ -75,14 +78,12 @@ export function createBudgetContext(deps: BudgetDeps) {
     },
   ): Promise<void> {
     const target = w.auditChangeId ?? w.changeId;
-    await insertBudgetEvents(
-      trx,
-      w.events.map((e) => ({ ...e, projectId: project.id, changeId: w.changeId, at: w.at, byUserId: actor.user?.id ?? null })),
-    );
-    await audit.record(
-      { action: w.action, actor, target: target === null ? { type: "project", id: project.id, label: w.label } : { type: "budget_change", id: target, label: w.label }, detail: { project: project.slug, ...w.detail } },
-      trx,
-    );
+    return writeEvents(trx, actor, project, {
+      action: w.action,
+      target: target === null ? { type: "project", id: project.id, label: w.label } : { type: "budget_change", id: target, label: w.label },
+      events: w.events.map((e) => ({ ...e, changeId: w.changeId, at: w.at })),
+      detail: w.detail,
+    });
   }
 
   /** The project of a change addressed by id (404 when there is none). */

@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import type { BudgetChangeStatus } from "#shared/schemas/budget.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
+import { insertRecordEvents, listRecordEvents, type NewRecordEvent } from "../core/record-events.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -155,16 +156,12 @@ export async function listChangeNumbersLinkingRisk(q: Q, riskId: number): Promis
 // Events
 // ---------------------------------------------------------------------------------------------
 
-export interface NewBudgetEvent {
-  projectId: number;
+// The rows have the record's one event shape (server/core/record-events.ts); the subject is the
+// change, which the budget calls `changeId`.
+
+export interface NewBudgetEvent extends Omit<NewRecordEvent<number | null>, "subjectId"> {
   /** Null: an event of the project's budget settings. */
   changeId: number | null;
-  field: string;
-  from: string | null;
-  to: string | null;
-  at: Date;
-  byUserId: number | null;
-  note: string | null;
 }
 
 export interface BudgetEventRecord extends Omit<NewBudgetEvent, "at"> {
@@ -172,26 +169,13 @@ export interface BudgetEventRecord extends Omit<NewBudgetEvent, "at"> {
   at: string;
 }
 
-export async function insertBudgetEvents(q: Q, events: readonly NewBudgetEvent[]): Promise<void> {
-  if (events.length === 0) return;
-  await q("budget_events").insert(
-    events.map((e) => ({ project_id: e.projectId, change_id: e.changeId, field: e.field, from_value: e.from, to_value: e.to, at: e.at, by_user_id: e.byUserId, note: e.note })),
+export const insertBudgetEvents = (q: Q, events: readonly NewBudgetEvent[]) =>
+  insertRecordEvents(
+    q,
+    "budget_events",
+    "change_id",
+    events.map(({ changeId, ...e }) => ({ ...e, subjectId: changeId })),
   );
-}
-
-function toEvent(r: Record<string, unknown>): BudgetEventRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    changeId: r.change_id == null ? null : Number(r.change_id),
-    field: String(r.field),
-    from: (r.from_value as string | null) ?? null,
-    to: (r.to_value as string | null) ?? null,
-    at: (r.at as Date).toISOString(),
-    byUserId: r.by_user_id == null ? null : Number(r.by_user_id),
-    note: (r.note as string | null) ?? null,
-  };
-}
 
 /**
  * Changes of the audiences given whose status became approved in [from, before) and that are
@@ -216,6 +200,5 @@ export async function listChangesApprovedIn(q: Q, projectId: number, audiences: 
 
 /** A change's events, newest first. */
 export async function listChangeEvents(q: Q, changeId: number): Promise<BudgetEventRecord[]> {
-  const rows = (await q("budget_events").where({ change_id: changeId }).orderBy([{ column: "at", order: "desc" }, { column: "id", order: "desc" }])) as Array<Record<string, unknown>>;
-  return rows.map(toEvent);
+  return (await listRecordEvents(q, "budget_events", "change_id", changeId)).map(({ subjectId, ...e }) => ({ ...e, changeId: subjectId }));
 }

@@ -9,9 +9,13 @@ type Q = Knex | Knex.Transaction;
  * repository names its own table and calls these, as repositories call `replaceChildRows`.
  */
 
-export interface NewRecordEvent {
+/**
+ * An event to write. The subject is null where a table allows it: the budget's own settings (no
+ * change), a deleted document (its row has gone; the event stays in the project's history).
+ */
+export interface NewRecordEvent<Subject extends number | null = number> {
   projectId: number;
-  subjectId: number;
+  subjectId: Subject;
   field: string;
   from: string | null;
   to: string | null;
@@ -25,7 +29,7 @@ export interface RecordEventRow extends Omit<NewRecordEvent, "at"> {
   at: string;
 }
 
-export async function insertRecordEvents(q: Q, table: string, subjectColumn: string, events: readonly NewRecordEvent[]): Promise<void> {
+export async function insertRecordEvents(q: Q, table: string, subjectColumn: string, events: ReadonlyArray<NewRecordEvent<number | null>>): Promise<void> {
   if (events.length === 0) return;
   await q(table).insert(
     events.map((e) => ({ project_id: e.projectId, [subjectColumn]: e.subjectId, field: e.field, from_value: e.from, to_value: e.to, at: e.at, by_user_id: e.byUserId, note: e.note })),

@@ -5,6 +5,7 @@ import { recordReaderOf, type RecordReader } from "#shared/domain/record-audienc
 import { createAuditService, type AuditAction, type AuditService } from "../audit/audit.service.ts";
 import { AppError, notFound } from "../core/app-error.ts";
 import { invalidFields } from "../core/field-changes.ts";
+import { recordWriter } from "../core/record-write.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProgrammeService } from "../programme/programme.service.ts";
@@ -71,12 +72,16 @@ export function createDecisionsContext(deps: DecisionsDeps) {
   const audit = deps.audit ?? createAuditService(db);
   const now = () => projects.now();
 
-  async function recordWrite(trx: Trx, actor: Actor, project: Project, w: { action: AuditAction; decision: Pick<DecisionRecord, "id" | "number" | "title">; events: Array<Omit<NewDecisionEvent, "projectId" | "byUserId" | "subjectId">>; detail: Record<string, unknown> }): Promise<void> {
-    await insertDecisionEvents(
-      trx,
-      w.events.map((e) => ({ ...e, subjectId: w.decision.id, projectId: project.id, byUserId: actor.user?.id ?? null })),
-    );
-    await audit.record({ action: w.action, actor, target: { type: "decision", id: w.decision.id, label: `${referenceOf(w.decision)} ${w.decision.title}` }, detail: { project: project.slug, ...w.detail } }, trx);
+  const writeEvents = recordWriter(audit, insertDecisionEvents);
+
+  /** The events of a write (all of the decision) and its audit entry, in the write's transaction. */
+  function recordWrite(trx: Trx, actor: Actor, project: Project, w: { action: AuditAction; decision: Pick<DecisionRecord, "id" | "number" | "title">; events: Array<Omit<NewDecisionEvent, "projectId" | "byUserId" | "subjectId">>; detail: Record<string, unknown> }): Promise<void> {
+    return writeEvents(trx, actor, project, {
+      action: w.action,
+      target: { type: "decision", id: w.decision.id, label: `${referenceOf(w.decision)} ${w.decision.title}` },
+      events: w.events.map((e) => ({ ...e, subjectId: w.decision.id })),
+      detail: w.detail,
+    });
   }
 
   async function projectOfDecision(id: number): Promise<Project> {

@@ -103,6 +103,22 @@ export function createDecisionReadUseCases(ctx: DecisionsContext) {
       return (await present(project, records, r, reader)).sort(byUrgency);
     },
 
+    /**
+     * The decisions open at `instant` (entered by then, and not yet decided or withdrawn then: later
+     * status changes undone), for a monthly report written for `viewer`; `daysLeft` counts from
+     * `day`, the report's month end on site. Needed-by dates are today's.
+     */
+    async openAt(projectId: number, instant: Date, day: string, viewer: "investor" | "staff") {
+      const reader = recordReaderOfViewer(viewer);
+      const records = (await listDecisions(db, projectId, reader.audiences)).filter((d) => Date.parse(d.createdAt) <= instant.getTime());
+      const statusThen = new Map<number, string>();
+      for (const e of await listDecisionStatusEventsIn(db, projectId, new Date(instant.getTime() + 1), new Date(8.64e15))) if (!statusThen.has(e.subjectId) && e.from !== null) statusThen.set(e.subjectId, e.from);
+      return records
+        .filter((d) => (statusThen.get(d.id) ?? d.status) === "open")
+        .map((d) => ({ reference: referenceOf(d), title: d.title, question: d.question, decider: d.decider, neededBy: d.neededBy, daysLeft: daysBetween(day, d.neededBy), recommendation: d.recommendation }))
+        .sort((a, b) => a.neededBy.localeCompare(b.neededBy) || a.reference.localeCompare(b.reference));
+    },
+
     /** A decision's history, newest first, for whoever may see it; changes of options (their costs) are left out for readers who may not see money. */
     async events(id: number, reader: Reader): Promise<DecisionEvent[]> {
       const r = readerOf(reader);

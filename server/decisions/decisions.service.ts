@@ -9,7 +9,7 @@ export type { DecisionDocumentSource, DecisionMove, DecisionsDeps, Reader };
  * - reads (decisions.reads.ts): the list by audience (open first, overdue leading, days left on
  *   site), one, its history, a window's moves for digests;
  * - writes (decisions.writes.ts): ask, edit an open one, record the outcome, withdraw.
- * Other modules ask by id: `movesIn` (digests), `linkingRisk` (the risks register's delete).
+ * Other modules ask by id: `movesIn` (digests), `openAt` (monthly reports), `linkingRisk` (the risks register's delete).
  */
 export function createDecisionsService(deps: DecisionsDeps) {
   const ctx = createDecisionsContext(deps);
@@ -19,6 +19,7 @@ export function createDecisionsService(deps: DecisionsDeps) {
     get: reads.one,
     events: reads.events,
     movesIn: reads.movesIn,
+    openAt: reads.openAt,
     linkingRisk: reads.linkingRisk,
     ...createDecisionWriteUseCases(ctx, reads),
   };

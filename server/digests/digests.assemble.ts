@@ -82,9 +82,9 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
    * public derivative; an investor post's (in an investor digest only) a signed, expiring link, since
    * no mail client is signed in. A public digest never asks for an investor picture.
    */
-  async function posterUrls(rows: PublishedPostRecord[], audience: DigestAudience): Promise<Map<number, { url: string; alt: string }>> {
+  async function posterUrls(rows: PublishedPostRecord[], audience: DigestAudience): Promise<Map<number, { url: string; alt: string; mediaId: number }>> {
     const shown = rows.filter((p) => p.coverMediaId !== null && (p.audience === "public" || (p.audience === "investor" && audience === "investor")));
-    const out = new Map<number, { url: string; alt: string }>();
+    const out = new Map<number, { url: string; alt: string; mediaId: number }>();
     if (shown.length === 0) return out;
     const pictures = await media.pictureFor(shown.map((p) => p.coverMediaId!));
     const expiresAt = linkExpiry(now(), MEDIA_LINK_TTL_DAYS);
@@ -94,7 +94,7 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
       const pick = jpegs.find((v) => v.width >= 600) ?? jpegs[jpegs.length - 1];
       if (!pic || !pick) continue;
       const path = post.audience === "public" ? pick.url : media.signedVariantUrl(pick.url, expiresAt);
-      out.set(post.id, { url: new URL(path, publicUrl).toString(), alt: pic.altText ?? "" });
+      out.set(post.id, { url: new URL(path, publicUrl).toString(), alt: pic.altText ?? "", mediaId: post.coverMediaId! });
     }
     return out;
   }
@@ -130,6 +130,7 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
       soFar: p.soFar ?? false,
       projectUrl,
       posts: postRows.map((x) => ({
+        postId: x.id,
         title: x.title,
         summary: x.summary,
         url: `${projectUrl}/updates/${x.slug}`,
@@ -161,7 +162,7 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
       .flatMap((row) =>
         row.moves
           .filter((m) => NEWS_MOVES.has(m.kind))
-          .map((m) => ({ milestoneName: row.milestoneName, kind: m.kind, days: m.days, from: m.from, to: m.to, ...(m.kind === "removed" || m.kind === "restored" ? { reason: m.notes.join("; ") } : {}) })),
+          .map((m) => ({ milestoneName: row.milestoneName, milestoneId: row.milestoneId, kind: m.kind, days: m.days, from: m.from, to: m.to, ...(m.kind === "removed" || m.kind === "restored" ? { reason: m.notes.join("; ") } : {}) })),
       );
     // The facility's and the record's moves are the same for every reader of this audience and window: worked out once per run.
     const cache = p.runCache ?? newRunCache();
@@ -174,7 +175,7 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
     const horizon = addDays(today, 30);
     doc.dueSoon = milestones
       .filter((m) => m.status !== "complete" && within(m.id))
-      .map((m) => ({ name: m.name, date: m.forecastFinish ?? m.baselineFinish, status: m.status }))
+      .map((m) => ({ name: m.name, milestoneId: m.id, date: m.forecastFinish ?? m.baselineFinish, status: m.status }))
       .filter((m) => m.date >= today && m.date <= horizon)
       .sort((a, b) => a.date.localeCompare(b.date) || a.name.localeCompare(b.name));
     const health = await programme.health(project.slug, {}, audience);

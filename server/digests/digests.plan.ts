@@ -19,7 +19,7 @@ import {
   type DeliveryInsert,
   type DigestRunRecord,
 } from "./digests.repository.ts";
-import { hasNews, renderDigest, type RenderedDigest } from "./digests.render.ts";
+import { hasNews, itemRefsOf, renderDigest, type RenderedDigest } from "./digests.render.ts";
 import { windowFor } from "./digests.windows.ts";
 
 export interface DigestPlannerDeps {
@@ -90,6 +90,7 @@ export function createDigestPlanner(deps: DigestPlannerDeps) {
           ...rendered,
           percentComplete: doc.figures.percentComplete,
           forecastReady: doc.figures.forecastReady,
+          itemRefs: news ? itemRefsOf(doc) : [],
         });
         content = { id, empty: !news };
         contents.set(key, content);

@@ -1,5 +1,6 @@
 import { DateTime } from "luxon";
 import type { RecordAudience, RiskBand } from "#shared/schemas/risks.ts";
+import type { DigestItemRef } from "./digests.items.ts";
 import { createRunMemo } from "./digests.run-memo.ts";
 
 /**
@@ -229,19 +230,19 @@ export function describeChange(m: BudgetChangeMove, currency: string): string {
 export const describeDocument = (m: DocumentMove): string => (m.kind === "new" ? ": new" : `: version ${m.versionNumber}`);
 
 /** The record's sections, each a title and its lines (plain text; the HTML escapes and bolds the names). */
-export function recordSections(r: DigestRecord): Array<{ title: string; lines: Array<{ name: string; rest: string }>; link: { url: string; label: string } }> {
+export function recordSections(r: DigestRecord): Array<{ title: string; lines: Array<{ name: string; rest: string; ref: DigestItemRef }>; link: { url: string; label: string } }> {
   const out: ReturnType<typeof recordSections> = [];
   if (r.risks.length) {
-    out.push({ title: "Risks and issues", lines: r.risks.map((m) => ({ name: `${m.reference} ${m.title}`, rest: `: ${describeRiskMove(m)}` })), link: { url: `${r.roomUrl}/risks`, label: "The register in the investor room" } });
+    out.push({ title: "Risks and issues", lines: r.risks.map((m) => ({ name: `${m.reference} ${m.title}`, rest: `: ${describeRiskMove(m)}`, ref: { kind: "risk", id: m.id } })), link: { url: `${r.roomUrl}/risks`, label: "The register in the investor room" } });
   }
   if (r.decisions.length) {
-    out.push({ title: "Decisions needed", lines: r.decisions.map((m) => ({ name: `${m.reference} ${m.title}`, rest: `: ${describeDecisionMove(m)}` })), link: { url: `${r.roomUrl}/decisions`, label: "The decisions, their options and papers in the investor room" } });
+    out.push({ title: "Decisions needed", lines: r.decisions.map((m) => ({ name: `${m.reference} ${m.title}`, rest: `: ${describeDecisionMove(m)}`, ref: { kind: "decision", id: m.id } })), link: { url: `${r.roomUrl}/decisions`, label: "The decisions, their options and papers in the investor room" } });
   }
   if (r.changes.length) {
-    out.push({ title: "Approved budget changes", lines: r.changes.map((m) => ({ name: `${m.reference} ${m.description}`, rest: `: ${describeChange(m, r.currency)}` })), link: { url: `${r.roomUrl}/cost`, label: "The cost position in the investor room" } });
+    out.push({ title: "Approved budget changes", lines: r.changes.map((m) => ({ name: `${m.reference} ${m.description}`, rest: `: ${describeChange(m, r.currency)}`, ref: { kind: "change", id: m.id } })), link: { url: `${r.roomUrl}/cost`, label: "The cost position in the investor room" } });
   }
   if (r.documents.length) {
-    out.push({ title: "New documents", lines: r.documents.map((m) => ({ name: m.title, rest: describeDocument(m) })), link: { url: `${r.roomUrl}/documents`, label: "Read them in the investor room (sign in; each copy is marked for its reader)" } });
+    out.push({ title: "New documents", lines: r.documents.map((m) => ({ name: m.title, rest: describeDocument(m), ref: { kind: "document", id: m.id } })), link: { url: `${r.roomUrl}/documents`, label: "Read them in the investor room (sign in; each copy is marked for its reader)" } });
   }
   return out;
 }

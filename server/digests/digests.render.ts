@@ -5,6 +5,7 @@ import { INDICATIVE_CAUTION } from "#shared/domain/facility.ts";
 import type { MoveKind } from "#shared/domain/programme-changes.ts";
 import { escapeHtml } from "../mail/mail.layout.ts";
 import type { DigestFacilityItem } from "./digests.facility.ts";
+import { itemClass, uniqueRefs, type DigestItemRef } from "./digests.items.ts";
 import { recordCounts, recordHasNews, recordSections, type DigestRecord } from "./digests.record.ts";
 
 /** Personal links, filled in per delivery; everything else is shared by every reader of a content. */
@@ -20,11 +21,14 @@ export interface DigestPostItem {
   summary: string;
   url: string;
   publishedAt: Date;
-  image: { url: string; alt: string } | null;
+  image: { url: string; alt: string; mediaId?: number } | null;
+  /** The post's id, so the archive can withhold it if it is withdrawn or narrowed later (decision 045). */
+  postId?: number;
 }
 
 export interface DigestMoveItem {
   milestoneName: string;
+  milestoneId?: number;
   kind: MoveKind;
   days?: number;
   from: string | null;
@@ -35,6 +39,7 @@ export interface DigestMoveItem {
 
 export interface DigestDueItem {
   name: string;
+  milestoneId?: number;
   date: string;
   status: string;
 }
@@ -170,6 +175,23 @@ function preheaderOf(d: DigestDocument): string {
 
 const e = escapeHtml;
 
+/** The mjml attribute that marks an item for the archive (decision 045); nothing for an item without a reference. */
+const cls = (ref: DigestItemRef | null) => (ref ? ` css-class="${itemClass(ref)}"` : "");
+const milestoneRef = (id: number | undefined): DigestItemRef | null => (id === undefined ? null : { kind: "milestone", id });
+
+/** Every item a digest tells of, by reference: stored with its rendering, read by the archive. */
+export function itemRefsOf(d: DigestDocument): DigestItemRef[] {
+  const refs: DigestItemRef[] = [];
+  for (const p of d.posts) {
+    if (p.postId !== undefined) refs.push({ kind: "post", id: p.postId });
+    if (p.image?.mediaId !== undefined) refs.push({ kind: "picture", id: p.image.mediaId });
+  }
+  for (const m of [...d.moves, ...d.dueSoon]) if (m.milestoneId !== undefined) refs.push({ kind: "milestone", id: m.milestoneId });
+  for (const f of d.facility) refs.push({ kind: "facility", name: f.name });
+  if (d.record) for (const section of recordSections(d.record)) refs.push(...section.lines.map((l) => l.ref));
+  return uniqueRefs(refs);
+}
+
 function footerText(d: DigestDocument): string {
   return [d.project.operatorName, d.project.postalAddress].filter(Boolean).join(" · ");
 }
@@ -185,23 +207,23 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
   const posts = d.posts
     .map(
       (p) => `
-      <mj-section padding="0 0 8px 0"><mj-column>
-        ${p.image ? `<mj-image src="${e(p.image.url)}" alt="${e(p.image.alt)}" href="${e(p.url)}" padding="0 0 8px 0" />` : ""}
+      <mj-section padding="0 0 8px 0"${cls(p.postId === undefined ? null : { kind: "post", id: p.postId })}><mj-column>
+        ${p.image ? `<mj-image src="${e(p.image.url)}" alt="${e(p.image.alt)}" href="${e(p.url)}" padding="0 0 8px 0"${cls(p.image.mediaId === undefined ? null : { kind: "picture", id: p.image.mediaId })} />` : ""}
         <mj-text font-size="18px" font-weight="bold" padding="0 0 4px 0"><a href="${e(p.url)}" style="color:#1d1f24">${e(p.title)}</a></mj-text>
         ${p.summary ? `<mj-text padding="0 0 4px 0">${e(p.summary)}</mj-text>` : ""}
         <mj-text padding="0 0 12px 0" font-size="13px"><a href="${e(p.url)}" style="color:#b34709">Read the update</a></mj-text>
       </mj-column></mj-section>`,
     )
     .join("");
-  const list = (title: string, items: string[], note?: string, link?: { url: string; label: string }) =>
+  const list = (title: string, items: Array<{ html: string; ref: DigestItemRef | null }>, note?: string, link?: { url: string; label: string }) =>
     items.length
-      ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0">${i}</mj-text>`).join("")}${link ? `<mj-text padding="6px 0 0 0" font-size="13px"><a href="${e(link.url)}" style="color:#b34709">${e(link.label)}</a></mj-text>` : ""}${note ? `<mj-text font-size="12px" color="#5a5e66" padding="6px 0 0 0">${e(note)}</mj-text>` : ""}</mj-column></mj-section>`
+      ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0"${cls(i.ref)}>${i.html}</mj-text>`).join("")}${link ? `<mj-text padding="6px 0 0 0" font-size="13px"><a href="${e(link.url)}" style="color:#b34709">${e(link.label)}</a></mj-text>` : ""}${note ? `<mj-text font-size="12px" color="#5a5e66" padding="6px 0 0 0">${e(note)}</mj-text>` : ""}</mj-column></mj-section>`
       : "";
   const record = d.record ? recordSections(d.record) : [];
-  const moveItems = d.moves.map((m) => `<strong>${e(m.milestoneName)}</strong>: ${e(describeMove(m))}`);
-  const facilityItems = d.facility.map((m) => `<strong>${e(m.name)}</strong>${e(describeFacilityMove(m))}`);
+  const moveItems = d.moves.map((m) => ({ html: `<strong>${e(m.milestoneName)}</strong>: ${e(describeMove(m))}`, ref: milestoneRef(m.milestoneId) }));
+  const facilityItems = d.facility.map((m) => ({ html: `<strong>${e(m.name)}</strong>${e(describeFacilityMove(m))}`, ref: { kind: "facility" as const, name: m.name } }));
   const caution = showsEngineeringFigure(d.facility) ? INDICATIVE_CAUTION : undefined;
-  const dueItems = d.dueSoon.map((m) => `<strong>${e(m.name)}</strong>: due ${e(longDate(m.date))}`);
+  const dueItems = d.dueSoon.map((m) => ({ html: `<strong>${e(m.name)}</strong>: due ${e(longDate(m.date))}`, ref: milestoneRef(m.milestoneId) }));
   const mj = `<mjml lang="en">
   <mj-head>
     <mj-title>${e(subject)}</mj-title>
@@ -219,7 +241,7 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
       ${posts}
       ${list("Programme changes", moveItems)}
       ${list("Facility changes", facilityItems, caution)}
-      ${record.map((x) => list(x.title, x.lines.map((l) => `<strong>${e(l.name)}</strong>${e(l.rest)}`), undefined, x.link)).join("")}
+      ${record.map((x) => list(x.title, x.lines.map((l) => ({ html: `<strong>${e(l.name)}</strong>${e(l.rest)}`, ref: l.ref })), undefined, x.link)).join("")}
       ${list("Due in the next 30 days", dueItems)}
     </mj-wrapper>
     <mj-section padding="12px"><mj-column>

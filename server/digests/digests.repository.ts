@@ -1,6 +1,7 @@
 import type { Knex } from "knex";
 import type { DigestCounts, DigestRunStatus } from "#shared/schemas/digests.ts";
 import type { Frequency } from "#shared/schemas/subscribers.ts";
+import { parseItemRefs, type DigestItemRef } from "./digests.items.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -140,6 +141,8 @@ export interface ContentRow {
   text: string;
   percentComplete: number | null;
   forecastReady: string | null;
+  /** What the content tells of, by reference (decision 045); null for a content rendered before they were kept. */
+  itemRefs: DigestItemRef[] | null;
 }
 
 function toContent(r: Record<string, unknown>): ContentRow {
@@ -155,6 +158,7 @@ function toContent(r: Record<string, unknown>): ContentRow {
     text: String(r.text),
     percentComplete: r.percent_complete == null ? null : Number(r.percent_complete),
     forecastReady: r.forecast_ready == null ? null : String(r.forecast_ready),
+    itemRefs: parseItemRefs(r.item_refs == null ? null : String(r.item_refs)),
   };
 }
 
@@ -172,6 +176,7 @@ export async function insertContent(q: Q, runId: number, c: Omit<ContentRow, "id
       text: c.text,
       percent_complete: c.percentComplete,
       forecast_ready: c.forecastReady,
+      item_refs: c.itemRefs === null ? null : JSON.stringify(c.itemRefs),
     })
     .onConflict(["run_id", "content_key"])
     .ignore();
@@ -313,9 +318,10 @@ export async function skipQueuedOf(q: Q, subscriberIds: number[], reason: string
   await q("digest_deliveries").whereIn("subscriber_id", subscriberIds).whereIn("status", ["queued"]).update({ status: "skipped", error: reason });
 }
 
-/** Whether this subscriber was a reader of this content (the web copy shows it to no one else). */
-export async function wasDeliveredTo(q: Q, contentId: number, subscriberId: number): Promise<boolean> {
-  return Boolean(await q("digest_deliveries").where({ content_id: contentId, subscriber_id: subscriberId }).first("id"));
+/** This subscriber's delivery of this content (the web copy shows it to no one else): its project and window, or null. */
+export async function deliveryOfContent(q: Q, contentId: number, subscriberId: number): Promise<{ projectId: number; windowStart: Date; windowEnd: Date } | null> {
+  const r = await q("digest_deliveries as d").join("digest_runs as r", "r.id", "d.run_id").where({ "d.content_id": contentId, "d.subscriber_id": subscriberId }).first("r.project_id", "d.window_start", "r.window_end");
+  return r ? { projectId: Number(r.project_id), windowStart: new Date(r.window_start), windowEnd: new Date(r.window_end) } : null;
 }
 
 /** Of these posts, the ones that already have an "as it happens" run. */
@@ -323,4 +329,62 @@ export async function postsWithImmediateRun(q: Q, postIds: readonly number[]): P
   if (postIds.length === 0) return new Set();
   const rows = await q("digest_runs").whereIn("post_id", [...postIds]).andWhere("frequency", "immediate").select("post_id");
   return new Set(rows.map((r: { post_id: number }) => Number(r.post_id)));
+}
+
+// A subscriber's archive (decision 045)
+
+export interface ArchivedDelivery {
+  id: number;
+  subscriberId: number;
+  projectId: number;
+  frequency: Frequency;
+  contentId: number;
+  subject: string;
+  sentAt: Date;
+  windowStart: Date;
+  windowEnd: Date;
+  /** Rendered before digests kept what they hold (decision 045). */
+  unrecorded: boolean;
+}
+
+/** Sent, non-test deliveries with a content that said something: what a reader actually received. */
+const archiveQuery = (q: Q, subscriberIds: readonly number[]) =>
+  q("digest_deliveries as d")
+    .join("digest_runs as r", "r.id", "d.run_id")
+    .join("digest_contents as c", "c.id", "d.content_id")
+    .whereIn("d.subscriber_id", [...subscriberIds])
+    .andWhere("d.status", "sent")
+    .andWhere("r.is_test", false)
+    .andWhere("c.empty", false);
+
+function toArchived(r: Record<string, unknown>): ArchivedDelivery {
+  return {
+    id: Number(r.id),
+    subscriberId: Number(r.subscriber_id),
+    projectId: Number(r.project_id),
+    frequency: r.frequency as Frequency,
+    contentId: Number(r.content_id),
+    subject: String(r.subject),
+    sentAt: new Date((r.sent_at ?? r.created_at) as string),
+    windowStart: new Date(r.window_start as string),
+    windowEnd: new Date(r.window_end as string),
+    unrecorded: Boolean(Number(r.unrecorded)),
+  };
+}
+
+const archiveColumns = (q: Q) => ["d.id", "d.subscriber_id", "d.content_id", "d.window_start", "d.sent_at", "r.project_id", "r.frequency", "r.window_end", "r.created_at", "c.subject", q.raw("c.item_refs IS NULL AS unrecorded")];
+
+/** These subscribers' received digests, newest first, one page, and how many there are in all. */
+export async function listArchivedDeliveries(q: Q, subscriberIds: readonly number[], page: { limit: number; offset: number }): Promise<{ rows: ArchivedDelivery[]; total: number }> {
+  if (subscriberIds.length === 0) return { rows: [], total: 0 };
+  const count = await archiveQuery(q, subscriberIds).count({ n: "*" }).first();
+  const rows = await archiveQuery(q, subscriberIds).orderBy("d.sent_at", "desc").orderBy("d.id", "desc").limit(page.limit).offset(page.offset).select(archiveColumns(q));
+  return { rows: rows.map(toArchived), total: Number((count as { n: number } | undefined)?.n ?? 0) };
+}
+
+/** One received digest of these subscribers, or null (another reader's, skipped, failed or unknown). */
+export async function findArchivedDelivery(q: Q, subscriberIds: readonly number[], id: number): Promise<ArchivedDelivery | null> {
+  if (subscriberIds.length === 0) return null;
+  const r = await archiveQuery(q, subscriberIds).andWhere("d.id", id).first(archiveColumns(q));
+  return r ? toArchived(r) : null;
 }

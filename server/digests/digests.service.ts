@@ -1,4 +1,4 @@
-import type { DigestRunInput, DigestRunSummary, DigestUpcoming } from "#shared/schemas/digests.ts";
+import type { DigestArchiveCopy, DigestArchivePage, DigestArchiveQuery, DigestRunInput, DigestRunSummary, DigestUpcoming } from "#shared/schemas/digests.ts";
 import { AppError, notFound } from "../core/app-error.ts";
 import type { Logger } from "../core/logger.ts";
 import type { Actor } from "../core/types.ts";
@@ -9,6 +9,7 @@ import type { PostsService } from "../posts/posts.service.ts";
 import type { ProgrammeService } from "../programme/programme.service.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import type { SubscribersService } from "../subscribers/subscribers.service.ts";
+import { createDigestArchive, createDigestVisibility } from "./digests.archive.ts";
 import { createDigestAssembler } from "./digests.assemble.ts";
 import type { DigestFacilitySource } from "./digests.facility.ts";
 import type { DigestRecordSource } from "./digests.record.ts";
@@ -76,7 +77,9 @@ export function createDigestsService(deps: DigestsDeps) {
   const assembler = createDigestAssembler({ programme: deps.programme, media: deps.media, posts, facility: deps.facility, record: deps.record, publicUrl, now });
   const planner = createDigestPlanner({ db, logger: deps.logger, projects, posts, subscribers, assembler, host, now });
   const previews = createDigestPreview({ db, mailer: deps.mailer, projects, subscribers, assembler, publicUrl, host, now });
-  const web = createDigestWebCopy({ db, media: deps.media, publicUrl, tokenSecret: deps.tokenSecret, unsubscribeMailto: deps.unsubscribeMailto, now });
+  const visibility = createDigestVisibility({ projects, posts, media: deps.media, programme: deps.programme, facility: deps.facility, record: deps.record, now });
+  const web = createDigestWebCopy({ db, media: deps.media, visibility, publicUrl, tokenSecret: deps.tokenSecret, unsubscribeMailto: deps.unsubscribeMailto, now });
+  const archive = createDigestArchive({ db, projects, visibility, web });
 
   async function summary(id: number): Promise<DigestRunSummary> {
     const run = await findRun(db, id);
@@ -149,6 +152,21 @@ export function createDigestsService(deps: DigestsDeps) {
         }
       }
       return out.sort((a, b) => a.at.localeCompare(b.at));
+    },
+
+    /** The digests a signed preferences link's subscriber was sent (decision 045). */
+    async archiveByLink(token: string, query: DigestArchiveQuery): Promise<DigestArchivePage> {
+      return archive.list([await subscribers.archiveOwner(token)], query);
+    },
+    async archivedCopyByLink(token: string, id: number): Promise<DigestArchiveCopy> {
+      return archive.copy([await subscribers.archiveOwner(token)], id);
+    },
+    /** The digests a signed-in investor's own subscriptions were sent ("My digests" in the investor room). */
+    async archiveOfUser(userId: number, query: DigestArchiveQuery): Promise<DigestArchivePage> {
+      return archive.list(await subscribers.subscriptionIdsOfUser(userId), query);
+    },
+    async archivedCopyOfUser(userId: number, id: number): Promise<DigestArchiveCopy> {
+      return archive.copy(await subscribers.subscriptionIdsOfUser(userId), id);
     },
 
     preview: previews.preview,

@@ -1,10 +1,13 @@
 import { AppError, notFound } from "../core/app-error.ts";
 import { createTokenSigner, verifyLegacyToken } from "../core/signed-token.ts";
 import type { Db } from "../db/knex.ts";
+import { escapeHtml } from "../mail/mail.layout.ts";
 import type { MediaService } from "../media/media.service.ts";
 import { subscriberLinks } from "../subscribers/subscribers.links.ts";
 import { linkExpiry } from "./digests.assemble.ts";
-import { findContent, wasDeliveredTo } from "./digests.repository.ts";
+import type { DigestVisibility } from "./digests.archive.ts";
+import { withheldNotice, withholdItems } from "./digests.items.ts";
+import { deliveryOfContent, findContent } from "./digests.repository.ts";
 import { personalise, type PersonalLinks } from "./digests.render.ts";
 
 /** Web copies of a digest stay readable this long after the run (a year, like the footer links). */
@@ -15,10 +18,18 @@ const WEB_MEDIA_LINK_TTL_DAYS = 1;
 export interface DigestWebCopyDeps {
   db: Db;
   media: Pick<MediaService, "refreshSignedUrls">;
+  /** What of a digest its reader may no longer see (decision 045). */
+  visibility: DigestVisibility;
   publicUrl: string;
   tokenSecret: string;
   unsubscribeMailto: string | null;
   now: () => Date;
+}
+
+/** The withheld notice at the top of a web copy's body. */
+function withNotice(html: string, notice: string): string {
+  const banner = `<p role="note" style="margin:0;padding:12px;background:#fff4d6;border-bottom:2px solid #8a5a00;font:15px Helvetica,Arial,sans-serif;color:#1d1f24">${escapeHtml(notice)}</p>`;
+  return /<body[^>]*>/i.test(html) ? html.replace(/<body[^>]*>/i, (tag) => `${tag}${banner}`) : `${banner}${html}`;
 }
 
 /**
@@ -57,13 +68,18 @@ export function createDigestWebCopy(deps: DigestWebCopyDeps) {
   async function webCopy(token: string): Promise<string> {
     const { contentId, subscriberId } = verifyWebToken(token);
     const content = await findContent(db, contentId);
-    const owner = await wasDeliveredTo(db, contentId, subscriberId);
-    if (!content || !owner || content.empty) throw notFound("That digest");
+    const delivery = await deliveryOfContent(db, contentId, subscriberId);
+    if (!content || !delivery || content.empty) throw notFound("That digest");
     const l = linksFor(contentId, subscriberId);
+    // The same rule as the archive: what has since become hidden from this reader is cut out and the page says so.
+    // A copy rendered before digests kept their items is the e-mail in the reader's inbox, and is served as it was.
+    const hidden = content.itemRefs === null ? [] : await deps.visibility(content.itemRefs, { ...delivery, audience: content.audience });
+    const kept = hidden.length === 0 ? content.html : withNotice(withholdItems(content.html, hidden), withheldNotice(hidden.length));
     // The copy outlives its e-mail's picture links: an investor's pictures are signed again for this reading.
-    const html = media.refreshSignedUrls(content.html, linkExpiry(now(), WEB_MEDIA_LINK_TTL_DAYS));
+    const html = media.refreshSignedUrls(kept, linkExpiry(now(), WEB_MEDIA_LINK_TTL_DAYS));
     return personalise(html, { webUrl: `${publicUrl}/api/digests/web/${token}`, preferencesUrl: l.preferencesUrl, unsubscribeUrl: l.unsubscribeUrl });
   }
 
   return { webToken, verifyWebToken, linksFor, webCopy };
 }
+export type DigestWebCopy = ReturnType<typeof createDigestWebCopy>;

@@ -4,6 +4,7 @@ import type { Project } from "#shared/schemas/projects.ts";
 import { recordReaderOf } from "#shared/domain/record-audience.ts";
 import { createAuditService, type AuditAction, type AuditService } from "../audit/audit.service.ts";
 import { notFound } from "../core/app-error.ts";
+import { recordWriter } from "../core/record-write.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { MediaStorage, UploadArea } from "../media/media.storage.ts";
@@ -60,18 +61,21 @@ export function createDocumentsContext(deps: DocumentsDeps) {
   const audit = deps.audit ?? createAuditService(db);
   const now = () => projects.now();
 
-  /** The events of a write and its audit entry, in the write's transaction. */
-  async function recordWrite(
+  const writeEvents = recordWriter(audit, insertDocumentEvents);
+
+  /** The events of a write (all at one instant) and its audit entry, in the write's transaction. */
+  function recordWrite(
     trx: Trx,
     actor: Actor,
     project: Project,
     w: { action: AuditAction; documentId: number; title: string; events: Array<Omit<NewDocumentEvent, "projectId" | "byUserId" | "at">>; at: Date; detail: Record<string, unknown> },
   ): Promise<void> {
-    await insertDocumentEvents(
-      trx,
-      w.events.map((e) => ({ ...e, projectId: project.id, at: w.at, byUserId: actor.user?.id ?? null })),
-    );
-    await audit.record({ action: w.action, actor, target: { type: "document", id: w.documentId, label: w.title }, detail: { project: project.slug, ...w.detail } }, trx);
+    return writeEvents(trx, actor, project, {
+      action: w.action,
+      target: { type: "document", id: w.documentId, label: w.title },
+      events: w.events.map((e) => ({ ...e, at: w.at })),
+      detail: w.detail,
+    });
   }
 
   return { ...deps, audit, now, recordWrite, scope: (actor: Actor) => scopeOf(actor, deps.organisations) };

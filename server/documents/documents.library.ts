@@ -199,6 +199,31 @@ export function createLibraryUseCases(ctx: DocumentsContext) {
       return one(id, { kind: "all" });
     },
 
+    /**
+     * A document made by the server itself (an issued report's PDF), in the caller's transaction
+     * (which holds the project's lock): the bytes pass the same intake checks as an upload, are
+     * stored, and the rows, event and audit entry are written as for `create`. A file left stored
+     * by a transaction that then rolls back is harmless: its key is its hash, and the next store
+     * of the same bytes reuses it.
+     */
+    async createFromGenerated(trx: Trx, project: Project, input: DocumentCreateFields, file: { bytes: Uint8Array; name: string }, actor: Actor): Promise<number> {
+      const taken = await takeFile(Buffer.from(file.bytes), limits);
+      const key = storageKey(taken);
+      await storage.put(key, taken.bytes);
+      const at = ctx.now();
+      const docId = await insertDocument(trx, project.id, input, at);
+      await insertVersion(trx, docId, { number: 1, fileType: taken.fileType, storageKey: key, bytes: taken.bytes.length, pages: taken.pages, sha256: taken.sha256, originalName: file.name, note: "", removed: taken.removed, uploadedBy: actor.user?.id ?? null, uploadedAt: at });
+      await ctx.recordWrite(trx, actor, project, {
+        action: "document_created",
+        documentId: docId,
+        title: input.title,
+        at,
+        events: [{ documentId: docId, field: "created", from: null, to: input.title, note: "generated" }],
+        detail: { audience: input.audience, category: input.category, generated: true, file: { name: file.name, type: taken.fileType, bytes: taken.bytes.length, pages: taken.pages, sha256: taken.sha256 } },
+      });
+      return docId;
+    },
+
     /** A new version of a document: the older ones stay, with their view logs. */
     async addVersion(id: number, input: { note: string }, file: ReceivedFile | undefined, actor: Actor): Promise<DocumentAnswer> {
       await withStoredFile(

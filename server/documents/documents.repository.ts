@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import type { DocumentCategory, DocumentFileType, ViewKind } from "#shared/schemas/documents.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
+import { insertRecordEvents, toRecordEvent, type NewRecordEvent } from "../core/record-events.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -238,38 +239,29 @@ export async function recordVisit(q: Q, projectId: number, userId: number, at: D
 // Events and the digests' window
 // ---------------------------------------------------------------------------------------------
 
-export interface NewDocumentEvent {
-  projectId: number;
+// The rows have the record's one event shape (server/core/record-events.ts); the subject is the
+// document, which the library calls `documentId`.
+
+export interface NewDocumentEvent extends Omit<NewRecordEvent<number | null>, "subjectId"> {
+  /** Null: a deleted document (its row has gone; the event stays in the project's history). */
   documentId: number | null;
-  field: string;
-  from: string | null;
-  to: string | null;
-  at: Date;
-  byUserId: number | null;
-  note: string | null;
 }
 
-export async function insertDocumentEvents(q: Q, events: readonly NewDocumentEvent[]): Promise<void> {
-  if (events.length === 0) return;
-  await q("document_events").insert(
-    events.map((e) => ({ project_id: e.projectId, document_id: e.documentId, field: e.field, from_value: e.from, to_value: e.to, at: e.at, by_user_id: e.byUserId, note: e.note })),
+export const insertDocumentEvents = (q: Q, events: readonly NewDocumentEvent[]) =>
+  insertRecordEvents(
+    q,
+    "document_events",
+    "document_id",
+    events.map(({ documentId, ...e }) => ({ ...e, subjectId: documentId })),
   );
-}
 
 /** A document's history, oldest first. */
 export async function listDocumentEvents(q: Q, documentId: number): Promise<Array<NewDocumentEvent & { id: number }>> {
   const rows = (await q("document_events").where({ document_id: documentId }).orderBy("at").orderBy("id")) as Array<Record<string, unknown>>;
-  return rows.map((r) => ({
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    documentId: r.document_id === null ? null : Number(r.document_id),
-    field: String(r.field),
-    from: (r.from_value as string | null) ?? null,
-    to: (r.to_value as string | null) ?? null,
-    at: r.at as Date,
-    byUserId: r.by_user_id === null ? null : Number(r.by_user_id),
-    note: (r.note as string | null) ?? null,
-  }));
+  return rows.map((r) => {
+    const { subjectId, at, ...e } = toRecordEvent(r, "document_id");
+    return { ...e, documentId: subjectId, at: new Date(at) };
+  });
 }
 
 /** Versions uploaded in [from, to) of documents the scope may read (version 1 is the document's arrival). */

@@ -2,6 +2,7 @@ import { Router, type RequestHandler } from "express";
 import { MulterError } from "multer";
 import { z } from "zod";
 import { IdParamSchema } from "#shared/schemas/common.ts";
+import { sendPrivateFile } from "../core/send-file.ts";
 import {
   DocumentCreateFieldsSchema,
   DocumentFileQuerySchema,
@@ -48,9 +49,6 @@ function formFields(body: unknown): Record<string, unknown> {
   if (fields.periodEnd === "") fields.periodEnd = null;
   return fields;
 }
-
-const ContentDisposition = (kind: "inline" | "attachment", name: string) =>
-  `${kind}; filename="${name.replace(/[^\x20-\x7e]|["\\]/g, "_")}"; filename*=UTF-8''${encodeURIComponent(name)}`;
 
 /**
  * The document library API. Every read is for signed-in callers, by audience (the service
@@ -106,19 +104,7 @@ export function documentsRouter(documents: DocumentsService, uploads: UploadArea
     const { id } = IdParamSchema.parse(req.params);
     const query = DocumentFileQuerySchema.parse({ ...req.query });
     const file = await documents.file(id, query, actorOf(req), { address: req.ip ?? "", agent: req.get("user-agent") ?? "", record: req.method === "GET" });
-    res.set({
-      "Content-Type": file.mime,
-      "Content-Disposition": ContentDisposition(file.disposition, file.name),
-      "Cache-Control": "private, no-store",
-      "Accept-Ranges": "none",
-    });
-    if ("bytes" in file) {
-      res.set("Content-Length", String(file.bytes.length)).end(Buffer.from(file.bytes.buffer, file.bytes.byteOffset, file.bytes.byteLength));
-      return;
-    }
-    res.set("Content-Length", String(file.length));
-    file.stream.on("error", (err) => res.destroy(err));
-    file.stream.pipe(res);
+    sendPrivateFile(res, file);
   });
 
   r.get("/documents/:id/views", requireStaff(), async (req, res) => {

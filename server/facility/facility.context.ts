@@ -4,6 +4,7 @@ import type { Project } from "#shared/schemas/projects.ts";
 import { viewerOfRole, type Viewer } from "#shared/domain/audience.ts";
 import { createAuditService, type AuditAction, type AuditService } from "../audit/audit.service.ts";
 import { AppError, notFound } from "../core/app-error.ts";
+import { recordWriter } from "../core/record-write.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProgrammeService } from "../programme/programme.service.ts";
@@ -96,15 +97,16 @@ export function createFacilityContext(deps: FacilityDeps) {
   const audit = deps.audit ?? createAuditService(db);
   const now = () => projects.now();
 
+  const writeEvents = recordWriter(audit, insertFacilityEvents);
+
   /** The events of a write and its audit entry (labelled by the subject's name unless told), in the write's transaction. */
-  async function recordWrite(
+  function recordWrite(
     trx: Trx,
     actor: Actor,
     project: Project,
     w: { action: AuditAction; subject: FacilitySubject; id: number; name: string; label?: string; events: NewFacilityEvent[]; detail: Record<string, unknown> },
   ): Promise<void> {
-    await insertFacilityEvents(trx, w.events);
-    await audit.record({ action: w.action, actor, target: { type: AUDIT_TARGET[w.subject], id: w.id, label: w.label ?? w.name }, detail: { project: project.slug, ...w.detail } }, trx);
+    return writeEvents(trx, actor, project, { action: w.action, target: { type: AUDIT_TARGET[w.subject], id: w.id, label: w.label ?? w.name }, events: w.events, detail: w.detail });
   }
 
   /** The common part of a write's events: project, subject, who, when, the day (today on site unless given). */

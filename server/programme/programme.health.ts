@@ -1,13 +1,25 @@
-import type { CurveResponse, ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
+import type { Audience } from "#shared/schemas/common.ts";
+import type { CurveResponse, ProgrammeHealthResponse, System } from "#shared/schemas/programme.ts";
+import { audiencesFor } from "#shared/domain/audience.ts";
 import { daysBetween } from "#shared/domain/calendar.ts";
-import { projectDrivers } from "#shared/domain/programme-dependencies.ts";
-import { computeProgrammeHealth, earnedCurve, earnedPercentOfMilestone, milestoneFinish } from "#shared/domain/programme-health.ts";
+import { projectDrivers, type ProjectDrivers } from "#shared/domain/programme-dependencies.ts";
+import { computeProgrammeHealth, earnedCurve, earnedPercentOfMilestone, milestoneFinish, type MilestoneInput, type ProgrammeHealth } from "#shared/domain/programme-health.ts";
 import { AppError } from "../core/app-error.ts";
 import { endOfDateInZone } from "../projects/projects.service.ts";
 import { listCostActuals } from "./programme.baselines.repository.ts";
-import { toInput, viewerOf, type ProgrammeContext, type Reader, type View } from "./programme.context.ts";
+import { settingsOf, toInput, viewerOf, type ProgrammeContext, type Reader, type View } from "./programme.context.ts";
 import { listProjectEvents } from "./programme.events.repository.ts";
 import { listMilestones, type MilestoneRecord } from "./programme.repository.ts";
+
+/** A milestone as it stood at a past day's end: the health computation's input, with its audience and system. */
+export type MilestoneAsStood = MilestoneInput & { audience: Audience; system: System };
+
+/** The programme as it stood at the end of a day: its milestones then, their health then, and what drove completion then. */
+export interface ProgrammeAsStood {
+  milestones: MilestoneAsStood[];
+  health: ProgrammeHealth;
+  drivers: ProjectDrivers | null;
+}
 
 /** A curve of more points than this is a mistake in the query, not a chart. */
 const MAX_CURVE_POINTS = 2_000;
@@ -76,6 +88,38 @@ export function createHealthUseCases(ctx: ProgrammeContext) {
         drivers: projectDrivers(inputs),
         timeZone: view.project.timeZone,
       };
+    },
+
+    /**
+     * The programme as it stood at the end of `date` in the project's time zone, for a viewer: the
+     * milestones that existed then, with every tracked field's later change undone (newest first),
+     * those in the programme and visible to the viewer then, and the health computed over them at
+     * that date. What a monthly report shows for its month end, however the record moved since.
+     */
+    async asStood(projectId: number, date: string, viewer: "investor" | "staff"): Promise<ProgrammeAsStood> {
+      const project = await projects.getById(projectId);
+      const boundary = endOfDateInZone(date, project.timeZone);
+      const records = (await listMilestones(db, projectId, "staff", { removed: "include" })).filter((m) => m.createdAt < boundary);
+      const state = new Map(records.map((m) => [m.id, { ...toInput(m), audience: m.audience as Audience, system: m.system, removed: m.removal !== null }]));
+      for (const e of await listProjectEvents(db, projectId, "staff", { from: boundary })) {
+        const m = state.get(e.milestoneId);
+        if (!m) continue;
+        if (e.field === "forecast_finish") m.forecastFinish = e.from;
+        else if (e.field === "actual_finish") m.actualFinish = e.from;
+        else if (e.field === "percent_complete") m.percentComplete = e.from === null ? 0 : Number(e.from);
+        else if (e.field === "baseline_finish") m.baselineFinish = e.from ?? m.baselineFinish;
+        else if (e.field === "planned_start") m.plannedStart = e.from;
+        else if (e.field === "weight" && e.from !== null) m.weight = Number(e.from);
+        else if (e.field === "audience" && e.from !== null) m.audience = e.from as Audience;
+        else if (e.field === "removed") m.removed = e.from === "true";
+      }
+      const visible = new Set(audiencesFor(viewer));
+      const milestones = [...state.values()].filter((m) => !m.removed && visible.has(m.audience)).map(({ removed, ...m }) => (void removed, m));
+      const ids = new Set(milestones.map((m) => m.id));
+      for (const m of milestones) m.dependsOn = (m.dependsOn ?? []).filter((id) => ids.has(id));
+      const costs = await listCostActuals(db, projectId);
+      const health = computeProgrammeHealth({ milestones, at: date, settings: settingsOf(project), costActuals: costs.length > 0 ? costs.filter((c) => c.periodEnd <= date) : undefined, currency: project.currency });
+      return { milestones, health, drivers: projectDrivers(milestones) };
     },
 
     async curve(slug: string, query: { from?: string; to?: string; step?: number }, reader: Reader): Promise<CurveResponse> {

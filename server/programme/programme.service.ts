@@ -2,11 +2,11 @@ import type { ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
 import { createBaselineUseCases } from "./programme.baselines.ts";
 import { createProgrammeContext, type MilestoneReference, type ProgrammeDeps, type Reader } from "./programme.context.ts";
 import { createFileUseCases } from "./programme.files.ts";
-import { createHealthUseCases } from "./programme.health.ts";
+import { createHealthUseCases, type MilestoneAsStood, type ProgrammeAsStood } from "./programme.health.ts";
 import { createHistoryUseCases, type MilestoneDatesAt } from "./programme.history.ts";
 import { createMilestoneUseCases } from "./programme.milestones.ts";
 
-export type { MilestoneDatesAt, MilestoneReference, ProgrammeHealthResponse, Reader };
+export type { MilestoneAsStood, MilestoneDatesAt, MilestoneReference, ProgrammeAsStood, ProgrammeHealthResponse, Reader };
 
 /**
  * The programme service: one object for the router and the other modules, made of the
@@ -19,7 +19,7 @@ export type { MilestoneDatesAt, MilestoneReference, ProgrammeHealthResponse, Rea
  * - files (programme.files.ts): CSV export and import.
  * Reads take the caller, or, from another module reading for an audience, that audience's
  * viewer (`"public"`, `"investor"`, `"staff"`): no made-up user. Other modules also ask by
- * project id: `publicAreas`, `allAreas`, `milestoneNames`, `milestoneIdsOf`, `milestoneDatesAt`.
+ * project id: `publicAreas`, `allAreas`, `milestoneNames`, `milestoneIdsOf`, `milestoneDatesAt`, `asStood` (a monthly report's programme).
  */
 export function createProgrammeService(deps: ProgrammeDeps) {
   const ctx = createProgrammeContext(deps);

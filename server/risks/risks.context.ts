@@ -6,6 +6,7 @@ import { validateLevels } from "#shared/domain/risks.ts";
 import { createAuditService, type AuditAction, type AuditService } from "../audit/audit.service.ts";
 import { AppError, notFound } from "../core/app-error.ts";
 import { invalidFields } from "../core/field-changes.ts";
+import { recordWriter } from "../core/record-write.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { FacilityService } from "../facility/facility.service.ts";
@@ -62,13 +63,16 @@ export function createRisksContext(deps: RisksDeps) {
   const audit = deps.audit ?? createAuditService(db);
   const now = () => projects.now();
 
-  /** The events of a write and its audit entry, in the write's transaction. */
-  async function recordWrite(trx: Trx, actor: Actor, project: Project, w: { action: AuditAction; risk: Pick<RiskRecord, "id" | "kind" | "number" | "title">; events: Array<Omit<NewRiskEvent, "projectId" | "byUserId" | "subjectId"> & { subjectId?: number }>; detail: Record<string, unknown> }): Promise<void> {
-    await insertRiskEvents(
-      trx,
-      w.events.map((e) => ({ ...e, subjectId: e.subjectId ?? w.risk.id, projectId: project.id, byUserId: actor.user?.id ?? null })),
-    );
-    await audit.record({ action: w.action, actor, target: { type: w.risk.kind, id: w.risk.id, label: `${referenceOf(w.risk)} ${w.risk.title}` }, detail: { project: project.slug, ...w.detail } }, trx);
+  const writeEvents = recordWriter(audit, insertRiskEvents);
+
+  /** The events of a write (of the risk unless an event names another subject) and its audit entry, in the write's transaction. */
+  function recordWrite(trx: Trx, actor: Actor, project: Project, w: { action: AuditAction; risk: Pick<RiskRecord, "id" | "kind" | "number" | "title">; events: Array<Omit<NewRiskEvent, "projectId" | "byUserId" | "subjectId"> & { subjectId?: number }>; detail: Record<string, unknown> }): Promise<void> {
+    return writeEvents(trx, actor, project, {
+      action: w.action,
+      target: { type: w.risk.kind, id: w.risk.id, label: `${referenceOf(w.risk)} ${w.risk.title}` },
+      events: w.events.map((e) => ({ ...e, subjectId: e.subjectId ?? w.risk.id })),
+      detail: w.detail,
+    });
   }
 
   /** The project of a risk addressed by id (404 when there is none). */

@@ -239,6 +239,47 @@ export function createRiskReadUseCases(ctx: RisksContext) {
       };
     },
 
+    /**
+     * The register as it stood at `instant`, for a monthly report written for `viewer`: the risks
+     * and issues entered by then and open then (later status changes undone), their levels then
+     * (later likelihood and impact changes undone), the trend against `windowStart`, and the grid.
+     */
+    async registerAt(projectId: number, instant: Date, windowStart: Date, viewer: "investor" | "staff") {
+      const reader = recordReaderOfViewer(viewer);
+      const [scale, records] = await Promise.all([projects.riskScale(projectId), listRisks(db, projectId, reader.audiences)]);
+      const existing = records.filter((x) => Date.parse(x.createdAt) <= instant.getTime());
+      const levelEvents = await listLevelEvents(db, existing.map((x) => x.id));
+      // The first status change after the instant says what the status was then.
+      const statusThen = new Map<number, string>();
+      for (const e of await listStatusEventsIn(db, projectId, new Date(instant.getTime() + 1), new Date(8.64e15))) if (!statusThen.has(e.subjectId) && e.from !== null) statusThen.set(e.subjectId, e.from);
+      const owners = await accounts.namesOf([...new Set(existing.map((x) => x.ownerId))]);
+      const items = existing
+        .map((x) => {
+          const levels = { likelihood: x.likelihood, impact: x.impact };
+          const later = levelEvents.filter((e) => e.subjectId === x.id && Date.parse(e.at) > instant.getTime()).sort((a, b) => Date.parse(b.at) - Date.parse(a.at));
+          for (const e of later) if (e.from !== null && Number.isFinite(Number(e.from))) levels[e.field as "likelihood" | "impact"] = Number(e.from);
+          const score = riskScore(levels.likelihood, levels.impact);
+          const atStart = scoreAt(x, levelEvents.filter((e) => e.subjectId === x.id), windowStart.toISOString());
+          return {
+            id: x.id,
+            reference: referenceOf(x),
+            title: x.title,
+            kind: x.kind,
+            category: x.category,
+            owner: owners.get(x.ownerId) ?? "",
+            action: x.action,
+            status: statusThen.get(x.id) ?? x.status,
+            ...levels,
+            score,
+            band: riskBand(score, scale),
+            trend: riskTrend(score, atStart, scale),
+          };
+        })
+        .filter((x) => x.status === "open")
+        .sort((a, b) => b.score - a.score || a.reference.localeCompare(b.reference));
+      return { scale, items, grid: riskGrid(items, scale) };
+    },
+
     /** Which of these ids are risks or issues of the project (any audience): what the budget's changes may link. */
     async riskIdsOf(projectId: number, ids: readonly number[]): Promise<Set<number>> {
       return new Set((await findRisksOfProject(db, projectId, ids, ["investor", "internal"])).map((x) => x.id));

@@ -12,7 +12,7 @@ export type { Reader, RiskMoveItem, RiskMoves, RisksDeps };
  *   its history, the summary (grid, totals, contingency left), a window's moves for digests;
  * - writes (risks.writes.ts): enter, edit, open an issue from a risk, delete one entered by mistake;
  * - mitigations (risks.mitigations.ts): a risk's actions.
- * Other modules ask by project id: `movesIn` (digests), `referencesOf` (decisions), `riskIdsOf`, `risksNamed`, `exposure` (the budget).
+ * Other modules ask by project id: `movesIn` (digests), `registerAt` (monthly reports), `referencesOf` (decisions), `riskIdsOf`, `risksNamed`, `exposure` (the budget).
  */
 export function createRisksService(deps: RisksDeps) {
   const ctx = createRisksContext(deps);
@@ -23,6 +23,7 @@ export function createRisksService(deps: RisksDeps) {
     events: reads.events,
     summary: reads.summary,
     movesIn: reads.movesIn,
+    registerAt: reads.registerAt,
     referencesOf: reads.referencesOf,
     riskIdsOf: reads.riskIdsOf,
     risksNamed: reads.risksNamed,

@@ -1,5 +1,5 @@
 import type { Knex } from "knex";
-import { hashPassword, verifyPassword } from "../auth/passwords.ts";
+import { seedAccounts } from "./accounts.seed.ts";
 import { DEMO_USERS } from "./demo-users.ts";
 import { seedSubscribers } from "./subscribers.seed.ts";
 import { seedDigests } from "./digests.seed.ts";
@@ -9,6 +9,7 @@ import { seedPosts } from "./posts.seed.ts";
 import { seedFacility } from "./facility.seed.ts";
 import { seedRecord } from "./record.seed.ts";
 import { seedDocuments } from "./documents.seed.ts";
+import { seedReports } from "./reports.seed.ts";
 
 export const DEMO_PROJECT_SLUG = "aldermere-phase-2";
 
@@ -17,18 +18,7 @@ export const DEMO_PROJECT_SLUG = "aldermere-phase-2";
  * they are, so a second run changes nothing.
  */
 export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ created: string[] }> {
-  const created: string[] = [];
-  for (const u of DEMO_USERS) {
-    const existing = await db("users").where({ email: u.email }).first();
-    if (!existing) {
-      await db("users").insert({ email: u.email, name: u.name, role: u.role, password_hash: await hashPassword(opts.password) });
-      created.push(`user ${u.email}`);
-    } else if (!(await verifyPassword(existing.password_hash, opts.password))) {
-      // DEMO_PASSWORD changed since the last seed: the printed sign-ins must work.
-      await db("users").where({ id: existing.id }).update({ password_hash: await hashPassword(opts.password) });
-      created.push(`password of ${u.email}`);
-    }
-  }
+  const created: string[] = await seedAccounts(db, DEMO_USERS, opts.password);
   if (!(await db("projects").where({ slug: DEMO_PROJECT_SLUG }).first())) {
     await db("projects").insert({
       slug: DEMO_PROJECT_SLUG,
@@ -72,5 +62,7 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
   created.push(...(await seedDigests(db, DEMO_PROJECT_SLUG)).created);
   // The document library, after the record seed (its organisations limit the lender pack).
   created.push(...(await seedDocuments(db, DEMO_PROJECT_SLUG)).created);
+  // The last two monthly reports, issued through the reports service (their PDFs join the library).
+  created.push(...(await seedReports(db, DEMO_PROJECT_SLUG)).created);
   return { created };
 }

@@ -1,6 +1,6 @@
 import { createHash, randomBytes } from "node:crypto";
 import type { Knex } from "knex";
-import { renderDigest } from "../digests/digests.render.ts";
+import { itemRefsOf, renderDigest, type DigestDocument } from "../digests/digests.render.ts";
 import { listPublishedBetween } from "../posts/posts.repository.ts";
 import { previousIsoWeek, previousMonth, type DigestWindow } from "../digests/digests.windows.ts";
 
@@ -56,20 +56,21 @@ export async function seedDigests(db: Knex, projectSlug: string, now: Date = new
         const posts = await listPublishedBetween(db, Number(project.id), audience === "investor" ? ["public", "investor"] : ["public"], w.start, w.end);
         if (posts.length === 0) contentId = null;
         else {
-          const r = await renderDigest({
+          const doc: DigestDocument = {
             project: { name: String(project.name), slug: String(project.slug), operatorName: String(project.operator_name), postalAddress: project.postal_address ?? null, timeZone: zone },
             frequency,
             windowStart: w.start,
             windowEnd: w.end,
             projectUrl: `/projects/${project.slug}`,
-            posts: posts.map((p) => ({ title: p.title, summary: p.summary, url: `/projects/${project.slug}/updates/${p.slug}`, publishedAt: p.publishedAt, image: null })),
+            posts: posts.map((p) => ({ postId: p.id, title: p.title, summary: p.summary, url: `/projects/${project.slug}/updates/${p.slug}`, publishedAt: p.publishedAt, image: null })),
             moves: [],
             facility: [],
             dueSoon: [],
             figures: { percentComplete: null, forecastReady: null, previousPercent: null, previousForecast: null },
-          });
+          };
+          const r = await renderDigest(doc);
           const key = createHash("sha256").update(`${runKey}:${audience}`).digest("hex");
-          const [id] = await db("digest_contents").insert({ run_id: runId, content_key: key, audience, topics_key: "all", empty: false, ...r, percent_complete: null, forecast_ready: null });
+          const [id] = await db("digest_contents").insert({ run_id: runId, content_key: key, audience, topics_key: "all", empty: false, ...r, item_refs: JSON.stringify(itemRefsOf(doc)), percent_complete: null, forecast_ready: null });
           contentId = Number(id);
         }
         contentIds.set(audience, contentId);

@@ -3,7 +3,7 @@ import { DateTime } from "luxon";
 import { addDays } from "#shared/domain/calendar.ts";
 import type { Role } from "#shared/schemas/common.ts";
 import type { ActionStatus, RecordAudience, RiskCategory, RiskStatus } from "#shared/schemas/risks.ts";
-import { hashPassword, verifyPassword } from "../auth/passwords.ts";
+import { seedAccounts } from "./accounts.seed.ts";
 import { demoAnchor } from "./programme.seed.ts";
 
 /**
@@ -387,20 +387,11 @@ const CONTINGENCY_HELD = gbp(400_000);
 const pad = (n: number) => String(n).padStart(3, "0");
 
 export async function seedRecord(db: Knex, projectId: number, opts: { password: string; today?: string }): Promise<{ created: string[] }> {
-  const created: string[] = [];
+  const created: string[] = await seedAccounts(db, RECORD_USERS, opts.password);
   const anchor = demoAnchor(opts.today);
   const date = (days: number) => addDays(anchor, days);
   const instant = ([days, hour]: At) => DateTime.fromISO(`${date(days)}T${String(hour).padStart(2, "0")}:00`, { zone: TZ }).toJSDate();
 
-  for (const u of RECORD_USERS) {
-    const existing = await db("users").where({ email: u.email }).first();
-    if (!existing) {
-      await db("users").insert({ email: u.email, name: u.name, role: u.role, password_hash: await hashPassword(opts.password) });
-      created.push(`user ${u.email}`);
-    } else if (!(await verifyPassword(existing.password_hash, opts.password))) {
-      await db("users").where({ id: existing.id }).update({ password_hash: await hashPassword(opts.password) });
-    }
-  }
   for (const o of ORGANISATIONS) {
     let org = await db("organisations").where({ name: o.name }).first("id");
     if (!org) {

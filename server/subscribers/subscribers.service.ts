@@ -1,6 +1,6 @@
 import type { Knex } from "knex";
 import type { Frequency } from "#shared/schemas/subscribers.ts";
-import { notFound } from "../core/app-error.ts";
+import { AppError, notFound } from "../core/app-error.ts";
 import { createBounces } from "./subscribers.bounces.ts";
 import { createSubscribersContext, type SubscribersDeps } from "./subscribers.context.ts";
 import { createSubscriberDigestReads } from "./subscribers.digest-reads.ts";
@@ -8,7 +8,7 @@ import { createSubscriptionLifecycle } from "./subscribers.lifecycle.ts";
 import type { SubscriberLinks } from "./subscribers.links.ts";
 import { createMailQueue } from "./subscribers.mail-queue.ts";
 import { createSubscriberOffice } from "./subscribers.office.ts";
-import { findSubscriberById, isSuppressed, listDigestRecipients, updateSubscriber, type SubscriberRecord } from "./subscribers.repository.ts";
+import { findSubscriberById, isSuppressed, listDigestRecipients, listSubscribersOfUser, updateSubscriber, type SubscriberRecord } from "./subscribers.repository.ts";
 import { hashAddress } from "./subscribers.tokens.ts";
 
 /**
@@ -46,6 +46,22 @@ export function createSubscribersService(deps: SubscribersDeps) {
     },
 
     ...createSubscriberDigestReads(db),
+
+    /**
+     * The subscriber a signed preferences link names, for their digest archive. A link that is not
+     * ours names no archive (404, as for any unknown address); an authentic expired one is 410.
+     */
+    async archiveOwner(token: string): Promise<number> {
+      try {
+        return (await ctx.subscriberFor(token, "preferences")).s.id;
+      } catch (err) {
+        if (err instanceof AppError && err.code === "token_invalid") throw notFound("That digest archive");
+        throw err;
+      }
+    },
+
+    /** The subscriptions of an investor's account (the investor room's own digests). */
+    subscriptionIdsOfUser: async (userId: number): Promise<number[]> => (await listSubscribersOfUser(db, userId)).map((s) => s.id),
 
     /** Records the end of the window a digest covered, so the next window starts there. */
     recordDigestDelivered: (subscriberId: number, windowEnd: Date, trx?: Knex.Transaction) => updateSubscriber(trx ?? db, subscriberId, { lastDigestAt: windowEnd }, now()),

@@ -147,6 +147,15 @@ function routes(qc: QueryClient): RouteObject[] {
         const m = await import("../features/documents/routes.tsx");
         return { Component: m.DocumentsPage, loader: m.documentsLoader };
       }, { ...OFFICE, what: "project" }),
+      // The monthly report: its pages bring the record's charts and the updates' editor (app/pages/report-pages.tsx).
+      page(qc, "reports", async () => {
+        const m = await import("./pages/report-pages.tsx");
+        return { Component: m.OfficeReportsPage, loader: m.reportsLoader };
+      }, { ...OFFICE, what: "project" }),
+      page(qc, "reports/:id", async () => {
+        const m = await import("./pages/report-pages.tsx");
+        return { Component: m.OfficeReportPage, loader: m.reportLoader };
+      }, { ...OFFICE, what: "report" }),
       page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage, loader: (await media()).mediaLibraryLoader }), OFFICE),
       page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage, loader: (await media()).mediaReviewLoader }), OFFICE),
       page(qc, "updates", async () => {
@@ -180,6 +189,8 @@ function routes(qc: QueryClient): RouteObject[] {
       page(qc, "projects/:slug/cost", async () => ({ Component: (await investors()).InvestorCostPage, loader: (await investors()).investorCostLoader }), { ...INVESTORS, what: "project" }),
       page(qc, "projects/:slug/documents", async () => ({ Component: (await investors()).InvestorDocumentsPage, loader: (await investors()).investorDocumentsLoader }), { ...INVESTORS, what: "project" }),
       page(qc, "projects/:slug/documents/:id", async () => ({ Component: (await investors()).InvestorDocumentPage, loader: (await investors()).investorDocumentsLoader }), { ...INVESTORS, what: "document" }),
+      page(qc, "projects/:slug/reports", async () => ({ Component: (await investors()).InvestorReportsPage, loader: (await investors()).investorReportsLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/reports/:id", async () => ({ Component: (await investors()).InvestorReportPage, loader: (await investors()).investorReportLoader }), { ...INVESTORS, what: "report" }),
     ]),
   ];
 }

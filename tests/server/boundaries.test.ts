@@ -21,6 +21,7 @@ const EXEMPT_DIRS = new Set(["seed", "db"]);
 const OWNERS: Record<string, readonly string[]> = {
   audit: ["audit_events"],
   auth: ["sessions"],
+  calendars: ["calendar_feeds"],
   budget: ["budget_changes", "budget_change_milestones", "budget_change_risks", "budget_events"],
   decisions: ["decisions", "decision_milestones", "decision_risks", "decision_documents", "decision_events"],
   digests: ["digest_runs", "digest_contents", "digest_deliveries"],
@@ -32,6 +33,7 @@ const OWNERS: Record<string, readonly string[]> = {
   posts: ["posts", "post_milestones", "post_tags", "post_media"],
   programme: ["phases", "milestones", "milestone_dependencies", "baselines", "milestone_events", "cost_actuals"],
   projects: ["projects"],
+  reports: ["reports", "report_events", "report_notices"],
   risks: ["risks", "risk_mitigations", "risk_milestones", "risk_blocks", "risk_systems", "risk_events"],
   // Revisions, old addresses and workflow events of both kinds: the one publishing workflow (decision 023).
   publishing: ["publishing_events", "post_revisions", "post_slugs", "story_revisions", "story_slugs"],

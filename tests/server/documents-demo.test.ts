@@ -8,10 +8,11 @@ const SLUG = "aldermere-phase-2";
 type Doc = { id: number; title: string; category: string; audience: string; versions: Array<{ number: number }>; newSinceLastVisit: boolean; organisations: Array<{ id: number }> };
 
 describe("the demo's document library", () => {
-  it("has six invented documents across the categories, one internal, a technical note with two versions, and the investor's view history", async () => {
+  it("has six invented documents across the categories (and the two issued monthly reports), one internal, a technical note with two versions, and the investor's view history", async () => {
     const all = (await f.as.lead.agent.get(`/api/projects/${SLUG}/documents`).expect(200)).body as Doc[];
-    expect(all).toHaveLength(6);
-    expect(all.filter((d) => d.category === "monitoring_report")).toHaveLength(2);
+    // The reports seed issues the last two monthly reports into the library as well.
+    expect(all).toHaveLength(8);
+    expect(all.filter((d) => d.category === "monitoring_report")).toHaveLength(4);
     expect(all.filter((d) => d.category === "certificate")).toHaveLength(2);
     expect(all.filter((d) => d.category === "lender_pack")).toHaveLength(1);
     expect(all.filter((d) => d.audience === "internal").map((d) => d.category)).toEqual(["certificate"]);

@@ -59,6 +59,11 @@ export interface MatrixIds {
   /** Budget changes of the demo project: one of each audience. */
   investorChange: number;
   internalChange: number;
+  /** A project of the matrix's own monthly reports (made through the API): an issued investor report, a draft, an issued internal report. */
+  reportsSlug: string;
+  issuedReport: number;
+  draftReport: number;
+  internalReport: number;
 }
 
 export interface MatrixRow {
@@ -87,6 +92,8 @@ const investorOnly = (ok: number): Record<Caller, number> => ({ admin: 403, lead
 /** A link token of the right shape whose signature is wrong. */
 const BAD_LINK = `${"a".repeat(20)}.${"a".repeat(43)}`;
 const writers = (ok: number): Record<Caller, number> => ({ admin: ok, lead: ok, marketing: 403, investor: 403, anonymous: 401 });
+/** Monthly reports: leads and admins (`staff`), investors (`investor`); marketing 403, visitors 401. */
+const reportReaders = (staff: number, investor: number): Record<Caller, number> => ({ admin: staff, lead: staff, marketing: 403, investor, anonymous: 401 });
 
 const DEMO_PROGRAMME = "/api/projects/aldermere-phase-2";
 
@@ -334,6 +341,12 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "post", path: "/api/webhooks/mail-events", body: {}, expect: all(401) },
   { method: "get", path: "/api/investors/digest", expect: investorOnly(200) },
   { method: "patch", path: "/api/investors/digest/aldermere-phase-2", body: {}, expect: investorOnly(400) },
+  // Every subscriber's archive (decision 045): by the signed preferences link (a link not ours is 404), or an investor's own.
+  { method: "get", path: `/api/subscriptions/preferences/${BAD_LINK}/digests`, expect: all(404) },
+  { method: "get", path: `/api/subscriptions/preferences/${BAD_LINK}/digests/1`, expect: all(404) },
+  { method: "get", path: "/api/me/digests", expect: investorOnly(200) },
+  { method: "get", path: "/api/me/digests?page=0", expect: investorOnly(400) },
+  { method: "get", path: "/api/me/digests/999999999", expect: investorOnly(404) },
   { method: "get", path: "/api/subscribers", expect: staffOnly(200) },
   { method: "get", path: "/api/subscribers/export.csv", expect: staffOnly(200) },
   { method: "post", path: "/api/subscribers/import", body: {}, expect: staffOnly(400) },
@@ -426,6 +439,29 @@ export const ROLE_MATRIX: MatrixRow[] = [
   // The public site's documents and pages.
   { method: "get", path: "/feed/aldermere-phase-2.atom", expect: all(200) },
   { method: "get", path: "/feed/no-such-project.atom", expect: all(404) },
+  // Monthly reports: leads, admins and investors (marketing reads no money); investors only issued investor reports, never a draft.
+  { method: "get", path: (ids) => `/api/projects/${ids.reportsSlug}/reports`, expect: reportReaders(200, 200) },
+  { method: "get", path: "/api/projects/no-such-project/reports", expect: reportReaders(404, 404) },
+  { method: "get", path: (ids) => `/api/reports/${ids.issuedReport}`, expect: reportReaders(200, 200) },
+  { method: "get", path: (ids) => `/api/reports/${ids.draftReport}`, expect: reportReaders(200, 404) },
+  { method: "get", path: (ids) => `/api/reports/${ids.internalReport}`, expect: reportReaders(200, 404) },
+  { method: "get", path: (ids) => `/api/reports/${ids.issuedReport}/pdf`, expect: reportReaders(200, 200) },
+  { method: "get", path: (ids) => `/api/reports/${ids.draftReport}/pdf`, expect: reportReaders(200, 404) },
+  { method: "get", path: (ids) => `/api/reports/${ids.internalReport}/pdf`, expect: reportReaders(200, 404) },
+  { method: "get", path: "/api/reports/999999999", expect: reportReaders(404, 404) },
+  { method: "post", path: (ids) => `/api/projects/${ids.reportsSlug}/reports`, body: {}, expect: writers(400) },
+  { method: "patch", path: (ids) => `/api/reports/${ids.draftReport}`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/reports/${ids.draftReport}/issue`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/reports/${ids.issuedReport}/correct`, body: {}, expect: writers(400) },
+  // Milestone calendars: the public one for everyone; personal feeds made by any signed-in reader, read by their token alone.
+  { method: "get", path: `/projects/${DEMO_SLUG}/calendar.ics`, expect: all(200) },
+  { method: "get", path: "/projects/no-such-project/calendar.ics", expect: all(404) },
+  { method: "post", path: `${DEMO_PROGRAMME}/calendar-feed`, body: {}, expect: signedIn(201) },
+  { method: "post", path: `${DEMO_PROGRAMME}/calendar-feed`, body: { audience: "internal" }, expect: signedIn(400) },
+  { method: "post", path: "/api/projects/no-such-project/calendar-feed", body: {}, expect: signedIn(404) },
+  { method: "delete", path: `${DEMO_PROGRAMME}/calendar-feed`, expect: signedIn(204) },
+  { method: "get", path: `/calendars/${"a".repeat(43)}.ics`, expect: all(404) },
+  { method: "get", path: "/calendars/not-a-token.ics", expect: all(404) },
   { method: "get", path: "/sitemap.xml", expect: all(200) },
   { method: "get", path: "/robots.txt", expect: all(200) },
   { method: "get", path: "/projects/aldermere-phase-2/updates/no-such-update", expect: all(200) },

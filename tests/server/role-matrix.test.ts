@@ -78,6 +78,7 @@ async function resolveIds(): Promise<MatrixIds> {
   const facility = await matrixFacility();
   const documents = await matrixDocuments();
   const record = await matrixRecord();
+  const reports = await matrixReports();
 
   return {
     internalMilestone: pick(milestones, "internal milestone", (m) => m.audience === "internal").id,
@@ -103,6 +104,31 @@ async function resolveIds(): Promise<MatrixIds> {
     ...facility,
     ...documents,
     ...record,
+    ...reports,
+  };
+}
+
+/** Monthly reports of the matrix's own, made through the API in a project of its own: an issued investor report, a draft, an issued internal report. */
+async function matrixReports() {
+  const lead = await signIn(t, DEMO.lead);
+  const slug = `matrix-reports-${Date.now().toString(36)}`;
+  await t.db("projects").insert({ slug, name: "Role matrix reports", operator_name: "Kestrel Colocation", time_zone: "Europe/London", currency: "GBP" });
+  const draft = async (month: string, audience: string): Promise<{ id: number; version: number }> => {
+    const res = await lead.agent.post(`/api/projects/${slug}/reports`).set("X-CSRF-Token", lead.csrf).send({ month, audience });
+    if (res.status !== 201) throw new Error(`report ${month}: ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
+    return { id: Number(res.body.id), version: Number(res.body.version) };
+  };
+  const issued = async (month: string, audience: string): Promise<number> => {
+    const r = await draft(month, audience);
+    const res = await lead.agent.post(`/api/reports/${r.id}/issue`).set("X-CSRF-Token", lead.csrf).send({ version: r.version });
+    if (res.status !== 200) throw new Error(`issue ${month}: ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
+    return r.id;
+  };
+  return {
+    reportsSlug: slug,
+    issuedReport: await issued("2026-01", "investor"),
+    draftReport: (await draft("2026-02", "investor")).id,
+    internalReport: await issued("2026-03", "internal"),
   };
 }
 

@@ -13,6 +13,7 @@ export function OfficeLayout() {
         { to: "/office/decisions", label: "Decisions" },
         { to: "/office/budget", label: "Budget", roles: ["lead", "admin"] },
         { to: "/office/documents", label: "Documents" },
+        { to: "/office/reports", label: "Reports", roles: ["lead", "admin"] },
         { to: "/office/media", label: "Media" },
         { to: "/office/updates", label: "Updates" },
         { to: "/office/stories", label: "Photo stories" },

@@ -4,11 +4,14 @@ import { Link, NavLink, useParams, useSearchParams } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
 import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
 import { budgetChangesQueryOptions, budgetPositionQueryOptions } from "../../features/budget/api.ts";
+import { CalendarFeedPanel } from "../../features/calendars/calendar-feed-panel.tsx";
 import { InvestorCost } from "../../features/budget/investor-cost.tsx";
 import { decisionsQueryOptions } from "../../features/decisions/api.ts";
 import { InvestorDecisions } from "../../features/decisions/investor-decisions.tsx";
 import { investorDocumentsQueryOptions } from "../../features/documents/investor-api.ts";
 import { InvestorDocument, InvestorDocuments } from "../../features/documents/investor-documents.tsx";
+import { reportQueryOptions, reportsQueryOptions } from "../../features/reports/api.ts";
+import { InvestorReport, InvestorReports } from "../../features/reports/components/investor-reports.tsx";
 import { InvestorProgramme } from "../../features/programme/components/investor-programme.tsx";
 import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
 import { projectQueryOptions, projectsQueryOptions } from "../../features/projects/api.ts";
@@ -17,6 +20,7 @@ import { riskSummaryQueryOptions, risksQueryOptions } from "../../features/risks
 import { InvestorRisks } from "../../features/risks/investor-risks.tsx";
 import { idParam, INVESTOR_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { useMe } from "../../lib/session.ts";
+import { WithReportParts } from "./report-parts.tsx";
 
 /** Who may read money figures: marketing reads risks, decisions and documents, never the cost (decision 040). */
 const MONEY_ROLES: readonly Role[] = ["investor", "lead", "admin"];
@@ -34,6 +38,7 @@ const SECTIONS: readonly Section[] = [
   { path: "decisions", label: "Decisions" },
   { path: "cost", label: "Cost", roles: MONEY_ROLES },
   { path: "documents", label: "Documents" },
+  { path: "reports", label: "Reports", roles: MONEY_ROLES },
 ];
 
 const sectionHref = (slug: string, path: string) => `/investors/projects/${slug}${path ? `/${path}` : ""}`;
@@ -127,6 +132,7 @@ export function InvestorProjectPage() {
       <div className="flex flex-col gap-6">
         <InvestorProgramme slug={slug} currency={project.data.currency} />
         <InvestorFacility slug={slug} />
+        <CalendarFeedPanel slug={slug} />
       </div>
     </>
   );
@@ -203,6 +209,45 @@ export function InvestorDocumentPage() {
     <>
       <ProjectHead slug={slug} sheet="Documents" description="Your own copy: each page carries your name, your organisation and the time." />
       <InvestorDocument slug={slug} id={idParam(id)} version={version ? Number(version) : undefined} />
+    </>
+  );
+}
+
+// The monthly reports carry the cost, so they are read by whoever reads the cost (decision 046).
+export const investorReportsLoader = sectionLoader(MONEY_ROLES, (qc, slug) => [qc.ensureQueryData(reportsQueryOptions(slug))]);
+export const investorReportLoader: RouteLoader = (qc) => (args) =>
+  sectionLoader(MONEY_ROLES, (q) => [q.ensureQueryData(reportQueryOptions(idParam(args.params.id)))])(qc)(args);
+
+function MoneyOnly({ children }: { children: ReactNode }) {
+  const role = useMe().data?.role;
+  if (role === undefined || !MONEY_ROLES.includes(role)) return <Notice title="Not shown to your role">The monthly reports carry the cost of the build: they are read by its investors and its project lead.</Notice>;
+  return <>{children}</>;
+}
+
+export function InvestorReportsPage() {
+  const { slug = "" } = useParams();
+  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
+  return (
+    <>
+      <ProjectHead slug={slug} sheet="Reports" description="The monthly report: where the build stood at each month's end, with the project lead's commentary. Read it here or as your own stamped PDF." />
+      <MoneyOnly>
+        <InvestorReports slug={slug} timeZone={project.timeZone} />
+      </MoneyOnly>
+    </>
+  );
+}
+
+export function InvestorReportPage() {
+  const { slug = "", id } = useParams();
+  const [search] = useSearchParams();
+  return (
+    <>
+      <ProjectHead slug={slug} sheet="Reports" description="The report as it was issued. Your PDF copy carries your name, your organisation and the time on every page." />
+      <MoneyOnly>
+        <WithReportParts>
+          <InvestorReport slug={slug} id={idParam(id)} asPdf={search.get("as") === "pdf"} />
+        </WithReportParts>
+      </MoneyOnly>
     </>
   );
 }

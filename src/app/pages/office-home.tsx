@@ -1,5 +1,6 @@
 import { Link } from "react-router-dom";
 import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { CalendarFeedPanel } from "../../features/calendars/calendar-feed-panel.tsx";
 import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
 import { useProjects } from "../../features/projects/api.ts";
 import { useMe } from "../../lib/session.ts";
@@ -45,6 +46,9 @@ export function OfficeHomePage() {
           </Sheet>
         ) : null}
       </div>
+      {(projects.data ?? []).map((p) => (
+        <CalendarFeedPanel key={p.id} slug={p.slug} projectName={(projects.data ?? []).length > 1 ? p.name : undefined} />
+      ))}
     </>
   );
 }

@@ -44,7 +44,7 @@ function stepShape(currency: string, narrow: boolean, hatchId: string) {
  * budget and the projected final cost, as a sideways waterfall (each change floats from the level
  * before it to the level after; the totals stand on zero).
  */
-export function BudgetWalkChart({ position }: { position: BudgetPosition }) {
+export function BudgetWalkChart({ position }: { position: Pick<BudgetPosition, "walk" | "currency"> }) {
   const [ref, width] = useElementWidth<HTMLDivElement>();
   const steps = walkBars(position.walk);
   const floor = walkFloor(steps);

@@ -119,6 +119,13 @@ export function PublicTimelinePage() {
       <p className="mt-1 text-sm text-ink-soft">
         Dates are the operator's current forecasts and change as work goes on. Days are counted in {p.timeZone.replace("_", " ")}.
       </p>
+      <p className="mt-2 text-sm">
+        {/* A file for calendar apps, not a page of the app: a plain link, so the browser fetches it. */}
+        <a href={`/projects/${p.slug}/calendar.ics`} className="font-medium underline underline-offset-4" data-testid="add-to-calendar">
+          Add to calendar
+        </a>{" "}
+        <span className="text-ink-soft">— subscribe and your calendar moves each date when the forecast moves.</span>
+      </p>
       <div className="mt-8">{list.length > 0 ? <Timeline milestones={list} today={today} /> : null}</div>
     </div>
   );

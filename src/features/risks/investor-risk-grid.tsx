@@ -54,7 +54,7 @@ function cellShape(cellWidth: number, cellHeight: number, patternId: (band: Risk
  * with the count of open risks in it. Each square carries its band's pattern (plain, dotted,
  * hatched, cross-hatched) so the bands read apart without colour; the key names them.
  */
-export function RiskGridChart({ summary }: { summary: RiskSummary }) {
+export function RiskGridChart({ summary }: { summary: Pick<RiskSummary, "scale" | "grid"> }) {
   const [ref, width] = useElementWidth<HTMLDivElement>();
   const id = useId().replace(/:/g, "");
   const patternId = (band: RiskBand) => `${id}-${band}`;

@@ -17,6 +17,7 @@ import type {
   SubscriptionStatusResult,
   UnsubscribeView,
 } from "#shared/schemas/subscribers.ts";
+import type { DigestArchiveCopy, DigestArchivePage } from "#shared/schemas/digests.ts";
 import { api, qs } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
 import { projectListQueryOptions } from "../../lib/projects.ts";
@@ -90,3 +91,19 @@ export const useImportSubscribers = () =>
   useRefreshingMutation(subscriberKeys.all, { mutationFn: (input: SubscriberImportInput) => api.post<SubscriberImportResult>("/api/subscribers/import", input), meta: { quiet: true } });
 
 export const useEraseSubscriber = () => useRefreshingMutation(subscriberKeys.all, { mutationFn: (id: number) => api.delete<ErasureResult>(`/api/subscribers/${id}`) });
+
+/** A subscriber's archive of sent digests (decision 045): by the signed preferences link, or an investor's own. */
+export const digestArchiveKeys = {
+  all: ["digest-archive"] as const,
+  byLink: (token: string, page: number) => [...digestArchiveKeys.all, "link", token, page] as const,
+  copyByLink: (token: string, id: number) => [...digestArchiveKeys.all, "link", token, "copy", id] as const,
+  mine: (page: number) => [...digestArchiveKeys.all, "mine", page] as const,
+  myCopy: (id: number) => [...digestArchiveKeys.all, "mine", "copy", id] as const,
+};
+
+export const pastDigestsQueryOptions = (token: string, page: number) =>
+  queryOptions({ queryKey: digestArchiveKeys.byLink(token, page), queryFn: () => api.get<DigestArchivePage>(`/api/subscriptions/preferences/${token}/digests${qs({ page })}`), retry: false });
+export const pastDigestQueryOptions = (token: string, id: number) =>
+  queryOptions({ queryKey: digestArchiveKeys.copyByLink(token, id), queryFn: () => api.get<DigestArchiveCopy>(`/api/subscriptions/preferences/${token}/digests/${id}`), retry: false });
+export const myDigestsQueryOptions = (page: number) => queryOptions({ queryKey: digestArchiveKeys.mine(page), queryFn: () => api.get<DigestArchivePage>(`/api/me/digests${qs({ page })}`) });
+export const myDigestQueryOptions = (id: number) => queryOptions({ queryKey: digestArchiveKeys.myCopy(id), queryFn: () => api.get<DigestArchiveCopy>(`/api/me/digests/${id}`) });

@@ -26,6 +26,10 @@ import { meQueryOptions } from "../../lib/session.ts";
 import {
   confirmationQueryOptions,
   investorDigestQueryOptions,
+  myDigestQueryOptions,
+  myDigestsQueryOptions,
+  pastDigestQueryOptions,
+  pastDigestsQueryOptions,
   preferencesQueryOptions,
   subscribersCsvUrl,
   subscribersQueryOptions,
@@ -39,6 +43,7 @@ import {
   useUpdatePreferences,
 } from "./api.ts";
 import { ConsentNote } from "./components/consent-note.tsx";
+import { DigestArchive } from "./components/digest-archive.tsx";
 import { ImportPanel } from "./components/import-panel.tsx";
 import { SubscribeForm } from "./components/subscribe-form.tsx";
 import { SubscribersTable } from "./components/subscribers-table.tsx";
@@ -108,6 +113,7 @@ export const confirmationLoader: RouteLoader = (qc) => async ({ params }) => {
 
 export const preferencesLoader: RouteLoader = (qc) => async ({ params }) => {
   await qc.ensureQueryData(preferencesQueryOptions(params.token ?? ""));
+  await qc.ensureQueryData(pastDigestsQueryOptions(params.token ?? "", 1));
   return null;
 };
 
@@ -259,6 +265,16 @@ export function PreferencesPage() {
           </Link>
         </Notice>
       )}
+      <section aria-labelledby="past-digests" className="mt-8 border-t border-rule pt-6">
+        <h2 id="past-digests" className="mb-3 text-lg font-semibold">
+          Your past digests
+        </h2>
+        <DigestArchive
+          listOptions={(page) => pastDigestsQueryOptions(token, page)}
+          copyOptions={(id) => pastDigestQueryOptions(token, id)}
+          emptyText={`No digest about ${v.project.name} has been sent to this address yet.`}
+        />
+      </section>
     </PublicSheet>
   );
 }
@@ -335,7 +351,7 @@ const isInvestor = (me: { role: string } | null | undefined) => me?.role === "in
 
 export const investorDigestLoader: RouteLoader = (qc) => () =>
   primeWhenAllowed(qc, INVESTOR_ROLES, async () => {
-    if (isInvestor(await qc.ensureQueryData(meQueryOptions()))) await qc.ensureQueryData(investorDigestQueryOptions());
+    if (isInvestor(await qc.ensureQueryData(meQueryOptions()))) await Promise.all([qc.ensureQueryData(investorDigestQueryOptions()), qc.ensureQueryData(myDigestsQueryOptions(1))]);
   });
 
 function InvestorDigestSettings() {
@@ -358,7 +374,12 @@ export function InvestorDigestPage() {
     <>
       <PageHeader sheet="Investor room · Digest" title="Your digest" description="A digest by e-mail of what changed on each build, including investor-only updates and programme detail." />
       {isInvestor(me) ? (
-        <InvestorDigestSettings />
+        <>
+          <InvestorDigestSettings />
+          <Sheet label="Sent to you" title="My digests">
+            <DigestArchive listOptions={myDigestsQueryOptions} copyOptions={myDigestQueryOptions} emptyText="No digest has been sent to you yet." />
+          </Sheet>
+        </>
       ) : (
         <Notice title="For investor accounts">Digest settings belong to investor accounts. Staff see every digest in the site office.</Notice>
       )}

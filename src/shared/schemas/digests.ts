@@ -96,3 +96,49 @@ export type DigestPreview = z.infer<typeof DigestPreviewSchema>;
 /** POST /api/digests/test → 202: the test message, sent to the caller. */
 export const DigestTestSentSchema = z.object({ messageId: z.string() });
 export type DigestTestSent = z.infer<typeof DigestTestSentSchema>;
+
+// A subscriber's archive of the digests they were sent (decision 045).
+
+/** `?page=` of a subscriber's archive: 20 digests a page, newest first. */
+export const DigestArchiveQuerySchema = z.strictObject({ page: z.coerce.number({ error: "must be a number" }).int().min(1).max(10_000).default(1) });
+export type DigestArchiveQuery = z.infer<typeof DigestArchiveQuerySchema>;
+export const DIGEST_ARCHIVE_PAGE_SIZE = 20;
+
+/** The signed preferences link is the credential; the signature check, not the shape, decides (a link not ours is 404). */
+export const DigestArchiveLinkParamSchema = z.strictObject({ token: z.string().min(1).max(500) });
+export const DigestArchiveCopyParamSchema = DigestArchiveLinkParamSchema.extend({ id: z.coerce.number().int().positive() });
+
+/** One sent digest in the list: when, what about, the window it covered, and where to read it. */
+export const DigestArchiveItemSchema = z.object({
+  id: z.number(),
+  project: z.object({ slug: z.string(), name: z.string() }),
+  frequency: FrequencySchema,
+  subject: z.string(),
+  sentAt: z.string(),
+  windowStart: z.string(),
+  windowEnd: z.string(),
+  /** The days the window covered, in the project's time zone (YYYY-MM-DD). */
+  firstDay: z.string(),
+  lastDay: z.string(),
+  /** The signed "view in the browser" copy; null for a digest the archive withholds whole. */
+  webUrl: z.string().nullable(),
+});
+export type DigestArchiveItem = z.infer<typeof DigestArchiveItemSchema>;
+
+export const DigestArchivePageSchema = z.object({
+  items: z.array(DigestArchiveItemSchema),
+  total: z.number(),
+  page: z.number(),
+  pageSize: z.number(),
+});
+export type DigestArchivePage = z.infer<typeof DigestArchivePageSchema>;
+
+/**
+ * One digest as it was sent, less whatever has since become hidden from its reader. `html` is
+ * null when the whole digest is withheld (sent before Plumbline kept what each digest held).
+ */
+export const DigestArchiveCopySchema = DigestArchiveItemSchema.extend({
+  html: z.string().nullable(),
+  withheld: z.object({ count: z.number(), whole: z.boolean(), notice: z.string() }).nullable(),
+});
+export type DigestArchiveCopy = z.infer<typeof DigestArchiveCopySchema>;

@@ -170,6 +170,7 @@ export function RichTextEditor({
   data,
   milestones,
   onPicture,
+  label = "Body of the update",
 }: {
   slug: string;
   initial: RichTextDoc;
@@ -178,6 +179,8 @@ export function RichTextEditor({
   milestones: readonly Milestone[];
   /** A photo was inserted: the page keeps its picture for previews. */
   onPicture: (p: MediaPicture) => void;
+  /** What the text box is called to a screen reader (a report's commentary reuses this editor). */
+  label?: string;
 }) {
   const [picker, setPicker] = useState<"photo" | "milestone" | "link" | null>(null);
   const editor = useEditor({
@@ -185,7 +188,7 @@ export function RichTextEditor({
     content: initial,
     immediatelyRender: true,
     shouldRerenderOnTransaction: false,
-    editorProps: { attributes: { class: `${PROSE_EDITOR} min-h-72 px-4 py-3 focus:outline-none`, "aria-label": "Body of the update", "aria-multiline": "true", role: "textbox" } },
+    editorProps: { attributes: { class: `${PROSE_EDITOR} min-h-72 px-4 py-3 focus:outline-none`, "aria-label": label, "aria-multiline": "true", role: "textbox" } },
     onUpdate: ({ editor: e }) => onChange(e.getJSON() as RichTextDoc),
   });
   if (!editor) return null;
