@@ -14,6 +14,8 @@ export default defineConfig({
   build: {
     outDir: "dist",
     sourcemap: true,
+    // dist/.vite/manifest.json: the server reads it to write each page's modulepreload hints.
+    manifest: true,
     chunkSizeWarningLimit: 900,
   },
 });

@@ -2,6 +2,7 @@
 # npm run bench: the benchmarks under tests/bench, one after another. Figures, not tests.
 #   npm run bench                  every benchmark
 #   npm run bench -- health        only tests/bench/health.bench.ts (several names may be given)
+#   npm run bench -- pages         the public pages in Chromium as a throttled phone (builds the client when stale)
 # Like npm test, it starts the private MariaDB when DATABASE_URL is not given (the digest and
 # public-pages benchmarks each make a database of their own in it) and stops it afterwards if
 # this run started it.
@@ -21,6 +22,8 @@ fi
 
 for f in "${files[@]}"; do
   [ "$f" = "tests/bench/images.bench.ts" ] && ensure_imagemagick
+  # The phone page benchmark loads the built client.
+  [ "$f" = "tests/bench/pages.bench.ts" ] && build_client_if_stale
 done
 
 ensure_mariadb_binaries

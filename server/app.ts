@@ -11,6 +11,7 @@ import type { Logger } from "./core/logger.ts";
 import { apiNotFound, errorHandler } from "./core/error-handler.ts";
 import { createCsrf } from "./core/csrf.ts";
 import { cachePolicy } from "./core/cache-policy.ts";
+import { compressAnswers } from "./core/compression.ts";
 import { transportSecurity } from "./core/transport-security.ts";
 import type { Db } from "./db/knex.ts";
 import { auditRouter } from "./audit/audit.router.ts";
@@ -29,6 +30,7 @@ import { postsRouter } from "./posts/posts.router.ts";
 import { storiesRouter, storyPagesRouter } from "./stories/stories.router.ts";
 import { injectHead, type FeedsService } from "./feeds/feeds.service.ts";
 import { feedsRouter } from "./feeds/feeds.router.ts";
+import { injectHints, moduleHintsFor, readManifest } from "./feeds/preload-hints.ts";
 import { digestsRouter } from "./digests/digests.router.ts";
 import { risksRouter } from "./risks/risks.router.ts";
 import { decisionsRouter } from "./decisions/decisions.router.ts";
@@ -36,6 +38,7 @@ import { budgetRouter } from "./budget/budget.router.ts";
 import { documentsRouter } from "./documents/documents.router.ts";
 import { calendarFeedsRouter, calendarFilesRouter } from "./calendars/calendars.router.ts";
 import { reportsRouter } from "./reports/reports.router.ts";
+import { searchRouter } from "./search/search.router.ts";
 import type { Services } from "./services.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
@@ -59,7 +62,10 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   app.disable("x-powered-by");
   app.set("trust proxy", config.TRUST_PROXY);
   app.set("etag", "strong");
-  // First of all, so that every answer (the public cache's copies and errors too) leaves under one cache policy.
+  // Mounted before the cache policy and the public cache: they see (and the public cache keeps)
+  // the plain bytes, and every answer leaves compressed, their replays included.
+  app.use(compressAnswers());
+  // Then the cache policy, so that every answer (the public cache's copies and errors too) leaves under one cache policy.
   app.use(cachePolicy());
   app.use(transportSecurity({ publicUrl: config.PUBLIC_URL }));
   app.use(publicCache.middleware);
@@ -181,6 +187,7 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   api.use(documentsRouter(services.documents, mediaUploads));
   api.use(calendarFeedsRouter(services.calendars));
   api.use(reportsRouter(services.reports));
+  api.use(searchRouter(services.search));
   api.use(apiNotFound);
   app.use("/api", api);
   // RFC 8058 one-click unsubscribe (POST); a GET of the same path is the client's page.
@@ -208,11 +215,18 @@ function mountClient(app: Express, dir: string, site: FeedsService): void {
   app.use("/assets", express.static(path.join(dir, "assets"), { immutable: true, maxAge: "365d", index: false, fallthrough: false }));
   app.use(express.static(dir, { index: false, maxAge: "1h" }));
   let shell: string | null = null;
+  // Read once with the shell: the build that wrote one wrote the other.
+  let manifest: ReturnType<typeof readManifest> = null;
   app.get("/{*splat}", async (req, res) => {
-    if (shell === null) shell = existsSync(indexPath) ? readFileSync(indexPath, "utf8") : FALLBACK_SHELL;
+    if (shell === null) {
+      shell = existsSync(indexPath) ? readFileSync(indexPath, "utf8") : FALLBACK_SHELL;
+      manifest = readManifest(dir);
+    }
     // Link previews read the HTML without running the app: public pages carry their Open Graph tags.
     const page = await site.pageFor(req.path);
     if (page && "redirect" in page) return res.redirect(301, page.redirect);
-    res.set("Cache-Control", "no-cache").type("html").send(page ? injectHead(shell, page.head) : shell);
+    // The page's own chunks start with the HTML instead of after the entry script.
+    const html = injectHints(page ? injectHead(shell, page.head) : shell, moduleHintsFor(manifest, req.path));
+    res.set("Cache-Control", "no-cache").type("html").send(html);
   });
 }

@@ -63,6 +63,8 @@ const ConfigSchema = z.object({
   SMTP_SINK_PORT: z.coerce.number().int().min(0).max(65535).default(2525),
   MAIL_FROM: z.string().min(3).default("Plumbline <progress@kestrel.example>"),
   LOG_LEVEL: z.enum(["fatal", "error", "warn", "info", "debug", "trace", "silent"]).default("info"),
+  // auto: readable lines on a terminal outside production, JSON lines otherwise (server/core/logger.ts).
+  LOG_FORMAT: z.enum(["auto", "json", "pretty"]).default("auto"),
   // Failed sign-ins, invitation acceptances and reset-link uses per client address per window (successes are free).
   LOGIN_LIMIT_PER_IP: z.coerce.number().int().positive().default(30),
   // Failed sign-ins per account from one address before each further attempt from there must wait (2 s, 4 s, 8 s …).

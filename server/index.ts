@@ -7,7 +7,7 @@ import type { AddressInfo } from "node:net";
 import { createServer, type Server } from "node:http";
 import { createHttpApp } from "./app.ts";
 import { ConfigError, loadConfig, type Config } from "./config.ts";
-import { createLogger } from "./core/logger.ts";
+import { createLogger, logFormat } from "./core/logger.ts";
 import { createDb } from "./db/knex.ts";
 import { createMailer } from "./mail/mail.service.ts";
 import { startMailSink, type MailSink } from "./mail/mail.sink.ts";
@@ -26,7 +26,7 @@ try {
   throw err;
 }
 
-const logger = createLogger(config.LOG_LEVEL);
+const logger = createLogger(config.LOG_LEVEL, logFormat({ setting: config.LOG_FORMAT, nodeEnv: config.NODE_ENV, isTTY: Boolean(process.stdout.isTTY) }));
 process.on("unhandledRejection", (reason) => logger.error({ err: reason }, "unhandled promise rejection"));
 process.on("uncaughtException", (err) => {
   logger.fatal({ err }, "uncaught exception; stopping");

@@ -29,6 +29,7 @@ import { createDigestsService } from "./digests/digests.service.ts";
 import { createDocumentsService } from "./documents/documents.service.ts";
 import { createCalendarsService } from "./calendars/calendars.service.ts";
 import { createReportsService } from "./reports/reports.service.ts";
+import { createSearchService } from "./search/search.service.ts";
 
 export interface ServiceDeps {
   db: Db;
@@ -176,6 +177,8 @@ export function createServices(deps: ServiceDeps) {
     unsubscribeMailto: config.MAIL_UNSUBSCRIBE_MAILTO ?? null,
   });
 
+  // Search of a project's pages and facility, as each audience may see them (decision 048).
+  const search = createSearchService({ projects, posts, stories, programme, facility });
   // Monthly investor reports: figures as at a month end from every module above, the PDF kept in the document library.
   const reports = createReportsService({ db, logger, projects, programme, facility, budget, risks, decisions, media, mediaStorage, documents, users, mailer, outbox, audit, publicUrl: config.PUBLIC_URL });
   // Milestone calendars: the public feed and personal feeds behind a revocable token.
@@ -220,6 +223,8 @@ export function createServices(deps: ServiceDeps) {
     digests,
     /** Milestone calendars (RFC 5545): public and personal feeds. */
     calendars,
+    /** Search of a project (GET /api/projects/:slug/search). */
+    search,
     /** Monthly investor reports; the worker sends their notices (`sendNotices`). */
     reports,
     /** The process is stopping: work that requests set going (the subscription mail they queued) starts no more. */

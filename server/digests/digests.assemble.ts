@@ -180,7 +180,8 @@ export function createDigestAssembler(deps: DigestAssemblerDeps) {
       .sort((a, b) => a.date.localeCompare(b.date) || a.name.localeCompare(b.name));
     const health = await programme.health(project.slug, {}, audience);
     const figures: DigestFigures = {
-      percentComplete: milestones.length ? Math.round(health.percentComplete * 10) / 10 : null,
+      // The whole programme's figure, the same for every audience; none while the programme has no milestone.
+      percentComplete: health.baselineCompletion !== null ? Math.round(health.percentComplete * 10) / 10 : null,
       forecastReady: health.forecastCompletion,
       previousPercent: p.previous?.percentComplete ?? null,
       previousForecast: p.previous?.forecastReady ?? null,

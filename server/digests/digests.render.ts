@@ -3,6 +3,7 @@ import { DateTime } from "luxon";
 import { digestPeriodTitle } from "#shared/domain/digest-period.ts";
 import { INDICATIVE_CAUTION } from "#shared/domain/facility.ts";
 import type { MoveKind } from "#shared/domain/programme-changes.ts";
+import { WHOLE_PROGRAMME_NOTE } from "#shared/domain/programme-health.ts";
 import { escapeHtml } from "../mail/mail.layout.ts";
 import type { DigestFacilityItem } from "./digests.facility.ts";
 import { itemClass, uniqueRefs, type DigestItemRef } from "./digests.items.ts";
@@ -154,6 +155,8 @@ function figuresLines(f: DigestFigures): string[] {
     const change = d === null ? "" : d === 0 ? " (unchanged since your last digest)" : ` (${Math.abs(d)} day${Math.abs(d) === 1 ? "" : "s"} ${d > 0 ? "later" : "earlier"} than in your last digest)`;
     lines.push(`Forecast ready for service: ${longDate(f.forecastReady)}${change}`);
   }
+  // The digest lists only its audience's milestones; its figures are the whole programme's.
+  if (lines.length > 0) lines.push(WHOLE_PROGRAMME_NOTE);
   return lines;
 }
 

@@ -5,6 +5,7 @@ import type { PostsService } from "../posts/posts.service.ts";
 import type { StoriesService } from "../stories/stories.service.ts";
 import { absolutizeHtml } from "../posts/rich-text.ts";
 import { element, textElement, xmlAttr, xmlText } from "./xml.ts";
+import { coverHint } from "./preload-hints.ts";
 
 /**
  * The public site's documents that are not the app: the Atom feed of each project (RFC 4287),
@@ -166,18 +167,19 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
         if (!found) return null;
         if ("redirectTo" in found) return { redirect: `/projects/${update[1]}/updates/${found.redirectTo}` };
         const { post, project } = found;
-        return {
-          head: head({
-            title: post.title,
-            description: post.summary || project.description,
-            url: `${base}/projects/${project.slug}/updates/${post.slug}`,
-            type: "article",
-            siteName: project.name,
-            image: previewImage(post.cover),
-            feed: `${base}/feed/${project.slug}.atom`,
-            published: post.publishedAt,
-          }),
-        };
+        const page = head({
+          title: post.title,
+          description: post.summary || project.description,
+          url: `${base}/projects/${project.slug}/updates/${post.slug}`,
+          type: "article",
+          siteName: project.name,
+          image: previewImage(post.cover),
+          feed: `${base}/feed/${project.slug}.atom`,
+          published: post.publishedAt,
+        });
+        // The cover is the page's largest paint: start fetching it with the HTML.
+        const cover = coverHint(post.cover);
+        return { head: cover ? { ...page, tags: `${page.tags}\n    ${cover}` } : page };
       }
       const story = /^\/projects\/([a-z0-9-]{1,100})\/stories\/([a-z0-9-]{1,120})\/?$/.exec(path);
       if (story) {

@@ -124,6 +124,14 @@ export async function listPosts(q: Q, projectId: number, viewer: Viewer, f: List
   return { rows: rows.map(toListRecord), total };
 }
 
+/** The published posts of a project a viewer may read, with their text, newest first (search). */
+export async function listSearchablePosts(q: Q, projectId: number, viewer: Viewer): Promise<Array<{ slug: string; title: string; summary: string; plainText: string }>> {
+  const rows = await visibleTo(q("posts as p").where({ "p.project_id": projectId, "p.status": "published" }), viewer)
+    .orderBy("p.published_at", "desc")
+    .select("p.slug", "p.title", "p.summary", "p.plain_text");
+  return rows.map((r: Record<string, unknown>) => ({ slug: String(r.slug), title: String(r.title), summary: String(r.summary ?? ""), plainText: String(r.plain_text ?? "") }));
+}
+
 /** Published public posts of a project, newest first (feeds). */
 export async function listPublicPosts(q: Q, projectId: number, limit: number): Promise<PostRecord[]> {
   const rows = await visibleTo(q("posts as p").where("p.project_id", projectId), "public")

@@ -40,6 +40,7 @@ import {
   listPublicPosts,
   listPublishedBetween,
   listPublishedSince,
+  listSearchablePosts,
   milestoneLinksOf,
   postRevisionColumns,
   postRevisionContent,
@@ -440,6 +441,9 @@ export function createPostsService(deps: PostsDeps) {
 
     /** Updates of any state that link a milestone (the programme keeps such a milestone on record). */
     linkingMilestone: (milestoneId: number) => postsLinkingMilestone(db, milestoneId),
+
+    /** The published posts of a project a viewer may read, with their text (search). */
+    searchable: (projectId: number, viewer: Viewer) => listSearchablePosts(db, projectId, viewer),
 
     /** Every published public post's address (sitemap). */
     publicAddresses: () => listPublicPostAddresses(db),

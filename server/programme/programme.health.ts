@@ -1,6 +1,6 @@
 import type { Audience } from "#shared/schemas/common.ts";
-import type { CurveResponse, ProgrammeHealthResponse, System } from "#shared/schemas/programme.ts";
-import { audiencesFor } from "#shared/domain/audience.ts";
+import type { CurveResponse, ProgrammeHealthResponse, ShownDrivers, System } from "#shared/schemas/programme.ts";
+import { audiencesFor, type Viewer } from "#shared/domain/audience.ts";
 import { daysBetween } from "#shared/domain/calendar.ts";
 import { projectDrivers, type ProjectDrivers } from "#shared/domain/programme-dependencies.ts";
 import { computeProgrammeHealth, earnedCurve, earnedPercentOfMilestone, milestoneFinish, type MilestoneInput, type ProgrammeHealth } from "#shared/domain/programme-health.ts";
@@ -18,17 +18,51 @@ export type MilestoneAsStood = MilestoneInput & { audience: Audience; system: Sy
 export interface ProgrammeAsStood {
   milestones: MilestoneAsStood[];
   health: ProgrammeHealth;
-  drivers: ProjectDrivers | null;
+  drivers: ShownDrivers | null;
 }
 
 /** A curve of more points than this is a mistake in the query, not a chart. */
 const MAX_CURVE_POINTS = 2_000;
 
+/** The ids of the milestones among these that a viewer may see listed. */
+function visibleIds(milestones: ReadonlyArray<{ id: number; audience: string }>, viewer: Viewer): Set<number> {
+  const audiences = new Set<string>(audiencesFor(viewer));
+  return new Set(milestones.filter((m) => audiences.has(m.audience)).map((m) => m.id));
+}
+
+/**
+ * What drives the forecast completion, as a reader may see it: a run of milestones the reader
+ * may not see is one link worded without their names or dates ("2 milestones not listed here"), the
+ * way the facility words what a block still waits on, so the chain says that something stands
+ * in the way without saying what.
+ */
+export function shownDrivers(drivers: ProjectDrivers | null, visible: ReadonlySet<number>): ShownDrivers | null {
+  if (drivers === null) return null;
+  const chain: ShownDrivers["chain"] = [];
+  let hidden = 0;
+  const flush = () => {
+    if (hidden > 0) chain.push({ id: null, name: hidden === 1 ? "A milestone not listed here" : `${hidden} milestones not listed here`, finish: null });
+    hidden = 0;
+  };
+  for (const link of drivers.chain) {
+    if (visible.has(link.id)) {
+      flush();
+      chain.push(link);
+    } else {
+      hidden += 1;
+    }
+  }
+  flush();
+  return { milestoneId: visible.has(drivers.milestoneId) ? drivers.milestoneId : null, finish: drivers.finish, chain };
+}
+
 /**
  * The programme's figures: its health at a date (percent complete, planned percent, the
  * schedule and cost indices, earned schedule, status counts, what drives completion) and the
- * S-curve of planned against earned percent. A build has one set of headline figures; visitors
- * get no money.
+ * S-curve of planned against earned percent. A build has one set of headline figures, computed
+ * over every milestone in the programme whoever asks (decision 004, issue #14): an audience
+ * narrows what is listed (the per-milestone lines, the names in the driving chain), never the
+ * figures, so no reader is shown a rosier build than the one on site. Visitors get no money.
  */
 export function createHealthUseCases(ctx: ProgrammeContext) {
   const { db, projects } = ctx;
@@ -45,7 +79,8 @@ export function createHealthUseCases(ctx: ProgrammeContext) {
     const state = new Map(records.map((m) => [m.id, toInput(m)]));
     let totalWeight = 0;
     for (const m of records) totalWeight += m.weight;
-    const events = await listProjectEvents(db, view.project.id, view.viewer, {
+    // Every milestone's events: the curve, like the headline, covers the whole programme.
+    const events = await listProjectEvents(db, view.project.id, "staff", {
       from: endOfDateInZone(dates[0]!, tz),
       fields: ["percent_complete", "actual_finish"],
     });
@@ -72,7 +107,9 @@ export function createHealthUseCases(ctx: ProgrammeContext) {
   return {
     async health(slug: string, query: { at?: string }, reader: Reader): Promise<ProgrammeHealthResponse> {
       const view = ctx.viewOf(await projects.get(slug), viewerOf(reader), query.at);
-      const inputs = (await listMilestones(db, view.project.id, view.viewer)).map(toInput);
+      const records = await listMilestones(db, view.project.id, "staff");
+      const inputs = records.map(toInput);
+      const visible = visibleIds(records, view.viewer);
       const costs = view.viewer === "public" ? [] : await listCostActuals(db, view.project.id);
       const health = computeProgrammeHealth({
         milestones: inputs,
@@ -85,7 +122,8 @@ export function createHealthUseCases(ctx: ProgrammeContext) {
       return {
         ...health,
         money: view.viewer === "public" ? null : health.money,
-        drivers: projectDrivers(inputs),
+        milestones: health.milestones.filter((m) => visible.has(m.id)),
+        drivers: shownDrivers(projectDrivers(inputs), visible),
         timeZone: view.project.timeZone,
       };
     },
@@ -93,8 +131,10 @@ export function createHealthUseCases(ctx: ProgrammeContext) {
     /**
      * The programme as it stood at the end of `date` in the project's time zone, for a viewer: the
      * milestones that existed then, with every tracked field's later change undone (newest first),
-     * those in the programme and visible to the viewer then, and the health computed over them at
-     * that date. What a monthly report shows for its month end, however the record moved since.
+     * those in the programme and visible to the viewer then, and the health computed over every
+     * milestone in the programme then (one set of figures for every audience; its per-milestone
+     * lines only for those listed). What a monthly report shows for its month end, however the
+     * record moved since.
      */
     async asStood(projectId: number, date: string, viewer: "investor" | "staff"): Promise<ProgrammeAsStood> {
       const project = await projects.getById(projectId);
@@ -113,18 +153,20 @@ export function createHealthUseCases(ctx: ProgrammeContext) {
         else if (e.field === "audience" && e.from !== null) m.audience = e.from as Audience;
         else if (e.field === "removed") m.removed = e.from === "true";
       }
-      const visible = new Set(audiencesFor(viewer));
-      const milestones = [...state.values()].filter((m) => !m.removed && visible.has(m.audience)).map(({ removed, ...m }) => (void removed, m));
-      const ids = new Set(milestones.map((m) => m.id));
-      for (const m of milestones) m.dependsOn = (m.dependsOn ?? []).filter((id) => ids.has(id));
+      const inProgramme = [...state.values()].filter((m) => !m.removed).map(({ removed, ...m }) => (void removed, m));
+      const all = new Set(inProgramme.map((m) => m.id));
+      const whole = inProgramme.map((m) => ({ ...m, dependsOn: (m.dependsOn ?? []).filter((id) => all.has(id)) }));
+      const visible = visibleIds(inProgramme, viewer);
+      const milestones = inProgramme.filter((m) => visible.has(m.id)).map((m) => ({ ...m, dependsOn: (m.dependsOn ?? []).filter((id) => visible.has(id)) }));
       const costs = await listCostActuals(db, projectId);
-      const health = computeProgrammeHealth({ milestones, at: date, settings: settingsOf(project), costActuals: costs.length > 0 ? costs.filter((c) => c.periodEnd <= date) : undefined, currency: project.currency });
-      return { milestones, health, drivers: projectDrivers(milestones) };
+      const health = computeProgrammeHealth({ milestones: whole, at: date, settings: settingsOf(project), costActuals: costs.length > 0 ? costs.filter((c) => c.periodEnd <= date) : undefined, currency: project.currency });
+      return { milestones, health: { ...health, milestones: health.milestones.filter((m) => visible.has(m.id)) }, drivers: shownDrivers(projectDrivers(whole), visible) };
     },
 
     async curve(slug: string, query: { from?: string; to?: string; step?: number }, reader: Reader): Promise<CurveResponse> {
       const view = ctx.viewOf(await projects.get(slug), viewerOf(reader));
-      const records = await listMilestones(db, view.project.id, view.viewer);
+      // The whole programme for every reader: today's earned point is the headline percent complete.
+      const records = await listMilestones(db, view.project.id, "staff");
       const inputs = records.map(toInput);
       const at = view.at;
       if (inputs.length === 0) return { at, points: [] };

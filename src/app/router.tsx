@@ -86,11 +86,14 @@ function routes(qc: QueryClient): RouteObject[] {
         page(qc, "projects/:slug/updates", async () => ({ Component: (await site()).UpdatesPage, loader: (await site()).updatesLoader }), { what: "list of updates" }),
         page(qc, "projects/:slug/updates/:postSlug", async () => ({ Component: (await site()).PostPage, loader: (await site()).postLoader }), { what: "update" }),
         page(qc, "projects/:slug/gallery", async () => ({ Component: (await site()).GalleryPage, loader: (await site()).galleryLoader }), { what: "gallery" }),
-        page(qc, "projects/:slug/search", async () => ({ Component: (await site()).SearchPage })),
+        page(qc, "projects/:slug/search", async () => {
+          const m = await import("../features/public-site/search-routes.tsx");
+          return { Component: m.SearchPage, loader: m.searchLoader };
+        }, { what: "project" }),
         page(qc, "projects/:slug/stories/:storySlug", async () => ({ Component: (await site()).StoryPage, loader: (await site()).storyLoader }), { what: "photo story" }),
         page(qc, "projects/:slug/timeline", async () => {
-          const m = await import("../features/programme/public-routes.tsx");
-          return { Component: m.PublicTimelinePage, loader: m.publicTimelineLoader };
+          const m = await import("./pages/timeline-page.tsx");
+          return { Component: m.TimelinePage, loader: m.timelinePageLoader };
         }, { what: "project" }),
         page(qc, "projects/:slug/facility", async () => {
           const m = await import("../features/public-site/facility-routes.tsx");

@@ -13,19 +13,14 @@
  * (304s, what a CDN in front asks). A benchmark, not a test: it never fails on a missed target.
  */
 import { randomBytes } from "node:crypto";
-import { mkdtempSync, rmSync } from "node:fs";
 import { createRequire } from "node:module";
 import { createServer, type Server } from "node:http";
 import type { AddressInfo } from "node:net";
-import { availableParallelism, cpus, tmpdir } from "node:os";
-import path from "node:path";
+import { availableParallelism, cpus } from "node:os";
 import express from "express";
-import { pino } from "pino";
-import { createPlumbline } from "../helpers/plumbline.ts";
-import { loadConfig } from "../../server/config.ts";
-import { createDb, dropDatabase, ensureDatabase } from "../../server/db/knex.ts";
+import { createDb, ensureDatabase } from "../../server/db/knex.ts";
+import { benchApp, benchDatabase, runThenDrop } from "./bench-database.ts";
 import { migrateLatest } from "../../server/db/migrations.ts";
-import { createMailer } from "../../server/mail/mail.service.ts";
 import { plainTextOf, renderRichText } from "../../server/posts/rich-text.ts";
 import { seedProgramme } from "../../server/seed/programme.seed.ts";
 import type { RichTextDoc } from "../../src/shared/schemas/rich-text.ts";
@@ -60,15 +55,8 @@ type Autocannon = (opts: {
 }) => Promise<AutocannonResult>;
 const autocannon = createRequire(import.meta.url)("autocannon") as Autocannon;
 
-const base = process.env.DATABASE_URL;
-if (!base) {
-  process.stderr.write("DATABASE_URL is not set (npm run bench provides it)\n");
-  process.exit(1);
-}
-const url = new URL(base);
-url.pathname = `/plumbline_bench_${randomBytes(4).toString("hex")}`;
-const databaseUrl = url.toString();
-const mediaDir = mkdtempSync(path.join(tmpdir(), "plumbline-bench-media-"));
+const bench = benchDatabase();
+const { databaseUrl } = bench;
 const out = (s: string) => process.stdout.write(`${s}\n`);
 
 // A small deterministic generator, so every run seeds the same data.
@@ -215,27 +203,14 @@ const PAGE_CALLS = [
 ];
 
 async function main(): Promise<void> {
-  out(`public pages: seeding ${POSTS.toLocaleString("en-GB")} updates and ${PHOTOS.toLocaleString("en-GB")} photos into ${url.pathname.slice(1)} …`);
+  out(`public pages: seeding ${POSTS.toLocaleString("en-GB")} updates and ${PHOTOS.toLocaleString("en-GB")} photos into ${bench.name} …`);
   await ensureDatabase(databaseUrl);
   const t0 = Date.now();
   await seedBench();
   out(`  seeded in ${((Date.now() - t0) / 1000).toFixed(1)} s`);
 
-  const config = loadConfig({
-    // --uncached measures the app without its visitors' answer cache (which runs in production only).
-    NODE_ENV: args.includes("--uncached") ? "development" : "production",
-    DATABASE_URL: databaseUrl,
-    SESSION_SECRET: "bench-secret-not-for-production-0123456789",
-    LOG_LEVEL: "silent",
-    PUBLIC_URL: "http://plumbline.bench",
-    SMTP_URL: "smtp://127.0.0.1:9",
-    MEDIA_DIR: mediaDir,
-    SERVE_CLIENT: "false",
-  });
-  const logger = pino({ level: "silent" });
-  const db = createDb(databaseUrl);
-  const mailer = createMailer({ smtpUrl: "smtp://127.0.0.1:9", from: config.MAIL_FROM, mode: "smtp", logger });
-  const plumbline = createPlumbline({ db, config, logger, mailer });
+  // --uncached measures the app without its visitors' answer cache (which runs in production only).
+  const { plumbline, stop } = benchApp(bench, { NODE_ENV: args.includes("--uncached") ? "development" : "production", SERVE_CLIENT: "false" });
   const real = await listen(plumbline.app);
 
   // The same bytes, from memory, by a bare Express handler: the ceiling for this machine.
@@ -306,21 +281,7 @@ async function main(): Promise<void> {
 
   await new Promise<void>((r) => real.server.close(() => r()));
   await new Promise<void>((r) => bareServer.server.close(() => r()));
-  await plumbline.close();
-  mailer.close();
-  // Let background sweeps started by the app finish their current query before the pool closes.
-  await new Promise((r) => setTimeout(r, 500));
-  await db.destroy();
+  await stop();
 }
 
-try {
-  await main();
-} finally {
-  if (!KEEP) {
-    await dropDatabase(databaseUrl);
-    rmSync(mediaDir, { recursive: true, force: true });
-  } else {
-    out(`  kept ${url.pathname.slice(1)} and ${mediaDir}`);
-  }
-}
-process.exit(0);
+await runThenDrop(bench, { keep: KEEP, out }, main);

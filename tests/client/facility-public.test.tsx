@@ -1,15 +1,17 @@
 import { fireEvent, screen, within } from "@testing-library/react";
 import { describe, expect, it } from "vitest";
-import type { BlockAnswer, FacilityAnswer, SystemAnswer, UnitAnswer } from "../../src/shared/schemas/facility.ts";
+import type { FacilityAnswer, SystemAnswer, UnitAnswer } from "../../src/shared/schemas/facility.ts";
 import { INDICATIVE_CAUTION } from "../../src/shared/domain/facility.ts";
 import { BlockCard } from "../../src/features/public-site/components/facility-block-card.tsx";
 import { KeyFacts } from "../../src/features/public-site/components/facility-key-facts.tsx";
 import { SystemUnits } from "../../src/features/public-site/components/facility-units.tsx";
-import { firstOfMonthTicks, rampPoints } from "../../src/features/public-site/components/facility-ramp-chart.tsx";
+import { rampPoints } from "../../src/features/public-site/components/facility-ramp-chart.tsx";
+import { firstOfMonthTicks } from "../../src/features/public-site/components/month-ticks.ts";
 import { publicPart } from "../../src/features/public-site/facility-routes.tsx";
 import { toDayNumber } from "../../src/shared/domain/calendar.ts";
 import { laterInWords, readyInWords } from "../../src/features/public-site/facility-words.ts";
 import { aboutLine, EnquiryForm } from "../../src/features/enquiries/components/enquiry-form.tsx";
+import { block } from "./facility-fixtures.ts";
 import { renderWithApp } from "./render.tsx";
 
 // Invented figures in the shape of the demo (Aldermere Phase 2); the answers the route sends.
@@ -26,30 +28,6 @@ function unit(id: number, stage: UnitAnswer["stage"], available: boolean, train 
     stage,
     available,
     version: 1,
-  };
-}
-
-function block(over: Partial<BlockAnswer> = {}): BlockAnswer {
-  return {
-    id: 1,
-    name: "Hall 2A",
-    racks: 48,
-    itKw: 480,
-    maxKwPerRack: 10,
-    coolingApproach: "Air-cooled chillers with free cooling",
-    containment: "hot_aisle",
-    audience: "public",
-    stage: "Stage 1",
-    notes: "",
-    dependsOn: [11],
-    baselineReadyDate: "2027-04-02",
-    forecastReadyDate: "2027-05-14",
-    readyForService: false,
-    slipWorkingDays: 30,
-    missing: ["Integrated systems test (forecast 14 May 2027)", "Cooling at N: 3 of 4 units carry load"],
-    systemIds: [5],
-    version: 1,
-    ...over,
   };
 }
 

@@ -2,6 +2,7 @@ import { QueryClient, QueryClientProvider } from "@tanstack/react-query";
 import { act, render, screen } from "@testing-library/react";
 import { createMemoryRouter, RouterProvider, type LoaderFunction } from "react-router-dom";
 import { afterEach, describe, expect, it, vi } from "vitest";
+import { WHOLE_PROGRAMME_NOTE } from "../../src/shared/domain/programme-health.ts";
 import { RouteErrorPage } from "../../src/app/pages/misc-pages.tsx";
 import { baselinesQueryOptions, healthQueryOptions, milestonesQueryOptions, programmeProjectQueryOptions, REMOVED_ONLY } from "../../src/features/programme/api.ts";
 import { PublicTimelinePage, publicTimelineLoader } from "../../src/features/programme/public-routes.tsx";
@@ -56,22 +57,27 @@ async function open(path: string, loader: RouteLoader, element: React.ReactEleme
 }
 
 describe("the public timeline's loader", () => {
-  it("primes the project and its public milestones, so the page shows them without a loading state of its own", async () => {
+  it("primes the project, its public milestones and the whole programme's figures, so the page shows them without a loading state of its own", async () => {
     const asked = answer({
       [`/api/projects/${SLUG}`]: { status: 200, body: PROJECT },
       [`/api/projects/${SLUG}/milestones?audience=public`]: { status: 200, body: [MILESTONE] },
+      [`/api/projects/${SLUG}/health`]: { status: 200, body: { at: "2026-01-05", percentComplete: 56.4, forecastCompletion: "2099-06-30" } },
     });
     await open("/projects/:slug/timeline", publicTimelineLoader, <PublicTimelinePage />, `/projects/${SLUG}/timeline`, "project");
     await screen.findByRole("heading", { name: "When each part will be ready" });
     expect(screen.getByRole("heading", { name: "Hall 2A ready for service" })).toBeTruthy();
     expect(screen.queryByRole("status")).toBeNull();
-    expect([...asked].sort()).toEqual([`/api/projects/${SLUG}`, `/api/projects/${SLUG}/milestones?audience=public`]);
+    // The headline is the whole programme's, and the page says so in one line beside it.
+    expect(screen.getByTestId("timeline-headline").textContent).toContain("56%");
+    expect(screen.getByTestId("whole-programme-note").textContent).toBe(WHOLE_PROGRAMME_NOTE);
+    expect([...asked].sort()).toEqual([`/api/projects/${SLUG}`, `/api/projects/${SLUG}/health`, `/api/projects/${SLUG}/milestones?audience=public`]);
   });
 
   it("when the project is not there, ends in the route's error element naming what is missing, with a way back", async () => {
     answer({
       "/api/projects/no-such-build": { status: 404, body: { error: { code: "not_found", message: "That project was not found." } } },
       "/api/projects/no-such-build/milestones?audience=public": { status: 404, body: { error: { code: "not_found", message: "That project was not found." } } },
+      "/api/projects/no-such-build/health": { status: 404, body: { error: { code: "not_found", message: "That project was not found." } } },
     });
     await open("/projects/:slug/timeline", publicTimelineLoader, <PublicTimelinePage />, "/projects/no-such-build/timeline", "project");
     await screen.findByRole("heading", { name: "No such project" });

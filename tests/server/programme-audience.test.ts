@@ -68,7 +68,7 @@ async function programmeWithoutInternal() {
 }
 
 describe("audience: internal milestones", () => {
-  it("never appear in an investor's or a visitor's response and never change their figures", async () => {
+  it("are never listed or named to an investor or a visitor, yet count in everyone's headline figures", async () => {
     const { p, pub } = await programmeWithoutInternal();
     const before = { investor: await everythingSeenBy(investor, p.slug, pub.id), visitor: await everythingSeenBy(visitor, p.slug, pub.id), staff: await everythingSeenBy(lead, p.slug, pub.id) };
 
@@ -90,15 +90,32 @@ describe("audience: internal milestones", () => {
     await patch(pub.id, { version: pubNow.version, dependsOn: [...pubNow.dependsOn, secret.id] });
 
     const after = { investor: await everythingSeenBy(investor, p.slug, pub.id), visitor: await everythingSeenBy(visitor, p.slug, pub.id), staff: await everythingSeenBy(lead, p.slug, pub.id) };
-    expect(after.investor).toEqual(before.investor);
-    expect(after.visitor).toEqual(before.visitor);
-    for (const seen of [after.investor, after.visitor]) {
-      expect(JSON.stringify(seen)).not.toContain("Mantrap");
-      expect(JSON.stringify(seen)).not.toContain("Secure zoning");
+    // What is listed does not move for those who may not see the internal milestone.
+    for (const who of ["investor", "visitor"] as const) {
+      const { health: _h, curve: _c, ...listedAfter } = after[who];
+      const { health: _hb, curve: _cb, ...listedBefore } = before[who];
+      expect(listedAfter).toEqual(listedBefore);
+      expect(JSON.stringify(after[who])).not.toContain("Mantrap");
+      expect(JSON.stringify(after[who])).not.toContain("Secure zoning");
+      expect(after[who].health.milestones.map((m: { id: number }) => m.id)).not.toContain(secret.id);
     }
-    // The same programme as staff see it did change, so the comparison above could fail.
-    expect(after.staff.health.percentComplete).not.toBe(before.staff.health.percentComplete);
+    // One build, one set of figures: everyone's headline moved with the internal milestone, to the same values.
+    // Weights 3 × 45 % + 2 × 15 % + 10 × 25 % over 15.
+    expect(after.staff.health.percentComplete).toBeCloseTo((3 * 45 + 2 * 15 + 10 * 25) / 15, 10);
+    expect(after.visitor.health.percentComplete).not.toBeCloseTo(before.visitor.health.percentComplete, 5);
+    for (const who of ["investor", "visitor"] as const) {
+      for (const k of ["percentComplete", "plannedPercent", "spi", "forecastCompletion", "baselineCompletion", "earnedScheduleCompletion", "counts"] as const) {
+        expect(after[who].health[k], `${who} ${k}`).toEqual(after.staff.health[k]);
+      }
+      expect(after[who].health.earnedSchedule.spiT).toEqual(after.staff.health.earnedSchedule.spiT);
+      expect(after[who].curve).toEqual(after.staff.curve);
+    }
     expect(after.staff.health.forecastCompletion).toBe("2028-02-11");
+    // The driving chain says something internal stands in the way, without its name or date.
+    expect(after.staff.health.drivers.chain.map((l: { name: string }) => l.name)).toEqual(["Mantrap interlocks tested"]);
+    for (const who of ["investor", "visitor"] as const) {
+      expect(after[who].health.drivers).toEqual({ milestoneId: null, finish: "2028-02-11", chain: [{ id: null, name: "A milestone not listed here", finish: null }] });
+    }
     expect(after.staff.drivers.map((l: { name: string }) => l.name)).toEqual(["Hall 2A ready for service", "Mantrap interlocks tested"]);
     expect(after.staff.list.find((m: { id: number }) => m.id === pub.id)!.dependsOn).toContain(secret.id);
     expect(after.staff.changes.some((e: { milestoneId: number }) => e.milestoneId === secret.id)).toBe(true);
@@ -128,9 +145,16 @@ describe("audience: internal milestones", () => {
     // The visitor's view of the public milestone does not mention the investor-only predecessor.
     const [seen] = (await visitor.agent.get(`/api/projects/${p.slug}/milestones`).expect(200)).body as Milestone[];
     expect(seen!.dependsOn).toEqual([]);
+    // The visitor's health lists the public milestone's line only, but its percent covers both: (3 × 45 + 2 × 15) / 5.
     const health = (await visitor.agent.get(`/api/projects/${p.slug}/health`).expect(200)).body;
     expect(health.milestones.map((m: { id: number }) => m.id)).toEqual([pub.id]);
-    expect(health.percentComplete).toBeCloseTo(15, 10);
+    expect(health.percentComplete).toBeCloseTo(33, 10);
+    // The investor-only predecessor drives the forecast; the visitor is told that, not its name.
+    expect(health.drivers.chain).toEqual([
+      { id: pub.id, name: "Hall 2A ready for service", finish: "2027-04-16" },
+      { id: null, name: "A milestone not listed here", finish: null },
+    ]);
+    expect(JSON.stringify(health)).not.toContain("UPS modules");
   });
 });
 

@@ -133,13 +133,31 @@ describe("the demo programme (Aldermere Campus Phase 2)", () => {
     expect(curve.points.at(-1).plannedPercent).toBeCloseTo(100, 10);
   });
 
-  it("shows the public timeline's figures over public milestones only, without money", async () => {
+  it("gives staff, an investor and a visitor the same headline figures, over the whole programme", async () => {
     const visitor = await newClient(t);
+    const investor = await signIn(t, DEMO.investor);
+    const all = (await get(lead, `/api/projects/${SLUG}/milestones`)) as Milestone[];
+    const internal = all.filter((m) => m.audience === "internal");
+    expect(internal.length).toBeGreaterThanOrEqual(2);
+    const seen = { staff: await get(lead, `/api/projects/${SLUG}/health`), investor: await get(investor, `/api/projects/${SLUG}/health`), visitor: await get(visitor, `/api/projects/${SLUG}/health`) };
+    for (const who of ["investor", "visitor"] as const) {
+      expect(seen[who].percentComplete, who).toBe(seen.staff.percentComplete);
+      expect(seen[who].spi, who).toBe(seen.staff.spi);
+      expect(seen[who].earnedSchedule.spiT, who).toBe(seen.staff.earnedSchedule.spiT);
+      expect(seen[who].forecastCompletion, who).toBe(seen.staff.forecastCompletion);
+      // The internal milestones count in the figures but are never named, in the lines or the driving chain.
+      const text = JSON.stringify(seen[who]);
+      for (const m of internal) expect(text, `${who} sees ${m.name}`).not.toContain(m.name);
+      expect(seen[who].milestones.map((m: { id: number }) => m.id)).not.toContain(internal[0]!.id);
+    }
+    // Visitors get no money; what they list is the public milestones, without budgets.
     const list = (await get(visitor, `/api/projects/${SLUG}/milestones`)) as Milestone[];
     expect(list.every((m) => m.audience === "public" && m.budget === null)).toBe(true);
-    const h = await get(visitor, `/api/projects/${SLUG}/health`);
-    expect(h.money).toBeNull();
-    expect(h.milestones.length).toBe(list.length);
+    expect(seen.visitor.money).toBeNull();
+    expect(seen.visitor.milestones.length).toBe(list.length);
+    // The figure is the whole programme's: recomputed here from every milestone by weight.
+    const weighted = all.reduce((sum, m) => sum + m.weight * (m.actualFinish !== null ? 100 : m.percentComplete), 0) / all.reduce((sum, m) => sum + m.weight, 0);
+    expect(seen.visitor.percentComplete).toBeCloseTo(weighted, 6);
   });
 
   it("is seeded once: seeding again changes nothing", async () => {

@@ -467,6 +467,10 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: "/projects/aldermere-phase-2/updates/no-such-update", expect: all(200) },
   { method: "get", path: "/projects/aldermere-phase-2/stories/no-such-story", expect: all(200) },
   { method: "get", path: "/api/projects/aldermere-phase-2/gallery", expect: all(200) },
+  // Search (decision 048): open to every caller, each answered by audience; q is required.
+  { method: "get", path: `${DEMO_PROGRAMME}/search?q=HD-1`, expect: all(200) },
+  { method: "get", path: `${DEMO_PROGRAMME}/search`, expect: all(400) },
+  { method: "get", path: "/api/projects/no-such-project/search?q=HD-1", expect: all(404) },
   // Facility (decision 029): the fixed read for everyone by audience; another day for staff; writes for leads and admins.
   { method: "get", path: `${DEMO_PROGRAMME}/facility`, expect: all(200) },
   { method: "get", path: "/api/projects/no-such-project/facility", expect: all(404) },

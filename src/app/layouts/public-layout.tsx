@@ -27,7 +27,9 @@ export function PublicLayout() {
           </nav>
         </div>
       </header>
-      <main id="main" className="flex-1">
+      {/* At least a screen tall: the footer starts below the fold, so a page that fills in as its
+          data and photos arrive never pushes it down in view (no layout shift). */}
+      <main id="main" className="min-h-svh flex-1">
         <PageOutlet />
       </main>
       <footer className="border-t border-rule">

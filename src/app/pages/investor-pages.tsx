@@ -2,6 +2,7 @@ import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
 import type { ReactNode } from "react";
 import { Link, NavLink, useParams, useSearchParams } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
+import { WHOLE_PROGRAMME_NOTE } from "#shared/domain/programme-health.ts";
 import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
 import { budgetChangesQueryOptions, budgetPositionQueryOptions } from "../../features/budget/api.ts";
 import { CalendarFeedPanel } from "../../features/calendars/calendar-feed-panel.tsx";
@@ -16,6 +17,7 @@ import { InvestorProgramme } from "../../features/programme/components/investor-
 import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
 import { projectQueryOptions, projectsQueryOptions } from "../../features/projects/api.ts";
 import { InvestorFacility } from "../../features/public-site/components/facility-investor.tsx";
+import { ReadinessAtAGlance } from "../../features/public-site/components/readiness-glance.tsx";
 import { riskSummaryQueryOptions, risksQueryOptions } from "../../features/risks/api.ts";
 import { InvestorRisks } from "../../features/risks/investor-risks.tsx";
 import { idParam, INVESTOR_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
@@ -85,7 +87,7 @@ export function InvestorHomePage() {
   const role = useMe().data?.role;
   return (
     <>
-      <PageHeader sheet="Investor room" title="Your projects" description="Programme health, capacity, risks, decisions, cost and documents of the builds you follow. Figures are computed over the milestones shared with investors." />
+      <PageHeader sheet="Investor room" title="Your projects" description={`Programme health, capacity, risks, decisions, cost and documents of the builds you follow. ${WHOLE_PROGRAMME_NOTE}`} />
       <ul className="grid gap-4 lg:grid-cols-2">
           {projects.data.map((p) => (
             <li key={p.id} className="flex flex-col gap-3 border border-rule bg-sheet p-5">
@@ -130,6 +132,7 @@ export function InvestorProjectPage() {
         }
       />
       <div className="flex flex-col gap-6">
+        <ReadinessAtAGlance slug={slug} />
         <InvestorProgramme slug={slug} currency={project.data.currency} />
         <InvestorFacility slug={slug} />
         <CalendarFeedPanel slug={slug} />

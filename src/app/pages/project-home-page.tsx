@@ -6,16 +6,19 @@ import { StatusMark } from "../../components/ui/status-mark.tsx";
 import { milestonesQueryOptions, useHealth, useMilestones } from "../../features/programme/api.ts";
 import { formatMonthYear } from "../../features/programme/dates.ts";
 import { describeDates } from "../../features/programme/public-routes.tsx";
+import { WholeProgrammeNote } from "../../features/programme/components/whole-programme-note.tsx";
 import { describePublicProgress, slipInWords } from "../../features/programme/words.ts";
 import { projectQueryOptions } from "../../features/projects/api.ts";
 import { SiteVisitRules } from "../../features/projects/components/site-visit-rules.tsx";
 import { HeroPhoto, LatestUpdates, StoryList } from "../../features/public-site/components/latest-updates.tsx";
 import { ProjectNav } from "../../features/public-site/components/project-nav.tsx";
+import { ReadinessAtAGlance } from "../../features/public-site/components/readiness-glance.tsx";
+import { facilityReadQueryOptions } from "../../features/public-site/facility-api.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
 
 // The milestones are asked for as the public sees them, so a signed-in member of staff
 // reading the public page sees the same list as a visitor. (Percent complete comes from
-// the health figures, which the server computes over what the caller may see.)
+// the health figures, which the server computes over the whole programme for every caller.)
 const PUBLIC = { audience: "public" } as const;
 
 /** Percent complete and the forecast finish of the whole phase, in plain words. */
@@ -29,6 +32,7 @@ function ProgressInWords({ slug, milestones }: { slug: string; milestones: Miles
           <span className="text-ink-soft">of the work is complete, weighted by the size of each milestone.</span>
         </p>
       ) : null}
+      {health.data ? <WholeProgrammeNote /> : null}
       <p className="text-[0.95rem]" data-testid="public-progress">
         {describePublicProgress(milestones)}
       </p>
@@ -103,7 +107,7 @@ function FollowLinks({ slug }: { slug: string }) {
 /** The project must be there; the programme is asked for alongside and may fail on its own. */
 export const projectHomeLoader: RouteLoader = (qc) => async ({ params }) => {
   const slug = params.slug ?? "";
-  await Promise.all([qc.ensureQueryData(projectQueryOptions(slug)), qc.prefetchQuery(milestonesQueryOptions(slug, PUBLIC))]);
+  await Promise.all([qc.ensureQueryData(projectQueryOptions(slug)), qc.prefetchQuery(milestonesQueryOptions(slug, PUBLIC)), qc.prefetchQuery(facilityReadQueryOptions(slug))]);
   return null;
 };
 
@@ -120,6 +124,8 @@ export function ProjectHomePage() {
       </p>
       <h1 className="mt-1 text-3xl font-semibold tracking-tight sm:text-4xl">{p.name}</h1>
       <ProjectNav slug={p.slug} />
+      {/* "Ready when?" is what a prospect comes for: it comes first, above the photograph (decision 050). */}
+      <ReadinessAtAGlance slug={p.slug} publicOnly detailsHref={`/projects/${p.slug}/facility`} className="mt-4" />
       <HeroPhoto slug={p.slug} />
       <p className="mt-6 max-w-3xl font-serif text-lg leading-relaxed">{p.description}</p>
       <div className="mt-8 grid gap-6 md:grid-cols-[2fr_1fr]">

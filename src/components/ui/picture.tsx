@@ -1,4 +1,5 @@
 import { useCallback, useState, type CSSProperties } from "react";
+import { srcSetOf } from "#shared/domain/picture-sizes.ts";
 
 /** One encoded derivative of a photo, as the media service describes it. */
 export interface PictureVariant {
@@ -29,15 +30,8 @@ export interface PictureData {
 
 const MIME = { avif: "image/avif", webp: "image/webp", jpeg: "image/jpeg" } as const;
 
-/** "a.avif 320w, b.avif 640w": narrowest first, one entry per width. */
-export function srcSetOf(variants: readonly PictureVariant[]): string {
-  const byWidth = new Map<number, PictureVariant>();
-  for (const v of variants) if (!byWidth.has(v.width)) byWidth.set(v.width, v);
-  return [...byWidth.values()]
-    .sort((a, b) => a.width - b.width)
-    .map((v) => `${v.url} ${v.width}w`)
-    .join(", ");
-}
+// Shared with the server's preload hints, which must write the very same srcset.
+export { srcSetOf };
 
 /**
  * The `src` for browsers that read neither `srcset` nor `<source>`: the JPEG nearest

@@ -1,11 +1,13 @@
 import { useSuspenseQuery } from "@tanstack/react-query";
+import type { ReactNode } from "react";
 import { Link, useParams } from "react-router-dom";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { milestoneFinish } from "#shared/domain/programme-health.ts";
 import { StatusIcon, STATUS_LOOK, StatusMark } from "../../components/ui/status-mark.tsx";
 import type { RouteLoader } from "../../lib/loaders.ts";
-import { milestonesQueryOptions, programmeProjectQueryOptions } from "./api.ts";
-import { formatLongDate, todayIn } from "./dates.ts";
+import { healthQueryOptions, milestonesQueryOptions, programmeProjectQueryOptions } from "./api.ts";
+import { WholeProgrammeNote } from "./components/whole-programme-note.tsx";
+import { formatLongDate, formatMonthYear, todayIn } from "./dates.ts";
 import { countInWords, describePublicProgress, slipInWords } from "./words.ts";
 
 // Public pages: public milestones only (asked for explicitly, so a signed-in member of
@@ -25,7 +27,7 @@ export function describeDates(m: Milestone): string {
 function TimelineItem({ m }: { m: Milestone }) {
   const look = STATUS_LOOK[m.status];
   return (
-    <li className="relative pb-6 pl-8 last:pb-0" data-testid="timeline-item" data-milestone-id={m.id}>
+    <li id={`milestone-${m.id}`} className="relative scroll-mt-20 pb-6 pl-8 last:pb-0" data-testid="timeline-item" data-milestone-id={m.id}>
       <span aria-hidden className="absolute left-[5px] top-1.5 bottom-0 w-px bg-rule-strong" />
       <span aria-hidden className="absolute left-0 top-1 flex size-3 items-center justify-center bg-paper">
         <StatusIcon status={m.status} size={12} />
@@ -93,15 +95,16 @@ function countsInWords(milestones: Milestone[]): string {
 /** `/projects/:slug/timeline`: the project and its public milestones; an unknown project is the route's error element. */
 export const publicTimelineLoader: RouteLoader = (qc) => async ({ params }) => {
   const slug = params.slug ?? "";
-  await Promise.all([qc.ensureQueryData(programmeProjectQueryOptions(slug)), qc.ensureQueryData(milestonesQueryOptions(slug, PUBLIC))]);
+  await Promise.all([qc.ensureQueryData(programmeProjectQueryOptions(slug)), qc.ensureQueryData(milestonesQueryOptions(slug, PUBLIC)), qc.ensureQueryData(healthQueryOptions(slug))]);
   return null;
 };
 
-/** The public programme timeline of a project. */
-export function PublicTimelinePage() {
+/** The public programme timeline of a project; `glance` is what the app shows under the heading (each block's readiness). */
+export function PublicTimelinePage({ glance }: { glance?: ReactNode } = {}) {
   const { slug = "" } = useParams();
   const p = useSuspenseQuery(programmeProjectQueryOptions(slug)).data;
   const list = useSuspenseQuery(milestonesQueryOptions(slug, PUBLIC)).data;
+  const health = useSuspenseQuery(healthQueryOptions(slug)).data;
   const today = todayIn(p.timeZone);
   return (
     <div className="mx-auto max-w-3xl px-4 py-10">
@@ -112,10 +115,19 @@ export function PublicTimelinePage() {
         · Timeline
       </p>
       <h1 className="mt-1 text-3xl font-semibold tracking-tight">When each part will be ready</h1>
+      {glance}
       <p className="mt-4 text-lg leading-relaxed" data-testid="public-summary">
         {describePublicProgress(list)}
       </p>
       {list.length > 0 ? <p className="mt-1 text-sm text-ink-soft">Of the published milestones: {countsInWords(list)}.</p> : null}
+      {health.forecastCompletion ? (
+        <div className="mt-3" data-testid="timeline-headline">
+          <p className="text-[0.95rem]">
+            The build is <span className="tabular font-semibold">{Math.round(health.percentComplete)}%</span> complete; the last milestone is forecast for {formatMonthYear(health.forecastCompletion)}.
+          </p>
+          <WholeProgrammeNote />
+        </div>
+      ) : null}
       <p className="mt-1 text-sm text-ink-soft">
         Dates are the operator's current forecasts and change as work goes on. Days are counted in {p.timeZone.replace("_", " ")}.
       </p>

@@ -1,11 +1,11 @@
 import { useEffect, useMemo, useState, type FormEvent, type ReactNode } from "react";
 import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
-import { Link, Navigate, useLocation, useParams, useSearchParams, type LoaderFunctionArgs } from "react-router-dom";
+import { Link, Navigate, useParams, useSearchParams, type LoaderFunctionArgs } from "react-router-dom";
 import type { MediaPicture, PostDetail, PostRedirect, PostTag } from "#shared/schemas/posts.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import type { StoryDetail, StoryItem } from "#shared/schemas/stories.ts";
+import { POST_COVER_SIZES } from "#shared/domain/picture-sizes.ts";
 import { AudienceMark } from "../../components/ui/audience-mark.tsx";
-import { Button } from "../../components/ui/button.tsx";
 import { CompareSlider } from "../../components/ui/compare-slider.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
 import { Lightbox, type LightboxItem } from "../../components/ui/lightbox.tsx";
@@ -17,6 +17,7 @@ import { MilestonesThenNow } from "./components/milestone-then-now.tsx";
 import { PostBody } from "./components/post-body.tsx";
 import { PostCard } from "./components/post-card.tsx";
 import { ProjectMasthead } from "./components/project-nav.tsx";
+import { SearchBox } from "./components/search-box.tsx";
 import { useTitle } from "./use-title.ts";
 import { capturedOn, dayOf, monthWords, SYSTEM_TAGS, tagFilter, tagWord } from "./words.ts";
 
@@ -147,23 +148,7 @@ export function UpdatesPage() {
       <h1 className="mt-6 text-3xl font-semibold tracking-tight">{about ? `Updates about ${about}` : q ? `Updates mentioning “${q}”` : "Updates from the site"}</h1>
       <p className="mt-2 max-w-2xl text-ink-soft">What changed on site, in the operator's words, with photographs from the site walks.</p>
       <div className="mt-6 flex flex-col gap-4 border border-rule bg-sheet p-4 sm:flex-row sm:items-end">
-        <form role="search" onSubmit={onSearch} className="flex min-w-0 flex-1 items-end gap-2">
-          <div className="flex min-w-0 flex-1 flex-col gap-1">
-            <label htmlFor="update-search" className="text-sm font-medium">
-              Search updates
-            </label>
-            <input
-              id="update-search"
-              type="search"
-              value={draft}
-              onChange={(e) => setDraft(e.target.value)}
-              placeholder="e.g. chillers, generator, Hall 2A"
-              maxLength={200}
-              className="w-full rounded-sm border border-rule-strong bg-sheet px-3 py-2 text-[0.95rem] placeholder:text-ink-faint focus:border-ink"
-            />
-          </div>
-          <Button type="submit">Search</Button>
-        </form>
+        <SearchBox id="update-search" label="Search updates" value={draft} onChange={setDraft} onSubmit={onSearch} placeholder="e.g. chillers, generator, Hall 2A" className="flex-1" />
         <div className="sm:w-56">
           <SelectField label="Topic" value={tag ?? ""} onChange={(e) => set({ tag: e.target.value || undefined })} options={tagChoices} />
         </div>
@@ -194,13 +179,6 @@ export function UpdatesPage() {
       </div>
     </Frame>
   );
-}
-
-/** `/projects/:slug/search?q=…`: search lives on the updates page (MariaDB full-text over what the reader may see). */
-export function SearchPage() {
-  const { slug = "" } = useParams();
-  const { search } = useLocation();
-  return <Navigate to={`/projects/${slug}/updates${search}`} replace />;
 }
 
 /** The site path an API redirect names, whether it gives a page path, an API path or a bare slug. */
@@ -241,7 +219,7 @@ function PostArticle({ post, slug, zone }: { post: PostDetail; slug: string; zon
       </header>
       {post.cover ? (
         <figure className="mt-6">
-          <Picture picture={post.cover} eager sizes="(min-width: 800px) 768px, calc(100vw - 2rem)" />
+          <Picture picture={post.cover} eager sizes={POST_COVER_SIZES} />
           {post.cover.caption ? <figcaption className="mt-2 text-sm text-ink-soft">{post.cover.caption}</figcaption> : null}
         </figure>
       ) : null}

@@ -115,6 +115,12 @@ export interface MilestoneHealth {
   plannedPercent: number;
 }
 
+/**
+ * Said beside the headline figures wherever a page or message lists only some milestones: the
+ * figures are computed over every milestone of the programme, for every reader (decision 004).
+ */
+export const WHOLE_PROGRAMME_NOTE = "These figures cover the whole programme, including work not listed here.";
+
 export interface ProgrammeHealth {
   at: CalendarDate;
   /** Weighted percent complete, 0–100. */

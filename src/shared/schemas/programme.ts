@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { AudienceSchema, CalendarDateSchema } from "./common.ts";
 import type { MilestoneInput, MilestoneStatus, ProgrammeHealth } from "../domain/programme-health.ts";
-import type { ProjectDrivers } from "../domain/programme-dependencies.ts";
+import type { DrivingLink, ProjectDrivers } from "../domain/programme-dependencies.ts";
 import type { MilestoneMove } from "../domain/programme-changes.ts";
 import { multilineText, plainText } from "./text.ts";
 
@@ -299,11 +299,21 @@ const CostActualRowSchema = z.object({ periodEnd: z.string(), amount: z.number()
 export type CostActualRow = z.infer<typeof CostActualRowSchema>;
 
 /**
- * GET /api/projects/:slug/health: the figures `computeProgrammeHealth` gives over what the caller
- * may see (the domain's type: the shared pure function is their definition), what drives the
- * forecast completion, and the project's time zone. Visitors get no money.
+ * A link of the chain that drives the forecast completion as a reader sees it: a milestone they
+ * may see, or a run of those they may not, worded without names or dates ("A milestone not listed here").
  */
-export type ProgrammeHealthResponse = ProgrammeHealth & { drivers: ProjectDrivers | null; timeZone: string };
+export type ShownDrivingLink = DrivingLink | { id: null; name: string; finish: null };
+
+/** What drives the forecast completion as a reader sees it; `milestoneId` null when the reader may not see that milestone. */
+export type ShownDrivers = Omit<ProjectDrivers, "milestoneId" | "chain"> & { milestoneId: number | null; chain: ShownDrivingLink[] };
+
+/**
+ * GET /api/projects/:slug/health: the figures `computeProgrammeHealth` gives over every milestone
+ * in the programme, the same for every caller (the domain's type: the shared pure function is their
+ * definition); the per-milestone lines only of the milestones the caller may see; what drives the
+ * forecast completion, worded for the caller; and the project's time zone. Visitors get no money.
+ */
+export type ProgrammeHealthResponse = ProgrammeHealth & { drivers: ShownDrivers | null; timeZone: string };
 
 /** The schemas of the programme's answers, by route; their types are the exported `Milestone`, `MilestoneEventRow`, …. */
 export const PROGRAMME_ANSWERS = {

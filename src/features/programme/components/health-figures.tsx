@@ -75,7 +75,7 @@ export function HealthFigures({ health, currency }: { health: ProgrammeHealthRes
       {health.drivers && health.drivers.chain.length > 0 ? (
         <p className="text-sm" data-testid="drivers">
           <span className="font-semibold">What sets the completion date: </span>
-          {health.drivers.chain.map((l) => `${l.name} (${formatDate(l.finish)})`).join(" ← ")}
+          {health.drivers.chain.map((l) => (l.finish === null ? l.name : `${l.name} (${formatDate(l.finish)})`)).join(" ← ")}
           {health.drivers.chain.length > 1 ? <span className="text-ink-soft">, each waiting on the next.</span> : null}
         </p>
       ) : null}

@@ -10,6 +10,7 @@ import { LazyProgrammeCharts } from "./lazy-charts.tsx";
 import { MilestoneHistoryDialog } from "./milestone-history.tsx";
 import { MilestoneTable } from "./milestone-table.tsx";
 import { MovesList } from "./moves-list.tsx";
+import { WholeProgrammeNote } from "./whole-programme-note.tsx";
 
 function Moves({ slug, at }: { slug: string; at: string }) {
   const range = { from: addMonths(at, -1), to: at };
@@ -21,8 +22,8 @@ function Moves({ slug, at }: { slug: string; at: string }) {
 
 /**
  * The investor room's view of one programme: health figures explained, the three
- * charts, what moved in the last month, and the milestones (read-only). Computed on
- * the server over what an investor may see.
+ * charts, what moved in the last month, and the milestones (read-only). The figures
+ * cover the whole programme; the lists hold what an investor may see.
  */
 export function InvestorProgramme({ slug, currency }: { slug: string; currency?: string }) {
   const health = useHealth(slug);
@@ -35,7 +36,10 @@ export function InvestorProgramme({ slug, currency }: { slug: string; currency?:
   return (
     <div className="flex flex-col gap-6">
       <Sheet label={`Status at ${formatDate(h.at)} · times in ${h.timeZone.replace("_", " ")}`} title="Programme health">
-        <HealthFigures health={h} currency={currency} />
+        <div className="flex flex-col gap-3">
+          <WholeProgrammeNote />
+          <HealthFigures health={h} currency={currency} />
+        </div>
       </Sheet>
       <Sheet label="Charts" title="How the programme is going">
         <LazyProgrammeCharts slug={slug} milestones={milestones.data} health={h} />

@@ -3,6 +3,7 @@ import { addDays, fromDayNumber, toDayNumber } from "#shared/domain/calendar.ts"
 import type { FacilityAnswer } from "#shared/schemas/facility.ts";
 import { LineKey, type KeyLine } from "../../../components/ui/line-key.tsx";
 import { longDay, whole } from "../facility-words.ts";
+import { firstOfMonthTicks, tickWord } from "./month-ticks.ts";
 
 // The public site's ink and accent (src/index.css), as recharts wants colours as values.
 const INK_SOFT = "#4a4e57";
@@ -16,25 +17,6 @@ interface Point {
   day: number;
   baseline: number;
   forecast: number;
-}
-
-const axisMonth = new Intl.DateTimeFormat("en-GB", { month: "short", year: "2-digit", timeZone: "UTC" });
-const tickWord = (day: number) => axisMonth.format(new Date(day * 86_400_000));
-
-/**
- * Ticks on the first of each month inside the range, every second, third or sixth month when
- * the range is long, so no more than `most` labels share the axis.
- */
-export function firstOfMonthTicks(fromDay: number, toDay: number, most = 6): number[] {
-  const firsts: number[] = [];
-  const d = new Date(fromDay * 86_400_000);
-  for (let y = d.getUTCFullYear(), m = d.getUTCMonth() + 1; ; m += 1) {
-    const day = Date.UTC(y, m, 1) / 86_400_000;
-    if (day > toDay) break;
-    firsts.push(day);
-  }
-  const every = [1, 2, 3, 6, 12].find((n) => Math.ceil(firsts.length / n) <= most) ?? 12;
-  return firsts.filter((_, i) => i % every === 0);
 }
 
 /**

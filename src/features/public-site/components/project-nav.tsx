@@ -8,6 +8,7 @@ export function ProjectNav({ slug }: { slug: string }) {
     { to: `/projects/${slug}/gallery`, label: "Gallery" },
     { to: `/projects/${slug}/timeline`, label: "Timeline" },
     { to: `/projects/${slug}/facility`, label: "Capacity" },
+    { to: `/projects/${slug}/search`, label: "Search" },
   ];
   return (
     <nav aria-label="This project" className="-mx-4 mt-4 overflow-x-auto border-b border-rule px-4">
