@@ -39,6 +39,7 @@ import { documentsRouter } from "./documents/documents.router.ts";
 import { calendarFeedsRouter, calendarFilesRouter } from "./calendars/calendars.router.ts";
 import { reportsRouter } from "./reports/reports.router.ts";
 import { searchRouter } from "./search/search.router.ts";
+import { officeRouter } from "./office/office.router.ts";
 import type { Services } from "./services.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
@@ -188,6 +189,7 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   api.use(calendarFeedsRouter(services.calendars));
   api.use(reportsRouter(services.reports));
   api.use(searchRouter(services.search));
+  api.use(officeRouter(services.office));
   api.use(apiNotFound);
   app.use("/api", api);
   // RFC 8058 one-click unsubscribe (POST); a GET of the same path is the client's page.

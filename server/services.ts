@@ -30,6 +30,7 @@ import { createDocumentsService } from "./documents/documents.service.ts";
 import { createCalendarsService } from "./calendars/calendars.service.ts";
 import { createReportsService } from "./reports/reports.service.ts";
 import { createSearchService } from "./search/search.service.ts";
+import { createOfficeService } from "./office/office.service.ts";
 
 export interface ServiceDeps {
   db: Db;
@@ -179,6 +180,8 @@ export function createServices(deps: ServiceDeps) {
 
   // Search of a project's pages and facility, as each audience may see them (decision 048).
   const search = createSearchService({ projects, posts, stories, programme, facility });
+  // The office overview's "Waiting for you": each module counts its own waiting work.
+  const office = createOfficeService({ projects, posts, media, enquiries, digests, decisions, facility });
   // Monthly investor reports: figures as at a month end from every module above, the PDF kept in the document library.
   const reports = createReportsService({ db, logger, projects, programme, facility, budget, risks, decisions, media, mediaStorage, documents, users, mailer, outbox, audit, publicUrl: config.PUBLIC_URL });
   // Milestone calendars: the public feed and personal feeds behind a revocable token.
@@ -225,6 +228,8 @@ export function createServices(deps: ServiceDeps) {
     calendars,
     /** Search of a project (GET /api/projects/:slug/search). */
     search,
+    /** The work waiting for a staff member (GET /api/office/waiting). */
+    office,
     /** Monthly investor reports; the worker sends their notices (`sendNotices`). */
     reports,
     /** The process is stopping: work that requests set going (the subscription mail they queued) starts no more. */

@@ -102,6 +102,11 @@ export function authRouter(deps: {
     res.status(204).end();
   });
 
+  // Who is signed in, for the app: a visitor is an answer (`user: null`), not a failed load in the console.
+  r.get("/auth/session", (req, res) => {
+    res.set("Cache-Control", "no-store").json({ user: req.user ?? null });
+  });
+
   r.get("/auth/me", (req, res) => {
     if (!req.user) throw new AppError("unauthenticated", "Not signed in.", 401);
     res.set("Cache-Control", "no-store").json({ user: req.user });
@@ -125,6 +130,13 @@ export function authRouter(deps: {
     const { email } = ResetRequestInputSchema.parse(req.body);
     await auth.requestPasswordReset(email, actorOf(req));
     res.status(202).json({ ok: true, message: "If that address has an account, a reset link is on its way." });
+  });
+
+  // Asked by the reset page before it shows the form; the link stays unspent.
+  r.get("/auth/password-reset/:token", async (req, res) => {
+    const { token } = TokenParamSchema.parse(req.params);
+    await auth.checkPasswordReset(token);
+    res.set("Cache-Control", "no-store").json({ ok: true });
   });
 
   r.post("/auth/password-reset/:token", perIp, async (req, res) => {

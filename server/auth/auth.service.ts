@@ -31,6 +31,14 @@ export function createAuthService(deps: {
   const accounts = deps.accounts ?? createAccountsService({ db });
   const now = deps.now ?? (() => new Date());
 
+  /** The reset behind a link and its account, when both are still usable; an unknown, used, expired or disabled one is the same 410. */
+  async function liveReset(trx: Parameters<AccountsService["findPasswordReset"]>[0], token: string) {
+    const reset = await accounts.findPasswordReset(trx, hashToken(token));
+    const u = reset && !reset.usedAt && reset.expiresAt > now() ? await accounts.findById(reset.userId, trx) : undefined;
+    if (!reset || !u || u.disabledAt) throw new AppError("reset_invalid", "This reset link has expired or was already used. Ask for a new one.", 410);
+    return { reset, u };
+  }
+
   /** Issues a reset link (ending the account's earlier ones) and mails it. */
   async function sendResetLink(user: Account): Promise<void> {
     const token = newToken();
@@ -107,15 +115,15 @@ export function createAuthService(deps: {
       });
     },
 
+    /** Whether a reset link can still be used, without spending it: the reset page asks first, so a dead link shows its error, not the form. */
+    async checkPasswordReset(token: string): Promise<void> {
+      await db.transaction((trx) => liveReset(trx, token));
+    },
+
     async resetPassword(token: string, password: string, actor: Actor): Promise<User> {
       const passwordHash = await hashPassword(password);
       const user = await db.transaction(async (trx) => {
-        const reset = await accounts.findPasswordReset(trx, hashToken(token));
-        if (!reset || reset.usedAt || reset.expiresAt <= now()) {
-          throw new AppError("reset_invalid", "This reset link has expired or was already used. Ask for a new one.", 410);
-        }
-        const u = await accounts.findById(reset.userId, trx);
-        if (!u || u.disabledAt) throw new AppError("reset_invalid", "This reset link has expired or was already used. Ask for a new one.", 410);
+        const { reset, u } = await liveReset(trx, token);
         assertPasswordAcceptable(password, u.email);
         await accounts.usePasswordReset(trx, { id: reset.id, userId: u.id }, passwordHash);
         await audit.record({ action: "password_reset", actor: { ...actor, user: publicUser(u) }, target: { type: "user", id: u.id, label: u.email } }, trx);

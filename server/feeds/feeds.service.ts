@@ -64,7 +64,8 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
   const host = new URL(base).hostname;
   const abs = (path: string) => (path.startsWith("/") ? base + path : path);
 
-  function head(o: { title: string; description: string; url: string; type: "article" | "website"; siteName: string; image: ReturnType<typeof previewImage>; feed?: string; published?: string | null }): PageHead {
+  /** `pageTitle` names the document when it differs from the preview's title; a page that is its build's own says the name once. */
+  function head(o: { title: string; pageTitle?: string; description: string; url: string; type: "article" | "website"; siteName: string; image: ReturnType<typeof previewImage>; feed?: string; published?: string | null }): PageHead {
     const meta = (attr: "property" | "name", key: string, value: string) => `<meta ${attr}="${key}" content="${escapeHtml(value)}">`;
     const tags = [
       meta("name", "description", o.description),
@@ -82,7 +83,8 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
     }
     if (o.published) tags.push(meta("property", "article:published_time", o.published));
     if (o.feed) tags.push(`<link rel="alternate" type="application/atom+xml" title="${escapeHtml(o.siteName)} updates" href="${escapeHtml(o.feed)}">`);
-    return { title: escapeHtml(`${o.title} · ${o.siteName}`), tags: tags.join("\n    ") };
+    const page = o.pageTitle ?? o.title;
+    return { title: escapeHtml(page === o.siteName ? page : `${page} · ${o.siteName}`), tags: tags.join("\n    ") };
   }
 
   return {
@@ -220,6 +222,8 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
         return {
           head: head({
             title: projectPage[2] ? `Updates from ${project.name}` : project.name,
+            // The same title the app gives the page ("Updates · <build>", the build's name alone).
+            pageTitle: projectPage[2] ? "Updates" : project.name,
             description: project.description,
             url: `${base}/projects/${project.slug}${projectPage[2] ?? ""}`,
             type: "website",

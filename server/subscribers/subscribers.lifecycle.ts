@@ -1,6 +1,7 @@
 import type { Knex } from "knex";
 import {
   CONSENT,
+  INVESTOR_CONSENT,
   type ConfirmationDone,
   type ConfirmationView,
   type InvestorDigestInput,
@@ -259,7 +260,7 @@ export function createSubscriptionLifecycle(ctx: SubscribersContext, sendQueuedM
         // An earlier public subscription of the same address becomes the account's.
         const existing = (await findSubscriberByProjectUser(trx, project.id, user.id, true)) ?? (await findSubscriberByProjectEmail(trx, project.id, email, true));
         const prefs = { frequency: input.frequency, topics, topicsKey: topicsKey(topics), audience: "investor" as const, userId: user.id, interest: "investor" as const };
-        const consent = { consentAt: t, consentIp: actor.ip, consentVersion: CONSENT.version, consentSource: "investor room (signed in)" };
+        const consent = { consentAt: t, consentIp: actor.ip, consentVersion: INVESTOR_CONSENT.version, consentSource: "investor room (signed in)" };
         if (!existing) {
           if (!input.enabled) return;
           await insertSubscriber(trx, { projectId: project.id, email, emailHash, name: user.name, organisation: null, ...prefs, ...consent, status: "confirmed", confirmedAt: t, statusChangedAt: t });

@@ -123,7 +123,10 @@ function routes(qc: QueryClient): RouteObject[] {
           return { Component: m.AcceptInvitationPage, loader: m.invitationLoader, ErrorBoundary: m.InvitationError };
         }, { what: "invitation", ownErrors: true }),
         page(qc, "forgot-password", async () => ({ Component: (await auth()).ForgotPasswordPage })),
-        page(qc, "reset-password/:token", async () => ({ Component: (await auth()).ResetPasswordPage })),
+        page(qc, "reset-password/:token", async () => {
+          const m = await auth();
+          return { Component: m.ResetPasswordPage, loader: m.resetPasswordLoader, ErrorBoundary: m.ResetLinkError };
+        }, { what: "reset link", ownErrors: true }),
         { path: "*", element: <NotFoundPage /> },
       ],
     },

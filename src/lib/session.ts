@@ -1,6 +1,6 @@
 import { queryOptions, useQuery } from "@tanstack/react-query";
-import type { SignedIn, User } from "#shared/schemas/auth.ts";
-import { api, ApiError } from "./api-client.ts";
+import type { Session, User } from "#shared/schemas/auth.ts";
+import { api } from "./api-client.ts";
 import type { RouteLoader } from "./loaders.ts";
 
 /**
@@ -13,18 +13,11 @@ export const sessionKeys = {
   me: () => [...sessionKeys.all, "me"] as const,
 };
 
-/** The signed-in user, or null when signed out (a 401 is an answer, not an error). */
+/** The signed-in user, or null when signed out (asked where a visitor answers 200, so no failed load is logged). */
 export const meQueryOptions = () =>
   queryOptions({
     queryKey: sessionKeys.me(),
-    queryFn: async (): Promise<User | null> => {
-      try {
-        return (await api.get<SignedIn>("/api/auth/me")).user;
-      } catch (e) {
-        if (e instanceof ApiError && e.status === 401) return null;
-        throw e;
-      }
-    },
+    queryFn: async (): Promise<User | null> => (await api.get<Session>("/api/auth/session")).user,
     staleTime: 60_000,
   });
 

@@ -88,7 +88,7 @@ describe("the public timeline's loader", () => {
 
 describe("the site office programme's loaders", () => {
   const office: Answers = {
-    "/api/auth/me": { status: 200, body: LEAD },
+    "/api/auth/session": { status: 200, body: LEAD },
     "/api/projects": { status: 200, body: [PROJECT] },
     [`/api/projects/${SLUG}`]: { status: 200, body: PROJECT },
     [`/api/projects/${SLUG}/milestones`]: { status: 200, body: [MILESTONE] },
@@ -112,14 +112,14 @@ describe("the site office programme's loaders", () => {
     const asked = answer(office);
     await open("/office/programme/walk", siteWalkLoader, <p>the walk</p>, `/office/programme/walk?project=${SLUG}`, "project");
     await screen.findByText("the walk");
-    expect([...asked].sort()).toEqual(["/api/auth/me", "/api/projects", `/api/projects/${SLUG}`, `/api/projects/${SLUG}/health`, `/api/projects/${SLUG}/milestones`]);
+    expect([...asked].sort()).toEqual(["/api/auth/session", "/api/projects", `/api/projects/${SLUG}`, `/api/projects/${SLUG}/health`, `/api/projects/${SLUG}/milestones`]);
   });
 
   it("prime nothing for a signed-out visitor, whom the office's guard then sends to sign in", async () => {
-    const asked = answer({ "/api/auth/me": { status: 401, body: { error: { code: "unauthenticated", message: "Sign in." } } } });
+    const asked = answer({ "/api/auth/session": { status: 200, body: { user: null } } });
     await open("/office/programme", programmeLoader, <p>the programme</p>, "/office/programme", "project");
     await screen.findByText("the programme");
-    expect(asked).toEqual(["/api/auth/me"]);
+    expect(asked).toEqual(["/api/auth/session"]);
   });
 
   it("when the project asked for is not there, end in the route's error element", async () => {

@@ -39,7 +39,7 @@ describe("the search page (/projects/:slug/search)", () => {
     expect(headings).toEqual(["Plant (1)", "Programme milestones (1)", "Updates (2)"]);
     const updates = within(screen.getByTestId("search-group-update")).getAllByRole("link").map((a) => a.getAttribute("href"));
     expect(updates).toEqual([`/projects/${SLUG}/updates/chillers-on-their-plinths`, `/projects/${SLUG}/updates/ground-broken`]);
-    expect(document.title).toBe("“chill” · Search · Aldermere Campus, Phase 2 · Plumbline");
+    expect(document.title).toBe("“chill” · Search · Aldermere Campus, Phase 2");
   });
 
   it("highlights the matched words and shows the rest as text, never as markup", () => {
@@ -57,7 +57,7 @@ describe("the search page (/projects/:slug/search)", () => {
     expect(box.value).toBe("HD-9");
     fireEvent.change(box, { target: { value: "HD-1" } });
     fireEvent.click(screen.getByRole("button", { name: "Search" }));
-    expect(document.title).toBe("“HD-1” · Search · Aldermere Campus, Phase 2 · Plumbline");
+    expect(document.title).toBe("“HD-1” · Search · Aldermere Campus, Phase 2");
   });
 
   it("groups in the fixed order of kinds, keeping each kind's order", () => {

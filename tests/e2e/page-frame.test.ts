@@ -1,18 +1,9 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { startTestApp, type TestApp } from "../helpers/app.ts";
-import { browserPool } from "../helpers/browser.ts";
+import { describe, expect, it } from "vitest";
+import { useBrowserApp } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
 
-let t: TestApp;
-const browsers = browserPool();
-beforeAll(async () => {
-  t = await startTestApp({}, { listen: true });
-});
-afterAll(async () => {
-  await browsers.closeAll();
-  await t?.close();
-});
+const { app, browsers } = useBrowserApp();
 
 /**
  * The footer starts below the fold on the first paint of every public page, so nothing that
@@ -39,7 +30,7 @@ describe("reserved space on the public pages", () => {
             }
           }).observe(document, { childList: true, subtree: true });
         });
-        await page.goto(`${t.baseUrl}${path}`);
+        await page.goto(`${app().baseUrl}${path}`);
         await page.locator("footer").waitFor();
         const first = await page.evaluate(() => (window as unknown as { __footerTop?: number }).__footerTop);
         expect(first, path).toBeGreaterThanOrEqual(height);

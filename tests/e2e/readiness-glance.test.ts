@@ -1,21 +1,13 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { FacilityAnswer } from "../../src/shared/schemas/facility.ts";
-import { DEMO, newClient, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
-import { ARTIFACTS, browserPool, screenshot, signInAs, watchErrors } from "../helpers/browser.ts";
+import { DEMO, newClient, signIn } from "../helpers/app.ts";
+import { ARTIFACTS, screenshot, signInAs, watchErrors, useBrowserApp } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
 /** The phone the issue measures with: 375 × 812. */
 const PHONE = { width: 375, height: 812 };
 
-let t: TestApp;
-const browsers = browserPool();
-beforeAll(async () => {
-  t = await startTestApp({}, { listen: true });
-});
-afterAll(async () => {
-  await browsers.closeAll();
-  await t?.close();
-});
+const { app, browsers } = useBrowserApp();
 
 /** "2027-04-16" → "16 Apr 2027", as the glance writes dates. */
 function shortDate(day: string): string {
@@ -24,7 +16,7 @@ function shortDate(day: string): string {
 }
 
 async function facilityAs(email?: string): Promise<FacilityAnswer> {
-  const client = email ? await signIn(t, email) : await newClient(t);
+  const client = email ? await signIn(app(), email) : await newClient(app());
   return (await client.agent.get(`/api/projects/${SLUG}/facility`).expect(200)).body as FacilityAnswer;
 }
 
@@ -44,7 +36,7 @@ describe("readiness at a glance", () => {
 
     const page = await (await browsers.launch(PHONE.width, PHONE.height)).context.newPage();
     const errors = watchErrors(page);
-    await page.goto(`${t.baseUrl}/projects/${SLUG}`);
+    await page.goto(`${app().baseUrl}/projects/${SLUG}`);
     const rows = page.getByTestId("readiness-row");
     await expect.poll(() => rows.count()).toBe(blocks.length);
     // What the phone shows before any scrolling, to look at beside the full page.
@@ -72,14 +64,14 @@ describe("readiness at a glance", () => {
       [`/projects/${SLUG}`, "readiness-project"],
       [`/projects/${SLUG}/timeline`, "readiness-timeline"],
     ] as const) {
-      await page.goto(`${t.baseUrl}${path}`);
+      await page.goto(`${app().baseUrl}${path}`);
       const rows = page.getByTestId("readiness-row");
       await expect.poll(() => rows.count()).toBe(publicBlocks.length);
       for (const [i, b] of publicBlocks.entries()) expectRowSays((await rows.nth(i).textContent()) ?? "", b);
       await screenshot(page, shot);
     }
     const phone = await (await browsers.launch(PHONE.width, PHONE.height)).context.newPage();
-    await phone.goto(`${t.baseUrl}/projects/${SLUG}/timeline`);
+    await phone.goto(`${app().baseUrl}/projects/${SLUG}/timeline`);
     await expect.poll(() => phone.getByTestId("readiness-row").count()).toBe(publicBlocks.length);
     await screenshot(phone, "readiness-timeline-375");
     expect(errors).toEqual([]);
@@ -88,8 +80,8 @@ describe("readiness at a glance", () => {
     for (const width of [1280, 375]) {
       const room = await (await browsers.launch(width, width === 375 ? PHONE.height : 900)).context.newPage();
       const roomErrors = watchErrors(room);
-      await signInAs(room, t.baseUrl, DEMO.investor, /\/investors$/);
-      await room.goto(`${t.baseUrl}/investors/projects/${SLUG}`);
+      await signInAs(room, app().baseUrl, DEMO.investor, /\/investors$/);
+      await room.goto(`${app().baseUrl}/investors/projects/${SLUG}`);
       const rows = room.getByTestId("readiness-row");
       await expect.poll(() => rows.count()).toBe(investorBlocks.length);
       for (const [i, b] of investorBlocks.entries()) expectRowSays((await rows.nth(i).textContent()) ?? "", b);

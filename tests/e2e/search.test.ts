@@ -1,26 +1,16 @@
 import AxeBuilder from "@axe-core/playwright";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { startTestApp, type TestApp } from "../helpers/app.ts";
-import { browserPool, screenshot, watchErrors } from "../helpers/browser.ts";
+import { describe, expect, it } from "vitest";
+import { screenshot, useBrowserApp, watchErrors } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
-let t: TestApp;
-const browsers = browserPool();
-
-beforeAll(async () => {
-  t = await startTestApp({}, { listen: true });
-});
-afterAll(async () => {
-  await browsers.closeAll();
-  await t?.close();
-});
+const { app, browsers } = useBrowserApp();
 
 describe("the public search page", () => {
   for (const width of [375, 1280]) {
     it(`at ${width} px: a visitor searches HD-1, sees the count, the groups and the marked code, and opens the block`, async () => {
       const page = await (await browsers.launch(width, 812)).context.newPage();
       const errors = watchErrors(page);
-      await page.goto(`${t.baseUrl}/projects/${SLUG}/search`);
+      await page.goto(`${app().baseUrl}/projects/${SLUG}/search`);
       await page.getByLabel("Words or codes").fill("HD-1");
       await page.getByRole("button", { name: "Search" }).click();
       await page.waitForURL(/search\?q=HD-1/);

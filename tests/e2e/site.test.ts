@@ -1,25 +1,17 @@
 import { gzipSync } from "node:zlib";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import type { MediaItem, MediaListResponse } from "../../src/shared/schemas/media.ts";
-import { DEMO, newClient, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
-import { browserPool, openAs, type Browser, screenshot, watchErrors } from "../helpers/browser.ts";
+import { DEMO, newClient, signIn } from "../helpers/app.ts";
+import { openAs, type Browser, screenshot, watchErrors, useBrowserApp } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
 
-let t: TestApp;
-const browsers = browserPool();
-beforeAll(async () => {
-  t = await startTestApp({}, { listen: true });
-});
-afterAll(async () => {
-  await browsers.closeAll();
-  await t?.close();
-});
+const { app, browsers } = useBrowserApp();
 
 const browserFor = (width = 1280): Promise<Browser> => browsers.launch(width);
 
-const signedInPage = (b: Browser, email: string): Promise<Page> => openAs(b.context, t.baseUrl, email);
+const signedInPage = (b: Browser, email: string): Promise<Page> => openAs(b.context, app().baseUrl, email);
 
 const dayOf = (takenAt: string | null) => takenAt?.slice(0, 10) ?? "";
 
@@ -31,7 +23,7 @@ function longDate(day: string): string {
 
 /** Two cleared demo photos of one area taken on different days (earlier first), and one more photo. */
 async function storyPhotos(): Promise<{ area: string; before: MediaItem; after: MediaItem; single: MediaItem }> {
-  const lead = await signIn(t, DEMO.lead);
+  const lead = await signIn(app(), DEMO.lead);
   const items = ((await lead.agent.get(`/api/media?project=${SLUG}&status=ready&sensitivity=cleared&pageSize=100`).expect(200)).body as MediaListResponse).items.filter(
     (i) => i.altText?.trim() && i.takenAt,
   );
@@ -86,14 +78,14 @@ describe("a photo story with a then-and-now pair", () => {
     await page.getByRole("button", { name: "Submit for review" }).click();
     await page.locator('[data-status="in_review"]').first().waitFor();
 
-    const marketing = await signIn(t, DEMO.marketing);
+    const marketing = await signIn(app(), DEMO.marketing);
     const saved = (await marketing.agent.get(`/api/stories/${id}`).expect(200)).body as { slug: string; status: string; items: Array<{ kind: string; beforeMediaId?: number; afterMediaId?: number; mediaId?: number }> };
     expect(saved.status).toBe("in_review");
     expect(saved.items.map((i) => i.kind)).toEqual(["pair", "photo"]);
     expect(saved.items[0]).toMatchObject({ beforeMediaId: photos.before.id, afterMediaId: photos.after.id });
     storySlug = saved.slug;
 
-    const lead = await signIn(t, DEMO.lead);
+    const lead = await signIn(app(), DEMO.lead);
     await lead.agent.post(`/api/stories/${id}/approve`).set("X-CSRF-Token", lead.csrf).send({}).expect(200);
     await lead.agent.post(`/api/stories/${id}/publish`).set("X-CSRF-Token", lead.csrf).send({}).expect(200);
     expect(errors).toEqual([]);
@@ -104,7 +96,7 @@ describe("a photo story with a then-and-now pair", () => {
     for (const width of [1280, 360]) {
       const page = await (await browserFor(width)).context.newPage();
       const errors = watchErrors(page);
-      await page.goto(`${t.baseUrl}/projects/${SLUG}/stories/${storySlug}`);
+      await page.goto(`${app().baseUrl}/projects/${SLUG}/stories/${storySlug}`);
       const slider = page.getByRole("slider");
       await slider.waitFor();
       const frame = page.getByTestId("compare-slider");
@@ -152,7 +144,7 @@ describe("the public project home", () => {
     for (const width of [1280, 360]) {
       const page = await (await browserFor(width)).context.newPage();
       const errors = watchErrors(page);
-      await page.goto(`${t.baseUrl}/projects/${SLUG}`);
+      await page.goto(`${app().baseUrl}/projects/${SLUG}`);
       await page.getByRole("heading", { level: 1, name: "Aldermere Campus, Phase 2" }).waitFor();
       await page.getByTestId("public-progress").waitFor();
       // The words about the milestones come with the page; percent complete and the forecast
@@ -181,7 +173,7 @@ describe("the public project home", () => {
       const body = await res.body();
       scripts.push({ url: res.url(), gzip: gzipSync(body).length, text: body.toString("utf8") });
     });
-    await page.goto(`${t.baseUrl}/projects/${SLUG}`);
+    await page.goto(`${app().baseUrl}/projects/${SLUG}`);
     await page.getByTestId("public-progress").waitFor();
     await page.waitForLoadState("networkidle");
     const total = scripts.reduce((s, x) => s + x.gzip, 0);
@@ -194,12 +186,12 @@ describe("the public project home", () => {
 
 describe("the public gallery", () => {
   it("shows cleared photos by month, filters them, and steps through them in the lightbox", async () => {
-    const visitor = await newClient(t);
+    const visitor = await newClient(app());
     const api = await visitor.agent.get(`/api/projects/${SLUG}/gallery`);
     expect(api.status).toBe(200);
     const page = await (await browserFor()).context.newPage();
     const errors = watchErrors(page);
-    await page.goto(`${t.baseUrl}/projects/${SLUG}/gallery`);
+    await page.goto(`${app().baseUrl}/projects/${SLUG}/gallery`);
     await page.getByRole("heading", { level: 1, name: "Photographs from the site" }).waitFor();
     const tiles = page.getByTestId("gallery-photo");
     await tiles.first().waitFor();

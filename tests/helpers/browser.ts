@@ -2,7 +2,8 @@ import { mkdirSync, mkdtempSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { chromium, type BrowserContext, type Page } from "playwright-core";
-import { DEMO_PASSWORD } from "./app.ts";
+import { afterAll, beforeAll } from "vitest";
+import { DEMO_PASSWORD, startTestApp, type TestApp } from "./app.ts";
 
 export const ARTIFACTS = path.resolve("tests/artifacts");
 
@@ -29,8 +30,7 @@ export function watchErrors(page: Page): string[] {
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(`pageerror: ${e.message}`));
   page.on("console", (m) => {
-    // Asking /api/auth/me while signed out answers 401 by design; Chromium logs that as a failed load.
-    if (m.type() === "error" && !(m.text().includes("401") && m.location().url.endsWith("/api/auth/me"))) errors.push(`console: ${m.text()}`);
+    if (m.type() === "error") errors.push(`console: ${m.text()}`);
   });
   return errors;
 }
@@ -75,5 +75,28 @@ export function browserPool() {
     async closeAll(): Promise<void> {
       for (const b of open.splice(0)) await b.close();
     },
+  };
+}
+
+/**
+ * A test file's listening app (the seeded demo) and its browsers: the app starts before the
+ * file's tests, and both are closed after them. `app()` is the app once started.
+ */
+export function useBrowserApp(): { app: () => TestApp; browsers: ReturnType<typeof browserPool> } {
+  let t: TestApp | undefined;
+  const browsers = browserPool();
+  beforeAll(async () => {
+    t = await startTestApp({}, { listen: true });
+  });
+  afterAll(async () => {
+    await browsers.closeAll();
+    await t?.close();
+  });
+  return {
+    app: () => {
+      if (!t) throw new Error("The app starts in beforeAll: call app() inside a test.");
+      return t;
+    },
+    browsers,
   };
 }

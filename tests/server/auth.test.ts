@@ -24,6 +24,15 @@ describe("POST /api/auth/login", () => {
     expect(me.body.user.email).toBe(DEMO.lead);
   });
 
+  it("GET /api/auth/session answers a visitor 200 with no user (not a failed load), and names whoever is signed in", async () => {
+    const { agent, csrf } = await newClient(t);
+    const visitor = await agent.get("/api/auth/session").expect(200);
+    expect(visitor.body).toEqual({ user: null });
+    expect(visitor.headers["cache-control"]).toBe("private, no-store");
+    await agent.post("/api/auth/login").set("X-CSRF-Token", csrf).send({ email: DEMO.lead, password: DEMO_PASSWORD }).expect(200);
+    expect((await agent.get("/api/auth/session").expect(200)).body.user).toMatchObject({ email: DEMO.lead, role: "lead" });
+  });
+
   it("regenerates the session id at sign-in (no fixation): a planted session id is not the one the sign-in gets", async () => {
     const sidOf = (res: request.Response) => String(res.headers["set-cookie"]).match(/plumbline\.sid=([^;]+)/)?.[1];
     const csrfCookieOf = (res: request.Response) => String(res.headers["set-cookie"]).match(/plumbline\.csrf=([^;]+)/)?.[1];

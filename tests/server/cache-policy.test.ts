@@ -81,6 +81,7 @@ describe("answers that depend on who asks (issue 9, item 4)", () => {
       [admin, `${PROGRAMME}/baselines`],
       [admin, "/api/digests/runs"],
       [admin, "/api/auth/me"],
+      [admin, "/api/auth/session"],
       [investor, `${PROGRAMME}/cost-actuals`],
       [investor, `${PROGRAMME}/baselines`],
       [investor, "/api/investors/digest"],

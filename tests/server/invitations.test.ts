@@ -165,6 +165,10 @@ describe("password reset flow through the real SMTP sink", () => {
     const second = linkIn((await waitForMail(t, u.email, before)).text, "reset-password").split("/").pop()!;
     expect(second).not.toBe(first);
 
+    // The reset page asks first (GET), without spending the link: the live one answers 200 every time, the ended one 410.
+    await c.agent.get(`/api/auth/password-reset/${second}`).expect(200);
+    await c.agent.get(`/api/auth/password-reset/${second}`).expect(200);
+    expect((await c.agent.get(`/api/auth/password-reset/${first}`).expect(410)).body.error.code).toBe("reset_invalid");
     const stale = await c.agent.post(`/api/auth/password-reset/${first}`).set("X-CSRF-Token", c.csrf).send({ password: "from-the-stale-link-1" });
     expect(stale.status).toBe(410);
     expect(stale.body.error.code).toBe("reset_invalid");
@@ -173,6 +177,7 @@ describe("password reset flow through the real SMTP sink", () => {
     // Used, it is spent too.
     const reuse = await c.agent.post(`/api/auth/password-reset/${second}`).set("X-CSRF-Token", c.csrf).send({ password: "from-the-newest-link-3" });
     expect(reuse.status).toBe(410);
+    await c.agent.get(`/api/auth/password-reset/${second}`).expect(410);
     await signIn(t, u.email, "from-the-newest-link-2");
   });
 

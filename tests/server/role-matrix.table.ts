@@ -270,6 +270,8 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: "/api/health", expect: all(200) },
   { method: "get", path: "/api/auth/csrf", expect: all(200) },
   { method: "get", path: "/api/auth/me", expect: signedIn(200) },
+  { method: "get", path: "/api/auth/session", expect: all(200) },
+  { method: "get", path: "/api/auth/password-reset/aaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaa", expect: all(410) },
   { method: "post", path: "/api/auth/login", body: {}, expect: all(400) },
   { method: "get", path: "/api/auth/invitations/aaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaa", expect: all(404) },
   { method: "post", path: "/api/auth/invitations/aaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaa/accept", body: {}, expect: all(400) },
@@ -471,6 +473,8 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: `${DEMO_PROGRAMME}/search?q=HD-1`, expect: all(200) },
   { method: "get", path: `${DEMO_PROGRAMME}/search`, expect: all(400) },
   { method: "get", path: "/api/projects/no-such-project/search?q=HD-1", expect: all(404) },
+  // The office overview's "Waiting for you": staff only, each counted by role in the service.
+  { method: "get", path: "/api/office/waiting", expect: staffOnly(200) },
   // Facility (decision 029): the fixed read for everyone by audience; another day for staff; writes for leads and admins.
   { method: "get", path: `${DEMO_PROGRAMME}/facility`, expect: all(200) },
   { method: "get", path: "/api/projects/no-such-project/facility", expect: all(404) },

@@ -147,6 +147,17 @@ describe("Open Graph tags in the HTML the server sends", () => {
     await (await newClient(t)).agent.get(image).expect(200);
   });
 
+  it("the project page's title names the build once, and its updates page says what it is first", async () => {
+    const p = await createProject(t);
+    const visitor = await newClient(t);
+    const home = await visitor.agent.get(`/projects/${p.slug}`).expect(200);
+    const name = /<title>([^<]*)<\/title>/.exec(home.text)![1]!;
+    expect(name).toMatch(/^Test campus/);
+    expect(name).not.toContain(" · ");
+    const updates = await visitor.agent.get(`/projects/${p.slug}/updates`).expect(200);
+    expect(/<title>([^<]*)<\/title>/.exec(updates.text)![1]).toBe(`Updates · ${name}`);
+  });
+
   it("an investor update's page gives away nothing (the plain shell), even to an investor's link preview", async () => {
     const p = await createProject(t);
     const post = await published(p.slug, p.id, { title: "Lender drawdown schedule", audience: "investor" });

@@ -1,7 +1,7 @@
 import { randomBytes } from "node:crypto";
 import Papa from "papaparse";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { SUBSCRIBER_EXPORT_COLUMNS } from "../../src/shared/schemas/subscribers.ts";
+import { CONSENT, INVESTOR_CONSENT, SUBSCRIBER_EXPORT_COLUMNS } from "../../src/shared/schemas/subscribers.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { topicsAllow, topicsKey } from "../../server/subscribers/subscribers.topics.ts";
 import { createUser, DEMO, lastMailId, newClient, signIn, startTestApp, waitForMail, type TestApp } from "../helpers/app.ts";
@@ -276,6 +276,10 @@ describe("the investor room's own digest (GET/PATCH /api/investors/digest)", () 
     expect(set.body).toMatchObject({ enabled: true, frequency: "monthly", topics: { areas: [], systems: ["power"] }, status: "confirmed" });
     const row = await t.db("subscribers").where({ project_id: projectId, user_id: investor.id }).first();
     expect(row).toMatchObject({ email: investor.email, audience: "investor", interest: "investor", status: "confirmed", consent_source: "investor room (signed in)" });
+    // Confirmed at once, so not on the public wording (which promises a confirmation e-mail) but on its own.
+    expect(row.consent_version).toBe(INVESTOR_CONSENT.version);
+    expect(INVESTOR_CONSENT.version).not.toBe(CONSENT.version);
+    expect(INVESTOR_CONSENT.text).not.toMatch(/until I confirm/);
     expect((await t.plumbline.subscribers.digestRecipients(projectId, "monthly")).find((r) => r.userId === investor.id)?.audience).toBe("investor");
 
     // A disabled account receives nothing.

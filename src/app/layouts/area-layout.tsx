@@ -64,7 +64,7 @@ export function AreaLayout({ name, roles, links }: { name: string; roles: Role[]
       <header className="border-b-2 border-ink bg-paper">
         <div className="mx-auto flex max-w-7xl flex-wrap items-center justify-between gap-3 px-4 py-3">
           <div className="flex items-center gap-3">
-            <Link to="/" aria-label="Public progress site">
+            <Link to="/" aria-label="Plumbline: the public progress site">
               <Logo />
             </Link>
             <span aria-hidden className="h-5 w-px bg-rule-strong" />

@@ -72,7 +72,7 @@ function ProjectHead({ slug, sheet, description, actions }: { slug: string; shee
   const project = useSuspenseQuery(projectQueryOptions(slug)).data;
   return (
     <>
-      <PageHeader sheet={`Investor room · ${sheet}`} title={project.name} description={description ?? project.description} actions={actions} />
+      <PageHeader sheet={`Investor room · ${sheet}`} title={project.name} documentTitle={`${sheet} · ${project.name}`} description={description ?? project.description} actions={actions} />
       <ProjectSections slug={slug} />
     </>
   );

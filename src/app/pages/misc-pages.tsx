@@ -1,8 +1,10 @@
 import { isRouteErrorResponse, Link, useRouteError } from "react-router-dom";
 import { Spinner } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
+import { useTitle } from "../../lib/use-title.ts";
 
 export function NotFoundPage() {
+  useTitle("There is no page here", "Plumbline");
   return (
     <div className="mx-auto max-w-xl px-4 py-16">
       <p className="label-caps">404</p>
@@ -34,6 +36,7 @@ export function FirstLoad() {
 export function RouteErrorPage({ what = "page", home = "/", homeLabel = "Progress site" }: { what?: string; home?: string; homeLabel?: string }) {
   const err = useRouteError();
   const missing = (err instanceof ApiError && err.status === 404) || (isRouteErrorResponse(err) && err.status === 404);
+  useTitle(missing ? `No such ${what}` : `This ${what} could not be shown`, "Plumbline");
   if (missing) {
     return (
       <div role="alert" className="mx-auto max-w-xl px-4 py-16">

@@ -4,13 +4,15 @@ import { CalendarFeedPanel } from "../../features/calendars/calendar-feed-panel.
 import { ProjectHealthSummary } from "../../features/programme/components/programme-summary.tsx";
 import { useProjects } from "../../features/projects/api.ts";
 import { useMe } from "../../lib/session.ts";
+import { WaitingPanel } from "../../features/office/waiting-panel.tsx";
 
 export function OfficeHomePage() {
   const me = useMe();
   const projects = useProjects();
   return (
     <>
-      <PageHeader sheet="Site office · Overview" title={`Good to see you, ${me.data?.name.split(" ")[0] ?? ""}`} description="Keep the record of each build in one place: programme, updates, photographs and the people who follow them." />
+      <PageHeader sheet="Site office · Overview" documentTitle="Overview · Site office" title={`Good to see you, ${me.data?.name.split(" ")[0] ?? ""}`} description="Keep the record of each build in one place: programme, updates, photographs and the people who follow them." />
+      <WaitingPanel />
       <div className="grid gap-4 lg:grid-cols-2">
         <Sheet label="Projects" title="Builds in this site office">
           <ul className="divide-y divide-rule">
@@ -37,7 +39,7 @@ export function OfficeHomePage() {
         </Sheet>
         {me.data?.role === "admin" ? (
           <Sheet label="Mail" title="Outbox">
-            <p className="text-sm text-ink-soft">Mail goes to the local sink in this set-up; read each message as sent, with its single-use links masked.</p>
+            <p className="text-sm text-ink-soft">In this demo, mail is kept here instead of being delivered: read each message as it was sent, with its single-use links masked.</p>
             <p className="mt-3">
               <Link to="/office/outbox" className="font-medium text-accent underline underline-offset-4">
                 Open the outbox

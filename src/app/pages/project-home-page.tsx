@@ -15,6 +15,7 @@ import { ProjectNav } from "../../features/public-site/components/project-nav.ts
 import { ReadinessAtAGlance } from "../../features/public-site/components/readiness-glance.tsx";
 import { facilityReadQueryOptions } from "../../features/public-site/facility-api.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
+import { useTitle } from "../../lib/use-title.ts";
 
 // The milestones are asked for as the public sees them, so a signed-in member of staff
 // reading the public page sees the same list as a visitor. (Percent complete comes from
@@ -115,6 +116,8 @@ export const projectHomeLoader: RouteLoader = (qc) => async ({ params }) => {
 export function ProjectHomePage() {
   const { slug = "" } = useParams();
   const p = useSuspenseQuery(projectQueryOptions(slug)).data;
+  // The build's own page is titled by its name alone (not "<name> · <name>").
+  useTitle(p.name);
   // The programme is a part of the page, not the page: if it cannot be read the rest still shows.
   const milestones = useMilestones(slug, PUBLIC);
   return (

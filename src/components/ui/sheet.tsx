@@ -1,4 +1,5 @@
 import type { ReactNode } from "react";
+import { useTitle } from "../../lib/use-title.ts";
 
 /** A bordered panel on the paper, like one sheet of a drawing set. */
 export function Sheet({ title, label, actions, children, className = "" }: { title?: ReactNode; label?: string; actions?: ReactNode; children: ReactNode; className?: string }) {
@@ -18,8 +19,12 @@ export function Sheet({ title, label, actions, children, className = "" }: { tit
   );
 }
 
-/** The head of a page: a sheet reference, the title, a line of explanation and actions. */
-export function PageHeader({ sheet, title, description, actions }: { sheet?: string; title: string; description?: ReactNode; actions?: ReactNode }) {
+/**
+ * The head of a page: a sheet reference, the title, a line of explanation and actions. It names the document too, "<title> · <area>" ("Enquiries · Site office"),
+ * unless the page gives its own `documentTitle` (an investor's page of one build names the build).
+ */
+export function PageHeader({ sheet, title, description, actions, documentTitle }: { sheet?: string; title: string; description?: ReactNode; actions?: ReactNode; documentTitle?: string }) {
+  useTitle(documentTitle ?? title, documentTitle ? undefined : sheet?.split(" · ")[0]);
   return (
     <div className="mb-6 flex flex-wrap items-end justify-between gap-4 border-b-2 border-ink pb-3">
       <div className="min-w-0">

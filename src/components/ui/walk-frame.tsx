@@ -1,9 +1,11 @@
 import type { Dispatch, SetStateAction } from "react";
 import { Link } from "react-router-dom";
+import { useTitle } from "../../lib/use-title.ts";
 import { Button } from "./button.tsx";
 
 /** The head of a site walk (the programme's, the plant's): where it is, and the way back to the tables. */
 export function WalkHeader({ sheet, title, back, backLabel }: { sheet: string; title: string; back: string; backLabel: string }) {
+  useTitle(title, sheet.split(" · ")[0]);
   return (
     <div className="mb-4 flex items-center justify-between gap-3 border-b-2 border-ink pb-2">
       <div>

@@ -29,8 +29,8 @@ const ACTIONS: Record<string, string> = {
 
 const col = createColumnHelper<AuditEvent>();
 const columns = [
-  col.accessor("at", { header: "When", cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
-  col.accessor("action", { header: "What", cell: (c) => ACTIONS[c.getValue()] ?? c.getValue() }),
+  col.accessor("at", { header: "When", meta: { key: true }, cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
+  col.accessor("action", { header: "What", meta: { key: true }, cell: (c) => ACTIONS[c.getValue()] ?? c.getValue() }),
   col.accessor("actorEmail", { header: "Who", cell: (c) => <span className="break-all">{c.getValue() ?? "—"}</span> }),
   col.accessor("targetLabel", { header: "Concerning", cell: (c) => <span className="break-all">{c.getValue() ?? "—"}</span> }),
   col.accessor("ip", { header: "From", cell: (c) => <span className="font-mono text-xs">{c.getValue() ?? "—"}</span> }),

@@ -6,7 +6,17 @@ import { sessionKeys } from "../../lib/session.ts";
 export const authKeys = {
   all: ["auth"] as const,
   invitation: (token: string) => [...authKeys.all, "invitation", token] as const,
+  resetLink: (token: string) => [...authKeys.all, "reset-link", token] as const,
 };
+
+/** Whether a reset link is still usable (asking does not spend it). */
+export const resetLinkQueryOptions = (token: string) =>
+  queryOptions({
+    queryKey: authKeys.resetLink(token),
+    queryFn: () => api.get<{ ok: true }>(`/api/auth/password-reset/${token}`),
+    retry: false,
+    staleTime: 0,
+  });
 
 export const invitationQueryOptions = (token: string) =>
   queryOptions({

@@ -11,10 +11,12 @@ import { Notice } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { applyApiError, ROLE_LABEL } from "../../lib/format.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
-import { homeFor, invitationQueryOptions, useAcceptInvitation, useLogin, useRequestReset, useResetPassword } from "./api.ts";
+import { useTitle } from "../../lib/use-title.ts";
+import { homeFor, invitationQueryOptions, resetLinkQueryOptions, useAcceptInvitation, useLogin, useRequestReset, useResetPassword } from "./api.ts";
 import { safeReturnAddress } from "./return-address.ts";
 
 function AuthCard({ title, lead, children }: { title: string; lead?: string; children: React.ReactNode }) {
+  useTitle(title, "Plumbline");
   return (
     <div className="mx-auto w-full max-w-md px-4 py-10 sm:py-16">
       <div className="border border-rule bg-sheet">
@@ -90,19 +92,24 @@ export const invitationLoader: RouteLoader = (qc) => async ({ params }) => {
   return null;
 };
 
-/** The invitation route's error element: an unknown, used or expired invitation, in the page's own words. */
-export function InvitationError() {
+/** A link from an e-mail that cannot be used (the route's error): the server's reason, and the way on. */
+function DeadLink({ title, what, to, label }: { title: string; what: string; to: string; label: string }) {
   const error = useRouteError();
   return (
-    <AuthCard title="This invitation cannot be used">
-      <Notice tone="error">{error instanceof Error ? error.message : "This invitation cannot be opened."}</Notice>
+    <AuthCard title={title}>
+      <Notice tone="error">{error instanceof Error ? error.message : `This ${what} cannot be opened.`}</Notice>
       <p className="mt-4 text-sm">
-        <Link to="/sign-in" className="text-accent underline underline-offset-4">
-          Go to sign-in
+        <Link to={to} className="text-accent underline underline-offset-4">
+          {label}
         </Link>
       </p>
     </AuthCard>
   );
+}
+
+/** The invitation route's error element: an unknown, used or expired invitation, in the page's own words. */
+export function InvitationError() {
+  return <DeadLink title="This invitation cannot be used" what="invitation" to="/sign-in" label="Go to sign-in" />;
 }
 
 export function AcceptInvitationPage() {
@@ -167,6 +174,16 @@ export function ForgotPasswordPage() {
 }
 
 const ResetFormSchema = ResetPasswordInputSchema.extend({ confirm: z.string() }).refine(passwordsMatch, PASSWORDS_DIFFER);
+
+export const resetPasswordLoader: RouteLoader = (qc) => async ({ params }) => {
+  await qc.fetchQuery(resetLinkQueryOptions(params.token ?? ""));
+  return null;
+};
+
+/** The reset route's error element: a used, expired or unknown link says so instead of showing a form that cannot work. */
+export function ResetLinkError() {
+  return <DeadLink title="This reset link cannot be used" what="reset link" to="/forgot-password" label="Ask for a new link" />;
+}
 
 export function ResetPasswordPage() {
   const { token = "" } = useParams();

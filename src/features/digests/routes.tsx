@@ -33,7 +33,7 @@ function RunsTable({ runs, timeZone }: { runs: DigestRunSummary[]; timeZone?: st
   const action = usePauseResume();
   if (runs.length === 0) return <p className="text-ink-soft">No digest has been sent yet.</p>;
   return (
-    <div className="overflow-x-auto">
+    <div className="overflow-x-auto" tabIndex={0} role="region" aria-label="Digest runs">
       <table className="w-full text-left text-sm">
         <thead>
           <tr className="border-b border-rule">

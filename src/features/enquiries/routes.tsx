@@ -14,6 +14,7 @@ import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { applyFieldErrors, formatDate, formatInstant } from "../../lib/format.ts";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { useTitle } from "../../lib/use-title.ts";
 import { enquiriesQueryOptions, enquiryFacilityQueryOptions, enquiryOwnersQueryOptions, enquiryProjectQueryOptions, enquiryQueryOptions, useUpdateEnquiry } from "./api.ts";
 import { EnquiryForm, type EnquiryAbout } from "./components/enquiry-form.tsx";
 import { ENQUIRY_STATUS_LOOK, enquirySummary, KIND_WORD } from "./words.ts";
@@ -55,6 +56,7 @@ export function EnquireError() {
 export function EnquirePage() {
   const { slug = "" } = useParams();
   const p = useSuspenseQuery(enquiryProjectQueryOptions(slug)).data;
+  useTitle("Make an enquiry", p.name);
   const about = useBlockAbout(slug);
   return (
     <div className="mx-auto w-full max-w-3xl px-4 py-8 sm:py-12">
@@ -184,9 +186,10 @@ export function EnquiriesPage() {
   const columns = useMemo(
     () => [
       col.accessor("createdAt", { header: "Received", cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
-      col.accessor("kind", { header: "About", cell: (c) => KIND_WORD[c.getValue()] }),
+      col.accessor("kind", { header: "About", meta: { key: true }, cell: (c) => KIND_WORD[c.getValue()] }),
       col.accessor("name", {
         header: "From",
+        meta: { key: true },
         cell: (c) => (
           <div className="min-w-40">
             <p className="font-medium">{c.getValue()}</p>
@@ -200,6 +203,7 @@ export function EnquiriesPage() {
       col.display({
         id: "open",
         header: "",
+        meta: { actions: true },
         cell: (c) => (
           <Button size="sm" aria-label={`Open the enquiry from ${c.row.original.name}`} onClick={() => setParam("open", String(c.row.original.id))}>
             Open

@@ -64,9 +64,10 @@ function useRefusedByServer(queryKey: readonly unknown[]): boolean {
 
 const col = createColumnHelper<OutboxMessage>();
 const columns = [
-  col.accessor("receivedAt", { header: "Received", cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
+  col.accessor("receivedAt", { header: "Received", meta: { key: true }, cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
   col.accessor("subject", {
     header: "Subject",
+    meta: { key: true },
     cell: (c) => (
       <Link to={`/office/outbox/${c.row.original.id}`} className="font-medium underline underline-offset-4">
         {c.getValue() || "(no subject)"}
@@ -102,7 +103,7 @@ function OutboxList({ to }: { to: string }) {
       <PageHeader
         sheet="Site office · Outbox"
         title="Outbox"
-        description="Every e-mail Plumbline sent while mail goes to the local sink: invitations, resets, digests. Nothing here left the machine. Single-use and signed links are shown masked; they work only from the recipient's own copy."
+        description="Every e-mail Plumbline sent in this demo: invitations, resets, digests. None of it was delivered outside this demo. Single-use and signed links are shown masked; they work only from the recipient's own copy."
         actions={
           <Button size="sm" onClick={() => void list.refetch()} busy={list.isFetching}>
             Refresh
@@ -147,19 +148,22 @@ function OutboxMessageView({ id }: { id: number }) {
           ← All messages
         </Link>
       </p>
-      <div role="tablist" aria-label="Message views" className="mb-0 flex flex-wrap gap-1">
-        {(["html", "text", "headers"] as View[]).map((v) => (
-          <button
-            key={v}
-            role="tab"
-            type="button"
-            aria-selected={view === v}
-            onClick={() => setView(v)}
-            className={`border border-b-0 px-3 py-1.5 text-sm ${view === v ? "border-ink bg-sheet font-semibold" : "border-rule bg-paper text-ink-soft"}`}
-          >
-            {v === "html" ? "As HTML" : v === "text" ? "Plain text" : "Headers"}
-          </button>
-        ))}
+      <div className="flex flex-wrap items-end gap-2">
+        <div role="tablist" aria-label="Message views" className="mb-0 flex flex-wrap gap-1">
+          {(["html", "text", "headers"] as View[]).map((v) => (
+            <button
+              key={v}
+              role="tab"
+              type="button"
+              aria-selected={view === v}
+              onClick={() => setView(v)}
+              className={`border border-b-0 px-3 py-1.5 text-sm ${view === v ? "border-ink bg-sheet font-semibold" : "border-rule bg-paper text-ink-soft"}`}
+            >
+              {v === "html" ? "As HTML" : v === "text" ? "Plain text" : "Headers"}
+            </button>
+          ))}
+        </div>
+        {/* Beside the tabs, not inside their list: a tablist holds only tabs. */}
         <a className="ml-auto self-center text-sm text-accent underline underline-offset-4" href={`/api/outbox/${m.id}/raw`}>
           Raw source (.eml)
         </a>

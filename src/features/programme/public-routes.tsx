@@ -5,6 +5,7 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import { milestoneFinish } from "#shared/domain/programme-health.ts";
 import { StatusIcon, STATUS_LOOK, StatusMark } from "../../components/ui/status-mark.tsx";
 import type { RouteLoader } from "../../lib/loaders.ts";
+import { useTitle } from "../../lib/use-title.ts";
 import { healthQueryOptions, milestonesQueryOptions, programmeProjectQueryOptions } from "./api.ts";
 import { WholeProgrammeNote } from "./components/whole-programme-note.tsx";
 import { formatLongDate, formatMonthYear, todayIn } from "./dates.ts";
@@ -103,6 +104,7 @@ export const publicTimelineLoader: RouteLoader = (qc) => async ({ params }) => {
 export function PublicTimelinePage({ glance }: { glance?: ReactNode } = {}) {
   const { slug = "" } = useParams();
   const p = useSuspenseQuery(programmeProjectQueryOptions(slug)).data;
+  useTitle("Timeline", p.name);
   const list = useSuspenseQuery(milestonesQueryOptions(slug, PUBLIC)).data;
   const health = useSuspenseQuery(healthQueryOptions(slug)).data;
   const today = todayIn(p.timeZone);

@@ -1,6 +1,7 @@
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { Link } from "react-router-dom";
 import type { RouteLoader } from "../../lib/loaders.ts";
+import { useTitle } from "../../lib/use-title.ts";
 import { projectsQueryOptions } from "./api.ts";
 
 export const homeLoader: RouteLoader = (qc) => async () => {
@@ -10,6 +11,7 @@ export const homeLoader: RouteLoader = (qc) => async () => {
 
 export function HomePage() {
   const projects = useSuspenseQuery(projectsQueryOptions());
+  useTitle("What is being built", "Plumbline");
   return (
     <div className="mx-auto max-w-5xl px-4 py-10">
       <p className="label-caps">Construction progress</p>

@@ -10,7 +10,7 @@ import { BlockCard } from "./components/facility-block-card.tsx";
 import { KeyFacts } from "./components/facility-key-facts.tsx";
 import { SystemCard } from "./components/facility-system-card.tsx";
 import { ProjectMasthead } from "./components/project-nav.tsx";
-import { useTitle } from "./use-title.ts";
+import { useTitle } from "../../lib/use-title.ts";
 
 /*
  * The facility as a prospect reads it. The page shows what the public may see, whoever reads it
@@ -62,7 +62,7 @@ export function FacilityPage() {
   const { slug = "" } = useParams();
   const project = useSuspenseQuery(siteProjectQueryOptions(slug)).data;
   const f = publicPart(useSuspenseQuery(facilityReadQueryOptions(slug)).data);
-  useTitle(`Capacity and readiness · ${project.name}`);
+  useTitle("Capacity and readiness", project.name);
   const racks = f.blocks.reduce((s, b) => s + b.racks, 0);
   const kw = f.blocks.reduce((s, b) => s + b.itKw, 0);
   const blockName = new Map(f.blocks.map((b) => [b.id, b.name]));

@@ -18,7 +18,7 @@ import { PostBody } from "./components/post-body.tsx";
 import { PostCard } from "./components/post-card.tsx";
 import { ProjectMasthead } from "./components/project-nav.tsx";
 import { SearchBox } from "./components/search-box.tsx";
-import { useTitle } from "./use-title.ts";
+import { useTitle } from "../../lib/use-title.ts";
 import { capturedOn, dayOf, monthWords, SYSTEM_TAGS, tagFilter, tagWord } from "./words.ts";
 
 /*
@@ -106,7 +106,7 @@ export function UpdatesPage() {
   const project = useSuspenseQuery(siteProjectQueryOptions(slug));
   const updates = useSuspenseQuery(updatesQueryOptions(slug, filters));
   const about = facilityFilterName(filters, updates.data.items.map((p) => p.tags));
-  useTitle(`Updates · ${project.data.name}`);
+  useTitle("Updates", project.data.name);
 
   const set = (next: Record<string, string | undefined>) =>
     setParams((prev) => {
@@ -269,7 +269,7 @@ function PublishedItem<T extends { slug: string; title: string }>({
   article: (item: T) => ReactNode;
 }) {
   const data = isRedirect(answer) ? null : answer;
-  useTitle(data?.title);
+  useTitle(data?.title, project.name);
   if (isRedirect(answer)) return <Navigate to={redirectTarget(slug, kind, answer.redirectTo)} replace />;
   if (data && data.slug !== asked) return <Navigate to={`/projects/${slug}/${kind}/${data.slug}`} replace />;
   return (
@@ -305,7 +305,7 @@ export function GalleryPage() {
   const project = useSuspenseQuery(siteProjectQueryOptions(slug));
   const gallery = useSuspenseQuery(galleryQueryOptions(slug, filters));
   const [open, setOpen] = useState<number | null>(null);
-  useTitle(`Gallery · ${project.data.name}`);
+  useTitle("Gallery", project.data.name);
 
   const set = (k: keyof GalleryFilters, v: string) =>
     setParams((prev) => {

@@ -7,7 +7,7 @@ import { siteProjectQueryOptions } from "./api.ts";
 import { ProjectMasthead } from "./components/project-nav.tsx";
 import { SearchBox } from "./components/search-box.tsx";
 import { searchQueryOptions } from "./search-api.ts";
-import { useTitle } from "./use-title.ts";
+import { useTitle } from "../../lib/use-title.ts";
 
 /** Each kind's heading, in the order the groups are shown. */
 const KIND_HEADINGS: Record<SearchKind, string> = {
@@ -87,7 +87,7 @@ export function SearchPage() {
   const [draft, setDraft] = useState(q);
   useEffect(() => setDraft(q), [q]);
   const project = useSuspenseQuery(siteProjectQueryOptions(slug));
-  useTitle(q ? `“${q}” · Search · ${project.data.name}` : `Search · ${project.data.name}`);
+  useTitle(q ? `“${q}” · Search` : "Search", project.data.name);
   const onSearch = (e: FormEvent) => {
     e.preventDefault();
     const next = draft.trim();

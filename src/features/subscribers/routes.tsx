@@ -6,7 +6,7 @@ import { Link, useParams, useRouteError } from "react-router-dom";
 import { toast } from "sonner";
 import type { z } from "zod";
 import {
-  CONSENT,
+  INVESTOR_CONSENT,
   FrequencySchema,
   InterestSchema,
   InvestorDigestInputSchema,
@@ -23,6 +23,7 @@ import { ApiError } from "../../lib/api-client.ts";
 import { applyApiError, SYSTEM_WORD } from "../../lib/format.ts";
 import { INVESTOR_ROLES, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { meQueryOptions } from "../../lib/session.ts";
+import { useTitle } from "../../lib/use-title.ts";
 import {
   confirmationQueryOptions,
   investorDigestQueryOptions,
@@ -51,7 +52,8 @@ import { TopicsPicker } from "./components/topics-picker.tsx";
 import { FREQUENCY_SHORT, FREQUENCY_WORD, INTEREST_SHORT, STATUS_LOOK } from "./words.ts";
 
 /** One column on the paper, for the pages a visitor reaches from a form or an e-mail. */
-function PublicSheet({ label, title, lead, children }: { label: string; title: string; lead?: ReactNode; children: ReactNode }) {
+function PublicSheet({ label, title, lead, children, documentTitle }: { label: string; title: string; lead?: ReactNode; children: ReactNode; documentTitle?: string }) {
+  useTitle(documentTitle ?? title, documentTitle ? undefined : label);
   return (
     <div className="mx-auto w-full max-w-2xl px-4 py-8 sm:py-12">
       <p className="label-caps">{label}</p>
@@ -132,7 +134,7 @@ export function ProjectSubscribePage() {
   const { slug = "" } = useParams();
   const options = useSuspenseQuery(subscriptionOptionsQueryOptions(slug)).data;
   return (
-    <PublicSheet label="Progress by e-mail" title={`Follow ${options.project.name}`} lead="Progress e-mails from the site: what was built, commissioned and moved on the programme. Nothing is sent until you confirm.">
+    <PublicSheet label="Progress by e-mail" title={`Follow ${options.project.name}`} documentTitle={`Progress by e-mail · ${options.project.name}`} lead="Progress e-mails from the site: what was built, commissioned and moved on the programme. Nothing is sent until you confirm.">
       <SubscribeForm key={slug} options={options} />
     </PublicSheet>
   );
@@ -336,7 +338,7 @@ function InvestorDigestForm({ setting }: { setting: InvestorDigestSetting }) {
         name="topics"
         render={({ field, fieldState }) => <TopicsPicker value={field.value ?? null} onChange={field.onChange} areas={setting.options.areas} systems={setting.options.systems} error={fieldState.error?.message} />}
       />
-      <p className="text-xs text-ink-faint">{CONSENT.text}</p>
+      <ConsentNote consent={INVESTOR_CONSENT} />
       <div>
         <Button type="submit" variant="primary" busy={save.isPending}>
           Save digest

@@ -52,8 +52,8 @@ function UsersTable({ users, organisations }: { users: UserRow[]; organisations:
   const [sorting, setSorting] = useState<SortingState>([]);
   const columns = useMemo(
     () => [
-      col.accessor("name", { header: "Name", cell: (c) => <span className="font-medium">{c.getValue()}</span> }),
-      col.accessor("email", { header: "E-mail", cell: (c) => <span className="break-all">{c.getValue()}</span> }),
+      col.accessor("name", { header: "Name", meta: { key: true }, cell: (c) => <span className="font-medium">{c.getValue()}</span> }),
+      col.accessor("email", { header: "E-mail", meta: { key: true }, cell: (c) => <span className="break-all">{c.getValue()}</span> }),
       col.accessor("role", {
         header: "Role",
         cell: (c) => (

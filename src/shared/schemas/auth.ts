@@ -40,6 +40,10 @@ export type User = z.infer<typeof UserSchema>;
 export const SignedInSchema = z.object({ user: UserSchema });
 export type SignedIn = z.infer<typeof SignedInSchema>;
 
+/** GET /api/auth/session: who is signed in, `null` for a visitor. */
+export const SessionSchema = z.object({ user: UserSchema.nullable() });
+export type Session = z.infer<typeof SessionSchema>;
+
 /** GET /api/auth/invitations/:token — who the invitation is for; opening it changes nothing. */
 export const InvitationViewSchema = z.object({ email: z.string(), role: RoleSchema });
 export type InvitationView = z.infer<typeof InvitationViewSchema>;

@@ -32,6 +32,19 @@ export const CONSENT = {
     "Nothing is sent until I confirm from the e-mail I receive, and every e-mail has a link to change my choices or leave at once.",
 } as const;
 
+/**
+ * The consent wording of an investor account's own digest, chosen in the investor room while
+ * signed in: the account's address is already proven, so the digest starts at once (no
+ * confirmation e-mail, unlike `CONSENT`). Its own version is stored with the consent.
+ */
+export const INVESTOR_CONSENT = {
+  version: "2026-12-05-investor",
+  text:
+    "Send the investor digest of this build to my account's e-mail address, at the frequency and on the topics I chose. " +
+    "My account details and choices are used only to send it; the time and network address of this choice are kept as the record of my consent. " +
+    "Because I am signed in, it starts at once with no confirmation e-mail; every digest has a link to change my choices or stop, and I can turn it off here at any time.",
+} as const;
+
 const ProjectSlugSchema = z
   .string({ error: "is required" })
   .regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address")

@@ -16,9 +16,10 @@ const col = createColumnHelper<BudgetChangeAnswer>();
 const metaOf = (t: { options: { meta?: unknown } }) => t.options.meta as Meta;
 
 const columns = [
-  col.accessor("reference", { header: "Ref", cell: (c) => <span className="tabular whitespace-nowrap font-semibold">{c.getValue()}</span> }),
+  col.accessor("reference", { header: "Ref", meta: { key: true }, cell: (c) => <span className="tabular whitespace-nowrap font-semibold">{c.getValue()}</span> }),
   col.accessor("description", {
     header: "Change",
+    meta: { key: true },
     cell: ({ row }) => (
       <div className="min-w-40">
         <p className="font-medium">{row.original.description}</p>
@@ -55,6 +56,7 @@ const columns = [
   col.display({
     id: "edit",
     header: () => <span className="sr-only">Edit</span>,
+    meta: { actions: true },
     cell: ({ row, table }) => {
       const onEdit = metaOf(table).onEdit;
       return onEdit ? (

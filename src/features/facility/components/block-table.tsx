@@ -70,6 +70,7 @@ const columns = [
   col.display({
     id: "edit",
     header: "Change",
+    meta: { actions: true },
     cell: ({ row, table }) => {
       const onEdit = (table.options.meta as Meta).onEdit;
       return onEdit ? (

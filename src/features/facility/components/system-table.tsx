@@ -117,6 +117,7 @@ const columns = [
   col.display({
     id: "edit",
     header: "Change",
+    meta: { actions: true },
     cell: ({ row, table }) => {
       const actions = metaOf(table).actions;
       return actions ? (

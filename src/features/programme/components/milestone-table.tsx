@@ -136,6 +136,7 @@ const columns = [
   }),
   col.accessor("name", {
     header: "Milestone",
+    meta: { key: true },
     cell: ({ row, table }) => {
       const m = row.original;
       const meta = metaOf(table);

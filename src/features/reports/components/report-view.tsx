@@ -40,7 +40,7 @@ const ChartLoading = () => <Spinner label="Drawing the chart" />;
 function Blocks({ blocks }: { blocks: ReportFigures["summary"]["blocks"] }) {
   if (blocks.length === 0) return <Empty>No capacity block is on the record yet.</Empty>;
   return (
-    <div className="overflow-x-auto">
+    <div className="overflow-x-auto" tabIndex={0} role="region" aria-label="Capacity blocks">
       <table className="w-full text-sm" data-testid="report-blocks">
         <caption className="sr-only">Ready-for-service date of each capacity block against its baseline</caption>
         <thead>
@@ -348,7 +348,7 @@ function Appendix({ f }: { f: ReportFigures }) {
   return (
     <details className="border border-rule bg-sheet p-4">
       <summary className="cursor-pointer font-semibold">Appendix: the milestone table ({f.milestones.length})</summary>
-      <div className="mt-3 overflow-x-auto">
+      <div className="mt-3 overflow-x-auto" tabIndex={0} role="region" aria-label="Milestone table">
         <table className="w-full text-sm">
           <thead>
             <tr className="border-b border-rule text-left text-ink-soft">

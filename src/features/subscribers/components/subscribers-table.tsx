@@ -19,9 +19,10 @@ export function SubscribersTable({ rows }: { rows: SubscriberRow[] }) {
         header: "Subscriber",
         cell: (c) => (
           <div className="min-w-40">
-            <p className="font-medium">{c.getValue()}</p>
+            {/* Long words wrap anywhere, so a long name never widens the table past its frame. */}
+            <p className="font-medium [overflow-wrap:anywhere]">{c.getValue()}</p>
             <p className="break-all text-ink-soft">{c.row.original.email}</p>
-            {c.row.original.organisation ? <p className="text-ink-faint">{c.row.original.organisation}</p> : null}
+            {c.row.original.organisation ? <p className="text-ink-faint [overflow-wrap:anywhere]">{c.row.original.organisation}</p> : null}
           </div>
         ),
       }),
