@@ -1,5 +1,6 @@
 import type { ClientRateLimitInfo, Options, Store } from "express-rate-limit";
 import type { Db } from "../db/knex.ts";
+import { retryOnDeadlock } from "../db/retry.ts";
 
 /**
  * A shared counter for express-rate-limit in MariaDB, so a limit holds across every app
@@ -32,19 +33,19 @@ export class RateLimitRepository implements Store {
     const k = this.k(key);
     const resetAt = new Date(Date.now() + this.windowMs);
     // Assignments run left to right: `hits` must be decided before `reset_at` changes.
-    await this.db.raw(
+    await retryOnDeadlock(() => this.db.raw(
       `INSERT INTO rate_limit_hits (\`key\`, hits, reset_at) VALUES (?, 1, ?)
        ON DUPLICATE KEY UPDATE
          hits = IF(reset_at <= UTC_TIMESTAMP(3), 1, hits + 1),
          reset_at = IF(reset_at <= UTC_TIMESTAMP(3), VALUES(reset_at), reset_at)`,
       [k, resetAt],
-    );
+    ));
     const row = await this.db("rate_limit_hits").where({ key: k }).first();
     return { totalHits: Number(row?.hits ?? 1), resetTime: new Date(row?.reset_at ?? resetAt) };
   }
 
   async decrement(key: string): Promise<void> {
-    await this.db("rate_limit_hits").where({ key: this.k(key) }).andWhere("hits", ">", 0).decrement("hits", 1);
+    await retryOnDeadlock(() => this.db("rate_limit_hits").where({ key: this.k(key) }).andWhere("hits", ">", 0).decrement("hits", 1));
   }
 
   async resetKey(key: string): Promise<void> {

@@ -1,4 +1,5 @@
 import type { Db } from "../db/knex.ts";
+import { retryOnDeadlock } from "../db/retry.ts";
 import { SignInDelayRepository } from "./sign-in-delays.repository.ts";
 
 /** The longest wait between two attempts at one account from one address (seconds). */
@@ -38,18 +39,21 @@ export function createSignInDelays(deps: { db: Db; freeFailures: number; forgetA
 
   return {
     async begin(account, address) {
-      const wait = await deps.db.transaction(async (trx) => {
+      // Simultaneous sign-ins insert and lock neighbouring rows of one index: InnoDB may pick one as
+      // a deadlock's victim, which rolled back whole and runs again (never a 500 for a right password).
+      const wait = await retryOnDeadlock(() => deps.db.transaction(async (trx) => {
         const pair = await repo.lockPair(trx, key(account), address, forgetAfterSeconds);
         if (pair.waitSeconds > 0) return pair.waitSeconds;
         const failures = pair.failures + 1;
         await repo.recordFailure(trx, key(account), address, failures, signInWaitSeconds(failures, deps.freeFailures, cap), forgetAfterSeconds);
         return 0;
-      });
-      if (wait === 0) await repo.sweepExpired(50);
+      }));
+      // Tidying only: a sweep that loses a lock race is left to the next sign-in.
+      if (wait === 0) await repo.sweepExpired(50).catch(() => undefined);
       return wait;
     },
     async succeeded(account, address) {
-      await repo.forget(key(account), address);
+      await retryOnDeadlock(() => repo.forget(key(account), address));
     },
   };
 }

@@ -58,7 +58,8 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { lis
     SESSION_SECRET: "test-secret-not-for-production-0123456789",
     LOGIN_LIMIT_PER_IP: "100000",
     LOGIN_LIMIT_PER_ACCOUNT: "100000",
-    LOG_LEVEL: "silent",
+    // TEST_LOG_LEVEL=error shows the server's own error lines when a run must be traced.
+    LOG_LEVEL: process.env.TEST_LOG_LEVEL ?? "silent",
     PUBLIC_URL: port ? `http://127.0.0.1:${port}` : "http://plumbline.test",
     SMTP_SINK_PORT: "0",
     // Shared with the demo seed of this test database, never the repository's media/.
