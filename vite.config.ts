@@ -2,7 +2,7 @@ import { defineConfig } from "vite";
 import react from "@vitejs/plugin-react";
 import tailwindcss from "@tailwindcss/vite";
 
-export default defineConfig({
+export default defineConfig(({ isSsrBuild }) => ({
   plugins: [react(), tailwindcss()],
   server: {
     proxy: {
@@ -15,7 +15,9 @@ export default defineConfig({
     outDir: "dist",
     sourcemap: true,
     // dist/.vite/manifest.json: the server reads it to write each page's modulepreload hints.
-    manifest: true,
+    // The server entry (decision 059) is code only: no public files, no manifest of its own.
+    manifest: !isSsrBuild,
+    copyPublicDir: !isSsrBuild,
     chunkSizeWarningLimit: 900,
   },
-});
+}));

@@ -150,9 +150,10 @@ ensure_session_secret() {
 }
 
 build_client_if_stale() {
-  if [ ! -f dist/index.html ] || [ -n "$(find src index.html vite.config.ts package-lock.json -newer dist/index.html -print -quit 2>/dev/null)" ]; then
-    step "Building the client (vite build)"
+  if [ ! -f dist/index.html ] || [ ! -f dist/.server/entry-server.js ] || [ -n "$(find src index.html vite.config.ts package-lock.json -newer dist/index.html -print -quit 2>/dev/null)" ]; then
+    step "Building the client (vite build, and its server entry for the public pages: decision 059)"
     npx vite build --logLevel warn
+    npx vite build --logLevel warn --ssr src/entry-server.tsx --outDir dist/.server
   else
     step "Client build is up to date"
   fi

@@ -28,6 +28,7 @@ import { enquiriesRouter } from "./enquiries/enquiries.router.ts";
 import { mailEventsRouter, oneClickRouter, subscribersRouter } from "./subscribers/subscribers.router.ts";
 import { postsRouter } from "./posts/posts.router.ts";
 import { storiesRouter, storyPagesRouter } from "./stories/stories.router.ts";
+import { pressKitFilesRouter, pressKitsRouter } from "./press-kits/press-kits.router.ts";
 import { injectHead, type FeedsService } from "./feeds/feeds.service.ts";
 import { feedsRouter } from "./feeds/feeds.router.ts";
 import { injectHints, moduleHintsFor, readManifest } from "./feeds/preload-hints.ts";
@@ -39,7 +40,11 @@ import { documentsRouter } from "./documents/documents.router.ts";
 import { calendarFeedsRouter, calendarFilesRouter } from "./calendars/calendars.router.ts";
 import { reportsRouter } from "./reports/reports.router.ts";
 import { searchRouter } from "./search/search.router.ts";
+import { fillShell, pageRenderer } from "./ssr/ssr.render.ts";
 import { officeRouter } from "./office/office.router.ts";
+import { sitePlanRouter } from "./site-plan/site-plan.router.ts";
+import { writingHelpRouter } from "./writing-help/writing-help.router.ts";
+import { reviewLinksRouter, withoutReviewTokens } from "./review-links/review-links.router.ts";
 import type { Services } from "./services.ts";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
@@ -58,7 +63,7 @@ export interface HttpAppDeps {
  */
 export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   const { db, config, logger } = deps;
-  const { publicCache, sessions, auth, users, audit, outbox, projects, programme, facility, media, mediaUploads, rateLimits, signInDelays, enquiries, subscribers, posts, stories, site, digests } = services;
+  const { publicCache, sessions, auth, users, audit, outbox, projects, projectHero, programme, facility, media, mediaUploads, rateLimits, signInDelays, enquiries, subscribers, posts, stories, site, digests } = services;
   const app = express();
   app.disable("x-powered-by");
   app.set("trust proxy", config.TRUST_PROXY);
@@ -84,6 +89,8 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
         return id;
       },
       autoLogging: { ignore: (req) => !req.url?.startsWith("/api") },
+      // A review link's token is its reader's key: request lines never carry it (decision 060).
+      serializers: { req: withoutReviewTokens },
       customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? "error" : res.statusCode >= 400 ? "info" : "debug"),
     }),
   );
@@ -160,7 +167,7 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   api.use(usersRouter(users));
   api.use(auditRouter(audit));
   api.use(outboxRouter(outbox, config.mailMode));
-  api.use(projectsRouter(projects));
+  api.use(projectsRouter(projects, projectHero));
   api.use(
     subscribersRouter({
       subscribers,
@@ -178,9 +185,11 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   );
   api.use(programmeRouter(programme));
   api.use(facilityRouter(facility));
+  api.use(sitePlanRouter(services.sitePlan));
   api.use(mediaRouter(media, mediaUploads));
   api.use(postsRouter(posts));
   api.use(storiesRouter(stories));
+  api.use(pressKitsRouter(services.pressKits));
   api.use(digestsRouter(digests));
   api.use(risksRouter(services.risks));
   api.use(decisionsRouter(services.decisions));
@@ -190,6 +199,8 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   api.use(reportsRouter(services.reports));
   api.use(searchRouter(services.search));
   api.use(officeRouter(services.office));
+  api.use(writingHelpRouter(services.writingHelp));
+  api.use(reviewLinksRouter(services.reviewLinks));
   api.use(apiNotFound);
   app.use("/api", api);
   // RFC 8058 one-click unsubscribe (POST); a GET of the same path is the client's page.
@@ -200,10 +211,12 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
   app.use(feedsRouter(site));
   // The milestone calendars (.ics), public and personal (before the client's pages).
   app.use(calendarFilesRouter(services.calendars));
+  // The public press kit download (a zip; before the client's pages), limited per network address.
+  app.use(pressKitFilesRouter({ pressKits: services.pressKits, limit: { perIp: config.PRESS_KIT_LIMIT_PER_IP, windowMs: config.PRESS_KIT_LIMIT_WINDOW_MINUTES * 60_000 }, store: rateLimits.pressKitIp }));
   // An old address of a photo story answers 301 to its current page (before the HTML shell).
   app.use(storyPagesRouter(stories));
 
-  if (config.SERVE_CLIENT) mountClient(app, deps.clientDir ?? path.join(ROOT, "dist"), site);
+  if (config.SERVE_CLIENT) mountClient(app, deps.clientDir ?? path.join(ROOT, "dist"), site, config.SERVER_RENDER ? logger : null);
   app.use(errorHandler);
 
   return app;
@@ -211,9 +224,13 @@ export function createHttpApp(services: Services, deps: HttpAppDeps): Express {
 
 const FALLBACK_SHELL = `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Plumbline</title></head><body><div id="root">The client has not been built yet: run npm start or npx vite build.</div></body></html>`;
 
-/** Static assets with long caching, and the HTML shell (200) for every page path. */
-function mountClient(app: Express, dir: string, site: FeedsService): void {
+/**
+ * Static assets with long caching, and the HTML shell (200) for every page path; a visitor's
+ * public page comes rendered in it when `renderWith` (the logger for its failures) is given.
+ */
+function mountClient(app: Express, dir: string, site: FeedsService, renderWith: Logger | null): void {
   const indexPath = path.join(dir, "index.html");
+  const renderer = renderWith ? pageRenderer(dir, renderWith) : null;
   app.use("/assets", express.static(path.join(dir, "assets"), { immutable: true, maxAge: "365d", index: false, fallthrough: false }));
   app.use(express.static(dir, { index: false, maxAge: "1h" }));
   let shell: string | null = null;
@@ -229,6 +246,9 @@ function mountClient(app: Express, dir: string, site: FeedsService): void {
     if (page && "redirect" in page) return res.redirect(301, page.redirect);
     // The page's own chunks start with the HTML instead of after the entry script.
     const html = injectHints(page ? injectHead(shell, page.head) : shell, moduleHintsFor(manifest, req.path));
-    res.set("Cache-Control", "no-cache").type("html").send(html);
+    // A reviewer's page shows a draft: no search engine keeps it, whatever a crawler makes of the page.
+    if (req.path.startsWith("/review/")) res.set("X-Robots-Tag", "noindex");
+    const rendered = await renderer?.render(req);
+    res.set("Cache-Control", "no-cache").type("html").send(rendered ? fillShell(html, rendered) : html);
   });
 }

@@ -73,6 +73,8 @@ const ConfigSchema = z.object({
   BODY_LIMIT: z.string().regex(/^\d+(b|kb|mb)$/i, "must look like 100kb or 1mb").default("1mb"),
   DEMO_PASSWORD: z.string().min(8).default("plumbline-demo"),
   SERVE_CLIENT: bool.default(true),
+  // The public pages' HTML carries them rendered for visitors (decision 059); false leaves every page to the browser.
+  SERVER_RENDER: bool.default(true),
   // Signs subscribers' confirmation, preferences and unsubscribe links; derived from SESSION_SECRET when unset.
   TOKEN_SECRET: z.string().min(32, "must be at least 32 characters").optional(),
   // The local sink refuses recipients matching this pattern with 550 (`*` any run, `?` one character).
@@ -86,6 +88,9 @@ const ConfigSchema = z.object({
   SUBSCRIBE_LIMIT_WINDOW_MINUTES: z.coerce.number().int().positive().default(60),
   ENQUIRY_LIMIT_PER_IP: z.coerce.number().int().positive().default(10),
   ENQUIRY_LIMIT_WINDOW_MINUTES: z.coerce.number().int().positive().default(60),
+  // Public press kit downloads per network address and window (decision 062): each reads many files.
+  PRESS_KIT_LIMIT_PER_IP: z.coerce.number().int().positive().default(20),
+  PRESS_KIT_LIMIT_WINDOW_MINUTES: z.coerce.number().int().positive().default(15),
   // Digest messages per second per process (a hosted provider's sending limit); 0 = as fast as the relay accepts.
   DIGEST_SEND_RATE_PER_SECOND: z.coerce.number().min(0).max(10_000).default(0),
   // Digest sending in this process: 0 leaves it to other worker processes (digest runs are still created).

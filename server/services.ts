@@ -7,6 +7,8 @@ import { createSessionStore } from "./auth/session.service.ts";
 import type { Mailer } from "./mail/mail.service.ts";
 import { createOutboxService } from "./mail/mail.service.ts";
 import { createProjectsService } from "./projects/projects.service.ts";
+import { createProjectHero } from "./projects/projects.hero.ts";
+import { PostListQuerySchema } from "#shared/schemas/posts.ts";
 import { createProgrammeService } from "./programme/programme.service.ts";
 import { createFacilityService } from "./facility/facility.service.ts";
 import { createRisksService } from "./risks/risks.service.ts";
@@ -23,6 +25,9 @@ import { createSubscribersService } from "./subscribers/subscribers.service.ts";
 import { createPostsService } from "./posts/posts.service.ts";
 import { createPublishingService } from "./publishing/publishing.service.ts";
 import { createStoriesService } from "./stories/stories.service.ts";
+import { createReviewLinksService } from "./review-links/review-links.service.ts";
+import { createPressKitsService } from "./press-kits/press-kits.service.ts";
+import { createProjectPressTerms } from "./projects/projects.press-terms.ts";
 import { createFeedsService } from "./feeds/feeds.service.ts";
 import { createPublicCache } from "./feeds/public-cache.ts";
 import { createDigestsService } from "./digests/digests.service.ts";
@@ -31,6 +36,8 @@ import { createCalendarsService } from "./calendars/calendars.service.ts";
 import { createReportsService } from "./reports/reports.service.ts";
 import { createSearchService } from "./search/search.service.ts";
 import { createOfficeService } from "./office/office.service.ts";
+import { createSitePlanService } from "./site-plan/site-plan.service.ts";
+import { createWritingHelpService } from "./writing-help/writing-help.service.ts";
 
 export interface ServiceDeps {
   db: Db;
@@ -71,6 +78,8 @@ export function createServices(deps: ServiceDeps) {
   });
   // Capacity blocks, plant and site features: readiness reads the programme's milestone dates.
   const facility = createFacilityService({ db, projects, programme, accounts, audit });
+  // The site plan: its areas' statuses come from the programme's milestones in them.
+  const sitePlan = createSitePlanService({ db, projects, programme, audit });
   // The investor record's risks and issues register, and decisions needed (which link risks).
   const risks = createRisksService({
     db,
@@ -135,6 +144,7 @@ export function createServices(deps: ServiceDeps) {
     subscribeIp: createRateLimitStore(db, "subscribe-ip"),
     subscribeAddress: createRateLimitStore(db, "subscribe-address"),
     enquiryIp: createRateLimitStore(db, "enquiry-ip"),
+    pressKitIp: createRateLimitStore(db, "press-kit-ip"),
   };
   const signInDelays = createSignInDelays({ db, freeFailures: config.LOGIN_LIMIT_PER_ACCOUNT, forgetAfterMs: config.LOGIN_LIMIT_WINDOW_MINUTES * 60_000 });
   const enquiries = createEnquiriesService({ db, mailer, logger, projects, users, accounts, publicUrl: config.PUBLIC_URL });
@@ -154,7 +164,22 @@ export function createServices(deps: ServiceDeps) {
   const publishingWorkflow = createPublishingService({ db });
   const posts = createPostsService({ db, projects, programme, media, publishing: publishingWorkflow, facility, onChange: publicCache.clear });
   const stories = createStoriesService({ db, projects, media, publishing: publishingWorkflow, onChange: publicCache.clear });
-  const site = createFeedsService({ projects, posts, stories, facility, publicUrl: config.PUBLIC_URL });
+  // Review links: an outside reviewer reads one revision of a post or story without an account (decision 060).
+  const reviewLinks = createReviewLinksService({ db, logger, posts, stories, media, accounts, audit, mailer, publicUrl: config.PUBLIC_URL, tokenSecret: config.TOKEN_SECRET });
+  // Press kits (decision 062): photos, a story or a gallery filter as one streamed zip, with the project's usage terms.
+  const pressKits = createPressKitsService({ projects, pressTerms: createProjectPressTerms({ db, projects, audit }), media, stories, audit });
+  // The hero photograph staff choose, and the home page's builds (decision 055): what everyone sees.
+  const projectHero = createProjectHero({
+    db,
+    projects,
+    audit,
+    media,
+    percentComplete: async (slug) => (await programme.health(slug, {}, "public")).percentComplete,
+    publicBlocks: async (slug) => (await facility.facility(slug, {}, "public")).blocks,
+    latestCover: async (slug) => (await posts.list(slug, PostListQuerySchema.parse({}), { user: null, ip: null })).items.find((p) => p.cover)?.cover ?? null,
+    onChange: publicCache.clear,
+  });
+  const site = createFeedsService({ projects, posts, stories, facility, heroes: projectHero, publicUrl: config.PUBLIC_URL });
   const digests = createDigestsService({
     db,
     logger,
@@ -184,6 +209,8 @@ export function createServices(deps: ServiceDeps) {
   const office = createOfficeService({ projects, posts, media, enquiries, digests, decisions, facility });
   // Monthly investor reports: figures as at a month end from every module above, the PDF kept in the document library.
   const reports = createReportsService({ db, logger, projects, programme, facility, budget, risks, decisions, media, mediaStorage, documents, users, mailer, outbox, audit, publicUrl: config.PUBLIC_URL });
+  // Help for the people who write: the draft suggested from what happened since the last update (decision 061).
+  const writingHelp = createWritingHelpService({ projects, programme, facility, risks, decisions, media, posts });
   // Milestone calendars: the public feed and personal feeds behind a revocable token.
   const calendars = createCalendarsService({ db, projects, programme, facility, decisions, reports, accounts, publicUrl: config.PUBLIC_URL });
 
@@ -196,9 +223,13 @@ export function createServices(deps: ServiceDeps) {
     users,
     outbox,
     projects,
+    /** The project's hero photograph and the home page's builds. */
+    projectHero,
     programme,
     /** The facility: blocks, plant systems and units, site features, their figures (digests read `figuresAt`). */
     facility,
+    /** The site plan: the site's areas on a grid, each with its status. */
+    sitePlan,
     /** The media library's service (other modules' services take it too). */
     media,
     mediaStorage,
@@ -213,6 +244,8 @@ export function createServices(deps: ServiceDeps) {
     posts,
     /** Photo stories; tests run their scheduled publication with a chosen `now` (stories.publishDue). */
     stories,
+    /** Press kits: staff and public zips of photographs, and the project's usage terms. */
+    pressKits,
     site,
     /** The document library: documents, versions, stamped copies, the view log; `movesIn` for digests. */
     documents,
@@ -230,6 +263,10 @@ export function createServices(deps: ServiceDeps) {
     search,
     /** The work waiting for a staff member (GET /api/office/waiting). */
     office,
+    /** Help for the people who write: draft suggestions (GET /api/projects/:slug/draft-suggestion). */
+    writingHelp,
+    /** Review links for outside reviewers: made, listed and revoked by staff, opened and answered by the reviewer. */
+    reviewLinks,
     /** Monthly investor reports; the worker sends their notices (`sendNotices`). */
     reports,
     /** The process is stopping: work that requests set going (the subscription mail they queued) starts no more. */

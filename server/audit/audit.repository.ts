@@ -27,15 +27,21 @@ export async function insertAuditEvent(q: Q, e: AuditInsert): Promise<void> {
   });
 }
 
+/** One page of events, newest first, with how many match in all. */
 export async function listAuditEvents(
   q: Q,
-  f: { action?: string; before?: number; limit: number },
-): Promise<AuditEvent[]> {
-  const query = q("audit_events").orderBy("id", "desc").limit(f.limit);
-  if (f.action) query.where({ action: f.action });
-  if (f.before) query.where("id", "<", f.before);
-  const rows = await query;
-  return rows.map((r: Record<string, unknown>) => ({
+  f: { action?: string; before?: number },
+  window: { offset: number; limit: number },
+): Promise<{ items: AuditEvent[]; total: number }> {
+  const matching = () => {
+    const query = q("audit_events");
+    if (f.action) query.where({ action: f.action });
+    if (f.before) query.where("id", "<", f.before);
+    return query;
+  };
+  const [rows, countRow] = await Promise.all([matching().orderBy("id", "desc").offset(window.offset).limit(window.limit), matching().count({ n: "*" }).first()]);
+  const total = Number((countRow as { n?: number } | undefined)?.n ?? 0);
+  const items = rows.map((r: Record<string, unknown>) => ({
     id: Number(r.id),
     at: (r.at as Date).toISOString(),
     actorEmail: (r.actor_email as string | null) ?? null,
@@ -46,4 +52,5 @@ export async function listAuditEvents(
     ip: (r.ip as string | null) ?? null,
     detail: r.detail ? (JSON.parse(String(r.detail)) as Record<string, unknown>) : null,
   }));
+  return { items, total };
 }

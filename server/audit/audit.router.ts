@@ -7,7 +7,8 @@ export function auditRouter(audit: AuditService): Router {
   const r = Router();
   r.get("/audit", requireRole("admin"), async (req, res) => {
     const query = AuditQuerySchema.parse(req.query);
-    res.json(await audit.list(query));
+    const { items, total } = await audit.list(query);
+    res.set("X-Total-Count", String(total)).json(items);
   });
   return r;
 }

@@ -1,4 +1,6 @@
 import type { Knex } from "knex";
+import { pageWindow } from "#shared/schemas/paging.ts";
+import type { AuditQuery } from "#shared/schemas/users.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import { insertAuditEvent, listAuditEvents } from "./audit.repository.ts";
@@ -38,6 +40,10 @@ export type AuditAction =
   | "facility_feature_created"
   | "facility_feature_updated"
   | "facility_feature_deleted"
+  // The site plan (server/site-plan): its areas.
+  | "site_area_created"
+  | "site_area_updated"
+  | "site_area_deleted"
   // Risks and issues register (server/risks): entries, the risk → issue step, mitigation actions.
   | "risk_created"
   | "risk_updated"
@@ -71,14 +77,25 @@ export type AuditAction =
   | "report_drafted"
   | "report_updated"
   | "report_issued"
-  | "report_correction_drafted";
+  | "report_correction_drafted"
+  // The project's hero photograph (server/projects/projects.hero.ts).
+  | "project_hero_changed"
+  // Press kits (server/press-kits): the project's usage terms, and staff downloads of a kit.
+  | "press_usage_terms_changed"
+  | "press_kit_downloaded"
+  // Review links (server/review-links): made, revoked, and each opening and answer by the outside reviewer.
+  | "review_link_created"
+  | "review_link_revoked"
+  | "review_link_opened"
+  | "review_link_answered";
 
 export interface AuditService {
   record(
     e: { action: AuditAction; actor: Actor; actorEmail?: string; target?: { type: string; id?: string | number; label?: string }; detail?: Record<string, unknown> },
     trx?: Knex.Transaction,
   ): Promise<void>;
-  list(f: { action?: string; before?: number; limit: number }): ReturnType<typeof listAuditEvents>;
+  /** One page of events, newest first, and how many match in all. */
+  list(f: AuditQuery): ReturnType<typeof listAuditEvents>;
 }
 
 export function createAuditService(db: Db): AuditService {
@@ -95,6 +112,6 @@ export function createAuditService(db: Db): AuditService {
         detail: e.detail ?? null,
       });
     },
-    list: (f) => listAuditEvents(db, f),
+    list: ({ page, pageSize, ...filter }) => listAuditEvents(db, filter, pageWindow({ page, pageSize })),
   };
 }

@@ -25,8 +25,8 @@ const SAME_FOR_EVERY_CALLER: readonly RegExp[] = [
   /^\/api\/projects\/[^/]+\/subscription-options\/?$/,
 ];
 
-/** API paths whose URL carries a single-use or personal secret (invitation, reset, subscriber and digest links). */
-const SECRET_IN_URL: readonly RegExp[] = [/^\/api\/auth\/invitations\//, /^\/api\/auth\/password-reset\//, /^\/api\/subscriptions\//, /^\/api\/digests\/web\//];
+/** API paths whose URL carries a single-use or personal secret (invitation, reset, subscriber, digest and review links). */
+const SECRET_IN_URL: readonly RegExp[] = [/^\/api\/review\//, /^\/api\/auth\/invitations\//, /^\/api\/auth\/password-reset\//, /^\/api\/subscriptions\//, /^\/api\/digests\/web\//];
 
 export const NEVER_STORED = "private, no-store";
 /** A visitor's copy of a caller-dependent answer: their browser only, revalidated every time. */

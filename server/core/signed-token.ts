@@ -13,6 +13,7 @@ export const TOKEN_PURPOSES = {
   unsubscribe: "plumbline one-click unsubscribe v2",
   digestWebCopy: "plumbline digest web copy v2",
   mediaLink: "plumbline signed media link v1",
+  reviewLink: "plumbline review link v1",
 } as const;
 export type TokenPurpose = keyof typeof TOKEN_PURPOSES;
 
@@ -67,7 +68,7 @@ export interface TokenSigner {
 
 /**
  * The one way the product signs and checks the links it sends (subscription confirmation,
- * preferences, one-click unsubscribe, digest web copies, signed media). Invitations and
+ * preferences, one-click unsubscribe, digest web copies, signed media, review links). Invitations and
  * password resets are random secrets stored hashed, not signed tokens, and do not use it.
  */
 export function createTokenSigner(secret: string): TokenSigner {

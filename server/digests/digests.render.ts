@@ -8,6 +8,7 @@ import { escapeHtml } from "../mail/mail.layout.ts";
 import type { DigestFacilityItem } from "./digests.facility.ts";
 import { itemClass, uniqueRefs, type DigestItemRef } from "./digests.items.ts";
 import { recordCounts, recordHasNews, recordSections, type DigestRecord } from "./digests.record.ts";
+import { ACCENT, INK } from "#shared/look.ts";
 
 /** Personal links, filled in per delivery; everything else is shared by every reader of a content. */
 export const PLACEHOLDERS = {
@@ -214,13 +215,13 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
         ${p.image ? `<mj-image src="${e(p.image.url)}" alt="${e(p.image.alt)}" href="${e(p.url)}" padding="0 0 8px 0"${cls(p.image.mediaId === undefined ? null : { kind: "picture", id: p.image.mediaId })} />` : ""}
         <mj-text font-size="18px" font-weight="bold" padding="0 0 4px 0"><a href="${e(p.url)}" style="color:#1d1f24">${e(p.title)}</a></mj-text>
         ${p.summary ? `<mj-text padding="0 0 4px 0">${e(p.summary)}</mj-text>` : ""}
-        <mj-text padding="0 0 12px 0" font-size="13px"><a href="${e(p.url)}" style="color:#b34709">Read the update</a></mj-text>
+        <mj-text padding="0 0 12px 0" font-size="13px"><a href="${e(p.url)}" style="color:${INK}">Read the update</a></mj-text>
       </mj-column></mj-section>`,
     )
     .join("");
   const list = (title: string, items: Array<{ html: string; ref: DigestItemRef | null }>, note?: string, link?: { url: string; label: string }) =>
     items.length
-      ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0"${cls(i.ref)}>${i.html}</mj-text>`).join("")}${link ? `<mj-text padding="6px 0 0 0" font-size="13px"><a href="${e(link.url)}" style="color:#b34709">${e(link.label)}</a></mj-text>` : ""}${note ? `<mj-text font-size="12px" color="#5a5e66" padding="6px 0 0 0">${e(note)}</mj-text>` : ""}</mj-column></mj-section>`
+      ? `<mj-section padding="0 0 8px 0"><mj-column><mj-text font-size="16px" font-weight="bold" padding="8px 0 4px 0">${e(title)}</mj-text>${items.map((i) => `<mj-text padding="2px 0"${cls(i.ref)}>${i.html}</mj-text>`).join("")}${link ? `<mj-text padding="6px 0 0 0" font-size="13px"><a href="${e(link.url)}" style="color:${INK}">${e(link.label)}</a></mj-text>` : ""}${note ? `<mj-text font-size="12px" color="#5a5e66" padding="6px 0 0 0">${e(note)}</mj-text>` : ""}</mj-column></mj-section>`
       : "";
   const record = d.record ? recordSections(d.record) : [];
   const moveItems = d.moves.map((m) => ({ html: `<strong>${e(m.milestoneName)}</strong>: ${e(describeMove(m))}`, ref: milestoneRef(m.milestoneId) }));
@@ -236,7 +237,7 @@ export async function renderDigest(d: DigestDocument): Promise<RenderedDigest> {
   <mj-body background-color="#f6f3ec" width="600px">
     <mj-section padding="12px 0 0 0"><mj-column><mj-text font-size="12px" color="#5a5e66" align="right" padding="0 12px"><a href="${PLACEHOLDERS.webUrl}" style="color:#5a5e66">View in the browser</a></mj-text></mj-column></mj-section>
     <mj-wrapper background-color="#fffdf8" border="1px solid #d9d3c4" padding="16px 12px">
-      <mj-section border-bottom="3px solid #e8590c" padding="0 0 8px 0"><mj-column>
+      <mj-section border-bottom="3px solid ${ACCENT}" padding="0 0 8px 0"><mj-column>
         <mj-text font-size="20px" font-weight="bold" padding="0"><a href="${e(d.projectUrl)}" style="color:#1d1f24;text-decoration:none">${e(d.project.name)}</a></mj-text>
         <mj-text font-size="13px" color="#5a5e66" padding="0">${e(periodLabel(d))}</mj-text>
       </mj-column></mj-section>

@@ -1,11 +1,12 @@
 import type { FacilityAnswer } from "#shared/schemas/facility.ts";
+import type { Hero, HomeBuild } from "#shared/schemas/project-hero.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import type { PostsService } from "../posts/posts.service.ts";
 import type { StoriesService } from "../stories/stories.service.ts";
 import { absolutizeHtml } from "../posts/rich-text.ts";
 import { element, textElement, xmlAttr, xmlText } from "./xml.ts";
-import { coverHint } from "./preload-hints.ts";
+import { coverHint, heroHint, homeHeroHint } from "./preload-hints.ts";
 
 /**
  * The public site's documents that are not the app: the Atom feed of each project (RFC 4287),
@@ -58,7 +59,13 @@ export function facilityDescription(projectName: string, f: Pick<FacilityAnswer,
   return [`Capacity blocks of ${projectName}.`, ...blocks].join(" ");
 }
 
-export function createFeedsService(deps: { projects: ProjectsService; posts: PostsService; stories: StoriesService; facility: PublicFacilityReader; publicUrl: string }) {
+/** The chosen hero photographs (the projects module's, decision 055): for the preload hint and the preview image. */
+export interface HeroReader {
+  hero(slug: string): Promise<Pick<Hero, "picture">>;
+  home(): Promise<{ builds: Array<Pick<HomeBuild, "picture">> }>;
+}
+
+export function createFeedsService(deps: { projects: ProjectsService; posts: PostsService; stories: StoriesService; facility: PublicFacilityReader; heroes: HeroReader; publicUrl: string }) {
   const { projects, posts, stories, facility } = deps;
   const base = deps.publicUrl.replace(/\/+$/, "");
   const host = new URL(base).hostname;
@@ -163,6 +170,8 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
      * JavaScript for crawlers), or where an old address of an update now lives.
      */
     async pageFor(path: string): Promise<PageAnswer> {
+      // A review link's page shows a draft to one reviewer: no search engine may keep it (decision 060).
+      if (/^\/review\//.test(path)) return { head: { title: "Draft for review · Plumbline", tags: '<meta name="robots" content="noindex">' } };
       const update = /^\/projects\/([a-z0-9-]{1,100})\/updates\/([a-z0-9-]{1,120})\/?$/.exec(path);
       if (update) {
         const found = await posts.previewOf(update[1]!, update[2]!);
@@ -215,23 +224,31 @@ export function createFeedsService(deps: { projects: ProjectsService; posts: Pos
           }),
         };
       }
+      if (path === "/") {
+        // One build alone shows its picture (hero, else latest cover) across the home page: start fetching it with the HTML.
+        const { builds } = await deps.heroes.home();
+        const hint = builds.length === 1 ? homeHeroHint(builds[0]!.picture) : "";
+        return hint ? { head: { title: "What is being built · Plumbline", tags: hint } } : null;
+      }
       const projectPage = /^\/projects\/([a-z0-9-]{1,100})(\/updates)?\/?$/.exec(path);
       if (projectPage) {
         const project = await projects.get(projectPage[1]!).catch(() => null);
         if (!project) return null;
-        return {
-          head: head({
-            title: projectPage[2] ? `Updates from ${project.name}` : project.name,
-            // The same title the app gives the page ("Updates · <build>", the build's name alone).
-            pageTitle: projectPage[2] ? "Updates" : project.name,
-            description: project.description,
-            url: `${base}/projects/${project.slug}${projectPage[2] ?? ""}`,
-            type: "website",
-            siteName: project.name,
-            image: null,
-            feed: `${base}/feed/${project.slug}.atom`,
-          }),
-        };
+        // The project page's hero is its largest paint: preloaded, and the link preview's picture.
+        const hero = projectPage[2] ? null : (await deps.heroes.hero(project.slug)).picture;
+        const page = head({
+          title: projectPage[2] ? `Updates from ${project.name}` : project.name,
+          // The same title the app gives the page ("Updates · <build>", the build's name alone).
+          pageTitle: projectPage[2] ? "Updates" : project.name,
+          description: project.description,
+          url: `${base}/projects/${project.slug}${projectPage[2] ?? ""}`,
+          type: "website",
+          siteName: project.name,
+          image: previewImage(hero),
+          feed: `${base}/feed/${project.slug}.atom`,
+        });
+        const hint = heroHint(hero);
+        return { head: hint ? { ...page, tags: `${page.tags}\n    ${hint}` } : page };
       }
       return null;
     },

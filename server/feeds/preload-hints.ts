@@ -1,6 +1,6 @@
 import { existsSync, readFileSync } from "node:fs";
 import type { MediaPicture } from "#shared/schemas/media.ts";
-import { POST_COVER_SIZES, srcSetOf } from "#shared/domain/picture-sizes.ts";
+import { HERO_SIZES, HOME_HERO_SIZES, POST_COVER_SIZES, srcSetOf } from "#shared/domain/picture-sizes.ts";
 import { xmlAttr as escapeHtml } from "./xml.ts";
 
 /**
@@ -70,12 +70,18 @@ export function moduleHintsFor(manifest: ViteManifest | null, path: string): str
  * The preload of a post's cover (the page's largest paint): the best format the browser
  * takes, with the same `srcset` and `sizes` as the page's <Picture>, so the one fetch serves both.
  */
-export function coverHint(cover: Pick<MediaPicture, "sources"> | null): string {
+export function coverHint(cover: Pick<MediaPicture, "sources"> | null, sizes: string = POST_COVER_SIZES): string {
   if (!cover) return "";
   const format = cover.sources.avif.length ? "avif" : cover.sources.webp.length ? "webp" : cover.sources.jpeg.length ? "jpeg" : null;
   if (!format) return "";
-  return `<link rel="preload" as="image" type="image/${format}" imagesrcset="${escapeHtml(srcSetOf(cover.sources[format]))}" imagesizes="${escapeHtml(POST_COVER_SIZES)}" fetchpriority="high">`;
+  return `<link rel="preload" as="image" type="image/${format}" imagesrcset="${escapeHtml(srcSetOf(cover.sources[format]))}" imagesizes="${escapeHtml(sizes)}" fetchpriority="high">`;
 }
+
+/** The preload of a project's chosen hero (decision 055): the project page's largest paint. */
+export const heroHint = (hero: Pick<MediaPicture, "sources"> | null): string => coverHint(hero, HERO_SIZES);
+
+/** The preload of the home page's one build's picture, drawn beside its figures. */
+export const homeHeroHint = (hero: Pick<MediaPicture, "sources"> | null): string => coverHint(hero, HOME_HERO_SIZES);
 
 /** Puts hint tags at the end of the shell's head. */
 export function injectHints(shell: string, hints: string): string {

@@ -66,10 +66,14 @@ function baseQuery(q: Q) {
     );
 }
 
-export async function listMessages(q: Q, f: { to?: string; limit: number }): Promise<OutboxMessage[]> {
-  const query = baseQuery(q).orderBy("m.id", "desc").limit(f.limit);
-  if (f.to) query.whereExists(q("mail_recipients as x").whereRaw("x.message_id = m.id").andWhere("x.address", f.to));
-  return (await query).map(toMessage);
+/** One page of messages, newest first, with how many match in all. */
+export async function listMessages(q: Q, f: { to?: string }, window: { offset: number; limit: number }): Promise<{ items: OutboxMessage[]; total: number }> {
+  const toRecipient = (query: Knex.QueryBuilder) => (f.to ? query.whereExists(q("mail_recipients as x").whereRaw("x.message_id = m.id").andWhere("x.address", f.to)) : query);
+  const [rows, countRow] = await Promise.all([
+    toRecipient(baseQuery(q)).orderBy("m.id", "desc").offset(window.offset).limit(window.limit),
+    toRecipient(q("mail_messages as m")).count({ n: "*" }).first(),
+  ]);
+  return { items: rows.map(toMessage), total: Number((countRow as { n?: number } | undefined)?.n ?? 0) };
 }
 
 export async function findMessage(q: Q, id: number): Promise<OutboxMessage | null> {

@@ -9,12 +9,13 @@ export function outboxRouter(outbox: OutboxService, mailMode: "local" | "smtp"):
   const r = Router();
   // Administrators only: messages hold other people's links, and a colleague's reset link is their account.
   r.use("/outbox", requireRole("admin"), (_req, _res, next) => {
-    if (mailMode !== "local") return next(new AppError("not_local_mail", "The outbox exists only in local mail mode.", 404));
+    if (mailMode !== "local") return next(new AppError("not_local_mail", "There is no outbox here: this server hands its mail to a delivery service and keeps no copies.", 404));
     next();
   });
   r.get("/outbox", async (req, res) => {
     const query = OutboxQuerySchema.parse(req.query);
-    res.json(await outbox.list(query));
+    const { items, total } = await outbox.list(query);
+    res.set("X-Total-Count", String(total)).json(items);
   });
   r.get("/outbox/:id", async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);

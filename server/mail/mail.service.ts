@@ -1,7 +1,8 @@
 import nodemailer, { type Transporter, type TransportOptions } from "nodemailer";
 import type { Logger } from "../core/logger.ts";
 import type { Db } from "../db/knex.ts";
-import type { OutboxMessage } from "#shared/schemas/outbox.ts";
+import type { OutboxMessage, OutboxQuery } from "#shared/schemas/outbox.ts";
+import { pageWindow } from "#shared/schemas/paging.ts";
 import { maskHeaders, maskRawMessage, maskSecrets } from "./mail.mask.ts";
 import { findMessage, findRaw, listMessages, messageReached } from "./mail.repository.ts";
 
@@ -46,7 +47,11 @@ function masked(m: OutboxMessage): OutboxMessage {
 /** The outbox views. Every one masks secrets: the stored messages hold other people's reset and invitation links. */
 export function createOutboxService(db: Db) {
   return {
-    list: async (f: { to?: string; limit: number }) => (await listMessages(db, f)).map(masked),
+    /** One page of messages, newest first, and how many match in all. */
+    list: async ({ page, pageSize, ...filter }: OutboxQuery) => {
+      const { items, total } = await listMessages(db, filter, pageWindow({ page, pageSize }));
+      return { items: items.map(masked), total };
+    },
     get: async (id: number) => {
       const m = await findMessage(db, id);
       return m ? masked(m) : null;

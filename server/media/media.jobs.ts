@@ -40,6 +40,7 @@ export function createMediaJobs(opts: MediaJobsOptions) {
   const sweepAfterMs = opts.sweepAfterMs ?? 60 * 60_000;
   let running = false;
   let loops: Promise<void>[] = [];
+  let backfill: Promise<void> = Promise.resolve();
   const wakers = new Set<() => void>();
   let unsubscribe: (() => void) | null = null;
 
@@ -68,6 +69,7 @@ export function createMediaJobs(opts: MediaJobsOptions) {
         height: d.height,
         placeholder: d.placeholder,
         dominantColor: d.dominantColor,
+        fingerprint: d.fingerprint,
         variants: planned.map((v) => ({ width: v.width, height: v.height, format: v.format, storageKey: v.storageKey, bytes: v.bytes })),
       });
       const mine = planned.map((v) => v.storageKey);
@@ -145,6 +147,11 @@ export function createMediaJobs(opts: MediaJobsOptions) {
       running = true;
       unsubscribe = media.onQueued(wakeAll);
       loops = Array.from({ length: opts.workers }, () => loop());
+      // Photos processed before fingerprints were kept get theirs, once, beside the loops (decision 063).
+      backfill = media
+        .backfillFingerprints(logger)
+        .then((n) => void (n > 0 && logger.info({ fingerprinted: n }, "media fingerprint backfill")))
+        .catch((err: unknown) => logger.error({ err }, "media fingerprint backfill failed"));
     },
 
     /** Stops claiming; waits for jobs in hand to finish (a job cut short is re-run after its lease). */
@@ -153,7 +160,7 @@ export function createMediaJobs(opts: MediaJobsOptions) {
       unsubscribe?.();
       unsubscribe = null;
       wakeAll();
-      await Promise.all(loops);
+      await Promise.all([...loops, backfill]);
       loops = [];
     },
   };

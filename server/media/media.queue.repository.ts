@@ -134,7 +134,7 @@ export async function insertVariants(q: Q, mediaId: number, variants: ReadonlyAr
 export async function markMediaReady(
   q: Q,
   mediaId: number,
-  d: { width: number; height: number; placeholder: string; dominantColor: string },
+  d: { width: number; height: number; placeholder: string; dominantColor: string; fingerprint?: string },
 ): Promise<void> {
   await q("media_items").where({ id: mediaId }).update({
     status: "ready",
@@ -143,6 +143,7 @@ export async function markMediaReady(
     height: d.height,
     placeholder: d.placeholder,
     dominant_color: d.dominantColor,
+    ...(d.fingerprint ? { fingerprint: d.fingerprint } : {}),
     updated_at: q.raw("CURRENT_TIMESTAMP(3)"),
   });
 }

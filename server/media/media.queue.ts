@@ -32,6 +32,8 @@ export interface DerivativeResult {
   height: number;
   placeholder: string;
   dominantColor: string;
+  /** The perceptual fingerprint, 16 hex digits (media.fingerprint.ts). */
+  fingerprint?: string;
   variants: Array<{ width: number; height: number; format: VariantFormat; storageKey: string; bytes: number }>;
 }
 

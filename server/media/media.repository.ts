@@ -382,3 +382,73 @@ export async function listGalleryMedia(q: Q, projectId: number, audiences: reado
     .select("i.id", "i.taken_at", "i.created_at")) as Array<{ id: number; taken_at: string | null; created_at: Date }>;
   return rows.map((r) => ({ id: Number(r.id), takenAt: r.taken_at ?? null, createdAt: r.created_at }));
 }
+
+/** The audiences of published content each photo is used in (the rule that opens its derivatives to readers). */
+export async function publishedAudiencesOf(q: Q, ids: readonly number[]): Promise<Map<number, Audience[]>> {
+  const out = new Map<number, Audience[]>(ids.map((id) => [id, []]));
+  if (ids.length === 0) return out;
+  const rows = (await q("media_usages").whereIn("media_id", [...new Set(ids)]).andWhere("published", true).distinct("media_id", "audience")) as Array<{ media_id: number; audience: Audience }>;
+  for (const r of rows) out.get(Number(r.media_id))?.push(r.audience);
+  return out;
+}
+
+// Fingerprints and then-and-now pairs (docs/decisions/063-then-and-now-pairs.md)
+
+/** A processed photo with a capture time and a fingerprint, as the then-and-now pairing reads it. */
+export interface PairableRecord {
+  id: number;
+  takenAt: string;
+  fingerprint: string;
+  sensitivity: Sensitivity;
+  flaggedForReview: boolean;
+  areas: string[];
+  blocks: number[];
+  plants: number[];
+}
+
+/** Every ready photo of a project with a capture time and a fingerprint, with its area and facility tags. */
+export async function listPairablePhotos(q: Q, projectId: number): Promise<PairableRecord[]> {
+  const rows = (await q("media_items")
+    .where({ project_id: projectId, status: "ready" })
+    .whereNotNull("fingerprint")
+    .whereNotNull("taken_at")
+    .select("id", "taken_at", "fingerprint", "sensitivity", "flagged_for_review")) as Array<Record<string, unknown>>;
+  const out = new Map<number, PairableRecord>();
+  for (const r of rows) {
+    const id = Number(r.id);
+    out.set(id, { id, takenAt: String(r.taken_at), fingerprint: String(r.fingerprint), sensitivity: r.sensitivity as Sensitivity, flaggedForReview: Boolean(r.flagged_for_review), areas: [], blocks: [], plants: [] });
+  }
+  if (out.size === 0) return [];
+  const tags = (await q("media_tags as t")
+    .join("media_items as i", "i.id", "t.media_id")
+    .where("i.project_id", projectId)
+    .whereIn("t.kind", ["area", "block", "plant"])
+    .select("t.media_id", "t.kind", "t.value")) as Array<{ media_id: number; kind: TagKind; value: string }>;
+  for (const t of tags) {
+    const photo = out.get(Number(t.media_id));
+    if (!photo) continue;
+    if (t.kind === "area") photo.areas.push(t.value);
+    else if (t.kind === "block") photo.blocks.push(Number(t.value));
+    else photo.plants.push(Number(t.value));
+  }
+  return [...out.values()];
+}
+
+/** Ready photos without a fingerprint (processed before fingerprints were kept), with their smallest stored JPEG derivative. */
+export async function listWithoutFingerprint(q: Q, afterId: number, limit: number): Promise<Array<{ id: number; storageKey: string }>> {
+  const rows = (await q("media_items as i")
+    .join("media_variants as v", "v.media_id", "i.id")
+    .where({ "i.status": "ready", "v.format": "jpeg" })
+    .whereNull("i.fingerprint")
+    .where("i.id", ">", afterId)
+    .whereRaw("v.width = (SELECT MIN(w.width) FROM media_variants w WHERE w.media_id = i.id AND w.format = 'jpeg')")
+    .orderBy("i.id")
+    .limit(limit)
+    .select("i.id", "v.storage_key")) as Array<{ id: number; storage_key: string }>;
+  return rows.map((r) => ({ id: Number(r.id), storageKey: String(r.storage_key) }));
+}
+
+/** Stores a photo's fingerprint (16 hex digits). */
+export async function setFingerprint(q: Q, id: number, fingerprint: string): Promise<void> {
+  await q("media_items").where({ id }).update({ fingerprint });
+}

@@ -2,6 +2,7 @@ import { Router, type Request, type RequestHandler, type Response } from "expres
 import { MulterError } from "multer";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
+import { ThenAndNowQuerySchema } from "#shared/schemas/writing-help.ts";
 import { BulkTagInputSchema, GalleryQuerySchema, MediaListQuerySchema, MediaPatchInputSchema, ProjectQuerySchema, ReviewInputSchema, SignedVariantQuerySchema } from "#shared/schemas/media.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireRole } from "../core/auth.ts";
@@ -77,6 +78,14 @@ export function mediaRouter(media: MediaService, uploads: UploadArea): Router {
     const audiences = req.user ? (["public", "investor"] as const) : (["public"] as const);
     res.set("Cache-Control", req.user ? "private, no-cache" : "public, max-age=60");
     res.json(await media.gallery(slug, [...audiences], filters));
+  });
+
+  // Then-and-now pairs found among the project's photos, for a story of one audience (decision 063).
+  r.get("/projects/:slug/then-and-now", staff(), async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    const query = ThenAndNowQuerySchema.parse({ ...req.query });
+    res.set("Cache-Control", "private, no-store");
+    res.json(await media.thenAndNow(slug, query));
   });
 
   r.get("/media/vocabulary", staff(), async (req, res) => {

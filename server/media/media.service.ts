@@ -7,7 +7,9 @@ import { createItemReader } from "./media.items.ts";
 import { createMediaLibrary } from "./media.library.ts";
 import { createMediaLinks } from "./media.links.ts";
 import { createMediaOriginals } from "./media.originals.ts";
+import { createMediaPairs } from "./media.pairs.ts";
 import { createMediaPictures } from "./media.pictures.ts";
+import { createMediaPressKit } from "./media.press-kit.ts";
 import { createMediaQueue } from "./media.queue.ts";
 import type { MediaStorage, UploadArea } from "./media.storage.ts";
 import { createMediaUpload } from "./media.upload.ts";
@@ -17,7 +19,8 @@ import { createMediaUpload } from "./media.upload.ts";
  * the site office's library and review (media.library.ts), the processing queue the worker in
  * media.jobs.ts drains (media.queue.ts), derivative files and signed links (media.links.ts), the
  * stored originals (media.originals.ts), and what posts, stories, the public site and the
- * programme ask of photos (media.pictures.ts).
+ * programme ask of photos (media.pictures.ts), and press kits' reads and files (media.press-kit.ts),
+ * then-and-now pairs and the fingerprint backfill (media.pairs.ts).
  */
 export function createMediaService(deps: {
   db: Db;
@@ -36,6 +39,7 @@ export function createMediaService(deps: {
   const ctx: MediaContext = { db: deps.db, storage: deps.storage, uploads: deps.uploads, projects: deps.projects, programme: deps.programme, accounts: deps.accounts ?? createAccountsService({ db: deps.db }), facility: deps.facility ?? NO_FACILITY, limits: deps.limits };
   const items = createItemReader(ctx);
   const { notifyQueued, ...queue } = createMediaQueue(ctx, items);
+  const pictures = createMediaPictures(ctx);
   return {
     limits: ctx.limits,
     ...createMediaUpload(ctx, notifyQueued),
@@ -43,7 +47,9 @@ export function createMediaService(deps: {
     ...queue,
     ...createMediaOriginals(ctx),
     ...createMediaLinks(ctx, deps.tokenSecret),
-    ...createMediaPictures(ctx),
+    ...pictures,
+    ...createMediaPairs(ctx, pictures.pictureFor),
+    ...createMediaPressKit(ctx),
   };
 }
 export type MediaService = ReturnType<typeof createMediaService>;

@@ -421,6 +421,22 @@ export function createPostsService(deps: PostsDeps) {
     /** The workflow steps, revisions (diff, restore), history and the scheduler's pass, as every kind has them. */
     ...workflow.steps,
 
+    /**
+     * One revision of an update as an outside reviewer reads it (server/review-links): rendered
+     * afresh with the photos `pictures` gives for its ids (one it leaves out reads as not
+     * available), milestone blocks as the revision's audience sees them today; null when gone.
+     */
+    async reviewCopy(id: number, n: number | "latest", pictures: (ids: number[]) => Promise<Map<number, MediaPicture>>) {
+      const found = await workflow.steps.revisionOf(id, n);
+      if (!found) return null;
+      const { item, revision, latest } = found;
+      const project = await projects.getById(item.projectId);
+      const shown = await pictures(mediaIdsOf(revision));
+      const html = renderRichText(revision.body, { pictures: shown, milestones: blockData([], await milestonesFor(project, readersOf(revision.audience))) });
+      const cover = revision.coverMediaId ? (shown.get(revision.coverMediaId) ?? null) : null;
+      return { item, project, number: revision.number, latest, title: revision.title, audience: revision.audience, summary: revision.summary, html, cover };
+    },
+
     /** Published public posts of a project for its feed, newest first, with the newest change. */
     async feedOf(slug: string, limit = 50) {
       const project = await projects.get(slug);

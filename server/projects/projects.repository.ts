@@ -105,3 +105,45 @@ export async function findBudgetSettings(q: Q, id: number): Promise<BudgetSettin
 export async function updateBudgetSettings(q: Q, id: number, settings: BudgetSettingsInput): Promise<void> {
   await q("projects").where({ id }).update({ contingency_held: settings.contingencyHeld, projected_final_cost_method: settings.projectedFinalCostMethod });
 }
+
+/** The project's chosen hero photograph: the photo (null for none), the point a crop keeps, and the choice's version. */
+export interface HeroChoice {
+  mediaId: number | null;
+  focusX: number;
+  focusY: number;
+  version: number;
+}
+
+function toHero(r: Record<string, unknown>): HeroChoice {
+  return { mediaId: r.hero_media_id == null ? null : Number(r.hero_media_id), focusX: Number(r.hero_focus_x), focusY: Number(r.hero_focus_y), version: Number(r.hero_version) };
+}
+
+export async function findHeroChoice(q: Q, id: number): Promise<HeroChoice | null> {
+  const r = await q("projects").where({ id }).first("hero_media_id", "hero_focus_x", "hero_focus_y", "hero_version");
+  return r ? toHero(r) : null;
+}
+
+/** The hero choices of several projects, by id. */
+export async function findHeroChoices(q: Q, ids: readonly number[]): Promise<Map<number, HeroChoice>> {
+  if (ids.length === 0) return new Map();
+  const rows = (await q("projects").whereIn("id", [...new Set(ids)]).select("id", "hero_media_id", "hero_focus_x", "hero_focus_y", "hero_version")) as Array<Record<string, unknown>>;
+  return new Map(rows.map((r) => [Number(r.id), toHero(r)]));
+}
+
+/** Writes the choice when its version is still `expected`; false when someone else changed it first. */
+export async function updateHeroChoice(q: Q, id: number, expected: number, next: Omit<HeroChoice, "version">): Promise<boolean> {
+  const n = await q("projects")
+    .where({ id, hero_version: expected })
+    .update({ hero_media_id: next.mediaId, hero_focus_x: next.focusX, hero_focus_y: next.focusY, hero_version: expected + 1 });
+  return n === 1;
+}
+
+/** The line of usage terms the project prints beside its downloadable press photographs; undefined for no such project. */
+export async function findPressUsageTerms(q: Q, id: number): Promise<string | null | undefined> {
+  const r = (await q("projects").where({ id }).first("press_usage_terms")) as { press_usage_terms: string | null } | undefined;
+  return r ? (r.press_usage_terms ?? null) : undefined;
+}
+
+export async function updatePressUsageTerms(q: Q, id: number, terms: string | null): Promise<void> {
+  await q("projects").where({ id }).update({ press_usage_terms: terms });
+}

@@ -187,6 +187,19 @@ export function createPublishingService(deps: { db: Db }) {
         return spec.restore(id, rev, `Restored revision ${n}`, actor);
       },
 
+      /**
+       * One revision with its content (`"latest"`: the newest), beside the item as it now stands and
+       * the number of its newest revision; null when the item or that revision is gone. For readers
+       * outside the office, who are shown one exact revision (review links, server/review-links).
+       */
+      async revisionOf(id: number, n: number | "latest"): Promise<{ item: Item; revision: RevisionHead & Content; latest: number } | null> {
+        const item = await spec.find(db, id);
+        if (!item) return null;
+        const latest = (await listRevisions(db, kind, id))[0]?.number ?? 0;
+        const revision = latest ? await findRevisionOf(id, n === "latest" ? latest : n) : null;
+        return revision ? { item, revision, latest } : null;
+      },
+
       async history(id: number): Promise<PublishingEvent[]> {
         await existing(id);
         return listPublishingEvents(db, kind, id);

@@ -10,6 +10,7 @@ import { seedFacility } from "./facility.seed.ts";
 import { seedRecord } from "./record.seed.ts";
 import { seedDocuments } from "./documents.seed.ts";
 import { seedReports } from "./reports.seed.ts";
+import { seedSitePlan } from "./site-plan.seed.ts";
 
 export const DEMO_PROJECT_SLUG = "aldermere-phase-2";
 
@@ -56,6 +57,8 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
   // The facility (after the programme its blocks depend on, and the photos and updates it tags).
   const facilityLead = await db("users").where({ email: "lead@kestrel.example" }).first("id");
   created.push(...(await seedFacility(db, Number(project.id), { byUserId: facilityLead ? Number(facilityLead.id) : null })).created);
+  // The site plan: its areas are named as the programme's milestones and the photos' area tags are.
+  created.push(...(await seedSitePlan(db, Number(project.id), { byUserId: facilityLead ? Number(facilityLead.id) : null })).created);
   // The investor's record: organisations, risks and issues, decisions, budget changes (after the programme and facility they link).
   created.push(...(await seedRecord(db, Number(project.id), { password: opts.password })).created);
   created.push(...(await seedSubscribers(db, DEMO_PROJECT_SLUG)).created);

@@ -406,6 +406,7 @@ const PHOTO_TAGS: Array<{ file: string; blocks?: string[]; systems?: string[] }>
   { file: "ups-room.jpg", systems: ["ups"] },
   { file: "roof-plant.jpg", blocks: ["2a"], systems: ["fans"] },
   { file: "hall-2a-frame.jpg", blocks: ["2a"] },
+  { file: "hall-2a-cladding.jpg", blocks: ["2a"] },
   { file: "hall-2a-corridor.jpg", blocks: ["2a"] },
   { file: "cable-tray.jpg", blocks: ["2a"] },
   { file: "hd1-containment.jpg", blocks: ["hd1"] },

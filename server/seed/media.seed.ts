@@ -90,6 +90,21 @@ function chiller(x: number, y: number, scale = 1): string {
 
 type Drawing = (seed: number) => string;
 
+/** Hall 2A's frame from the site road, with `panels` cladding panels (30 px each) from the west end. */
+function hallShell(seed: number, panels: number): string {
+  let s = outdoor(700, ["#8fb3dd", "#eef3f8"], ["#b49a76", "#5e4f3c"]);
+  for (let i = 0; i < 9; i += 1) {
+    const x = 200 + i * 150;
+    s += rect(x, 300, 18, 400, "#7d2f2f") + line(x + 9, 300, x + 84, 250, "#7d2f2f", 14);
+    if (i < 8) s += line(x + 84, 250, x + 159, 300, "#7d2f2f", 14);
+  }
+  s += rect(200, 420, panels * 30, 280, "#9aa3ac", 'opacity="0.95"');
+  for (let i = 0; i < panels; i += 1) s += line(200 + i * 30, 420, 200 + i * 30, 700, "#7c858e", 3);
+  s += rect(1420, 90, 22, 610, "#e0b422") + rect(980, 90, 560, 22, "#e0b422") + line(1100, 112, 1100, 330, "#333", 3) + rect(1080, 330, 40, 30, "#444");
+  s += speckle(seed, 720, H, 1100, [70, 160]);
+  return s;
+}
+
 const DRAWINGS: Record<string, Drawing> = {
   "plant-yard": (seed) => {
     let s = outdoor(560, ["#6d9bd6", "#dfe9f5"], ["#a8a197", "#6f6a62"]);
@@ -101,19 +116,9 @@ const DRAWINGS: Record<string, Drawing> = {
     s += speckle(seed, 880, H, 900, [90, 150]);
     return s;
   },
-  "hall-shell": (seed) => {
-    let s = outdoor(700, ["#8fb3dd", "#eef3f8"], ["#b49a76", "#5e4f3c"]);
-    for (let i = 0; i < 9; i += 1) {
-      const x = 200 + i * 150;
-      s += rect(x, 300, 18, 400, "#7d2f2f") + line(x + 9, 300, x + 84, 250, "#7d2f2f", 14);
-      if (i < 8) s += line(x + 84, 250, x + 159, 300, "#7d2f2f", 14);
-    }
-    s += rect(200, 420, 600, 280, "#9aa3ac", 'opacity="0.95"');
-    for (let i = 0; i < 20; i += 1) s += line(200 + i * 30, 420, 200 + i * 30, 700, "#7c858e", 3);
-    s += rect(1420, 90, 22, 610, "#e0b422") + rect(980, 90, 560, 22, "#e0b422") + line(1100, 112, 1100, 330, "#333", 3) + rect(1080, 330, 40, 30, "#444");
-    s += speckle(seed, 720, H, 1100, [70, 160]);
-    return s;
-  },
+  "hall-shell": (seed) => hallShell(seed, 20),
+  // The same view of Hall 2A nine weeks on, cladding most of the way along: the demo's then-and-now pair.
+  "hall-shell-clad": (seed) => hallShell(seed, 28),
   "chiller-row": (seed) => {
     let s = outdoor(430, ["#7ea6d8", "#e7eef7"], ["#bcb7ae", "#7a746b"]);
     for (let i = 0; i < 5; i += 1) s += chiller(60 + i * 300, 470 + (i % 2) * 6, 1.1);
@@ -248,6 +253,7 @@ interface DemoPhoto {
 const PHOTOS: DemoPhoto[] = [
   { file: "plant-yard-slab.jpg", drawing: "plant-yard", title: "Plant yard slab and chiller bases", weeksAgo: 38, area: "Plant yard", systems: ["building"], milestone: "Ground works", altText: "Drawing of the plant yard: a concrete slab behind a temporary fence, with five chiller bases and pipe runs in place.", caption: "The plant-yard slab is poured and the chiller bases are set out.", review: "cleared" },
   { file: "hall-2a-frame.jpg", drawing: "hall-shell", title: "Hall 2A steel frame", weeksAgo: 33, area: "Hall 2A", systems: ["building"], milestone: "Steel frame topped out", altText: "Drawing of the Hall 2A steel frame: red portal frames along the hall, cladding begun at one end and a tower crane on the right.", caption: "Hall 2A's steel frame is topped out; cladding starts at the west end.", focal: { x: 0.35, y: 0.5 }, review: "cleared" },
+  { file: "hall-2a-cladding.jpg", drawing: "hall-shell-clad", title: "Hall 2A cladding", weeksAgo: 24, area: "Hall 2A", systems: ["building"], milestone: "Roof and cladding weathertight", altText: "Drawing of the Hall 2A steel frame from the same spot as before: grey cladding now runs past the middle of the hall, with the tower crane on the right.", caption: "Nine weeks on, Hall 2A's cladding runs past the middle of the hall.", focal: { x: 0.45, y: 0.5 }, review: "cleared" },
   { file: "perimeter-gatehouse.jpg", drawing: "perimeter", title: "Perimeter fence and gatehouse", weeksAgo: 27, area: "Site", systems: ["security"], milestone: "Perimeter fence", altText: "Drawing of the site boundary: a security fence, a vehicle barrier and the gatehouse.", caption: "The perimeter fence line and gatehouse are complete." },
   { file: "roof-plant.jpg", drawing: "roof-plant", title: "Roof plant and louvres", weeksAgo: 22, area: "Hall 2A", systems: ["cooling", "building"], milestone: "Roof and cladding weathertight", altText: "Drawing of the Hall 2A roof: four plant units with round fans behind a row of louvres.", caption: "The roof is weathertight and the roof plant is lifted in.", review: "cleared" },
   { file: "fuel-tank.jpg", drawing: "fuel-tank", title: "Bulk fuel tank", weeksAgo: 18, area: "Plant yard", systems: ["fuel"], milestone: "Bulk fuel tank installed", altText: "Drawing of a long double-skinned fuel tank lying on its bund, with a red fill line to the right.", caption: "The 40,000 L double-skinned bulk tank is installed and pressure-tested.", review: "cleared" },

@@ -1,5 +1,6 @@
 import type { Knex } from "knex";
 import { slugFromTitle } from "#shared/domain/publishing-workflow.ts";
+import type { Viewer } from "#shared/domain/audience.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { Project } from "#shared/schemas/projects.ts";
@@ -255,6 +256,20 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
 
     publicAddresses: () => listPublicStoryAddresses(db),
 
+    /**
+     * One revision of a story as an outside reviewer reads it (server/review-links), with the
+     * photos `pictures` gives for its ids (an item whose photo it leaves out keeps its place,
+     * without the photo); null when gone.
+     */
+    async reviewCopy(id: number, n: number | "latest", pictures: (ids: number[]) => Promise<Map<number, MediaPicture>>) {
+      const found = await workflow.steps.revisionOf(id, n);
+      if (!found) return null;
+      const { item, revision, latest } = found;
+      const project = await projects.getById(item.projectId);
+      const shown = await pictures(mediaIdsOf(revision.items));
+      return { item, project, number: revision.number, latest, title: revision.title, audience: revision.audience, intro: revision.intro, items: present(revision.items, shown, true) };
+    },
+
     /** A published public story for link previews (Open Graph). */
     async previewOf(slug: string, storySlug: string): Promise<{ story: StorySummary; project: Project } | null> {
       const project = await projects.get(slug).catch(() => null);
@@ -269,6 +284,17 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
       if (!project) return null;
       if (await findVisibleStoryBySlug(db, project.id, storySlug, "public")) return null;
       return workflow.findRedirect(project.id, storySlug, "public");
+    },
+
+    /**
+     * A story's photos in reading order (a pair's "then" before its "now"), for press kits: by id
+     * for staff (any state), by address for visitors (published public stories only). Null when
+     * the project has no such story this reader may see.
+     */
+    async photosOf(projectId: number, story: { id: number } | { slug: string; viewer: Viewer }): Promise<{ id: number; slug: string; title: string; mediaIds: number[] } | null> {
+      const record = "id" in story ? await findStoryById(db, story.id) : await findVisibleStoryBySlug(db, projectId, story.slug, story.viewer);
+      if (!record || record.projectId !== projectId) return null;
+      return { id: record.id, slug: record.slug, title: record.title, mediaIds: mediaIdsOf(await itemsIn(db, record.id)) };
     },
   };
 }

@@ -1,8 +1,9 @@
+import { pageWindow } from "#shared/schemas/paging.ts";
 import {
-  SUBSCRIBER_LIST_LIMIT,
   type ErasureResult,
   type SubscriberImportInput,
   type SubscriberImportResult,
+  type SubscriberFilterQuery,
   type SubscriberList,
   type SubscriberListQuery,
   type SubscriberRow,
@@ -60,22 +61,23 @@ export function createSubscriberOffice(ctx: SubscribersContext, sendQueuedMail: 
   const kick = sendQueuedMail;
 
   /** The filters with the project slug resolved to its id; null when the slug names no project (nothing matches). */
-  async function resolveFilter({ projectSlug, ...rest }: SubscriberListQuery): Promise<SubscriberFilter | null> {
+  async function resolveFilter({ projectSlug, ...rest }: SubscriberFilterQuery): Promise<SubscriberFilter | null> {
     if (!projectSlug) return rest;
     const project = await projects.findBySlug(projectSlug);
     return project ? { ...rest, projectId: project.id } : null;
   }
 
   return {
-    async list(f: SubscriberListQuery): Promise<SubscriberList> {
+    /** One page of the matching subscribers, newest first, and how many match in all. */
+    async list({ page, pageSize, ...f }: SubscriberListQuery): Promise<SubscriberList> {
       const filter = await resolveFilter(f);
-      if (!filter) return { rows: [], total: 0 };
-      const { rows, total } = await listSubscribers(db, filter, SUBSCRIBER_LIST_LIMIT);
-      return { rows: (await withProjects(rows)).map(toRow), total };
+      if (!filter) return { rows: [], total: 0, page, pageSize };
+      const { rows, total } = await listSubscribers(db, filter, pageWindow({ page, pageSize }));
+      return { rows: (await withProjects(rows)).map(toRow), total, page, pageSize };
     },
 
-    /** The export names no project, so it reads none. */
-    async exportCsv(f: SubscriberListQuery): Promise<string> {
+    /** Every matching subscriber (never paged). The export names no project, so it reads none. */
+    async exportCsv(f: SubscriberFilterQuery): Promise<string> {
       const filter = await resolveFilter(f);
       const { rows } = filter ? await listSubscribers(db, filter, null) : { rows: [] };
       return subscribersToCsv(rows);

@@ -1,5 +1,5 @@
 import type { Knex } from "knex";
-import type { Frequency, Interest, SubscriberAudience, SubscriberListQuery, SubscriberStatus, Topics } from "#shared/schemas/subscribers.ts";
+import type { Frequency, Interest, SubscriberAudience, SubscriberFilterQuery, SubscriberStatus, Topics } from "#shared/schemas/subscribers.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -192,7 +192,7 @@ function likeEscape(s: string): string {
 }
 
 /** The office's list filters, with the project already resolved from its slug to its id. */
-export type SubscriberFilter = Omit<SubscriberListQuery, "projectSlug"> & { projectId?: number };
+export type SubscriberFilter = Omit<SubscriberFilterQuery, "projectSlug"> & { projectId?: number };
 
 function filtered(q: Q, f: SubscriberFilter) {
   const query = base(q);
@@ -213,9 +213,10 @@ function filtered(q: Q, f: SubscriberFilter) {
   return query;
 }
 
-export async function listSubscribers(q: Q, f: SubscriberFilter, limit: number | null): Promise<{ rows: SubscriberRecord[]; total: number }> {
+/** The matching subscribers, newest first: one page of them (`window`), or all (null, for the export). */
+export async function listSubscribers(q: Q, f: SubscriberFilter, window: { offset: number; limit: number } | null): Promise<{ rows: SubscriberRecord[]; total: number }> {
   const query = filtered(q, f).orderBy([{ column: "s.created_at", order: "desc" }, { column: "s.id", order: "desc" }]);
-  if (limit !== null) query.limit(limit);
+  if (window !== null) query.offset(window.offset).limit(window.limit);
   const rows = (await query).map(toSubscriber);
   const countRow = await filtered(q, f).clearSelect().count({ n: "*" }).first();
   return { rows, total: Number((countRow as { n?: number } | undefined)?.n ?? rows.length) };

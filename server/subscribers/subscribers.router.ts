@@ -10,6 +10,7 @@ import {
   OneClickBodySchema,
   PreferencesInputSchema,
   SubscriberImportInputSchema,
+  SubscriberFilterQuerySchema,
   SubscriberListQuerySchema,
   SubscriberTokenParamSchema,
   SubscriptionInputSchema,
@@ -109,7 +110,7 @@ export function subscribersRouter(deps: {
     res.json(await subscribers.list(query));
   });
   r.get("/subscribers/export.csv", requireStaff(), async (req, res) => {
-    const query = SubscriberListQuerySchema.parse({ ...req.query });
+    const query = SubscriberFilterQuerySchema.parse({ ...req.query });
     const csv = await subscribers.exportCsv(query);
     res
       .status(200)

@@ -1,6 +1,6 @@
 import type { QueryClient } from "@tanstack/react-query";
 import type { ComponentType } from "react";
-import { createBrowserRouter, type LoaderFunction, type RouteObject } from "react-router-dom";
+import { createBrowserRouter, matchRoutes, type HydrationState, type LoaderFunction, type RouteObject } from "react-router-dom";
 import { homeLoader, HomePage } from "../features/projects/routes.tsx";
 import type { RouteLoader } from "../lib/loaders.ts";
 import { sessionLoader } from "../lib/session.ts";
@@ -59,7 +59,8 @@ function area(qc: QueryClient, where: Where, layout: () => Promise<ComponentType
   };
 }
 
-function routes(qc: QueryClient): RouteObject[] {
+/** The app's routes, their loaders priming `qc`: the browser's router and the server's renderer (src/entry-server.tsx) share them. */
+export function routes(qc: QueryClient): RouteObject[] {
   const site = () => import("../features/public-site/routes.tsx");
   const subscribers = () => import("../features/subscribers/routes.tsx");
   const auth = () => import("../features/auth/routes.tsx");
@@ -117,6 +118,11 @@ function routes(qc: QueryClient): RouteObject[] {
           const m = await enquiries();
           return { Component: m.EnquirePage, loader: m.enquireLoader, ErrorBoundary: m.EnquireError };
         }, { what: "project", ownErrors: true }),
+        // A review link's page: a draft for one outside reviewer, no account needed (decision 060).
+        page(qc, "review/:token", async () => {
+          const m = await import("../features/review-links/routes.tsx");
+          return { Component: m.ReviewPage, loader: m.reviewLoader, ErrorBoundary: m.ReviewLinkError };
+        }, { what: "review link", ownErrors: true }),
         page(qc, "sign-in", async () => ({ Component: (await auth()).SignInPage })),
         page(qc, "invitations/:token", async () => {
           const m = await auth();
@@ -136,6 +142,10 @@ function routes(qc: QueryClient): RouteObject[] {
       page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage, loader: (await programme()).siteWalkLoader }), { ...OFFICE, what: "project" }),
       page(qc, "facility", async () => ({ Component: (await facility()).FacilityPage, loader: (await facility()).facilityLoader }), { ...OFFICE, what: "project" }),
       page(qc, "facility/walk", async () => ({ Component: (await facility()).FacilityWalkPage, loader: (await facility()).facilityWalkLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "site-plan", async () => {
+        const m = await import("../features/site-plan/routes.tsx");
+        return { Component: m.SitePlanPage, loader: m.sitePlanLoader };
+      }, { ...OFFICE, what: "project" }),
       // The investor record's office pages: each feature in its own chunk, loaded when visited.
       page(qc, "risks", async () => {
         const m = await import("../features/risks/routes.tsx");
@@ -164,6 +174,11 @@ function routes(qc: QueryClient): RouteObject[] {
       }, { ...OFFICE, what: "report" }),
       page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage, loader: (await media()).mediaLibraryLoader }), OFFICE),
       page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage, loader: (await media()).mediaReviewLoader }), OFFICE),
+      // The project's hero photograph (decision 055): the media library's photos, the project's choice.
+      page(qc, "media/hero", async () => {
+        const m = await import("./pages/hero-page.tsx");
+        return { Component: m.HeroPhotoPage, loader: m.heroPageLoader };
+      }, OFFICE),
       page(qc, "updates", async () => {
         const m = await import("../features/posts/routes.tsx");
         return { Component: m.PostsPage, loader: m.postsLoader };
@@ -203,3 +218,18 @@ function routes(qc: QueryClient): RouteObject[] {
 
 /** The app's routes on the browser's history; loaders prime `queryClient`, the cache the pages read. */
 export const createRouter = (queryClient: QueryClient) => createBrowserRouter(routes(queryClient));
+
+/**
+ * The router over a page the server rendered: the matched routes' modules are loaded first and
+ * their loaders are not run again (the server's answers are already in `queryClient`), so the
+ * first render is the server's HTML and hydration finds nothing to change.
+ */
+export async function createHydratingRouter(queryClient: QueryClient, hydrationData: HydrationState) {
+  const tree = routes(queryClient);
+  for (const { route } of matchRoutes(tree, window.location) ?? []) {
+    if (typeof route.lazy !== "function") continue;
+    Object.assign(route, await route.lazy());
+    route.lazy = undefined;
+  }
+  return createBrowserRouter(tree, { hydrationData });
+}

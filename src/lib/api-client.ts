@@ -14,6 +14,17 @@ export class ApiError extends Error {
   }
 }
 
+/**
+ * How requests leave: the browser's fetch to the page's own origin. The server's renderer
+ * (src/entry-server.tsx) points it at the app itself, so the same loaders run there as the visitor.
+ */
+let transport: typeof fetch = (input, init) => fetch(input, init);
+
+/** Sends the API requests through `how` instead (the server's renderer only). */
+export function setApiFetch(how: typeof fetch): void {
+  transport = how;
+}
+
 let csrfToken: string | null = null;
 let csrfPromise: Promise<string> | null = null;
 
@@ -42,7 +53,7 @@ async function send<T>(method: Method, path: string, body?: unknown, retried = f
   const isForm = typeof FormData !== "undefined" && body instanceof FormData;
   if (body !== undefined && !isForm) headers["Content-Type"] = "application/json";
   if (method !== "GET") headers["X-CSRF-Token"] = csrfToken ?? (await fetchCsrf());
-  const res = await fetch(path, {
+  const res = await transport(path, {
     method,
     headers,
     credentials: "same-origin",
@@ -60,6 +71,30 @@ async function send<T>(method: Method, path: string, body?: unknown, retried = f
     throw new ApiError(res.status, err?.code ?? "http_error", err?.message ?? `The server answered ${res.status}.`, err?.fields ?? {}, payload);
   }
   return payload as T;
+}
+
+/**
+ * POSTs JSON and takes a file back (a press kit's zip): the bytes and the file name the server
+ * gave in Content-Disposition. An error answer raises ApiError as `send` does.
+ */
+export async function postForFile(path: string, body: unknown, retried = false): Promise<{ blob: Blob; fileName: string | null }> {
+  const res = await transport(path, {
+    method: "POST",
+    headers: { "Content-Type": "application/json", "X-CSRF-Token": csrfToken ?? (await fetchCsrf()) },
+    credentials: "same-origin",
+    body: JSON.stringify(body),
+  });
+  if (!res.ok) {
+    const payload: unknown = (res.headers.get("content-type") ?? "").includes("json") ? await res.json() : null;
+    const err = (payload as ApiErrorBody | null)?.error;
+    if (res.status === 403 && err?.code === "csrf" && !retried) {
+      csrfToken = null;
+      return postForFile(path, body, true);
+    }
+    throw new ApiError(res.status, err?.code ?? "http_error", err?.message ?? `The server answered ${res.status}.`, err?.fields ?? {}, payload);
+  }
+  const named = /filename="([^"]+)"/.exec(res.headers.get("content-disposition") ?? "");
+  return { blob: await res.blob(), fileName: named?.[1] ?? null };
 }
 
 export const api = {
@@ -94,7 +129,7 @@ export function pageCount(total: number, pageSize: number): number {
  * bodies only, so this reads the header itself and raises the same error type.
  */
 export async function getPage<T>(path: string): Promise<Page<T>> {
-  const res = await fetch(path, { headers: { Accept: "application/json" }, credentials: "same-origin" });
+  const res = await transport(path, { headers: { Accept: "application/json" }, credentials: "same-origin" });
   const body: unknown = (res.headers.get("content-type") ?? "").includes("json") ? await res.json() : null;
   if (!res.ok) {
     const err = (body as ApiErrorBody | null)?.error;

@@ -1,20 +1,24 @@
 import type { System } from "#shared/schemas/programme.ts";
+import { formatLongDate, formatShortDate, PROJECT_LOCALE } from "#shared/domain/locale-dates.ts";
 import { ApiError } from "./api-client.ts";
 
-const dateFmt = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
-
-/** `YYYY-MM-DD` → "3 Mar 2027". Calendar dates are not instants: formatted in UTC so they never shift. */
+/** `YYYY-MM-DD` → "3 Mar 2027" in the project's locale (decision 057); "—" when there is none. */
 export function formatDate(d: string | null | undefined): string {
   if (!d) return "—";
-  const [y, m, day] = d.slice(0, 10).split("-").map(Number) as [number, number, number];
-  return dateFmt.format(new Date(Date.UTC(y, m - 1, day)));
+  return formatShortDate(d.slice(0, 10));
+}
+
+/** `YYYY-MM-DD` → "3 March 2027": headlines and sentences on pages the public reads. */
+export function formatDateLong(d: string | null | undefined): string {
+  if (!d) return "—";
+  return formatLongDate(d.slice(0, 10));
 }
 
 /** An instant in a named time zone (the project's), with the zone shown. */
 export function formatInstant(iso: string | null | undefined, timeZone = "Europe/London"): string {
   if (!iso) return "—";
   // dateStyle/timeStyle cannot be combined with timeZoneName, so the fields are spelled out.
-  return new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit", timeZone, timeZoneName: "short" }).format(new Date(iso));
+  return new Intl.DateTimeFormat(PROJECT_LOCALE, { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit", hourCycle: "h23", timeZone, timeZoneName: "short" }).format(new Date(iso));
 }
 
 /** The programme's systems as people read them (in tags, filters and milestone lines). */

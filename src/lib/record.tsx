@@ -5,6 +5,7 @@ import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { ProjectPicker } from "../components/ui/project-picker.tsx";
 import { Notice, PageHeader } from "../components/ui/sheet.tsx";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "./loaders.ts";
+import { AUDIENCE_WORD } from "./words.ts";
 import { officeProjectSlug, useProjectParam, type projectListQueryOptions } from "./projects.ts";
 
 /*
@@ -19,7 +20,7 @@ export function canKeepRecord(user: User | null | undefined): boolean {
 }
 
 /** Nothing of the record is ever public: investors, or staff only. */
-export const RECORD_AUDIENCE_WORD: Record<RecordAudience, string> = { investor: "Investors", internal: "Staff only" };
+export const RECORD_AUDIENCE_WORD: Record<RecordAudience, string> = { investor: AUDIENCE_WORD.investor, internal: AUDIENCE_WORD.internal };
 export const RECORD_AUDIENCE_OPTIONS = (["investor", "internal"] as const).map((a) => ({ value: a, label: RECORD_AUDIENCE_WORD[a] }));
 
 type ProjectList = ReturnType<typeof projectListQueryOptions>;

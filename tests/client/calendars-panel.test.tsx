@@ -1,6 +1,7 @@
 import { cleanup, fireEvent, screen, waitFor } from "@testing-library/react";
 import { afterEach, describe, expect, it, vi } from "vitest";
 import { CalendarFeedPanel } from "../../src/features/calendars/calendar-feed-panel.tsx";
+import { jsonAnswer, stubFetch } from "./fetch-stub.ts";
 import { renderWithApp } from "./render.tsx";
 
 afterEach(() => {
@@ -15,18 +16,12 @@ const SECOND = "https://plumbline.example/calendars/ZyXwVuTsRqPoNmLkJiHgFeDcBa98
 /** The calendar-feed routes as the panel meets them: each POST answers the next address in turn. */
 function stubFeeds(posts: Array<{ status: number; body: unknown }>) {
   const calls: Array<{ method: string; url: string; csrf: string | null }> = [];
-  vi.stubGlobal(
-    "fetch",
-    vi.fn(async (url: string, init: RequestInit = {}) => {
-      const json = (status: number, body: unknown) => new Response(JSON.stringify(body), { status, headers: { "Content-Type": "application/json" } });
-      if (url === "/api/auth/csrf") return json(200, { token: "t" });
-      const method = init.method ?? "GET";
-      calls.push({ method, url, csrf: new Headers(init.headers).get("X-CSRF-Token") });
-      if (method === "DELETE") return new Response(null, { status: 204 });
-      const next = posts.shift()!;
-      return json(next.status, next.body);
-    }),
-  );
+  stubFetch(({ method, url, init }) => {
+    calls.push({ method, url, csrf: new Headers(init.headers).get("X-CSRF-Token") });
+    if (method === "DELETE") return new Response(null, { status: 204 });
+    const next = posts.shift()!;
+    return jsonAnswer(next.status, next.body);
+  });
   return calls;
 }
 

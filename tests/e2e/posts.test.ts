@@ -235,9 +235,12 @@ describe("an update from the editor to the public page", () => {
       expect(await imgs.nth(0).getAttribute("loading")).toBe("eager");
       expect(await imgs.nth(1).getAttribute("loading")).toBe("lazy");
       await page.getByText("Chillers on their plinths.").first().waitFor();
+      // The linked milestone is shown once, where the body names it, as its then-and-now bar (decision 055).
       const then = page.getByTestId("post-milestone").filter({ hasText: milestone.name });
-      await then.getByTestId("milestone-then").waitFor();
-      expect(await page.locator('[data-testid="post-body"] .milestone-block').count()).toBe(1);
+      await then.getByTestId("then-now-words").waitFor();
+      expect(await then.count()).toBe(1);
+      expect(await page.locator('[data-testid="post-body"] [data-testid="post-milestone"]').count()).toBe(1);
+      expect(await page.locator('[data-testid="post-body"] aside.milestone-block').count()).toBe(0);
       const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
       expect(overflow).toBeLessThanOrEqual(0);
       await screenshot(page, width === 360 ? "posts-public-360" : "posts-public");

@@ -6,6 +6,7 @@ import { addDays, daysBetween } from "../../src/shared/domain/calendar.ts";
 import { formatLongDate } from "../../src/features/programme/dates.ts";
 import { signedDays, slipInWords } from "../../src/features/programme/words.ts";
 import { formatDate } from "../../src/lib/format.ts";
+import { formatTypedDate } from "../../src/shared/domain/locale-dates.ts";
 import { DEMO, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
 import path from "node:path";
 import { ARTIFACTS, launchBrowser, screenshot, signInAs as signInThroughForm, watchErrors } from "../helpers/browser.ts";
@@ -78,7 +79,8 @@ describe("the programme, from the site office to the investor room and the publi
       await pending.getByRole("button", { name: "Save change" }).click();
       await page.getByText("Change saved").waitFor();
       await expect.poll(() => pending.count()).toBe(0);
-      await expect.poll(() => input.inputValue()).toBe(newForecast);
+      // The box shows the saved day in the project's format (decision 057).
+      await expect.poll(() => input.inputValue()).toBe(formatTypedDate(newForecast));
       expect(errors).toEqual([]);
     } finally {
       await browser.close();

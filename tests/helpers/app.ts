@@ -58,6 +58,8 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { lis
     SESSION_SECRET: "test-secret-not-for-production-0123456789",
     LOGIN_LIMIT_PER_IP: "100000",
     LOGIN_LIMIT_PER_ACCOUNT: "100000",
+    // Lifted as the sign-in limits are: tests/server/press-kits.test.ts tries the real one from addresses of its own.
+    PRESS_KIT_LIMIT_PER_IP: "100000",
     // TEST_LOG_LEVEL=error shows the server's own error lines when a run must be traced.
     LOG_LEVEL: process.env.TEST_LOG_LEVEL ?? "silent",
     PUBLIC_URL: port ? `http://127.0.0.1:${port}` : "http://plumbline.test",

@@ -36,8 +36,8 @@ export function watchErrors(page: Page): string[] {
 }
 
 export async function screenshot(page: Page, name: string): Promise<string> {
-  mkdirSync(ARTIFACTS, { recursive: true });
   const file = path.join(ARTIFACTS, `${name}.png`);
+  mkdirSync(path.dirname(file), { recursive: true });
   await page.screenshot({ path: file, fullPage: true });
   return file;
 }

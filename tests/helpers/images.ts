@@ -163,7 +163,7 @@ function addGrain(rgb: Buffer, sigma: number, seed: number): void {
 }
 
 /** mulberry32: a small seeded generator, so test and benchmark images repeat exactly. */
-function seededRandom(seed: number): () => number {
+export function seededRandom(seed: number): () => number {
   let state = seed >>> 0;
   return () => {
     state = (state + 0x6d2b79f5) >>> 0;

@@ -74,9 +74,9 @@ describe("bad input gets the fixed error shape and writes nothing", () => {
 
   it("a bad query parameter is refused, not ignored", async () => {
     const admin = await signIn(t, DEMO.admin);
-    const res = await admin.agent.get("/api/audit?limit=100000");
+    const res = await admin.agent.get("/api/audit?pageSize=100000");
     expect(res.status).toBe(400);
-    expect(res.body.error.fields).toHaveProperty("limit");
+    expect(res.body.error.fields).toHaveProperty("pageSize");
     const extra = await admin.agent.get("/api/outbox?colour=red");
     expect(extra.status).toBe(400);
   });

@@ -7,6 +7,7 @@ import sharp from "sharp";
 import { afterAll, beforeEach, describe, expect, it, vi } from "vitest";
 import { DEFAULT_FORMATS, makeDerivatives, planWidths, type Variant } from "../../server/media/media.pipeline.ts";
 import { canDecodeHeic, probeImage } from "../../server/media/media.probe.ts";
+import { POST_COVER_SIZES, POST_PHOTO_SIZES, srcSetOf } from "../../src/shared/domain/picture-sizes.ts";
 import {
   QUADRANT_COLOURS,
   listMetadataBlocks,
@@ -62,6 +63,22 @@ const distance = (a: Rgb, b: Rgb) => Math.hypot(a[0] - b[0], a[1] - b[1], a[2] -
 function nearestQuadrant(sample: Rgb): keyof typeof QUADRANT_COLOURS {
   const entries = Object.entries(QUADRANT_COLOURS) as [keyof typeof QUADRANT_COLOURS, Rgb][];
   return entries.reduce((best, entry) => (distance(sample, entry[1]) < distance(sample, best[1]) ? entry : best))[0];
+}
+
+/** Each quadrant of the upright test picture (makeQuadrantPicture) is where it belongs. */
+async function expectQuadrantsUpright(variant: Variant): Promise<void> {
+  const w = variant.width;
+  const h = variant.height;
+  const samples = {
+    topLeft: await pixelAt(variant.buffer, Math.floor(w / 4), Math.floor(h / 4)),
+    topRight: await pixelAt(variant.buffer, Math.floor((3 * w) / 4), Math.floor(h / 4)),
+    bottomLeft: await pixelAt(variant.buffer, Math.floor(w / 4), Math.floor((3 * h) / 4)),
+    bottomRight: await pixelAt(variant.buffer, Math.floor((3 * w) / 4), Math.floor((3 * h) / 4)),
+  };
+  for (const [corner, sample] of Object.entries(samples) as [keyof typeof QUADRANT_COLOURS, Rgb][]) {
+    expect(nearestQuadrant(sample), `${variant.format} ${w}×${h} at ${corner}: ${sample}`).toBe(corner);
+    expect(distance(sample, QUADRANT_COLOURS[corner])).toBeLessThan(40);
+  }
 }
 
 /** Byte offset of `needle` in `hay`, or -1. */
@@ -249,21 +266,28 @@ describe("makeDerivatives: EXIF orientation 1–8", () => {
           expect([meta.width, meta.height]).toEqual([variant.width, variant.height]);
           expect(variant.width / variant.height).toBeCloseTo(2, 1);
           expect(meta.orientation ?? 1).toBe(1);
-          const w = variant.width;
-          const h = variant.height;
-          const samples = {
-            topLeft: await pixelAt(variant.buffer, Math.floor(w / 4), Math.floor(h / 4)),
-            topRight: await pixelAt(variant.buffer, Math.floor((3 * w) / 4), Math.floor(h / 4)),
-            bottomLeft: await pixelAt(variant.buffer, Math.floor(w / 4), Math.floor((3 * h) / 4)),
-            bottomRight: await pixelAt(variant.buffer, Math.floor((3 * w) / 4), Math.floor((3 * h) / 4)),
-          };
-          for (const [corner, sample] of Object.entries(samples) as [keyof typeof QUADRANT_COLOURS, Rgb][]) {
-            expect(nearestQuadrant(sample), `${variant.format} ${w}×${h} at ${corner}: ${sample}`).toBe(corner);
-            expect(distance(sample, QUADRANT_COLOURS[corner])).toBeLessThan(40);
-          }
+          await expectQuadrantsUpright(variant);
         }
       });
     }
+  }
+});
+
+describe("makeDerivatives: a portrait turned upright from EXIF 1/3/6/8, capped on its long side", () => {
+  // 1200 × 1800 displayed, with a ladder topped at 800: the cap makes the tallest derivative
+  // 533 × 800 (the width whose height is 800), more than 2× smaller than the stored pixels,
+  // so the JPEG is decoded at reduced size before it is turned.
+  for (const orientation of [1, 3, 6, 8]) {
+    it(`orientation ${orientation}: each corner's colour is where it belongs in every derivative`, async () => {
+      // Source: EXIF 2.3 (CIPA DC-008) tag 0x0112 — 3 rotate 180°, 6 rotate 90° CW, 8 rotate 90° CCW.
+      const input = await makeOrientedJpeg(orientation, 1200, 1800);
+      const stored = await sharp(input).metadata();
+      expect([stored.width, stored.height]).toEqual(orientation >= 5 ? [1800, 1200] : [1200, 1800]);
+      const result = await makeDerivatives(input, { widths: [320, 480, 800] });
+      expect([result.width, result.height]).toEqual([1200, 1800]);
+      expect([...new Set(result.variants.map((v) => `${v.width}x${v.height}`))]).toEqual(["533x800", "480x720", "320x480"]);
+      for (const variant of result.variants) await expectQuadrantsUpright(variant);
+    });
   }
 });
 
@@ -399,13 +423,74 @@ function invert3(m: M3): M3 {
 
 describe("makeDerivatives: widths, encodings and names", () => {
   it.each([
-    { original: 3000, widths: [320, 640, 1024, 1600, 2400] },
-    { original: 2400, widths: [320, 640, 1024, 1600, 2400] },
-    { original: 1000, widths: [320, 640, 1000] },
+    { original: 3000, widths: [320, 640, 960, 1200, 1600, 2400] },
+    { original: 2400, widths: [320, 640, 960, 1200, 1600, 2400] },
+    { original: 1100, widths: [320, 640, 960, 1100] },
+    { original: 1000, widths: [320, 640, 960, 1000] },
     { original: 320, widths: [320] },
     { original: 100, widths: [100] },
   ])("plans $widths for an original $original px wide (never upscaling)", ({ original, widths }) => {
     expect(planWidths(original)).toEqual(widths);
+  });
+
+  // Decision 058: a 375 px phone at 3× draws a full-width photo 1,029 device px wide; the
+  // ladder has a width between that and 1600 so it need not fetch 1600.
+  it("has a width between 1,029 and 1,600 px for a phone at 3× density", () => {
+    expect(planWidths(6000).some((w) => w >= 1029 && w < 1600)).toBe(true);
+  });
+
+  /**
+   * The slot width a `sizes` gives at a viewport width, CSS px: the first entry whose
+   * `(min-width: Npx)` holds, else the last; lengths in px or `calc(100vw - Nrem)` (16 px rem).
+   * Source: HTML Living Standard, "Parsing a sizes attribute" (first matching condition wins).
+   */
+  function slotWidth(sizes: string, viewport: number): number {
+    for (const entry of sizes.split(",").map((e) => e.trim())) {
+      const media = /^\(min-width: (\d+)px\)\s+(.*)$/.exec(entry);
+      if (media && viewport < Number(media[1])) continue;
+      const length = media ? (media[2] as string) : entry;
+      const calc = /^calc\(100vw - (\d+)rem\)$/.exec(length);
+      if (calc) return viewport - 16 * Number(calc[1]);
+      if (length === "100vw") return viewport;
+      return Number(/^(\d+)px$/.exec(length)?.[1]);
+    }
+    throw new Error(`no entry of ${sizes} applies`);
+  }
+
+  it("lists the new widths in srcset, and the post page's sizes make a 3× phone pick 1200, not 1600", () => {
+    const ladder = planWidths(6000);
+    const srcset = srcSetOf(ladder.map((w) => ({ url: `/media/v/0123456789abcdef-${w}w.avif`, width: w })));
+    expect(srcset).toContain("-960w.avif 960w");
+    expect(srcset).toContain("-1200w.avif 1200w");
+    // Source: HTML Living Standard, srcset selection — the browser wants slot width × device
+    // pixel ratio; Chromium takes the narrowest candidate at least that wide.
+    const pick = (sizes: string, viewport: number, dpr: number) => ladder.find((w) => w >= slotWidth(sizes, viewport) * dpr) ?? ladder[ladder.length - 1];
+    for (const sizes of [POST_COVER_SIZES, POST_PHOTO_SIZES]) {
+      expect(slotWidth(sizes, 375)).toBe(343);
+      expect(pick(sizes, 375, 3)).toBe(1200);
+      expect(pick(sizes, 430, 3)).toBe(1200);
+      expect(pick(sizes, 375, 2)).toBe(960);
+      expect(pick(sizes, 1280, 1)).toBe(960);
+      expect(pick(sizes, 1280, 2)).toBe(1600);
+    }
+  });
+
+  it.each([
+    // 4000 × 6000 (a 24 MP portrait): no derivative taller than 2400, so 1600 × 2400 at most.
+    { original: [4000, 6000], widths: [320, 640, 960, 1200, 1600] },
+    // 3:4: the width that makes it exactly 2400 tall (1800) tops the ladder.
+    { original: [3000, 4000], widths: [320, 640, 960, 1200, 1600, 1800] },
+    // Small portraits are not upscaled and keep their own width.
+    { original: [600, 900], widths: [320, 600] },
+    // Square and landscape: by width, as before.
+    { original: [3000, 3000], widths: [320, 640, 960, 1200, 1600, 2400] },
+    // Taller than 1:2 is a strip or a long drawing, laid out by width: no cap.
+    { original: [400, 16000], widths: [320, 400] },
+    { original: [3000, 20000], widths: [320, 640, 960, 1200, 1600, 2400] },
+  ])("caps a portrait's long side: $original plans $widths", ({ original, widths }) => {
+    const [w, h] = original as [number, number];
+    expect(planWidths(w, undefined, h)).toEqual(widths);
+    for (const planned of widths) if (h > w && h <= 2 * w) expect(Math.round((planned * h) / w)).toBeLessThanOrEqual(2400);
   });
 
   it("makes every planned width in every format, none wider than the original, at the original's aspect ratio", async () => {
@@ -416,6 +501,7 @@ describe("makeDerivatives: widths, encodings and names", () => {
     const made = result.variants.map((v) => `${v.width}x${v.height}.${v.format}`).sort();
     const expected = [
       [1000, 625],
+      [960, 600],
       [640, 400],
       [320, 200],
     ].flatMap(([w, h]) => ["avif", "webp", "jpeg"].map((f) => `${w}x${h}.${f}`)).sort();

@@ -72,9 +72,9 @@ describe("POST /api/media → processing → ready, through the real worker and 
     expect(after.body.status).toBe("ready");
     expect(after.body.placeholder).toMatch(/^data:image\/webp;base64,/);
     expect(after.body.dominantColor).toMatch(/^#[0-9a-f]{6}$/);
-    // planWidths: 320, 640, 1024, and the original's own 1200 (narrower than 1600/2400).
+    // planWidths: 320, 640, 960 and 1200, the ladder up to the original's own width (decision 058).
     const widths = [...new Set((after.body.variants as Array<{ width: number }>).map((v) => v.width))].sort((a, b) => a - b);
-    expect(widths).toEqual([320, 640, 1024, 1200]);
+    expect(widths).toEqual([320, 640, 960, 1200]);
     expect(after.body.variants).toHaveLength(12);
     for (const v of after.body.variants as Array<{ url: string; width: number; height: number; format: string }>) {
       expect(v.url).toMatch(/^\/media\/v\/[0-9a-f]{16}-\d+w\.(avif|webp|jpg)$/);

@@ -72,7 +72,7 @@ const today = () => DateTime.now().setZone(TZ).toISODate()!;
 
 /** Audit rows of an action about one target, newest first, as the admin reads them. */
 async function auditOf(action: string, targetId: number | string): Promise<AuditEvent[]> {
-  const res = await as.admin.agent.get(`/api/audit?action=${action}&limit=500`).expect(200);
+  const res = await as.admin.agent.get(`/api/audit?action=${action}&pageSize=100`).expect(200);
   return (res.body as AuditEvent[]).filter((e) => e.targetId === String(targetId));
 }
 

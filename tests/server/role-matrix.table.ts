@@ -44,6 +44,8 @@ export interface MatrixIds {
   investorUnit: number;
   publicUnit: number;
   internalFeature: number;
+  /** The demo site plan's staff-only area (the contractors' compound). */
+  internalSiteArea: number;
   publicFeature: number;
   /** A project of the matrix's own risks register and decisions (made through the API): one of each audience. */
   recordSlug: string;
@@ -122,6 +124,19 @@ const REAL_OBJECT_ROWS: MatrixRow[] = [
   { method: "patch", path: (ids) => `/api/media/${ids.unreviewedPhoto}`, body: { sensitivity: "cleared", nonsense: true }, expect: { admin: 400, lead: 400, marketing: 400, investor: 403, anonymous: 401 } },
   { method: "get", path: (ids) => `/api/media/${ids.clearedPhoto}`, expect: staffOnly(200) },
   { method: "get", path: (ids) => `/media/v/${ids.clearedPhotoFile}`, expect: all(200), cache: "shared", immutable: true },
+  // Press kits (decision 062): the public zip holds the demo gallery's cleared photos; a draft story is no visitor's kit, whoever asks.
+  { method: "post", path: `/api/projects/${DEMO_SLUG}/press-kit`, body: {}, expect: staffOnly(400) },
+  { method: "post", path: `/api/projects/${DEMO_SLUG}/press-kit`, body: { mediaIds: [999999999] }, expect: staffOnly(404) },
+  { method: "get", path: `/projects/${DEMO_SLUG}/press-kit.zip`, expect: all(200), cache: "per-caller" },
+  { method: "get", path: (ids) => `/projects/${DEMO_SLUG}/press-kit.zip?story=${ids.draftStorySlug}`, expect: all(404), cache: "per-caller" },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/press-kit/terms`, expect: all(200) },
+  { method: "put", path: `/api/projects/${DEMO_SLUG}/press-kit/terms`, body: {}, expect: staffOnly(400) },
+  // Then-and-now pairs (decision 063): the demo's photos for a public story and an internal one; the facility project's (no photos); bad params.
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/then-and-now`, expect: staffOnly(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/then-and-now?audience=internal&area=Hall%202A&minDays=30&limit=5`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/then-and-now?audience=investor`, expect: staffOnly(200) },
+  { method: "get", path: `/api/projects/${DEMO_SLUG}/then-and-now?audience=everyone&minDays=0`, expect: staffOnly(400) },
+  { method: "get", path: "/api/projects/no-such-build/then-and-now", expect: staffOnly(404) },
   // Posts: an investor post is hidden from visitors; a post in review from everyone outside the office.
   { method: "get", path: (ids) => `/api/projects/${DEMO_SLUG}/posts/${ids.investorPostSlug}`, expect: investorAudience(200) },
   { method: "get", path: (ids) => `/api/projects/${DEMO_SLUG}/posts/${ids.publicPostSlug}`, expect: all(200) },
@@ -133,6 +148,18 @@ const REAL_OBJECT_ROWS: MatrixRow[] = [
   { method: "get", path: (ids) => `/api/posts/${ids.postInReview}/history`, expect: staffOnly(200) },
   { method: "post", path: (ids) => `/api/posts/${ids.postInReview}/return`, body: {}, expect: writers(400) },
   { method: "post", path: (ids) => `/api/posts/${ids.postInReview}/schedule`, body: {}, expect: writers(400) },
+  // Review links (decision 060): made, listed and revoked by whoever may edit the content; read by the link's holder alone.
+  { method: "get", path: (ids) => `/api/posts/${ids.postInReview}/review-links`, expect: staffOnly(200) },
+  { method: "post", path: (ids) => `/api/posts/${ids.postInReview}/review-links`, body: {}, expect: staffOnly(400) },
+  { method: "post", path: (ids) => `/api/posts/${ids.publicPost}/review-links`, body: { name: "Matrix Reviewer", email: "matrix.reviewer@example.test" }, expect: staffOnly(409) },
+  { method: "get", path: (ids) => `/api/stories/${ids.draftStory}/review-links`, expect: staffOnly(200) },
+  { method: "post", path: (ids) => `/api/stories/${ids.draftStory}/review-links`, body: { days: 31 }, expect: staffOnly(400) },
+  { method: "get", path: "/api/posts/999999999/review-links", expect: staffOnly(404) },
+  { method: "delete", path: "/api/review-links/999999999", expect: staffOnly(404) },
+  { method: "get", path: `/api/review/${BAD_LINK}`, expect: all(404) },
+  { method: "get", path: `/api/review/${BAD_LINK}/media/0000000000000000-320w.webp`, expect: all(404) },
+  { method: "post", path: `/api/review/${BAD_LINK}/answer`, body: { verdict: "looks_right" }, expect: all(404) },
+  { method: "get", path: `/review/${BAD_LINK}`, expect: all(200) },
   { method: "patch", path: (ids) => `/api/posts/${ids.investorPost}`, body: { nonsense: true }, expect: staffOnly(400) },
   { method: "get", path: (ids) => `/projects/${DEMO_SLUG}/updates/${ids.investorPostSlug}`, expect: all(200) },
   // Photo stories: a draft is the office's.
@@ -147,6 +174,7 @@ const REAL_OBJECT_ROWS: MatrixRow[] = [
   { method: "get", path: (ids) => `/api/digests/runs/${ids.digestRun}`, expect: staffOnly(200) },
   // Facility: each caller reads the facility their audience allows; a unit's history follows its system's audience; writes are for leads and admins.
   { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/facility`, expect: all(200) },
+  { method: "patch", path: (ids) => `/api/site-areas/${ids.internalSiteArea}`, body: {}, expect: writers(400) },
   { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/facility?at=2026-06-30`, expect: { admin: 200, lead: 200, marketing: 200, investor: 403, anonymous: 403 } },
   { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/facility/events`, expect: staffOnly(200) },
   { method: "patch", path: (ids) => `/api/facility/blocks/${ids.internalBlock}`, body: {}, expect: writers(400) },
@@ -469,6 +497,12 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: "/projects/aldermere-phase-2/updates/no-such-update", expect: all(200) },
   { method: "get", path: "/projects/aldermere-phase-2/stories/no-such-story", expect: all(200) },
   { method: "get", path: "/api/projects/aldermere-phase-2/gallery", expect: all(200) },
+  // The home page's builds and the project's hero photograph (decision 055): read by everyone; chosen by leads and admins.
+  { method: "get", path: "/api/home", expect: all(200) },
+  { method: "get", path: `${DEMO_PROGRAMME}/hero`, expect: all(200) },
+  { method: "get", path: "/api/projects/no-such-project/hero", expect: all(404) },
+  { method: "put", path: `${DEMO_PROGRAMME}/hero`, body: {}, expect: writers(400) },
+  { method: "put", path: "/api/projects/no-such-project/hero", body: {}, expect: writers(400) },
   // Search (decision 048): open to every caller, each answered by audience; q is required.
   { method: "get", path: `${DEMO_PROGRAMME}/search?q=HD-1`, expect: all(200) },
   { method: "get", path: `${DEMO_PROGRAMME}/search`, expect: all(400) },
@@ -496,6 +530,16 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "post", path: `${DEMO_PROGRAMME}/facility/features`, body: {}, expect: writers(400) },
   { method: "patch", path: "/api/facility/features/999999999", body: { version: 1 }, expect: writers(404) },
   { method: "delete", path: "/api/facility/features/999999999", expect: writers(404) },
+  { method: "get", path: `${DEMO_PROGRAMME}/site-plan`, expect: all(200) },
+  // Drafts suggested by the programme (decision 061): those who start updates.
+  { method: "get", path: `${DEMO_PROGRAMME}/draft-suggestion?audience=public`, expect: { admin: 200, lead: 200, marketing: 200, investor: 403, anonymous: 401 } },
+  { method: "get", path: `${DEMO_PROGRAMME}/draft-suggestion?audience=everyone`, expect: { admin: 400, lead: 400, marketing: 400, investor: 403, anonymous: 401 } },
+  { method: "get", path: "/api/projects/no-such-project/draft-suggestion", expect: { admin: 404, lead: 404, marketing: 404, investor: 403, anonymous: 401 } },
+  { method: "post", path: `${DEMO_PROGRAMME}/draft-suggestion/draft`, body: {}, expect: { admin: 400, lead: 400, marketing: 400, investor: 403, anonymous: 401 } },
+  { method: "get", path: "/api/projects/no-such-project/site-plan", expect: all(404) },
+  { method: "post", path: `${DEMO_PROGRAMME}/site-areas`, body: {}, expect: writers(400) },
+  { method: "patch", path: "/api/site-areas/999999999", body: { version: 1 }, expect: writers(404) },
+  { method: "delete", path: "/api/site-areas/999999999", expect: writers(404) },
   { method: "post", path: "/api/auth/logout", expect: all(204) },
   ...REAL_OBJECT_ROWS,
   ...BUDGET_ROWS,

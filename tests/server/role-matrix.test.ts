@@ -74,6 +74,8 @@ async function resolveIds(): Promise<MatrixIds> {
     return Number(row.id);
   };
   const [investorChange, internalChange] = [await changeOf("investor"), await changeOf("internal")];
+  const siteArea = (await t.db("site_areas").where({ project_id: project.id, audience: "internal" }).orderBy("id").first("id")) as { id: number } | undefined;
+  if (!siteArea) throw new Error("the demo has no internal site area");
 
   const facility = await matrixFacility();
   const documents = await matrixDocuments();
@@ -100,6 +102,7 @@ async function resolveIds(): Promise<MatrixIds> {
     enquiry: Number(enquiry.id),
     digestRun: Number(run.id),
     investorChange,
+    internalSiteArea: Number(siteArea.id),
     internalChange,
     ...facility,
     ...documents,

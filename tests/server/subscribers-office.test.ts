@@ -97,7 +97,7 @@ describe("GET /api/subscribers (marketing, lead, admin)", () => {
     expect(all.rows.find((r) => r.email === there)?.project).toEqual({ slug: otherSlug, name: "Office Test Annex" });
 
     const none = await m.agent.get(`/api/subscribers?projectSlug=no-such-project`).expect(200);
-    expect(none.body).toEqual({ rows: [], total: 0 });
+    expect(none.body).toEqual({ rows: [], total: 0, page: 1, pageSize: 50 });
     const csv = await m.agent.get(`/api/subscribers/export.csv?projectSlug=no-such-project`).expect(200);
     const parsed = Papa.parse<Record<string, string>>(csv.text.trim(), { header: true });
     expect(parsed.meta.fields).toEqual([...SUBSCRIBER_EXPORT_COLUMNS]);

@@ -30,12 +30,18 @@ function AccountBar() {
   );
 }
 
+/**
+ * Every section the role may open. On a phone the sections wrap onto as many lines as they need
+ * (a sideways-scrolling strip hid most of them); from `md` up they stand in a column. The current
+ * section says so to assistive technology (`aria-current="page"`, set by NavLink) and to the eye by
+ * weight and a bar in ink (a thick underline on a phone, a left rule beside the column), not by colour.
+ */
 function AreaNav({ links }: { links: AreaLink[] }) {
   const me = useMe();
   const role = me.data?.role;
   return (
-    <nav aria-label="Sections" className="-mx-4 overflow-x-auto px-4 md:mx-0 md:px-0">
-      <ul className="flex gap-1 md:flex-col md:gap-0.5">
+    <nav aria-label="Sections">
+      <ul className="flex flex-wrap gap-x-1 gap-y-1 md:flex-col md:flex-nowrap md:gap-0.5">
         {links
           .filter((l) => !l.roles || (role && l.roles.includes(role)))
           .map((l) => (
@@ -44,7 +50,11 @@ function AreaNav({ links }: { links: AreaLink[] }) {
                 to={l.to}
                 end={l.end}
                 className={({ isActive }) =>
-                  `block whitespace-nowrap border-l-0 px-3 py-2 text-sm md:border-l-4 ${isActive ? "border-b-2 border-accent font-semibold md:border-b-0 md:bg-sheet" : "border-transparent text-ink-soft hover:text-ink"}`
+                  `flex min-h-8 items-center whitespace-nowrap rounded-sm px-2.5 py-1 text-sm md:rounded-none md:border-l-4 md:px-3 md:py-2 ${
+                    isActive
+                      ? "border-b-4 border-ink bg-sheet font-semibold text-ink md:border-b-0"
+                      : "border-b-4 border-transparent text-ink-soft underline-offset-4 hover:text-ink hover:underline md:border-b-0"
+                  }`
                 }
               >
                 {l.label}

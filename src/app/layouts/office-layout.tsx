@@ -9,6 +9,7 @@ export function OfficeLayout() {
         { to: "/office", label: "Overview", end: true },
         { to: "/office/programme", label: "Programme" },
         { to: "/office/facility", label: "Facility", roles: ["marketing", "lead", "admin"] },
+        { to: "/office/site-plan", label: "Site plan" },
         { to: "/office/risks", label: "Risks" },
         { to: "/office/decisions", label: "Decisions" },
         { to: "/office/budget", label: "Budget", roles: ["lead", "admin"] },

@@ -56,7 +56,7 @@ function ProjectSections({ slug }: { slug: string }) {
             <NavLink
               to={sectionHref(slug, s.path)}
               end={s.path === ""}
-              className={({ isActive }) => `-mb-px block whitespace-nowrap border-b-2 px-3 py-2 text-sm ${isActive ? "border-accent font-semibold text-ink" : "border-transparent text-ink-soft hover:text-ink"}`}
+              className={({ isActive }) => `-mb-px block whitespace-nowrap border-b-2 px-3 py-2 text-sm ${isActive ? "border-ink font-semibold text-ink" : "border-transparent text-ink-soft hover:text-ink"}`}
             >
               {s.label}
             </NavLink>
@@ -104,7 +104,7 @@ export function InvestorHomePage() {
               <ul aria-label={`The record of ${p.name}`} className="flex flex-wrap gap-x-4 gap-y-1 border-t border-rule pt-3 text-sm">
                 {SECTIONS.filter((s) => s.path !== "" && (!s.roles || (role && s.roles.includes(role)))).map((s) => (
                   <li key={s.path}>
-                    <Link to={sectionHref(p.slug, s.path)} className="font-medium underline underline-offset-4">
+                    <Link to={sectionHref(p.slug, s.path)} className="inline-flex min-h-6 items-center font-medium underline underline-offset-4">
                       {s.label}
                     </Link>
                   </li>

@@ -11,7 +11,7 @@ export function NotFoundPage() {
       <h1 className="mt-1 text-2xl font-semibold">There is no page here</h1>
       <p className="mt-3 text-ink-soft">The address may be mistyped, or the page was moved.</p>
       <p className="mt-6">
-        <Link to="/" className="font-medium text-accent underline underline-offset-4">
+        <Link to="/" className="font-medium text-ink underline underline-offset-4">
           Back to the progress site
         </Link>
       </p>
@@ -44,7 +44,7 @@ export function RouteErrorPage({ what = "page", home = "/", homeLabel = "Progres
         <h1 className="mt-1 text-2xl font-semibold">No such {what}</h1>
         <p className="mt-3 text-ink-soft">There is no {what} at this address. It may have been withdrawn, or the address is mistyped.</p>
         <p className="mt-6">
-          <Link to={home} className="font-medium text-accent underline underline-offset-4">
+          <Link to={home} className="font-medium text-ink underline underline-offset-4">
             Back to the {homeLabel.toLowerCase()}
           </Link>
         </p>
@@ -58,7 +58,7 @@ export function RouteErrorPage({ what = "page", home = "/", homeLabel = "Progres
       <h1 className="mt-1 text-2xl font-semibold">This {what} could not be shown</h1>
       <p className="mt-3 text-ink-soft">{message}</p>
       <p className="mt-6 flex gap-4">
-        <button type="button" className="font-medium text-accent underline underline-offset-4" onClick={() => window.location.reload()}>
+        <button type="button" className="font-medium text-ink underline underline-offset-4" onClick={() => window.location.reload()}>
           Try again
         </button>
         <Link to={home} className="underline underline-offset-4">

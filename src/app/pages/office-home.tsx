@@ -41,7 +41,7 @@ export function OfficeHomePage() {
           <Sheet label="Mail" title="Outbox">
             <p className="text-sm text-ink-soft">In this demo, mail is kept here instead of being delivered: read each message as it was sent, with its single-use links masked.</p>
             <p className="mt-3">
-              <Link to="/office/outbox" className="font-medium text-accent underline underline-offset-4">
+              <Link to="/office/outbox" className="font-medium text-ink underline underline-offset-4">
                 Open the outbox
               </Link>
             </p>

@@ -3,17 +3,21 @@ import { Link, useParams } from "react-router-dom";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { milestoneFinish } from "#shared/domain/programme-health.ts";
 import { StatusMark } from "../../components/ui/status-mark.tsx";
-import { milestonesQueryOptions, useHealth, useMilestones } from "../../features/programme/api.ts";
+import { healthQueryOptions, milestonesQueryOptions, useHealth, useMilestones } from "../../features/programme/api.ts";
 import { formatMonthYear } from "../../features/programme/dates.ts";
 import { describeDates } from "../../features/programme/public-routes.tsx";
 import { WholeProgrammeNote } from "../../features/programme/components/whole-programme-note.tsx";
 import { describePublicProgress, slipInWords } from "../../features/programme/words.ts";
-import { projectQueryOptions } from "../../features/projects/api.ts";
+import { heroQueryOptions, projectQueryOptions } from "../../features/projects/api.ts";
+import { ProjectHero } from "../../features/projects/components/project-hero.tsx";
 import { SiteVisitRules } from "../../features/projects/components/site-visit-rules.tsx";
 import { HeroPhoto, LatestUpdates, StoryList } from "../../features/public-site/components/latest-updates.tsx";
 import { ProjectNav } from "../../features/public-site/components/project-nav.tsx";
 import { ReadinessAtAGlance } from "../../features/public-site/components/readiness-glance.tsx";
+import { SitePlanSection } from "../../features/public-site/components/site-plan-section.tsx";
+import { sitePlanQueryOptions } from "../../lib/site-plan.ts";
 import { facilityReadQueryOptions } from "../../features/public-site/facility-api.ts";
+import { storiesQueryOptions, updatesQueryOptions } from "../../features/public-site/api.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
 import { useTitle } from "../../lib/use-title.ts";
 
@@ -80,23 +84,23 @@ function FollowLinks({ slug }: { slug: string }) {
       </h2>
       <ul className="mt-2 flex flex-col gap-2 text-[0.95rem]">
         <li>
-          <Link to={`/projects/${slug}/subscribe`} className="font-medium text-accent underline underline-offset-4">
+          <Link to={`/projects/${slug}/subscribe`} className="inline-flex min-h-6 items-center font-medium text-ink underline underline-offset-4">
             Get updates by e-mail
           </Link>
           <span className="block text-sm text-ink-soft">As they happen, weekly or monthly; unsubscribe with one click.</span>
         </li>
         <li>
-          <Link to={`/projects/${slug}/enquire`} className="font-medium underline underline-offset-4">
+          <Link to={`/projects/${slug}/enquire`} className="inline-flex min-h-6 items-center font-medium underline underline-offset-4">
             Ask about capacity or a site visit
           </Link>
         </li>
         <li>
-          <Link to={`/projects/${slug}/gallery`} className="underline underline-offset-4">
+          <Link to={`/projects/${slug}/gallery`} className="inline-flex min-h-6 items-center underline underline-offset-4">
             Photographs from the site
           </Link>
         </li>
         <li>
-          <a href={`/feed/${slug}.atom`} className="underline underline-offset-4">
+          <a href={`/feed/${slug}.atom`} className="inline-flex min-h-6 items-center underline underline-offset-4">
             News feed (Atom)
           </a>
         </li>
@@ -108,7 +112,18 @@ function FollowLinks({ slug }: { slug: string }) {
 /** The project must be there; the programme is asked for alongside and may fail on its own. */
 export const projectHomeLoader: RouteLoader = (qc) => async ({ params }) => {
   const slug = params.slug ?? "";
-  await Promise.all([qc.ensureQueryData(projectQueryOptions(slug)), qc.prefetchQuery(milestonesQueryOptions(slug, PUBLIC)), qc.prefetchQuery(facilityReadQueryOptions(slug))]);
+  // The headline figure and the latest updates and stories too: a page rendered on the server
+  // (decision 059) carries only what its loader fetched.
+  await Promise.all([
+    qc.ensureQueryData(projectQueryOptions(slug)),
+    qc.prefetchQuery(milestonesQueryOptions(slug, PUBLIC)),
+    qc.prefetchQuery(healthQueryOptions(slug)),
+    qc.prefetchQuery(facilityReadQueryOptions(slug)),
+    qc.prefetchQuery(heroQueryOptions(slug)),
+    qc.prefetchQuery(sitePlanQueryOptions(slug)),
+    qc.prefetchQuery(updatesQueryOptions(slug)),
+    qc.prefetchQuery(storiesQueryOptions(slug)),
+  ]);
   return null;
 };
 
@@ -129,7 +144,8 @@ export function ProjectHomePage() {
       <ProjectNav slug={p.slug} />
       {/* "Ready when?" is what a prospect comes for: it comes first, above the photograph (decision 050). */}
       <ReadinessAtAGlance slug={p.slug} publicOnly detailsHref={`/projects/${p.slug}/facility`} className="mt-4" />
-      <HeroPhoto slug={p.slug} />
+      {/* The photograph staff chose (decision 055), else the latest cover. */}
+      <ProjectHero slug={p.slug} fallback={<HeroPhoto slug={p.slug} />} />
       <p className="mt-6 max-w-3xl font-serif text-lg leading-relaxed">{p.description}</p>
       <div className="mt-8 grid gap-6 md:grid-cols-[2fr_1fr]">
         <section aria-labelledby="progress" className="border border-rule bg-sheet p-5">
@@ -141,7 +157,7 @@ export function ProjectHomePage() {
           </div>
           {milestones.data ? <NextMilestones milestones={milestones.data} /> : null}
           <p className="mt-3">
-            <Link to={`/projects/${p.slug}/timeline`} className="font-medium text-accent underline underline-offset-4">
+            <Link to={`/projects/${p.slug}/timeline`} className="font-medium text-ink underline underline-offset-4">
               See the timeline: when each part will be ready →
             </Link>
           </p>
@@ -154,6 +170,7 @@ export function ProjectHomePage() {
           {p.visitsOffered ? <SiteVisitRules /> : null}
         </div>
       </div>
+      <SitePlanSection slug={p.slug} className="mt-10" />
       <div className="mt-10 flex flex-col gap-10">
         <LatestUpdates slug={p.slug} timeZone={p.timeZone} />
         <StoryList slug={p.slug} timeZone={p.timeZone} />

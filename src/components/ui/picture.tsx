@@ -68,6 +68,11 @@ export interface PictureProps {
  * `width`/`height` reserve the box before the bytes arrive (nothing shifts), and the
  * dominant colour and blurred placeholder paint it meanwhile.
  */
+/** `{ x: 0.25, y: 0.8 }` → "25.0% 80.0%": the CSS `object-position` that keeps a focal point in any crop. */
+export function objectPositionOf(focal: { x: number; y: number }): string {
+  return `${(focal.x * 100).toFixed(1)}% ${(focal.y * 100).toFixed(1)}%`;
+}
+
 export function Picture({ picture, sizes, eager = false, alt, fit = "natural", aspect, className = "", imgClassName = "" }: PictureProps) {
   const [loaded, setLoaded] = useState(false);
   // A cached image can finish before React attaches onLoad; the ref catches that case.
@@ -81,7 +86,7 @@ export function Picture({ picture, sizes, eager = false, alt, fit = "natural", a
     backgroundImage: loaded || !picture.placeholder ? undefined : `url("${picture.placeholder}")`,
     backgroundSize: "cover",
     backgroundPosition: "center",
-    objectPosition: `${(focal.x * 100).toFixed(1)}% ${(focal.y * 100).toFixed(1)}%`,
+    objectPosition: objectPositionOf(focal),
   };
   if (fit === "cover") style.aspectRatio = String(aspect ?? picture.width / picture.height);
   const fitClass = fit === "cover" ? "h-full w-full object-cover" : fit === "contain" ? "h-auto w-auto object-contain" : "h-auto w-full";

@@ -2,6 +2,7 @@ import type { ComponentProps, ReactNode } from "react";
 import { Link } from "react-router-dom";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { PostStatus, PublishingProblem } from "#shared/schemas/publishing.ts";
+import { AUDIENCE_WORD } from "../../lib/words.ts";
 import { AudienceMark } from "./audience-mark.tsx";
 import { Button } from "./button.tsx";
 import { SelectField } from "./field.tsx";
@@ -139,7 +140,7 @@ export function AudienceSheet({ label, value, onChange, error }: { label: string
         options={[
           { value: "public", label: "Public: anyone" },
           { value: "investor", label: "Investors (and staff)" },
-          { value: "internal", label: "Staff only" },
+          { value: "internal", label: AUDIENCE_WORD.internal },
         ]}
       />
     </Sheet>

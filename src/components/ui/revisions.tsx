@@ -97,7 +97,7 @@ export function RevisionList({
                   <button type="button" className="underline underline-offset-2" onClick={() => setCompare({ n: latest, against: r.number })}>
                     Compare with latest
                   </button>
-                  <button type="button" className="font-medium text-accent underline underline-offset-2" onClick={() => setConfirm(r.number)}>
+                  <button type="button" className="font-medium text-ink underline underline-offset-2" onClick={() => setConfirm(r.number)}>
                     Restore
                   </button>
                 </>

@@ -1,6 +1,8 @@
 import { useState } from "react";
 import type { ScheduleInput } from "#shared/schemas/publishing.ts";
 import { Button } from "./button.tsx";
+import { DateField } from "./date-field.tsx";
+import { parseTypedTime } from "#shared/domain/locale-dates.ts";
 import { Dialog } from "./dialog.tsx";
 import { TextAreaField, TextField } from "./field.tsx";
 
@@ -50,8 +52,9 @@ export function ScheduleDialog({ timeZone, busy, error, onClose, onSchedule }: {
           Times are on the project's clock: <strong data-testid="schedule-zone">{zone}</strong>.
         </p>
         <div className="grid grid-cols-2 gap-3">
-          <TextField label="Date" type="date" value={date} min={todayIn(timeZone)} onChange={(e) => setDate(e.target.value)} />
-          <TextField label={`Time (${zoneAbbreviation(timeZone, date)})`} type="time" value={time} onChange={(e) => setTime(e.target.value)} />
+          <DateField label="Date" value={date} min={todayIn(timeZone)} onChange={(e) => setDate(e.target.value)} />
+          {/* Typed on the 24-hour clock ("09:30"): a time input would show the browser's 12-hour clock. */}
+          <TextField label={`Time (${zoneAbbreviation(timeZone, date)})`} inputMode="numeric" placeholder="hh:mm" hint="24-hour clock, e.g. 09:30" value={time} onChange={(e) => setTime(e.target.value)} onBlur={() => setTime((t) => parseTypedTime(t) ?? t)} />
         </div>
         {error ? (
           <p role="alert" className="text-sm text-bad">

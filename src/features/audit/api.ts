@@ -1,12 +1,20 @@
 import { queryOptions } from "@tanstack/react-query";
-import type { AuditEvent } from "#shared/schemas/users.ts";
-import { api, qs } from "../../lib/api-client.ts";
+import { AUDIT_PAGE_SIZE, type AuditEvent } from "#shared/schemas/users.ts";
+import { getPage, qs } from "../../lib/api-client.ts";
+
+export interface AuditFilter {
+  action?: string;
+  page?: number;
+}
 
 export const auditKeys = {
   all: ["audit"] as const,
-  list: (f: { action?: string }) => [...auditKeys.all, "list", f] as const,
+  list: (f: AuditFilter) => [...auditKeys.all, "list", f] as const,
 };
 
-export const auditQueryOptions = (f: { action?: string } = {}) =>
-  queryOptions({ queryKey: auditKeys.list(f), queryFn: () => api.get<AuditEvent[]>(`/api/audit${qs({ action: f.action, limit: 300 })}`) });
-
+/** One page of the log (AUDIT_PAGE_SIZE events), newest first, with the total. */
+export const auditQueryOptions = (f: AuditFilter = {}) =>
+  queryOptions({
+    queryKey: auditKeys.list(f),
+    queryFn: () => getPage<AuditEvent>(`/api/audit${qs({ action: f.action, page: f.page && f.page > 1 ? f.page : undefined, pageSize: AUDIT_PAGE_SIZE })}`),
+  });

@@ -1,15 +1,16 @@
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, useReactTable } from "@tanstack/react-table";
 import { useSearchParams } from "react-router-dom";
-import type { AuditEvent } from "#shared/schemas/users.ts";
+import { AUDIT_PAGE_SIZE, type AuditEvent } from "#shared/schemas/users.ts";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
+import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
 import { PageHeader } from "../../components/ui/sheet.tsx";
 import { formatInstant } from "../../lib/format.ts";
 import { primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { auditQueryOptions } from "./api.ts";
 
-const filterOf = (params: URLSearchParams) => ({ action: params.get("action") || undefined });
+const filterOf = (params: URLSearchParams) => ({ action: params.get("action") || undefined, page: pageFromParams(params) });
 
 /** The audit log is for administrators (the route says so); only theirs is primed. */
 export const auditLoader: RouteLoader = (qc) => ({ request }) => primeWhenAllowed(qc, ["admin"], () => qc.ensureQueryData(auditQueryOptions(filterOf(new URL(request.url).searchParams))));
@@ -47,7 +48,7 @@ export function AuditPage() {
   const [params, setParams] = useSearchParams();
   const action = params.get("action") ?? "";
   const audit = useSuspenseQuery(auditQueryOptions(filterOf(params))).data;
-  const table = useReactTable({ data: audit, columns, getCoreRowModel: getCoreRowModel() });
+  const table = useReactTable({ data: audit.items, columns, getCoreRowModel: getCoreRowModel() });
   return (
     <>
       <PageHeader sheet="Site office · Audit log" title="Audit log" description="Sign-ins, invitations, resets and account changes: who, when and from which address. Newest first." />
@@ -60,6 +61,7 @@ export function AuditPage() {
         />
       </div>
       <DataTable table={table} caption="Audit events" empty="No events of this kind." />
+      <UrlPager total={audit.total} pageSize={AUDIT_PAGE_SIZE} label="Pages of the audit log" previous="← Newer" next="Older →" />
     </>
   );
 }

@@ -59,7 +59,7 @@ export function SignInPage() {
           Sign in
         </Button>
         <p className="text-sm">
-          <Link to="/forgot-password" className="text-accent underline underline-offset-4">
+          <Link to="/forgot-password" className="text-ink underline underline-offset-4">
             Forgotten your password?
           </Link>
         </p>
@@ -99,7 +99,7 @@ function DeadLink({ title, what, to, label }: { title: string; what: string; to:
     <AuthCard title={title}>
       <Notice tone="error">{error instanceof Error ? error.message : `This ${what} cannot be opened.`}</Notice>
       <p className="mt-4 text-sm">
-        <Link to={to} className="text-accent underline underline-offset-4">
+        <Link to={to} className="text-ink underline underline-offset-4">
           {label}
         </Link>
       </p>

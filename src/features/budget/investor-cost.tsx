@@ -60,7 +60,7 @@ function EacVariants({ p }: { p: BudgetPosition }) {
             <p className="font-mono text-sm">{v.formula}</p>
             <p className="tabular text-2xl font-semibold">{formatMoney(v.value, p.currency)}</p>
             <p className="text-sm text-ink-soft">{v.value === null ? "Not given until the indices it divides by are known." : v.sentence}</p>
-            {chosen ? <p className="label-caps text-ink">● The projected final cost the project lead uses</p> : null}
+            {chosen ? <p className="label-caps text-ink">✓ The projected final cost the project lead uses</p> : null}
           </li>
         );
       })}
@@ -99,7 +99,7 @@ function ApprovedChanges({ changes, currency }: { changes: BudgetChangeAnswer[];
             </p>
             <p className="text-sm text-ink-soft">
               Approved by {c.approvedBy ?? "—"} on {formatDate(c.approvedOn)}
-              {c.drawsOnContingency ? " · ◆ drawn from contingency" : ""}
+              {c.drawsOnContingency ? " · drawn from contingency" : ""}
               {c.linkedMilestones.length ? ` · ${c.linkedMilestones.map((m) => m.name).join(", ")}` : ""}
             </p>
           </div>

@@ -1,8 +1,8 @@
 import type { BudgetChangeStatus, EacMethod } from "#shared/schemas/budget.ts";
 
 export const STATUS_WORD: Record<BudgetChangeStatus, string> = { proposed: "Proposed", approved: "Approved", rejected: "Rejected" };
-/** Status by a glyph as well as the word: a ring waiting, a disc approved, a cross rejected. */
-export const STATUS_GLYPH: Record<BudgetChangeStatus, string> = { proposed: "○", approved: "●", rejected: "✕" };
+/** Status by a glyph as well as the word (DEVELOPERS.md "Shapes"): a dotted ring waiting for a decision, a disc approved, a cross rejected. */
+export const STATUS_GLYPH: Record<BudgetChangeStatus, string> = { proposed: "◌", approved: "●", rejected: "✕" };
 
 export const METHOD_WORD: Record<EacMethod, string> = {
   bac_over_cpi: "Cost performance continues",

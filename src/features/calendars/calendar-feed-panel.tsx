@@ -1,5 +1,6 @@
 import { useId, useState } from "react";
 import { Button } from "../../components/ui/button.tsx";
+import { ShownOnceAddress } from "../../components/ui/shown-once-address.tsx";
 import { useMakeCalendarFeed, useStopCalendarFeed } from "./api.ts";
 
 type Status = { kind: "none" } | { kind: "made"; url: string } | { kind: "copied"; url: string } | { kind: "stopped" } | { kind: "error"; message: string };
@@ -17,7 +18,6 @@ export function CalendarFeedPanel({ slug, projectName }: { slug: string; project
   const stop = useStopCalendarFeed(slug);
   const [status, setStatus] = useState<Status>({ kind: "none" });
   const headingId = useId();
-  const addressId = useId();
   const url = status.kind === "made" || status.kind === "copied" ? status.url : null;
 
   const onMake = () =>
@@ -58,20 +58,11 @@ export function CalendarFeedPanel({ slug, projectName }: { slug: string; project
         </Button>
       </div>
       {url ? (
-        <div className="mt-3">
-          <label htmlFor={addressId} className="block text-sm font-medium">
-            Your calendar address (shown only now)
-          </label>
-          <div className="mt-1 flex flex-wrap gap-2">
-            <input id={addressId} readOnly value={url} onFocus={(e) => e.currentTarget.select()} className="min-w-0 flex-1 rounded-sm border border-rule-strong bg-sheet px-2 py-1 font-mono text-xs" />
-            <Button size="sm" onClick={() => void onCopy()}>
-              Copy
-            </Button>
-          </div>
+        <ShownOnceAddress label="Your calendar address (shown only now)" url={url} onCopy={() => void onCopy()}>
           <p className="mt-1 text-sm" role="status">
             {status.kind === "copied" ? "✓ Copied. Add it in your calendar app as a subscription (from a URL)." : "Add it in your calendar app as a subscription (from a URL)."}
           </p>
-        </div>
+        </ShownOnceAddress>
       ) : null}
       {status.kind === "stopped" ? (
         <p className="mt-3 text-sm" role="status">

@@ -40,7 +40,7 @@ function Options({ decision, currency }: { decision: DecisionAnswer; currency: s
           </p>
           {o.consequence ? <p className="text-sm text-ink-soft">{o.consequence}</p> : null}
           {i === decision.recommendedOption ? <p className="label-caps text-ink">★ Recommended</p> : null}
-          {i === chosen ? <p className="label-caps text-ink">● Chosen</p> : null}
+          {i === chosen ? <p className="label-caps text-ink">✓ Chosen</p> : null}
         </li>
       ))}
     </ol>

@@ -3,6 +3,7 @@ import { useDeferredValue, useState } from "react";
 import { toast } from "sonner";
 import type { DigestRunSummary } from "#shared/schemas/digests.ts";
 import { Button } from "../../components/ui/button.tsx";
+import { Dialog } from "../../components/ui/dialog.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
@@ -153,12 +154,15 @@ export function DigestsPage() {
   const timeZone = projects.find((p) => p.slug === shown)?.timeZone;
   const runNow = useRunDigest();
   const test = useSendTest();
+  // A run mails every subscriber at that frequency, so it is asked for twice: the button, then the dialog's own.
+  const [confirming, setConfirming] = useState<"weekly" | "monthly" | null>(null);
   const start = (frequency: "weekly" | "monthly") =>
     runNow.mutate(
       { projectSlug: project, frequency },
       {
         onSuccess: (r) => toast.success(r.status === "done" ? "That period was already sent." : "The run has started."),
         onError: (e) => toast.error(e.message),
+        onSettled: () => setConfirming(null),
       },
     );
   return (
@@ -169,10 +173,10 @@ export function DigestsPage() {
         description="Progress e-mails to subscribers: weekly on Monday at 08:00 and monthly on the first working day at 08:00, in the build's time zone, and one e-mail per update for those who follow as it happens."
         actions={
           <div className="flex flex-wrap gap-2">
-            <Button variant="primary" disabled={!project} busy={runNow.isPending} onClick={() => start("weekly")}>
+            <Button disabled={!project} busy={runNow.isPending && confirming === "weekly"} onClick={() => setConfirming("weekly")}>
               Run last week now
             </Button>
-            <Button disabled={!project} busy={runNow.isPending} onClick={() => start("monthly")}>
+            <Button disabled={!project} busy={runNow.isPending && confirming === "monthly"} onClick={() => setConfirming("monthly")}>
               Run last month now
             </Button>
             <Button
@@ -185,6 +189,22 @@ export function DigestsPage() {
           </div>
         }
       />
+      <Dialog
+        open={confirming !== null}
+        title={confirming === "monthly" ? "Send last month's digest now?" : "Send last week's digest now?"}
+        onClose={() => setConfirming(null)}
+        dismiss="Cancel"
+        footer={
+          <Button variant="primary" busy={runNow.isPending} onClick={() => confirming && start(confirming)}>
+            Send it now
+          </Button>
+        }
+      >
+        <p>
+          Every confirmed subscriber who takes the {confirming === "monthly" ? "monthly" : "weekly"} digest of {projects.find((p) => p.slug === project)?.name ?? "this build"} gets it now, instead of at the next scheduled time. A
+          period already sent is not sent again.
+        </p>
+      </Dialog>
       <div className="flex flex-col gap-6">
         {projects.length > 1 ? <SelectField label="Build" value={project} onChange={(e) => setPicked(e.target.value)} options={projects.map((p) => ({ value: p.slug, label: p.name }))} /> : null}
         {shown ? (

@@ -5,8 +5,8 @@ export const KIND_WORD: Record<EnquiryKind, string> = { capacity: "Capacity", vi
 
 /** Status by shape and word, never colour alone. */
 export const ENQUIRY_STATUS_LOOK: Record<EnquiryStatus, { glyph: string; word: string; className: string }> = {
-  new: { glyph: "◆", word: "New", className: "text-accent" },
-  contacted: { glyph: "○", word: "Contacted", className: "text-ink" },
+  new: { glyph: "◆", word: "New", className: "font-semibold text-ink" },
+  contacted: { glyph: "◐", word: "Contacted", className: "text-ink" },
   closed: { glyph: "●", word: "Closed", className: "text-ink-faint" },
 };
 

@@ -1,4 +1,3 @@
-import type { Audience } from "#shared/schemas/common.ts";
 import { stageRank } from "#shared/domain/facility-record.ts";
 import {
   UNIT_STAGES,
@@ -11,7 +10,8 @@ import {
   type UnitStage,
 } from "#shared/schemas/facility.ts";
 
-export const AUDIENCE_WORD: Record<Audience, string> = { public: "Public", investor: "Investors", internal: "Internal" };
+// One word per audience across the product (decision 056).
+export { AUDIENCE_WORD } from "../../lib/words.ts";
 
 export const KIND_WORD: Record<PlantKind, string> = {
   cooling: "Cooling",

@@ -14,6 +14,7 @@ import type { System } from "#shared/schemas/programme.ts";
 import { api, qs } from "../../lib/api-client.ts";
 import { facilityTagChoicesQueryOptions } from "../../lib/facility-tags.ts";
 import { projectListQueryOptions } from "../../lib/projects.ts";
+import { thenAndNowQueryOptions, type PairFilters } from "../../lib/then-and-now.ts";
 
 /** The library's filters as the page keeps them (and the query string carries them). */
 export interface LibraryFilters {
@@ -44,9 +45,14 @@ export const mediaKeys = {
   lists: (slug: string) => [...mediaKeys.project(slug), "list"] as const,
   list: (slug: string, f: LibraryFilters) => [...mediaKeys.lists(slug), f] as const,
   review: (slug: string) => [...mediaKeys.project(slug), "review"] as const,
+  pairs: (slug: string, f: PairFilters) => [...mediaKeys.project(slug), "then-and-now", f] as const,
   items: () => [...mediaKeys.all, "item"] as const,
   item: (id: number) => [...mediaKeys.items(), id] as const,
 };
+
+/** Then-and-now pairs of the library's photos for content of one audience (decision 063). */
+export const useLibraryPairs = (slug: string, f: PairFilters, enabled: boolean) =>
+  useQuery({ ...thenAndNowQueryOptions(mediaKeys.pairs(slug, f), slug, f), enabled: enabled && slug !== "", placeholderData: keepPreviousData });
 
 export const mediaProjectsQueryOptions = () => queryOptions({ ...projectListQueryOptions(mediaKeys.projects()), staleTime: 5 * 60_000 });
 

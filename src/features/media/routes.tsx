@@ -6,16 +6,18 @@ import { SystemSchema } from "#shared/schemas/programme.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
-import { pageCount } from "../../lib/api-client.ts";
+import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug } from "../../lib/projects.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { canReview, LIBRARY_PAGE_SIZE, mediaListQueryOptions, mediaProjectsQueryOptions, reviewQueueQueryOptions, vocabularyQueryOptions, type LibraryFilters } from "./api.ts";
 import { BulkTagBar } from "./components/bulk-tag-bar.tsx";
+import { PressKitBar } from "./components/press-kit-bar.tsx";
 import { EditPanel } from "./components/edit-panel.tsx";
 import { LibraryFiltersForm } from "./components/library-filters.tsx";
 import { MediaGrid } from "./components/media-grid.tsx";
 import { ReviewQueue } from "./components/review-queue.tsx";
+import { ThenAndNowList } from "./components/then-and-now-list.tsx";
 import { UploadPanel } from "./components/upload-panel.tsx";
 
 /** The project the library shows: `?project=` or the first one (the server's default too). */
@@ -34,7 +36,6 @@ function filtersFrom(params: URLSearchParams): LibraryFilters {
   const system = params.get("system");
   const sensitivity = params.get("sensitivity");
   const milestone = Number(params.get("milestone"));
-  const page = Number(params.get("page"));
   return {
     q: params.get("q") || undefined,
     area: params.get("area") || undefined,
@@ -45,7 +46,7 @@ function filtersFrom(params: URLSearchParams): LibraryFilters {
     sensitivity: SensitivitySchema.safeParse(sensitivity).success ? (sensitivity as LibraryFilters["sensitivity"]) : undefined,
     missingAlt: bool(params.get("missingAlt")),
     flagged: bool(params.get("flagged")),
-    page: Number.isInteger(page) && page > 1 ? page : 1,
+    page: pageFromParams(params),
   };
 }
 
@@ -80,8 +81,6 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
   // The photo being edited, as the grid showed it when it was opened.
   const [openItem, setOpen] = useState<MediaItem | null>(null);
   const items = list.items;
-  const pages = pageCount(list.total, LIBRARY_PAGE_SIZE);
-  const page = filters.page ?? 1;
 
   const toggle = (id: number) =>
     setSelected((s) => {
@@ -100,7 +99,9 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
       <Sheet label="Library" title="Find photos">
         <LibraryFiltersForm filters={filters} onChange={setFilters} vocabulary={vocabulary} />
       </Sheet>
+      <ThenAndNowList slug={slug} />
       {selected.size > 0 ? <BulkTagBar slug={slug} ids={[...selected]} vocabulary={vocabulary} onDone={() => undefined} onClear={() => setSelected(new Set())} /> : null}
+      {selected.size > 0 ? <PressKitBar slug={slug} ids={[...selected]} /> : null}
       <div className={`grid gap-4 ${openItem ? "lg:grid-cols-[minmax(0,1fr)_26rem]" : ""}`}>
         <section aria-labelledby="media-grid-h" className="min-w-0">
           <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
@@ -121,19 +122,7 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
           ) : (
             <MediaGrid items={items} selected={selected} onToggle={toggle} onOpen={(id) => setOpen(items.find((i) => i.id === id) ?? null)} />
           )}
-          {pages > 1 ? (
-            <nav aria-label="Pages" className="mt-4 flex items-center justify-between gap-2">
-              <Button size="sm" disabled={page <= 1} onClick={() => setFilters({ ...filters, page: page - 1 })}>
-                ← Newer
-              </Button>
-              <span className="tabular text-sm">
-                Page {page} of {pages}
-              </span>
-              <Button size="sm" disabled={page >= pages} onClick={() => setFilters({ ...filters, page: page + 1 })}>
-                Older →
-              </Button>
-            </nav>
-          ) : null}
+          <UrlPager total={list.total} pageSize={LIBRARY_PAGE_SIZE} label="Pages of photos" previous="← Newer" next="Older →" />
         </section>
         {openItem ? <EditPanel key={openItem.id} shown={openItem} slug={slug} vocabulary={vocabulary} onClose={() => setOpen(null)} /> : null}
       </div>
@@ -154,9 +143,14 @@ export function MediaLibraryPage() {
         description="Site photos for updates and photo stories. Location data is stripped from everything published; a project lead clears each photo before it can appear outside the site office."
         actions={
           canReview(me) && slug ? (
-            <Link to={`/office/media/review?project=${slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
-              Review queue
-            </Link>
+            <>
+              <Link to={`/office/media/review?project=${slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+                Review queue
+              </Link>
+              <Link to={`/office/media/hero?project=${slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+                Hero photograph
+              </Link>
+            </>
           ) : null
         }
       />

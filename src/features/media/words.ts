@@ -8,7 +8,7 @@ export const STATUS_WORD: Record<MediaStatus, { glyph: string; word: string; ton
 };
 
 export const SENSITIVITY_WORD: Record<Sensitivity, { glyph: string; word: string; tone: string }> = {
-  unreviewed: { glyph: "○", word: "Unreviewed", tone: "text-watch" },
+  unreviewed: { glyph: "◌", word: "Not yet reviewed", tone: "text-watch" },
   cleared: { glyph: "✓", word: "Cleared", tone: "text-good" },
   restricted: { glyph: "■", word: "Restricted", tone: "text-bad" },
 };

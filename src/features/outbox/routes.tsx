@@ -2,10 +2,11 @@ import { useQueryClient, useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
 import { useState } from "react";
 import { Link, useParams, useSearchParams } from "react-router-dom";
-import type { OutboxMessage } from "#shared/schemas/outbox.ts";
+import { OUTBOX_PAGE_SIZE, type OutboxMessage } from "#shared/schemas/outbox.ts";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { Button } from "../../components/ui/button.tsx";
 import { TextField } from "../../components/ui/field.tsx";
+import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { formatInstant } from "../../lib/format.ts";
@@ -30,7 +31,7 @@ function OutboxRefusal() {
 
 const refused = (e: unknown) => e instanceof ApiError && (e.status === 403 || e.status === 401);
 
-const toFilter = (params: URLSearchParams) => ({ to: params.get("to") || undefined });
+const toFilter = (params: URLSearchParams) => ({ to: params.get("to") || undefined, page: pageFromParams(params) });
 
 /** Only an administrator's page asks for messages; anyone else is refused without a request. */
 const ADMIN = ["admin"] as const;
@@ -90,13 +91,13 @@ export function OutboxPage() {
   const isAdmin = useIsAdmin();
   const refusedByServer = useRefusedByServer(outboxListQueryOptions(filter).queryKey);
   if (!isAdmin || refusedByServer) return <OutboxRefusal />;
-  return <OutboxList to={filter.to ?? ""} />;
+  return <OutboxList to={filter.to ?? ""} page={filter.page} />;
 }
 
-function OutboxList({ to }: { to: string }) {
+function OutboxList({ to, page }: { to: string; page: number }) {
   const [, setParams] = useSearchParams();
   const [draft, setDraft] = useState(to);
-  const list = useSuspenseQuery(outboxListQueryOptions({ to: to || undefined }));
+  const list = useSuspenseQuery(outboxListQueryOptions({ to: to || undefined, page }));
   if (list.isError && refused(list.error)) return <OutboxRefusal />;
   return (
     <>
@@ -122,7 +123,8 @@ function OutboxList({ to }: { to: string }) {
         </div>
         <Button type="submit">Filter</Button>
       </form>
-      {list.data.length === 0 ? <Notice>No messages{to ? ` to ${to}` : ""} yet.</Notice> : <OutboxTable rows={list.data} />}
+      {list.data.items.length === 0 && list.data.total === 0 ? <Notice>No messages{to ? ` to ${to}` : ""} yet.</Notice> : <OutboxTable rows={list.data.items} />}
+      <UrlPager total={list.data.total} pageSize={OUTBOX_PAGE_SIZE} label="Pages of the outbox" previous="← Newer" next="Older →" />
     </>
   );
 }
@@ -144,7 +146,7 @@ function OutboxMessageView({ id }: { id: number }) {
     <>
       <PageHeader sheet={`Site office · Outbox · message ${m.id}`} title={m.subject || "(no subject)"} description={`From ${m.from} to ${m.to} · ${formatInstant(m.receivedAt)}`} />
       <p className="mb-4 text-sm">
-        <Link to="/office/outbox" className="text-accent underline underline-offset-4">
+        <Link to="/office/outbox" className="text-ink underline underline-offset-4">
           ← All messages
         </Link>
       </p>
@@ -164,7 +166,7 @@ function OutboxMessageView({ id }: { id: number }) {
           ))}
         </div>
         {/* Beside the tabs, not inside their list: a tablist holds only tabs. */}
-        <a className="ml-auto self-center text-sm text-accent underline underline-offset-4" href={`/api/outbox/${m.id}/raw`}>
+        <a className="ml-auto self-center text-sm text-ink underline underline-offset-4" href={`/api/outbox/${m.id}/raw`}>
           Raw source (.eml)
         </a>
       </div>

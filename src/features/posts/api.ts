@@ -4,6 +4,7 @@ import type { MediaItem, MediaPatchInput } from "#shared/schemas/media.ts";
 import type { PostCreateInput, PostDetail, PostPatchInput, PostSummary } from "#shared/schemas/posts.ts";
 import type { PostStatus, RevisionSummary as PostRevisionSummary } from "#shared/schemas/publishing.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
+import type { DraftSuggestionAnswer } from "#shared/schemas/writing-help.ts";
 import { facilityTagChoicesQueryOptions } from "../../lib/facility-tags.ts";
 import { api, getPage, qs } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions, type PickerFilters } from "../../lib/media.ts";
@@ -33,6 +34,7 @@ export const postKeys = {
   list: (slug: string, f: PostListFilters = {}) => [...postKeys.project(slug), "list", f] as const,
   milestones: (slug: string) => [...postKeys.project(slug), "milestones"] as const,
   facilityTags: (slug: string) => [...postKeys.project(slug), "facility-tags"] as const,
+  suggestion: (slug: string, audience: Audience) => [...postKeys.project(slug), "suggestion", audience] as const,
   media: (slug: string, f: MediaPickerFilters = {}) => [...postKeys.project(slug), "media", f] as const,
   detail: (id: number) => [...postKeys.all, "post", id] as const,
   revisions: (id: number) => [...postKeys.detail(id), "revisions"] as const,
@@ -70,6 +72,19 @@ export const usePostMilestones = (slug: string) => useQuery(postMilestonesQueryO
 export const useMediaPicker = (slug: string, f: MediaPickerFilters = {}) => useQuery({ ...mediaPickerQueryOptions(slug, f), placeholderData: keepPreviousData });
 
 export const useCreatePost = publishing.useCreate;
+
+/** What Plumbline suggests writing about for an audience: what happened since its last published update (decision 061). */
+export const draftSuggestionQueryOptions = (slug: string, audience: Audience) =>
+  queryOptions({ queryKey: postKeys.suggestion(slug, audience), queryFn: () => api.get<DraftSuggestionAnswer>(`/api/projects/${slug}/draft-suggestion${qs({ audience })}`) });
+
+/** Makes a draft from the suggestion as it stands now; answers the new update's id. */
+export function useDraftFromSuggestion(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (audience: Audience) => api.post<{ id: number }>(`/api/projects/${slug}/draft-suggestion/draft`, { audience }),
+    onSuccess: () => void qc.invalidateQueries({ queryKey: postKeys.project(slug) }),
+  });
+}
 export const useSavePost = publishing.useSave;
 export const useWorkflow = publishing.useWorkflow;
 

@@ -21,10 +21,12 @@ import { SYSTEM_WORD } from "../../lib/format.ts";
 import { editorStateOf } from "../../lib/publishing.ts";
 import { PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
 import { RevisionSheets } from "../../lib/publishing-panels.tsx";
+import { ReviewLinksSheet } from "../../lib/review-links-panel.tsx";
 import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug } from "../../lib/projects.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
 import { postFacilityTagsQueryOptions, postMilestonesQueryOptions, postQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, postRevisionHooks, useCreatePost, usePostMilestones, useSavePost, useWorkflow } from "./api.ts";
+import { DraftSuggestionPanel } from "./components/draft-suggestion-panel.tsx";
 import { FixPhotoDialog } from "./components/fix-photo-dialog.tsx";
 import { MediaPickerDialog } from "./components/media-picker.tsx";
 import { MilestonePickerDialog } from "./components/milestone-picker.tsx";
@@ -125,7 +127,7 @@ function ProblemLine({ p, onFixPhoto, onShowCover }: { p: PublishingProblem; onF
       <span>▲ {p.message}</span>
       {p.mediaId ? (
         <>
-          <button type="button" className="font-medium text-accent underline underline-offset-2" onClick={() => onFixPhoto(p.mediaId!)}>
+          <button type="button" className="font-medium text-ink underline underline-offset-2" onClick={() => onFixPhoto(p.mediaId!)}>
             Fix this photo
           </button>
           <button type="button" className="underline underline-offset-2" onClick={() => scrollTo(`[data-testid="editor-image"][data-media-id="${p.mediaId}"], [data-testid="cover-field"]`)}>
@@ -134,7 +136,7 @@ function ProblemLine({ p, onFixPhoto, onShowCover }: { p: PublishingProblem; onF
         </>
       ) : null}
       {p.code === "no_cover" ? (
-        <button type="button" className="font-medium text-accent underline underline-offset-2" onClick={onShowCover}>
+        <button type="button" className="font-medium text-ink underline underline-offset-2" onClick={onShowCover}>
           Choose a cover
         </button>
       ) : null}
@@ -151,6 +153,8 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
   const navigate = useNavigate();
   const [dialog, setDialog] = useState<"cover" | "milestone" | null>(null);
   const [fixing, setFixing] = useState<number | null>(null);
+  // A new update first offers the draft suggested by the programme (decision 061), until the writer starts blank.
+  const [startBlank, setStartBlank] = useState(false);
   const [extraPictures, setExtraPictures] = useState<Map<number, MediaPicture>>(new Map());
   const id = post?.id ?? 0;
   const create = useCreatePost(slug);
@@ -266,10 +270,12 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
                 <ul className="flex flex-col gap-1 text-sm text-bad">{problems.map(problemLine)}</ul>
               </Sheet>
             ) : null}
+            {post ? <ReviewLinksSheet kind="post" id={post.id} status={post.status} zone={zone} /> : null}
             {post ? <RevisionSheets hooks={postRevisionHooks} id={post.id} zone={zone} onRestored={() => draft.setDirty(false)} onRestoreError={(e) => toast.error(e instanceof Error ? e.message : "Not restored.")} /> : null}
           </>
         }
       >
+        {!post && !startBlank ? <DraftSuggestionPanel slug={slug} onStartBlank={() => setStartBlank(true)} /> : null}
         <TextField label="Title" value={d.title} onChange={(e) => change("title", e.target.value)} error={fieldErrors.title} maxLength={200} />
         <TextField
           label="Address"

@@ -2,7 +2,7 @@ import { useSuspenseQuery } from "@tanstack/react-query";
 import { getCoreRowModel, useReactTable, type ColumnDef } from "@tanstack/react-table";
 import { useEffect, useMemo, useState } from "react";
 import { Link, useSearchParams } from "react-router-dom";
-import type { Audience } from "#shared/schemas/common.ts";
+import { AudienceSchema, type Audience } from "#shared/schemas/common.ts";
 import { POSTS_PAGE_SIZE, type PostSummary } from "#shared/schemas/posts.ts";
 import { PostStatusSchema, type PostStatus } from "#shared/schemas/publishing.ts";
 import { AudienceMark } from "../../components/ui/audience-mark.tsx";
@@ -17,6 +17,7 @@ import { pageCount } from "../../lib/api-client.ts";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { publishingWhen } from "../../lib/publishing.ts";
+import { AUDIENCE_WORD } from "../../lib/words.ts";
 import { postListQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, type PostListFilters } from "./api.ts";
 
 /** The project the site office is working on: `?project=` or the first one. */
@@ -42,9 +43,7 @@ export const postsLoader: RouteLoader = (qc) => ({ request }) =>
 
 const AUDIENCE_CHOICES = [
   { value: "", label: "Any audience" },
-  { value: "public", label: "Public" },
-  { value: "investor", label: "For investors" },
-  { value: "internal", label: "Staff only" },
+  ...AudienceSchema.options.map((a) => ({ value: a, label: AUDIENCE_WORD[a] })),
 ];
 
 /** `/office/updates`: every update of the project by state, with filters. */
@@ -121,7 +120,7 @@ function ProjectPosts({ slug, choices, setSlug }: ReturnType<typeof useOfficePro
             type="button"
             aria-pressed={status === t.value}
             onClick={() => set({ status: t.value })}
-            className={`-mb-px border-b-2 px-3 py-2 text-sm ${status === t.value ? "border-accent font-semibold" : "border-transparent text-ink-soft hover:text-ink"}`}
+            className={`-mb-px border-b-2 px-3 py-2 text-sm ${status === t.value ? "border-ink font-semibold" : "border-transparent text-ink-soft hover:text-ink"}`}
           >
             {t.value ? <PublishStatusMark status={t.value} className={status === t.value ? "" : "font-normal"} /> : t.label}
           </button>

@@ -1,4 +1,5 @@
 import { addDays, daysInMonth, parseCalendarDate, toDayNumber, type CalendarDate } from "#shared/domain/calendar.ts";
+import { formatLongDate as longDateInLocale } from "#shared/domain/locale-dates.ts";
 
 /**
  * Today's calendar date in a named time zone (the project's): the site's day, not the
@@ -21,7 +22,6 @@ export function addMonths(date: CalendarDate, months: number): CalendarDate {
 
 const monthYear = new Intl.DateTimeFormat("en-GB", { month: "long", year: "numeric", timeZone: "UTC" });
 const shortMonth = new Intl.DateTimeFormat("en-GB", { month: "short", timeZone: "UTC" });
-const longDate = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
 
 function utc(date: CalendarDate): Date {
   const { year, month, day } = parseCalendarDate(date);
@@ -35,7 +35,7 @@ export function formatMonthYear(date: CalendarDate): string {
 
 /** "3 March 2027": for pages read by the public, where "3 Mar" is less plain. */
 export function formatLongDate(date: CalendarDate): string {
-  return longDate.format(utc(date));
+  return longDateInLocale(date);
 }
 
 /** Axis label for a day number: "Mar 27". */

@@ -69,10 +69,10 @@ function Timeline({ milestones, today }: { milestones: Milestone[]; today: strin
   return (
     <div className="flex flex-col gap-4">
       <TimelinePart id="tl-past" title="Up to today" milestones={past} />
-      <p className="flex items-center gap-2 text-sm font-semibold text-accent" aria-label={`Today, ${formatLongDate(today)}`}>
-        <span aria-hidden className="h-0.5 w-6 bg-accent" />
+      <p className="flex items-center gap-2 text-sm font-semibold text-ink" aria-label={`Today, ${formatLongDate(today)}`}>
+        <span aria-hidden className="h-0.5 w-6 bg-ink" />
         Today · {formatLongDate(today)}
-        <span aria-hidden className="h-0.5 flex-1 bg-accent/40" />
+        <span aria-hidden className="h-0.5 flex-1 bg-ink/30" />
       </p>
       <TimelinePart id="tl-future" title="Still to come" milestones={future} />
     </div>

@@ -1,4 +1,4 @@
-import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
+import { useQuery, useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
 import type { RowSelectionState } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
 import { Link } from "react-router-dom";
@@ -12,6 +12,7 @@ import { formatDate } from "../../lib/format.ts";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { meQueryOptions } from "../../lib/session.ts";
+import { sitePlanQueryOptions } from "../../lib/site-plan.ts";
 import {
   baselinesQueryOptions,
   canEditProgramme,
@@ -206,8 +207,10 @@ export function ProgrammePage() {
 function WalkBody({ slug }: { slug: string }) {
   const { project, milestones, health } = useProgramme(slug);
   const me = useSuspenseQuery(meQueryOptions()).data;
+  // The site plan, when there is one, lets the lead pick an area by tapping it.
+  const plan = useQuery(sitePlanQueryOptions(slug)).data;
   if (!canEditProgramme(me)) return <Notice>The site walk records progress, so it is for project leads and administrators. The programme page shows the same milestones read-only.</Notice>;
-  return <SiteWalk slug={slug} milestones={milestones} settings={settingsOf(project)} at={health.at} />;
+  return <SiteWalk slug={slug} milestones={milestones} settings={settingsOf(project)} at={health.at} plan={plan} />;
 }
 
 /** The phone view of the programme for a walk round the site. */

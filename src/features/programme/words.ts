@@ -1,6 +1,5 @@
 import type { Milestone, ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
 import type { MilestoneEventFieldName } from "#shared/schemas/programme.ts";
-import type { Audience } from "#shared/schemas/common.ts";
 import { milestoneFinish, type MilestoneStatus } from "#shared/domain/programme-health.ts";
 import { formatMonthYear } from "./dates.ts";
 
@@ -12,7 +11,8 @@ export const COUNTED_STATUSES: readonly { status: MilestoneStatus; count: keyof 
   { status: "behind", count: "behind" },
 ];
 
-export const AUDIENCE_WORD: Record<Audience, string> = { public: "Public", investor: "Investors", internal: "Internal" };
+// One word per audience across the product (decision 056).
+export { AUDIENCE_WORD } from "../../lib/words.ts";
 
 export const FIELD_WORD: Record<MilestoneEventFieldName, string> = {
   forecast_finish: "Forecast finish",

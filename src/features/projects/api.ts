@@ -1,4 +1,5 @@
-import { queryOptions, useQuery } from "@tanstack/react-query";
+import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { Hero, HeroInput, Home } from "#shared/schemas/project-hero.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { api } from "../../lib/api-client.ts";
 import { projectListQueryOptions } from "../../lib/projects.ts";
@@ -7,9 +8,28 @@ export const projectKeys = {
   all: ["projects"] as const,
   list: () => [...projectKeys.all, "list"] as const,
   detail: (slug: string) => [...projectKeys.all, "detail", slug] as const,
+  hero: (slug: string) => [...projectKeys.all, "hero", slug] as const,
+  home: () => [...projectKeys.all, "home"] as const,
 };
 
 export const projectsQueryOptions = () => projectListQueryOptions(projectKeys.list());
 export const projectQueryOptions = (slug: string) => queryOptions({ queryKey: projectKeys.detail(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`) });
+/** The project's chosen hero photograph (decision 055). */
+export const heroQueryOptions = (slug: string) => queryOptions({ queryKey: projectKeys.hero(slug), queryFn: () => api.get<Hero>(`/api/projects/${slug}/hero`), enabled: slug !== "" });
+/** The home page's builds: picture, figure and next ready-for-service date of each. */
+export const homeQueryOptions = () => queryOptions({ queryKey: projectKeys.home(), queryFn: () => api.get<Home>("/api/home") });
 
 export const useProjects = () => useQuery(projectsQueryOptions());
+export const useHero = (slug: string) => useQuery(heroQueryOptions(slug));
+
+/** Choose or clear the hero (leads and admins). */
+export function useSetHero(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: HeroInput) => api.put<Hero>(`/api/projects/${slug}/hero`, input),
+    onSuccess: (hero) => {
+      qc.setQueryData(projectKeys.hero(slug), hero);
+      void qc.invalidateQueries({ queryKey: projectKeys.home() });
+    },
+  });
+}

@@ -11,6 +11,8 @@ import { KeyFacts } from "./components/facility-key-facts.tsx";
 import { SystemCard } from "./components/facility-system-card.tsx";
 import { ProjectMasthead } from "./components/project-nav.tsx";
 import { useTitle } from "../../lib/use-title.ts";
+import { sitePlanQueryOptions } from "../../lib/site-plan.ts";
+import { SitePlanSection } from "./components/site-plan-section.tsx";
 
 /*
  * The facility as a prospect reads it. The page shows what the public may see, whoever reads it
@@ -32,7 +34,7 @@ export function publicPart(f: FacilityAnswer): FacilityAnswer {
 
 export const facilityLoader: RouteLoader = (qc) => async ({ params }) => {
   const slug = params.slug ?? "";
-  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(facilityReadQueryOptions(slug))]);
+  await Promise.all([qc.ensureQueryData(siteProjectQueryOptions(slug)), qc.ensureQueryData(facilityReadQueryOptions(slug)), qc.ensureQueryData(sitePlanQueryOptions(slug))]);
   return null;
 };
 
@@ -96,6 +98,8 @@ export function FacilityPage() {
           </div>
         </section>
       ) : null}
+
+      <SitePlanSection slug={slug} className="mt-10" />
 
       {f.systems.length > 0 ? (
         <section aria-labelledby="plant-h" className="mt-10">

@@ -1,14 +1,13 @@
 import { daysBetween } from "#shared/domain/calendar.ts";
+import { formatLongDate } from "#shared/domain/locale-dates.ts";
 import type { BlockAnswer, Containment, FeatureKind, FeatureStatus, PlantKind, SecurityLayer, UnitAnswer } from "#shared/schemas/facility.ts";
 
-const longDateUtc = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
 const number = new Intl.NumberFormat("en-GB", { maximumFractionDigits: 0 });
 const oneDecimal = new Intl.NumberFormat("en-GB", { maximumFractionDigits: 1 });
 
 /** "14 May 2027" for a calendar date (never shifted by the reader's zone). */
 export function longDay(date: string): string {
-  const [y, m, d] = date.slice(0, 10).split("-").map(Number) as [number, number, number];
-  return longDateUtc.format(new Date(Date.UTC(y, m - 1, d)));
+  return formatLongDate(date.slice(0, 10));
 }
 
 /** "1,460" */

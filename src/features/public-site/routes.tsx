@@ -12,13 +12,17 @@ import { Lightbox, type LightboxItem } from "../../components/ui/lightbox.tsx";
 import { Picture } from "../../components/ui/picture.tsx";
 import { pageCount } from "../../lib/api-client.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
+import { sitePlanQueryOptions } from "../../lib/site-plan.ts";
+import { SitePlanSection } from "./components/site-plan-section.tsx";
 import { galleryQueryOptions, isRedirect, siteProjectQueryOptions, storyQueryOptions, updateQueryOptions, updatesQueryOptions, type FacilityFilter, type GalleryFilters, type GalleryPhoto, type UpdateFilters } from "./api.ts";
-import { MilestonesThenNow } from "./components/milestone-then-now.tsx";
+import { milestoneIdsInBody, MilestonesThenNow } from "./components/milestone-then-now.tsx";
 import { PostBody } from "./components/post-body.tsx";
 import { PostCard } from "./components/post-card.tsx";
 import { ProjectMasthead } from "./components/project-nav.tsx";
 import { SearchBox } from "./components/search-box.tsx";
 import { useTitle } from "../../lib/use-title.ts";
+import { GalleryThumb } from "./components/gallery-thumb.tsx";
+import { PressKitLink } from "./components/press-kit-link.tsx";
 import { capturedOn, dayOf, monthWords, SYSTEM_TAGS, tagFilter, tagWord } from "./words.ts";
 
 /*
@@ -61,11 +65,11 @@ function projectPageLoader(prime: (qc: QueryClient, slug: string, args: LoaderFu
 
 export const updatesLoader = projectPageLoader((qc, slug, { request }) => qc.ensureQueryData(updatesQueryOptions(slug, updateFiltersOf(searchOf(request)))));
 export const postLoader = projectPageLoader((qc, slug, { params }) => qc.ensureQueryData(updateQueryOptions(slug, params.postSlug ?? "")));
-export const galleryLoader = projectPageLoader((qc, slug, { request }) => qc.ensureQueryData(galleryQueryOptions(slug, galleryFiltersOf(searchOf(request)))));
+export const galleryLoader = projectPageLoader((qc, slug, { request }) => Promise.all([qc.ensureQueryData(galleryQueryOptions(slug, galleryFiltersOf(searchOf(request)))), qc.ensureQueryData(sitePlanQueryOptions(slug))]));
 export const storyLoader = projectPageLoader((qc, slug, { params }) => qc.ensureQueryData(storyQueryOptions(slug, params.storySlug ?? "")));
 
 function Frame({ children, wide = false }: { children: ReactNode; wide?: boolean }) {
-  return <div className={`mx-auto px-4 py-8 ${wide ? "max-w-6xl" : "max-w-5xl"}`}>{children}</div>;
+  return <div className={`mx-auto px-4 py-8 ${wide ? "max-w-7xl" : "max-w-5xl"}`}>{children}</div>;
 }
 
 
@@ -224,13 +228,14 @@ function PostArticle({ post, slug, zone }: { post: PostDetail; slug: string; zon
         </figure>
       ) : null}
       <div className="mt-6">
-        <PostBody html={post.html} images={post.images} />
+        <PostBody html={post.html} images={post.images} milestones={post.milestones} publishedOn={published} />
       </div>
-      <MilestonesThenNow milestones={post.milestones} publishedOn={published} />
+      {/* Each linked milestone once (decision 055): in the body where it names one, else here. */}
+      <MilestonesThenNow milestones={post.milestones} publishedOn={published} inBody={milestoneIdsInBody(post.html)} />
       <footer className="mt-10 flex flex-col gap-4 border-t border-rule pt-4">
         <TagList tags={post.tags} slug={slug} />
         <p className="text-sm">
-          <Link to={`/projects/${slug}/updates`} className="font-medium text-accent underline underline-offset-4">
+          <Link to={`/projects/${slug}/updates`} className="font-medium text-ink underline underline-offset-4">
             ← All updates
           </Link>
           <span className="mx-2 text-ink-faint">·</span>
@@ -316,15 +321,6 @@ export function GalleryPage() {
     });
 
   const items = gallery.data.items;
-  // Grouped by month, newest first, as a site diary would be.
-  const groups = useMemo(() => {
-    const by = new Map<string, Array<{ photo: GalleryPhoto; index: number }>>();
-    items.forEach((photo, index) => {
-      const key = photo.month ?? "";
-      by.set(key, [...(by.get(key) ?? []), { photo, index }]);
-    });
-    return [...by.entries()].sort((a, b) => b[0].localeCompare(a[0]));
-  }, [items]);
   const lightboxItems: LightboxItem[] = items.map((p) => ({
     picture: p,
     caption: p.caption || p.altText,
@@ -345,6 +341,7 @@ export function GalleryPage() {
           </button>
         </p>
       ) : null}
+      <SitePlanSection slug={slug} heading="Photographs by area" selected={filters.area ?? null} className="mt-6" />
       <div className="mt-6 grid gap-3 border border-rule bg-sheet p-4 sm:grid-cols-3">
         <SelectField label="Area" value={filters.area ?? ""} onChange={(e) => set("area", e.target.value)} options={[{ value: "", label: "All areas" }, ...g.areas.map((a) => ({ value: a, label: a }))]} />
         <SelectField
@@ -355,28 +352,22 @@ export function GalleryPage() {
         />
         <SelectField label="Month" value={filters.month ?? ""} onChange={(e) => set("month", e.target.value)} options={[{ value: "", label: "Any month" }, ...g.months.map((m) => ({ value: m, label: monthWords(m) }))]} />
       </div>
+      {items.length > 0 ? (
+        <PressKitLink slug={slug} operatorName={project.data.operatorName} of={{ area: filters.area }} what={filters.area ? `every public photograph of ${filters.area}` : "every public photograph of the gallery"} className="mt-3" />
+      ) : null}
       <div className="mt-6">
         {items.length === 0 ? (
           <p className="text-ink-soft">No published photograph matches these choices.</p>
         ) : (
-          <div className="flex flex-col gap-8">
-            {groups.map(([month, photos]) => (
-              <section key={month || "undated"} aria-labelledby={`m-${month || "undated"}`}>
-                <h2 id={`m-${month || "undated"}`} className="label-caps mb-3">
-                  {month ? monthWords(month) : "Date not recorded"}
-                </h2>
-                <ul className="grid grid-cols-2 gap-2 sm:grid-cols-3 lg:grid-cols-4">
-                  {photos.map(({ photo, index }) => (
-                    <li key={photo.id}>
-                      <button type="button" onClick={() => setOpen(index)} className="group block w-full overflow-hidden border border-rule text-left" aria-label={`Open photo: ${photo.altText || photo.caption || "site photograph"}`} data-testid="gallery-photo">
-                        <Picture picture={photo} fit="cover" aspect={4 / 3} sizes="(min-width: 1024px) 17rem, (min-width: 640px) 33vw, 50vw" className="transition-transform group-hover:scale-[1.02]" />
-                      </button>
-                    </li>
-                  ))}
-                </ul>
-              </section>
+          // One grid, newest first, as many columns as fit (decision 055): each photo carries its own
+          // date, so month headings would only break the rows into part-empty ones.
+          <ul className="grid grid-cols-2 gap-x-3 gap-y-5 sm:grid-cols-[repeat(auto-fill,minmax(14rem,1fr))]" data-testid="gallery-grid">
+            {items.map((photo, index) => (
+              <li key={photo.id}>
+                <GalleryThumb photo={photo} onOpen={() => setOpen(index)} />
+              </li>
             ))}
-          </div>
+          </ul>
         )}
       </div>
       <Lightbox items={lightboxItems} index={open} onIndexChange={setOpen} label="Site photograph" />
@@ -409,7 +400,7 @@ function PairItem({ item, sizes, eager }: { item: Extract<StoryItem, { kind: "pa
   );
 }
 
-function StoryArticle({ story, slug, zone }: { story: StoryDetail; slug: string; zone: string }) {
+function StoryArticle({ story, slug, zone, operatorName }: { story: StoryDetail; slug: string; zone: string; operatorName: string }) {
   const [open, setOpen] = useState<number | null>(null);
   const photos = story.items.flatMap((it) => (it.kind === "photo" && it.media ? [{ media: it.media, caption: it.caption }] : []));
   const lightbox: LightboxItem[] = photos.map((p) => ({ picture: p.media, caption: p.caption || p.media.caption, meta: photoMeta(p.media) }));
@@ -455,8 +446,9 @@ function StoryArticle({ story, slug, zone }: { story: StoryDetail; slug: string;
           );
         })}
       </ol>
+      {story.audience === "public" ? <PressKitLink slug={slug} operatorName={operatorName} of={{ story: story.slug }} what="the story's photographs" className="mt-10" /> : null}
       <p className="mt-10 border-t border-rule pt-4 text-sm">
-        <Link to={`/projects/${slug}/gallery`} className="font-medium text-accent underline underline-offset-4">
+        <Link to={`/projects/${slug}/gallery`} className="font-medium text-ink underline underline-offset-4">
           More photographs in the gallery →
         </Link>
       </p>
@@ -470,5 +462,5 @@ export function StoryPage() {
   const { slug = "", storySlug = "" } = useParams();
   const project = useSuspenseQuery(siteProjectQueryOptions(slug)).data;
   const story = useSuspenseQuery(storyQueryOptions(slug, storySlug)).data;
-  return <PublishedItem slug={slug} project={project} kind="stories" asked={storySlug} answer={story} article={(s) => <StoryArticle story={s} slug={slug} zone={project.timeZone} />} />;
+  return <PublishedItem slug={slug} project={project} kind="stories" asked={storySlug} answer={story} article={(s) => <StoryArticle story={s} slug={slug} zone={project.timeZone} operatorName={project.operatorName} />} />;
 }

@@ -90,7 +90,8 @@ export function SearchPage() {
   useTitle(q ? `“${q}” · Search` : "Search", project.data.name);
   const onSearch = (e: FormEvent) => {
     e.preventDefault();
-    const next = draft.trim();
+    // The field's own value: words typed while a server-rendered page was still being taken over are in it, not yet in `draft`.
+    const next = String(new FormData(e.currentTarget as HTMLFormElement).get("q") ?? draft).trim();
     setParams(next ? { q: next } : {});
   };
   return (

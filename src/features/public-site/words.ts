@@ -1,14 +1,11 @@
 import type { MilestoneSnapshot, PostTag } from "#shared/schemas/posts.ts";
-import { SYSTEM_WORD } from "../../lib/format.ts";
+import { formatDateLong, SYSTEM_WORD } from "../../lib/format.ts";
 
-const longDateUtc = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
 const monthYearUtc = new Intl.DateTimeFormat("en-GB", { month: "long", year: "numeric", timeZone: "UTC" });
 
 /** "3 March 2027" for a calendar date `YYYY-MM-DD` (never shifted by the reader's zone). */
 export function longDate(date: string | null | undefined): string {
-  if (!date) return "—";
-  const [y, m, d] = date.slice(0, 10).split("-").map(Number) as [number, number, number];
-  return longDateUtc.format(new Date(Date.UTC(y, m - 1, d)));
+  return formatDateLong(date);
 }
 
 /** "March 2027" for `YYYY-MM` or `YYYY-MM-DD`. */

@@ -6,6 +6,7 @@ import { pickerMediaQueryOptions } from "../../lib/media.ts";
 import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
 import type { RevisionHooks } from "../../lib/publishing-panels.tsx";
 import { publishingApi } from "../../lib/publishing.ts";
+import { thenAndNowQueryOptions, type PairFilters } from "../../lib/then-and-now.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 export interface StoryMediaFilters {
@@ -20,6 +21,7 @@ export const storyKeys = {
   projectDetail: (slug: string) => [...storyKeys.project(slug), "detail"] as const,
   list: (slug: string) => [...storyKeys.project(slug), "list"] as const,
   media: (slug: string, f: StoryMediaFilters = {}) => [...storyKeys.project(slug), "media", f] as const,
+  pairs: (slug: string, f: PairFilters) => [...storyKeys.project(slug), "then-and-now", f] as const,
   detail: (id: number) => [...storyKeys.all, "story", id] as const,
   revisions: (id: number) => [...storyKeys.detail(id), "revisions"] as const,
   diff: (id: number, n: number, against?: number) => [...storyKeys.detail(id), "diff", n, against ?? null] as const,
@@ -38,6 +40,8 @@ const storyMediaQueryOptions = (slug: string, f: StoryMediaFilters = {}) => pick
 export const useStoryList = (slug: string) => useQuery(storyListQueryOptions(slug));
 /** What the revisions and history panels of the editor read through. */
 export const storyRevisionHooks: RevisionHooks = publishing;
+/** Then-and-now pairs the story's audience may see (decision 063). */
+export const useStoryPairs = (slug: string, f: PairFilters) => useQuery({ ...thenAndNowQueryOptions(storyKeys.pairs(slug, f), slug, f), placeholderData: keepPreviousData });
 export const useStoryMedia = (slug: string, f: StoryMediaFilters = {}) => useQuery({ ...storyMediaQueryOptions(slug, f), placeholderData: keepPreviousData });
 
 export const useCreateStory = publishing.useCreate;

@@ -18,15 +18,18 @@ import { PublishStatusMark } from "../../components/ui/publish-status.tsx";
 import { EditorShell } from "../../components/ui/editor-shell.tsx";
 import { AudienceSheet } from "../../components/ui/publishing-editor.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { PressKitSheet } from "./components/press-kit-sheet.tsx";
 import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
 import { RevisionSheets } from "../../lib/publishing-panels.tsx";
+import { ReviewLinksSheet } from "../../lib/review-links-panel.tsx";
 import { editorStateOf, publishingProblemsOf, publishingWhen } from "../../lib/publishing.ts";
 import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
 import { storiesProjectQueryOptions, storiesProjectsQueryOptions, storyListQueryOptions, storyQueryOptions, storyRevisionHooks, useCreateStory, useSaveStory, useStoryWorkflow } from "./api.ts";
 import { StoryPhotoPicker } from "./components/photo-picker.tsx";
 import { StoryItemsEditor, type EditItem, type PickTarget } from "./components/story-items.tsx";
+import { ThenAndNowPanel } from "./components/then-and-now-panel.tsx";
 
 /** The steps the stories API offers: the same workflow and rules as updates. */
 const STORY_ACTIONS: readonly WorkflowAction[] = ["submit", "approve", "publish", "schedule", "return", "withdraw"];
@@ -222,6 +225,8 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
             <Sheet label="How it is shown">
               <p className="text-sm text-ink-soft">Then-and-now pairs become a comparison slider with each photo's capture date; single photos open in a lightbox. Both photos of a pair need capture dates on different days.</p>
             </Sheet>
+            {story ? <PressKitSheet slug={slug} storyId={story.id} /> : null}
+            {story ? <ReviewLinksSheet kind="story" id={story.id} status={story.status} zone={zone} /> : null}
             {story ? (
               <RevisionSheets
                 hooks={storyRevisionHooks}
@@ -266,6 +271,16 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
           {d.items.length === 0 ? <p className="border border-dashed border-rule-strong p-6 text-center text-ink-soft">Add photos, or a then-and-now pair of one area.</p> : null}
           <StoryItemsEditor items={d.items} pictures={pictures} problems={problems} onChange={(next) => change("items", next)} onPick={setPicking} />
         </section>
+        <ThenAndNowPanel
+          slug={slug}
+          audience={d.audience}
+          inStory={new Set(d.items.flatMap((it) => (it.kind === "pair" ? [`${it.beforeMediaId}-${it.afterMediaId}`] : [])))}
+          onAdd={(pair) => {
+            setPictures((prev) => new Map(prev).set(pair.then.mediaId, pair.then.picture).set(pair.now.mediaId, pair.now.picture));
+            change("items", [...d.items, { key: nextKey(), kind: "pair", area: pair.area, beforeMediaId: pair.then.mediaId, afterMediaId: pair.now.mediaId, caption: "" }]);
+            toast.success(`Then-and-now pair of ${pair.area} added`);
+          }}
+        />
       </EditorShell>
       {picking ? (
         <StoryPhotoPicker

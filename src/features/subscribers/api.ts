@@ -1,21 +1,22 @@
 import { queryOptions, useMutation, useQueryClient } from "@tanstack/react-query";
-import type {
-  ConfirmationDone,
-  ConfirmationView,
-  ErasureResult,
-  InvestorDigestInput,
-  InvestorDigestSetting,
-  PreferencesInput,
-  PreferencesView,
-  SubscriberImportInput,
-  SubscriberImportResult,
-  SubscriberList,
-  SubscriberListQuery,
-  SubscriptionAccepted,
-  SubscriptionInput,
-  SubscriptionOptions,
-  SubscriptionStatusResult,
-  UnsubscribeView,
+import {
+  SUBSCRIBER_PAGE_SIZE,
+  type ConfirmationDone,
+  type ConfirmationView,
+  type ErasureResult,
+  type InvestorDigestInput,
+  type InvestorDigestSetting,
+  type PreferencesInput,
+  type PreferencesView,
+  type SubscriberImportInput,
+  type SubscriberImportResult,
+  type SubscriberList,
+  type SubscriberFilterQuery,
+  type SubscriptionAccepted,
+  type SubscriptionInput,
+  type SubscriptionOptions,
+  type SubscriptionStatusResult,
+  type UnsubscribeView,
 } from "#shared/schemas/subscribers.ts";
 import type { DigestArchiveCopy, DigestArchivePage } from "#shared/schemas/digests.ts";
 import { api, qs } from "../../lib/api-client.ts";
@@ -32,10 +33,13 @@ export const subscriptionKeys = {
   unsubscribe: (token: string) => [...subscriptionKeys.all, "unsubscribe", token] as const,
 };
 
+/** The site office's list: its filters and the page (from the address). */
+export type SubscriberOfficeQuery = SubscriberFilterQuery & { page?: number };
+
 /** The site office's list. */
 export const subscriberKeys = {
   all: ["subscribers"] as const,
-  list: (f: SubscriberListQuery) => [...subscriberKeys.all, "list", f] as const,
+  list: (f: SubscriberOfficeQuery) => [...subscriberKeys.all, "list", f] as const,
 };
 
 export const investorDigestKeys = {
@@ -52,11 +56,16 @@ export const preferencesQueryOptions = (token: string) =>
   queryOptions({ queryKey: subscriptionKeys.preferences(token), queryFn: () => api.get<PreferencesView>(`/api/subscriptions/preferences/${token}`), retry: false });
 export const unsubscribeQueryOptions = (token: string) =>
   queryOptions({ queryKey: subscriptionKeys.unsubscribe(token), queryFn: () => api.get<UnsubscribeView>(`/api/subscriptions/unsubscribe/${token}`), retry: false });
-export const subscribersQueryOptions = (f: SubscriberListQuery) => queryOptions({ queryKey: subscriberKeys.list(f), queryFn: () => api.get<SubscriberList>(`/api/subscribers${qs(f)}`) });
+/** One page (SUBSCRIBER_PAGE_SIZE rows) of the office list, newest first, with the total. */
+export const subscribersQueryOptions = (f: SubscriberOfficeQuery) =>
+  queryOptions({
+    queryKey: subscriberKeys.list(f),
+    queryFn: () => api.get<SubscriberList>(`/api/subscribers${qs({ ...f, page: f.page && f.page > 1 ? f.page : undefined, pageSize: SUBSCRIBER_PAGE_SIZE })}`),
+  });
 export const investorDigestQueryOptions = () => queryOptions({ queryKey: investorDigestKeys.mine(), queryFn: () => api.get<InvestorDigestSetting[]>("/api/investors/digest") });
 
 /** The export link of the current filters (a download, not a query). */
-export const subscribersCsvUrl = (f: SubscriberListQuery) => `/api/subscribers/export.csv${qs(f)}`;
+export const subscribersCsvUrl = (f: SubscriberFilterQuery) => `/api/subscribers/export.csv${qs(f)}`;
 export const personDataUrl = (id: number) => `/api/subscribers/${id}/export`;
 
 export function useSubscribe() {

@@ -2,7 +2,7 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { useDeferredValue, useState, type ReactNode } from "react";
 import { Controller, useForm } from "react-hook-form";
-import { Link, useParams, useRouteError } from "react-router-dom";
+import { Link, useParams, useRouteError, useSearchParams } from "react-router-dom";
 import { toast } from "sonner";
 import type { z } from "zod";
 import {
@@ -14,10 +14,11 @@ import {
   SubscriberStatusSchema,
   type InvestorDigestSetting,
   type PreferencesView,
-  type SubscriberListQuery,
+  type SubscriberFilterQuery,
 } from "#shared/schemas/subscribers.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../components/ui/field.tsx";
+import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
 import { applyApiError, SYSTEM_WORD } from "../../lib/format.ts";
@@ -172,7 +173,7 @@ export function ConfirmSubscriptionPage() {
           Progress e-mails about {v.project.name} will go to {v.email}. Every e-mail carries a link to change your choices or leave.
         </Notice>
         <p className="mt-4">
-          <Link to={confirm.data.preferencesPath} className="font-medium text-accent underline underline-offset-4">
+          <Link to={confirm.data.preferencesPath} className="font-medium text-ink underline underline-offset-4">
             Choose topics and frequency
           </Link>
         </p>
@@ -391,16 +392,17 @@ export function InvestorDigestPage() {
 
 const any = (label: string) => ({ value: "", label });
 
-/** The office list's query: the filters, on the chosen build (the first one unless chosen). */
-function subscriberQuery(filters: SubscriberListQuery, firstSlug: string): SubscriberListQuery {
+/** The office list's filters, on the chosen build (the first one unless chosen). */
+function subscriberQuery(filters: SubscriberFilterQuery, firstSlug: string): SubscriberFilterQuery {
   const projectSlug = filters.projectSlug ?? firstSlug;
   return { ...filters, projectSlug: projectSlug || undefined };
 }
 
-export const subscribersLoader: RouteLoader = (qc) => () =>
+export const subscribersLoader: RouteLoader = (qc) => ({ request }) =>
   primeWhenAllowed(qc, OFFICE_ROLES, async () => {
     const first = (await qc.ensureQueryData(subscriptionProjectsQueryOptions()))[0]?.slug ?? "";
-    await Promise.all([qc.ensureQueryData(subscribersQueryOptions(subscriberQuery({}, first))), first ? qc.ensureQueryData(subscriptionOptionsQueryOptions(first)) : null]);
+    const page = pageFromParams(new URL(request.url).searchParams);
+    await Promise.all([qc.ensureQueryData(subscribersQueryOptions({ ...subscriberQuery({}, first), page })), first ? qc.ensureQueryData(subscriptionOptionsQueryOptions(first)) : null]);
   });
 
 /** The topics a filter can name: the build's areas and the plant systems. */
@@ -409,23 +411,37 @@ function useTopicOptions(projectSlug: string) {
   return [any("Any topic"), ...options.areas.map((a) => ({ value: `area:${a}`, label: a })), ...options.systems.map((s) => ({ value: `system:${s}`, label: SYSTEM_WORD[s] }))];
 }
 
-function TopicFilter({ projectSlug, value, onChange }: { projectSlug: string; value: string; onChange: (topic: SubscriberListQuery["topic"]) => void }) {
+function TopicFilter({ projectSlug, value, onChange }: { projectSlug: string; value: string; onChange: (topic: SubscriberFilterQuery["topic"]) => void }) {
   const options = useTopicOptions(projectSlug);
-  return <SelectField label="Topic" value={value} onChange={(e) => onChange((e.target.value || undefined) as SubscriberListQuery["topic"])} options={options} hint="Who would receive it: its followers and those following everything." />;
+  return <SelectField label="Topic" value={value} onChange={(e) => onChange((e.target.value || undefined) as SubscriberFilterQuery["topic"])} options={options} hint="Who would receive it: its followers and those following everything." />;
 }
 
 /** /office/subscribers — marketing's list: filters, the table, import and export. */
 export function SubscribersPage() {
   const projects = useSuspenseQuery(subscriptionProjectsQueryOptions()).data;
-  const [filters, setFilters] = useState<SubscriberListQuery>({});
+  const [filters, setFilters] = useState<SubscriberFilterQuery>({});
+  const [params, setParams] = useSearchParams();
+  const page = pageFromParams(params);
   const first = projects[0]?.slug ?? "";
   const query = subscriberQuery(filters, first);
   const projectSlug = query.projectSlug ?? "";
   // While the next filters' rows are asked for, the table keeps showing the last ones (and the fields keep their focus).
   const shownFilters = useDeferredValue(filters);
   const shownQuery = subscriberQuery(shownFilters, first);
-  const list = useSuspenseQuery(subscribersQueryOptions(shownQuery)).data;
-  const set = (patch: Partial<SubscriberListQuery>) => setFilters((f) => ({ ...f, ...patch }));
+  const shownPage = useDeferredValue(page);
+  const list = useSuspenseQuery(subscribersQueryOptions({ ...shownQuery, page: shownPage })).data;
+  // New filters start again from the first page.
+  const set = (patch: Partial<SubscriberFilterQuery>) => {
+    setFilters((f) => ({ ...f, ...patch }));
+    if (page > 1)
+      setParams(
+        (p) => {
+          p.delete("page");
+          return p;
+        },
+        { replace: true },
+      );
+  };
   const project = projects.find((p) => p.slug === projectSlug);
   return (
     <>
@@ -445,9 +461,9 @@ export function SubscribersPage() {
             {projects.length > 1 ? (
               <SelectField label="Build" value={projectSlug} onChange={(e) => set({ projectSlug: e.target.value, topic: undefined })} options={projects.map((p) => ({ value: p.slug, label: p.name }))} />
             ) : null}
-            <SelectField label="Interest" value={filters.interest ?? ""} onChange={(e) => set({ interest: (e.target.value || undefined) as SubscriberListQuery["interest"] })} options={[any("Any interest"), ...InterestSchema.options.map((v) => ({ value: v, label: INTEREST_SHORT[v] }))]} />
-            <SelectField label="Status" value={filters.status ?? ""} onChange={(e) => set({ status: (e.target.value || undefined) as SubscriberListQuery["status"] })} options={[any("Any status"), ...SubscriberStatusSchema.options.map((v) => ({ value: v, label: STATUS_LOOK[v].word }))]} />
-            <SelectField label="How often" value={filters.frequency ?? ""} onChange={(e) => set({ frequency: (e.target.value || undefined) as SubscriberListQuery["frequency"] })} options={[any("Any frequency"), ...FrequencySchema.options.map((v) => ({ value: v, label: FREQUENCY_SHORT[v] }))]} />
+            <SelectField label="Interest" value={filters.interest ?? ""} onChange={(e) => set({ interest: (e.target.value || undefined) as SubscriberFilterQuery["interest"] })} options={[any("Any interest"), ...InterestSchema.options.map((v) => ({ value: v, label: INTEREST_SHORT[v] }))]} />
+            <SelectField label="Status" value={filters.status ?? ""} onChange={(e) => set({ status: (e.target.value || undefined) as SubscriberFilterQuery["status"] })} options={[any("Any status"), ...SubscriberStatusSchema.options.map((v) => ({ value: v, label: STATUS_LOOK[v].word }))]} />
+            <SelectField label="How often" value={filters.frequency ?? ""} onChange={(e) => set({ frequency: (e.target.value || undefined) as SubscriberFilterQuery["frequency"] })} options={[any("Any frequency"), ...FrequencySchema.options.map((v) => ({ value: v, label: FREQUENCY_SHORT[v] }))]} />
             {shownQuery.projectSlug ? (
               <TopicFilter projectSlug={shownQuery.projectSlug} value={filters.topic ?? ""} onChange={(topic) => set({ topic })} />
             ) : (
@@ -458,9 +474,10 @@ export function SubscribersPage() {
         </Sheet>
         <section aria-labelledby="subs-h">
           <h2 id="subs-h" className="mb-2 text-lg font-semibold">
-            {`${list.total} ${list.total === 1 ? "subscriber" : "subscribers"}${list.total > list.rows.length ? ` (the newest ${list.rows.length} shown; narrow the filters)` : ""}`}
+            {`${list.total} ${list.total === 1 ? "subscriber" : "subscribers"}`}
           </h2>
           <SubscribersTable rows={list.rows} />
+          <UrlPager total={list.total} pageSize={list.pageSize} label="Pages of subscribers" previous="← Newer" next="Older →" />
         </section>
         {project ? (
           <Sheet label="Import" title="Import from a CSV file">

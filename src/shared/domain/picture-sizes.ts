@@ -6,6 +6,15 @@
 /** How wide a post's cover is drawn: the column's 768 px, or the phone's width less its margins. */
 export const POST_COVER_SIZES = "(min-width: 800px) 768px, calc(100vw - 2rem)";
 
+/** How wide a photo in a post's body is drawn: the text's 720 px, or the phone's width less its margins. */
+export const POST_PHOTO_SIZES = "(min-width: 768px) 720px, calc(100vw - 2rem)";
+
+/** How wide a project's hero is drawn (project page, home page): the page's 992 px column, or the phone's full width. */
+export const HERO_SIZES = "(min-width: 1024px) 992px, 100vw";
+
+/** How wide the home page draws its one build's hero: three fifths of the 992 px column beside the figures, the phone's full width. */
+export const HOME_HERO_SIZES = "(min-width: 1024px) 592px, (min-width: 768px) 60vw, 100vw";
+
 /** "a.avif 320w, b.avif 640w": narrowest first, one entry per width. */
 export function srcSetOf<V extends { url: string; width: number }>(variants: readonly V[]): string {
   const byWidth = new Map<number, V>();

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { DATE_ERROR } from "../domain/locale-dates.ts";
 
 export const RoleSchema = z.enum(["admin", "lead", "marketing", "investor"]);
 export type Role = z.infer<typeof RoleSchema>;
@@ -16,15 +17,19 @@ export const EmailSchema = z
   .max(254, "is too long")
   .pipe(z.email({ error: "is not a valid e-mail address" }));
 
-/** A calendar date, `YYYY-MM-DD`, that exists on the calendar. */
+/**
+ * A calendar date, `YYYY-MM-DD`, that exists on the calendar. The date field sends what it could
+ * not read as typed, so this one sentence is what a person sees beside the field, from the
+ * browser's check and the server's alike (decision 057).
+ */
 export const CalendarDateSchema = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}$/, "must be a date as YYYY-MM-DD")
+  .string({ error: DATE_ERROR })
+  .regex(/^\d{4}-\d{2}-\d{2}$/, DATE_ERROR)
   .refine((s) => {
     const [y, m, d] = s.split("-").map(Number) as [number, number, number];
     const t = new Date(Date.UTC(y, m - 1, d));
     return t.getUTCFullYear() === y && t.getUTCMonth() === m - 1 && t.getUTCDate() === d;
-  }, "is not a real calendar date");
+  }, DATE_ERROR);
 
 /** Every error answer of the API: `{ error: { code, message, fields? } }` (the fixed shape). */
 export const ApiErrorBodySchema = z.object({

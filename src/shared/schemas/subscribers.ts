@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { EmailSchema } from "./common.ts";
 import { SystemSchema } from "./programme.ts";
+import { pageQueryShape } from "./paging.ts";
 import { ProjectSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
@@ -193,7 +194,8 @@ export const TopicRefSchema = z.union([
 ]);
 
 /** GET /api/subscribers and GET /api/subscribers/export.csv */
-export const SubscriberListQuerySchema = z.strictObject({
+/** Which subscribers: the filters of the office list and of its CSV export (the export is never paged). */
+export const SubscriberFilterQuerySchema = z.strictObject({
   projectSlug: ProjectSlugSchema.optional(),
   interest: InterestSchema.optional(),
   status: SubscriberStatusSchema.optional(),
@@ -202,6 +204,12 @@ export const SubscriberListQuerySchema = z.strictObject({
   topic: TopicRefSchema.optional(),
   q: plainText().max(200).optional(),
 });
+export type SubscriberFilterQuery = z.infer<typeof SubscriberFilterQuerySchema>;
+
+export const SUBSCRIBER_PAGE_SIZE = 50;
+
+/** GET /api/subscribers: the filters and which page. */
+export const SubscriberListQuerySchema = SubscriberFilterQuerySchema.extend(pageQueryShape(SUBSCRIBER_PAGE_SIZE));
 export type SubscriberListQuery = z.infer<typeof SubscriberListQuerySchema>;
 
 export const SubscriberRowSchema = z.object({
@@ -228,12 +236,14 @@ export type SubscriberRow = z.infer<typeof SubscriberRowSchema>;
 
 /** GET /api/subscribers */
 export const SubscriberListSchema = z.object({
+  /** This page's subscribers, newest first. */
   rows: z.array(SubscriberRowSchema),
-  /** Every match; `rows` holds at most the first SUBSCRIBER_LIST_LIMIT. */
+  /** Every match. */
   total: z.number(),
+  page: z.number(),
+  pageSize: z.number(),
 });
 export type SubscriberList = z.infer<typeof SubscriberListSchema>;
-export const SUBSCRIBER_LIST_LIMIT = 500;
 
 /**
  * CSV columns for import, in this order in the header row. `topics` is `all` (or empty)

@@ -1,6 +1,9 @@
 import { z } from "zod";
 import { EmailSchema, RoleSchema } from "./common.ts";
+import { pageQueryShape } from "./paging.ts";
 import { plainText } from "./text.ts";
+
+export const AUDIT_PAGE_SIZE = 50;
 
 export const InviteInputSchema = z.strictObject({ email: EmailSchema, role: RoleSchema });
 export type InviteInput = z.infer<typeof InviteInputSchema>;
@@ -40,13 +43,15 @@ export type InvitationRow = z.infer<typeof InvitationRowSchema>;
 export const InvitationSentSchema = z.object({ id: z.number(), email: z.string(), role: RoleSchema, expiresAt: z.string() });
 export type InvitationSent = z.infer<typeof InvitationSentSchema>;
 
+/** GET /api/audit: one page of events, newest first; the total matching is in `X-Total-Count`. */
 export const AuditQuerySchema = z.strictObject({
   action: plainText({ trim: false }).max(64).optional(),
   before: z.coerce.number().int().positive().optional(),
-  limit: z.coerce.number().int().min(1).max(500).default(100),
+  ...pageQueryShape(AUDIT_PAGE_SIZE),
 });
+export type AuditQuery = z.infer<typeof AuditQuerySchema>;
 
-/** GET /api/audit (a list of these, newest first). */
+/** GET /api/audit (a page of these, newest first). */
 export const AuditEventSchema = z.object({
   id: z.number(),
   at: z.string(),

@@ -29,7 +29,7 @@ export function Refusal({ area, home }: { area: string; home: string }) {
         The {area} is not part of what your role can see. If you need it, ask an administrator of the operator to change your role.
       </p>
       <p className="mt-6">
-        <Link to={home} className="font-medium text-accent underline underline-offset-4">
+        <Link to={home} className="font-medium text-ink underline underline-offset-4">
           Go to your own area
         </Link>
       </p>

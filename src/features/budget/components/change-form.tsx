@@ -5,6 +5,7 @@ import { BudgetChangeCreateInputSchema, BudgetChangeStatusSchema, type BudgetCha
 import type { Milestone } from "#shared/schemas/programme.ts";
 import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
@@ -75,7 +76,7 @@ export function ChangeForm({ slug, change, currency, milestones, risks, onClose 
       {status === "approved" ? (
         <>
           <TextField label="Approved by" hint="A person or a body, e.g. Investors' committee" error={errors.approvedBy?.message} {...form.register("approvedBy", textOrNull)} />
-          <TextField label="Approved on" type="date" error={errors.approvedOn?.message} {...form.register("approvedOn", textOrNull)} />
+          <DateField label="Approved on" error={errors.approvedOn?.message} {...form.register("approvedOn", textOrNull)} />
           {missing ? (
             <div className="sm:col-span-2" data-testid="approval-rule">
               <Notice tone="caution">{missing}</Notice>

@@ -51,7 +51,7 @@ const columns = [
         "—"
       ),
   }),
-  col.accessor("drawsOnContingency", { header: "Contingency", cell: (c) => (c.getValue() ? <span className="whitespace-nowrap">◆ Draws on it</span> : "—") }),
+  col.accessor("drawsOnContingency", { header: "Contingency", cell: (c) => (c.getValue() ? <span className="whitespace-nowrap">Draws on it</span> : "—") }),
   col.accessor("audience", { header: "Audience", cell: (c) => <AudienceMark audience={c.getValue()} /> }),
   col.display({
     id: "edit",

@@ -3,6 +3,7 @@ import { useForm } from "react-hook-form";
 import type { z } from "zod";
 import { DecisionOutcomeInputSchema, DecisionWithdrawInputSchema, type DecisionAnswer, type DecisionOutcomeInput } from "#shared/schemas/decisions.ts";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog } from "../../../components/ui/form-dialog.tsx";
 import { saveForm } from "../../../lib/forms.ts";
 import { useRecordOutcome, useWithdrawDecision } from "../api.ts";
@@ -30,7 +31,7 @@ export function OutcomeForm({ decision, today, onClose }: { decision: DecisionAn
         {...form.register("chosenOption", { setValueAs: (v: string | number | null) => (v === "" || v === null ? null : Number(v)) })}
       />
       <TextField label="Decided by" error={errors.decidedBy?.message} {...form.register("decidedBy")} />
-      <TextField label="Decided on" type="date" max={today} error={errors.decidedOn?.message} {...form.register("decidedOn")} />
+      <DateField label="Decided on" max={today} error={errors.decidedOn?.message} {...form.register("decidedOn")} />
       <div className="sm:col-span-2">
         <TextAreaField label="Outcome" rows={3} hint="What was decided, and any condition attached to it." error={errors.outcome?.message} {...form.register("outcome")} />
       </div>

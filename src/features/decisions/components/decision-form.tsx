@@ -7,6 +7,7 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { FieldError, SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { formatDate } from "../../../lib/format.ts";
@@ -118,7 +119,7 @@ export function DecisionForm({ slug, decision, today, currency, milestones, risk
         error={errors.recommendedOption?.message}
         {...form.register("recommendedOption", { setValueAs: (v: string | number | null) => (v === "" || v === null ? null : Number(v)) })}
       />
-      <TextField label="Needed by" type="date" min={decision ? undefined : today} hint={decision ? undefined : `Today or later (today is ${formatDate(today)})`} error={errors.neededBy?.message} {...form.register("neededBy")} />
+      <DateField label="Needed by" min={decision ? undefined : today} hint={decision ? undefined : `Today or later (today is ${formatDate(today)})`} error={errors.neededBy?.message} {...form.register("neededBy")} />
       <div className="sm:col-span-2">
         <TextAreaField label="Recommendation" rows={2} error={errors.recommendation?.message} {...form.register("recommendation")} />
       </div>

@@ -4,6 +4,7 @@ import { Controller, useForm } from "react-hook-form";
 import type { z } from "zod";
 import { DocumentCategorySchema, DocumentCreateFieldsSchema, type DocumentAnswer, type DocumentCreateFields } from "#shared/schemas/documents.ts";
 import { FieldError, SelectField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { changedFields, optionsOf, saveForm } from "../../../lib/forms.ts";
@@ -36,7 +37,7 @@ function DocumentFields({ form, organisations }: { form: ReturnType<typeof useFo
       <TextField label="Title" error={errors.title?.message} {...form.register("title")} />
       <SelectField label="Category" options={optionsOf(CATEGORY_WORD, DocumentCategorySchema.options)} error={errors.category?.message} {...form.register("category")} />
       <TextField label="Period" hint="e.g. November 2026, Q4 2026" error={errors.period?.message} {...form.register("period")} />
-      <TextField label="Last day of the period" type="date" error={errors.periodEnd?.message} {...form.register("periodEnd", { setValueAs: (v: string | null) => (v === "" || v === null ? null : v) })} />
+      <DateField label="Last day of the period" error={errors.periodEnd?.message} {...form.register("periodEnd", { setValueAs: (v: string | null) => (v === "" || v === null ? null : v) })} />
       <SelectField label="Audience" options={RECORD_AUDIENCE_OPTIONS} error={errors.audience?.message} {...form.register("audience")} />
       <div className="sm:col-span-2">
         <Controller

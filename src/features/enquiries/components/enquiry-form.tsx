@@ -6,6 +6,7 @@ import { CapacityEnquirySchema, EnquiryInputSchema, EnquiryKindSchema, VISIT_MAX
 import type { Project } from "#shared/schemas/projects.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { TextAreaField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { applyApiError } from "../../../lib/format.ts";
@@ -31,7 +32,7 @@ function PreferredDates({ value, onChange, errors }: { value: string[]; onChange
       {dates.map((d, i) => (
         <div key={i} className="flex items-end gap-2">
           <div className="flex-1">
-            <TextField label={`Preferred date ${i + 1}`} type="date" value={d} error={list[i]?.message} onChange={(e) => onChange(dates.map((x, j) => (j === i ? e.target.value : x)))} />
+            <DateField label={`Preferred date ${i + 1}`} value={d} error={list[i]?.message} onChange={(e) => onChange(dates.map((x, j) => (j === i ? e.target.value : x)))} />
           </div>
           {dates.length > 1 ? (
             <Button size="sm" variant="ghost" aria-label={`Remove preferred date ${i + 1}`} onClick={() => onChange(dates.filter((_, j) => j !== i))}>
@@ -147,7 +148,7 @@ export function EnquiryForm({ project, about: given }: { project: Project; about
         <div className="grid gap-4 sm:grid-cols-3">
           <TextField label="Racks" type="number" inputMode="numeric" min={1} step={1} error={msg("racks")} {...form.register("racks", number)} />
           <TextField label="kW per rack" type="number" inputMode="decimal" min={0.5} step={0.5} error={msg("kwPerRack")} {...form.register("kwPerRack", number)} />
-          <TextField label="Date needed" type="date" error={msg("neededBy")} {...form.register("neededBy")} />
+          <DateField label="Date needed" error={msg("neededBy")} {...form.register("neededBy")} />
         </div>
       ) : null}
 

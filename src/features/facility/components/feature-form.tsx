@@ -4,6 +4,7 @@ import { useForm, useWatch } from "react-hook-form";
 import type { z } from "zod";
 import { FEATURE_STATUSES, FeatureCreateInputSchema, FeatureKindSchema, SecurityLayerSchema, type FeatureAnswer, type FeatureCreateInput } from "#shared/schemas/facility.ts";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { useCreateFeature, useDeleteFeature, usePatchFeature } from "../api.ts";
 import { FEATURE_KIND_WORD, FEATURE_STATUS_WORD, LAYER_WORD } from "../words.ts";
 import { AUDIENCE_OPTIONS, changedFields, FormDialog, optionsOf, rowEditor } from "./form-parts.tsx";
@@ -59,7 +60,7 @@ export function FeatureForm({ slug, feature, kind, onClose }: { slug: string; fe
         <SelectField label="Layer" options={optionsOf(LAYER_WORD, SecurityLayerSchema.options)} error={errors.layer?.message} {...form.register("layer")} />
       ) : null}
       <SelectField label="Status" options={optionsOf(FEATURE_STATUS_WORD, FEATURE_STATUSES[chosen])} error={errors.status?.message} {...form.register("status")} />
-      <TextField label="Status date" type="date" hint="Certified on, expected by (optional)" error={errors.statusDate?.message} {...form.register("statusDate", { setValueAs: (v: string | null) => (v === "" ? null : v) })} />
+      <DateField label="Status date" hint="Certified on, expected by (optional)" error={errors.statusDate?.message} {...form.register("statusDate", { setValueAs: (v: string | null) => (v === "" ? null : v) })} />
       <SelectField label="Audience" options={AUDIENCE_OPTIONS} error={errors.audience?.message} {...form.register("audience")} />
       <div className="sm:col-span-2">
         <TextAreaField label="Detail" rows={3} error={errors.detail?.message} {...form.register("detail")} />

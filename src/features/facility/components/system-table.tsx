@@ -91,7 +91,7 @@ const columns = [
           </p>
           <p className="tabular">
             <span className="text-ink-soft">now</span> <span className="font-semibold">{r.now}</span>{" "}
-            <span aria-hidden>{r.shortfall === 0 ? "●" : "○"}</span>
+            <span aria-hidden>{r.shortfall === 0 ? "●" : "▲"}</span>
             <span className="sr-only">{r.shortfall === 0 ? "(design reached)" : `(${r.shortfall} short of design)`}</span>
           </p>
           <p className="text-xs text-ink-faint">

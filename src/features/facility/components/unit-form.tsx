@@ -3,6 +3,7 @@ import { useForm } from "react-hook-form";
 import type { z } from "zod";
 import { UNIT_STAGES, UnitCreateInputSchema, type UnitCreateInput } from "#shared/schemas/facility.ts";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { useCreateUnit, usePatchUnit } from "../api.ts";
 import { stageWords } from "../words.ts";
 import { changedFields, FormDialog, saveForm } from "./form-parts.tsx";
@@ -27,7 +28,7 @@ export function NewUnitForm({ slug, systemId, systemName, trains, at, onClose }:
       <TextField label="Serial or tag" error={errors.tag?.message} {...form.register("tag")} />
       <TextField label="In independent system" type="number" min={1} max={trains} step={1} hint={trains > 1 ? `1 to ${trains}` : "This design has one system"} error={errors.train?.message} {...form.register("train", { valueAsNumber: true })} />
       <SelectField label="Stage reached" options={STAGE_OPTIONS} error={errors.stage?.message} {...form.register("stage")} />
-      <TextField label="Day on site" type="date" error={errors.on?.message} {...form.register("on", { setValueAs: (v: string) => (v === "" ? undefined : v) })} />
+      <DateField label="Day on site" error={errors.on?.message} {...form.register("on", { setValueAs: (v: string) => (v === "" ? undefined : v) })} />
       <div className="sm:col-span-2">
         <TextAreaField label="Note (optional)" rows={2} error={errors.note?.message} {...form.register("note")} />
       </div>

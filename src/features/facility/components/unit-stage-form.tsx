@@ -8,6 +8,7 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import type { WorkingCalendar } from "#shared/domain/calendar.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { FieldError } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { applyApiError } from "../../../lib/format.ts";
 import { conflictCurrent, useSetUnitStage } from "../api.ts";
@@ -154,11 +155,7 @@ export function UnitStageForm({ slug, unit, system, facility, milestones, calend
       </div>
 
       <div className="flex flex-col gap-1">
-        <label htmlFor={`unit-on-${unit.id}`} className="font-semibold">
-          Day on site
-        </label>
-        <input id={`unit-on-${unit.id}`} type="date" className="min-h-12 w-full rounded-sm border border-rule-strong bg-sheet px-3 text-base" {...form.register("on", { setValueAs: (v: string) => (v === "" ? undefined : v) })} />
-        {errors.on ? <FieldError id={`unit-on-${unit.id}-error`} error={errors.on.message} /> : null}
+        <DateField id={`unit-on-${unit.id}`} label="Day on site" className="min-h-12 text-base" error={errors.on?.message} {...form.register("on", { setValueAs: (v: string) => (v === "" ? undefined : v) })} />
       </div>
 
       {preview ? <StagePreviewPanel preview={preview} /> : <p className="text-sm text-ink-soft">Tap a stage to see what it does before saving.</p>}

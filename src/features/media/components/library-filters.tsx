@@ -3,6 +3,8 @@ import { SensitivitySchema, type MediaVocabulary } from "#shared/schemas/media.t
 import type { System } from "#shared/schemas/programme.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
+import { isCalendarDate } from "#shared/domain/calendar.ts";
 import { SYSTEM_WORD } from "../../../lib/format.ts";
 import type { LibraryFilters } from "../api.ts";
 import { SENSITIVITY_WORD } from "../words.ts";
@@ -38,8 +40,8 @@ export function LibraryFiltersForm({ filters, onChange, vocabulary }: { filters:
         onChange={(e) => set({ milestone: e.target.value ? Number(e.target.value) : undefined })}
         options={[{ value: "", label: "Any milestone" }, ...vocabulary.milestones.map((m) => ({ value: String(m.id), label: m.name }))]}
       />
-      <TextField label="Taken from" type="date" value={filters.takenFrom ?? ""} onChange={(e) => set({ takenFrom: e.target.value || undefined })} />
-      <TextField label="Taken to" type="date" value={filters.takenTo ?? ""} onChange={(e) => set({ takenTo: e.target.value || undefined })} />
+      <DateField label="Taken from" value={filters.takenFrom ?? ""} onChange={(e) => isCalendarDate(e.target.value) || e.target.value === "" ? set({ takenFrom: e.target.value || undefined }) : undefined} />
+      <DateField label="Taken to" value={filters.takenTo ?? ""} onChange={(e) => isCalendarDate(e.target.value) || e.target.value === "" ? set({ takenTo: e.target.value || undefined }) : undefined} />
       <SelectField
         label="Sensitivity"
         value={filters.sensitivity ?? ""}

@@ -75,7 +75,7 @@ function EntryRow({ entry, onDismiss, onDone }: { entry: Entry; onDismiss: () =>
         className="h-2 w-full overflow-hidden border border-rule-strong bg-paper"
       >
         <div
-          className={`h-full transition-[width] duration-200 ${entry.phase === "refused" || entry.phase === "failed" ? "bg-bad" : entry.phase === "processing" ? "animate-pulse bg-ink-soft" : entry.phase === "ready" || entry.phase === "duplicate" ? "bg-good" : "bg-accent"}`}
+          className={`h-full transition-[width] duration-200 ${entry.phase === "refused" || entry.phase === "failed" ? "bg-bad" : entry.phase === "processing" ? "animate-pulse bg-ink-soft" : entry.phase === "ready" || entry.phase === "duplicate" ? "bg-good" : "bg-ink"}`}
           style={{ width: `${percent}%` }}
         />
       </div>

@@ -1,5 +1,6 @@
 import { Image } from "@tiptap/extension-image";
 import { mergeAttributes, Node, NodeViewWrapper, ReactNodeViewRenderer, type ReactNodeViewProps } from "@tiptap/react";
+import { ALT_FROM_CAPTION_MARK } from "#shared/domain/draft-suggestion.ts";
 import { Picture } from "../../../components/ui/picture.tsx";
 import { ProblemAlerts } from "../../../components/ui/publishing-editor.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
@@ -45,11 +46,21 @@ function ImageView({ node, updateAttributes, selected, deleteNode }: ReactNodeVi
           />
         </label>
         <div className="flex flex-wrap items-center gap-3 font-sans text-xs text-ink-soft">
-          <span>
-            Alt text: {picture?.altText?.trim() ? <q>{picture.altText}</q> : <strong className="text-bad">▲ none yet</strong>}
-          </span>
+          {node.attrs.title === ALT_FROM_CAPTION_MARK && String(node.attrs.alt ?? "").trim() ? (
+            // A suggested draft took this alt text from the caption (decision 061): the writer checks it.
+            <span data-testid="alt-to-check">
+              <strong className="text-watch">! Alt text from the caption, to check:</strong> <q>{String(node.attrs.alt)}</q>{" "}
+              <button type="button" className="font-medium text-ink underline underline-offset-2" onClick={() => updateAttributes({ title: null })}>
+                Checked
+              </button>
+            </span>
+          ) : (
+            <span>
+              Alt text: {picture?.altText?.trim() ? <q>{picture.altText}</q> : <strong className="text-bad">▲ none yet</strong>}
+            </span>
+          )}
           {altMissing || flagged ? (
-            <button type="button" className="font-medium text-accent underline underline-offset-2" onClick={() => onFixPhoto(mediaId)}>
+            <button type="button" className="font-medium text-ink underline underline-offset-2" onClick={() => onFixPhoto(mediaId)}>
               Fix this photo
             </button>
           ) : null}

@@ -35,7 +35,7 @@ export function CsvPanel({ slug, editable }: { slug: string; editable: boolean }
         <p className="font-semibold">Export</p>
         <p className="text-ink-soft">Every milestone this site office can see, one per row, with the columns {MILESTONE_CSV_COLUMNS.join(", ")}.</p>
         <p>
-          <a href={milestonesCsvUrl(slug)} download className="font-medium text-accent underline underline-offset-4">
+          <a href={milestonesCsvUrl(slug)} download className="font-medium text-ink underline underline-offset-4">
             Download milestones.csv
           </a>
         </p>

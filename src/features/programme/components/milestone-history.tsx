@@ -38,7 +38,7 @@ function DrivingChain({ id }: { id: number }) {
       {chain.map((link, i) => (
         <li key={link.id} className="flex items-baseline gap-2">
           <span aria-hidden className="w-4 text-ink-faint">
-            {i === 0 ? "◆" : "↑"}
+            {i === 0 ? "▸" : "↑"}
           </span>
           <span className={i === 0 ? "font-semibold" : ""}>{link.name}</span>
           <span className="tabular text-ink-soft">{formatDate(link.finish)}</span>

@@ -17,6 +17,7 @@ import { SystemSchema, type Milestone } from "#shared/schemas/programme.ts";
 import type { MilestoneStatus } from "#shared/domain/programme-health.ts";
 import { DataTable } from "../../../components/ui/data-table.tsx";
 import { SelectField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { STATUS_LOOK, STATUS_ORDER, StatusMark } from "../../../components/ui/status-mark.tsx";
 import { formatDate, SYSTEM_WORD } from "../../../lib/format.ts";
 import type { Drafts, MilestoneDraft } from "../preview.ts";
@@ -76,16 +77,14 @@ function DateCell({ meta, m, field, label }: { meta: Meta; m: Milestone; field: 
   const err = meta.errors[m.id]?.[field];
   return (
     <>
-      <input
-        type="date"
+      <DateField
+        label={`${label} of ${m.name}`}
+        labelHidden
         className={`${cellInput} w-[8.6rem]`}
-        aria-label={`${label} of ${m.name}`}
-        aria-invalid={err ? true : undefined}
-        aria-describedby={err ? `err-${m.id}-${field}` : undefined}
+        error={err}
         value={value ?? ""}
         onChange={(e) => meta.onDraft(m.id, { [field]: e.target.value === "" ? null : e.target.value })}
       />
-      <CellError meta={meta} m={m} field={field} />
     </>
   );
 }

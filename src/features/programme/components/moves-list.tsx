@@ -41,7 +41,7 @@ const MARK: Record<MilestoneMove["kind"], string> = {
   later: "▶",
   earlier: "◀",
   progress: "+",
-  audience_changed: "◦",
+  audience_changed: "⇄",
 };
 
 /** "What moved" between two dates, milestone by milestone, with the notes left at the time. */

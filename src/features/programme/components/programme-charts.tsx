@@ -60,7 +60,7 @@ export function ProgrammeCharts({ slug, milestones, health, initial = "curve" }:
             aria-selected={tab === t.id}
             tabIndex={tab === t.id ? 0 : -1}
             onClick={() => setTab(t.id)}
-            className={`-mb-px border-b-4 px-3 py-2 text-sm ${tab === t.id ? "border-accent font-semibold text-ink" : "border-transparent text-ink-soft hover:text-ink"}`}
+            className={`-mb-px border-b-4 px-3 py-2 text-sm ${tab === t.id ? "border-ink font-semibold text-ink" : "border-transparent text-ink-soft hover:text-ink"}`}
           >
             {t.label}
           </button>

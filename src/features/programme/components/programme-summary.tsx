@@ -59,7 +59,7 @@ export function ProjectHealthSummary({ slug, href, linkLabel }: { slug: string; 
       <HealthStrip health={health.data} />
       {href ? (
         <p>
-          <Link to={href} className="font-medium text-accent underline underline-offset-4">
+          <Link to={href} className="font-medium text-ink underline underline-offset-4">
             {linkLabel ?? "Open the programme"}
           </Link>
         </p>

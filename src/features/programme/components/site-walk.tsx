@@ -4,10 +4,13 @@ import { useForm, useWatch } from "react-hook-form";
 import { toast } from "sonner";
 import { MilestonePatchInputSchema, type Milestone, type MilestonePatchInput } from "#shared/schemas/programme.ts";
 import type { ProgrammeSettings } from "#shared/domain/programme-health.ts";
+import type { SitePlan } from "#shared/schemas/site-plan.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { SelectField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
+import { SitePlanDrawing } from "../../../components/ui/site-plan-drawing.tsx";
 import { WalkSteps } from "../../../components/ui/walk-frame.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { applyFieldErrors, formatDate, SYSTEM_WORD } from "../../../lib/format.ts";
@@ -96,15 +99,12 @@ function StepForm({ slug, m, milestones, settings, at, onSaved, position }: { sl
 
       <fieldset className="flex flex-col gap-2">
         <legend className="mb-1 font-semibold">Forecast finish</legend>
-        <label className="sr-only" htmlFor={`walk-forecast-${m.id}`}>
-          Forecast finish
-        </label>
-        <input
+        <DateField
           id={`walk-forecast-${m.id}`}
-          type="date"
-          className="min-h-12 w-full rounded-sm border border-rule-strong bg-sheet px-3 text-lg"
+          label="Forecast finish"
+          labelHidden
+          className="min-h-12 text-lg"
           disabled={finished}
-          aria-invalid={errors.forecastFinish ? true : undefined}
           {...form.register("forecastFinish", { setValueAs: (v: string | null) => (v === "" ? null : v) })}
         />
         <div className="grid grid-cols-2 gap-2">
@@ -171,7 +171,7 @@ function StepForm({ slug, m, milestones, settings, at, onSaved, position }: { sl
  * The site walk: open milestones one at a time, with large controls for percent,
  * forecast and a note, for a lead with a phone in one hand.
  */
-export function SiteWalk({ slug, milestones, settings, at }: { slug: string; milestones: Milestone[]; settings: ProgrammeSettings; at: string }) {
+export function SiteWalk({ slug, milestones, settings, at, plan }: { slug: string; milestones: Milestone[]; settings: ProgrammeSettings; at: string; plan?: SitePlan }) {
   const [area, setArea] = useState("");
   const areas = useMemo(() => [...new Set(milestones.map((m) => m.area).filter(Boolean))].sort(), [milestones]);
   // The walk's order is fixed when it starts, so a milestone marked finished stays where it was.
@@ -191,6 +191,8 @@ export function SiteWalk({ slug, milestones, settings, at }: { slug: string; mil
   const current = milestones.find((m) => m.id === ids[index]);
   return (
     <div className="mx-auto flex w-full max-w-md flex-col gap-4">
+      {/* Tapping an area of the site plan picks it, as the list below does (tapping it again walks every area). */}
+      {plan && plan.areas.length > 0 ? <SitePlanDrawing plan={plan} title="Pick an area to walk through" selected={area || null} onPick={(a) => setArea((was) => (was.toLowerCase() === a.name.toLowerCase() ? "" : (areas.find((n) => n.toLowerCase() === a.name.toLowerCase()) ?? a.name)))} /> : null}
       <SelectField label="Walk through" value={area} onChange={(e) => setArea(e.target.value)} options={[{ value: "", label: "Every area" }, ...areas.map((a) => ({ value: a, label: a }))]} />
       {ids.length === 0 ? (
         <Notice title="Nothing open here">Every milestone in this part of the site is finished.</Notice>

@@ -19,7 +19,7 @@ export function LatestUpdates({ slug, timeZone, count = 3 }: { slug: string; tim
         <h2 id="latest-updates" className="text-xl font-semibold">
           Latest updates
         </h2>
-        <Link to={`/projects/${slug}/updates`} className="text-sm font-medium text-accent underline underline-offset-4">
+        <Link to={`/projects/${slug}/updates`} className="text-sm font-medium text-ink underline underline-offset-4">
           {updates.data.total > items.length ? `All ${updates.data.total} updates →` : "All updates →"}
         </Link>
       </div>

@@ -18,7 +18,7 @@ export function ProjectNav({ slug }: { slug: string }) {
             <NavLink
               to={l.to}
               end={l.end}
-              className={({ isActive }) => `block whitespace-nowrap border-b-2 px-3 py-2 text-sm ${isActive ? "border-accent font-semibold text-ink" : "border-transparent text-ink-soft hover:text-ink"}`}
+              className={({ isActive }) => `block whitespace-nowrap border-b-2 px-3 py-2 text-sm ${isActive ? "border-ink font-semibold text-ink" : "border-transparent text-ink-soft hover:text-ink"}`}
             >
               {l.label}
             </NavLink>

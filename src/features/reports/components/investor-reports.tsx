@@ -79,7 +79,7 @@ export function InvestorReport({ slug, id, asPdf }: { slug: string; id: number; 
   const report = useSuspenseQuery(reportQueryOptions(id)).data;
   const figures = report.figures as unknown as ReportFigures;
   const title = `Monthly report, ${monthWords(report.month)}`;
-  const tab = (on: boolean) => `-mb-px border-b-2 px-3 py-1.5 text-sm ${on ? "border-accent font-semibold" : "border-transparent text-ink-soft hover:text-ink"}`;
+  const tab = (on: boolean) => `-mb-px border-b-2 px-3 py-1.5 text-sm ${on ? "border-ink font-semibold" : "border-transparent text-ink-soft hover:text-ink"}`;
   return (
     <div className="flex flex-col gap-4">
       <div className="flex flex-wrap items-end justify-between gap-3 border-b border-rule">

@@ -12,7 +12,7 @@ const MilestoneTrend = lazy(() => import("./report-charts.tsx").then((m) => ({ d
 
 /** The commentary's typography: the serif of published pages. */
 const COMMENTARY =
-  "font-serif leading-[1.7] text-ink [&_a]:text-accent [&_a]:underline [&_blockquote]:border-l-4 [&_blockquote]:border-rule-strong [&_blockquote]:pl-4 [&_h2]:font-sans [&_h2]:text-xl [&_h2]:font-semibold [&_h3]:font-sans [&_h3]:font-semibold [&_img]:max-w-full [&_ol]:list-decimal [&_ol]:pl-6 [&_p]:my-2 [&_ul]:list-disc [&_ul]:pl-6";
+  "font-serif leading-[1.7] text-ink [&_a]:text-ink [&_a]:underline [&_blockquote]:border-l-4 [&_blockquote]:border-rule-strong [&_blockquote]:pl-4 [&_h2]:font-sans [&_h2]:text-xl [&_h2]:font-semibold [&_h3]:font-sans [&_h3]:font-semibold [&_img]:max-w-full [&_ol]:list-decimal [&_ol]:pl-6 [&_p]:my-2 [&_ul]:list-disc [&_ul]:pl-6";
 
 function Facts({ rows }: { rows: ReadonlyArray<[string, ReactNode]> }) {
   return (

@@ -6,6 +6,7 @@ import type { FacilityAnswer } from "#shared/schemas/facility.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { RiskCategorySchema, RiskCreateInputSchema, type RiskAnswer, type RiskCreateInput, type RiskScale } from "#shared/schemas/risks.ts";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { formatDate } from "../../../lib/format.ts";
@@ -109,7 +110,7 @@ export function RiskForm({ slug, risk, scale, staff, milestones, facility, curre
         <>
           <TextAreaField label="Impact now" rows={2} error={errors.impactNow?.message} {...form.register("impactNow")} />
           <TextAreaField label="Action" rows={2} error={errors.action?.message} {...form.register("action")} />
-          <TextField label="Action due" type="date" error={errors.dueDate?.message} {...form.register("dueDate", { setValueAs: (v: string) => (v === "" ? null : v) })} />
+          <DateField label="Action due" error={errors.dueDate?.message} {...form.register("dueDate", { setValueAs: (v: string) => (v === "" ? null : v) })} />
         </>
       ) : null}
       <TextField label="Schedule exposure (working days)" type="number" inputMode="numeric" min={0} step={1} hint="Leave empty when it would not move the programme." error={errors.scheduleDays?.message} {...form.register("scheduleDays", { setValueAs: numberOrNull })} />

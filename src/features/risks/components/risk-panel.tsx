@@ -7,6 +7,7 @@ import { AudienceMark } from "../../../components/ui/audience-mark.tsx";
 import { Button } from "../../../components/ui/button.tsx";
 import { Dialog } from "../../../components/ui/dialog.tsx";
 import { FieldError, SelectField, SelectOptions, TextAreaField, TextField } from "../../../components/ui/field.tsx";
+import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog } from "../../../components/ui/form-dialog.tsx";
 import { ChangeHistory } from "../../../components/ui/change-history.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
@@ -30,7 +31,7 @@ function AddMitigation({ riskId, staff, meId }: { riskId: number; staff: readonl
     <form onSubmit={onSubmit} noValidate aria-label="Add an action" className="grid gap-2 border-t border-rule pt-3 sm:grid-cols-[1fr_10rem_9.5rem_auto] sm:items-end">
       <TextField label="New action" error={errors.description?.message} {...form.register("description")} />
       <SelectField label="Owner" options={staff.map((s) => ({ value: String(s.id), label: s.name }))} error={errors.ownerId?.message} {...form.register("ownerId", { valueAsNumber: true })} />
-      <TextField label="Due" type="date" error={errors.dueDate?.message} {...form.register("dueDate", dateOrNull)} />
+      <DateField label="Due" error={errors.dueDate?.message} {...form.register("dueDate", dateOrNull)} />
       <Button type="submit" busy={add.isPending}>
         Add
       </Button>
@@ -100,7 +101,7 @@ export function IssueForm({ risk, onClose }: { risk: RiskAnswer; onClose: () => 
       </div>
       <TextAreaField label="Impact now" rows={3} error={errors.impactNow?.message} {...form.register("impactNow")} />
       <TextAreaField label="Action" rows={3} error={errors.action?.message} {...form.register("action")} />
-      <TextField label="Action due" type="date" error={errors.dueDate?.message} {...form.register("dueDate", dateOrNull)} />
+      <DateField label="Action due" error={errors.dueDate?.message} {...form.register("dueDate", dateOrNull)} />
       <TextField label="Note for the history" error={errors.note?.message} {...form.register("note")} />
     </FormDialog>
   );

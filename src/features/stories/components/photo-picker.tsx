@@ -2,12 +2,13 @@ import { useState } from "react";
 import type { MediaItem, MediaPicture } from "#shared/schemas/media.ts";
 import type { PhotoChoice } from "../../../components/ui/photo-choice.tsx";
 import { PhotoPickerDialog } from "../../../components/ui/photo-picker.tsx";
+import { formatDate } from "../../../lib/format.ts";
 import { mediaItemTitle, pickerPage, pictureOfMediaItem } from "../../../lib/media.ts";
 import { useStoryMedia } from "../api.ts";
 
 function choiceOf(item: MediaItem): PhotoChoice {
   const notes: PhotoChoice["notes"] = [];
-  notes.push(item.takenAt ? { text: `Taken ${item.takenAt.slice(0, 10)}` } : { text: "No capture date", warn: true });
+  notes.push(item.takenAt ? { text: `Taken ${formatDate(item.takenAt)}` } : { text: "No capture date", warn: true });
   if (!item.altText?.trim()) notes.push({ text: "No alt text", warn: true });
   if (item.sensitivity !== "cleared") notes.push({ text: item.sensitivity === "restricted" ? "Restricted" : "Not yet reviewed", warn: true });
   for (const a of item.tags.areas.slice(0, 2)) notes.push({ text: a });

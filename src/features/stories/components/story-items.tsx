@@ -5,6 +5,7 @@ import type { PublishingProblem } from "#shared/schemas/publishing.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { Picture } from "../../../components/ui/picture.tsx";
 import { ProblemAlerts } from "../../../components/ui/publishing-editor.tsx";
+import { formatDate } from "../../../lib/format.ts";
 
 export type EditItem =
   | { key: string; kind: "photo"; mediaId: number | null; caption: string }
@@ -19,7 +20,7 @@ function Slot({ picture, label, onPick, date }: { picture: MediaPicture | null |
     <div className="flex min-w-0 flex-1 flex-col gap-1">
       <span className="label-caps">{label}</span>
       {picture ? <Picture picture={picture} fit="cover" aspect={4 / 3} sizes="16rem" /> : <div className="flex aspect-[4/3] items-center justify-center border border-dashed border-rule-strong bg-paper text-sm text-ink-soft">No photo yet</div>}
-      {date !== undefined ? <span className="text-xs text-ink-soft">{date ? `Taken ${date}` : "▲ No capture date: a pair needs one"}</span> : null}
+      {date !== undefined ? <span className="text-xs text-ink-soft">{date ? `Taken ${formatDate(date)}` : "▲ No capture date: a pair needs one"}</span> : null}
       <Button size="sm" onClick={onPick}>
         {picture ? "Change photo…" : "Choose photo…"}
       </Button>
