@@ -23,6 +23,8 @@ interface Route {
   name: string;
   path: string | (() => Promise<string>);
   as: Who;
+  /** A page of a link that no longer works: it shows the refusal. */
+  deadLink?: boolean;
 }
 
 /** The first row of a table matching `where`, for the pages that show one thing. */
@@ -40,14 +42,14 @@ async function reviewLinkPath(): Promise<string> {
   const made = await lead.agent.post(`/api/posts/${draft.id}/review-links`).set("X-CSRF-Token", lead.csrf).send({ name: "Route Walker", email: "reviewer@example.org", days: 7 }).expect(201);
   return new URL(made.body.url as string).pathname;
 }
-/** A message in the outbox: the demo sends none, so a visitor subscribes and the confirmation is the one. */
+/** A message in the outbox: the demo sends none, so a visitor asks about capacity and marketing is told of it. */
 async function aMessageId(): Promise<string> {
   if (!(await app().db("mail_messages").first())) {
     const visitor = await newClient(app());
     await visitor.agent
-      .post("/api/subscriptions")
+      .post(`/api/projects/${SLUG}/enquiries`)
       .set("X-CSRF-Token", visitor.csrf)
-      .send({ email: "every.route@example.org", name: "Route Walker", interest: "prospect", frequency: "weekly", projectSlug: SLUG })
+      .send({ kind: "general", name: "Route Walker", email: "route.walker@example.org", message: "When is Hall 2B ready for service?" })
       .expect((r) => expect(r.status).toBeLessThan(300));
     await expect.poll(async () => Boolean(await app().db("mail_messages").first()), { timeout: 15_000 }).toBe(true);
   }
@@ -76,10 +78,10 @@ const ROUTES: Route[] = [
   { name: "enquire", path: `/projects/${SLUG}/enquire`, as: "visitor" },
   { name: "sign-in", path: "/sign-in", as: "visitor" },
   { name: "forgot-password", path: "/forgot-password", as: "visitor" },
-  { name: "reset-dead-link", path: "/reset-password/not-a-live-link", as: "visitor" },
-  { name: "invitation-dead-link", path: "/invitations/not-a-live-link", as: "visitor" },
-  { name: "confirm-dead-link", path: "/subscriptions/confirm/not-a-live-link", as: "visitor" },
-  { name: "not-found", path: "/no-such-page", as: "visitor" },
+  { deadLink: true, name: "reset-dead-link", path: "/reset-password/not-a-live-link", as: "visitor" },
+  { deadLink: true, name: "invitation-dead-link", path: "/invitations/not-a-live-link", as: "visitor" },
+  { deadLink: true, name: "confirm-dead-link", path: "/subscriptions/confirm/not-a-live-link", as: "visitor" },
+  { deadLink: true, name: "not-found", path: "/no-such-page", as: "visitor" },
   { name: "review-link", path: () => reviewLinkPath(), as: "visitor" },
   // The site office.
   { name: "office", path: "/office", as: "lead" },
@@ -168,7 +170,8 @@ async function smallTargets(page: Page): Promise<string[]> {
 
 /** The page has finished loading what it shows: no "Loading…" placeholder is left. */
 async function settled(page: Page): Promise<void> {
-  await page.waitForLoadState("networkidle");
+  // A message's own pictures (in its sandboxed frame) may point at addresses that never answer here.
+  await page.waitForLoadState("networkidle", { timeout: 10_000 }).catch(() => page.waitForLoadState("load"));
   await page.waitForFunction(() => !/Loading…|Loading\.\.\./.test(document.body.innerText), undefined, { timeout: 15_000 });
 }
 
@@ -186,20 +189,23 @@ describe("every page, as someone who may open it, at 375 and 1280 px", () => {
         const problems: string[] = [];
         for (const route of routes) {
           const path = typeof route.path === "string" ? route.path : await route.path();
+          const errorsBefore = errors.length;
           const answer = await page.goto(`${app().baseUrl}${path}`);
-          expect(answer?.status(), path).toBeLessThan(route.name.endsWith("dead-link") || route.name === "not-found" ? 500 : 400);
+          expect(answer?.status(), path).toBeLessThan(route.deadLink ? 500 : 400);
           await settled(page);
-          const axe = await new AxeBuilder({ page }).withTags(TAGS).analyze();
+          // A sandboxed frame runs no script, so axe cannot look inside it: the outbox's copy of a sent e-mail.
+          const axe = await new AxeBuilder({ page }).withTags(TAGS).exclude('iframe[sandbox=""]').analyze();
           for (const v of axe.violations) problems.push(`${path} axe ${v.id}: ${v.nodes.map((n) => n.target.join(" ")).join(", ")}`);
           for (const s of await smallTargets(page)) problems.push(`${path} target ${s}`);
           const sideways = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
           if (sideways > 0) problems.push(`${path} scrolls ${sideways} px sideways`);
           expect(await page.title(), path).not.toBe("");
           await screenshot(page, `pages/${route.name}-${width}`);
+          // A dead link's page loads its refusal (400 for a malformed token, 404, 410) by design; Chromium logs it as a failed load.
+          if (route.deadLink) errors.splice(errorsBefore, errors.length - errorsBefore, ...errors.slice(errorsBefore).filter((e) => !/Failed to load resource: the server responded with a status of 4(00|04|10)/.test(e)));
         }
         expect(problems).toEqual([]);
-        // Dead links answer 404/410 by design; Chromium logs those loads as errors.
-        expect(errors.filter((e) => !/status of 4(04|10)/.test(e))).toEqual([]);
+        expect(errors).toEqual([]);
       });
     }
   }

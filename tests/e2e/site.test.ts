@@ -3,6 +3,7 @@ import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import type { MediaItem, MediaListResponse } from "../../src/shared/schemas/media.ts";
 import { DEMO, newClient, signIn } from "../helpers/app.ts";
+import { formatDate } from "../../src/lib/format.ts";
 import { openAs, type Browser, screenshot, watchErrors, useBrowserApp } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
@@ -65,7 +66,7 @@ describe("a photo story with a then-and-now pair", () => {
     await page.getByRole("dialog").locator(`[data-testid="photo-choice"][data-media-id="${photos.before.id}"]`).click();
     await pair.getByRole("button", { name: "Choose photo…" }).click();
     await page.getByRole("dialog").locator(`[data-testid="photo-choice"][data-media-id="${photos.after.id}"]`).click();
-    await pair.getByText(`Taken ${dayOf(photos.before.takenAt)}`).waitFor();
+    await pair.getByText(`Taken ${formatDate(dayOf(photos.before.takenAt))}`).waitFor();
     await pair.getByLabel("Caption").fill("From bare ground to plant in place.");
     await page.getByRole("button", { name: "Move item 2 up" }).click();
     expect(await page.getByTestId("story-item").nth(0).getAttribute("data-kind")).toBe("pair");
@@ -208,9 +209,11 @@ describe("the public gallery", () => {
     await screenshot(page, "site-gallery-lightbox");
     await page.keyboard.press("Escape");
     await lightbox.waitFor({ state: "detached" });
-    const areas = await page.getByLabel("Area").locator("option").allTextContents();
+    // The filter's own box (the site plan above it names its areas too).
+    const areaBox = page.getByRole("combobox", { name: "Area" });
+    const areas = await areaBox.locator("option").allTextContents();
     if (areas.length > 1) {
-      await page.getByLabel("Area").selectOption({ label: areas[1]! });
+      await areaBox.selectOption({ label: areas[1]! });
       await page.waitForURL(/area=/);
       await tiles.first().waitFor();
       expect(await tiles.count()).toBeLessThanOrEqual(count);

@@ -30,7 +30,8 @@ export function watchErrors(page: Page): string[] {
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(`pageerror: ${e.message}`));
   page.on("console", (m) => {
-    if (m.type() === "error") errors.push(`console: ${m.text()}`);
+    // A failed load names its address (Chromium's text does not), so the failure says which.
+    if (m.type() === "error") errors.push(`console: ${m.text()}${m.text().startsWith("Failed to load resource") ? ` (${m.location().url})` : ""}`);
   });
   return errors;
 }
