@@ -1,29 +1,20 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { DraftSuggestionAnswerSchema } from "../../src/shared/schemas/writing-help.ts";
-import { DEMO, signIn, startTestApp, type TestApp } from "../helpers/app.ts";
-import { browserPool, openAs, screenshot, watchErrors } from "../helpers/browser.ts";
+import { DEMO, signIn } from "../helpers/app.ts";
+import { openAs, screenshot, useBrowserApp, watchErrors } from "../helpers/browser.ts";
 
 const SLUG = "aldermere-phase-2";
 
-let t: TestApp;
-const browsers = browserPool();
-
-beforeAll(async () => {
-  t = await startTestApp({}, { listen: true });
-});
-afterAll(async () => {
-  await browsers.closeAll();
-  await t?.close();
-});
+const { app, browsers } = useBrowserApp();
 
 describe("starting an update from the programme's suggestion", () => {
   it("a marketing user at 1280 starts an investor update from the suggestion and sees it pre-filled in the editor", async () => {
     // What the page should offer: the demo's investor suggestion as the API gives it.
-    const marketing = await signIn(t, DEMO.marketing);
+    const marketing = await signIn(app(), DEMO.marketing);
     const expected = DraftSuggestionAnswerSchema.parse((await marketing.agent.get(`/api/projects/${SLUG}/draft-suggestion?audience=investor`).expect(200)).body).suggestion;
     expect(expected, "the demo's last weeks give investors something to read").not.toBeNull();
 
-    const page = await openAs((await browsers.launch(1280)).context, t.baseUrl, DEMO.marketing);
+    const page = await openAs((await browsers.launch(1280)).context, app().baseUrl, DEMO.marketing);
     const errors = watchErrors(page);
     await page.getByRole("link", { name: "Updates", exact: true }).click();
     await page.getByRole("heading", { name: "Updates", level: 1 }).waitFor();
