@@ -12,6 +12,7 @@ import { apiNotFound, errorHandler } from "./core/error-handler.ts";
 import { createCsrf } from "./core/csrf.ts";
 import { cachePolicy } from "./core/cache-policy.ts";
 import { compressAnswers } from "./core/compression.ts";
+import { precompressedAssets } from "./core/precompressed-assets.ts";
 import { transportSecurity } from "./core/transport-security.ts";
 import type { Db } from "./db/knex.ts";
 import { auditRouter } from "./audit/audit.router.ts";
@@ -231,7 +232,7 @@ const FALLBACK_SHELL = `<!doctype html><html lang="en"><head><meta charset="utf-
 function mountClient(app: Express, dir: string, site: FeedsService, renderWith: Logger | null): void {
   const indexPath = path.join(dir, "index.html");
   const renderer = renderWith ? pageRenderer(dir, renderWith) : null;
-  app.use("/assets", express.static(path.join(dir, "assets"), { immutable: true, maxAge: "365d", index: false, fallthrough: false }));
+  app.use("/assets", precompressedAssets(path.join(dir, "assets")), express.static(path.join(dir, "assets"), { immutable: true, maxAge: "365d", index: false, fallthrough: false }));
   app.use(express.static(dir, { index: false, maxAge: "1h" }));
   let shell: string | null = null;
   // Read once with the shell: the build that wrote one wrote the other.

@@ -1,5 +1,4 @@
 import { MutationCache, QueryClient } from "@tanstack/react-query";
-import { toast } from "sonner";
 import { ApiError } from "./api-client.ts";
 
 export function createQueryClient(): QueryClient {
@@ -17,7 +16,9 @@ export function createQueryClient(): QueryClient {
         // Forms show field errors themselves; everything else becomes a toast.
         if (mutation.meta?.quiet) return;
         if (err instanceof ApiError && Object.keys(err.fields).length > 0) return;
-        toast.error(err instanceof Error ? err.message : "Something went wrong.");
+        // The toasts' library loads with the first toast, not with every public page (decision 065).
+        const message = err instanceof Error ? err.message : "Something went wrong.";
+        void import("sonner").then(({ toast }) => toast.error(message));
       },
     }),
   });
