@@ -22,9 +22,10 @@ export type ViteManifest = Record<string, ManifestChunk>;
 /** Which source module each public page's route loads (src/app/router.tsx). */
 const ROUTE_MODULES: ReadonlyArray<[RegExp, string]> = [
   [/^\/projects\/[a-z0-9-]+\/?$/, "src/app/pages/project-home-page.tsx"],
-  [/^\/projects\/[a-z0-9-]+\/(updates|gallery|search)(\/[a-z0-9-]+)?\/?$/, "src/features/public-site/routes.tsx"],
+  [/^\/projects\/[a-z0-9-]+\/(updates|gallery)(\/[a-z0-9-]+)?\/?$/, "src/features/public-site/routes.tsx"],
+  [/^\/projects\/[a-z0-9-]+\/search\/?$/, "src/features/public-site/search-routes.tsx"],
   [/^\/projects\/[a-z0-9-]+\/stories\/[a-z0-9-]+\/?$/, "src/features/public-site/routes.tsx"],
-  [/^\/projects\/[a-z0-9-]+\/timeline\/?$/, "src/features/programme/public-routes.tsx"],
+  [/^\/projects\/[a-z0-9-]+\/timeline\/?$/, "src/app/pages/timeline-page.tsx"],
   [/^\/projects\/[a-z0-9-]+\/facility\/?$/, "src/features/public-site/facility-routes.tsx"],
 ];
 
