@@ -1,7 +1,18 @@
 import type { Knex } from "knex";
 import { DateTime } from "luxon";
 import { viewerOfRole, type Viewer } from "#shared/domain/audience.ts";
-import { EDITED_AFTER_APPROVAL, editNeedsApproval, heldBackFields, heldBackReason, publicationInstant, stepComment, stepFields, workflowStep } from "#shared/domain/publishing-workflow.ts";
+import {
+  EDITED_AFTER_APPROVAL,
+  editNeedsApproval,
+  heldBackFields,
+  heldBackReason,
+  outsideReviewEntry,
+  publicationInstant,
+  stepComment,
+  stepFields,
+  workflowStep,
+  type OutsideReview,
+} from "#shared/domain/publishing-workflow.ts";
 import { diffText } from "#shared/domain/text-diff.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import type { PostStatus, PublishingEvent, RevisionDiff, RevisionSummary, ScheduleInput, WorkflowAction, WorkflowResult } from "#shared/schemas/publishing.ts";
@@ -198,6 +209,17 @@ export function createPublishingService(deps: { db: Db }) {
         const latest = (await listRevisions(db, kind, id))[0]?.number ?? 0;
         const revision = latest ? await findRevisionOf(id, n === "latest" ? latest : n) : null;
         return revision ? { item, revision, latest } : null;
+      },
+
+      /**
+       * Puts an outside reviewer's answer (review links, server/review-links) in the item's history,
+       * inside the caller's transaction so the answer and its entry are kept together or not at all.
+       * The state does not change; the row is locked so the state written is the one the answer met.
+       */
+      async recordOutsideReview(trx: Trx, id: number, review: OutsideReview, at: Date): Promise<void> {
+        const item = await locked(trx, id);
+        const entry = outsideReviewEntry(review);
+        await insertPublishingEvent(trx, { ownerType: kind, ownerId: item.id, action: entry.action, from: item.status, to: item.status, actorId: null, actorName: entry.actorName, comment: entry.comment, at });
       },
 
       async history(id: number): Promise<PublishingEvent[]> {

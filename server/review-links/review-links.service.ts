@@ -58,8 +58,8 @@ interface CopyOfContent {
 export interface ReviewLinksDeps {
   db: Db;
   logger: Logger;
-  posts: Pick<PostsService, "revisionOf" | "reviewCopy">;
-  stories: Pick<StoriesService, "revisionOf" | "reviewCopy">;
+  posts: Pick<PostsService, "revisionOf" | "reviewCopy" | "recordOutsideReview">;
+  stories: Pick<StoriesService, "revisionOf" | "reviewCopy" | "recordOutsideReview">;
   media: Pick<MediaService, "describeForPublishing" | "pictureFor" | "readVariant">;
   accounts: Pick<AccountsService, "findById" | "namesOf">;
   audit: AuditService;
@@ -73,8 +73,9 @@ export interface ReviewLinksDeps {
  * Review links (issue #15 item 1, decision 060): staff give a named outside reviewer a signed,
  * expiring, revocable link to one revision of a post or story in draft or in review. The reviewer
  * reads it without an account, with its photos served under the same link, and may answer
- * "looks right" or "needs changes"; every opening and answer is kept, audited, and the answer
- * reaches the author by e-mail. The link's URL is shown once, to its maker, and kept nowhere.
+ * "looks right" or "needs changes"; every opening and answer is kept and audited, and the answer
+ * goes into the content's publishing history and reaches the author by e-mail. The link's URL is
+ * shown once, to its maker, and kept nowhere.
  */
 export function createReviewLinksService(deps: ReviewLinksDeps) {
   const { db, logger, media, accounts, audit, mailer } = deps;
@@ -250,7 +251,7 @@ export function createReviewLinksService(deps: ReviewLinksDeps) {
       };
     },
 
-    /** The reviewer's answer on the revision they read: kept, audited, and sent to the author. */
+    /** The reviewer's answer on the revision they read: kept, audited, put in the content's history, and sent to the author. */
     async answer(token: string, query: ReviewRevisionQuery, input: ReviewAnswerInput, client: ReviewClient, now: Date = clock()): Promise<{ answers: ReviewCopy["answers"] }> {
       const link = await linkOf(token, now);
       const copy = await copyOf(link, revisionAsked(link, query), async () => new Map());
@@ -261,6 +262,13 @@ export function createReviewLinksService(deps: ReviewLinksDeps) {
         const answered = ((await eventsOfLinks(trx, [link.id])).get(link.id) ?? []).filter((e) => e.kind === "answered").length;
         if (answered >= MAX_ANSWERS_PER_LINK) throw new AppError("too_many_answers", `This link has taken its ${MAX_ANSWERS_PER_LINK} answers. Write to the person who sent it.`, 429);
         await insertReviewLinkEvent(trx, { reviewLinkId: link.id, kind: "answered", verdict: input.verdict, comment, revisionNumber: copy.number, ip: client.ip, userAgent: client.userAgent, at: now });
+        // The answer is also a line of the content's publishing history, beside the team's own steps.
+        await content(link.contentKind).recordOutsideReview(
+          trx,
+          link.contentId,
+          { reviewerName: link.reviewerName, organisation: link.reviewerOrganisation, verdict: input.verdict, comment, revisionNumber: copy.number },
+          now,
+        );
         await audit.record(
           { action: "review_link_answered", actor: { user: null, ip: client.ip }, actorEmail: link.reviewerEmail, target: { type: link.contentKind, id: link.contentId, label: copy.title }, detail: { reviewLinkId: link.id, revision: copy.number, verdict: input.verdict } },
           trx,

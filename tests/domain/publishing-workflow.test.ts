@@ -2,6 +2,7 @@ import { describe, expect, it } from "vitest";
 import {
   editNeedsApproval,
   heldBackFields,
+  outsideReviewEntry,
   publicationInstant,
   slugFromTitle,
   stepComment,
@@ -144,5 +145,35 @@ describe("edits after approval, and the scheduler", () => {
     ["!!!", "update"],
   ])("makes the address %j → %j", (title, slug) => {
     expect(slugFromTitle(title)).toBe(slug);
+  });
+});
+
+describe("outsideReviewEntry: a reviewer's answer through a review link as a history entry (decision 060)", () => {
+  // Our own rule (no published source): the verdict is in the code and leads the comment, the
+  // reviewer is named as not one of the team, and the name fits the history's 200 characters.
+  it.each([
+    [
+      "looks right, with an organisation and a comment",
+      { reviewerName: "Rowan Pike", organisation: "Harbour Communications", verdict: "looks_right", comment: "Reads well.", revisionNumber: 3 },
+      { action: "outside_review_looks_right", actorName: "Rowan Pike (outside reviewer, Harbour Communications)", comment: "Looks right (revision 3) — Reads well." },
+    ],
+    [
+      "needs changes, no organisation, no comment",
+      { reviewerName: "Sam Vale", organisation: null, verdict: "needs_changes", comment: null, revisionNumber: 1 },
+      { action: "outside_review_needs_changes", actorName: "Sam Vale (outside reviewer)", comment: "Needs changes (revision 1)" },
+    ],
+    [
+      "a blank organisation reads as none; markup in the comment is kept as the reviewer wrote it",
+      { reviewerName: "Sam Vale", organisation: "  ", verdict: "needs_changes", comment: "<b>Not yet</b> piped.", revisionNumber: 2 },
+      { action: "outside_review_needs_changes", actorName: "Sam Vale (outside reviewer)", comment: "Needs changes (revision 2) — <b>Not yet</b> piped." },
+    ],
+  ] as const)("%s", (_case, review, entry) => {
+    expect(outsideReviewEntry(review)).toEqual(entry);
+  });
+
+  it("keeps a 200-character name and a 200-character organisation within the history's 200 characters, both still readable", () => {
+    const entry = outsideReviewEntry({ reviewerName: "N".repeat(200), organisation: "O".repeat(200), verdict: "looks_right", comment: null, revisionNumber: 1 });
+    expect(entry.actorName.length).toBeLessThanOrEqual(200);
+    expect(entry.actorName).toMatch(/^N+… \(outside reviewer, O{79}…\)$/);
   });
 });

@@ -317,6 +317,15 @@ describe("GET /api/review/:token", () => {
     const reviewer = await newClient(t);
     const afterMail = await lastMailId(t);
     await reviewer.agent.post(`/api/review/${token}/answer`).set("X-CSRF-Token", reviewer.csrf).send({ verdict: "looks_right" }).expect(201);
+    const history = await as.lead.agent.get(`/api/stories/${story}/history`).expect(200);
+    expect(history.body[0]).toEqual({
+      action: "outside_review_looks_right",
+      from: "draft",
+      to: "draft",
+      by: "Rowan Pike (outside reviewer, Harbour Communications)",
+      comment: "Looks right (revision 1)",
+      at: expect.any(String),
+    });
     const mail = await waitForMail(t, DEMO.marketing, afterMail);
     expect(mail.subject).toContain("looks right");
     expect(mail.text).toContain(`/office/stories/${story}`);
@@ -365,9 +374,39 @@ describe("POST /api/review/:token/answer", () => {
     expect(mail.text).not.toContain(token);
   });
 
+  it("lands in the post's history as the reviewer's entry, the state unchanged and markup kept as text; a revoked link's answer lands nowhere", async () => {
+    const { t, as } = f;
+    const { id, made, token } = await draftWithLink(as.lead);
+    await as.marketing.agent.post(`/api/posts/${id}/submit`).set("X-CSRF-Token", as.marketing.csrf).expect(200);
+    const reviewer = await newClient(t);
+    const comment = "The <script>alert(1)</script> date is wrong.\nHall 2 is <b>not</b> ready.";
+    await reviewer.agent.post(`/api/review/${token}/answer`).set("X-CSRF-Token", reviewer.csrf).send({ verdict: "needs_changes", comment: `  ${comment}  ` }).expect(201);
+    await reviewer.agent.post(`/api/review/${token}/answer`).set("X-CSRF-Token", reviewer.csrf).send({ verdict: "looks_right", comment: "Fixed on the phone." }).expect(201);
+
+    const history = await as.marketing.agent.get(`/api/posts/${id}/history`).expect(200);
+    expect(history.body.map((e: { action: string }) => e.action)).toEqual(["outside_review_looks_right", "outside_review_needs_changes", "submit"]);
+    expect(history.body[1]).toEqual({
+      action: "outside_review_needs_changes",
+      from: "in_review",
+      to: "in_review",
+      by: "Rowan Pike (outside reviewer, Harbour Communications)",
+      comment: `Needs changes (revision 1) — ${comment}`,
+      at: expect.any(String),
+    });
+    expect(history.body[0]).toMatchObject({ from: "in_review", to: "in_review", comment: "Looks right (revision 1) — Fixed on the phone." });
+    expect((await as.marketing.agent.get(`/api/posts/${id}`).expect(200)).body.status).toBe("in_review");
+    const rows = await t.db("publishing_events").where({ owner_type: "post", owner_id: id, action: "outside_review_needs_changes" });
+    expect(rows).toHaveLength(1);
+    expect(rows[0].actor_id).toBeNull();
+
+    await as.lead.agent.delete(`/api/review-links/${made.body.id}`).set("X-CSRF-Token", as.lead.csrf).expect(204);
+    expect((await reviewer.agent.post(`/api/review/${token}/answer`).set("X-CSRF-Token", reviewer.csrf).send({ verdict: "looks_right" })).status).toBe(410);
+    expect(await count(t, "publishing_events", { owner_type: "post", owner_id: id })).toBe(3);
+  });
+
   it("needs the CSRF token; refuses a bad verdict or control characters with 400, writing nothing", async () => {
     const { t, as } = f;
-    const { made, token } = await draftWithLink(as.lead);
+    const { id, made, token } = await draftWithLink(as.lead);
     const reviewer = await newClient(t);
     expect((await reviewer.agent.post(`/api/review/${token}/answer`).send({ verdict: "looks_right" })).status).toBe(403);
     for (const body of [{ verdict: "fine" }, { verdict: "looks_right", comment: "ok\u0007" }, { verdict: "looks_right", extra: 1 }, { comment: "no verdict" }]) {
@@ -376,5 +415,6 @@ describe("POST /api/review/:token/answer", () => {
       expect(res.body.error.code).toBe("validation");
     }
     expect(await count(t, "review_link_events", { review_link_id: made.body.id, kind: "answered" })).toBe(0);
+    expect(await count(t, "publishing_events", { owner_type: "post", owner_id: id })).toBe(0);
   });
 });

@@ -5,7 +5,7 @@
  * approval again, and what the scheduler does with an item that is due. No clock: `at` is passed in.
  */
 import type { Role } from "../schemas/common.ts";
-import type { PostStatus, PublishingProblem, WorkflowAction } from "../schemas/publishing.ts";
+import { OUTSIDE_REVIEW_ACTIONS, type OutsideReviewAction, type PostStatus, type PublishingProblem, type WorkflowAction } from "../schemas/publishing.ts";
 
 /** The kinds of published content, as history rows and photo usages name their owner. */
 export type ContentKind = "post" | "story";
@@ -142,4 +142,34 @@ export function heldBackFields(problems: readonly PublishingProblem[]): { status
 /** A scheduled item counts as published at its scheduled time, or at `at` if that is earlier. */
 export function publicationInstant(scheduledFor: Date | null, at: Date): Date {
   return scheduledFor && scheduledFor < at ? scheduledFor : at;
+}
+
+/** An outside reviewer's answer through a review link, as the review-links module passes it on. */
+export interface OutsideReview {
+  reviewerName: string;
+  organisation: string | null;
+  verdict: keyof typeof OUTSIDE_REVIEW_ACTIONS;
+  /** The reviewer's comment, trimmed; null when they left none. */
+  comment: string | null;
+  /** The revision the reviewer read: a link may show a newer one than it was made for. */
+  revisionNumber: number;
+}
+
+const OUTSIDE_VERDICT_WORDS: Record<OutsideReview["verdict"], string> = { looks_right: "Looks right", needs_changes: "Needs changes" };
+
+/** The history column `actor_name` holds 200 characters; a reviewer's name and organisation may each be 200. */
+const ACTOR_NAME_MAX = 200;
+const clip = (s: string, n: number) => (s.length <= n ? s : `${s.slice(0, n - 1)}…`);
+
+/**
+ * The history entry of an outside reviewer's answer: one action code per verdict, the reviewer
+ * named as not one of the team, and the comment led by the verdict in words and the revision read
+ * (so the entry reads whole wherever the code is not known).
+ */
+export function outsideReviewEntry(r: OutsideReview): { action: OutsideReviewAction; actorName: string; comment: string } {
+  const org = r.organisation?.trim() || null;
+  const suffix = org ? ` (outside reviewer, ${clip(org, 80)})` : " (outside reviewer)";
+  const actorName = `${clip(r.reviewerName.trim(), ACTOR_NAME_MAX - suffix.length)}${suffix}`;
+  const head = `${OUTSIDE_VERDICT_WORDS[r.verdict]} (revision ${r.revisionNumber})`;
+  return { action: OUTSIDE_REVIEW_ACTIONS[r.verdict], actorName, comment: r.comment ? `${head} — ${r.comment}` : head };
 }

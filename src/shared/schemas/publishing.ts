@@ -93,12 +93,24 @@ export interface RevisionDiff {
   deleted: number;
 }
 
-/** A row of GET …/:id/history (newest first): a workflow step, or the scheduler's. */
+/**
+ * History entries that are not workflow steps: an outside reviewer's answer through a review link
+ * (decision 060), one code per verdict so a reader knows the verdict without parsing words. The
+ * item's state does not change (`from` = `to`).
+ */
+export const OUTSIDE_REVIEW_ACTIONS = { looks_right: "outside_review_looks_right", needs_changes: "outside_review_needs_changes" } as const;
+export type OutsideReviewAction = (typeof OUTSIDE_REVIEW_ACTIONS)[keyof typeof OUTSIDE_REVIEW_ACTIONS];
+
+/**
+ * A row of GET …/:id/history (newest first): a workflow step (`WorkflowAction`), an edit that sent
+ * approved work back (`edited`), the scheduler's publication or hold-back (`schedule_failed`), or an
+ * outside reviewer's answer (`OutsideReviewAction`).
+ */
 export interface PublishingEvent {
   action: string;
   from: PostStatus;
   to: PostStatus;
-  /** Who took the step; null when the scheduler held it back. */
+  /** Who took the step ("Name (outside reviewer, Organisation)" for a review answer); null when the scheduler held it back. */
   by: string | null;
   comment: string | null;
   at: string;
