@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import type { ReportState } from "#shared/schemas/reports.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { insertRecordEvents, listRecordEvents, type NewRecordEvent } from "../core/record-events.ts";
+import { retryOnDeadlock } from "../db/retry.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -153,10 +154,11 @@ export interface ClaimedNotice {
 /**
  * Claims up to `limit` notices due to be sent, under a lease: SKIP LOCKED lets several workers
  * claim side by side without taking the same row, and a lease that runs out (a crashed worker)
- * frees the notice again.
+ * frees the notice again. Two claims meeting on the index's gap may still make one of them a
+ * deadlock's victim (rolled back whole, nothing claimed): it simply claims again (decision 064).
  */
 export async function claimNotices(db: Knex, now: Date, leaseMs: number, limit: number): Promise<ClaimedNotice[]> {
-  return db.transaction(async (trx) => {
+  return retryOnDeadlock(() => db.transaction(async (trx) => {
     const rows = (await trx("report_notices")
       // Queued (a retry waits out its lease), or being sent by a worker whose lease ran out.
       .where((w) => w.whereIn("status", ["queued", "sending"]).andWhere((l) => l.whereNull("lease_until").orWhere("lease_until", "<=", now)))
@@ -173,7 +175,7 @@ export async function claimNotices(db: Knex, now: Date, leaseMs: number, limit: 
       )
       .update({ status: "sending", lease_until: new Date(now.getTime() + leaseMs), attempts: trx.raw("attempts + 1") });
     return rows.map((r) => ({ id: Number(r.id), reportId: Number(r.report_id), userId: Number(r.user_id), messageId: String(r.message_id), attempts: Number(r.attempts) + 1 }));
-  });
+  }));
 }
 
 /** A notice's outcome; a retry (`queued`) waits until `retryAt`. */

@@ -11,6 +11,8 @@ let t: TestApp;
 const browsers = browserPool();
 /** Photos whose review state this file changes, with the state to put back afterwards. */
 const restoreSensitivity: Array<{ id: number; sensitivity: MediaItem["sensitivity"]; altText: string | null }> = [];
+/** The title of the update this file writes and publishes. */
+let ourTitle = "";
 
 beforeAll(async () => {
   t = await startTestApp({}, { listen: true });
@@ -18,6 +20,10 @@ beforeAll(async () => {
 afterAll(async () => {
   if (t && restoreSensitivity.length) {
     const lead = await signIn(t, DEMO.lead);
+    // The update published here shows a photo this file cleared: withdraw it before the photo goes
+    // back to its review state, so no published page is left showing a photo visitors may not load.
+    const ours = (await t.db("posts").where({ title: ourTitle, status: "published" }).pluck("id")) as number[];
+    for (const id of ours) await lead.agent.post(`/api/posts/${id}/withdraw`).set("X-CSRF-Token", lead.csrf).send({}).expect(200);
     for (const r of restoreSensitivity) await lead.agent.patch(`/api/media/${r.id}`).set("X-CSRF-Token", lead.csrf).send({ sensitivity: r.sensitivity, altText: r.altText ?? "" });
   }
   await browsers.closeAll();
@@ -88,6 +94,7 @@ describe("an update from the editor to the public page", () => {
     restoreSensitivity.push({ id: photoB.id, sensitivity: photoB.sensitivity, altText: photoB.altText });
     milestone = await publicMilestone();
     title = `Chiller row progress ${Date.now().toString(36)}`;
+    ourTitle = title;
 
     const page = await signedInPage(await browserFor(), DEMO.marketing);
     const errors = watchErrors(page);
