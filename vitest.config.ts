@@ -21,7 +21,27 @@ export default defineConfig({
           name: "server",
           include: ["tests/server/**/*.test.ts"],
           environment: "node",
+          // The pinned AWS SDK runs on Node 20; its notice that later releases will not is known (decision 066).
+          env: { AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED: "true" },
           globalSetup: ["tests/setup/global-db.ts"],
+          setupFiles: ["tests/setup/fail-on-console-error.ts"],
+          fileParallelism: false,
+          testTimeout: 30_000,
+          hookTimeout: 60_000,
+        },
+      },
+      {
+        // The media and document tests again, with the stored files in an S3-compatible store
+        // (s3rver on loopback) instead of the local disk (decision 066).
+        test: {
+          name: "server-s3",
+          include: ["tests/server/media-*.test.ts", "tests/server/documents-library.test.ts"],
+          // These start fake S3 stores of their own whichever project runs them.
+          exclude: ["tests/server/media-s3*.test.ts", "tests/server/media-move.test.ts"],
+          environment: "node",
+          // The pinned SDK runs on Node 20; its notice that later releases will not is known (decision 066).
+          env: { TEST_MEDIA_STORE: "s3", AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED: "true" },
+          globalSetup: ["tests/setup/global-s3.ts"],
           setupFiles: ["tests/setup/fail-on-console-error.ts"],
           fileParallelism: false,
           testTimeout: 30_000,
@@ -47,6 +67,19 @@ export default defineConfig({
           fileParallelism: false,
           testTimeout: 60_000,
           hookTimeout: 120_000,
+        },
+      },
+      {
+        // The several-machine layout on loopback: a three-node Galera cluster and HAProxy with
+        // deploy/haproxy.cfg (decision 067). They start their own servers, one file at a time.
+        test: {
+          name: "layout",
+          include: ["tests/layout/**/*.test.ts"],
+          environment: "node",
+          setupFiles: ["tests/setup/fail-on-console-error.ts"],
+          fileParallelism: false,
+          testTimeout: 180_000,
+          hookTimeout: 180_000,
         },
       },
     ],

@@ -46,6 +46,25 @@ ensure_mariadb_binaries() {
   command -v mariadb-install-db >/dev/null || fail "mariadb-install-db not found after installing mariadb-server"
 }
 
+# The several-machine layout (decision 067): HAProxy in front of the web processes and the
+# database, and the Galera provider that turns three mariadbd into one cluster. rsync carries a
+# full state transfer to a node that rejoins with nothing usable.
+ensure_haproxy() {
+  apt_install haproxy haproxy
+}
+
+ensure_galera() {
+  # Debian 12's mariadb-server depends on galera-4 and rsync; a server installed without them
+  # (or with them removed since) gets them here.
+  apt_install mariadbd mariadb-server
+  [ -e /usr/lib/galera/libgalera_smm.so ] && command -v rsync >/dev/null 2>&1 && return 0
+  is_root || fail "Galera is missing. Install it with: sudo apt-get update && sudo apt-get install -y galera-4 rsync"
+  step "Installing Debian packages: galera-4 rsync (apt-get)"
+  export DEBIAN_FRONTEND=noninteractive
+  apt-get update -qq
+  apt-get install -y -qq galera-4 rsync >/dev/null
+}
+
 ensure_chromium() {
   apt_install chromium chromium
 }

@@ -8,6 +8,9 @@ ensure_mariadb_binaries
 [ -n "${DATABASE_URL:-}" ] && DATABASE_URL_GIVEN=1
 ensure_private_db
 ensure_session_secret
+# The media store npm run media:move switched to, once every file verified (decision 066): the
+# demo seed writes its photos there too.
+if [ -f "$DATA_DIR/media-store.env" ]; then set -a; source "$DATA_DIR/media-store.env"; set +a; fi
 step "Migrating and seeding the demo (idempotent)"
 npx tsx scripts/prepare-db.ts --seed
 build_client_if_stale

@@ -5,6 +5,9 @@ source "$(dirname "$0")/lib.sh"
 ensure_node_modules
 ensure_mariadb_binaries
 ensure_chromium
+# The layout tests (tests/layout: a Galera cluster behind HAProxy, decision 067).
+ensure_galera
+ensure_haproxy
 [ -n "${DATABASE_URL:-}" ] && DATABASE_URL_GIVEN=1
 ensure_private_db
 step "Building the client for the browser tests"

@@ -35,6 +35,21 @@ const ConfigSchema = z.object({
   MEDIA_MAX_FILE_MB: z.coerce.number().positive().max(1024).default(40),
   MEDIA_MAX_FILES: z.coerce.number().int().positive().max(500).default(20),
   MEDIA_MAX_PIXELS: z.coerce.number().int().positive().default(100_000_000),
+  // Where stored media (originals, derivatives, documents) live: MEDIA_DIR, or an S3-compatible bucket (decision 066).
+  MEDIA_STORE: z.enum(["local", "s3"], { error: "must be local or s3" }).default("local"),
+  S3_BUCKET: z.string().regex(/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/, "must be an S3 bucket name (3-63 lower-case letters, digits, dots and hyphens)").optional(),
+  // Only for stores other than AWS (or a private endpoint), e.g. https://s3.example.net.
+  S3_ENDPOINT: z.url({ error: "must be an absolute URL such as https://s3.example.net" }).optional(),
+  S3_REGION: z.string().min(1).default("us-east-1"),
+  // Both or neither: unset, the SDK's own chain is asked (environment, shared files, instance role).
+  S3_ACCESS_KEY_ID: z.string().min(1).optional(),
+  S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
+  S3_FORCE_PATH_STYLE: bool.default(false),
+  // Keys live under this prefix in the bucket (a bucket shared with other data), e.g. plumbline/.
+  S3_PREFIX: z.string().regex(/^(?:[A-Za-z0-9_.-]+\/)*$/, "must be empty or end with / (e.g. plumbline/)").default(""),
+  // Private and investor files: streamed through the app, or a redirect to the store's own short-lived URL.
+  MEDIA_PRIVATE_DELIVERY: z.enum(["stream", "presigned"], { error: "must be stream or presigned" }).default("stream"),
+  MEDIA_PRESIGN_SECONDS: z.coerce.number().int().min(1).max(900).default(300),
   // Derivative jobs run at once in this process; 0 leaves them to other processes.
   MEDIA_WORKERS: z.coerce.number().int().min(0).max(16).default(1),
   // The document library (server/documents): one file's size, and a PDF's pages.
@@ -97,6 +112,10 @@ const ConfigSchema = z.object({
   DIGEST_WORKERS: z.coerce.number().int().min(0).max(1).default(1),
   // How long a worker holds claimed deliveries; a killed worker's deliveries are claimed again after it.
   DIGEST_LEASE_SECONDS: z.coerce.number().int().min(1).max(3600).default(120),
+  // The first wait before a digest refused for a while (4yz, no reply) is tried again; it doubles each time.
+  DIGEST_RETRY_BASE_SECONDS: z.coerce.number().int().min(1).max(3600).default(60),
+  // How often a worker publishes what was scheduled (a scheduled update goes out within this many seconds of its time).
+  PUBLISH_CHECK_SECONDS: z.coerce.number().int().min(1).max(3600).default(30),
 });
 
 export type Config = Readonly<
@@ -163,6 +182,11 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     throw new ConfigError(problems);
   }
   const c = result.data;
+  const storeProblems = [
+    ...(c.MEDIA_STORE === "s3" && !c.S3_BUCKET ? ["S3_BUCKET is required when MEDIA_STORE is s3"] : []),
+    ...(!c.S3_ACCESS_KEY_ID !== !c.S3_SECRET_ACCESS_KEY ? ["S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY go together: give both, or neither for the SDK's own credentials"] : []),
+  ];
+  if (storeProblems.length > 0) throw new ConfigError(storeProblems);
   return Object.freeze({
     ...c,
     PUBLIC_URL: (c.PUBLIC_URL ?? `http://localhost:${c.PORT}`).replace(/\/$/, ""),

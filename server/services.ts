@@ -15,7 +15,8 @@ import { createRisksService } from "./risks/risks.service.ts";
 import { createDecisionsService } from "./decisions/decisions.service.ts";
 import { createBudgetService } from "./budget/budget.service.ts";
 import { createMediaService } from "./media/media.service.ts";
-import { createLocalDiskStorage, createUploadArea } from "./media/media.storage.ts";
+import { createUploadArea } from "./media/media.storage.ts";
+import { createMediaStorage } from "./media/media.storage-choice.ts";
 import { createRateLimitStore } from "./rate-limit/rate-limit.service.ts";
 import { createSignInDelays } from "./rate-limit/sign-in-delays.service.ts";
 import { createAccountsService } from "./users/users.accounts.ts";
@@ -108,7 +109,8 @@ export function createServices(deps: ServiceDeps) {
   });
   // Budget changes and the cost position: the original budget, PV, EV and AC from the programme's health.
   const budget = createBudgetService({ db, projects, programme, accounts, risks, audit });
-  const mediaStorage = createLocalDiskStorage(config.MEDIA_DIR);
+  // The local disk or an S3-compatible bucket (MEDIA_STORE); upload temporaries stay on the local disk either way.
+  const mediaStorage = createMediaStorage(config);
   const mediaUploads = createUploadArea(config.MEDIA_DIR);
   const media = createMediaService({
     db,
@@ -272,6 +274,7 @@ export function createServices(deps: ServiceDeps) {
     /** The process is stopping: work that requests set going (the subscription mail they queued) starts no more. */
     close(): void {
       subscribers.stop();
+      mediaStorage.close();
     },
   };
 }

@@ -54,8 +54,8 @@ export function createWorkers(services: Services, deps: WorkerDeps): Workers {
   const { media, mediaStorage, mediaUploads, posts, stories, projects, digests, subscribers, sessions } = services;
 
   const mediaJobs = createMediaJobs({ media, storage: mediaStorage, uploads: mediaUploads, logger, workers: config.MEDIA_WORKERS, maxPixels: config.MEDIA_MAX_PIXELS });
-  const publishing = createPublishingTicker({ posts, stories }, logger);
-  const digestJobs = createDigestJobs({ db, mailer, logger, digests, subscribers, outbox: services.outbox }, { ratePerSecond: config.DIGEST_SEND_RATE_PER_SECOND, leaseMs: config.DIGEST_LEASE_SECONDS * 1000 });
+  const publishing = createPublishingTicker({ posts, stories }, logger, config.PUBLISH_CHECK_SECONDS * 1000);
+  const digestJobs = createDigestJobs({ db, mailer, logger, digests, subscribers, outbox: services.outbox }, { ratePerSecond: config.DIGEST_SEND_RATE_PER_SECOND, leaseMs: config.DIGEST_LEASE_SECONDS * 1000, retryBaseMs: config.DIGEST_RETRY_BASE_SECONDS * 1000 });
   const digestSchedule = createDigestScheduler({ projects, digests, logger });
   const subscriptionMail = createIntervalTask({
     name: "subscription mail",

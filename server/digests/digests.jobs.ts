@@ -113,7 +113,10 @@ export function createDigestJobs(
       await finishDeliveries(db, [d.id], { status: "skipped", error: "nothing to say" });
       return;
     }
-    if (d.interrupted && (await alreadyAccepted(d))) {
+    // Asked after any earlier attempt, not only a vanished worker's: a reply lost on the way back
+    // (a dropped connection while the database or relay fails over) looks like a refusal here,
+    // although the message was taken.
+    if ((d.interrupted || d.attempts > 1) && (await alreadyAccepted(d))) {
       await finishDeliveries(db, [d.id], { status: "sent", sentAt: now(), error: "recovered after an interrupted attempt" });
       if (!d.isTest) await subscribers.recordDigestDelivered(d.subscriberId, d.windowEnd);
       return;

@@ -4,6 +4,7 @@ import { AppError } from "../core/app-error.ts";
 import { createTokenSigner } from "../core/signed-token.ts";
 import type { MediaContext } from "./media.context.ts";
 import { findReadableVariant, type FileReader } from "./media.repository.ts";
+import { storedFile, type StoredFile } from "./media.storage.ts";
 
 const CONTENT_TYPES: Record<VariantFormat, string> = { avif: "image/avif", webp: "image/webp", jpeg: "image/jpeg" };
 
@@ -19,6 +20,13 @@ const VARIANT_NAME = /^[0-9a-f]{16}-\d{1,5}w\.(avif|webp|jpg)$/;
 export const SIGNED_LINK_MAX_CACHE_SECONDS = 24 * 60 * 60;
 /** A signed link as it appears in text or HTML (`&` escaped or not); groups: name, exp, separator, sig. */
 const SIGNED_LINK_IN_TEXT = /\/media\/s\/([0-9a-f]{16}-\d{1,5}w\.(?:avif|webp|jpg))\?exp=(\d{1,12})(&amp;|&)sig=([A-Za-z0-9_-]{43})/g;
+
+/** A derivative a reader may see, not yet opened: the router streams it (ranges too) or redirects. */
+export interface VariantFile extends StoredFile {
+  /** Cleared and used in published public content: shared caches may keep it. */
+  isPublic: boolean;
+  etag: string;
+}
 
 export interface ReadableFile {
   stream: Readable;
@@ -51,22 +59,34 @@ export function createMediaLinks(ctx: MediaContext, tokenSecret: string | undefi
     return `/media/s/${name}?exp=${exp}&sig=${signatureOf(name, exp)}`;
   }
 
+  async function variantFile(name: string, reader: FileReader): Promise<VariantFile | null> {
+    if (!VARIANT_NAME.test(name)) return null;
+    const key = `variants/${name}`;
+    const found = await findReadableVariant(db, key, reader);
+    if (!found) return null;
+    return { ...storedFile(storage, key, CONTENT_TYPES[found.format]), isPublic: found.isPublic, etag: `"${name.slice(0, 16)}"` };
+  }
+
   /**
    * A derivative by its file name, for the reader's audience; null for a name that is not
    * a derivative, a photo this reader may not see, or bytes missing from storage.
    */
   async function readVariant(name: string, reader: FileReader): Promise<ReadableFile | null> {
-    if (!VARIANT_NAME.test(name)) return null;
-    const key = `variants/${name}`;
-    const found = await findReadableVariant(db, key, reader);
-    if (!found) return null;
-    const file = await storage.stream(key);
-    if (!file) return null;
-    return { stream: file.stream, bytes: file.bytes, contentType: CONTENT_TYPES[found.format], isPublic: found.isPublic, etag: `"${name.slice(0, 16)}"` };
+    const found = await variantFile(name, reader);
+    const file = found ? await found.open() : null;
+    if (!found || !file) return null;
+    return { stream: file.stream, bytes: file.bytes, contentType: found.contentType, isPublic: found.isPublic, etag: found.etag };
   }
 
   return {
     readVariant,
+
+    /**
+     * A derivative by its file name for the reader's audience, not yet opened (the audience is
+     * checked here, before any byte or redirect); null for a name that is not a derivative or a
+     * photo this reader may not see.
+     */
+    variantFile,
 
     /**
      * A derivative for the holder of a signed link: the signature grants the investor audience
@@ -74,13 +94,13 @@ export function createMediaLinks(ctx: MediaContext, tokenSecret: string | undefi
      * altered or missing signature, a name that is not a derivative, or a photo investors may not
      * see; an authentic link past its expiry is refused with 410.
      */
-    async readSignedVariant(name: string, link: SignedVariantQuery, now: Date = new Date()): Promise<(ReadableFile & { maxAgeSeconds: number }) | null> {
+    async readSignedVariant(name: string, link: SignedVariantQuery, now: Date = new Date()): Promise<(VariantFile & { maxAgeSeconds: number }) | null> {
       if (!VARIANT_NAME.test(name) || !signer) return null;
       const checked = signer.verifyParts("mediaLink", [name], link.exp, link.sig, now);
       // A forged link stays 404 whatever its expiry: the same answer as a hidden image.
       if (!checked.ok && checked.reason !== "expired") return null;
       if (!checked.ok) throw new AppError("link_expired", "This image link has expired. Open the digest's web copy for a fresh one.", 410);
-      const file = await readVariant(name, "investor");
+      const file = await variantFile(name, "investor");
       const left = Math.floor(link.exp - now.getTime() / 1000);
       return file ? { ...file, maxAgeSeconds: Math.min(left, SIGNED_LINK_MAX_CACHE_SECONDS) } : null;
     },

@@ -1,9 +1,9 @@
-import type { Readable } from "node:stream";
-import { AppError, notFound } from "../core/app-error.ts";
+import { notFound } from "../core/app-error.ts";
 import type { MediaContext } from "./media.context.ts";
 import { LocationNotRemovable, stripLocation } from "./media.metadata.ts";
 import { hasLocation, type ProbedImage } from "./media.probe.ts";
 import { findMediaById, listOriginals, setOriginalBytes } from "./media.repository.ts";
+import { storedFile, type StoredFile } from "./media.storage.ts";
 
 const ORIGINAL_EXTENSIONS: Record<string, string> = { "image/jpeg": "jpg", "image/png": "png", "image/webp": "webp", "image/heic": "heic", "image/heif": "heif" };
 
@@ -39,12 +39,10 @@ export function createMediaOriginals(ctx: MediaContext) {
   const { db, storage } = ctx;
   return {
     /** The original as uploaded (staff only: it may carry metadata other than its location). */
-    async original(id: number): Promise<{ stream: Readable; bytes: number; mime: string; name: string }> {
+    async original(id: number): Promise<StoredFile & { name: string }> {
       const item = await findMediaById(db, id);
       if (!item) throw notFound("That photo");
-      const file = await storage.stream(item.originalKey);
-      if (!file) throw new AppError("original_missing", "The original file of this photo is missing from storage.", 404);
-      return { ...file, mime: item.mime, name: item.originalName };
+      return { ...storedFile(storage, item.originalKey, item.mime), name: item.originalName };
     },
 
     /**

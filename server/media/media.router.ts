@@ -1,5 +1,6 @@
 import { Router, type Request, type RequestHandler, type Response } from "express";
 import { MulterError } from "multer";
+import parseRange from "range-parser";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { ThenAndNowQuerySchema } from "#shared/schemas/writing-help.ts";
@@ -7,7 +8,7 @@ import { BulkTagInputSchema, GalleryQuerySchema, MediaListQuerySchema, MediaPatc
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireRole } from "../core/auth.ts";
 import type { MediaService } from "./media.service.ts";
-import type { UploadArea } from "./media.storage.ts";
+import type { StoredFile, UploadArea } from "./media.storage.ts";
 
 const staff = () => requireRole("admin", "lead", "marketing");
 const reviewers = () => requireRole("lead", "admin");
@@ -117,15 +118,11 @@ export function mediaRouter(media: MediaService, uploads: UploadArea): Router {
   r.get("/media/:id/original", staff(), async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);
     const file = await media.original(id);
-    res.set({
-      "Content-Type": file.mime,
-      "Content-Length": String(file.bytes),
-      // The original may carry GPS and other metadata: never kept by a shared cache.
-      "Cache-Control": "private, no-store",
-      "Content-Disposition": `inline; filename*=UTF-8''${encodeURIComponent(file.name)}`,
-    });
-    file.stream.on("error", (err) => res.destroy(err));
-    file.stream.pipe(res);
+    const disposition = `inline; filename*=UTF-8''${encodeURIComponent(file.name)}`;
+    // The original may carry GPS and other metadata: never kept by a shared cache.
+    res.set("Cache-Control", "private, no-store");
+    const sent = await sendStored(req, res, file, { redirect: true, disposition });
+    if (!sent) throw new AppError("original_missing", "The original file of this photo is missing from storage.", 404);
   });
   return r;
 }
@@ -142,16 +139,52 @@ const fileNotFound = { error: { code: "not_found", message: "There is no such im
  * images in e-mail, where nobody is signed in): kept only by the recipient's own cache, and not past
  * the link's expiry.
  */
-/** 304 when the client's copy is current, else the bytes (headers already set by the caller). */
-function sendOrNotModified(req: Request, res: Response, file: { etag: string; contentType: string; bytes: number; stream: NodeJS.ReadableStream & { destroy(): void } }): void {
-  if (req.headers["if-none-match"] === file.etag) {
-    file.stream.destroy();
+/**
+ * Sends a stored file whose reader has been checked: with `redirect` and presigned delivery
+ * configured, a 302 to the store's own short-lived URL (never cached: the URL is a bearer pass);
+ * otherwise the bytes through the app, one byte range when asked (206, or 416 when none of it is
+ * inside the file), the whole file for a malformed or multi-range request. False when the store
+ * holds no bytes for it (the caller answers 404). Headers set by the caller stay.
+ */
+async function sendStored(req: Request, res: Response, file: StoredFile & { etag?: string }, opts: { redirect: boolean; disposition?: string }): Promise<boolean> {
+  if (file.etag && req.headers["if-none-match"] === file.etag) {
     res.status(304).end();
-    return;
+    return true;
   }
-  res.set({ "Content-Type": file.contentType, "Content-Length": String(file.bytes) });
-  file.stream.on("error", (err: Error) => res.destroy(err));
-  file.stream.pipe(res);
+  const url = opts.redirect ? file.presigned(opts.disposition) : null;
+  if (url) {
+    res.set("Cache-Control", "private, no-store").redirect(302, await url);
+    return true;
+  }
+  let opened = await file.open();
+  if (!opened) return false;
+  res.set({ "Content-Type": file.contentType, "Accept-Ranges": "bytes" });
+  const header = req.headers.range;
+  // If-Range with another validator than the current one asks for the whole file (RFC 9110 §13.1.5).
+  const rangeStillValid = req.headers["if-range"] === undefined || (file.etag !== undefined && req.headers["if-range"] === file.etag);
+  if (header && rangeStillValid) {
+    const ranges = parseRange(opened.size, header, { combine: true });
+    if (ranges === -1) {
+      opened.stream.destroy();
+      res.status(416).set("Content-Range", `bytes */${opened.size}`).end();
+      return true;
+    }
+    const only = ranges !== -2 && ranges.type === "bytes" && ranges.length === 1 ? ranges[0] : undefined;
+    if (only) {
+      // The whole file was opened to learn its size; the range is a second, exact read.
+      opened.stream.destroy();
+      const part = await file.open({ start: only.start, end: only.end });
+      if (!part) return false;
+      opened = part;
+      res.status(206).set("Content-Range", `bytes ${only.start}-${only.end}/${part.size}`);
+    }
+  }
+  if (opts.disposition) res.set("Content-Disposition", opts.disposition);
+  res.set("Content-Length", String(opened.bytes));
+  const { stream } = opened;
+  stream.on("error", (err: Error) => res.destroy(err));
+  stream.pipe(res);
+  return true;
 }
 
 export function mediaFilesRouter(media: MediaService): Router {
@@ -159,7 +192,7 @@ export function mediaFilesRouter(media: MediaService): Router {
   r.get("/media/v/:name", async (req, res) => {
     const role = req.user?.role;
     const reader = role === "admin" || role === "lead" || role === "marketing" ? "staff" : role === "investor" ? "investor" : "visitor";
-    const file = await media.readVariant(req.params.name, reader);
+    const file = await media.variantFile(req.params.name, reader);
     if (!file) {
       res.status(404).set("Cache-Control", "no-store").json(fileNotFound);
       return;
@@ -170,7 +203,11 @@ export function mediaFilesRouter(media: MediaService): Router {
       // Public derivatives appear in e-mail and feed readers on other origins.
       ...(file.isPublic ? { "Cross-Origin-Resource-Policy": "cross-origin" } : {}),
     });
-    sendOrNotModified(req, res, file);
+    // Public derivatives are always the app's to send, under their immutable names (decision 066).
+    if (!(await sendStored(req, res, file, { redirect: !file.isPublic }))) {
+      res.removeHeader("ETag");
+      res.status(404).set("Cache-Control", "no-store").json(fileNotFound);
+    }
   });
   r.get("/media/s/:name", async (req, res) => {
     // Refusals (400, 404, 410) are never stored, by any cache.
@@ -189,7 +226,10 @@ export function mediaFilesRouter(media: MediaService): Router {
       "Cross-Origin-Resource-Policy": "cross-origin",
       "X-Robots-Tag": "noindex",
     });
-    sendOrNotModified(req, res, file);
+    if (!(await sendStored(req, res, file, { redirect: true }))) {
+      res.removeHeader("ETag");
+      res.status(404).set("Cache-Control", "no-store").json(fileNotFound);
+    }
   });
   return r;
 }

@@ -21,12 +21,29 @@ export interface MediaStorage {
   putFile(key: string, filePath: string): Promise<void>;
   /** The bytes under a key, or null when there are none. */
   get(key: string): Promise<Buffer | null>;
-  /** A stream of the bytes under a key and their length, or null when there are none. */
-  stream(key: string): Promise<{ stream: Readable; bytes: number } | null>;
+  /**
+   * A stream of the bytes under a key, or of the inclusive byte range given (within the object:
+   * the caller checked it against `size`), with the streamed length and the whole object's size;
+   * null when there are none.
+   */
+  stream(key: string, range?: ByteRange): Promise<{ stream: Readable; bytes: number; size: number } | null>;
   /** Removes a key; removing a missing key is not an error. */
   delete(key: string): Promise<void>;
   /** Every key under a prefix with its last write time, for sweeps. */
   list(prefix: string): AsyncIterable<{ key: string; modifiedAt: Date }>;
+  /** A GET URL of the store itself for a key, valid for `seconds`; only stores that can sign one (S3). */
+  presignedUrl?(key: string, seconds: number, response: { contentType: string; disposition?: string }): Promise<string>;
+  /**
+   * Set when private files are handed out as presigned URLs of this lifetime instead of being
+   * streamed by the app (MEDIA_PRIVATE_DELIVERY=presigned on a store that can presign).
+   */
+  readonly presignSeconds?: number;
+}
+
+/** Inclusive byte offsets, as in an HTTP Range header. */
+export interface ByteRange {
+  start: number;
+  end: number;
 }
 
 const KEY = /^[a-z0-9]+(?:[a-z0-9_.-]*[a-z0-9])?(?:\/[a-z0-9]+(?:[a-z0-9_.-]*[a-z0-9])?)*$/;
@@ -86,11 +103,12 @@ export function createLocalDiskStorage(root: string): MediaStorage {
         throw err;
       }
     },
-    async stream(key) {
+    async stream(key, range) {
       const file = full(key);
       try {
         const { size } = await stat(file);
-        return { stream: createReadStream(file), bytes: size };
+        if (range) return { stream: createReadStream(file, range), bytes: range.end - range.start + 1, size };
+        return { stream: createReadStream(file), bytes: size, size };
       } catch (err) {
         if ((err as NodeJS.ErrnoException).code === "ENOENT") return null;
         throw err;
@@ -243,4 +261,25 @@ function decodeName(name: string): string {
  */
 export function testMediaDirFor(databaseName: string): string {
   return path.join(os.tmpdir(), `plumbline-media-${databaseName.replace(/[^a-zA-Z0-9_-]/g, "")}`);
+}
+
+/** A stored file ready to be sent: opened whole or in part, or handed out as the store's own URL. */
+export interface StoredFile {
+  contentType: string;
+  /** The bytes, whole or the inclusive range given; null when the key holds none. */
+  open(range?: ByteRange): Promise<{ stream: Readable; bytes: number; size: number } | null>;
+  /**
+   * The store's own short-lived URL for the file (a redirect target) when private files are
+   * delivered that way (MEDIA_PRIVATE_DELIVERY=presigned on S3); null when they are streamed.
+   */
+  presigned(disposition?: string): Promise<string> | null;
+}
+
+export function storedFile(storage: MediaStorage, key: string, contentType: string): StoredFile {
+  return {
+    contentType,
+    open: (range) => storage.stream(key, range),
+    presigned: (disposition) =>
+      storage.presignedUrl && storage.presignSeconds ? storage.presignedUrl(key, storage.presignSeconds, { contentType, disposition }) : null,
+  };
 }

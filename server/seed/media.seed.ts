@@ -7,7 +7,9 @@ import type { System } from "#shared/schemas/programme.ts";
 import type { Actor } from "../core/types.ts";
 import { createMediaJobs } from "../media/media.jobs.ts";
 import { createMediaService } from "../media/media.service.ts";
+import { loadConfig, type Config } from "../config.ts";
 import { createLocalDiskStorage, createUploadArea, testMediaDirFor } from "../media/media.storage.ts";
+import { createMediaStorage } from "../media/media.storage-choice.ts";
 import { createProgrammeService } from "../programme/programme.service.ts";
 import { createProjectsService } from "../projects/projects.service.ts";
 import { createAccountsService } from "../users/users.accounts.ts";
@@ -289,10 +291,13 @@ export function seedMediaDir(db: Knex): string {
  * Seeds the demo photos into a project that has none (idempotent: a project with any
  * media is left alone). Returns how many were made and how long it took, milliseconds.
  */
-export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: string; today?: DateTime } = {}): Promise<{ created: number; ms: number; rewritten: number; notRemovable: number[] }> {
+export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: string; today?: DateTime; config?: Config } = {}): Promise<{ created: number; ms: number; rewritten: number; notRemovable: number[] }> {
   const started = Date.now();
   const mediaDir = opts.mediaDir ?? seedMediaDir(db);
-  const storage = createLocalDiskStorage(mediaDir);
+  // The store the server will read: the given configuration's, or MEDIA_STORE and the S3 settings as
+  // `npm start` passes them; the local folder otherwise.
+  const config = opts.config ?? (process.env.MEDIA_STORE === "s3" ? loadConfig({ ...process.env, MEDIA_DIR: mediaDir }) : null);
+  const storage = config ? createMediaStorage(config) : { ...createLocalDiskStorage(mediaDir), close() {} };
   const uploads = createUploadArea(mediaDir);
   const projects = createProjectsService(db);
   const limits = { maxFileBytes: 40 * 1024 * 1024, maxFiles: 20, maxPixels: 100_000_000 };
@@ -301,6 +306,7 @@ export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: 
   if ((await media.countOfProject(projectId)) > 0) {
     // Originals stored before location was removed at upload lose it now (issue 9).
     const { rewritten, notRemovable } = await media.removeLocationFromOriginals(projectId);
+    storage.close();
     return { created: 0, ms: Date.now() - started, rewritten, notRemovable };
   }
   const project = await projects.getById(projectId);
@@ -337,5 +343,6 @@ export async function seedMedia(db: Knex, projectId: number, opts: { mediaDir?: 
     await media.update(id, patch, marketing);
     if (p.review) await media.review(id, { sensitivity: p.review }, lead);
   }
+  storage.close();
   return { created: ids.length, ms: Date.now() - started, rewritten: 0, notRemovable: [] };
 }

@@ -66,6 +66,8 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { lis
     SMTP_SINK_PORT: "0",
     // Shared with the demo seed of this test database, never the repository's media/.
     MEDIA_DIR: testMediaDirFor(new URL(databaseUrl).pathname.slice(1)),
+    // The server-s3 project runs the same tests with the stored files in a fake S3 bucket (tests/setup/global-s3.ts).
+    ...(process.env.TEST_MEDIA_STORE === "s3" ? inject("mediaS3Env") : {}),
     ...env,
     DATABASE_URL: databaseUrl,
   });

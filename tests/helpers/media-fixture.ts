@@ -24,7 +24,7 @@ export interface MediaFixture {
  * and helpers to make processed photos; set up in beforeAll, torn down in afterAll. Read the
  * fields inside tests (they are filled in beforeAll).
  */
-export function useMediaFixture(label: string): MediaFixture {
+export function useMediaFixture(label: string, env: Record<string, string> = {}): MediaFixture {
   let mediaDir = "";
   let n = 0;
   const seed = [...label].reduce((h, c) => (h * 31 + c.charCodeAt(0)) & 0xffffff, 7);
@@ -42,7 +42,10 @@ export function useMediaFixture(label: string): MediaFixture {
   } as unknown as MediaFixture;
   beforeAll(async () => {
     mediaDir = mkdtempSync(path.join(tmpdir(), `plumbline-${label}-`));
-    f.t = await startTestApp({ MEDIA_DIR: mediaDir });
+    // `env` is read here, so a test may fill it in an earlier beforeAll (a store it starts).
+    // Under the server-s3 project, a key prefix of its own is this app's empty store, as the folder is on disk.
+    const ownStore: Record<string, string> = process.env.TEST_MEDIA_STORE === "s3" ? { S3_PREFIX: `${path.basename(mediaDir)}/` } : {};
+    f.t = await startTestApp({ MEDIA_DIR: mediaDir, ...ownStore, ...env });
     const slug = `${label}-${Date.now().toString(36)}`;
     const [id] = await f.t.db("projects").insert({ slug, name: `Media test ${slug}`, operator_name: "Kestrel Colocation", time_zone: "Europe/London" });
     f.project = { id: Number(id), slug };

@@ -1,4 +1,4 @@
-import { existsSync, mkdirSync, readdirSync, rmSync, utimesSync, writeFileSync } from "node:fs";
+import { existsSync, mkdirSync, rmSync, utimesSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import { pino } from "pino";
 import { beforeAll, describe, expect, it } from "vitest";
@@ -24,8 +24,12 @@ async function upload(): Promise<number> {
   return res.body[0].id as number;
 }
 
-const variantsDir = () => path.join(f.t.config.MEDIA_DIR, "variants");
-const variantFiles = () => (existsSync(variantsDir()) ? readdirSync(variantsDir()).sort() : []);
+/** The derivative files in the app's store (its own folder, or its own prefix in the S3 bucket). */
+const variantFiles = async () => {
+  const names: string[] = [];
+  for await (const { key } of f.t.plumbline.mediaStorage.list("variants")) names.push(key.replace(/^variants\//, ""));
+  return names.sort();
+};
 /** Variant keys of one photo, or of every photo of the test project (whose files alone are in its media folder). */
 const variantRows = async (mediaId?: number) =>
   (
@@ -76,7 +80,7 @@ describe("media jobs: crash safety", () => {
     // 700 px wide: 320, 640 and 700 in three formats.
     const rows = await variantRows(id);
     expect(rows).toHaveLength(9);
-    expect(variantFiles()).toEqual(await variantRows());
+    expect(await variantFiles()).toEqual(await variantRows());
     // The dead worker's late commit is refused: its lease token is no longer the job's.
     expect(await t.plumbline.media.queue.complete(job!, { width: 1, height: 1, placeholder: "", dominantColor: "#000000", variants: [] })).toBe(false);
     expect(await variantRows(id)).toEqual(rows);
@@ -116,7 +120,7 @@ describe("media jobs: crash safety", () => {
     release();
     expect(await aRun).toBe(true);
     expect(await variantRows(id)).toEqual(rows);
-    expect(variantFiles()).toEqual(await variantRows());
+    expect(await variantFiles()).toEqual(await variantRows());
   });
 
   it("files a crashed attempt wrote that the re-run does not make are deleted after the re-run commits", async () => {
@@ -127,11 +131,11 @@ describe("media jobs: crash safety", () => {
     const stray = "variants/0123456789abcdef-320w.webp";
     expect(await t.plumbline.media.queue.stage(job, [stray])).toEqual([]);
     await t.plumbline.mediaStorage.put(stray, Buffer.from("half of another encoder's output"));
-    expect(variantFiles()).toContain("0123456789abcdef-320w.webp");
+    expect(await variantFiles()).toContain("0123456789abcdef-320w.webp");
     expect(await otherWorker({ now: after(at, 60_001) }).drain()).toBe(1);
     expect(await itemOf(id)).toMatchObject({ status: "ready" });
-    expect(variantFiles()).not.toContain("0123456789abcdef-320w.webp");
-    expect(variantFiles()).toEqual(await variantRows());
+    expect(await variantFiles()).not.toContain("0123456789abcdef-320w.webp");
+    expect(await variantFiles()).toEqual(await variantRows());
   });
 
   it("after three attempts that never finish, the photo is marked failed, its job removed, and nothing is served", async () => {
@@ -172,7 +176,7 @@ describe("media jobs: several workers share the queue", () => {
       expect(await itemOf(id)).toMatchObject({ status: "ready" });
       expect(await variantRows(id)).toHaveLength(9);
     }
-    expect(variantFiles()).toEqual(await variantRows());
+    expect(await variantFiles()).toEqual(await variantRows());
   });
 
   it("a running worker picks up an upload by itself and stops cleanly", async () => {

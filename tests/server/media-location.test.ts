@@ -114,12 +114,13 @@ describe("originals keep no location (issue 9)", () => {
     await t.db("media_items").where({ id }).update({ bytes: sent.length });
     expect(await hasLocation((await t.plumbline.mediaStorage.get(original_key))!)).toBe(true);
 
-    const first = await seedMedia(t.db, project.id, { mediaDir });
+    // The seed writes where the app reads: the local folder, or the S3 bucket under the server-s3 project.
+    const first = await seedMedia(t.db, project.id, { mediaDir, config: t.config });
     expect(first).toMatchObject({ created: 0, rewritten: 1, notRemovable: [] });
     const now = (await t.plumbline.mediaStorage.get(original_key))!;
     expect(await hasLocation(now)).toBe(false);
     expect(Number((await t.db("media_items").where({ id }).first("bytes")).bytes)).toBe(now.length);
     // Idempotent: a second run finds nothing to do.
-    expect(await seedMedia(t.db, project.id, { mediaDir })).toMatchObject({ created: 0, rewritten: 0 });
+    expect(await seedMedia(t.db, project.id, { mediaDir, config: t.config })).toMatchObject({ created: 0, rewritten: 0 });
   });
 });

@@ -1,0 +1,126 @@
+// `npm run scale` (scripts/scale.sh): the layout of docs/deployment.md on loopback, the kill
+// test's scenarios at full size with every figure printed, and with --bench the throughput of
+// one against two web processes and one against two workers.
+import http from "node:http";
+import { LAYOUT_PROJECT, startLayout, type Layout } from "./layout/layout.ts";
+import { digestOnce, scheduledPostOnce, sessionAcrossProcesses, uploadsProcessedOnce, webKilledUnderLoad } from "./layout/scenarios.ts";
+
+const args = new Set(process.argv.slice(2));
+const say = (line: string) => process.stdout.write(`${line}\n`);
+const fixed = (n: number | null | undefined, d = 2) => (n == null ? "—" : n.toFixed(d));
+let failures = 0;
+const check = (ok: boolean, what: string) => {
+  say(`  ${ok ? "✓" : "✗"} ${what}`);
+  if (!ok) failures += 1;
+};
+
+/** Requests per second and p99 of `concurrency` keep-alive loops over `paths` for `seconds`. */
+async function load(url: string, paths: string[], seconds: number, concurrency: number): Promise<{ rps: number; p99: number; errors: number; requests: number }> {
+  const agent = new http.Agent({ keepAlive: true, maxSockets: concurrency });
+  const target = new URL(url);
+  const latencies: number[] = [];
+  let errors = 0;
+  const end = Date.now() + seconds * 1000;
+  const one = (path: string) =>
+    new Promise<boolean>((resolve) => {
+      const req = http.get({ host: target.hostname, port: target.port, path, agent }, (res) => {
+        res.resume();
+        res.on("end", () => resolve(res.statusCode === 200));
+      });
+      req.on("error", () => resolve(false));
+    });
+  const started = Date.now();
+  await Promise.all(
+    Array.from({ length: concurrency }, async (_, i) => {
+      for (let n = i; Date.now() < end; n += 1) {
+        const t = performance.now();
+        const ok = await one(paths[n % paths.length]!);
+        latencies.push(performance.now() - t);
+        if (!ok) errors += 1;
+      }
+    }),
+  );
+  agent.destroy();
+  latencies.sort((a, b) => a - b);
+  return { rps: latencies.length / ((Date.now() - started) / 1000), p99: latencies[Math.floor(latencies.length * 0.99)] ?? 0, errors, requests: latencies.length };
+}
+
+async function bench(layout: Layout): Promise<void> {
+  say("\nBenchmark (this machine: the load generator, HAProxy, the app processes, the sink and three database nodes share its cores)");
+  const paths = [`/api/projects/${LAYOUT_PROJECT}`, `/api/projects/${LAYOUT_PROJECT}/posts`, `/api/projects/${LAYOUT_PROJECT}/milestones`, `/api/projects/${LAYOUT_PROJECT}/health`, "/api/projects"];
+  await load(layout.url, paths, 3, 16); // warm-up
+  await layout.haproxy.command("set server web/web2 state maint");
+  const one = await load(layout.url, paths, 15, 32);
+  await layout.haproxy.command("set server web/web2 state ready");
+  await layout.haproxy.waitUp("web", 2, 20_000);
+  const two = await load(layout.url, paths, 15, 32);
+  say(`  public API, one web process:  ${fixed(one.rps, 0)} req/s, p99 ${fixed(one.p99, 1)} ms, ${one.errors} errors of ${one.requests}`);
+  say(`  public API, two web processes: ${fixed(two.rps, 0)} req/s, p99 ${fixed(two.p99, 1)} ms, ${two.errors} errors of ${two.requests}`);
+  say(`  ratio two/one: ${fixed(two.rps / one.rps)}× (target ≥ 1.5×)`);
+
+  const digest = async (workers: number, readers: number) => {
+    if (workers === 1) await layout.workers[1]!.kill("SIGTERM");
+    else if (!layout.workers[1]!.alive()) await layout.startWorker(1);
+    const f = await digestOnce(layout, { subscribers: readers });
+    return { seconds: f.seconds, sent: f.deliveriesSent, perSecond: f.deliveriesSent / f.seconds };
+  };
+  const readers = Number(process.env.SCALE_BENCH_READERS ?? 10_000);
+  const d1 = await digest(1, readers);
+  const d2 = await digest(2, readers);
+  say(`  digest to ${readers} readers, one worker:  ${fixed(d1.seconds, 1)} s, ${fixed(d1.perSecond, 0)} messages/s (${d1.sent} sent)`);
+  say(`  digest to ${readers} readers, two workers: ${fixed(d2.seconds, 1)} s, ${fixed(d2.perSecond, 0)} messages/s (${d2.sent} sent)`);
+  say(`  ratio two/one: ${fixed(d2.perSecond / d1.perSecond)}× (target ≥ 1.6×)`);
+}
+
+const t0 = Date.now();
+say("Bringing up the layout (Galera ×3, HAProxy, 2 web + 2 worker processes, fake S3, SMTP sink)");
+const layout = await startLayout({ say: (l) => say(`  ${l}`), env: { DIGEST_LEASE_SECONDS: "10", DIGEST_RETRY_BASE_SECONDS: "2", PUBLISH_CHECK_SECONDS: "1" } });
+const stop = async () => {
+  await layout.stop();
+};
+process.once("SIGINT", () => void stop().then(() => process.exit(130)));
+try {
+  say(`  up in ${fixed((Date.now() - t0) / 1000, 1)} s: app ${layout.url}, database ${layout.databaseUrl.replace(/:[^:@/]+@/, ":…@")}`);
+
+  say("\nOne session across the web processes");
+  const s = await sessionAcrossProcesses(layout, 200);
+  say(`  requests per process: ${JSON.stringify(s.perProcess)}`);
+  check(s.ok === s.requests && Object.values(s.perProcess).every((n) => n > 0), `${s.ok}/${s.requests} answered with the one session, by both processes`);
+
+  say("\nUploads through the load balancer, processed by the workers into S3");
+  const u = await uploadsProcessedOnce(layout, 20);
+  say(`  ${u.uploads} uploads ready in ${fixed(u.seconds, 1)} s; per worker ${JSON.stringify(u.perWorker)}`);
+  check(u.processedOnce === u.uploads && u.processedTwice === 0, `processed exactly once: ${u.processedOnce}/${u.uploads}`);
+  check(u.servedFromS3 === u.inS3 && u.inS3 > 0, `${u.inS3} derivatives in the S3 bucket, each served from it`);
+
+  say("\nA scheduled update");
+  const p = await scheduledPostOnce(layout);
+  say(`  published by ${JSON.stringify(p.publishedBy)}; visible after ${JSON.stringify(Object.fromEntries(Object.entries(p.visibleAfter).map(([k, v]) => [k, `${fixed(v)} s`])))}`);
+  check(p.publishedEvents === 1, `published exactly once (${p.publishedEvents} publication event)`);
+  check(Object.values(p.visibleAfter).every((v) => v <= 6), "visible through every web process within the 5 s cache bound");
+
+  say("\nkill -9 of a web process under load");
+  const w = await webKilledUnderLoad(layout, { seconds: 20, concurrency: 8 });
+  say(`  ${w.requests} requests; per process ${JSON.stringify(w.perProcess)}; marked down after ${fixed(w.markedDownAfter)} s`);
+  check(w.markedDownAfter !== null && w.markedDownAfter <= 5, "HAProxy routed around it within 5 s");
+  check(w.failedAfterWindow === 0, `nothing failed outside the 5 s window (${w.failedInWindow} inside it)`);
+  await layout.startWeb(0);
+  await layout.haproxy.waitUp("web", 2, 20_000);
+
+  say("\nA digest to 2,000 readers: kill -9 of a worker a quarter through, the writing node stopped half way");
+  const d = await digestOnce(layout, { subscribers: 2_000, killWorker: true, stopWriter: true });
+  say(`  ${d.subscribers} readers in ${fixed(d.seconds, 1)} s; worker killed at ${d.sentAtWorkerKill} sent; writer :${d.writerBefore} stopped at ${d.sentAtWriterStop} sent`);
+  check(d.once === d.subscribers && d.twice === 0 && d.missing === 0, `every address exactly once: ${d.once} once, ${d.twice} more than once, ${d.missing} missing`);
+  check(d.writerAfter !== null && d.writerAfter !== d.writerBefore, `writes moved to :${d.writerAfter}; the app recovered by itself after ${fixed(d.recoveredAfter)} s`);
+  check(d.rejoinedAfter !== null, `the stopped node rejoined after ${fixed(d.rejoinedAfter, 1)} s`);
+
+  if (args.has("--bench")) await bench(layout);
+  say(`\n${failures === 0 ? "All scenarios held" : `${failures} check(s) failed`} (${fixed((Date.now() - t0) / 1000, 1)} s in all).`);
+  if (args.has("--keep")) {
+    say(`\nThe layout stays up (app ${layout.url}; sign in as lead@kestrel.example with the password plumbline-layout-demo). Ctrl-C stops it.`);
+    await new Promise(() => {});
+  }
+} finally {
+  await stop();
+}
+process.exit(failures === 0 ? 0 : 1);
