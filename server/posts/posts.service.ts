@@ -57,7 +57,7 @@ import {
   type PostUpdate,
   type PublishedPostRecord,
 } from "./posts.repository.ts";
-import { plainTextOf, renderRichText, type MilestoneBlockData, type RenderContext } from "./rich-text.ts";
+import { plainTextOf, renderRichText, withoutPhotos, type MilestoneBlockData, type RenderContext } from "./rich-text.ts";
 
 type Trx = Knex.Transaction;
 
@@ -236,12 +236,26 @@ export function createPostsService(deps: PostsDeps) {
     }
   }
 
+  /**
+   * The photos among `ids` this reader's browser can load now. Staff load every photo; anyone else
+   * only cleared, processed ones (the derivative route's own rule, with the usage this published
+   * update gives): a photo sent back to review or restricted after publication is left out of
+   * what they are shown rather than shown as a broken image (decision 070).
+   */
+  async function loadableBy(viewer: Viewer, ids: readonly number[]): Promise<Map<number, MediaPicture>> {
+    const pictures = await media.pictureFor([...ids]);
+    if (viewer === "staff" || pictures.size === 0) return pictures;
+    const described = await media.describeForPublishing([...pictures.keys()]);
+    for (const d of described) if (!(d.exists && d.status === "ready" && d.sensitivity === "cleared")) pictures.delete(d.id);
+    return pictures;
+  }
+
   /** Rows of one project as summaries for a reader. */
   async function summaries(projectId: number, rows: readonly PostListRecord[], viewer: Viewer): Promise<PostSummary[]> {
     const ids = rows.map((r) => r.id);
     const [tags, pictures, subjects] = await Promise.all([
       tagsFor(db, ids),
-      media.pictureFor(rows.flatMap((r) => (r.coverMediaId ? [r.coverMediaId] : []))),
+      loadableBy(viewer, rows.flatMap((r) => (r.coverMediaId ? [r.coverMediaId] : []))),
       facility.tagSubjects(projectId),
     ]);
     return rows.map((r) => summaryOf(r, tagsForReader(tags.get(r.id) ?? [], subjects, viewer), r.coverMediaId ? (pictures.get(r.coverMediaId) ?? null) : null));
@@ -268,7 +282,7 @@ export function createPostsService(deps: PostsDeps) {
     const viewer = viewerOf(actor);
     const links = await milestoneLinksOf(db, post.id);
     const inline = imageIdsOf(post.body);
-    const [tags, pictures, current, subjects] = await Promise.all([tagsFor(db, [post.id]), media.pictureFor(mediaIdsOf(post)), milestonesFor(project, viewer), facility.tagSubjects(project.id)]);
+    const [tags, pictures, current, subjects] = await Promise.all([tagsFor(db, [post.id]), loadableBy(viewer, mediaIdsOf(post)), milestonesFor(project, viewer), facility.tagSubjects(project.id)]);
     const milestones: PostMilestone[] = [];
     for (const l of links) {
       const now = current.get(l.milestoneId);
@@ -278,7 +292,9 @@ export function createPostsService(deps: PostsDeps) {
       milestones.push({ id: l.milestoneId, name, then: l.then, now: nowSnap, changed: Boolean(l.then && nowSnap && !sameSnapshot(l.then, nowSnap)) });
     }
     // Published HTML is the record of what was published; staff previews of unpublished work render afresh.
-    const html = viewer === "staff" && post.status !== "published" ? (await renderFor(project, post, links)).html : post.html;
+    // A photo of the record that this reader can no longer load is shown as the "not available" figure.
+    const html =
+      viewer === "staff" && post.status !== "published" ? (await renderFor(project, post, links)).html : withoutPhotos(post.html, inline.filter((id) => !pictures.has(id)));
     const detail: PostDetail = {
       ...summaryOf(post, tagsForReader(tags.get(post.id) ?? [], subjects, viewer), post.coverMediaId ? (pictures.get(post.coverMediaId) ?? null) : null),
       projectSlug: project.slug,

@@ -36,6 +36,21 @@ export function dateInWords(date: string): string {
 }
 
 /** Inline images sit in a text column of about 45 rem. */
+/** The figure of a photo that cannot be shown (missing, or not for this reader): its words, no image. */
+const MISSING_PHOTO = "This photo is not available.";
+
+/**
+ * Published HTML with the figures of the given photos replaced by the "not available" figure. The
+ * HTML is our own rendering (`renderRichText`), so a figure is found by its class and media id.
+ */
+export function withoutPhotos(html: string, mediaIds: readonly number[]): string {
+  if (mediaIds.length === 0) return html;
+  const hidden = new Set(mediaIds.map(String));
+  return html.replace(/<figure class="post-image" data-media-id="(\d+)">[\s\S]*?<\/figure>/g, (figure, id: string) =>
+    hidden.has(id) ? `<figure class="post-image post-image-missing" data-media-id="${id}"><figcaption>${MISSING_PHOTO}</figcaption></figure>` : figure,
+  );
+}
+
 export const INLINE_SIZES = "(min-width: 48rem) 720px, 100vw";
 
 const srcset = (variants: MediaPicture["sources"]["jpeg"]) => variants.map((v) => `${v.url} ${v.width}w`).join(", ");
@@ -92,7 +107,7 @@ function buildExtensions(ctx: RenderContext): Extensions {
       const picture = ctx.pictures.get(mediaId);
       const caption = String(node.attrs.caption ?? "").trim() || picture?.caption?.trim() || "";
       if (!picture) {
-        return ["figure", { class: "post-image post-image-missing", "data-media-id": String(mediaId) }, ["figcaption", {}, caption || "This photo is not available."]];
+        return ["figure", { class: "post-image post-image-missing", "data-media-id": String(mediaId) }, ["figcaption", {}, caption || MISSING_PHOTO]];
       }
       const alt = String(node.attrs.alt ?? "").trim() || (picture.altText ?? "").trim();
       const parts: unknown[] = [pictureSpec(picture, alt, INLINE_SIZES)];

@@ -141,3 +141,42 @@ describe("withdrawing closes the door again", () => {
     expect((await as.investor.agent.get(cover.urls[0]!)).status).toBe(200);
   });
 });
+
+describe("a photo sent back to review after publication", () => {
+  it("is shown to visitors and investors as 'not available' (no broken image, no caption); staff still see it", async () => {
+    const cover = await createPhoto(t, project.id);
+    const inline = await createPhoto(t, project.id, { caption: "Gatehouse camera positions" });
+    const kept = await createPhoto(t, project.id);
+    const res = await as.lead.agent
+      .post(`/api/projects/${project.slug}/posts`)
+      .set("X-CSRF-Token", as.lead.csrf)
+      .send(postInput(cover.id, { title: "Security line goes in", body: doc(text("The secure line is being fitted."), image(inline.id), image(kept.id)) }))
+      .expect(201);
+    await as.lead.agent.post(`/api/posts/${res.body.id}/publish`).set("X-CSRF-Token", as.lead.csrf).expect(200);
+    const visitor = await newClient(t);
+    const page = `/api/projects/${project.slug}/posts/${res.body.slug}`;
+    const before = await visitor.agent.get(page).expect(200);
+    expect(before.body.html).toContain(inline.urls[0]);
+    expect(before.body.cover?.id).toBe(cover.id);
+
+    // Both sent back: the inline photo to review, the cover restricted.
+    await t.db("media_items").where({ id: inline.id }).update({ sensitivity: "unreviewed" });
+    await t.db("media_items").where({ id: cover.id }).update({ sensitivity: "restricted" });
+    for (const reader of [visitor, as.investor]) {
+      const after = await reader.agent.get(page).expect(200);
+      // Nothing the browser would fetch and fail on, and the caption of a withdrawn photo is not shown.
+      for (const url of inline.urls) expect(after.body.html).not.toContain(url);
+      expect(after.body.html).not.toContain("Gatehouse camera positions");
+      expect(after.body.html).toContain(`<figure class="post-image post-image-missing" data-media-id="${inline.id}"><figcaption>This photo is not available.</figcaption></figure>`);
+      // The photo still cleared is untouched.
+      expect(after.body.html).toContain(kept.urls[0]);
+      expect(after.body.images.map((p: { id: number }) => p.id)).toEqual([kept.id]);
+      expect(after.body.cover).toBeNull();
+      const list = await reader.agent.get(`/api/projects/${project.slug}/posts`).expect(200);
+      expect(list.body.find((p: { id: number }) => p.id === res.body.id).cover).toBeNull();
+    }
+    const staff = await as.lead.agent.get(page).expect(200);
+    expect(staff.body.html).toContain(inline.urls[0]);
+    expect(staff.body.cover?.id).toBe(cover.id);
+  });
+});
