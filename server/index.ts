@@ -35,7 +35,7 @@ process.on("uncaughtException", (err) => {
 
 const runsWeb = config.PLUMBLINE_ROLE !== "worker";
 const runsWorkers = config.PLUMBLINE_ROLE !== "web";
-const db = createDb(config.DATABASE_URL);
+const db = createDb(config.DATABASE_URL, {}, logger);
 // The local sink is a listener, so only a web process starts it; a worker-only process sends to the sink at SMTP_SINK_HOST:SMTP_SINK_PORT.
 let sink: MailSink | null = null;
 if (config.mailMode === "local" && runsWeb) {

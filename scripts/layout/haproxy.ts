@@ -27,6 +27,8 @@ export interface Haproxy {
   webPort: number;
   dbPort: number;
   statsSocket: string;
+  /** The haproxy process (for CPU accounting in `npm run scale -- --bench`). */
+  pid: number;
   stop(): Promise<void>;
   servers(): Promise<HaproxyServer[]>;
   /** Runs one command on the stats socket (`show stat`, `show table db_writer`, …). */
@@ -158,6 +160,7 @@ export async function startHaproxy(opts: StartHaproxyOptions): Promise<Haproxy> 
     webPort: ports.web,
     dbPort: ports.db,
     statsSocket,
+    pid: child.pid!,
     stop,
     servers,
     command,

@@ -16,6 +16,8 @@ import { migrateLatest } from "../../server/db/migrations.ts";
 import { startMailSink, type MailSink } from "../../server/mail/mail.sink.ts";
 import { seedAccounts } from "../../server/seed/accounts.seed.ts";
 import { DEMO_USERS } from "../../server/seed/demo-users.ts";
+import { seedFacility } from "../../server/seed/facility.seed.ts";
+import { seedProgramme } from "../../server/seed/programme.seed.ts";
 import { startFakeS3, type FakeS3 } from "./fake-s3.ts";
 import { freePorts, startGaleraCluster, type GaleraCluster } from "./galera.ts";
 import { startHaproxy, type Haproxy } from "./haproxy.ts";
@@ -90,14 +92,15 @@ export async function startLayout(opts: LayoutOptions = {}): Promise<Layout> {
     );
     cleanups.push(() => haproxy.stop());
     const databaseUrl = cluster.appUrl("plumbline_layout", haproxy.dbPort);
-    const db = createDb(databaseUrl, { max: 4 });
+    // The checks' own connection: a lost connection during a failover is expected, not news.
+    const db = createDb(databaseUrl, { max: 4 }, pino({ level: "silent" }));
     cleanups.push(() => db.destroy());
-    await timed("database migrated and accounts seeded through HAProxy", async () => {
+    await timed("database migrated, demo accounts, programme and facility seeded through HAProxy", async () => {
       await ensureDatabase(databaseUrl);
       await migrateLatest(db);
       await seedAccounts(db, DEMO_USERS, LAYOUT_PASSWORD);
       if (!(await db("projects").where({ slug: LAYOUT_PROJECT }).first("id"))) {
-        await db("projects").insert({
+        const [projectId] = await db("projects").insert({
           slug: LAYOUT_PROJECT,
           name: "Aldermere Campus, Phase 2",
           operator_name: "Kestrel Colocation",
@@ -105,6 +108,10 @@ export async function startLayout(opts: LayoutOptions = {}): Promise<Layout> {
           description: "The invented demo build, brought up on several processes.",
           currency: "GBP",
         });
+        // The demo's programme and facility, so the public pages' API has the demo's work to do.
+        const lead = (await db("users").where({ email: "lead@kestrel.example" }).first("id")) as { id: number };
+        await seedProgramme(db, Number(projectId), { byUserId: Number(lead.id) });
+        await seedFacility(db, Number(projectId), { byUserId: Number(lead.id) });
       }
     });
     // The sink stands in for a hosted provider; it records what it accepts in the database, as in `npm start`.

@@ -25,12 +25,31 @@ export function connectionFromUrl(url: string, overrides: { database?: string | 
   };
 }
 
-export function createDb(url: string, pool: { min?: number; max?: number } = {}): Knex {
+/** Where Knex's own messages go (a lost connection, say): the app's logger rather than the console. */
+export interface DbLog {
+  warn(obj: object, msg: string): void;
+  error(obj: object, msg: string): void;
+  debug(obj: object, msg: string): void;
+}
+
+export function createDb(url: string, pool: { min?: number; max?: number } = {}, log?: DbLog): Knex {
+  const text = (m: unknown) => (m instanceof Error ? m.message : String(m));
   return knexFactory({
     client: "mysql2",
     connection: connectionFromUrl(url) as unknown as Knex.MySql2ConnectionConfig,
     pool: { min: pool.min ?? 0, max: pool.max ?? 10 },
     acquireConnectionTimeout: 5000,
+    // Without a log, Knex prints to the console (the scripts' and tests' default).
+    ...(log
+      ? {
+          log: {
+            warn: (m: unknown) => log.warn({ knex: text(m) }, "database connection"),
+            error: (m: unknown) => log.error({ knex: text(m) }, "database connection"),
+            deprecate: (m: unknown) => log.debug({ knex: text(m) }, "database library"),
+            debug: (m: unknown) => log.debug({ knex: text(m) }, "database library"),
+          },
+        }
+      : {}),
   });
 }
 
