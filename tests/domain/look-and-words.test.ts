@@ -42,6 +42,13 @@ describe("one orange", () => {
     expect(offenders).toEqual([]);
   });
 
+  it("ticks, choices and sliders are ink: no control sets an orange accent of its own, and the base rule says ink", () => {
+    const offenders = UI.filter((f) => /\baccent-\[(#c2410c|#e8590c|var\(--color-accent(-bright)?\))\]/i.test(code(f)));
+    expect(offenders).toEqual([]);
+    const css = readFileSync(join(ROOT, "src/index.css"), "utf8");
+    expect(css).toMatch(/input\[type="checkbox"\],\s*input\[type="radio"\],\s*input\[type="range"\]\s*\{\s*accent-color:\s*var\(--color-ink\);/);
+  });
+
   it("links and tabs are not orange: no `text-accent` and no orange tab underline anywhere in the app", () => {
     const offenders = UI.filter((f) => /\btext-accent\b|"border-accent font-semibold/.test(code(f)));
     expect(offenders).toEqual([]);

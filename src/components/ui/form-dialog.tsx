@@ -17,7 +17,7 @@ export function IdPicks({ legend, options, value, onChange, error, empty }: { le
             const on = value.includes(o.id);
             return (
               <label key={o.id} className="inline-flex items-start gap-2 text-sm">
-                <input type="checkbox" className="mt-1 accent-[#c2410c]" checked={on} onChange={() => onChange(on ? value.filter((x) => x !== o.id) : [...value, o.id])} />
+                <input type="checkbox" className="mt-1" checked={on} onChange={() => onChange(on ? value.filter((x) => x !== o.id) : [...value, o.id])} />
                 <span>
                   {o.label}
                   {o.hint ? <span className="ml-1 text-xs text-ink-faint">{o.hint}</span> : null}

@@ -330,7 +330,7 @@ function InvestorDigestForm({ setting }: { setting: InvestorDigestSetting }) {
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
       <label className="flex items-center gap-2 text-sm font-medium">
-        <input type="checkbox" className="size-4 accent-[var(--color-accent)]" {...form.register("enabled")} />
+        <input type="checkbox" className="size-4" {...form.register("enabled")} />
         Send me the investor digest of {setting.project.name}
       </label>
       <SelectField label="How often" options={frequencyOptions} error={form.formState.errors.frequency?.message} {...form.register("frequency")} />

@@ -85,7 +85,7 @@ export function ChangeForm({ slug, change, currency, milestones, risks, onClose 
         </>
       ) : null}
       <label className="inline-flex items-center gap-2 text-sm sm:col-span-2">
-        <input type="checkbox" className="accent-[#c2410c]" {...form.register("drawsOnContingency")} />
+        <input type="checkbox"  {...form.register("drawsOnContingency")} />
         Draws on the contingency (moves money from the contingency into the works, leaving the approved budget as it is)
       </label>
       <SelectField label="Audience" options={RECORD_AUDIENCE_OPTIONS} error={errors.audience?.message} {...form.register("audience")} />

@@ -57,7 +57,7 @@ export function BudgetSettingsForm({ slug, p }: { slug: string; p: BudgetPositio
         <legend className="mb-1 text-sm font-medium">Projected final cost: which estimate at completion</legend>
         {p.eac.map((v) => (
           <label key={v.method} className="flex items-start gap-3 border border-rule bg-paper p-3 has-[:checked]:border-2 has-[:checked]:border-ink" data-method={v.method}>
-            <input type="radio" value={v.method} className="mt-1 accent-[#c2410c]" {...form.register("projectedFinalCostMethod")} />
+            <input type="radio" value={v.method} className="mt-1" {...form.register("projectedFinalCostMethod")} />
             <span className="flex flex-col gap-0.5">
               <span className="font-medium">
                 {METHOD_WORD[v.method]} <span className="ml-1 font-mono text-xs text-ink-soft">{v.formula}</span>

@@ -124,7 +124,7 @@ export function EnquiryForm({ project, about: given }: { project: Project; about
           {kinds.map((k) => (
             <label key={k} className={`flex cursor-pointer flex-col border p-3 text-sm ${kind === k ? "border-ink bg-paper" : "border-rule"}`}>
               <span className="flex items-center gap-2 font-medium">
-                <input type="radio" value={k} className="size-4 accent-[var(--color-accent)]" {...form.register("kind")} />
+                <input type="radio" value={k} className="size-4" {...form.register("kind")} />
                 {KIND_CHOICE[k].label}
               </span>
               <span className="mt-1 text-ink-soft">{KIND_CHOICE[k].hint}</span>
@@ -159,7 +159,7 @@ export function EnquiryForm({ project, about: given }: { project: Project; about
           <TextField label="Number of people" type="number" inputMode="numeric" min={1} max={VISIT_MAX_PARTY} step={1} hint={`At most ${VISIT_MAX_PARTY} on one escorted visit.`} error={msg("partySize")} {...form.register("partySize", number)} />
           <div className="flex flex-col gap-1">
             <label className="flex items-start gap-2 text-sm">
-              <input type="checkbox" className="mt-0.5 size-4 accent-[var(--color-accent)]" {...form.register("rulesAccepted")} />
+              <input type="checkbox" className="mt-0.5 size-4" {...form.register("rulesAccepted")} />
               I have read the site rules, and everyone in my party will follow them.
             </label>
             {msg("rulesAccepted") ? (

@@ -126,7 +126,7 @@ const columns = [
       row.getCanSelect() ? (
         <input
           type="checkbox"
-          className="size-4 accent-[#c2410c]"
+          className="size-4"
           aria-label={`Select ${row.original.name}`}
           checked={row.getIsSelected()}
           onChange={row.getToggleSelectedHandler()}

@@ -64,7 +64,7 @@ export function RebaselineForm({ slug, milestones, settings, at, timeZone, edita
             {...form.register("reason")}
           />
           <label className="flex items-start gap-2 text-sm">
-            <input type="checkbox" className="mt-0.5 size-4 accent-[#c2410c]" {...form.register("adoptForecasts")} />
+            <input type="checkbox" className="mt-0.5 size-4" {...form.register("adoptForecasts")} />
             <span>Adopt each milestone's current forecast as its new baseline finish (otherwise the baseline is recorded as it stands)</span>
           </label>
           {preview ? <HealthPreview preview={preview} title="Effect of the new baseline" maxStatuses={4} /> : null}

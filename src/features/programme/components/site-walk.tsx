@@ -86,7 +86,7 @@ function StepForm({ slug, m, milestones, settings, at, onSaved, position }: { sl
         <label className="sr-only" htmlFor={`walk-percent-${m.id}`}>
           Percent complete
         </label>
-        <input id={`walk-percent-${m.id}`} type="range" min={0} max={100} step={5} className="h-10 w-full accent-[#c2410c]" disabled={finished} {...form.register("percentComplete", { valueAsNumber: true })} />
+        <input id={`walk-percent-${m.id}`} type="range" min={0} max={100} step={5} className="h-10 w-full" disabled={finished} {...form.register("percentComplete", { valueAsNumber: true })} />
         <div className="grid grid-cols-4 gap-2">
           {[-10, -5, 5, 10].map((d) => (
             <Button key={d} className={big} disabled={finished} onClick={() => setPercent(percent + d)} aria-label={`${d > 0 ? "Add" : "Take off"} ${Math.abs(d)} percent`}>

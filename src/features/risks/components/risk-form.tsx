@@ -119,7 +119,6 @@ export function RiskForm({ slug, risk, scale, staff, milestones, facility, curre
         <label className="inline-flex items-center gap-2 text-sm">
           <input
             type="checkbox"
-            className="accent-[#c2410c]"
             checked={exposure !== null && exposure !== undefined}
             onChange={(e) => form.setValue("costExposure", e.target.checked ? { min: 0, mostLikely: 0, max: 0, probability: 0.5 } : null, { shouldDirty: true })}
           />

@@ -7,7 +7,7 @@ import { SYSTEM_WORD } from "../../../lib/format.ts";
 function Check({ label, checked, onChange }: { label: string; checked: boolean; onChange: (on: boolean) => void }) {
   return (
     <label className="flex items-center gap-2 py-1 text-sm">
-      <input type="checkbox" className="size-4 accent-[var(--color-accent)]" checked={checked} onChange={(e) => onChange(e.target.checked)} />
+      <input type="checkbox" className="size-4" checked={checked} onChange={(e) => onChange(e.target.checked)} />
       {label}
     </label>
   );
@@ -41,11 +41,11 @@ export function TopicsPicker({
     <fieldset className="flex flex-col gap-2" aria-describedby={error ? `${name}-error` : undefined}>
       <legend className="text-sm font-medium text-ink">Topics</legend>
       <label className="flex items-center gap-2 text-sm">
-        <input type="radio" name={name} className="size-4 accent-[var(--color-accent)]" checked={value === null} onChange={() => onChange(null)} />
+        <input type="radio" name={name} className="size-4" checked={value === null} onChange={() => onChange(null)} />
         Everything about this build
       </label>
       <label className="flex items-center gap-2 text-sm">
-        <input type="radio" name={name} className="size-4 accent-[var(--color-accent)]" checked={value !== null} onChange={() => onChange(chosen)} />
+        <input type="radio" name={name} className="size-4" checked={value !== null} onChange={() => onChange(chosen)} />
         Only the areas and systems I choose
       </label>
       {value !== null ? (
