@@ -1,7 +1,7 @@
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { createColumnHelper, getCoreRowModel, useReactTable } from "@tanstack/react-table";
 import { useSearchParams } from "react-router-dom";
-import { AUDIT_PAGE_SIZE, type AuditEvent } from "#shared/schemas/users.ts";
+import { AUDIT_ACTION_LABELS, AUDIT_PAGE_SIZE, type AuditEvent } from "#shared/schemas/users.ts";
 import { DataTable } from "../../components/ui/data-table.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
 import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
@@ -15,18 +15,7 @@ const filterOf = (params: URLSearchParams) => ({ action: params.get("action") ||
 /** The audit log is for administrators (the route says so); only theirs is primed. */
 export const auditLoader: RouteLoader = (qc) => ({ request }) => primeWhenAllowed(qc, ["admin"], () => qc.ensureQueryData(auditQueryOptions(filterOf(new URL(request.url).searchParams))));
 
-const ACTIONS: Record<string, string> = {
-  sign_in: "Signed in",
-  sign_in_failed: "Sign-in refused",
-  sign_out: "Signed out",
-  invitation_sent: "Invitation sent",
-  invitation_accepted: "Invitation accepted",
-  password_reset_requested: "Reset requested",
-  password_reset: "Password reset",
-  role_changed: "Role changed",
-  user_disabled: "Account disabled",
-  user_enabled: "Account enabled",
-};
+const ACTIONS: Record<string, string> = AUDIT_ACTION_LABELS;
 
 const col = createColumnHelper<AuditEvent>();
 const columns = [
