@@ -1,5 +1,6 @@
 import { zodResolver } from "@hookform/resolvers/zod";
-import { useState } from "react";
+import { useQueryClient, type QueryKey } from "@tanstack/react-query";
+import { useEffect, useRef, useState } from "react";
 import { useForm } from "react-hook-form";
 import type { z } from "zod";
 import type { PostStatus } from "#shared/schemas/publishing.ts";
@@ -24,8 +25,18 @@ type FormValues = z.input<typeof ReviewLinkInputSchema>;
  * link to the revision as it now stands, readable without an account until it expires or is
  * withdrawn. The link is shown once, when made; the list says who opened it and what they answered.
  */
-export function ReviewLinksSheet({ kind, id, status, zone }: { kind: ReviewContentKind; id: number; status: PostStatus; zone: string }) {
+export function ReviewLinksSheet({ kind, id, status, zone, historyKey }: { kind: ReviewContentKind; id: number; status: PostStatus; zone: string; historyKey: QueryKey }) {
   const links = useReviewLinks(kind, id);
+  // An outside reviewer's answer is also an entry of the item's history: when the list shows a new
+  // opening or answer (fetched again on focus, or after a link was made or withdrawn), so does the history.
+  const qc = useQueryClient();
+  const seen = useRef<number | null>(null);
+  const eventCount = links.data ? links.data.links.reduce((n, l) => n + l.events.length + (l.revokedAt ? 1 : 0), 0) : null;
+  useEffect(() => {
+    if (eventCount === null) return;
+    if (seen.current !== null && seen.current !== eventCount) void qc.invalidateQueries({ queryKey: historyKey });
+    seen.current = eventCount;
+  }, [eventCount, historyKey, qc]);
   const create = useCreateReviewLink(kind, id);
   const revoke = useRevokeReviewLink(kind, id);
   const [made, setMade] = useState<{ url: string; copied: boolean } | null>(null);

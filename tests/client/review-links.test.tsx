@@ -4,6 +4,7 @@ import type { ReviewCopy, ReviewLink } from "../../src/shared/schemas/review-lin
 import { reviewKeys } from "../../src/features/review-links/api.ts";
 import { ReviewPage } from "../../src/features/review-links/routes.tsx";
 import { ReviewLinksSheet } from "../../src/lib/review-links-panel.tsx";
+import { reviewLinkKeys } from "../../src/lib/review-links.ts";
 import { jsonAnswer, stubFetch } from "./fetch-stub.ts";
 import { renderWithApp } from "./render.tsx";
 
@@ -49,7 +50,7 @@ describe("the editor's Review links panel", () => {
       "GET /api/posts/41/review-links": { status: 200, body: { links: [LINK] } },
       "POST /api/posts/41/review-links": { status: 201, body: { id: 8, url: URL_ONCE } },
     });
-    renderWithApp(<ReviewLinksSheet kind="post" id={41} status="draft" zone="Europe/London" />);
+    renderWithApp(<ReviewLinksSheet kind="post" id={41} status="draft" zone="Europe/London" historyKey={["posts", "post", 41, "history"]} />);
     const answers = await screen.findByRole("list", { name: "Answers from Rowan Pike" });
     expect(answers.textContent).toContain("▲ Needs changes");
     expect(answers.textContent).toContain("Say “set on its plinth”.");
@@ -72,9 +73,24 @@ describe("the editor's Review links panel", () => {
     expect(calls.find((c) => c.method === "POST")?.body).toEqual({ name: "Sam Vale", email: "sam.vale@example.test", days: 3 });
   });
 
+  it("a new answer in the list makes the item's history stale too (the answer is one of its entries)", async () => {
+    const historyKey = ["posts", "post", 41, "history"] as const;
+    let links = [LINK];
+    stubFetch(({ method, url }) => (method === "GET" && url === "/api/posts/41/review-links" ? jsonAnswer(200, { links }) : jsonAnswer(404, { error: { code: "not_found", message: "no" } })));
+    const { client } = renderWithApp(<ReviewLinksSheet kind="post" id={41} status="draft" zone="Europe/London" historyKey={historyKey} />, { data: [[historyKey, []]] });
+    await screen.findByRole("list", { name: "Answers from Rowan Pike" });
+    expect(client.getQueryState(historyKey)?.isInvalidated).toBe(false);
+    // Fetched again with nothing new: the history is left alone.
+    await client.refetchQueries({ queryKey: reviewLinkKeys.of("post", 41) });
+    expect(client.getQueryState(historyKey)?.isInvalidated).toBe(false);
+    links = [{ ...LINK, events: [{ kind: "answered", verdict: "looks_right", comment: null, revisionNumber: 2, ip: "192.0.2.9", at: "2026-12-02T08:00:00.000Z" }, ...LINK.events] }];
+    await client.refetchQueries({ queryKey: reviewLinkKeys.of("post", 41) });
+    await waitFor(() => expect(client.getQueryState(historyKey)?.isInvalidated).toBe(true));
+  });
+
   it("offers no form for approved work, but still lists the links made before", async () => {
     stubApi({ "GET /api/stories/5/review-links": { status: 200, body: { links: [{ ...LINK, contentKind: "story", contentId: 5, state: "revoked", revokedAt: "2026-12-02T10:00:00.000Z", events: [] }] } } });
-    renderWithApp(<ReviewLinksSheet kind="story" id={5} status="approved" zone="Europe/London" />);
+    renderWithApp(<ReviewLinksSheet kind="story" id={5} status="approved" zone="Europe/London" historyKey={["stories", "story", 5, "history"]} />);
     expect(await screen.findByText(/✕ Withdrawn/)).toBeTruthy();
     expect(screen.queryByRole("button", { name: "Make the link" })).toBeNull();
     expect(screen.queryByRole("button", { name: "Withdraw this link" })).toBeNull();

@@ -25,7 +25,7 @@ import { ReviewLinksSheet } from "../../lib/review-links-panel.tsx";
 import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { officeProjectSlug } from "../../lib/projects.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
-import { postFacilityTagsQueryOptions, postMilestonesQueryOptions, postQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, postRevisionHooks, useCreatePost, usePostMilestones, useSavePost, useWorkflow } from "./api.ts";
+import { postKeys, postFacilityTagsQueryOptions, postMilestonesQueryOptions, postQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, postRevisionHooks, useCreatePost, usePostMilestones, useSavePost, useWorkflow } from "./api.ts";
 import { DraftSuggestionPanel } from "./components/draft-suggestion-panel.tsx";
 import { FixPhotoDialog } from "./components/fix-photo-dialog.tsx";
 import { MediaPickerDialog } from "./components/media-picker.tsx";
@@ -270,7 +270,7 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
                 <ul className="flex flex-col gap-1 text-sm text-bad">{problems.map(problemLine)}</ul>
               </Sheet>
             ) : null}
-            {post ? <ReviewLinksSheet kind="post" id={post.id} status={post.status} zone={zone} /> : null}
+            {post ? <ReviewLinksSheet kind="post" id={post.id} status={post.status} zone={zone} historyKey={postKeys.history(post.id)} /> : null}
             {post ? <RevisionSheets hooks={postRevisionHooks} id={post.id} zone={zone} onRestored={() => draft.setDirty(false)} onRestoreError={(e) => toast.error(e instanceof Error ? e.message : "Not restored.")} /> : null}
           </>
         }

@@ -26,7 +26,7 @@ import { ReviewLinksSheet } from "../../lib/review-links-panel.tsx";
 import { editorStateOf, publishingProblemsOf, publishingWhen } from "../../lib/publishing.ts";
 import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
-import { storiesProjectQueryOptions, storiesProjectsQueryOptions, storyListQueryOptions, storyQueryOptions, storyRevisionHooks, useCreateStory, useSaveStory, useStoryWorkflow } from "./api.ts";
+import { storyKeys, storiesProjectQueryOptions, storiesProjectsQueryOptions, storyListQueryOptions, storyQueryOptions, storyRevisionHooks, useCreateStory, useSaveStory, useStoryWorkflow } from "./api.ts";
 import { StoryPhotoPicker } from "./components/photo-picker.tsx";
 import { StoryItemsEditor, type EditItem, type PickTarget } from "./components/story-items.tsx";
 import { ThenAndNowPanel } from "./components/then-and-now-panel.tsx";
@@ -226,7 +226,7 @@ function StoryForm({ story, slug, me, zone }: { story: StoryDetail | null; slug:
               <p className="text-sm text-ink-soft">Then-and-now pairs become a comparison slider with each photo's capture date; single photos open in a lightbox. Both photos of a pair need capture dates on different days.</p>
             </Sheet>
             {story ? <PressKitSheet slug={slug} storyId={story.id} /> : null}
-            {story ? <ReviewLinksSheet kind="story" id={story.id} status={story.status} zone={zone} /> : null}
+            {story ? <ReviewLinksSheet kind="story" id={story.id} status={story.status} zone={zone} historyKey={storyKeys.history(story.id)} /> : null}
             {story ? (
               <RevisionSheets
                 hooks={storyRevisionHooks}
