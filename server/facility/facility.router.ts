@@ -5,6 +5,7 @@ import {
   BlockPatchInputSchema,
   FacilityEventsQuerySchema,
   FacilityQuerySchema,
+  FacilitySettingsInputSchema,
   FeatureCreateInputSchema,
   FeaturePatchInputSchema,
   SystemCreateInputSchema,
@@ -39,6 +40,10 @@ export function facilityRouter(facility: FacilityService): Router {
     res.json(await facility.projectEvents(slug, range));
   });
 
+  r.put("/projects/:slug/facility/settings", writers(), async (req, res) => {
+    const { slug } = SlugParamSchema.parse(req.params);
+    res.set("Cache-Control", "private, no-store").json(await facility.putSettings(slug, FacilitySettingsInputSchema.parse(req.body), actorOf(req)));
+  });
   r.post("/projects/:slug/facility/blocks", writers(), createInProject(BlockCreateInputSchema, facility.createBlock));
   r.patch("/facility/blocks/:id", writers(), writeEntry(BlockPatchInputSchema, facility.patchBlock));
   r.delete("/facility/blocks/:id", writers(), deleteEntry(facility.deleteBlock));

@@ -3,6 +3,7 @@ import { createFacilityContext, type FacilityDeps, type Reader } from "./facilit
 import { createFeatureUseCases } from "./facility.features.ts";
 import { createFigureUseCases } from "./facility.figures.ts";
 import { createFacilityHistoryUseCases } from "./facility.history.ts";
+import { createFacilitySettingsUseCases } from "./facility.settings.ts";
 import { listMilestoneLinks } from "./facility.repository.ts";
 import { createSystemUseCases } from "./facility.systems.ts";
 import { createFacilityTagUseCases } from "./facility.tags.ts";
@@ -32,6 +33,8 @@ export function createFacilityService(deps: FacilityDeps) {
     ...createUnitUseCases(ctx, figures),
     ...createFeatureUseCases(ctx, figures),
     ...createFacilityHistoryUseCases(ctx),
+    /** `putSettings`: the commissioning level from which a unit carries its load. */
+    ...createFacilitySettingsUseCases(ctx, deps.audit),
     /** `tagSubjects`: a project's blocks and systems with their audiences (photos and updates are tagged with them). */
     ...createFacilityTagUseCases(ctx),
     /** Capacity blocks and plant systems that depend on or link a milestone, by name. */

@@ -106,6 +106,16 @@ export async function updateBudgetSettings(q: Q, id: number, settings: BudgetSet
   await q("projects").where({ id }).update({ contingency_held: settings.contingencyHeld, projected_final_cost_method: settings.projectedFinalCostMethod });
 }
 
+/** The commissioning level from which a unit carries its load (the facility's setting); null when there is no such project. */
+export async function findAvailableFromLevel(q: Q, id: number): Promise<number | null> {
+  const r = await q("projects").where({ id }).first("available_from_level");
+  return r ? (r.available_from_level == null ? 4 : Number(r.available_from_level)) : null;
+}
+
+export async function updateAvailableFromLevel(q: Q, id: number, level: number): Promise<void> {
+  await q("projects").where({ id }).update({ available_from_level: level });
+}
+
 /** The project's chosen hero photograph: the photo (null for none), the point a crop keeps, and the choice's version. */
 export interface HeroChoice {
   mediaId: number | null;

@@ -16,6 +16,8 @@ import {
   listProjects,
   lockProjectRow,
   updateBudgetSettings,
+  findAvailableFromLevel,
+  updateAvailableFromLevel,
   type ProjectSender,
 } from "./projects.repository.ts";
 
@@ -91,6 +93,13 @@ export function createProjectsService(db: Db, opts: { now?: () => Date } = {}) {
     },
     /** Writes the budget settings in the caller's transaction (the budget module records the event and the audit entry). */
     writeBudgetSettings: (trx: Knex.Transaction, id: number, settings: BudgetSettingsInput): Promise<void> => updateBudgetSettings(trx, id, settings),
+    /** The commissioning level from which a unit carries its load, read in the caller's transaction (the facility module writes it). */
+    async availableFromLevel(trx: Knex.Transaction, id: number): Promise<number> {
+      const level = await findAvailableFromLevel(trx, id);
+      if (level === null) throw notFound("That project");
+      return level;
+    },
+    writeAvailableFromLevel: (trx: Knex.Transaction, id: number, level: number): Promise<void> => updateAvailableFromLevel(trx, id, level),
     /** Today's date on site: the programme's "today" is the project's, not the server's. */
     today(project: Pick<Project, "timeZone">): string {
       return dateInZone(now(), project.timeZone);

@@ -177,6 +177,7 @@ const REAL_OBJECT_ROWS: MatrixRow[] = [
   { method: "patch", path: (ids) => `/api/site-areas/${ids.internalSiteArea}`, body: {}, expect: writers(400) },
   { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/facility?at=2026-06-30`, expect: { admin: 200, lead: 200, marketing: 200, investor: 403, anonymous: 403 } },
   { method: "get", path: (ids) => `/api/projects/${ids.facilitySlug}/facility/events`, expect: staffOnly(200) },
+  { method: "put", path: (ids) => `/api/projects/${ids.facilitySlug}/facility/settings`, body: {}, expect: writers(400) },
   { method: "patch", path: (ids) => `/api/facility/blocks/${ids.internalBlock}`, body: {}, expect: writers(400) },
   { method: "patch", path: (ids) => `/api/facility/blocks/${ids.investorBlock}`, body: {}, expect: writers(400) },
   { method: "patch", path: (ids) => `/api/facility/blocks/${ids.publicBlock}`, body: {}, expect: writers(400) },

@@ -16,6 +16,8 @@ import type {
   UnitCreateInput,
   UnitPatchInput,
   UnitStageInput,
+  FacilitySettings,
+  FacilitySettingsInput,
 } from "#shared/schemas/facility.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { api, ApiError } from "../../lib/api-client.ts";
@@ -97,6 +99,9 @@ export const usePatchUnit = (slug: string) =>
   useFacilityWrite(slug, ({ id, patch }: { id: number; patch: UnitPatchInput }) => api.patch<UnitAnswer>(`/api/facility/units/${id}`, patch), (v) => v.id);
 export const useSetUnitStage = (slug: string) =>
   useFacilityWrite(slug, ({ id, input }: { id: number; input: UnitStageInput }) => api.post<UnitAnswer>(`/api/facility/units/${id}/stage`, input), (v) => v.id);
+
+export const usePutFacilitySettings = (slug: string) =>
+  useFacilityWrite(slug, (input: FacilitySettingsInput) => api.put<FacilitySettings>(`/api/projects/${slug}/facility/settings`, input));
 
 export const useCreateFeature = (slug: string) => useFacilityWrite(slug, (input: FeatureCreateInput) => api.post<FeatureAnswer>(`/api/projects/${slug}/facility/features`, input));
 export const usePatchFeature = (slug: string) => useFacilityWrite(slug, ({ id, patch }: { id: number; patch: FeaturePatchInput }) => api.patch<FeatureAnswer>(`/api/facility/features/${id}`, patch));

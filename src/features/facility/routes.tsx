@@ -11,6 +11,7 @@ import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { canEditFacility, facilityMilestonesQueryOptions, facilityProjectQueryOptions, facilityProjectsQueryOptions, facilityQueryOptions } from "./api.ts";
 import { BlockForm } from "./components/block-form.tsx";
+import { CarryLoadSetting } from "./components/carry-load-setting.tsx";
 import { BlockTable } from "./components/block-table.tsx";
 import { FeatureForm } from "./components/feature-form.tsx";
 import { FeatureList } from "./components/feature-list.tsx";
@@ -112,6 +113,7 @@ function FacilityBody({ slug }: { slug: string }) {
         title="Plant systems and their units"
         actions={newButton("system", "New system")}
       >
+        {editable ? <CarryLoadSetting slug={slug} level={facility.availableFromLevel} /> : null}
         <StageKey availableFromLevel={facility.availableFromLevel} className="mb-3" />
         <SystemTable
           systems={facility.systems}

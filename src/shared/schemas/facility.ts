@@ -416,3 +416,20 @@ export const FACILITY_ANSWERS = {
   feature: FeatureAnswerSchema,
   event: FacilityEventSchema,
 } as const;
+
+/**
+ * PUT /api/projects/:slug/facility/settings (leads and admins): the commissioning level from which
+ * a unit counts as carrying its load. L3 (started up) at the earliest, L5 (integrated systems test)
+ * at the latest; L4 (functional performance tested) unless the lead says otherwise.
+ */
+export const FacilitySettingsInputSchema = z.strictObject({
+  availableFromLevel: z
+    .number({ error: "must be a commissioning level: 3, 4 or 5" })
+    .int("must be a commissioning level: 3, 4 or 5")
+    .min(3, "must be L3 or later: a unit not yet started up carries no load")
+    .max(5, "must be L5 at the latest: there is no level after the integrated systems test"),
+});
+export type FacilitySettingsInput = z.infer<typeof FacilitySettingsInputSchema>;
+/** The answer: the setting as it now stands. */
+export const FacilitySettingsSchema = z.object({ availableFromLevel: z.number() });
+export type FacilitySettings = z.infer<typeof FacilitySettingsSchema>;

@@ -80,6 +80,7 @@ export const AUDIT_ACTION_LABELS = {
   facility_feature_created: "Site feature added",
   facility_feature_updated: "Site feature changed",
   facility_feature_deleted: "Site feature deleted",
+  facility_settings_changed: "Commissioning level for carrying load changed",
   site_area_created: "Site plan area drawn",
   site_area_updated: "Site plan area changed",
   site_area_deleted: "Site plan area removed",
