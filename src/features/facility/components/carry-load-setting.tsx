@@ -6,10 +6,11 @@ import { SelectField } from "../../../components/ui/field.tsx";
 import { applyApiError } from "../../../lib/format.ts";
 import { usePutFacilitySettings } from "../api.ts";
 
+/** The levels a unit may carry load from, in the plant key's own words (unit-shapes.tsx). */
 const LEVELS = [
-  { value: "3", label: "L3 — started up" },
-  { value: "4", label: "L4 — functional performance tested" },
-  { value: "5", label: "L5 — integrated systems tested" },
+  { value: "3", label: "L3 — installed and started" },
+  { value: "4", label: "L4 — functional test passed" },
+  { value: "5", label: "L5 — integrated systems test passed" },
 ];
 
 /**
