@@ -250,6 +250,12 @@ export function createPostsService(deps: PostsDeps) {
     return pictures;
   }
 
+  /** Published rows for digests (read outside the office): a cover no longer cleared is left out, as on the page (decision 070). */
+  async function withLoadableCovers<T extends { coverMediaId: number | null }>(rows: T[]): Promise<T[]> {
+    const loadable = await loadableBy("public", rows.flatMap((r) => (r.coverMediaId ? [r.coverMediaId] : [])));
+    return rows.map((r) => (r.coverMediaId && !loadable.has(r.coverMediaId) ? { ...r, coverMediaId: null } : r));
+  }
+
   /** Rows of one project as summaries for a reader. */
   async function summaries(projectId: number, rows: readonly PostListRecord[], viewer: Viewer): Promise<PostSummary[]> {
     const ids = rows.map((r) => r.id);
@@ -458,15 +464,32 @@ export function createPostsService(deps: PostsDeps) {
       const project = await projects.get(slug);
       const posts = await listPublicPosts(db, project.id, limit);
       const updated = await latestPublicChange(db, project.id);
-      const [tags, subjects] = await Promise.all([tagsFor(db, posts.map((p) => p.id)), facility.tagSubjects(project.id)]);
-      return { project, updated, posts: posts.map((p) => ({ ...p, tags: tagsForReader(tags.get(p.id) ?? [], subjects, "public") })) };
+      const [tags, subjects, loadable] = await Promise.all([
+        tagsFor(db, posts.map((p) => p.id)),
+        facility.tagSubjects(project.id),
+        loadableBy("public", posts.flatMap((p) => [...(p.coverMediaId ? [p.coverMediaId] : []), ...imageIdsOf(p.body)])),
+      ]);
+      // A photo sent back to review since publication is left out of the feed as of the page (decision 070).
+      return {
+        project,
+        updated,
+        posts: posts.map((p) => ({
+          ...p,
+          coverMediaId: p.coverMediaId && loadable.has(p.coverMediaId) ? p.coverMediaId : null,
+          html: withoutPhotos(p.html, imageIdsOf(p.body).filter((id) => !loadable.has(id))),
+          tags: tagsForReader(tags.get(p.id) ?? [], subjects, "public"),
+        })),
+      };
     },
 
     /** Published posts of a project in these audiences with `publishedAt` in [from, before), oldest first, with their tags (digests). */
-    publishedBetween: (projectId: number, audiences: readonly Audience[], from: Date, before: Date) => listPublishedBetween(db, projectId, audiences, from, before),
+    publishedBetween: async (projectId: number, audiences: readonly Audience[], from: Date, before: Date) => withLoadableCovers(await listPublishedBetween(db, projectId, audiences, from, before)),
 
     /** A published post of any audience, with its tags, or null: the caller decides who may read it (digests). */
-    findPublished: (id: number) => findPublishedPost(db, id),
+    findPublished: async (id: number) => {
+      const post = await findPublishedPost(db, id);
+      return post ? ((await withLoadableCovers([post]))[0] ?? null) : null;
+    },
 
     /** Public and investor posts published at or after `since`, oldest first (as-it-happens digests). */
     publishedSince: (since: Date) => listPublishedSince(db, since),

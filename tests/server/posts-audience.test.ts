@@ -178,5 +178,16 @@ describe("a photo sent back to review after publication", () => {
     const staff = await as.lead.agent.get(page).expect(200);
     expect(staff.body.html).toContain(inline.urls[0]);
     expect(staff.body.cover?.id).toBe(cover.id);
+
+    // The feed gives the same as the page; a digest assembled now has no cover for it.
+    const feed = (await visitor.agent.get(`/feed/${project.slug}.atom`).expect(200)).text;
+    expect(feed).toContain("Security line goes in");
+    for (const url of inline.urls) expect(feed).not.toContain(url);
+    expect(feed).not.toContain("Gatehouse camera positions");
+    expect(feed).toContain(`&lt;figure class="post-image post-image-missing" data-media-id="${inline.id}"&gt;&lt;figcaption&gt;This photo is not available.&lt;/figcaption&gt;`);
+    expect((await t.plumbline.posts.findPublished(res.body.id))?.coverMediaId).toBeNull();
+    const week = await t.plumbline.posts.publishedBetween(project.id, ["public"], new Date(Date.now() - 86_400_000), new Date(Date.now() + 86_400_000));
+    expect(week.find((p) => p.id === res.body.id)?.coverMediaId).toBeNull();
+    expect(week.some((p) => p.coverMediaId !== null)).toBe(true);
   });
 });
