@@ -2,7 +2,7 @@
 // test's scenarios at full size with every figure printed, and with --bench the throughput of
 // one against two web processes and one against two workers.
 import { readdirSync, readFileSync } from "node:fs";
-import http from "node:http";
+import { createRequire } from "node:module";
 import { cpus } from "node:os";
 import { LAYOUT_PROJECT, startLayout, type Layout } from "./layout/layout.ts";
 import { digestOnce, scheduledPostOnce, sessionAcrossProcesses, uploadsProcessedOnce, webKilledUnderLoad } from "./layout/scenarios.ts";
@@ -53,36 +53,20 @@ function cpuReport(before: Record<string, number>, after: Record<string, number>
   return `CPU s per 1,000 requests: ${per}; ${fixed((total / (wallSeconds * cpus().length)) * 100, 0)} % of ${cpus().length} cores busy`;
 }
 
-/** Requests per second and p99 of `concurrency` keep-alive loops over `paths` for `seconds`. */
+// autocannon (the load generator of tests/bench/public-pages.bench.ts) ships no type declarations;
+// this is the part of its API used here.
+type Autocannon = (opts: {
+  url: string;
+  connections: number;
+  duration: number;
+  requests: Array<{ method: "GET"; path: string; headers?: Record<string, string> }>;
+}) => Promise<{ requests: { average: number; total: number }; latency: { p99: number }; non2xx: number; errors: number; timeouts: number }>;
+const autocannon = createRequire(import.meta.url)("autocannon") as Autocannon;
+
+/** Requests per second and p99 of `concurrency` keep-alive connections cycling through `paths` for `seconds` (autocannon). */
 async function load(url: string, paths: string[], seconds: number, concurrency: number, headers: Record<string, string> = {}): Promise<{ rps: number; p99: number; errors: number; requests: number; seconds: number }> {
-  const agent = new http.Agent({ keepAlive: true, maxSockets: concurrency });
-  const target = new URL(url);
-  const latencies: number[] = [];
-  let errors = 0;
-  const end = Date.now() + seconds * 1000;
-  const one = (path: string) =>
-    new Promise<boolean>((resolve) => {
-      const req = http.get({ host: target.hostname, port: target.port, path, agent, headers }, (res) => {
-        res.resume();
-        res.on("end", () => resolve(res.statusCode === 200));
-      });
-      req.on("error", () => resolve(false));
-    });
-  const started = Date.now();
-  await Promise.all(
-    Array.from({ length: concurrency }, async (_, i) => {
-      for (let n = i; Date.now() < end; n += 1) {
-        const t = performance.now();
-        const ok = await one(paths[n % paths.length]!);
-        latencies.push(performance.now() - t);
-        if (!ok) errors += 1;
-      }
-    }),
-  );
-  agent.destroy();
-  latencies.sort((a, b) => a - b);
-  const took = (Date.now() - started) / 1000;
-  return { rps: latencies.length / took, p99: latencies[Math.floor(latencies.length * 0.99)] ?? 0, errors, requests: latencies.length, seconds: took };
+  const r = await autocannon({ url, connections: concurrency, duration: seconds, requests: paths.map((path) => ({ method: "GET", path, headers })) });
+  return { rps: r.requests.average, p99: r.latency.p99, errors: r.non2xx + r.errors + r.timeouts, requests: r.requests.total, seconds };
 }
 
 async function bench(layout: Layout): Promise<void> {

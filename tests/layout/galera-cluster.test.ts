@@ -84,8 +84,9 @@ describe("a three-node Galera cluster behind HAProxy (deploy/haproxy.cfg)", () =
   it("starts three nodes that each see a Synced cluster of three, with interleaved auto-increments", async () => {
     const states = await Promise.all(cluster.nodes.map((n) => n.status()));
     expect(states).toEqual(cluster.nodes.map(() => ({ clusterSize: 3, localState: "Synced", ready: true })));
-    // Galera steps each node's auto-increments by the cluster size, from its own offset, so two
-    // nodes never hand out the same id.
+    // Source: MariaDB Galera Cluster documentation, wsrep_auto_increment_control (on by default): each
+    // node's auto_increment_increment is the cluster size and its offset its own, so two nodes never
+    // hand out the same id. "Synced" and wsrep_ready: the wsrep status variables of the same documentation.
     const steps = await Promise.all(cluster.nodes.map((n) => cluster.rootQuery<{ inc: number; off: number }>(n.index, "SELECT @@auto_increment_increment AS inc, @@auto_increment_offset AS off")));
     expect(steps.map((r) => Number(r[0]?.inc))).toEqual([3, 3, 3]);
     expect(new Set(steps.map((r) => Number(r[0]?.off))).size).toBe(3);

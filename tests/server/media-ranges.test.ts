@@ -19,6 +19,7 @@ beforeAll(async () => {
 });
 
 describe("byte ranges of private files, streamed by the app", () => {
+  // Source: RFC 9110 §14.1.2 (byte ranges, first-last inclusive), §14.4 (Content-Range), §15.3.7 (206 Partial Content).
   it("the original: Accept-Ranges, 206 with Content-Range and exactly the slice asked for", async () => {
     const whole = await marketing.agent.get(`/api/media/${photo.id}/original`).buffer(true).expect(200);
     expect(whole.headers["accept-ranges"]).toBe("bytes");
@@ -31,6 +32,7 @@ describe("byte ranges of private files, streamed by the app", () => {
     expect(res.headers["cache-control"]).toBe("private, no-store");
   });
 
+  // Source: RFC 9110 §14.1.2: "bytes=-N" is the last N bytes; "bytes=N-" runs to the end.
   it("a suffix range and an open-ended one", async () => {
     const tail = await marketing.agent.get(`/api/media/${photo.id}/original`).set("Range", "bytes=-64").buffer(true).expect(206);
     expect((tail.body as Buffer).equals(original.subarray(original.length - 64))).toBe(true);
@@ -39,6 +41,7 @@ describe("byte ranges of private files, streamed by the app", () => {
     expect((rest.body as Buffer).equals(original.subarray(original.length - 10))).toBe(true);
   });
 
+  // Source: RFC 9110 §15.5.17 (416 with "Content-Range: bytes */length") and §14.2 (a Range header that is not understood is ignored).
   it("416 with the size for a range wholly outside the file; the whole file for a malformed header", async () => {
     const res = await marketing.agent.get(`/api/media/${photo.id}/original`).set("Range", `bytes=${original.length + 10}-${original.length + 20}`).expect(416);
     expect(res.headers["content-range"]).toBe(`bytes */${original.length}`);
@@ -59,6 +62,7 @@ describe("byte ranges of private files, streamed by the app", () => {
     await visitor.agent.get(v.url).set("Range", "bytes=0-99").expect(404);
   });
 
+  // Source: RFC 9110 §13.1.5: If-Range that does not match the current ETag makes the server send the whole representation.
   it("If-Range with another ETag sends the whole file", async () => {
     const v = photo.variants.find((x) => x.format === "webp")!;
     const res = await marketing.agent.get(v.url).set("Range", "bytes=0-9").set("If-Range", '"0000000000000000"').buffer(true).expect(200);

@@ -30,6 +30,7 @@ function checkPresigned(location: string) {
   const url = new URL(location);
   expect(url.origin).toBe(s3.endpoint);
   expect(url.searchParams.get("X-Amz-Signature")).toMatch(/^[0-9a-f]{64}$/);
+  // Source: AWS Signature Version 4, query-string authentication: X-Amz-Expires is the URL's lifetime in seconds (at most 604800).
   expect(Number(url.searchParams.get("X-Amz-Expires"))).toBeGreaterThan(0);
   expect(Number(url.searchParams.get("X-Amz-Expires"))).toBeLessThanOrEqual(120);
   return url;
