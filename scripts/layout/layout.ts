@@ -51,7 +51,8 @@ export interface Layout {
   s3: FakeS3;
   /** The app's own view of the S3 store (the same settings), for checks. */
   s3Storage: MediaStorage & { close(): void };
-  sink: MailSink;
+  /** The SMTP sink, with its warnings and errors (JSON lines, the latest ones). */
+  sink: MailSink & { log: string[] };
   webs: AppProcess[];
   workers: AppProcess[];
   /** The settings every app process runs with. */
@@ -115,7 +116,13 @@ export async function startLayout(opts: LayoutOptions = {}): Promise<Layout> {
       }
     });
     // The sink stands in for a hosted provider; it records what it accepts in the database, as in `npm start`.
-    const sink = await startMailSink({ db, logger: pino({ level: "silent" }), host: "127.0.0.1", port: 0 });
+    // Its own pool, so the checks' probes never queue behind the messages it stores (eight at
+    // once from the two workers), and its warnings kept for a failing scenario to print.
+    const sinkDb = createDb(databaseUrl, { max: 10 }, pino({ level: "silent" }));
+    cleanups.push(() => sinkDb.destroy());
+    const sinkLog: string[] = [];
+    const sinkLogger = pino({ level: "warn" }, { write: (line: string) => void (sinkLog.push(line.trim()) > 200 && sinkLog.splice(0, 100)) });
+    const sink = Object.assign(await startMailSink({ db: sinkDb, logger: sinkLogger, host: "127.0.0.1", port: 0 }), { log: sinkLog });
     cleanups.push(() => sink.close());
     const url = `http://127.0.0.1:${haproxy.webPort}`;
     const env: Record<string, string> = {

@@ -60,10 +60,14 @@ async function expectStatus(res: Response, status: number, what: string): Promis
 
 export async function until<T>(what: string, probe: () => Promise<T | null | false | undefined>, timeoutMs = 60_000, everyMs = 100): Promise<T> {
   const started = Date.now();
+  let lastError: unknown = null;
   for (;;) {
-    const v = await probe().catch(() => null);
+    const v = await probe().catch((e: unknown) => ((lastError = e), null));
     if (v) return v;
-    if (Date.now() - started > timeoutMs) throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}`);
+    if (Date.now() - started > timeoutMs) {
+      const why = lastError ? ` (the last check failed: ${lastError instanceof Error ? lastError.message : String(lastError)})` : "";
+      throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}${why}`);
+    }
     await new Promise((r) => setTimeout(r, everyMs));
   }
 }
@@ -236,10 +240,11 @@ export async function webKilledUnderLoad(layout: Layout, opts: { seconds?: numbe
   const loops = Array.from({ length: opts.concurrency ?? 6 }, async (_, i) => {
     while (Date.now() < end) {
       const path = i % 2 ? `/api/projects/${LAYOUT_PROJECT}` : `/api/projects/${LAYOUT_PROJECT}/posts`;
-      const ok = await fetch(`${layout.url}${path}`, { signal: AbortSignal.timeout(5_000) }).then(
-        async (r) => (await r.arrayBuffer(), r.status === 200),
-        () => false,
-      );
+      // A connection cut mid-answer by the kill rejects while the body is read, not only at
+      // fetch(): both count as a failed answer, never as an error of the test.
+      const ok = await fetch(`${layout.url}${path}`, { signal: AbortSignal.timeout(5_000) })
+        .then(async (r) => (await r.arrayBuffer(), r.status === 200))
+        .catch(() => false);
       results.push({ at: Date.now(), ok });
     }
   });
@@ -332,13 +337,24 @@ export async function digestOnce(layout: Layout, opts: { subscribers?: number; k
   let recoveredAfter: number | null = null;
   let rejoinedAfter: number | null = null;
   let stopped: { index: number } | null = null;
+  const progress = async () => {
+    const run_ = await layout.db("digest_runs").where({ id: run.id }).first("status").catch(() => null);
+    const byStatus = await layout.db("digest_deliveries").where({ run_id: run.id }).groupBy("status").select("status").count({ n: "*" }).catch(() => []);
+    const tails = layout.workers.map((w) => `${w.name} (${w.alive() ? "running" : "stopped"}):\n${w.log.slice(-8).map((l) => JSON.stringify(l)).join("\n")}`);
+    const db = (await layout.haproxy.servers().catch(() => [])).map((x) => `${x.backend}/${x.server} ${x.status}`).join(", ");
+    return `run ${JSON.stringify(run_)}; deliveries ${JSON.stringify(byStatus)}; HAProxy ${db}\nsink: ${layout.sink.log.slice(-5).join("\n") || "no warnings"}\n${tails.join("\n")}`;
+  };
+  const waitFor = <T,>(what: string, probe: () => Promise<T | null | false | undefined>, timeoutMs: number, everyMs: number) =>
+    until(what, probe, timeoutMs, everyMs).catch(async (e: unknown) => {
+      throw new Error(`${e instanceof Error ? e.message : String(e)}\n${await progress()}`);
+    });
   if (opts.killWorker) {
-    await until("a quarter of the digest sent", async () => (await sent()) >= total / 4, 120_000, 50);
+    await waitFor("a quarter of the digest sent", async () => (await sent()) >= total / 4, 120_000, 50);
     sentAtWorkerKill = await sent();
     await layout.workers[0]!.kill("SIGKILL");
   }
   if (opts.stopWriter) {
-    await until("half of the digest sent", async () => (await sent()) >= total / 2, 120_000, 50);
+    await waitFor("half of the digest sent", async () => (await sent()) >= total / 2, 120_000, 50);
     writerBefore = await writerPort(layout);
     const node = layout.cluster.nodes.find((n) => n.port === writerBefore)!;
     sentAtWriterStop = await sent();
@@ -346,11 +362,11 @@ export async function digestOnce(layout: Layout, opts: { subscribers?: number; k
     stopped = { index: node.index };
     await node.stop();
     // Recovered: the test's own pool (like the app's) reaches the next node, and deliveries are recorded again.
-    await until("deliveries recorded again after the writer stopped", async () => (await sent()) > sentAtWriterStop!, 120_000, 100);
+    await waitFor("deliveries recorded again after the writer stopped", async () => (await sent()) > sentAtWriterStop!, 120_000, 100);
     recoveredAfter = (Date.now() - stoppedAt) / 1000;
     writerAfter = await writerPort(layout);
   }
-  const done = await until("the digest run finished", async () => {
+  const done = await waitFor("the digest run finished", async () => {
     const r = await layout.db("digest_runs").where({ id: run.id }).first("status");
     return r?.status === "done" ? r : null;
   }, 240_000, 200);
