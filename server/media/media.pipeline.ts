@@ -1,5 +1,6 @@
 import { createHash } from "node:crypto";
 import { availableParallelism } from "node:os";
+import { parse as parseIcc } from "icc";
 import sharp, { type AvifOptions, type JpegOptions, type Sharp, type SharpOptions, type WebpOptions } from "sharp";
 import { runLimited } from "../core/run-limited.ts";
 import { fingerprintOf } from "./media.fingerprint.ts";
@@ -194,6 +195,9 @@ export async function makeDerivatives(input: string | Buffer, options: Derivativ
   };
 
   const header = await sharp(input, inputOptions).metadata();
+  // A profile that already says sRGB needs no transform into sRGB: skipping it saves a pass
+  // over every decoded pixel (about 145 ms on a 24 MP photo shrunk to 6 MP on load; decision 072).
+  if (isSrgbProfile(header.icc)) inputOptions.ignoreIcc = true;
   const orientation = header.orientation ?? 1;
   const swap = orientation >= 5 && orientation <= 8;
   const width = swap ? header.height : header.width;
@@ -241,6 +245,22 @@ export async function makeDerivatives(input: string | Buffer, options: Derivativ
   ]);
   variants.sort((a, b) => b.width - a.width || formats.indexOf(a.format) - formats.indexOf(b.format));
   return { width, height, placeholder, dominantColor, focal, variants, fingerprint };
+}
+
+/**
+ * Whether an embedded ICC profile is an sRGB display profile, by its header and description
+ * ("sRGB", "sRGB IEC61966-2.1", "sRGB IEC61966-2-1 black scaled", …), so that the pixels are
+ * sRGB as stored. Any other profile (Display P3, Adobe RGB, CMYK) or one that does not parse is
+ * converted as before.
+ */
+export function isSrgbProfile(icc: Buffer | undefined): boolean {
+  if (!icc) return false;
+  try {
+    const p = parseIcc(icc);
+    return p.colorSpace === "RGB" && p.deviceClass === "Monitor" && /^sRGB\b/i.test(p.description ?? "");
+  } catch {
+    return false;
+  }
 }
 
 function checkFocal(focal: FocalPoint): FocalPoint {

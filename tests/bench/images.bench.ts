@@ -7,7 +7,7 @@
  * Prints wall times (median of the runs), their ratio, the bytes of each set, the SSIM of
  * every output against a reference downscale and the peak resident memory of each process.
  * Then the same photo tagged EXIF orientation 6 (how phones store a portrait), timed against
- * the untagged one. A benchmark, not a test: it asserts nothing and never fails on a missed
+ * the same picture stored upright and against the landscape photo. A benchmark, not a test: it asserts nothing and never fails on a missed
  * target; it says which targets were met (issue 14: a rotated photo at most 1.2× the time of
  * an unrotated one, peak RSS ≤ 400 MB, bytes at most ImageMagick's at equal SSIM output by output).
  *
@@ -394,19 +394,29 @@ async function main(): Promise<void> {
     // so it should cost about what the landscape one does (decision 058).
     const portrait = path.join(work, "site-24mp-portrait.jpg");
     await sharp(input).withMetadata({ orientation: 6 }).jpeg({ quality: 92 }).toFile(portrait);
-    // Each portrait run is paired with an untagged run just before it, so both meet the same
-    // load on the machine; the ratio is of those pairs' medians.
+    // The same picture with its pixels stored upright (4000 × 6000, no orientation tag) and the
+    // same metadata otherwise (sharp's withMetadata adds an sRGB profile to both, as phones
+    // embed one): the same derivative set as the tagged photo, so the two differ only by the
+    // turn. The landscape photo makes a different set (about 9 % fewer pixels) and carries no
+    // profile, so against it the ratio also counts those.
+    const upright = path.join(work, "site-24mp-upright.jpg");
+    await sharp(input).rotate(90).withMetadata().jpeg({ quality: 92 }).toFile(upright);
+    // Each tagged run is run beside an upright and a landscape one, so all meet the same load on
+    // the machine; the ratios are of the medians.
     const portraitRuns: Measured[] = [];
     const portraitMs: number[] = [];
+    const uprightMs: number[] = [];
     const pairedMs: number[] = [];
     const pipelineMsOf = (m: Measured) => (JSON.parse(m.stdout.trim().split("\n").pop() ?? "{}") as { pipelineMs: number }).pipelineMs;
     for (let run = 0; run < runs; run += 1) {
       pairedMs.push(pipelineMsOf(await runMeasured(process.execPath, ["--import", "tsx", THIS_FILE, "--child", input, path.join(work, "paired")])));
+      uprightMs.push(pipelineMsOf(await runMeasured(process.execPath, ["--import", "tsx", THIS_FILE, "--child", upright, path.join(work, "upright")])));
       const r = await runMeasured(process.execPath, ["--import", "tsx", THIS_FILE, "--child", portrait, path.join(work, "portrait")]);
       portraitRuns.push(r);
       portraitMs.push(pipelineMsOf(r));
     }
     const portraitWall = median(portraitMs);
+    const uprightWall = median(uprightMs);
     const pairedWall = median(pairedMs);
     const portraitRss = Math.max(...portraitRuns.map((m) => m.peakRssKb ?? 0)) || null;
     const portraitWidths = readdirSync(path.join(work, "portrait"))
@@ -414,7 +424,8 @@ async function main(): Promise<void> {
       .map((f) => f.replace(/\.jpg$/, ""))
       .sort((a, b) => Number(a.split("x")[0]) - Number(b.split("x")[0]));
     console.log(`\n  portrait       the same photo tagged EXIF orientation 6 (4000 × 6000 displayed; set ${portraitWidths.join(", ")})`);
-    console.log(`                 Plumbline ${portraitWall.toFixed(0)} ms against ${pairedWall.toFixed(0)} ms untagged, run in pairs = ${(portraitWall / pairedWall).toFixed(2)}×; peak RSS ${mb(portraitRss)} against ${mb(rssOurs)}`);
+    console.log(`                 Plumbline ${portraitWall.toFixed(0)} ms against ${uprightWall.toFixed(0)} ms for the picture stored upright = ${(portraitWall / uprightWall).toFixed(2)}× (the cost of the turn)`);
+    console.log(`                 and against ${pairedWall.toFixed(0)} ms for the landscape photo = ${(portraitWall / pairedWall).toFixed(2)}× (turn and the larger set); peak RSS ${mb(portraitRss)} against ${mb(rssOurs)}`);
 
     const verdict = (ok: boolean) => (ok ? "met" : "NOT met");
     const fullBytes = total(full);
@@ -426,7 +437,10 @@ async function main(): Promise<void> {
         `(as made: ${(bytesOurs / fullBytes).toFixed(2)}× at mean SSIM ${ssimOurs.toFixed(4)} vs ${fullSsim.toFixed(4)}; at equal SSIM output by output: ${Number.isNaN(matchedRatio) ? "n/a" : `${matchedRatio.toFixed(2)}×`})`,
     );
     console.log(`  bytes ≤ IM full's at equal SSIM, output by output:   ${verdict(matchedByFormat.length > 0 && matchedByFormat.every((r) => r.ratio <= 1))} (${matchedByFormat.map((r) => `${r.format} ${r.ratio.toFixed(2)}×`).join(", ") || "n/a"})`);
-    console.log(`  portrait (EXIF 6) ≤ 1.2× the time of untagged:        ${verdict(portraitWall / pairedWall <= 1.2)} (${portraitWall.toFixed(0)} ms against ${pairedWall.toFixed(0)} ms = ${(portraitWall / pairedWall).toFixed(2)}×)`);
+    console.log(
+      `  portrait (EXIF 6) ≤ 1.2× the time of untagged:        ${verdict(portraitWall / uprightWall <= 1.2)} against the picture stored upright (${portraitWall.toFixed(0)} ms against ${uprightWall.toFixed(0)} ms = ${(portraitWall / uprightWall).toFixed(2)}×); ` +
+        `${verdict(portraitWall / pairedWall <= 1.2)} against the landscape photo (${(portraitWall / pairedWall).toFixed(2)}×)`,
+    );
     console.log(`  peak RSS ≤ 400 MB:                                   ${verdict(rssOurs !== null && rssOurs <= 400 * 1024 && (portraitRss ?? Infinity) <= 400 * 1024)} (landscape ${mb(rssOurs)}, portrait ${mb(portraitRss)})`);
     if (keep) console.log(`\nOutputs kept in ${work}`);
   } finally {

@@ -5,7 +5,7 @@ import path from "node:path";
 import exifr from "exifr";
 import sharp from "sharp";
 import { afterAll, beforeEach, describe, expect, it, vi } from "vitest";
-import { DEFAULT_FORMATS, makeDerivatives, planWidths, type Variant } from "../../server/media/media.pipeline.ts";
+import { DEFAULT_FORMATS, isSrgbProfile, makeDerivatives, planWidths, type Variant } from "../../server/media/media.pipeline.ts";
 import { canDecodeHeic, probeImage } from "../../server/media/media.probe.ts";
 import { POST_COVER_SIZES, POST_PHOTO_SIZES, srcSetOf } from "../../src/shared/domain/picture-sizes.ts";
 import {
@@ -379,6 +379,52 @@ describe("makeDerivatives: every metadata block is stripped", () => {
         expect(Math.abs((sample[c] ?? 0) - (expected[c] ?? 0)), `${variant.format} channel ${c}: ${sample} vs ${expected}`).toBeLessThanOrEqual(4);
       }
     }
+  });
+});
+
+describe("photos whose embedded profile is sRGB (decision 072)", () => {
+  const profileOf = async (name: string) =>
+    (await sharp({ create: { width: 2, height: 2, channels: 3, background: "#808080" } }).withIccProfile(name).jpeg().toBuffer().then((b) => sharp(b).metadata())).icc as Buffer;
+
+  it("tells an sRGB display profile from Display P3, CMYK, a broken one and none", async () => {
+    expect(isSrgbProfile(await profileOf("srgb"))).toBe(true);
+    expect(isSrgbProfile(await profileOf("p3"))).toBe(false);
+    expect(isSrgbProfile(await profileOf("cmyk"))).toBe(false);
+    expect(isSrgbProfile(Buffer.from("not an ICC profile at all"))).toBe(false);
+    expect(isSrgbProfile(undefined)).toBe(false);
+  });
+
+  it("are made from the pixels as stored: every derivative is the same, byte for byte, as the untagged photo's", async () => {
+    const stored: Rgb = [200, 120, 90];
+    const tagged = await makeJpegTaggedWith(await profileOf("srgb"), stored, 64, 48);
+    // The same JPEG data without the profile (makeJpegTaggedWith's own first step).
+    const plain = await sharp({ create: { width: 64, height: 48, channels: 3, background: { r: 200, g: 120, b: 90 } } })
+      .jpeg({ quality: 100, chromaSubsampling: "4:4:4" })
+      .toBuffer();
+    expect((await sharp(tagged).metadata()).icc).toBeDefined();
+    const [fromTagged, fromPlain] = await Promise.all([makeDerivatives(tagged), makeDerivatives(plain)]);
+    expect(fromTagged.variants.map((v) => `${v.width}x${v.height}.${v.format}`)).toEqual(fromPlain.variants.map((v) => `${v.width}x${v.height}.${v.format}`));
+    fromTagged.variants.forEach((v, i) => expect(v.hash, `${v.width} ${v.format}`).toBe(fromPlain.variants[i]!.hash));
+    // Source: IEC 61966-2-1 — values in an sRGB-tagged file are sRGB values, shown as stored.
+    const sample = await pixelAt(fromTagged.variants.find((v) => v.format === "jpeg")!.buffer, 16, 16);
+    stored.forEach((c, i) => expect(Math.abs((sample[i] ?? 0) - c)).toBeLessThanOrEqual(3));
+  });
+
+  it("skip the transform by the profile's own name: P3 primaries under the name sRGB come out as stored, not converted", async () => {
+    // The Display P3 profile with its description (UTF-16BE in its 'mluc' tag) renamed from
+    // "sP3C" to "sRGB", the same length: only the name says sRGB.
+    const p3 = await profileOf("p3");
+    const at = p3.indexOf(Buffer.from("s\0P\x003\0C", "latin1"));
+    expect(at).toBeGreaterThan(0);
+    const renamed = Buffer.from(p3);
+    renamed.write("s\0R\0G\0B", at, "latin1");
+    expect(isSrgbProfile(renamed)).toBe(true);
+    const stored: Rgb = [200, 120, 90];
+    const result = await makeDerivatives(await makeJpegTaggedWith(renamed, stored));
+    const sample = await pixelAt(result.variants.find((v) => v.format === "jpeg")!.buffer, 16, 16);
+    // Converted as P3 the red would be well above 200 (the P3 test above); kept as stored it is not.
+    expect(Math.abs((sample[0] ?? 0) - stored[0])).toBeLessThanOrEqual(3);
+    expect(Math.abs((sample[0] ?? 0) - displayP3ToSrgb(stored)[0])).toBeGreaterThan(5);
   });
 });
 
