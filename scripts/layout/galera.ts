@@ -4,9 +4,9 @@
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { cpSync, existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
-import net from "node:net";
 import path from "node:path";
 import mysql from "mysql2/promise";
+import { freePorts } from "./ports.ts";
 
 export interface GaleraNodeStatus {
   /** wsrep_cluster_size as this node sees it; 0 when the node does not answer. */
@@ -91,20 +91,6 @@ function killAllOnExit(): void {
     };
     process.on(signal, onSignal);
   }
-}
-
-/** Free loopback ports, all held at once so no two are the same. */
-export async function freePorts(count: number): Promise<number[]> {
-  const servers = await Promise.all(
-    Array.from({ length: count }, () => new Promise<net.Server>((resolve, reject) => {
-      const s = net.createServer();
-      s.once("error", reject);
-      s.listen(0, "127.0.0.1", () => resolve(s));
-    })),
-  );
-  const ports = servers.map((s) => (s.address() as net.AddressInfo).port);
-  await Promise.all(servers.map((s) => new Promise((resolve) => s.close(resolve))));
-  return ports;
 }
 
 export async function waitFor<T>(what: string, probe: () => Promise<T | undefined>, timeoutMs: number, everyMs = 100): Promise<T> {

@@ -6,7 +6,8 @@ import { mkdirSync, rmSync } from "node:fs";
 import net from "node:net";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import { freePorts, killGroup, trackChild, waitFor } from "./galera.ts";
+import { killGroup, trackChild, waitFor } from "./galera.ts";
+import { freePorts } from "./ports.ts";
 
 export const HAPROXY_CONFIG = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../../deploy/haproxy.cfg");
 

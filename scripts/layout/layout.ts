@@ -19,7 +19,8 @@ import { DEMO_USERS } from "../../server/seed/demo-users.ts";
 import { seedFacility } from "../../server/seed/facility.seed.ts";
 import { seedProgramme } from "../../server/seed/programme.seed.ts";
 import { startFakeS3, type FakeS3 } from "./fake-s3.ts";
-import { freePorts, startGaleraCluster, type GaleraCluster } from "./galera.ts";
+import { startGaleraCluster, type GaleraCluster } from "./galera.ts";
+import { freePorts } from "./ports.ts";
 import { startHaproxy, type Haproxy } from "./haproxy.ts";
 import { startAppProcess, type AppProcess } from "./processes.ts";
 

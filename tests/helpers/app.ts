@@ -1,6 +1,5 @@
 import type { AddressInfo } from "node:net";
 import { createServer, type Server } from "node:http";
-import { createServer as createNetServer } from "node:net";
 import { inject } from "vitest";
 import request from "supertest";
 import type TestAgent from "supertest/lib/agent.js";
@@ -12,6 +11,7 @@ import { createMailer, type Mailer } from "../../server/mail/mail.service.ts";
 import { startMailSink, type MailSink } from "../../server/mail/mail.sink.ts";
 import { hashPassword } from "../../server/auth/passwords.ts";
 import { testMediaDirFor } from "../../server/media/media.storage.ts";
+import { freePorts } from "../../scripts/layout/ports.ts";
 import type { Role } from "../../src/shared/schemas/common.ts";
 
 export const DEMO_PASSWORD = process.env.DEMO_PASSWORD || "plumbline-demo";
@@ -35,16 +35,10 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
-/** A port nothing listens on at the moment of asking. */
-export function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = createNetServer();
-    probe.once("error", reject);
-    probe.listen(0, "127.0.0.1", () => {
-      const { port } = probe.address() as AddressInfo;
-      probe.close(() => resolve(port));
-    });
-  });
+/** A port nothing listens on at the moment of asking, below the range outgoing connections take theirs from. */
+export async function freePort(): Promise<number> {
+  const [port] = await freePorts(1);
+  return port as number;
 }
 
 /** The real app over the test project's MariaDB and a real SMTP sink on a free port. */

@@ -10,7 +10,8 @@ import mysql from "mysql2/promise";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDb, ensureDatabase } from "../../server/db/knex.ts";
 import { migrateLatest } from "../../server/db/migrations.ts";
-import { freePorts, startGaleraCluster, waitFor, type GaleraCluster } from "../../scripts/layout/galera.ts";
+import { startGaleraCluster, waitFor, type GaleraCluster } from "../../scripts/layout/galera.ts";
+import { freePorts } from "../../scripts/layout/ports.ts";
 import { startHaproxy, type Haproxy } from "../../scripts/layout/haproxy.ts";
 
 const DATABASE = "plumbline_layout_galera";
