@@ -5,6 +5,8 @@
  */
 import { randomBytes } from "node:crypto";
 import sharp from "sharp";
+import { CATCH_UP_MS } from "../../server/digests/digests.schedule.ts";
+import { sendTimes } from "../../server/digests/digests.windows.ts";
 import { hashAddress } from "../../server/subscribers/subscribers.tokens.ts";
 import { LAYOUT_PASSWORD, LAYOUT_PROJECT, type Layout } from "./layout.ts";
 
@@ -299,6 +301,24 @@ async function writerPort(layout: Layout): Promise<number> {
 }
 
 /**
+ * A time zone for a project made now in which the workers' scheduler will not make that
+ * project's weekly run of its own in the next minutes. From Monday 08:00 local to the next
+ * day's, the scheduler catches up on the week's run (`CATCH_UP_MS`); a project made then would
+ * get that run — the same period as the one this scenario asks for — planned before its readers
+ * are added, and the scenario's request would find it done with nobody in it. Kiritimati
+ * (UTC+14) and Pago Pago (UTC−11) are 25 hours apart, so one of them is always out of that window.
+ */
+export function zoneWithoutWeeklyRunDue(at: Date, withinMs = 10 * 60_000): string {
+  const zones = ["Europe/London", "Pacific/Kiritimati", "Pacific/Pago_Pago"];
+  const clear = (zone: string) =>
+    [0, withinMs].every((ms) => {
+      const t = new Date(at.getTime() + ms);
+      return t.getTime() - sendTimes("weekly", t, zone).due.getTime() > CATCH_UP_MS;
+    });
+  return zones.find(clear) ?? "Europe/London";
+}
+
+/**
  * A weekly digest to `subscribers` confirmed readers, sent by the worker processes; optionally a
  * worker is killed (`kill -9`) a quarter of the way and the writing database node is stopped half
  * way. Counted per recipient in the sink's record.
@@ -308,7 +328,7 @@ export async function digestOnce(layout: Layout, opts: { subscribers?: number; k
   const lead = await signIn(layout.url, "lead@kestrel.example");
   // A project of its own: one weekly run per project and week, so each digest here is a new one.
   const slug = `digest-${randomBytes(4).toString("hex")}`;
-  const [pid] = await layout.db("projects").insert({ slug, name: `Aldermere Campus, Phase 2 (${slug})`, operator_name: "Kestrel Colocation", time_zone: "Europe/London", description: "A build for one digest run.", currency: "GBP" });
+  const [pid] = await layout.db("projects").insert({ slug, name: `Aldermere Campus, Phase 2 (${slug})`, operator_name: "Kestrel Colocation", time_zone: zoneWithoutWeeklyRunDue(new Date()), description: "A build for one digest run.", currency: "GBP" });
   // Something public to say: an update published last week (the run stands for the week before now).
   const coverMediaId = await clearedCover(layout, lead, slug);
   const created = (await expectStatus(
