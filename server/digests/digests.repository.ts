@@ -115,11 +115,16 @@ export async function refreshCounts(q: Q, runId: number): Promise<DigestCounts> 
 }
 
 /** Marks a running run done once none of its deliveries is left to send. */
+/**
+ * Marks a planned run done once none of its deliveries is left to send. Only a `running` run: a
+ * `queued` one has no deliveries because nobody has planned it yet (it may have been created
+ * a moment ago, after this worker's own planning pass), not because they were all sent.
+ */
 export async function finishRunIfDrained(q: Q, runId: number, at: Date): Promise<boolean> {
   const open = await q("digest_deliveries").where({ run_id: runId }).whereIn("status", ["queued", "sending"]).first("id");
   if (open) return false;
   await refreshCounts(q, runId);
-  return (await setRunStatus(q, runId, "done", at, ["running", "queued"])) > 0;
+  return (await setRunStatus(q, runId, "done", at, ["running"])) > 0;
 }
 
 export async function listUnfinishedRuns(q: Q): Promise<number[]> {
