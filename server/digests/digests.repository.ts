@@ -114,7 +114,6 @@ export async function refreshCounts(q: Q, runId: number): Promise<DigestCounts> 
   return counts;
 }
 
-/** Marks a running run done once none of its deliveries is left to send. */
 /**
  * Marks a planned run done once none of its deliveries is left to send. Only a `running` run: a
  * `queued` one has no deliveries because nobody has planned it yet (it may have been created
