@@ -1,3 +1,4 @@
+import { formatLongDate } from "#shared/domain/locale-dates.ts";
 import { createHash, randomBytes } from "node:crypto";
 import type { Viewer } from "#shared/domain/audience.ts";
 import { viewerOfRole } from "#shared/domain/audience.ts";
@@ -37,8 +38,7 @@ const TOKEN = /^[A-Za-z0-9_-]{43}$/;
 
 const hashOf = (token: string) => createHash("sha256").update(token).digest("hex");
 
-const longDate = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
-const dayWords = (date: string) => longDate.format(new Date(`${date}T00:00:00Z`));
+const dayWords = (date: string) => formatLongDate(date.slice(0, 10));
 
 /** A slip in calendar days in plain words, for a calendar's description. */
 function slipPhrase(days: number): string {

@@ -1,4 +1,4 @@
-import { DateTime } from "luxon";
+import { formatLongDate } from "#shared/domain/locale-dates.ts";
 import type { RecordAudience, RiskBand } from "#shared/schemas/risks.ts";
 import type { DigestItemRef } from "./digests.items.ts";
 import { createRunMemo } from "./digests.run-memo.ts";
@@ -170,7 +170,7 @@ export type RecordMovesCache = ReturnType<typeof createRecordMovesCache>;
 // Words
 // ---------------------------------------------------------------------------------------------
 
-const longDate = (iso: string) => DateTime.fromISO(iso, { zone: "UTC" }).toFormat("d LLLL yyyy");
+const longDate = (iso: string) => formatLongDate(iso.slice(0, 10));
 const plural = (n: number, one: string) => `${n} ${one}${n === 1 ? "" : "s"}`;
 
 /**

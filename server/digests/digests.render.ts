@@ -1,5 +1,6 @@
 import mjml2html from "mjml";
 import { DateTime } from "luxon";
+import { formatLongDate } from "#shared/domain/locale-dates.ts";
 import { digestPeriodTitle } from "#shared/domain/digest-period.ts";
 import { INDICATIVE_CAUTION } from "#shared/domain/facility.ts";
 import type { MoveKind } from "#shared/domain/programme-changes.ts";
@@ -91,26 +92,27 @@ export function figureDelta(f: DigestFigures): { percentPoints: number | null; f
   return { percentPoints, forecastDays, changed: (percentPoints !== null && percentPoints !== 0) || (forecastDays !== null && forecastDays !== 0) };
 }
 
-const longDate = (iso: string) => DateTime.fromISO(iso, { zone: "UTC" }).toFormat("d LLLL yyyy");
+const longDate = (iso: string) => formatLongDate(iso.slice(0, 10));
 
 /** A move in plain words: "later by 9 days (12 March 2027 → 21 March 2027)". */
 export function describeMove(m: DigestMoveItem): string {
-  const span = m.from && m.to ? ` (${longDate(m.from)} → ${longDate(m.to)})` : m.to ? ` (${longDate(m.to)})` : "";
+  // Only a move of dates has a span: a removal or a return carries the states it moved between.
+  const span = () => (m.from && m.to ? ` (${longDate(m.from)} → ${longDate(m.to)})` : m.to ? ` (${longDate(m.to)})` : "");
   switch (m.kind) {
     case "completed":
       return `completed${m.to ? ` on ${longDate(m.to)}` : ""}`;
     case "later":
-      return `later by ${Math.abs(m.days ?? 0)} day${Math.abs(m.days ?? 0) === 1 ? "" : "s"}${span}`;
+      return `later by ${Math.abs(m.days ?? 0)} day${Math.abs(m.days ?? 0) === 1 ? "" : "s"}${span()}`;
     case "earlier":
-      return `earlier by ${Math.abs(m.days ?? 0)} day${Math.abs(m.days ?? 0) === 1 ? "" : "s"}${span}`;
+      return `earlier by ${Math.abs(m.days ?? 0)} day${Math.abs(m.days ?? 0) === 1 ? "" : "s"}${span()}`;
     case "rebaselined":
-      return `re-baselined${span}`;
+      return `re-baselined${span()}`;
     case "removed":
       return `removed from the programme${m.reason ? ` (${m.reason})` : ""}; it no longer counts in the figures`;
     case "restored":
       return `put back into the programme${m.reason ? ` (${m.reason})` : ""}`;
     default:
-      return `${String(m.kind).replace(/_/g, " ")}${span}`;
+      return `${String(m.kind).replace(/_/g, " ")}${span()}`;
   }
 }
 

@@ -1,5 +1,5 @@
 import type { Knex } from "knex";
-import { DateTime } from "luxon";
+import { formatInstant } from "#shared/domain/locale-dates.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { recordReaderOf } from "#shared/domain/record-audience.ts";
 import { createAuditService, type AuditAction, type AuditService } from "../audit/audit.service.ts";
@@ -53,7 +53,7 @@ export async function scopeOf(actor: Actor, organisations: DocumentOrganisations
 
 /** "5 December 2026, 14:03 GMT": a moment as a reader of the project reads it. */
 export function momentInWords(at: Date, project: Pick<Project, "timeZone">): string {
-  return DateTime.fromJSDate(at, { zone: project.timeZone }).toFormat("d LLLL yyyy, HH:mm ZZZZ");
+  return formatInstant(at, project.timeZone, "long");
 }
 
 export function createDocumentsContext(deps: DocumentsDeps) {

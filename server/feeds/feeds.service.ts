@@ -1,3 +1,4 @@
+import { formatLongDate } from "#shared/domain/locale-dates.ts";
 import type { FacilityAnswer } from "#shared/schemas/facility.ts";
 import type { Hero, HomeBuild } from "#shared/schemas/project-hero.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
@@ -38,9 +39,8 @@ export interface PublicFacilityReader {
   facility(slug: string, query: { at?: string }, reader: "public"): Promise<FacilityAnswer>;
 }
 
-const longDate = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
 const figure = new Intl.NumberFormat("en-GB", { maximumFractionDigits: 1 });
-const dayWords = (date: string) => longDate.format(new Date(`${date.slice(0, 10)}T00:00:00Z`));
+const dayWords = (date: string) => formatLongDate(date.slice(0, 10));
 
 /**
  * The facility page's description for link previews and readers without JavaScript: each

@@ -2,7 +2,7 @@ import { Node, type Extensions } from "@tiptap/core";
 import { generateHTML } from "@tiptap/html/server";
 import { StarterKit } from "@tiptap/starter-kit";
 import sanitizeHtml from "sanitize-html";
-import { DateTime } from "luxon";
+import { formatLongDate } from "#shared/domain/locale-dates.ts";
 import type { MediaPicture, MilestoneSnapshot } from "#shared/schemas/posts.ts";
 import { cleanRichText, HEADING_LEVELS, type RichTextDoc, type RichTextNode } from "#shared/schemas/rich-text.ts";
 
@@ -32,7 +32,7 @@ export const STATUS_MARKS: Record<MilestoneSnapshot["status"], { word: string; g
 
 /** `YYYY-MM-DD` → "14 March 2027" (a calendar date: no time zone involved). */
 export function dateInWords(date: string): string {
-  return DateTime.fromISO(date, { zone: "UTC" }).toFormat("d LLLL yyyy");
+  return formatLongDate(date.slice(0, 10));
 }
 
 /** Inline images sit in a text column of about 45 rem. */

@@ -7,7 +7,7 @@ import { INDICATIVE_CAUTION } from "#shared/domain/facility.ts";
 import { monthEndOf, monthEndsBetween, nextMonth, previousMonth, SITE_SAFETY_NOTE, spiSentence, spiTSentence, type ReportBlockLine, type ReportFigures, type ReportPhoto } from "#shared/domain/report-figures.ts";
 import { endOfDateInZone } from "../projects/projects.service.ts";
 import type { ReportsDeps } from "./reports.context.ts";
-import { monthInWords } from "./reports.pdf.ts";
+import { formatMonthYear } from "#shared/domain/locale-dates.ts";
 
 /** How many past month ends the milestone trend chart shows (the report's own last). */
 const TREND_MONTHS = 6;
@@ -119,7 +119,7 @@ export function createFigures(deps: ReportsDeps) {
     const pct = (n: number) => `${n.toFixed(1)}%`;
     const late = blocks.filter((b) => (b.slipWorkingDays ?? 0) > 0);
     const headline = [
-      `At the end of ${monthInWords(report.month)} the build was ${pct(health.percentComplete)} complete against ${pct(health.plannedPercent)} planned.`,
+      `At the end of ${formatMonthYear(report.month)} the build was ${pct(health.percentComplete)} complete against ${pct(health.plannedPercent)} planned.`,
       late.length === 0 ? "Every capacity block was forecast on or before its baseline ready-for-service date." : `${late.length} of ${blocks.length} capacity blocks were forecast later than their baseline ready-for-service date.`,
       position.projectedFinalCost === null ? "The projected final cost could not yet be worked out." : `The projected final cost stood at ${money(position.projectedFinalCost, project.currency)} against a current budget of ${money(position.currentBudget, project.currency)}.`,
     ];

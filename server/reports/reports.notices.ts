@@ -1,5 +1,5 @@
 import { transactionalMail } from "../mail/mail.layout.ts";
-import { monthInWords } from "./reports.pdf.ts";
+import { formatMonthYear } from "#shared/domain/locale-dates.ts";
 import type { ReportsContext } from "./reports.context.ts";
 import { claimNotices, finishNotice, findReport, type ClaimedNotice } from "./reports.repository.ts";
 
@@ -29,7 +29,7 @@ export function createReportNotices(ctx: ReportsContext) {
     }
     const project = await projects.getById(report.projectId);
     const url = `${publicUrl}/investors/projects/${project.slug}/reports/${report.id}`;
-    const month = monthInWords(report.month);
+    const month = formatMonthYear(report.month);
     const corrected = report.supersedesId !== null;
     const body = transactionalMail({
       heading: `${project.name}: the ${month} report${corrected ? " (corrected)" : ""} is issued`,

@@ -1,3 +1,4 @@
+import { formatAxisMonth } from "#shared/domain/locale-dates.ts";
 import type { ReportBudget, ReportFacility, ReportRisks, ReportSchedule } from "#shared/domain/report-figures.ts";
 
 /**
@@ -25,8 +26,7 @@ const SERIES = ["#0f5f73", "#a8452a", "#6b4fa0", "#3b7a45", "#9a7a12", "#33475b"
 
 const DAY = 86_400_000;
 const dayNumber = (d: string) => Date.UTC(Number(d.slice(0, 4)), Number(d.slice(5, 7)) - 1, Number(d.slice(8, 10))) / DAY;
-const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
-const monthLabel = (d: string) => `${MONTHS[Number(d.slice(5, 7)) - 1]} ${d.slice(2, 4)}`;
+const monthLabel = (d: string) => formatAxisMonth(d.slice(0, 10));
 
 function small(doc: Doc, size = 7, colour = MUTED): Doc {
   return doc.font("text").fontSize(size).fillColor(colour);

@@ -1,5 +1,5 @@
 import PDFDocument from "pdfkit";
-import { formatShortDate } from "#shared/domain/digest-period.ts";
+import { formatMonthYear, formatShortDate } from "#shared/domain/locale-dates.ts";
 import type { ReportFigures, ReportImageLoader, ReportMilestoneRow } from "#shared/domain/report-figures.ts";
 import { REPORT_SECTIONS, type ReportSection } from "#shared/schemas/reports.ts";
 import { INK, MUTED, drawBudgetWalk, drawMarker, drawProgressBars, drawRampChart, drawRiskGrid, drawSlipChart, drawTrendChart, type Box } from "./reports.pdf-charts.ts";
@@ -41,17 +41,12 @@ const WIDTH = A4.w - MARGIN.left - MARGIN.right;
 type Doc = PDFKit.PDFDocument;
 type Struct = PDFKit.PDFStructureElement;
 
-const MONTH_NAMES = ["January", "February", "March", "April", "May", "June", "July", "August", "September", "October", "November", "December"];
-/** "October 2026". */
-export function monthInWords(month: string): string {
-  return `${MONTH_NAMES[Number(month.slice(5, 7)) - 1]} ${month.slice(0, 4)}`;
-}
 
 const day = (d: string | null | undefined) => (d ? formatShortDate(d.slice(0, 10)) : "not set");
 const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
 
 export async function renderReportPdf(figures: ReportFigures, commentary: Partial<Record<ReportSection, string>>, opts: ReportPdfOptions): Promise<Buffer> {
-  const title = `${figures.project.name}: monthly report, ${monthInWords(figures.month)}`;
+  const title = `${figures.project.name}: monthly report, ${formatMonthYear(figures.month)}`;
   const doc = new PDFDocument({
     size: "A4",
     layout: "portrait",
@@ -449,7 +444,7 @@ function runningHeads(doc: Doc, f: ReportFigures, opts: ReportPdfOptions): void 
     const margins = doc.page.margins;
     doc.page.margins = { ...margins, top: 0, bottom: 0 };
     doc.markContent("Artifact", { type: "Pagination" });
-    doc.font("text").fontSize(8).fillColor(MUTED).text(`${f.project.name} · Monthly report ${monthInWords(f.month)}`, MARGIN.left, 30, { width: WIDTH - 130, lineBreak: false });
+    doc.font("text").fontSize(8).fillColor(MUTED).text(`${f.project.name} · Monthly report ${formatMonthYear(f.month)}`, MARGIN.left, 30, { width: WIDTH - 130, lineBreak: false });
     doc.font("heading").fontSize(8).fillColor(opts.state === "issued" ? INK : "#a8452a").text(state, A4.w - MARGIN.right - 120, 30, { width: 120, align: "right", lineBreak: false });
     doc.moveTo(MARGIN.left, 44).lineTo(A4.w - MARGIN.right, 44).lineWidth(0.5).stroke("#cfd6db");
     doc.font("text").fontSize(8).fillColor(MUTED).text(`Page ${i - range.start + 1} of ${range.count}`, MARGIN.left, A4.h - 36, { width: WIDTH, align: "center", lineBreak: false });

@@ -10,7 +10,8 @@ import type { ServedFile } from "../documents/documents.files.ts";
 import { renderRichText } from "../posts/rich-text.ts";
 import { reportNotFound, scopeOf, type ReportsContext, type Trx } from "./reports.context.ts";
 import { createFigures } from "./reports.figures.ts";
-import { monthInWords, renderReportPdf } from "./reports.pdf.ts";
+import { formatMonthYear } from "#shared/domain/locale-dates.ts";
+import { renderReportPdf } from "./reports.pdf.ts";
 import { findOpenDraft, findReport, findSuperseding, insertNotices, insertReport, listReports, updateReport, type ReportRecord } from "./reports.repository.ts";
 
 /** Commentary renders without pictures or milestone blocks: a report's figures are its own sections. */
@@ -107,12 +108,12 @@ export function createReportWorkflow(ctx: ReportsContext) {
       if (monthEndOf(input.month) >= projects.today(project)) throw invalidFields({ month: "must have ended on site: a report shows the record as it stood at the month end" }, "invalid_report");
       const id = await db.transaction(async (trx) => {
         await projects.lockForWrite(trx, project.id);
-        if (await findOpenDraft(trx, project.id, input.month)) throw new AppError("report_draft_exists", `A draft for ${monthInWords(input.month)} is already open: edit that one.`, 409);
+        if (await findOpenDraft(trx, project.id, input.month)) throw new AppError("report_draft_exists", `A draft for ${formatMonthYear(input.month)} is already open: edit that one.`, 409);
         const at = now();
         const newId = await insertReport(trx, { projectId: project.id, month: input.month, audience: input.audience, commentary: {}, supersedesId: null, correctionNote: null, createdBy: actor.user?.id ?? null, at });
         await recordWrite(trx, actor, project, {
           action: "report_drafted",
-          target: { type: "report", id: newId, label: `${monthInWords(input.month)} report` },
+          target: { type: "report", id: newId, label: `${formatMonthYear(input.month)} report` },
           events: [{ subjectId: newId, field: "created", from: null, to: input.month, at, note: null }],
           detail: { month: input.month, audience: input.audience },
         });
@@ -136,7 +137,7 @@ export function createReportWorkflow(ctx: ReportsContext) {
         await updateReport(trx, id, { commentary, audience: input.audience, at });
         await recordWrite(trx, actor, project, {
           action: "report_updated",
-          target: { type: "report", id, label: `${monthInWords(r.month)} report` },
+          target: { type: "report", id, label: `${formatMonthYear(r.month)} report` },
           events: [
             ...changed.map((section) => ({ subjectId: id, field: "commentary", from: null, to: section, at, note: null })),
             ...(input.audience && input.audience !== r.audience ? [{ subjectId: id, field: "audience", from: r.audience, to: input.audience, at, note: null }] : []),
@@ -166,11 +167,11 @@ export function createReportWorkflow(ctx: ReportsContext) {
       const pdf = await renderReportPdf(figures, commentaryHtmlOf(before.commentary), { state: "issued", issuedAt: at.toISOString(), loadImage });
       await underLock(id, async (trx, project) => {
         const r = await lockedDraft(trx, id, input.version);
-        const title = `${project.name}: monthly report, ${monthInWords(r.month)}${r.supersedesId === null ? "" : " (corrected)"}`;
+        const title = `${project.name}: monthly report, ${formatMonthYear(r.month)}${r.supersedesId === null ? "" : " (corrected)"}`;
         const documentId = await documents.createFromGenerated(
           trx,
           project,
-          { title, category: "monitoring_report", period: monthInWords(r.month), periodEnd: monthEndOf(r.month), audience: r.audience, organisationIds: [] },
+          { title, category: "monitoring_report", period: formatMonthYear(r.month), periodEnd: monthEndOf(r.month), audience: r.audience, organisationIds: [] },
           { bytes: pdf, name: `${project.slug}-report-${r.month}.pdf` },
           actor,
         );
@@ -206,12 +207,12 @@ export function createReportWorkflow(ctx: ReportsContext) {
         if (!r) throw reportNotFound();
         if (r.state !== "issued") throw new AppError("report_not_issued", r.state === "draft" ? "This report is a draft: edit it instead." : "This report has already been superseded: correct its latest issue.", 409);
         if (r.version !== input.version) throw staleVersion("report", r.version);
-        if (await findOpenDraft(trx, project.id, r.month)) throw new AppError("report_draft_exists", `A draft for ${monthInWords(r.month)} is already open: edit that one.`, 409);
+        if (await findOpenDraft(trx, project.id, r.month)) throw new AppError("report_draft_exists", `A draft for ${formatMonthYear(r.month)} is already open: edit that one.`, 409);
         const at = now();
         const draftId = await insertReport(trx, { projectId: project.id, month: r.month, audience: r.audience, commentary: r.commentary, supersedesId: r.id, correctionNote: input.note, createdBy: actor.user?.id ?? null, at });
         await recordWrite(trx, actor, project, {
           action: "report_correction_drafted",
-          target: { type: "report", id: draftId, label: `${monthInWords(r.month)} report (correction)` },
+          target: { type: "report", id: draftId, label: `${formatMonthYear(r.month)} report (correction)` },
           events: [{ subjectId: draftId, field: "created", from: null, to: r.month, at, note: input.note }],
           detail: { month: r.month, corrects: r.id },
         });

@@ -1,5 +1,5 @@
 import type { System } from "#shared/schemas/programme.ts";
-import { formatLongDate, formatShortDate, PROJECT_LOCALE } from "#shared/domain/locale-dates.ts";
+import { formatInstant as formatInstantInZone, formatLongDate, formatShortDate } from "#shared/domain/locale-dates.ts";
 import { ApiError } from "./api-client.ts";
 
 /** `YYYY-MM-DD` → "3 Mar 2027" in the project's locale (decision 057); "—" when there is none. */
@@ -14,11 +14,20 @@ export function formatDateLong(d: string | null | undefined): string {
   return formatLongDate(d.slice(0, 10));
 }
 
+/**
+ * Today's calendar date in a named time zone (the project's: the site's day, not the browser's,
+ * so a lead in another zone sees the same "today" as the server), or the browser's own zone when
+ * none is given.
+ */
+export function todayIn(timeZone?: string, now: Date = new Date()): string {
+  // en-CA writes YYYY-MM-DD.
+  return new Intl.DateTimeFormat("en-CA", { timeZone, year: "numeric", month: "2-digit", day: "2-digit" }).format(now);
+}
+
 /** An instant in a named time zone (the project's), with the zone shown. */
 export function formatInstant(iso: string | null | undefined, timeZone = "Europe/London"): string {
   if (!iso) return "—";
-  // dateStyle/timeStyle cannot be combined with timeZoneName, so the fields are spelled out.
-  return new Intl.DateTimeFormat(PROJECT_LOCALE, { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit", hourCycle: "h23", timeZone, timeZoneName: "short" }).format(new Date(iso));
+  return formatInstantInZone(iso, timeZone);
 }
 
 /** The programme's systems as people read them (in tags, filters and milestone lines). */

@@ -17,7 +17,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { availableParallelism, cpus, tmpdir } from "node:os";
 import path from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
-import { formatShortDate } from "#shared/domain/digest-period.ts";
+import { formatShortDate } from "#shared/domain/locale-dates.ts";
 import type { ReportFigures } from "#shared/domain/report-figures.ts";
 import { formatReportMoney, renderReportPdf, SECTION_TITLES, APPENDIX_TITLE } from "../../server/reports/reports.pdf.ts";
 import { reportFiguresFixture, sitePhoto } from "../server/reports-pdf-fixtures.ts";

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import type { Milestone } from "../../src/shared/schemas/programme.ts";
-import { addMonths, todayIn } from "../../src/features/programme/dates.ts";
+import { addMonths } from "../../src/features/programme/dates.ts";
+import { todayIn } from "../../src/lib/format.ts";
 import { describePublicProgress, slipInWords } from "../../src/features/programme/words.ts";
 import { describeDates } from "../../src/features/programme/public-routes.tsx";
 import { makeMilestone } from "./milestone-fixture.ts";

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { addDays, formatIsoWeekDate, isoWeekDate } from "../../src/shared/domain/calendar.ts";
-import { digestPeriodTitle, formatDayRange, type DigestPeriod } from "../../src/shared/domain/digest-period.ts";
+import { digestPeriodTitle, type DigestPeriod } from "../../src/shared/domain/digest-period.ts";
+import { formatDayRange } from "../../src/shared/domain/locale-dates.ts";
 
 const weekly = (firstDay: string, lastDay: string, soFar = false): DigestPeriod => ({ frequency: "weekly", firstDay, lastDay, soFar });
 const monthly = (firstDay: string, lastDay: string, soFar = false): DigestPeriod => ({ frequency: "monthly", firstDay, lastDay, soFar });

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import type { Milestone } from "../../src/shared/schemas/programme.ts";
 import { addDays, daysBetween } from "../../src/shared/domain/calendar.ts";
-import { formatLongDate } from "../../src/features/programme/dates.ts";
+import { formatLongDate } from "../../src/shared/domain/locale-dates.ts";
 import { signedDays, slipInWords } from "../../src/features/programme/words.ts";
 import { formatDate } from "../../src/lib/format.ts";
 import { formatTypedDate } from "../../src/shared/domain/locale-dates.ts";

@@ -4,7 +4,7 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import { milestoneFinish } from "#shared/domain/programme-health.ts";
 import { StatusMark } from "../../components/ui/status-mark.tsx";
 import { healthQueryOptions, milestonesQueryOptions, useHealth, useMilestones } from "../../features/programme/api.ts";
-import { formatMonthYear } from "../../features/programme/dates.ts";
+import { formatMonthYear } from "#shared/domain/locale-dates.ts";
 import { describeDates } from "../../features/programme/public-routes.tsx";
 import { WholeProgrammeNote } from "../../features/programme/components/whole-programme-note.tsx";
 import { describePublicProgress, slipInWords } from "../../features/programme/words.ts";

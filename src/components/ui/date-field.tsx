@@ -1,7 +1,8 @@
 import { CalendarDays, ChevronLeft, ChevronRight } from "lucide-react";
 import { forwardRef, useEffect, type ForwardedRef, useId, useRef, useState, type KeyboardEvent, type ReactNode } from "react";
 import { addDays, daysInMonth, isCalendarDate, type CalendarDate } from "#shared/domain/calendar.ts";
-import { DATE_ERROR, formatLongDate, formatShortDate, formatTypedDate, parseTypedDate, PROJECT_LOCALE, typedDatePattern } from "#shared/domain/locale-dates.ts";
+import { DATE_ERROR, formatLongDate, formatMonthYear, formatShortDate, formatTypedDate, parseTypedDate, PROJECT_LOCALE, typedDatePattern } from "#shared/domain/locale-dates.ts";
+import { todayIn } from "../../lib/format.ts";
 import { FieldError } from "./field.tsx";
 
 /**
@@ -60,11 +61,8 @@ const WEEKDAYS = [1, 2, 3, 4, 5, 6, 7].map((i) => {
   return { short: new Intl.DateTimeFormat(PROJECT_LOCALE, { weekday: "short", timeZone: "UTC" }).format(at), long: new Intl.DateTimeFormat(PROJECT_LOCALE, { weekday: "long", timeZone: "UTC" }).format(at) };
 });
 
-const monthTitle = new Intl.DateTimeFormat(PROJECT_LOCALE, { month: "long", year: "numeric", timeZone: "UTC" });
-
-function todayLocal(): CalendarDate {
-  return new Intl.DateTimeFormat("en-CA", { year: "numeric", month: "2-digit", day: "2-digit" }).format(new Date());
-}
+/** Today in the browser's own zone: the picker opens on the month the person is living in. */
+const todayLocal = (): CalendarDate => todayIn();
 
 function outOfRange(date: CalendarDate, min?: string, max?: string): boolean {
   return (!!min && isCalendarDate(min) && date < min) || (!!max && isCalendarDate(max) && date > max);
@@ -279,7 +277,7 @@ function Calendar({ label, selected, min, max, onPick, onClose }: { label: strin
         </button>
         <p id={titleId} className="font-semibold" aria-live="polite">
           <span className="sr-only">{label}: </span>
-          {monthTitle.format(new Date(Date.UTC(year, month - 1, 1)))}
+          {formatMonthYear(`${String(year).padStart(4, "0")}-${String(month).padStart(2, "0")}`)}
         </p>
         <button type="button" aria-label="Next month" className="inline-flex min-h-10 min-w-10 items-center justify-center rounded-sm hover:bg-paper" onClick={() => moveMonths(1)}>
           <ChevronRight aria-hidden size={18} />

@@ -3,6 +3,7 @@ import type { ScheduleInput } from "#shared/schemas/publishing.ts";
 import { Button } from "./button.tsx";
 import { DateField } from "./date-field.tsx";
 import { parseTypedTime } from "#shared/domain/locale-dates.ts";
+import { todayIn } from "../../lib/format.ts";
 import { Dialog } from "./dialog.tsx";
 import { TextAreaField, TextField } from "./field.tsx";
 
@@ -17,11 +18,6 @@ export function zoneAbbreviation(timeZone: string, date: string): string {
   const at = /^\d{4}-\d{2}-\d{2}$/.test(date) ? new Date(`${date}T12:00:00Z`) : new Date();
   const part = new Intl.DateTimeFormat("en-GB", { timeZone, timeZoneName: "short" }).formatToParts(at).find((p) => p.type === "timeZoneName");
   return part?.value ?? timeZone;
-}
-
-/** Today's date in a zone, as `YYYY-MM-DD`. */
-export function todayIn(timeZone: string): string {
-  return new Intl.DateTimeFormat("en-CA", { timeZone, year: "numeric", month: "2-digit", day: "2-digit" }).format(new Date());
 }
 
 /** Date and time on the project's clock (the server converts; the zone is shown, never assumed). */

@@ -2,7 +2,7 @@ import { useQuery, useSuspenseQuery } from "@tanstack/react-query";
 import { useMemo, useState } from "react";
 import { Button } from "../../components/ui/button.tsx";
 import { Notice, Sheet } from "../../components/ui/sheet.tsx";
-import { todayIn } from "../../components/ui/workflow-dialogs.tsx";
+import { todayIn } from "../../lib/format.ts";
 import { formatDate } from "../../lib/format.ts";
 import { canKeepRecord, RecordPage, recordPageLoader } from "../../lib/record.tsx";
 import { meQueryOptions } from "../../lib/session.ts";

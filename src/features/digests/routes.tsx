@@ -1,3 +1,4 @@
+import { formatDayOfInstant, formatInstant } from "#shared/domain/locale-dates.ts";
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { useDeferredValue, useState } from "react";
 import { toast } from "sonner";
@@ -13,8 +14,8 @@ const FREQUENCY_WORD = { immediate: "As it happens", weekly: "Weekly", monthly: 
 const STATUS_WORD = { queued: "Waiting", running: "Sending", done: "Finished", failed: "Stopped by an error", paused: "Paused" } as const;
 
 // Times are the build's, not the browser's: a run "at 08:00" is 08:00 on site.
-const when = (iso: string, timeZone?: string) => new Date(iso).toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone });
-const day = (iso: string, timeZone?: string) => new Date(iso).toLocaleDateString("en-GB", { dateStyle: "medium", timeZone });
+const when = (iso: string, timeZone?: string) => formatInstant(iso, timeZone);
+const day = (iso: string, timeZone?: string) => formatDayOfInstant(iso, timeZone, "short");
 /** The last day of a window whose end is exclusive. */
 const lastDay = (iso: string, timeZone?: string) => day(new Date(new Date(iso).getTime() - 1).toISOString(), timeZone);
 

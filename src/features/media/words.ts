@@ -1,3 +1,4 @@
+import { formatLocalDateTime } from "#shared/domain/locale-dates.ts";
 import type { MediaStatus, Sensitivity } from "#shared/schemas/media.ts";
 
 /** Each state by a word and a shape of its own, so nobody needs the colour to read it. */
@@ -19,8 +20,5 @@ export { formatBytes } from "../../lib/format.ts";
 /** A camera's local capture time (`YYYY-MM-DDTHH:mm…`) as "14 Mar 2026, 10:20", never shifted by a zone. */
 export function formatTakenAt(takenAt: string | null): string {
   if (!takenAt) return "No capture time";
-  const m = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})/.exec(takenAt);
-  if (!m) return takenAt;
-  const months = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
-  return `${Number(m[3])} ${months[Number(m[2]) - 1]} ${m[1]}, ${m[4]}:${m[5]}`;
+  return formatLocalDateTime(takenAt) ?? takenAt;
 }

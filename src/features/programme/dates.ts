@@ -1,14 +1,4 @@
 import { addDays, daysInMonth, parseCalendarDate, toDayNumber, type CalendarDate } from "#shared/domain/calendar.ts";
-import { formatLongDate as longDateInLocale } from "#shared/domain/locale-dates.ts";
-
-/**
- * Today's calendar date in a named time zone (the project's): the site's day, not the
- * browser's, so a lead in another zone sees the same "today" as the server.
- */
-export function todayIn(timeZone: string, now: Date = new Date()): CalendarDate {
-  // en-CA formats as YYYY-MM-DD.
-  return new Intl.DateTimeFormat("en-CA", { timeZone, year: "numeric", month: "2-digit", day: "2-digit" }).format(now);
-}
 
 /** The same day `months` calendar months earlier or later, clamped to the month's last day (31 Mar − 1 month = 28/29 Feb). */
 export function addMonths(date: CalendarDate, months: number): CalendarDate {
@@ -18,30 +8,6 @@ export function addMonths(date: CalendarDate, months: number): CalendarDate {
   const m = index - y * 12 + 1;
   const d = Math.min(day, daysInMonth(y, m));
   return `${String(y).padStart(4, "0")}-${String(m).padStart(2, "0")}-${String(d).padStart(2, "0")}`;
-}
-
-const monthYear = new Intl.DateTimeFormat("en-GB", { month: "long", year: "numeric", timeZone: "UTC" });
-const shortMonth = new Intl.DateTimeFormat("en-GB", { month: "short", timeZone: "UTC" });
-
-function utc(date: CalendarDate): Date {
-  const { year, month, day } = parseCalendarDate(date);
-  return new Date(Date.UTC(year, month - 1, day));
-}
-
-/** "March 2027". */
-export function formatMonthYear(date: CalendarDate): string {
-  return monthYear.format(utc(date));
-}
-
-/** "3 March 2027": for pages read by the public, where "3 Mar" is less plain. */
-export function formatLongDate(date: CalendarDate): string {
-  return longDateInLocale(date);
-}
-
-/** Axis label for a day number: "Mar 27". */
-export function formatAxisMonth(dayNumber: number): string {
-  const d = new Date(dayNumber * 86_400_000);
-  return `${shortMonth.format(d)} ${String(d.getUTCFullYear()).slice(2)}`;
 }
 
 /**

@@ -8,7 +8,8 @@ import type { RouteLoader } from "../../lib/loaders.ts";
 import { useTitle } from "../../lib/use-title.ts";
 import { healthQueryOptions, milestonesQueryOptions, programmeProjectQueryOptions } from "./api.ts";
 import { WholeProgrammeNote } from "./components/whole-programme-note.tsx";
-import { formatLongDate, formatMonthYear, todayIn } from "./dates.ts";
+import { formatLongDate, formatMonthYear } from "#shared/domain/locale-dates.ts";
+import { todayIn } from "../../lib/format.ts";
 import { countInWords, describePublicProgress, slipInWords } from "./words.ts";
 
 // Public pages: public milestones only (asked for explicitly, so a signed-in member of

@@ -1,7 +1,7 @@
 import type { Milestone, ProgrammeHealthResponse } from "#shared/schemas/programme.ts";
 import type { MilestoneEventFieldName } from "#shared/schemas/programme.ts";
 import { milestoneFinish, type MilestoneStatus } from "#shared/domain/programme-health.ts";
-import { formatMonthYear } from "./dates.ts";
+import { formatMonthYear } from "#shared/domain/locale-dates.ts";
 
 /** The statuses the health counts, in the order they are shown, each with its count's name. */
 export const COUNTED_STATUSES: readonly { status: MilestoneStatus; count: keyof ProgrammeHealthResponse["counts"] }[] = [

@@ -1,7 +1,7 @@
 import type { MilestoneSnapshot, PostTag } from "#shared/schemas/posts.ts";
+import { formatDayOfInstant, formatMonthYear } from "#shared/domain/locale-dates.ts";
 import { formatDateLong, SYSTEM_WORD } from "../../lib/format.ts";
 
-const monthYearUtc = new Intl.DateTimeFormat("en-GB", { month: "long", year: "numeric", timeZone: "UTC" });
 
 /** "3 March 2027" for a calendar date `YYYY-MM-DD` (never shifted by the reader's zone). */
 export function longDate(date: string | null | undefined): string {
@@ -10,14 +10,13 @@ export function longDate(date: string | null | undefined): string {
 
 /** "March 2027" for `YYYY-MM` or `YYYY-MM-DD`. */
 export function monthWords(month: string): string {
-  const [y, m] = month.split("-").map(Number) as [number, number];
-  return monthYearUtc.format(new Date(Date.UTC(y, m - 1, 1)));
+  return formatMonthYear(month);
 }
 
 /** "3 March 2027" for an instant, as the day it was on the site (the project's zone). */
 export function dayOf(iso: string | null | undefined, timeZone: string): string {
   if (!iso) return "—";
-  return new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone }).format(new Date(iso));
+  return formatDayOfInstant(iso, timeZone);
 }
 
 /**

@@ -6,7 +6,7 @@ import type { RichTextDoc } from "#shared/schemas/rich-text.ts";
 import type { ReportDetail, ReportSection } from "#shared/schemas/reports.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
-import { todayIn } from "../../components/ui/workflow-dialogs.tsx";
+import { todayIn } from "../../lib/format.ts";
 import { ApiError } from "../../lib/api-client.ts";
 import { formatInstant } from "../../lib/format.ts";
 import { idParam, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";

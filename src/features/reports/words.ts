@@ -1,3 +1,4 @@
+import { formatMonthYear } from "#shared/domain/locale-dates.ts";
 import type { ReportListItem, ReportSection, ReportState } from "#shared/schemas/reports.ts";
 
 /** A report's state by word and by shape: an open square for a draft, a filled disc once issued, a struck ring when superseded. */
@@ -19,13 +20,8 @@ export const SECTION_TITLE: Record<ReportSection, string> = {
   cautions: "Indicative figures and site safety",
 };
 
-const monthFmt = new Intl.DateTimeFormat("en-GB", { month: "long", year: "numeric", timeZone: "UTC" });
-
 /** `2026-11` → "November 2026". */
-export function monthWords(month: string): string {
-  const [y, m] = month.split("-").map(Number) as [number, number];
-  return monthFmt.format(new Date(Date.UTC(y, m - 1, 1)));
-}
+export const monthWords = (month: string): string => formatMonthYear(month);
 
 /**
  * The months a draft may be made for: those that have ended by `today` (the project's date),

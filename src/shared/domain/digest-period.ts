@@ -3,9 +3,7 @@
  * which days it covers, so a reader (and whoever audits a run) can trust the date range.
  */
 import { addDays, daysInMonth, isoWeekDate, isoWeekday, parseCalendarDate, type CalendarDate } from "./calendar.ts";
-
-const MONTHS = ["January", "February", "March", "April", "May", "June", "July", "August", "September", "October", "November", "December"];
-const SHORT = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
+import { formatDayRange, formatMonthYear, formatShortDate } from "./locale-dates.ts";
 
 /** A digest's window in the project's calendar: its first and last day (both inclusive). */
 export interface DigestPeriod {
@@ -17,25 +15,6 @@ export interface DigestPeriod {
    * test sent mid-week): the title then says "so far".
    */
   soFar: boolean;
-}
-
-/** "4 Dec 2026". */
-export function formatShortDate(date: CalendarDate): string {
-  const { year, month, day } = parseCalendarDate(date);
-  return `${day} ${SHORT[month - 1]} ${year}`;
-}
-
-/**
- * "23 to 29 Nov 2026", "30 Nov to 6 Dec 2026", "29 Dec 2008 to 4 Jan 2009", or one day
- * "4 Dec 2026": each part written once, the year always.
- */
-export function formatDayRange(firstDay: CalendarDate, lastDay: CalendarDate): string {
-  if (firstDay === lastDay) return formatShortDate(firstDay);
-  const a = parseCalendarDate(firstDay);
-  const b = parseCalendarDate(lastDay);
-  if (a.year !== b.year) return `${formatShortDate(firstDay)} to ${formatShortDate(lastDay)}`;
-  if (a.month !== b.month) return `${a.day} ${SHORT[a.month - 1]} to ${formatShortDate(lastDay)}`;
-  return `${a.day} to ${formatShortDate(lastDay)}`;
 }
 
 /** "week 48" within one calendar year; "week 1 of 2009" where the week-numbering year is not the year of every day in it. */
@@ -71,7 +50,7 @@ export function digestPeriodTitle(p: DigestPeriod): string {
   if (p.frequency === "monthly") {
     const { year, month, day } = parseCalendarDate(first);
     const monthEnd = `${first.slice(0, 8)}${String(daysInMonth(year, month)).padStart(2, "0")}`;
-    const name = `${MONTHS[month - 1]} ${year}`;
+    const name = formatMonthYear(first);
     if (day === 1 && !p.soFar && last === monthEnd) return name;
     if (day === 1 && p.soFar && last <= monthEnd) return `${name} so far, ${range}`;
   }

@@ -6,7 +6,7 @@
 
 import type { PlantKind, RatingUnit, UnitStage } from "../schemas/facility.ts";
 import { daysBetween, workingDaysBetween, type WorkingCalendar } from "./calendar.ts";
-import { formatShortDate } from "./digest-period.ts";
+import { formatShortDate } from "./locale-dates.ts";
 import {
   ASHRAE_A1_ALLOWABLE_INLET_C,
   ASHRAE_RECOMMENDED_INLET_C,

@@ -54,6 +54,70 @@ export function formatTypedDate(date: CalendarDate, locale = PROJECT_LOCALE): st
   return fmt(locale, { day: "2-digit", month: "2-digit", year: "numeric" }).format(utc(date));
 }
 
+/** "November 2026", for a month (`YYYY-MM`) or any day in it (`YYYY-MM-DD`). */
+export function formatMonthYear(monthOrDate: string, locale = PROJECT_LOCALE): string {
+  return fmt(locale, { month: "long", year: "numeric" }).format(utc(monthOrDate.length === 7 ? `${monthOrDate}-01` : monthOrDate.slice(0, 10)));
+}
+
+/** "Nov 26": a chart's month label, for a date or a day number (days since 1970-01-01). */
+export function formatAxisMonth(at: CalendarDate | number, locale = PROJECT_LOCALE): string {
+  return fmt(locale, { month: "short", year: "2-digit" }).format(typeof at === "number" ? new Date(at * 86_400_000) : utc(at));
+}
+
+/**
+ * "23 to 29 Nov 2026", "30 Nov to 6 Dec 2026", "29 Dec 2008 to 4 Jan 2009", or one day
+ * "4 Dec 2026": each part written once, the year always (the words of a digest's window).
+ */
+export function formatDayRange(firstDay: CalendarDate, lastDay: CalendarDate, locale = PROJECT_LOCALE): string {
+  if (firstDay === lastDay) return formatShortDate(firstDay, locale);
+  const a = parseCalendarDate(firstDay);
+  const b = parseCalendarDate(lastDay);
+  if (a.year !== b.year) return `${formatShortDate(firstDay, locale)} to ${formatShortDate(lastDay, locale)}`;
+  if (a.month !== b.month) return `${fmt(locale, { day: "numeric", month: "short" }).format(utc(firstDay))} to ${formatShortDate(lastDay, locale)}`;
+  return `${fmt(locale, { day: "numeric" }).format(utc(firstDay))} to ${formatShortDate(lastDay, locale)}`;
+}
+
+/**
+ * A camera's local time (`YYYY-MM-DDTHH:mm…`) as "14 Mar 2026, 10:20": read as it stands, never
+ * shifted by a zone (the camera's clock is the site's). Null when it does not start that way.
+ */
+export function formatLocalDateTime(value: string, locale = PROJECT_LOCALE): string | null {
+  const m = /^(\d{4}-\d{2}-\d{2})T(\d{2}):(\d{2})/.exec(value);
+  if (!m || !isCalendarDate(m[1])) return null;
+  const at = utc(m[1]);
+  at.setUTCHours(Number(m[2]), Number(m[3]));
+  return fmt(locale, { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit", hourCycle: "h23" }).format(at);
+}
+
+const zoned = new Map<string, Intl.DateTimeFormat>();
+
+/** A formatter on a named zone's clock (instants, not calendar dates); no zone is the runtime's own. */
+function fmtIn(timeZone: string | undefined, locale: string, options: Intl.DateTimeFormatOptions): Intl.DateTimeFormat {
+  const key = `${timeZone}|${locale}|${JSON.stringify(options)}`;
+  let f = zoned.get(key);
+  if (!f) {
+    f = new Intl.DateTimeFormat(locale, { ...options, timeZone });
+    zoned.set(key, f);
+  }
+  return f;
+}
+
+/**
+ * "14 Mar 2026, 10:20 GMT": an instant on a named zone's clock (the project's), the zone shown,
+ * never assumed; `month: "long"` writes "14 March 2026, 10:20 GMT".
+ */
+export function formatInstant(at: Date | string, timeZone: string | undefined, month: "short" | "long" = "short", locale = PROJECT_LOCALE): string {
+  // Day and time apart: with a long month CLDR joins them with " at ", and a record reads better with one comma.
+  const when = new Date(at);
+  const day = fmtIn(timeZone, locale, { day: "numeric", month, year: "numeric" }).format(when);
+  return `${day}, ${fmtIn(timeZone, locale, { hour: "2-digit", minute: "2-digit", hourCycle: "h23", timeZoneName: "short" }).format(when)}`;
+}
+
+/** "14 March 2026" ("14 Mar 2026" with `month: "short"`): the day an instant fell on in a named zone (the site's day). */
+export function formatDayOfInstant(at: Date | string, timeZone: string | undefined, month: "short" | "long" = "long", locale = PROJECT_LOCALE): string {
+  return fmtIn(timeZone, locale, { day: "numeric", month, year: "numeric" }).format(new Date(at));
+}
+
 /** The order of day, month and year in the locale's numeric dates ("dmy" for en-GB). */
 function numericOrder(locale: string): ("day" | "month" | "year")[] {
   return fmt(locale, { day: "2-digit", month: "2-digit", year: "numeric" })

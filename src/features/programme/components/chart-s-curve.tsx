@@ -3,7 +3,8 @@ import { fromDayNumber, toDayNumber } from "#shared/domain/calendar.ts";
 import { LineKey, type KeyLine } from "../../../components/ui/line-key.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import type { CurveResponse } from "#shared/schemas/programme.ts";
-import { formatAxisMonth, monthTicks } from "../dates.ts";
+import { formatAxisMonth } from "#shared/domain/locale-dates.ts";
+import { monthTicks } from "../dates.ts";
 import { formatPercent } from "../words.ts";
 import { ACCENT, ChartFrame, INK_SOFT, RULE } from "./chart-frame.tsx";
 
@@ -43,7 +44,7 @@ export function SCurveChart({ curve }: { curve: CurveResponse }) {
             type="number"
             domain={[first, last]}
             ticks={monthTicks(first, last, width < 480 ? 4 : 8)}
-            tickFormatter={formatAxisMonth}
+            tickFormatter={(day: number) => formatAxisMonth(day)}
             interval={0}
             tick={{ fontSize: 11, fill: INK_SOFT }}
             stroke={INK_SOFT}

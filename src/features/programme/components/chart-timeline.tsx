@@ -5,7 +5,8 @@ import { toDayNumber } from "#shared/domain/calendar.ts";
 import { milestoneFinish, type MilestoneStatus } from "#shared/domain/programme-health.ts";
 import { STATUS_LOOK, StatusKey, StatusMark, StatusShape } from "../../../components/ui/status-mark.tsx";
 import { formatDate } from "../../../lib/format.ts";
-import { formatAxisMonth, monthTicks } from "../dates.ts";
+import { formatAxisMonth } from "#shared/domain/locale-dates.ts";
+import { monthTicks } from "../dates.ts";
 import { signedDays } from "../words.ts";
 import { ACCENT, barBox, ChartFrame, INK_SOFT, milestoneNameAxis, ROW_CURSOR, RULE, RULE_STRONG } from "./chart-frame.tsx";
 
@@ -144,7 +145,7 @@ export function TimelineChart({ milestones, at }: { milestones: Milestone[]; at:
               domain={[domainMin, domainMax]}
               ticks={monthTicks(domainMin, domainMax, narrow ? 4 : 8)}
               interval={0}
-              tickFormatter={formatAxisMonth}
+              tickFormatter={(day: number) => formatAxisMonth(day)}
               tick={{ fontSize: 11, fill: INK_SOFT }}
               stroke={INK_SOFT}
               allowDataOverflow

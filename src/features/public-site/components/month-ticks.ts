@@ -1,10 +1,10 @@
+import { formatAxisMonth } from "#shared/domain/locale-dates.ts";
+
 // Kept apart from the recharts ramp chart so that pages drawing plain bars (the readiness
 // glance) can tick their months without loading the charting library.
 
-const axisMonth = new Intl.DateTimeFormat("en-GB", { month: "short", year: "2-digit", timeZone: "UTC" });
-
 /** "Apr 27" for a day number (days since 1970-01-01). */
-export const tickWord = (day: number) => axisMonth.format(new Date(day * 86_400_000));
+export const tickWord = (day: number) => formatAxisMonth(day);
 
 /**
  * Ticks on the first of each month inside the range, every second, third or sixth month when

@@ -1,5 +1,6 @@
 import { Bar, BarChart, CartesianGrid, Line, LineChart, ReferenceLine, XAxis, YAxis, type BarShapeProps } from "recharts";
 import { toDayNumber, type CalendarDate } from "#shared/domain/calendar.ts";
+import { formatAxisMonth } from "#shared/domain/locale-dates.ts";
 import type { ReportSchedule } from "#shared/domain/report-figures.ts";
 import { formatDate } from "../../../lib/format.ts";
 import { useElementWidth } from "../../../lib/use-element-width.ts";
@@ -91,8 +92,7 @@ function Mark({ kind, cx, cy }: { kind: (typeof MARKS)[number]; cx: number; cy: 
   }
 }
 
-const monthTick = new Intl.DateTimeFormat("en-GB", { month: "short", year: "2-digit", timeZone: "UTC" });
-const dayWord = (day: number) => monthTick.format(new Date(day * 86_400_000));
+const dayWord = (day: number) => formatAxisMonth(day);
 
 /**
  * The milestone trend: for each key milestone, its forecast date as it stood at each past month
