@@ -42,8 +42,22 @@ export function createMediaPictures(ctx: MediaContext) {
     return out;
   }
 
+  /**
+   * The pictures among `ids` this reader's browser can load now. Staff load every photo; anyone
+   * else only processed, cleared ones (the derivative route's own rule, given the usage the
+   * published owner gives): a photo sent back to review or restricted after publication is left
+   * out of what readers are shown rather than shown as a broken image (decision 070).
+   */
+  async function loadableBy(viewer: Viewer, ids: readonly number[]): Promise<Map<number, MediaPicture>> {
+    const pictures = await pictureFor([...ids]);
+    if (viewer === "staff" || pictures.size === 0) return pictures;
+    for (const r of await findMediaByIds(db, [...pictures.keys()])) if (!(r.status === "ready" && r.sensitivity === "cleared")) pictures.delete(r.id);
+    return pictures;
+  }
+
   return {
     pictureFor,
+    loadableBy,
 
     /** Ids of the photos tagged with a milestone (the programme keeps such a milestone on record). */
     taggedWithMilestone: (milestoneId: number) => mediaTaggedWithMilestone(db, milestoneId),

@@ -236,19 +236,7 @@ export function createPostsService(deps: PostsDeps) {
     }
   }
 
-  /**
-   * The photos among `ids` this reader's browser can load now. Staff load every photo; anyone else
-   * only cleared, processed ones (the derivative route's own rule, with the usage this published
-   * update gives): a photo sent back to review or restricted after publication is left out of
-   * what they are shown rather than shown as a broken image (decision 070).
-   */
-  async function loadableBy(viewer: Viewer, ids: readonly number[]): Promise<Map<number, MediaPicture>> {
-    const pictures = await media.pictureFor([...ids]);
-    if (viewer === "staff" || pictures.size === 0) return pictures;
-    const described = await media.describeForPublishing([...pictures.keys()]);
-    for (const d of described) if (!(d.exists && d.status === "ready" && d.sensitivity === "cleared")) pictures.delete(d.id);
-    return pictures;
-  }
+  const loadableBy = (viewer: Viewer, ids: readonly number[]) => media.loadableBy(viewer, ids);
 
   /** Published rows for digests (read outside the office): a cover no longer cleared is left out, as on the page (decision 070). */
   async function withLoadableCovers<T extends { coverMediaId: number | null }>(rows: T[]): Promise<T[]> {

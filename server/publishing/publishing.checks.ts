@@ -1,4 +1,5 @@
 import type { Knex } from "knex";
+import type { Viewer } from "#shared/domain/audience.ts";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaPicture } from "#shared/schemas/media.ts";
 import type { PublishingProblem } from "#shared/schemas/publishing.ts";
@@ -18,6 +19,8 @@ export interface MediaForContent {
   >;
   setUsages(ownerType: "post" | "story", ownerId: number, mediaIds: number[], audience: Audience, published: boolean, trx?: Knex.Transaction): Promise<void>;
   pictureFor(ids: number[]): Promise<Map<number, MediaPicture>>;
+  /** The pictures among `ids` a reader's browser can load now (staff: all; others: processed and cleared). */
+  loadableBy(viewer: Viewer, ids: readonly number[]): Promise<Map<number, MediaPicture>>;
 }
 
 /** One place a photo is used: "the cover", "image 2 in the text", "item 3 (after photo)". */

@@ -148,10 +148,11 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     return first ? (first.kind === "photo" ? first.mediaId : first.afterMediaId) : null;
   };
 
-  async function summaries(rows: readonly StoryRecord[]): Promise<StorySummary[]> {
+  /** Summaries for a reader: a cover their browser can no longer load is left out (decision 070). */
+  async function summaries(rows: readonly StoryRecord[], viewer: Viewer): Promise<StorySummary[]> {
     const items = await itemsOf(db, rows.map((r) => r.id));
     const covers = rows.map((r) => coverIdOf(items.get(r.id) ?? [])).filter((id): id is number => id !== null);
-    const pictures = await media.pictureFor(covers);
+    const pictures = await media.loadableBy(viewer, covers);
     return rows.map((r) => {
       const list = items.get(r.id) ?? [];
       const coverId = coverIdOf(list);
@@ -175,9 +176,11 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
   });
 
   async function detailOf(project: Project, story: StoryRecord, actor: Actor): Promise<StoryDetail> {
-    const staff = viewerOf(actor) === "staff";
+    const viewer = viewerOf(actor);
+    const staff = viewer === "staff";
     const items = (await itemsOf(db, [story.id])).get(story.id) ?? [];
-    const pictures = await media.pictureFor(mediaIdsOf(items));
+    // Readers outside staff are not shown a photo withdrawn since publication, nor its item (decision 070).
+    const pictures = await media.loadableBy(viewer, mediaIdsOf(items));
     const coverId = coverIdOf(items);
     const detail: StoryDetail = {
       ...summaryOf(story, items.length, coverId ? (pictures.get(coverId) ?? null) : null),
@@ -234,7 +237,8 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
   return {
     async list(slug: string, actor: Actor): Promise<StorySummary[]> {
       const project = await projects.get(slug);
-      return summaries(await listStories(db, project.id, viewerOf(actor)));
+      const viewer = viewerOf(actor);
+      return summaries(await listStories(db, project.id, viewer), viewer);
     },
 
     async create(slug: string, input: StoryCreateInput, actor: Actor): Promise<{ id: number; slug: string; status: PostStatus }> {
@@ -275,7 +279,7 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
       const project = await projects.get(slug).catch(() => null);
       if (!project) return null;
       const story = await findVisibleStoryBySlug(db, project.id, storySlug, "public");
-      return story ? { story: (await summaries([story]))[0]!, project } : null;
+      return story ? { story: (await summaries([story], "public"))[0]!, project } : null;
     },
 
     /** Where a public story's old page address now leads (the current slug), or null. */
