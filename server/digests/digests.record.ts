@@ -106,7 +106,7 @@ function oneLineEach<K extends string, T extends { id: number; kind: K }>(items:
  * One line per decision: decided ones first, then new requests, then others due soon; a decision
  * both new and due soon is told once, as new with its days left.
  */
-function decisionLines(moves: readonly DecisionMove[]): DecisionMove[] {
+export function decisionLines(moves: readonly DecisionMove[]): DecisionMove[] {
   const rank = { decided: 0, needed: 1, due_soon: 2 } as const;
   return oneLineEach(moves, rank).sort((a, b) => rank[a.kind] - rank[b.kind] || a.reference.localeCompare(b.reference));
 }

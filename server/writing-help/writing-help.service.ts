@@ -11,7 +11,7 @@ import { AppError } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { DecisionsService } from "../decisions/decisions.service.ts";
 import { facilityItems } from "../digests/digests.facility.ts";
-import { riskLines } from "../digests/digests.record.ts";
+import { decisionLines, describeDecisionMove, describeRiskMove, riskLines } from "../digests/digests.record.ts";
 import type { FacilityService } from "../facility/facility.service.ts";
 import type { MediaService } from "../media/media.service.ts";
 import type { PostsService } from "../posts/posts.service.ts";
@@ -38,8 +38,6 @@ export interface WritingHelpDeps {
 }
 
 const VIEWER_OF = { public: "public", investor: "investor", internal: "staff" } as const;
-const DECISION_WORDS = { needed: "decision needed", due_soon: "due soon", decided: "decided" } as const;
-const RISK_WORDS = { new: "new", rose: "rose a band", closed: "closed", became_issue: "became an issue" } as const;
 
 /**
  * Help for the people who write (issue #15): the draft suggested from what happened since the
@@ -86,8 +84,9 @@ export function createWritingHelpService(deps: WritingHelpDeps) {
     const [riskMoves, decisionMoves] = await Promise.all([risks.movesIn(project.id, from, to, viewer), decisions.movesIn(project.id, from, to, viewer)]);
     const lastDay = dateInZone(to, project.timeZone);
     return [
-      ...riskLines(riskMoves).map((r): RecordMoveEvent => ({ kind: "risk", audience: r.audience, title: `${r.reference} ${r.title}`, detail: r.kind === "rose" ? `rose from ${r.from} to ${r.to}` : RISK_WORDS[r.kind], at: lastDay })),
-      ...oneLinePerDecision(decisionMoves).map((d): RecordMoveEvent => ({ kind: "decision", audience: d.audience, title: `${d.reference} ${d.title}`, detail: d.kind === "decided" ? `decided on ${d.decidedOn}: ${d.outcome}` : `${DECISION_WORDS[d.kind]} by ${d.neededBy}`, at: d.kind === "decided" ? d.decidedOn : lastDay })),
+      // Worded as the digests word them: one line per item, dates in words, days left or overdue.
+      ...riskLines(riskMoves).map((r): RecordMoveEvent => ({ kind: "risk", audience: r.audience, title: `${r.reference} ${r.title}`, detail: describeRiskMove(r), at: lastDay })),
+      ...decisionLines(decisionMoves).map((d): RecordMoveEvent => ({ kind: "decision", audience: d.audience, title: `${d.reference} ${d.title}`, detail: describeDecisionMove(d), at: d.kind === "decided" ? d.decidedOn : lastDay })),
     ];
   }
 
@@ -154,19 +153,6 @@ export function createWritingHelpService(deps: WritingHelpDeps) {
       return { id: created.id };
     },
   };
-}
-
-type DecisionMoves = Awaited<ReturnType<DecisionsService["movesIn"]>>;
-
-/** One line per decision: decided before newly needed before due soon. */
-function oneLinePerDecision(moves: DecisionMoves): DecisionMoves {
-  const rank = { decided: 0, needed: 1, due_soon: 2 } as const;
-  const best = new Map<number, DecisionMoves[number]>();
-  for (const m of moves) {
-    const had = best.get(m.id);
-    if (!had || rank[m.kind] < rank[had.kind]) best.set(m.id, m);
-  }
-  return [...best.values()];
 }
 
 const text = (t: string): RichTextNode => ({ type: "text", text: t });

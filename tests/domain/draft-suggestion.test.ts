@@ -29,8 +29,41 @@ describe("suggestDraft", () => {
     })!;
     expect(s.groups.map((g) => g.heading)).toEqual(["Plant commissioned", "Forecasts moved"]);
     expect(s.title).toBe("Hall 2A chillers: 2 units commissioned, HD-1 energised forecast 12 days later");
-    expect(s.groups[1]!.moves[0]).toMatchObject({ kind: "forecast_moved", milestoneId: 11, days: 12, detail: "forecast moved 12 days later, to 2027-01-15" });
+    expect(s.groups[1]!.moves[0]).toMatchObject({ kind: "forecast_moved", milestoneId: 11, days: 12, detail: "forecast moved 12 days later, to 15 January 2027" });
     expect(s.milestoneIds).toEqual([11]);
+  });
+
+  it("writes its dates as the update's readers read them, never as ISO", () => {
+    const s = suggestDraft({
+      ...nothing,
+      milestones: [milestone({ milestoneId: 12, name: "Roof watertight", kind: "completed", days: null, to: "2026-11-12" })],
+      facility: [{ item: { kind: "block_forecast_moved", name: "Hall 2A", from: "2027-04-16", to: "2027-05-07", days: 21 }, topics: { areas: ["Hall 2A"], systems: [] } }],
+    })!;
+    const details = s.groups.flatMap((g) => g.moves.map((m) => m.detail));
+    expect(details).toEqual(["completed on 12 November 2026", "ready date moved 21 days later, to 7 May 2027"]);
+    // The words carry no ISO date (the moves' `at` stays ISO: it orders them, it is not shown).
+    expect([s.title, ...details].join(" ")).not.toMatch(/\d{4}-\d{2}-\d{2}/);
+  });
+
+  it("leads its title with the news (work done, space ready, plant in service) and names each subject once", () => {
+    const fans = { areas: ["Hall 2A"], systems: ["cooling"] };
+    const s = suggestDraft({
+      ...nothing,
+      milestones: [milestone({ milestoneId: 21, name: "Chillers delivered and set", days: 39, to: "2027-01-15" })],
+      facility: [
+        { item: { kind: "system_label", name: "Supply fans", from: "short by 6", to: "short by 5", design: "N+2", reachedDesign: false }, topics: fans },
+        { item: { kind: "units_commissioned", name: "Supply fans", units: ["Fan 1"], now: null }, topics: fans },
+        { item: { kind: "block_forecast_moved", name: "Hall 2A", from: "2027-04-16", to: "2027-05-07", days: 21 }, topics: { areas: ["Hall 2A"], systems: [] } },
+      ],
+    })!;
+    // "Supply fans now short by 5" is a line of the body, not a headline; the fans are named once.
+    expect(s.title).toBe("Hall 2A ready for service 21 days later, Supply fans: 1 unit commissioned and 2 more");
+    // A system reaching its design level is news.
+    const reached = suggestDraft({ ...nothing, facility: [{ item: { kind: "system_label", name: "Supply fans", from: "N+1", to: "N+2", design: "N+2", reachedDesign: true }, topics: fans }] })!;
+    expect(reached.title).toBe("Supply fans reached N+2");
+    // With nothing else to tell, the relabelling still gives the title.
+    const only = suggestDraft({ ...nothing, facility: [{ item: { kind: "system_label", name: "Supply fans", from: "short by 6", to: "short by 5", design: "N+2", reachedDesign: false }, topics: fans }] })!;
+    expect(only.title).toBe("Supply fans now short by 5");
   });
 
   it("never tells a public update of an internal milestone: not its name, its id, nor its area's photos", () => {

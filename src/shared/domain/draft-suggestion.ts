@@ -11,6 +11,7 @@
 import type { Audience } from "../schemas/common.ts";
 import type { DraftSuggestion, SuggestedPhoto, SuggestionMove, SuggestionMoveKind } from "../schemas/writing-help.ts";
 import { audiencesFor, type Viewer } from "./audience.ts";
+import { formatLongDate } from "./locale-dates.ts";
 
 /** A milestone's news in the window: completed, or its forecast moved (days, positive = later). */
 export interface MilestoneMoveEvent {
@@ -106,10 +107,13 @@ const GROUPS: ReadonlyArray<{ heading: string; kinds: readonly SuggestionMoveKin
 const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
 const daysWord = (days: number) => `${plural(Math.abs(days), "day")} ${days >= 0 ? "later" : "earlier"}`;
 
+/** A day as the update's readers read it: "15 January 2027" (the draft becomes the update's text). */
+const dayWords = (date: string) => formatLongDate(date.slice(0, 10));
+
 function milestoneMove(m: MilestoneMoveEvent, lastDay: string): SuggestionMove {
-  if (m.kind === "completed") return { kind: "milestone_completed", title: m.name, detail: m.to ? `completed on ${m.to}` : "completed", at: m.to ?? lastDay, milestoneId: m.milestoneId, days: null };
+  if (m.kind === "completed") return { kind: "milestone_completed", title: m.name, detail: m.to ? `completed on ${dayWords(m.to)}` : "completed", at: m.to ?? lastDay, milestoneId: m.milestoneId, days: null };
   const days = m.days ?? 0;
-  return { kind: "forecast_moved", title: m.name, detail: `forecast moved ${daysWord(days)}${m.to ? `, to ${m.to}` : ""}`, at: lastDay, milestoneId: m.milestoneId, days };
+  return { kind: "forecast_moved", title: m.name, detail: `forecast moved ${daysWord(days)}${m.to ? `, to ${dayWords(m.to)}` : ""}`, at: lastDay, milestoneId: m.milestoneId, days };
 }
 
 function facilityMove({ item }: FacilityMoveEvent, lastDay: string): SuggestionMove {
@@ -118,7 +122,7 @@ function facilityMove({ item }: FacilityMoveEvent, lastDay: string): SuggestionM
     case "block_ready":
       return { ...base, kind: "block_ready_moved", detail: "ready for service", at: item.on ?? lastDay };
     case "block_forecast_moved":
-      return { ...base, kind: "block_ready_moved", detail: `ready date moved ${daysWord(item.days)}, to ${item.to}`, days: item.days };
+      return { ...base, kind: "block_ready_moved", detail: `ready date moved ${daysWord(item.days)}, to ${dayWords(item.to)}`, days: item.days };
     case "system_label":
       return { ...base, kind: "system_label_reached", detail: item.reachedDesign ? `reached ${item.to}, its design redundancy` : `now ${item.to} (was ${item.from}; design ${item.design})` };
     case "units_commissioned":
@@ -139,23 +143,39 @@ function titlePhrase(m: SuggestionMove): string {
       // "reached N+1, its design redundancy" → "reached N+1"; "now N (was …)" → "now N".
       return `${m.title} ${m.detail.split(/,| \(/)[0]!}`;
     case "block_ready_moved":
-      return m.days === null ? `${m.title} ready for service` : `${m.title} ready date ${daysWord(m.days)}`;
+      return m.days === null ? `${m.title} ready for service` : `${m.title} ready for service ${daysWord(m.days)}`;
     default:
       return m.title;
   }
 }
 
 /**
- * The first moves in the body's order, as many as read well (two at most), then how many more,
- * e.g. "Hall 2A chillers: 2 units commissioned, HD-1 forecast 12 days later and 3 more".
+ * What leads a title, most newsworthy first: work finished, then when space is ready, then plant
+ * brought into service, then forecasts. A system's redundancy is title news only when it reaches its
+ * design level ("now short by 5" is a line of the body, not a headline); the record leads only
+ * when nothing else moved.
+ */
+const TITLE_ORDER: readonly SuggestionMoveKind[] = ["milestone_completed", "block_ready_moved", "unit_commissioned", "system_label_reached", "forecast_moved"];
+const titleWorthy = (m: SuggestionMove) => m.kind !== "system_label_reached" || m.detail.startsWith("reached");
+
+/**
+ * The two most newsworthy moves, one per subject (a system commissioned and relabelled is named
+ * once), as many as read well, then how many more, e.g. "Hall 2A ready for service 21 days later,
+ * Supply fans: 1 unit commissioned and 6 more".
  */
 function suggestTitle(groups: DraftSuggestion["groups"]): string {
   const moves = groups.flatMap((g) => g.moves);
-  const progress = moves.filter((m) => m.kind !== "risk" && m.kind !== "decision");
+  const progress = TITLE_ORDER.flatMap((kind) => moves.filter((m) => m.kind === kind && titleWorthy(m)));
+  const candidates = progress.length ? progress : moves;
   const phrases: string[] = [];
-  for (const phrase of (progress.length ? progress : moves).slice(0, 2).map(titlePhrase)) {
+  const named = new Set<string>();
+  for (const m of candidates) {
+    if (phrases.length === 2) break;
+    if (named.has(m.title)) continue;
+    const phrase = titlePhrase(m);
     if (phrases.length > 0 && [...phrases, phrase].join(", ").length > MAX_SUGGESTED_TITLE - 20) break;
     phrases.push(phrase);
+    named.add(m.title);
   }
   let title = phrases.join(", ");
   if (title.length > MAX_SUGGESTED_TITLE - 20) title = `${title.slice(0, MAX_SUGGESTED_TITLE - 21).trimEnd()}…`;
