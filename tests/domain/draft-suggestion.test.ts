@@ -66,6 +66,21 @@ describe("suggestDraft", () => {
     expect(only.title).toBe("Supply fans now short by 5");
   });
 
+  it("names a finished milestone as the event it is, and leaves the bracketed detail to the body", () => {
+    const done = (milestoneId: number, name: string) => milestone({ milestoneId, name, kind: "completed", days: null, to: "2026-11-12" });
+    const title = (...names: string[]) => suggestDraft({ ...nothing, milestones: names.map((n, i) => done(i + 1, n)) })!.title;
+    expect(title("HV switchgear and transformers energised")).toBe("HV switchgear and transformers energised");
+    expect(title("Generators delivered and set (2 + 1 × 1,250 kVA)")).toBe("Generators delivered and set");
+    expect(title("Steel frame topped out")).toBe("Steel frame topped out");
+    expect(title("Hall 2A ready for service (48 racks, 480 kW)")).toBe("Hall 2A ready for service");
+    expect(title("Hall 2A raised floor, containment and busbar")).toBe("Hall 2A raised floor, containment and busbar complete");
+    expect(title("L5 integrated systems test (Hall 2A and HD-1)", "Steel frame topped out")).toBe("L5 integrated systems test complete, Steel frame topped out");
+    const moved = suggestDraft({ ...nothing, milestones: [milestone({ name: "Hall 2A ready for service (48 racks, 480 kW)", days: 14 })] })!;
+    expect(moved.title).toBe("Hall 2A ready for service forecast 14 days later");
+    // The body keeps the whole name.
+    expect(moved.groups[0]!.moves[0]!.title).toBe("Hall 2A ready for service (48 racks, 480 kW)");
+  });
+
   it("never tells a public update of an internal milestone: not its name, its id, nor its area's photos", () => {
     const hidden = milestone({ milestoneId: 77, name: "Contractor compound handover", audience: "internal", area: "Compound", kind: "completed", days: null, to: "2026-11-12" });
     const s = suggestDraft({ ...nothing, milestones: [milestone(), hidden], photos: [photo({ mediaId: 5, tags: { areas: ["Compound"], systems: [], milestones: [77] } })] })!;

@@ -130,13 +130,20 @@ function facilityMove({ item }: FacilityMoveEvent, lastDay: string): SuggestionM
   }
 }
 
+/** A name without its closing detail in brackets: "Hall 2A ready for service (48 racks, 480 kW)" → "Hall 2A ready for service". */
+const shortName = (name: string) => name.replace(/\s*\([^)]*\)\s*$/, "") || name;
+/** A milestone named for the event that completes it ("… energised", "… topped out", "… ready for service"): its name says it is done. */
+const NAMES_AN_EVENT = /(?:\w+ed|\bset|\bout|\bup|\bready for service|\blive)$/i;
+
 /** The phrase a move gives the title, shortest words first. */
 function titlePhrase(m: SuggestionMove): string {
   switch (m.kind) {
-    case "milestone_completed":
-      return `${m.title} complete`;
+    case "milestone_completed": {
+      const name = shortName(m.title);
+      return NAMES_AN_EVENT.test(name) ? name : `${name} complete`;
+    }
     case "forecast_moved":
-      return `${m.title} forecast ${daysWord(m.days ?? 0)}`;
+      return `${shortName(m.title)} forecast ${daysWord(m.days ?? 0)}`;
     case "unit_commissioned":
       return `${m.title}: ${m.detail.split(" (")[0]!}`;
     case "system_label_reached":
