@@ -151,12 +151,13 @@ function figuresLines(f: DigestFigures): string[] {
   const lines: string[] = [];
   if (f.percentComplete !== null) {
     const change = delta.percentPoints === null ? "" : delta.percentPoints === 0 ? " (unchanged since your last digest)" : ` (${delta.percentPoints > 0 ? "+" : ""}${delta.percentPoints} points since your last digest)`;
-    lines.push(`Complete: ${f.percentComplete.toFixed(1)} %${change}`);
+    lines.push(`Complete: ${f.percentComplete.toFixed(1)}%${change}`);
   }
   if (f.forecastReady) {
     const d = delta.forecastDays;
     const change = d === null ? "" : d === 0 ? " (unchanged since your last digest)" : ` (${Math.abs(d)} day${Math.abs(d) === 1 ? "" : "s"} ${d > 0 ? "later" : "earlier"} than in your last digest)`;
-    lines.push(`Forecast ready for service: ${longDate(f.forecastReady)}${change}`);
+    // The programme's last milestone, named as the pages name it: ready for service is each capacity block's own date.
+    lines.push(`Forecast completion: ${longDate(f.forecastReady)}${change}`);
   }
   // The digest lists only its audience's milestones; its figures are the whole programme's.
   if (lines.length > 0) lines.push(WHOLE_PROGRAMME_NOTE);

@@ -28,9 +28,10 @@ describe("a digest's headline figures", () => {
       const [mail] = (await digestMail(t, email, before)).map((m) => m.text);
       expect(mail, email).toBeDefined();
       // Equal weights: (20 + 60) / 2, not the public milestone's 20 % alone.
-      expect(mail).toContain("Complete: 40.0 %");
+      expect(mail).toContain("Complete: 40.0%");
       // The forecast completion is the internal milestone's date, shown as a figure, not by its name.
-      expect(mail).toContain("Forecast ready for service: 1 June 2027");
+      // Named as the pages name it (the office's "Forecast completion"): "ready for service" is a capacity block's date.
+      expect(mail).toContain("Forecast completion: 1 June 2027");
       expect(mail).toContain(WHOLE_PROGRAMME_NOTE);
       expect(mail).not.toContain("fire stopping");
     }
