@@ -29,7 +29,7 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
       time_zone: "Europe/London",
       description:
         "Phase 2 adds Hall 2A (48 racks, 480 kW IT), the high-density suite HD-1 (20 racks at up to 25 kW, 500 kW) and, in a later stage, Hall 2B (48 racks, 480 kW), with the chiller, generator, fuel and UPS plant that serves them.",
-      postal_address: "Kestrel Colocation, 1 Example Way, Aldermere, AL1 0XX (invented address)",
+      postal_address: "1 Example Way, Aldermere, AL1 0XX (invented address)",
       currency: "GBP",
       tolerance_working_days: 5,
       behind_working_days: 15,

@@ -39,7 +39,8 @@ function layout(p: {
   links: { preferencesUrl: string; unsubscribeUrl: string } | null;
   why: string;
 }): { html: string; text: string } {
-  const address = p.project.postalAddress ?? p.project.operatorName;
+  // Who sends it and where they are, as every digest says it.
+  const address = [p.project.operatorName, p.project.postalAddress].filter(Boolean).join(" · ");
   const linkHtml = p.links
     ? `<p style="margin:8px 0 0"><a href="${escapeHtml(p.links.preferencesUrl)}" style="color:#1d1f24">Change topics or frequency</a> · <a href="${escapeHtml(p.links.unsubscribeUrl)}" style="color:#1d1f24">Unsubscribe</a></p>`
     : "";
