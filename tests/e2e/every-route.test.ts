@@ -2,12 +2,14 @@ import AxeBuilder from "@axe-core/playwright";
 import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import { DEMO, newClient, signIn } from "../helpers/app.ts";
+import { ACCENT } from "../../src/shared/look.ts";
 import { screenshot, signInAs, useBrowserApp, watchErrors } from "../helpers/browser.ts";
 
 // Every page of the app, opened by a person who may open it, at a phone's width and a laptop's:
 // axe-core with the WCAG 2.x A/AA tags reports nothing, every control is a target of at least
-// 24 × 24 CSS px (or meets one of the criterion's exceptions), nothing scrolls sideways, and a
-// full-page screenshot of each is saved in tests/artifacts/pages/.
+// 24 × 24 CSS px (or meets one of the criterion's exceptions), nothing scrolls sideways, at most one
+// control is filled with orange (the screen's one primary action, decision 056), and a full-page
+// screenshot of each is saved in tests/artifacts/pages/.
 // Source: W3C, WCAG 2.2, Success Criterion 2.5.8 Target Size (Minimum), and its "Spacing" and
 // "Inline" exceptions; axe-core's rule tags wcag2a … wcag22aa.
 
@@ -168,6 +170,25 @@ async function smallTargets(page: Page): Promise<string[]> {
   }, TARGET);
 }
 
+/** `#c2410c` → `rgb(194, 65, 12)`, as getComputedStyle reports a colour. */
+const rgbOf = (hex: string) => `rgb(${[1, 3, 5].map((i) => parseInt(hex.slice(i, i + 2), 16)).join(", ")})`;
+
+/**
+ * The controls on screen filled with the accent: a screen keeps orange for its one primary action
+ * (issue #14 item 4, decision 056). Each by its words.
+ */
+async function orangeControls(page: Page): Promise<string[]> {
+  return page.evaluate((accent) => {
+    const out: string[] = [];
+    for (const el of document.querySelectorAll<HTMLElement>("button, a, [role='button'], input[type='submit']")) {
+      const r = el.getBoundingClientRect();
+      if (r.width === 0 || r.height === 0 || getComputedStyle(el).visibility === "hidden") continue;
+      if (getComputedStyle(el).backgroundColor === accent) out.push((el.innerText || el.getAttribute("aria-label") || el.tagName).trim().replace(/\s+/g, " ").slice(0, 40));
+    }
+    return out;
+  }, rgbOf(ACCENT));
+}
+
 /** The page has finished loading what it shows: no "Loading…" placeholder is left. */
 async function settled(page: Page): Promise<void> {
   // A message's own pictures (in its sandboxed frame) may point at addresses that never answer here.
@@ -181,7 +202,7 @@ describe("every page, as someone who may open it, at 375 and 1280 px", () => {
   for (const width of WIDTHS) {
     for (const who of ["visitor", "lead", "marketing", "admin", "investor"] as const) {
       const routes = ROUTES.filter((r) => r.as === who);
-      it(`${who} at ${width} px: ${routes.length} pages with no axe-core violation, no target under 24 px, nothing wider than the screen`, async () => {
+      it(`${who} at ${width} px: ${routes.length} pages with no axe-core violation, no target under 24 px, nothing wider than the screen, one orange control at most`, async () => {
         const { context } = await browsers.launch(width, 812);
         const page = await context.newPage();
         const errors = watchErrors(page);
@@ -199,6 +220,8 @@ describe("every page, as someone who may open it, at 375 and 1280 px", () => {
           for (const s of await smallTargets(page)) problems.push(`${path} target ${s}`);
           const sideways = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
           if (sideways > 0) problems.push(`${path} scrolls ${sideways} px sideways`);
+          const orange = await orangeControls(page);
+          if (orange.length > 1) problems.push(`${path} has ${orange.length} orange controls, one is the most: ${orange.join(" | ")}`);
           expect(await page.title(), path).not.toBe("");
           await screenshot(page, `pages/${route.name}-${width}`);
           // A dead link's page loads its refusal (400 for a malformed token, 404, 410) by design; Chromium logs it as a failed load.

@@ -68,7 +68,8 @@ function FacilityBody({ slug }: { slug: string }) {
   /** A sheet's button for entering a new block or system, for those who keep the facility. */
   const newButton = (what: "block" | "system", label: string) =>
     editable ? (
-      <Button size="sm" variant="primary" onClick={() => setEditing({ what, id: null })}>
+      // Secondary: the page's one primary action is the plant walk (orange is for one action a screen).
+      <Button size="sm" onClick={() => setEditing({ what, id: null })}>
         {label}
       </Button>
     ) : null;

@@ -129,7 +129,7 @@ function ProgrammeEditor({ slug }: { slug: string }) {
                     Clear selection
                   </Button>
                 ) : null}
-                <Button size="sm" variant="primary" disabled={selected.length === 0} onClick={() => setShifting(true)}>
+                <Button size="sm" disabled={selected.length === 0} onClick={() => setShifting(true)}>
                   Shift {selected.length || ""} forecast{selected.length === 1 ? "" : "s"}…
                 </Button>
               </div>

@@ -71,7 +71,7 @@ export function BudgetSettingsForm({ slug, p }: { slug: string; p: BudgetPositio
       </fieldset>
       <p className="text-xs text-ink-soft">Source of the formulas: PMI, PMBOK Guide, earned value calculations summary.</p>
       <FieldError id="settings-root" error={errors.root?.message} />
-      <Button type="submit" variant="primary" className="self-start" busy={save.isPending}>
+      <Button type="submit" className="self-start" busy={save.isPending}>
         Save the settings
       </Button>
     </form>

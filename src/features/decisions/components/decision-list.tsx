@@ -100,7 +100,7 @@ function DecisionCard({ d, currency, timeZone, actions }: { d: DecisionAnswer; c
       <div className="mt-3 flex flex-wrap gap-2">
         {actions && d.status === "open" ? (
           <>
-            <Button size="sm" variant="primary" onClick={() => actions.onOutcome(d)}>
+            <Button size="sm" onClick={() => actions.onOutcome(d)}>
               Record the outcome
             </Button>
             <Button size="sm" onClick={() => actions.onEdit(d)}>

@@ -42,7 +42,7 @@ function QueueItem({ item, slug }: { item: MediaItem; slug: string }) {
           <dd>{item.uploadedBy ?? "—"}</dd>
         </dl>
         <div className="mt-auto flex flex-wrap gap-2">
-          <Button variant="primary" onClick={() => decide("cleared")} busy={review.isPending && review.variables?.sensitivity === "cleared"} disabled={review.isPending}>
+          <Button onClick={() => decide("cleared")} busy={review.isPending && review.variables?.sensitivity === "cleared"} disabled={review.isPending}>
             <span aria-hidden>✓</span>
             <span>
               Clear<span className="sr-only"> {item.name}</span> for publishing

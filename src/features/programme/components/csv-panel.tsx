@@ -59,7 +59,7 @@ export function CsvPanel({ slug, editable }: { slug: string; editable: boolean }
             }}
           />
           <div>
-            <Button variant="primary" disabled={!file} busy={imp.isPending} onClick={() => void onImport()}>
+            <Button disabled={!file} busy={imp.isPending} onClick={() => void onImport()}>
               Import
             </Button>
           </div>

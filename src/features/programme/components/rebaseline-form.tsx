@@ -69,7 +69,7 @@ export function RebaselineForm({ slug, milestones, settings, at, timeZone, edita
           </label>
           {preview ? <HealthPreview preview={preview} title="Effect of the new baseline" maxStatuses={4} /> : null}
           <div>
-            <Button type="submit" variant="primary" busy={rebaseline.isPending}>
+            <Button type="submit" busy={rebaseline.isPending}>
               Record a new baseline
             </Button>
           </div>

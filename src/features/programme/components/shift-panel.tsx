@@ -51,7 +51,7 @@ export function ShiftPanel({ slug, milestones, selected, settings, at, onDone }:
       </div>
       {preview ? <HealthPreview preview={preview} title="Effect of the shift, before it is made" /> : null}
       <div className="flex flex-wrap gap-2">
-        <Button type="submit" variant="primary" busy={shift.isPending} disabled={selected.length === 0}>
+        <Button type="submit" busy={shift.isPending} disabled={selected.length === 0}>
           Shift forecasts
         </Button>
         <Button onClick={onDone}>Cancel</Button>

@@ -112,7 +112,7 @@ export function BlockCard({ block, systems, slug, updatesHref, photos }: { block
       <footer className="mt-auto flex flex-wrap items-center gap-x-4 gap-y-3 pt-1">
         <Link
           to={`/projects/${slug}/enquire?block=${block.id}`}
-          className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 font-medium text-white hover:bg-[#9a3412]"
+          className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 font-medium text-ink hover:bg-paper"
           aria-label={`Ask about this block: ${block.name}`}
         >
           Ask about this block
