@@ -180,7 +180,7 @@ const rgbOf = (hex: string) => `rgb(${[1, 3, 5].map((i) => parseInt(hex.slice(i,
 async function orangeControls(page: Page): Promise<string[]> {
   return page.evaluate((accent) => {
     const out: string[] = [];
-    for (const el of document.querySelectorAll<HTMLElement>("button, a, [role='button'], input[type='submit']")) {
+    for (const el of Array.from(document.querySelectorAll<HTMLElement>("button, a, [role='button'], input[type='submit']"))) {
       const r = el.getBoundingClientRect();
       if (r.width === 0 || r.height === 0 || getComputedStyle(el).visibility === "hidden") continue;
       if (getComputedStyle(el).backgroundColor === accent) out.push((el.innerText || el.getAttribute("aria-label") || el.tagName).trim().replace(/\s+/g, " ").slice(0, 40));
