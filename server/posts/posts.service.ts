@@ -25,7 +25,7 @@ import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import { photoProblems, publishingBlocked, type MediaForContent, type PhotoUse } from "../publishing/publishing.checks.ts";
-import { viewerOf, type PublishingService } from "../publishing/publishing.service.ts";
+import { viewerOf, workflowSummaryOf, type PublishingService } from "../publishing/publishing.service.ts";
 import { milestoneProblems } from "./posts.checks.ts";
 import {
   POSTS_TABLE,
@@ -82,7 +82,6 @@ const snapshotOf = (m: Milestone): MilestoneSnapshot => ({
 const sameSnapshot = (a: MilestoneSnapshot, b: MilestoneSnapshot) =>
   a.status === b.status && a.forecastFinish === b.forecastFinish && a.actualFinish === b.actualFinish && a.baselineFinish === b.baselineFinish && Math.round(a.percentComplete) === Math.round(b.percentComplete);
 
-const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
 /** The photos of a post, where each is used (for checks that name them). */
 function photoUsesOf(post: { coverMediaId: number | null; body: RichTextDoc }): PhotoUse[] {
@@ -256,20 +255,7 @@ export function createPostsService(deps: PostsDeps) {
   }
 
   function summaryOf(r: PostListRecord, tags: PostTagAnswer[], cover: MediaPicture | null): PostSummary {
-    return {
-      id: r.id,
-      slug: r.slug,
-      title: r.title,
-      summary: r.summary,
-      audience: r.audience,
-      status: r.status,
-      publishedAt: iso(r.publishedAt),
-      scheduledFor: iso(r.scheduledFor),
-      cover,
-      tags,
-      authorName: r.authorName,
-      updatedAt: r.updatedAt.toISOString(),
-    };
+    return { ...workflowSummaryOf(r), summary: r.summary, cover, tags };
   }
 
   async function detailOf(project: Project, post: PostRecord, actor: Actor): Promise<PostDetail> {

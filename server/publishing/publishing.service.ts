@@ -19,6 +19,7 @@ import type { PostStatus, PublishingEvent, RevisionDiff, RevisionSummary, Schedu
 import { AppError, forbidden, notFound } from "../core/app-error.ts";
 import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
+import type { WorkflowRecord } from "./publishing.columns.ts";
 import { publishingBlocked } from "./publishing.checks.ts";
 import type { PublishedKind, WorkflowChanges, WorkflowItem } from "./publishing.kind.ts";
 import {
@@ -51,6 +52,14 @@ export function viewerOf(actor: Actor): Viewer {
 }
 
 const iso = (d: Date | null | undefined) => (d ? d.toISOString() : null);
+
+/**
+ * What every kind's summary says of its workflow, as the API gives it (posts and stories add their
+ * own fields): address, audience, state, times and author.
+ */
+export function workflowSummaryOf(r: WorkflowRecord) {
+  return { id: r.id, slug: r.slug, title: r.title, audience: r.audience, status: r.status, publishedAt: iso(r.publishedAt), scheduledFor: iso(r.scheduledFor), authorName: r.authorName, updatedAt: r.updatedAt.toISOString() };
+}
 const isDuplicate = (err: unknown) => (err as { code?: string })?.code === "ER_DUP_ENTRY";
 
 /**

@@ -11,7 +11,7 @@ import type { Actor } from "../core/types.ts";
 import type { Db } from "../db/knex.ts";
 import type { ProjectsService } from "../projects/projects.service.ts";
 import { photoProblems, publishingBlocked, type MediaForContent, type PhotoUse } from "../publishing/publishing.checks.ts";
-import { viewerOf, type PublishingService } from "../publishing/publishing.service.ts";
+import { viewerOf, workflowSummaryOf, type PublishingService } from "../publishing/publishing.service.ts";
 import {
   STORIES_TABLE,
   findStoryById,
@@ -82,7 +82,6 @@ export function storyTextOf(story: { title: string; intro: string; items: readon
   return `${story.title}\n${story.intro}\n\n${lines.join("\n")}`;
 }
 
-const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
 export function createStoriesService(deps: { db: Db; projects: ProjectsService; media: MediaForContent; publishing: PublishingService; onChange?: () => void }) {
   const { db, projects, media, publishing } = deps;
@@ -160,20 +159,7 @@ export function createStoriesService(deps: { db: Db; projects: ProjectsService; 
     });
   }
 
-  const summaryOf = (r: StoryRecord, itemCount: number, cover: MediaPicture | null): StorySummary => ({
-    id: r.id,
-    slug: r.slug,
-    title: r.title,
-    intro: r.intro,
-    audience: r.audience,
-    status: r.status,
-    publishedAt: iso(r.publishedAt),
-    scheduledFor: iso(r.scheduledFor),
-    cover,
-    itemCount,
-    authorName: r.authorName,
-    updatedAt: r.updatedAt.toISOString(),
-  });
+  const summaryOf = (r: StoryRecord, itemCount: number, cover: MediaPicture | null): StorySummary => ({ ...workflowSummaryOf(r), intro: r.intro, cover, itemCount });
 
   async function detailOf(project: Project, story: StoryRecord, actor: Actor): Promise<StoryDetail> {
     const viewer = viewerOf(actor);
