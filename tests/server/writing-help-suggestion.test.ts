@@ -102,7 +102,8 @@ describe("POST /api/projects/:slug/draft-suggestion/draft", () => {
     const res = await makeDraft(f.as.marketing, p.slug, { audience: "public" }).expect(201);
     expect(Object.keys(res.body)).toEqual(["id"]);
     const post = (await f.as.marketing.agent.get(`/api/posts/${res.body.id}`).expect(200)).body;
-    expect(post).toMatchObject({ status: "draft", audience: "public", title: `${p.open.name} forecast 12 days later`, coverMediaId: p.shown });
+    // The title leaves the name's bracketed detail ("(L4)") to the body (decision 061).
+    expect(post).toMatchObject({ status: "draft", audience: "public", title: "Chillers commissioned forecast 12 days later", coverMediaId: p.shown });
     expect(post.milestoneIds ?? post.milestones?.map((m: { id: number }) => m.id)).toEqual([p.open.id]);
     const body = JSON.stringify(post.body);
     expect(body).toContain('"type":"milestone"');
