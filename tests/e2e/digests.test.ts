@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { DEMO, DEMO_PASSWORD, startTestApp, type TestApp } from "../helpers/app.ts";
-import { launchBrowser, screenshot, watchErrors } from "../helpers/browser.ts";
+import { DEMO, startTestApp, type TestApp } from "../helpers/app.ts";
+import { launchBrowser, screenshot, signInAs, watchErrors } from "../helpers/browser.ts";
 
 let t: TestApp;
 let desk: Awaited<ReturnType<typeof launchBrowser>>;
@@ -18,11 +18,7 @@ describe("the site office's Digests page", () => {
   it("shows upcoming runs and the history, and previews what a chosen subscriber would get now", async () => {
     const page = await desk.context.newPage();
     const errors = watchErrors(page);
-    await page.goto(`${t.baseUrl}/sign-in`);
-    await page.getByLabel("E-mail address").fill(DEMO.marketing);
-    await page.getByLabel("Password").fill(DEMO_PASSWORD);
-    await page.getByRole("button", { name: "Sign in" }).click();
-    await page.waitForURL(/\/office$/);
+    await signInAs(page, t.baseUrl, DEMO.marketing, /\/office$/);
 
     await page.getByRole("link", { name: "Digests" }).click();
     await page.getByRole("heading", { level: 1, name: "Digests" }).waitFor();
