@@ -17,6 +17,13 @@ afterAll(async () => {
   await t?.close();
 });
 
+/** A story written and published by the lead in `slug`: its id and address. */
+async function publishedStory(slug: string, story: object): Promise<{ id: number; slug: string }> {
+  const made = await as.lead.agent.post(`/api/projects/${slug}/stories`).set("X-CSRF-Token", as.lead.csrf).send(story).expect(201);
+  await as.lead.agent.post(`/api/stories/${made.body.id}/publish`).set("X-CSRF-Token", as.lead.csrf).expect(200);
+  return { id: made.body.id as number, slug: made.body.slug as string };
+}
+
 interface Item {
   kind: string;
   mediaId?: number;
@@ -34,10 +41,7 @@ describe("a published story whose photo is withdrawn", () => {
     const kept = await createPhoto(t, project.id);
     const then = await createPhoto(t, project.id, { takenAt: "2026-01-12T09:00:00" });
     const now = await createPhoto(t, project.id, { takenAt: "2026-03-02T10:15:00" });
-    const made = await as.lead.agent
-      .post(`/api/projects/${project.slug}/stories`)
-      .set("X-CSRF-Token", as.lead.csrf)
-      .send({
+    const made = await publishedStory(project.slug, {
         title: "The secure line goes in",
         intro: "From the gatehouse to the hall doors.",
         audience: "investor",
@@ -47,10 +51,8 @@ describe("a published story whose photo is withdrawn", () => {
           { kind: "photo", mediaId: kept.id, caption: "Turnstiles at reception" },
           { kind: "pair", area: "Gatehouse", beforeMediaId: then.id, afterMediaId: now.id, caption: "The gatehouse, then and now" },
         ],
-      })
-      .expect(201);
-    await as.lead.agent.post(`/api/stories/${made.body.id}/publish`).set("X-CSRF-Token", as.lead.csrf).expect(200);
-    const page = `/api/projects/${project.slug}/stories/${made.body.slug}`;
+    });
+    const page = `/api/projects/${project.slug}/stories/${made.slug}`;
     const before = await as.investor.agent.get(page).expect(200);
     expect(before.body.items).toHaveLength(4);
     expect(before.body.cover?.id).toBe(hero.id);
@@ -71,13 +73,13 @@ describe("a published story whose photo is withdrawn", () => {
     // Every URL still given loads.
     for (const url of items.flatMap((i) => i.media?.sources.jpeg.map((s) => s.url) ?? [])) await as.investor.agent.get(url).expect(200);
     const list = await as.investor.agent.get(`/api/projects/${project.slug}/stories`).expect(200);
-    expect(list.body.find((s: { id: number }) => s.id === made.body.id).cover).toBeNull();
+    expect(list.body.find((s: { id: number }) => s.id === made.id).cover).toBeNull();
 
     // A visitor is not shown the investors' story at all, as before.
     await (await newClient(t)).agent.get(page).expect(404);
 
     // Staff see the story as it was published, to put it right.
-    const staff = await as.lead.agent.get(`/api/stories/${made.body.id}`).expect(200);
+    const staff = await as.lead.agent.get(`/api/stories/${made.id}`).expect(200);
     expect((staff.body.items as Item[]).map((i) => i.mediaId ?? i.afterMediaId)).toEqual([hero.id, gate.id, kept.id, now.id]);
     expect(staff.body.cover?.id).toBe(hero.id);
   });
@@ -86,15 +88,10 @@ describe("a published story whose photo is withdrawn", () => {
     const project = await createProject(t);
     const first = await createPhoto(t, project.id);
     const second = await createPhoto(t, project.id);
-    const made = await as.lead.agent
-      .post(`/api/projects/${project.slug}/stories`)
-      .set("X-CSRF-Token", as.lead.csrf)
-      .send({ title: "Chillers on the roof", intro: "Lifted on in a day.", audience: "public", items: [{ kind: "photo", mediaId: first.id, caption: "The first lift" }, { kind: "photo", mediaId: second.id, caption: "The crane's outrigger pads" }] })
-      .expect(201);
-    await as.lead.agent.post(`/api/stories/${made.body.id}/publish`).set("X-CSRF-Token", as.lead.csrf).expect(200);
+    const made = await publishedStory(project.slug, { title: "Chillers on the roof", intro: "Lifted on in a day.", audience: "public", items: [{ kind: "photo", mediaId: first.id, caption: "The first lift" }, { kind: "photo", mediaId: second.id, caption: "The crane's outrigger pads" }] });
     await t.db("media_items").where({ id: second.id }).update({ sensitivity: "unreviewed" });
     const visitor = await newClient(t);
-    const after = await visitor.agent.get(`/api/projects/${project.slug}/stories/${made.body.slug}`).expect(200);
+    const after = await visitor.agent.get(`/api/projects/${project.slug}/stories/${made.slug}`).expect(200);
     expect((after.body.items as Item[]).map((i) => i.mediaId)).toEqual([first.id]);
     expect(JSON.stringify(after.body)).not.toContain("The crane's outrigger pads");
     expect(after.body.cover?.id).toBe(first.id);
