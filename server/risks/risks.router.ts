@@ -3,7 +3,8 @@ import { z } from "zod";
 import { CalendarDateSchema, IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { MitigationInputSchema, MitigationPatchInputSchema, RiskCreateInputSchema, RiskListQuerySchema, RiskPatchInputSchema, RiskToIssueInputSchema } from "#shared/schemas/risks.ts";
-import { actorOf, requireRole } from "../core/auth.ts";
+import { requireRole } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { RisksService } from "./risks.service.ts";
 
 const readers = () => requireRole();
@@ -18,63 +19,22 @@ const SinceQuerySchema = z.strictObject({ since: CalendarDateSchema.optional() }
  */
 export function risksRouter(risks: RisksService): Router {
   const r = Router();
+  const project = { params: SlugParamSchema };
+  const item = { params: IdParamSchema };
 
-  r.get("/projects/:slug/risks", readers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = RiskListQuerySchema.parse({ ...req.query });
-    res.json(await risks.list(slug, query, actorOf(req)));
-  });
-  r.get("/projects/:slug/risks/summary", readers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = SinceQuerySchema.parse({ ...req.query });
-    res.json(await risks.summary(slug, query, actorOf(req)));
-  });
-  r.post("/projects/:slug/risks", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = RiskCreateInputSchema.parse(req.body);
-    res.status(201).json(await risks.create(slug, input, actorOf(req)));
-  });
+  r.get("/projects/:slug/risks", readers(), route({ ...project, query: RiskListQuerySchema }, ({ params, query, actor }) => risks.list(params.slug, query, actor)));
+  r.get("/projects/:slug/risks/summary", readers(), route({ ...project, query: SinceQuerySchema }, ({ params, query, actor }) => risks.summary(params.slug, query, actor)));
+  r.post("/projects/:slug/risks", writers(), route({ ...project, body: RiskCreateInputSchema, status: 201 }, ({ params, body, actor }) => risks.create(params.slug, body, actor)));
 
-  r.get("/risks/:id", readers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const { since } = SinceQuerySchema.parse({ ...req.query });
-    res.json(await risks.get(id, actorOf(req), since));
-  });
-  r.get("/risks/:id/events", readers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await risks.events(id, actorOf(req)));
-  });
-  r.patch("/risks/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = RiskPatchInputSchema.parse(req.body);
-    res.json(await risks.patch(id, input, actorOf(req)));
-  });
-  r.post("/risks/:id/issue", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = RiskToIssueInputSchema.parse(req.body);
-    res.status(201).json(await risks.toIssue(id, input, actorOf(req)));
-  });
-  r.delete("/risks/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await risks.delete(id, actorOf(req));
-    res.status(204).end();
-  });
+  r.get("/risks/:id", readers(), route({ ...item, query: SinceQuerySchema }, ({ params, query, actor }) => risks.get(params.id, actor, query.since)));
+  r.get("/risks/:id/events", readers(), route(item, ({ params, actor }) => risks.events(params.id, actor)));
+  r.patch("/risks/:id", writers(), route({ ...item, body: RiskPatchInputSchema }, ({ params, body, actor }) => risks.patch(params.id, body, actor)));
+  r.post("/risks/:id/issue", writers(), route({ ...item, body: RiskToIssueInputSchema, status: 201 }, ({ params, body, actor }) => risks.toIssue(params.id, body, actor)));
+  r.delete("/risks/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => risks.delete(params.id, actor)));
 
-  r.post("/risks/:id/mitigations", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = MitigationInputSchema.parse(req.body);
-    res.status(201).json(await risks.addMitigation(id, input, actorOf(req)));
-  });
-  r.patch("/mitigations/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = MitigationPatchInputSchema.parse(req.body);
-    res.json(await risks.patchMitigation(id, input, actorOf(req)));
-  });
-  r.delete("/mitigations/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await risks.deleteMitigation(id, actorOf(req));
-    res.status(204).end();
-  });
+  r.post("/risks/:id/mitigations", writers(), route({ ...item, body: MitigationInputSchema, status: 201 }, ({ params, body, actor }) => risks.addMitigation(params.id, body, actor)));
+  r.patch("/mitigations/:id", writers(), route({ ...item, body: MitigationPatchInputSchema }, ({ params, body, actor }) => risks.patchMitigation(params.id, body, actor)));
+  r.delete("/mitigations/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => risks.deleteMitigation(params.id, actor)));
 
   return r;
 }

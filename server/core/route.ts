@@ -1,0 +1,50 @@
+import type { Request, RequestHandler, Response } from "express";
+import { z } from "zod";
+import { actorOf } from "./auth.ts";
+import type { Actor } from "./types.ts";
+
+/**
+ * What a JSON route reads from the request: each part it names is parsed by its zod schema, in
+ * the order path → query → body, before anything runs, so a wrong request is refused (400 in the
+ * fixed error shape, by the error handler) with nothing done. A part it does not name is not read.
+ */
+export interface RouteParts {
+  params?: z.ZodType;
+  query?: z.ZodType;
+  body?: z.ZodType;
+  /** The answer's status: 200 by default; 204 sends no body (whatever the use case returned). */
+  status?: 200 | 201 | 202 | 204;
+}
+
+type Parsed<S> = S extends z.ZodType ? z.output<S> : undefined;
+
+/** A use case's view of a request: the parsed parts and who is asking (`req` and `res` for the odd route that answers in another form). */
+export interface RouteInput<P extends RouteParts> {
+  params: Parsed<P["params"]>;
+  query: Parsed<P["query"]>;
+  body: Parsed<P["body"]>;
+  actor: Actor;
+  req: Request;
+  res: Response;
+}
+
+/**
+ * The usual route: parse the parts, run the use case, answer its result as JSON with the given
+ * status. A use case that has answered by itself (a file, a redirect, a CSV) is left alone.
+ */
+export function route<P extends RouteParts>(parts: P, run: (input: RouteInput<P>) => unknown): RequestHandler {
+  return async (req, res) => {
+    const params = parts.params?.parse(req.params);
+    const query = parts.query?.parse({ ...req.query });
+    const body = parts.body?.parse(req.body);
+    const result = await run({ params, query, body, actor: actorOf(req), req, res } as RouteInput<P>);
+    if (res.headersSent) return;
+    if (parts.status === 204) res.status(204).end();
+    else res.status(parts.status ?? 200).json(result);
+  };
+}
+
+/** A body that may be left out altogether (a DELETE's optional reason): no body reads as `{}`. */
+export function optionalBody<S extends z.ZodType>(schema: S) {
+  return z.preprocess((value) => value ?? {}, schema);
+}
