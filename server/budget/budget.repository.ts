@@ -3,6 +3,7 @@ import type { BudgetChangeStatus } from "#shared/schemas/budget.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
 import { insertRecordEvents, listRecordEvents, type NewRecordEvent } from "../core/record-events.ts";
+import { bool, instant, num, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -57,25 +58,11 @@ function visibleTo<T extends Knex.QueryBuilder>(query: T, audiences: readonly Re
   return query.whereIn("c.audience", [...audiences]) as T;
 }
 
-function toChange(r: Record<string, unknown>, links: { milestones: number[]; risks: number[] }): ChangeRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    number: Number(r.number),
-    description: String(r.description),
-    detail: String(r.detail ?? ""),
-    amount: Number(r.amount),
-    status: r.status as BudgetChangeStatus,
-    approvedBy: (r.approved_by as string | null) ?? null,
-    approvedOn: r.approved_on == null ? null : String(r.approved_on),
-    drawsOnContingency: Boolean(r.draws_on_contingency),
-    audience: r.audience as RecordAudience,
-    linkedMilestones: links.milestones,
-    linkedRisks: links.risks,
-    version: Number(r.version),
-    updatedAt: (r.updated_at as Date).toISOString(),
-  };
-}
+const readChange = readRow<Omit<ChangeRecord, "linkedMilestones" | "linkedRisks">>({
+  id: num(), projectId: num(), number: num(), description: text(), detail: text(), amount: num(), status: oneOf<BudgetChangeStatus>(), approvedBy: textOrNull(),
+  approvedOn: textOrNull(), drawsOnContingency: bool(), audience: oneOf<RecordAudience>(), version: num(), updatedAt: instant(),
+});
+const toChange = (r: Row, links: { milestones: number[]; risks: number[] }): ChangeRecord => ({ ...readChange(r), linkedMilestones: links.milestones, linkedRisks: links.risks });
 
 /** Pairs (change id, linked id) of a link table, grouped by change, linked ids ascending. */
 async function linksOf(q: Q, table: "budget_change_milestones" | "budget_change_risks", column: "milestone_id" | "risk_id", changeIds: readonly number[]): Promise<Map<number, number[]>> {
@@ -111,10 +98,7 @@ export async function findChange(q: Q, id: number, audiences: readonly RecordAud
 }
 
 /** The project a change belongs to, whoever may see it (the caller's audience is checked after). */
-export async function findChangeProjectId(q: Q, id: number): Promise<number | null> {
-  const r = await q("budget_changes").where({ id }).first("project_id");
-  return r ? Number(r.project_id) : null;
-}
+export const findChangeProjectId = (q: Q, id: number) => projectIdOf(q, "budget_changes", id);
 
 function rowOf(fields: Partial<ChangeFields>): Record<string, unknown> {
   const row: Record<string, unknown> = {};
@@ -131,11 +115,7 @@ export async function insertChange(q: Q, projectId: number, fields: ChangeFields
 }
 
 /** Optimistic concurrency: 0 = someone else saved first. */
-export async function updateChange(q: Q, id: number, version: number, fields: Partial<ChangeFields>, at: Date): Promise<number> {
-  return q("budget_changes")
-    .where({ id, version })
-    .update({ ...rowOf(fields), version: version + 1, updated_at: at });
-}
+export const updateChange = (q: Q, id: number, version: number, fields: Partial<ChangeFields>, at: Date) => updateVersioned(q, "budget_changes", id, version, rowOf(fields), at);
 
 export async function deleteChange(q: Q, id: number): Promise<void> {
   await q("budget_changes").where({ id }).delete();

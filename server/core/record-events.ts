@@ -1,4 +1,5 @@
 import type { Knex } from "knex";
+import { instant, num, numOrNull, readRow, text, textOrNull, type Row } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -36,19 +37,10 @@ export async function insertRecordEvents(q: Q, table: string, subjectColumn: str
   );
 }
 
-export function toRecordEvent(r: Record<string, unknown>, subjectColumn: string): RecordEventRow {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    subjectId: Number(r[subjectColumn]),
-    field: String(r.field),
-    from: (r.from_value as string | null) ?? null,
-    to: (r.to_value as string | null) ?? null,
-    at: (r.at as Date).toISOString(),
-    byUserId: r.by_user_id == null ? null : Number(r.by_user_id),
-    note: (r.note as string | null) ?? null,
-  };
-}
+const readRecordEvent = readRow<Omit<RecordEventRow, "subjectId">>({
+  id: num(), projectId: num(), field: text(), from: textOrNull("from_value"), to: textOrNull("to_value"), at: instant(), byUserId: numOrNull(), note: textOrNull(),
+});
+export const toRecordEvent = (r: Row, subjectColumn: string): RecordEventRow => ({ ...readRecordEvent(r), subjectId: Number(r[subjectColumn]) });
 
 /** One subject's events, newest first. */
 export async function listRecordEvents(q: Q, table: string, subjectColumn: string, subjectId: number): Promise<RecordEventRow[]> {

@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import type { DecisionStatus } from "#shared/schemas/decisions.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
+import { instant, json, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -62,33 +63,13 @@ const LINKS = {
   documentIds: { table: "decision_documents", column: "document_id" },
 } as const;
 
-function toDecision(r: Record<string, unknown>, links: DecisionLinks): DecisionRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    number: Number(r.number),
-    title: String(r.title),
-    question: String(r.question),
-    background: String(r.background ?? ""),
-    options: JSON.parse(String(r.options)) as DecisionOption[],
-    recommendedOption: r.recommended_option == null ? null : Number(r.recommended_option),
-    recommendation: String(r.recommendation ?? ""),
-    decider: String(r.decider),
-    neededBy: String(r.needed_by),
-    audience: r.audience as RecordAudience,
-    status: r.status as DecisionStatus,
-    chosenOption: r.chosen_option == null ? null : Number(r.chosen_option),
-    outcome: (r.outcome as string | null) ?? null,
-    decidedBy: (r.decided_by as string | null) ?? null,
-    decidedOn: r.decided_on == null ? null : String(r.decided_on),
-    outcomeRecordedBy: r.outcome_recorded_by == null ? null : Number(r.outcome_recorded_by),
-    withdrawnReason: (r.withdrawn_reason as string | null) ?? null,
-    ...links,
-    version: Number(r.version),
-    createdAt: (r.created_at as Date).toISOString(),
-    updatedAt: (r.updated_at as Date).toISOString(),
-  };
-}
+const readDecision = readRow<Omit<DecisionRecord, keyof DecisionLinks>>({
+  id: num(), projectId: num(), number: num(), title: text(), question: text(), background: text(), options: json<DecisionOption[]>([]), recommendedOption: numOrNull(),
+  recommendation: text(), decider: text(), neededBy: text(), audience: oneOf<RecordAudience>(), status: oneOf<DecisionStatus>(), chosenOption: numOrNull(),
+  outcome: textOrNull(), decidedBy: textOrNull(), decidedOn: textOrNull(), outcomeRecordedBy: numOrNull(), withdrawnReason: textOrNull(), version: num(),
+  createdAt: instant(), updatedAt: instant(),
+});
+const toDecision = (r: Row, links: DecisionLinks): DecisionRecord => ({ ...readDecision(r), ...links });
 
 function decisionRow(f: Partial<DecisionFields & DecisionClose>): Record<string, unknown> {
   const row: Record<string, unknown> = {
@@ -140,10 +121,7 @@ export async function findDecision(q: Q, id: number, audiences: readonly RecordA
   return r ? (await decisionsFrom(q, [r]))[0]! : null;
 }
 
-export async function findDecisionProjectId(q: Q, id: number): Promise<number | null> {
-  const r = await q("decisions").where({ id }).first("project_id");
-  return r ? Number(r.project_id) : null;
-}
+export const findDecisionProjectId = (q: Q, id: number) => projectIdOf(q, "decisions", id);
 
 /** The decisions (any audience) that link a risk, by number: what keeps the risk on record. */
 export async function listDecisionsLinkingRisk(q: Q, riskId: number): Promise<Array<{ id: number; number: number; title: string }>> {
@@ -162,11 +140,7 @@ export async function insertDecision(q: Q, d: DecisionFields & { projectId: numb
 }
 
 /** Optimistic concurrency: changes the row only while it still has `version` (0 = someone else saved first). */
-export function updateDecision(q: Q, id: number, version: number, fields: Partial<DecisionFields & DecisionClose>, at: Date): Promise<number> {
-  return q("decisions")
-    .where({ id, version })
-    .update({ ...decisionRow(fields), version: version + 1, updated_at: at });
-}
+export const updateDecision = (q: Q, id: number, version: number, fields: Partial<DecisionFields & DecisionClose>, at: Date) => updateVersioned(q, "decisions", id, version, decisionRow(fields), at);
 
 export async function replaceDecisionLinks(q: Q, decisionId: number, links: Partial<DecisionLinks>): Promise<void> {
   for (const [key, { table, column }] of Object.entries(LINKS) as Array<[keyof DecisionLinks, { table: string; column: string }]>) {

@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import type { DigestCounts, DigestRunStatus } from "#shared/schemas/digests.ts";
 import type { Frequency } from "#shared/schemas/subscribers.ts";
 import { parseItemRefs, type DigestItemRef } from "./digests.items.ts";
+import { bool, date, dateOrNull, num, numOrNull, oneOf, readRow, text, textOrNull, type Row } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -22,32 +23,18 @@ export interface DigestRunRecord {
   finishedAt: Date | null;
 }
 
-const toDate = (v: unknown) => (v == null ? null : new Date(v as string));
+const toCounts = (r: Row): DigestRunRecord["counts"] => {
+  const total = Number(r.queued_count);
+  const sent = Number(r.sent_count);
+  const failed = Number(r.failed_count);
+  const skipped = Number(r.skipped_count);
+  return { total, queued: Math.max(0, total - sent - failed - skipped), sent, failed, skipped };
+};
 
-function toRun(r: Record<string, unknown>): DigestRunRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    frequency: r.frequency as Frequency,
-    runKey: String(r.run_key),
-    windowStart: new Date(r.window_start as string),
-    windowEnd: new Date(r.window_end as string),
-    postId: r.post_id == null ? null : Number(r.post_id),
-    status: r.status as DigestRunStatus,
-    isTest: Boolean(r.is_test),
-    requestedBy: r.requested_by == null ? null : Number(r.requested_by),
-    counts: {
-      total: Number(r.queued_count),
-      queued: Math.max(0, Number(r.queued_count) - Number(r.sent_count) - Number(r.failed_count) - Number(r.skipped_count)),
-      sent: Number(r.sent_count),
-      failed: Number(r.failed_count),
-      skipped: Number(r.skipped_count),
-    },
-    createdAt: new Date(r.created_at as string),
-    startedAt: toDate(r.started_at),
-    finishedAt: toDate(r.finished_at),
-  };
-}
+const toRun = readRow<DigestRunRecord>({
+  id: num(), projectId: num(), frequency: oneOf<Frequency>(), runKey: text(), windowStart: date(), windowEnd: date(), postId: numOrNull(),
+  status: oneOf<DigestRunStatus>(), isTest: bool(), requestedBy: numOrNull(), counts: toCounts, createdAt: date(), startedAt: dateOrNull(), finishedAt: dateOrNull(),
+});
 
 // A run's project is named by the projects service (the service adds slug and name to what it shows).
 const runQuery = (q: Q) => q("digest_runs as r").select("r.*");
@@ -149,22 +136,10 @@ export interface ContentRow {
   itemRefs: DigestItemRef[] | null;
 }
 
-function toContent(r: Record<string, unknown>): ContentRow {
-  return {
-    id: Number(r.id),
-    contentKey: String(r.content_key),
-    audience: r.audience as "public" | "investor",
-    topicsKey: String(r.topics_key),
-    empty: Boolean(r.empty),
-    subject: String(r.subject),
-    preheader: String(r.preheader),
-    html: String(r.html),
-    text: String(r.text),
-    percentComplete: r.percent_complete == null ? null : Number(r.percent_complete),
-    forecastReady: r.forecast_ready == null ? null : String(r.forecast_ready),
-    itemRefs: parseItemRefs(r.item_refs == null ? null : String(r.item_refs)),
-  };
-}
+const toContent = readRow<ContentRow>({
+  id: num(), contentKey: text(), audience: oneOf<ContentRow["audience"]>(), topicsKey: text(), empty: bool(), subject: text(), preheader: text(), html: text(),
+  text: text(), percentComplete: numOrNull(), forecastReady: textOrNull(), itemRefs: (row) => parseItemRefs(row.item_refs == null ? null : String(row.item_refs)),
+});
 
 export async function insertContent(q: Q, runId: number, c: Omit<ContentRow, "id">): Promise<number> {
   await q("digest_contents")
@@ -361,20 +336,10 @@ const archiveQuery = (q: Q, subscriberIds: readonly number[]) =>
     .andWhere("r.is_test", false)
     .andWhere("c.empty", false);
 
-function toArchived(r: Record<string, unknown>): ArchivedDelivery {
-  return {
-    id: Number(r.id),
-    subscriberId: Number(r.subscriber_id),
-    projectId: Number(r.project_id),
-    frequency: r.frequency as Frequency,
-    contentId: Number(r.content_id),
-    subject: String(r.subject),
-    sentAt: new Date((r.sent_at ?? r.created_at) as string),
-    windowStart: new Date(r.window_start as string),
-    windowEnd: new Date(r.window_end as string),
-    unrecorded: Boolean(Number(r.unrecorded)),
-  };
-}
+const toArchived = readRow<ArchivedDelivery>({
+  id: num(), subscriberId: num(), projectId: num(), frequency: oneOf<Frequency>(), contentId: num(), subject: text(),
+  sentAt: (row) => new Date((row.sent_at ?? row.created_at) as string), windowStart: date(), windowEnd: date(), unrecorded: bool(),
+});
 
 const archiveColumns = (q: Q) => ["d.id", "d.subscriber_id", "d.content_id", "d.window_start", "d.sent_at", "r.project_id", "r.frequency", "r.window_end", "r.created_at", "c.subject", q.raw("c.item_refs IS NULL AS unrecorded")];
 

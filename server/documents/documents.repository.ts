@@ -3,6 +3,7 @@ import type { DocumentCategory, DocumentFileType, ViewKind } from "#shared/schem
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
 import { insertRecordEvents, toRecordEvent, type NewRecordEvent } from "../core/record-events.ts";
+import { columnsOf, date, json, num, numOrNull, oneOf, readRow, text, textOrNull, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -68,34 +69,15 @@ export interface VersionRecord extends VersionFields {
   documentId: number;
 }
 
-const toDocument = (r: Record<string, unknown>, organisationIds: number[]): DocumentRecord => ({
-  id: Number(r.id),
-  projectId: Number(r.project_id),
-  title: String(r.title),
-  category: r.category as DocumentCategory,
-  period: String(r.period ?? ""),
-  periodEnd: (r.period_end as string | null) ?? null,
-  audience: r.audience as RecordAudience,
-  organisationIds,
-  version: Number(r.version),
-  createdAt: r.created_at as Date,
-  updatedAt: r.updated_at as Date,
+const readDocument = readRow<Omit<DocumentRecord, "organisationIds">>({
+  id: num(), projectId: num(), title: text(), category: oneOf<DocumentCategory>(), period: text(), periodEnd: textOrNull(), audience: oneOf<RecordAudience>(),
+  version: num(), createdAt: date(), updatedAt: date(),
 });
+const toDocument = (r: Row, organisationIds: number[]): DocumentRecord => ({ ...readDocument(r), organisationIds });
 
-const toVersion = (r: Record<string, unknown>): VersionRecord => ({
-  id: Number(r.id),
-  documentId: Number(r.document_id),
-  number: Number(r.number),
-  fileType: r.file_type as DocumentFileType,
-  storageKey: String(r.storage_key),
-  bytes: Number(r.bytes),
-  pages: r.pages === null ? null : Number(r.pages),
-  sha256: String(r.sha256),
-  originalName: String(r.original_name),
-  note: String(r.note ?? ""),
-  removed: JSON.parse(String(r.removed ?? "[]")) as string[],
-  uploadedBy: r.uploaded_by === null ? null : Number(r.uploaded_by),
-  uploadedAt: r.uploaded_at as Date,
+const toVersion = readRow<VersionRecord>({
+  id: num(), documentId: num(), number: num(), fileType: oneOf<DocumentFileType>(), storageKey: text(), bytes: num(), pages: numOrNull(), sha256: text(),
+  originalName: text(), note: text(), removed: json<string[]>([]), uploadedBy: numOrNull(), uploadedAt: date(),
 });
 
 async function organisationsOf(q: Q, documentIds: readonly number[]): Promise<Map<number, number[]>> {
@@ -130,13 +112,8 @@ export async function insertDocument(q: Q, projectId: number, f: DocumentFields,
 }
 
 export async function updateDocument(q: Q, id: number, f: Partial<DocumentFields>, at: Date): Promise<void> {
-  const columns: Record<string, unknown> = { updated_at: at, version: q.raw("version + 1") };
-  if (f.title !== undefined) columns.title = f.title;
-  if (f.category !== undefined) columns.category = f.category;
-  if (f.period !== undefined) columns.period = f.period;
-  if (f.periodEnd !== undefined) columns.period_end = f.periodEnd;
-  if (f.audience !== undefined) columns.audience = f.audience;
-  await q("documents").where({ id }).update(columns);
+  const columns = columnsOf(f, ["title", "category", "period", "periodEnd", "audience"]);
+  await q("documents").where({ id }).update({ ...columns, updated_at: at, version: q.raw("version + 1") });
 }
 
 export async function setDocumentOrganisations(q: Q, id: number, organisationIds: readonly number[]): Promise<void> {

@@ -1,33 +1,17 @@
 import type { Knex } from "knex";
 import type { EnquiryKind, EnquiryRow, EnquiryStatus } from "#shared/schemas/enquiries.ts";
+import { instant, json, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
 /** An enquiry as stored: its project and owner by id (the projects and users modules name them). */
 export type EnquiryRecord = Omit<EnquiryRow, "project" | "owner"> & { projectId: number; ownerId: number | null };
 
-function toEnquiry(r: Record<string, unknown>): EnquiryRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    kind: r.kind as EnquiryKind,
-    name: String(r.name),
-    email: String(r.email),
-    organisation: r.organisation == null ? null : String(r.organisation),
-    phone: r.phone == null ? null : String(r.phone),
-    message: r.message == null ? null : String(r.message),
-    racks: r.racks == null ? null : Number(r.racks),
-    kwPerRack: r.kw_per_rack == null ? null : Number(r.kw_per_rack),
-    neededBy: r.needed_by == null ? null : String(r.needed_by),
-    preferredDates: r.preferred_dates ? (JSON.parse(String(r.preferred_dates)) as string[]) : [],
-    partySize: r.party_size == null ? null : Number(r.party_size),
-    status: r.status as EnquiryStatus,
-    ownerId: r.owner_id == null ? null : Number(r.owner_id),
-    notes: String(r.notes ?? ""),
-    createdAt: (r.created_at as Date).toISOString(),
-    updatedAt: (r.updated_at as Date).toISOString(),
-  };
-}
+const toEnquiry = readRow<EnquiryRecord>({
+  id: num(), projectId: num(), kind: oneOf<EnquiryKind>(), name: text(), email: text(), organisation: textOrNull(), phone: textOrNull(), message: textOrNull(),
+  racks: numOrNull(), kwPerRack: numOrNull(), neededBy: textOrNull(), preferredDates: json<string[]>([]), partySize: numOrNull(),
+  status: oneOf<EnquiryStatus>(), ownerId: numOrNull(), notes: text(), createdAt: instant(), updatedAt: instant(),
+});
 
 function base(q: Q) {
   return q("enquiries as e").select("e.*");

@@ -1,5 +1,6 @@
 import type { FacilitySubject } from "#shared/schemas/facility.ts";
 import type { Q } from "./facility.repository.ts";
+import { instant, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 // The facility's history: every write is an event (a field's change, from → to, who, when, a
 // note); a unit's stage events are its dated history, `on` being the day on site.
@@ -44,22 +45,10 @@ export async function insertFacilityEvents(q: Q, events: readonly NewFacilityEve
   );
 }
 
-function toEvent(r: Record<string, unknown>): FacilityEventRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    subject: r.subject as FacilitySubject,
-    subjectId: Number(r.subject_id),
-    subjectName: String(r.subject_name),
-    field: String(r.field),
-    from: (r.from_value as string | null) ?? null,
-    to: (r.to_value as string | null) ?? null,
-    on: String(r.on_date),
-    at: (r.at as Date).toISOString(),
-    byUserId: r.by_user_id == null ? null : Number(r.by_user_id),
-    note: (r.note as string | null) ?? null,
-  };
-}
+const toEvent = readRow<FacilityEventRecord>({
+  id: num(), projectId: num(), subject: oneOf<FacilitySubject>(), subjectId: num(), subjectName: text(), field: text(), from: textOrNull("from_value"),
+  to: textOrNull("to_value"), on: text("on_date"), at: instant(), byUserId: numOrNull(), note: textOrNull(),
+});
 
 const newestFirst = [
   { column: "at", order: "desc" as const },

@@ -12,6 +12,7 @@ import {
   type UnitStage,
 } from "#shared/schemas/facility.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
+import { num, numOrNull, oneOf, oneOfOrNull, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -60,23 +61,11 @@ const BLOCK_COLUMNS: Record<keyof BlockFields, string> = {
   notes: "notes",
 };
 
-function toBlock(r: Record<string, unknown>, dependsOn: number[]): BlockRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    name: String(r.name),
-    racks: Number(r.racks),
-    itKw: Number(r.it_kw),
-    maxKwPerRack: Number(r.max_kw_per_rack),
-    coolingApproach: String(r.cooling_approach ?? ""),
-    containment: r.containment as Containment,
-    audience: r.audience as Audience,
-    stage: String(r.stage ?? ""),
-    notes: String(r.notes ?? ""),
-    dependsOn,
-    version: Number(r.version),
-  };
-}
+const readBlock = readRow<Omit<BlockRecord, "dependsOn">>({
+  id: num(), projectId: num(), name: text(), racks: num(), itKw: num(), maxKwPerRack: num(), coolingApproach: text(), containment: oneOf<Containment>(),
+  audience: oneOf<Audience>(), stage: text(), notes: text(), version: num(),
+});
+const toBlock = (r: Row, dependsOn: number[]): BlockRecord => ({ ...readBlock(r), dependsOn });
 
 /** Pairs of (owner id, linked id) from a link table, grouped by owner, linked ids ascending. */
 async function linksOf(q: Q, table: string, ownerColumn: string, linkedColumn: string, ownerIds: readonly number[]): Promise<Map<number, number[]>> {
@@ -160,25 +149,14 @@ export interface SystemRecord extends SystemFields {
   version: number;
 }
 
-function toSystem(r: Record<string, unknown>, serves: number[], linkedMilestones: number[]): SystemRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    name: String(r.name),
-    kind: r.kind as PlantKind,
-    audience: r.audience as Audience,
-    neededPerSystem: Number(r.needed_per_system),
-    independentSystems: Number(r.independent_systems),
-    ratingPerUnit: r.rating_per_unit == null ? null : Number(r.rating_per_unit),
-    ratingUnit: (r.rating_unit as RatingUnit | null) ?? null,
-    // Stored as JSON; parsed through the schema so a figure added later reads with its default.
-    design: DesignFiguresSchema.parse(JSON.parse(String(r.design ?? "{}"))),
-    notes: String(r.notes ?? ""),
-    serves,
-    linkedMilestones,
-    version: Number(r.version),
-  };
-}
+const readSystem = readRow<Omit<SystemRecord, "serves" | "linkedMilestones">>({
+  id: num(), projectId: num(), name: text(), kind: oneOf<PlantKind>(), audience: oneOf<Audience>(), neededPerSystem: num(), independentSystems: num(),
+  ratingPerUnit: numOrNull(), ratingUnit: oneOfOrNull<RatingUnit>(),
+  // Stored as JSON; parsed through the schema so a figure added later reads with its default.
+  design: (row) => DesignFiguresSchema.parse(JSON.parse(String(row.design ?? "{}"))),
+  notes: text(), version: num(),
+});
+const toSystem = (r: Row, serves: number[], linkedMilestones: number[]): SystemRecord => ({ ...readSystem(r), serves, linkedMilestones });
 
 const SYSTEM_COLUMNS: Record<keyof SystemFields, string> = {
   name: "name",
@@ -255,18 +233,7 @@ export interface UnitRecord extends UnitFields {
   version: number;
 }
 
-function toUnit(r: Record<string, unknown>): UnitRecord {
-  return {
-    id: Number(r.id),
-    systemId: Number(r.system_id),
-    label: String(r.label),
-    tag: String(r.tag ?? ""),
-    train: Number(r.train),
-    stage: r.stage as UnitStage,
-    stageOn: String(r.stage_on),
-    version: Number(r.version),
-  };
-}
+const toUnit = readRow<UnitRecord>({ id: num(), systemId: num(), label: text(), tag: text(), train: num(), stage: oneOf<UnitStage>(), stageOn: text(), version: num() });
 
 /** The columns of a unit's written fields (the demo seed writes its units' dated history with them). */
 export const unitRow = (fields: Partial<UnitFields>) => rowOf(fields, { label: "label", tag: "tag", train: "train", stage: "stage", stageOn: "stage_on" });
@@ -317,20 +284,10 @@ export interface FeatureRecord extends FeatureFields {
   version: number;
 }
 
-function toFeature(r: Record<string, unknown>): FeatureRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    kind: r.kind as FeatureKind,
-    name: String(r.name),
-    detail: String(r.detail ?? ""),
-    layer: (r.layer as SecurityLayer | null) ?? null,
-    status: r.status as FeatureStatus,
-    statusDate: r.status_date == null ? null : String(r.status_date),
-    audience: r.audience as Audience,
-    version: Number(r.version),
-  };
-}
+const toFeature = readRow<FeatureRecord>({
+  id: num(), projectId: num(), kind: oneOf<FeatureKind>(), name: text(), detail: text(), layer: oneOfOrNull<SecurityLayer>(), status: oneOf<FeatureStatus>(),
+  statusDate: textOrNull(), audience: oneOf<Audience>(), version: num(),
+});
 
 const featureRow = (fields: Partial<FeatureFields>) =>
   rowOf(fields, { kind: "kind", name: "name", detail: "detail", layer: "layer", status: "status", statusDate: "status_date", audience: "audience" });
@@ -371,11 +328,7 @@ async function findRow(q: Q, table: FacilityTable, id: number, opts: { forUpdate
  * Optimistic concurrency: changes the row only while it still has `version`, and its version goes
  * up by one. Returns the number of rows changed (0 = someone else saved first).
  */
-function updateRow(q: Q, table: FacilityTable, id: number, version: number, row: Record<string, unknown>, at: Date): Promise<number> {
-  return q(table)
-    .where({ id, version })
-    .update({ ...row, version: version + 1, updated_at: at });
-}
+const updateRow = (q: Q, table: FacilityTable, id: number, version: number, row: Row, at: Date) => updateVersioned(q, table, id, version, row, at);
 
 async function deleteRow(q: Q, table: FacilityTable, id: number): Promise<void> {
   await q(table).where({ id }).delete();

@@ -1,5 +1,6 @@
 import type { Knex } from "knex";
 import type { OutboxMessage } from "#shared/schemas/outbox.ts";
+import { instant, json, num, readRow, text } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -38,18 +39,10 @@ export async function insertMessage(db: Knex, m: StoredMessageInsert): Promise<n
   });
 }
 
-function toMessage(r: Record<string, unknown>): OutboxMessage {
-  return {
-    id: Number(r.id),
-    to: String(r.recipients ?? ""),
-    from: String(r.from_header ?? r.envelope_from ?? ""),
-    subject: String(r.subject ?? ""),
-    receivedAt: (r.received_at as Date).toISOString(),
-    text: String(r.text ?? ""),
-    html: String(r.html ?? ""),
-    headers: JSON.parse(String(r.headers)) as Record<string, string>,
-  };
-}
+const toMessage = readRow<OutboxMessage>({
+  id: num(), to: text("recipients"), from: (row) => String(row.from_header ?? row.envelope_from ?? ""), subject: text(), receivedAt: instant(), text: text(), html: text(),
+  headers: json<Record<string, string>>({}),
+});
 
 function baseQuery(q: Q) {
   return q("mail_messages as m")

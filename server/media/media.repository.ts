@@ -3,6 +3,7 @@ import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaListFilters, MediaStatus, MediaTags, Sensitivity, TagKind, VariantFormat } from "#shared/schemas/media.ts";
 import type { System } from "#shared/schemas/programme.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
+import { bool, columnsOf, date, dateOrNull, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -46,40 +47,12 @@ export interface VariantRecord {
   bytes: number;
 }
 
-const str = (v: unknown): string | null => (v === null || v === undefined ? null : String(v));
-
-function toMedia(r: Record<string, unknown>): MediaRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    sha256: String(r.sha256),
-    status: r.status as MediaStatus,
-    failureReason: str(r.failure_reason),
-    originalKey: String(r.original_key),
-    originalName: String(r.original_name ?? ""),
-    mime: String(r.mime),
-    bytes: Number(r.bytes),
-    width: Number(r.width),
-    height: Number(r.height),
-    takenAt: str(r.taken_at),
-    hadGps: Boolean(r.had_gps),
-    altText: str(r.alt_text),
-    caption: str(r.caption),
-    credit: str(r.credit),
-    focalX: Number(r.focal_x),
-    focalY: Number(r.focal_y),
-    sensitivity: r.sensitivity as Sensitivity,
-    flaggedForReview: Boolean(r.flagged_for_review),
-    reviewedAt: (r.reviewed_at as Date | null) ?? null,
-    reviewedBy: r.reviewed_by == null ? null : Number(r.reviewed_by),
-    placeholder: str(r.placeholder),
-    dominantColor: str(r.dominant_color),
-    isIllustration: Boolean(r.is_illustration),
-    uploadedBy: r.uploaded_by == null ? null : Number(r.uploaded_by),
-    createdAt: r.created_at as Date,
-    updatedAt: r.updated_at as Date,
-  };
-}
+const toMedia = readRow<MediaRecord>({
+  id: num(), projectId: num(), sha256: text(), status: oneOf<MediaStatus>(), failureReason: textOrNull(), originalKey: text(), originalName: text(), mime: text(),
+  bytes: num(), width: num(), height: num(), takenAt: textOrNull(), hadGps: bool(), altText: textOrNull(), caption: textOrNull(), credit: textOrNull(),
+  focalX: num(), focalY: num(), sensitivity: oneOf<Sensitivity>(), flaggedForReview: bool(), reviewedAt: dateOrNull(), reviewedBy: numOrNull(),
+  placeholder: textOrNull(), dominantColor: textOrNull(), isIllustration: bool(), uploadedBy: numOrNull(), createdAt: date(), updatedAt: date(),
+});
 
 function itemsQuery(q: Q) {
   return q("media_items as i").select("i.*");
@@ -211,19 +184,10 @@ export interface MediaUpdate {
   isIllustration?: boolean;
 }
 
+const MEDIA_UPDATE_KEYS = ["altText", "caption", "credit", "focalX", "focalY", "sensitivity", "flaggedForReview", "reviewedBy", "reviewedAt", "isIllustration"] as const satisfies ReadonlyArray<keyof MediaUpdate>;
+
 export async function updateMedia(q: Q, id: number, u: MediaUpdate): Promise<void> {
-  const row: Record<string, unknown> = { updated_at: q.raw("CURRENT_TIMESTAMP(3)") };
-  if (u.altText !== undefined) row.alt_text = u.altText;
-  if (u.caption !== undefined) row.caption = u.caption;
-  if (u.credit !== undefined) row.credit = u.credit;
-  if (u.focalX !== undefined) row.focal_x = u.focalX;
-  if (u.focalY !== undefined) row.focal_y = u.focalY;
-  if (u.sensitivity !== undefined) row.sensitivity = u.sensitivity;
-  if (u.flaggedForReview !== undefined) row.flagged_for_review = u.flaggedForReview;
-  if (u.reviewedBy !== undefined) row.reviewed_by = u.reviewedBy;
-  if (u.reviewedAt !== undefined) row.reviewed_at = u.reviewedAt;
-  if (u.isIllustration !== undefined) row.is_illustration = u.isIllustration;
-  await q("media_items").where({ id }).update(row);
+  await q("media_items").where({ id }).update({ ...columnsOf(u, MEDIA_UPDATE_KEYS), updated_at: q.raw("CURRENT_TIMESTAMP(3)") });
 }
 
 // Tags

@@ -1,5 +1,6 @@
 import type { MilestoneEventFieldName, MilestoneEventRow } from "#shared/schemas/programme.ts";
 import { visibleTo, type Q, type Viewer } from "./programme.repository.ts";
+import { instant, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 // The history of the programme: every change of a tracked field of a milestone is an event.
 
@@ -51,20 +52,10 @@ function eventQuery(q: Q) {
     ]);
 }
 
-function toEvent(r: Record<string, unknown>): MilestoneEventRecord {
-  return {
-    id: Number(r.id),
-    milestoneId: Number(r.milestone_id),
-    milestoneName: String(r.milestone_name),
-    field: r.field as MilestoneEventFieldName,
-    from: (r.from_value as string | null) ?? null,
-    to: (r.to_value as string | null) ?? null,
-    at: (r.at as Date).toISOString(),
-    byUserId: r.by_user_id == null ? null : Number(r.by_user_id),
-    note: (r.note as string | null) ?? null,
-    baselineVersion: r.baseline_version === null || r.baseline_version === undefined ? null : Number(r.baseline_version),
-  };
-}
+const toEvent = readRow<MilestoneEventRecord>({
+  id: num(), milestoneId: num(), milestoneName: text(), field: oneOf<MilestoneEventFieldName>(), from: textOrNull("from_value"), to: textOrNull("to_value"), at: instant(),
+  byUserId: numOrNull(), note: textOrNull(), baselineVersion: numOrNull(),
+});
 
 /** A milestone's history, newest first (the caller has already been shown the milestone). */
 export async function listMilestoneEvents(q: Q, milestoneId: number): Promise<MilestoneEventRecord[]> {

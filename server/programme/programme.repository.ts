@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import { MILESTONE_FIELD_NAMES, MILESTONE_FIELDS, milestoneColumn, type MilestoneFieldKind, type MilestoneFieldName, type MilestoneFieldValues, type System } from "#shared/schemas/programme.ts";
 import { audiencesFor, type Viewer } from "#shared/domain/audience.ts";
+import { projectIdOf, updateVersioned } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -187,10 +188,7 @@ export async function findMilestone(q: Q, id: number, viewer: Viewer, opts: { fo
 }
 
 /** The project a milestone belongs to, whoever may see it (the caller's audience is checked after). */
-export async function findMilestoneProjectId(q: Q, id: number): Promise<number | null> {
-  const r = await q("milestones").where({ id }).first("project_id");
-  return r ? Number(r.project_id) : null;
-}
+export const findMilestoneProjectId = (q: Q, id: number) => projectIdOf(q, "milestones", id);
 
 export async function insertMilestone(q: Q, projectId: number, fields: MilestoneFields, at: Date): Promise<number> {
   const [id] = await q("milestones").insert({ ...toRow(fields), project_id: projectId, version: 1, created_at: at, updated_at: at });
@@ -201,11 +199,7 @@ export async function insertMilestone(q: Q, projectId: number, fields: Milestone
  * Optimistic concurrency: the row changes only while it still has `version`, and its
  * version goes up by one. Returns the number of rows changed (0 = someone else won).
  */
-export async function updateMilestone(q: Q, id: number, version: number, fields: Partial<MilestoneFields>, at: Date): Promise<number> {
-  return q("milestones")
-    .where({ id, version })
-    .update({ ...toRow(fields), version: version + 1, updated_at: at });
-}
+export const updateMilestone = (q: Q, id: number, version: number, fields: Partial<MilestoneFields>, at: Date) => updateVersioned(q, "milestones", id, version, toRow(fields), at);
 
 export async function deleteMilestone(q: Q, id: number): Promise<void> {
   await q("milestones").where({ id }).delete();

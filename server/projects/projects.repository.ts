@@ -2,29 +2,17 @@ import type { Knex } from "knex";
 import type { BudgetSettingsInput } from "#shared/schemas/budget.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { DEFAULT_RISK_SCALE, RiskScaleSchema, type RiskScale } from "#shared/schemas/risks.ts";
+import { bool, json, num, numOr, numOrNull, readRow, text, textOrNull } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
-function toProject(r: Record<string, unknown>): Project {
-  return {
-    id: Number(r.id),
-    slug: String(r.slug),
-    name: String(r.name),
-    operatorName: String(r.operator_name),
-    locationLabel: String(r.location_label ?? ""),
-    timeZone: String(r.time_zone),
-    description: String(r.description ?? ""),
-    currency: String(r.currency),
-    visitsOffered: Boolean(r.visits_offered),
-    settings: {
-      toleranceWorkingDays: Number(r.tolerance_working_days),
-      behindWorkingDays: Number(r.behind_working_days),
-      weekendDays: JSON.parse(String(r.weekend_days ?? "[6,7]")) as number[],
-      holidays: r.holidays ? (JSON.parse(String(r.holidays)) as string[]) : [],
-      availableFromLevel: r.available_from_level == null ? 4 : Number(r.available_from_level),
-    },
-  };
-}
+const toSettings = readRow<Project["settings"]>({
+  toleranceWorkingDays: num(), behindWorkingDays: num(), weekendDays: json<number[]>([6, 7]), holidays: json<string[]>([]), availableFromLevel: numOr(4),
+});
+const toProject = readRow<Project>({
+  id: num(), slug: text(), name: text(), operatorName: text(), locationLabel: text(), timeZone: text(), description: text(), currency: text(), visitsOffered: bool(),
+  settings: toSettings,
+});
 
 export async function listProjects(q: Q): Promise<Project[]> {
   return (await q("projects").orderBy("name")).map(toProject);
@@ -64,9 +52,7 @@ export interface ProjectSender {
 
 const SENDER_COLUMNS = ["id", "slug", "name", "operator_name", "postal_address", "time_zone"] as const;
 
-function toSender(r: Record<string, unknown>): ProjectSender {
-  return { id: Number(r.id), slug: String(r.slug), name: String(r.name), operatorName: String(r.operator_name), postalAddress: r.postal_address == null ? null : String(r.postal_address), timeZone: String(r.time_zone) };
-}
+const toSender = readRow<ProjectSender>({ id: num(), slug: text(), name: text(), operatorName: text(), postalAddress: textOrNull(), timeZone: text() });
 
 export async function findProjectSender(q: Q, id: number): Promise<ProjectSender | null> {
   const r = await q("projects").where({ id }).first(...SENDER_COLUMNS);
@@ -124,9 +110,7 @@ export interface HeroChoice {
   version: number;
 }
 
-function toHero(r: Record<string, unknown>): HeroChoice {
-  return { mediaId: r.hero_media_id == null ? null : Number(r.hero_media_id), focusX: Number(r.hero_focus_x), focusY: Number(r.hero_focus_y), version: Number(r.hero_version) };
-}
+const toHero = readRow<HeroChoice>({ mediaId: numOrNull("hero_media_id"), focusX: num("hero_focus_x"), focusY: num("hero_focus_y"), version: num("hero_version") });
 
 export async function findHeroChoice(q: Q, id: number): Promise<HeroChoice | null> {
   const r = await q("projects").where({ id }).first("hero_media_id", "hero_focus_x", "hero_focus_y", "hero_version");

@@ -1,5 +1,6 @@
 import type { Audience } from "#shared/schemas/common.ts";
 import type { PostStatus } from "#shared/schemas/publishing.ts";
+import { date, dateOrNull, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 /**
  * The workflow's columns, which every kind's content table has (`posts`, `stories`; decision 023):
@@ -44,27 +45,10 @@ export const WORKFLOW_COLUMNS = [
   "updated_at",
 ] as const;
 
-const dateOrNull = (v: unknown): Date | null => (v === null || v === undefined ? null : new Date(v as string));
-
-export function toWorkflowRecord(r: Record<string, unknown>): WorkflowRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    slug: String(r.slug),
-    title: String(r.title),
-    audience: r.audience as Audience,
-    status: r.status as PostStatus,
-    authorId: r.author_id === null ? null : Number(r.author_id),
-    authorName: String(r.author_name),
-    scheduledFor: dateOrNull(r.scheduled_for),
-    publishedAt: dateOrNull(r.published_at),
-    withdrawnAt: dateOrNull(r.withdrawn_at),
-    reviewComment: r.review_comment === null || r.review_comment === undefined ? null : String(r.review_comment),
-    version: Number(r.version),
-    createdAt: new Date(r.created_at as string),
-    updatedAt: new Date(r.updated_at as string),
-  };
-}
+export const toWorkflowRecord = readRow<WorkflowRecord>({
+  id: num(), projectId: num(), slug: text(), title: text(), audience: oneOf<Audience>(), status: oneOf<PostStatus>(), authorId: numOrNull(), authorName: text(),
+  scheduledFor: dateOrNull(), publishedAt: dateOrNull(), withdrawnAt: dateOrNull(), reviewComment: textOrNull(), version: num(), createdAt: date(), updatedAt: date(),
+});
 
 /** The workflow's columns of a new item: a draft by its author. */
 export function newDraftColumns(row: { projectId: number; slug: string; title: string; audience: Audience; authorId: number | null; authorName: string; at: Date }): Record<string, unknown> {

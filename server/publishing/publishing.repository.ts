@@ -4,6 +4,7 @@ import type { ContentKind } from "#shared/domain/publishing-workflow.ts";
 import type { PostStatus, PublishingEvent } from "#shared/schemas/publishing.ts";
 import type { Viewer } from "#shared/domain/audience.ts";
 import { visibleContent } from "./publishing.audience.ts";
+import { date, num, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -119,18 +120,7 @@ export async function insertRevision(q: Q, kind: ContentKind, ownerId: number, r
   return number;
 }
 
-function toHead(r: Record<string, unknown>): RevisionHead {
-  return {
-    number: Number(r.number),
-    title: String(r.title),
-    slug: String(r.slug),
-    audience: r.audience as Audience,
-    status: r.status as PostStatus,
-    note: r.note === null || r.note === undefined ? null : String(r.note),
-    authorName: String(r.author_name),
-    createdAt: new Date(r.created_at as string),
-  };
-}
+const toHead = readRow<RevisionHead>({ number: num(), title: text(), slug: text(), audience: oneOf<Audience>(), status: oneOf<PostStatus>(), note: textOrNull(), authorName: text(), createdAt: date() });
 
 /** An item's revisions, newest first, without their content (the list of revisions). */
 export async function listRevisions(q: Q, kind: ContentKind, ownerId: number): Promise<RevisionHead[]> {

@@ -3,6 +3,7 @@ import type { ReportState } from "#shared/schemas/reports.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { insertRecordEvents, listRecordEvents, type NewRecordEvent } from "../core/record-events.ts";
 import { retryOnDeadlock } from "../db/retry.ts";
+import { date, dateOrNull, json, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -33,26 +34,11 @@ export interface ReportRecord {
   updatedAt: Date;
 }
 
-function toReport(r: Record<string, unknown>): ReportRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    month: String(r.month),
-    state: r.state as ReportState,
-    audience: r.audience as RecordAudience,
-    commentary: JSON.parse(String(r.commentary ?? "{}")) as Record<string, unknown>,
-    figures: r.figures == null ? null : (JSON.parse(String(r.figures)) as unknown),
-    documentId: r.document_id == null ? null : Number(r.document_id),
-    supersedesId: r.supersedes_id == null ? null : Number(r.supersedes_id),
-    correctionNote: (r.correction_note as string | null) ?? null,
-    issuedBy: r.issued_by == null ? null : Number(r.issued_by),
-    issuedAt: (r.issued_at as Date | null) ?? null,
-    createdBy: r.created_by == null ? null : Number(r.created_by),
-    version: Number(r.version),
-    createdAt: r.created_at as Date,
-    updatedAt: r.updated_at as Date,
-  };
-}
+const toReport = readRow<ReportRecord>({
+  id: num(), projectId: num(), month: text(), state: oneOf<ReportState>(), audience: oneOf<RecordAudience>(), commentary: json<Record<string, unknown>>({}),
+  figures: json<unknown>(null), documentId: numOrNull(), supersedesId: numOrNull(), correctionNote: textOrNull(), issuedBy: numOrNull(), issuedAt: dateOrNull(),
+  createdBy: numOrNull(), version: num(), createdAt: date(), updatedAt: date(),
+});
 
 /** Which reports a reader may see: staff every one; an investor the issued and superseded ones of investor audience. */
 export type ReportScope = { kind: "staff" } | { kind: "investor" };
@@ -81,10 +67,7 @@ export async function findSuperseding(q: Q, ids: readonly number[]): Promise<Map
   return new Map(rows.map((r) => [Number(r.supersedes_id), Number(r.id)]));
 }
 
-export async function findProjectIdOfReport(q: Q, id: number): Promise<number | null> {
-  const row = (await q("reports").where({ id }).first("project_id")) as { project_id: number } | undefined;
-  return row ? Number(row.project_id) : null;
-}
+export const findProjectIdOfReport = (q: Q, id: number) => projectIdOf(q, "reports", id);
 
 /** A draft of this month still open (not yet issued), if any. */
 export async function findOpenDraft(q: Q, projectId: number, month: string): Promise<ReportRecord | null> {

@@ -1,6 +1,7 @@
 import type { Knex } from "knex";
 import type { Role } from "#shared/schemas/common.ts";
 import type { ReviewContentKind, ReviewVerdict } from "#shared/schemas/review-links.ts";
+import { date, dateOrNull, num, numOrNull, oneOf, oneOfOrNull, readRow, text, textOrNull } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -39,27 +40,17 @@ export interface ReviewLinkEventRecord {
   at: Date;
 }
 
-const date = (v: unknown) => new Date(v as string);
-const text = (v: unknown) => (v === null || v === undefined ? null : String(v));
 
-function toLink(r: Record<string, unknown>): ReviewLinkRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    contentKind: r.content_kind as ReviewContentKind,
-    contentId: Number(r.content_id),
-    revisionNumber: Number(r.revision_number),
-    reviewerName: String(r.reviewer_name),
-    reviewerEmail: String(r.reviewer_email),
-    reviewerOrganisation: text(r.reviewer_organisation),
-    nonce: String(r.nonce),
-    expiresAt: date(r.expires_at),
-    revokedAt: r.revoked_at ? date(r.revoked_at) : null,
-    createdBy: r.created_by === null ? null : Number(r.created_by),
-    createdByRole: r.created_by_role as ReviewLinkRecord["createdByRole"],
-    createdAt: date(r.created_at),
-  };
-}
+const toLinkEvent = readRow<ReviewLinkEventRecord>({
+  reviewLinkId: num(), kind: oneOf<ReviewLinkEventRecord["kind"]>(), verdict: oneOfOrNull<ReviewVerdict>(), comment: textOrNull(), revisionNumber: num(), ip: textOrNull(),
+  userAgent: textOrNull(), at: date(),
+});
+
+const toLink = readRow<ReviewLinkRecord>({
+  id: num(), projectId: num(), contentKind: oneOf<ReviewContentKind>(), contentId: num(), revisionNumber: num(), reviewerName: text(), reviewerEmail: text(),
+  reviewerOrganisation: textOrNull(), nonce: text(), expiresAt: date(), revokedAt: dateOrNull(), createdBy: numOrNull(),
+  createdByRole: oneOf<ReviewLinkRecord["createdByRole"]>(), createdAt: date(),
+});
 
 export async function insertReviewLink(q: Q, link: Omit<ReviewLinkRecord, "id" | "revokedAt">): Promise<number> {
   const [id] = await q("review_links").insert({
@@ -116,16 +107,7 @@ export async function eventsOfLinks(q: Q, ids: readonly number[]): Promise<Map<n
   for (const r of rows) {
     const id = Number(r.review_link_id);
     const list = out.get(id) ?? [];
-    list.push({
-      reviewLinkId: id,
-      kind: r.kind,
-      verdict: (r.verdict ?? null) as ReviewVerdict | null,
-      comment: text(r.comment),
-      revisionNumber: Number(r.revision_number),
-      ip: text(r.ip),
-      userAgent: text(r.user_agent),
-      at: date(r.at),
-    });
+    list.push(toLinkEvent(r));
     out.set(id, list);
   }
   return out;

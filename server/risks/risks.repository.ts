@@ -1,6 +1,7 @@
 import type { Knex } from "knex";
 import type { ActionStatus, CostExposure, RecordAudience, RiskCategory, RiskKind, RiskStatus } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
+import { instant, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -53,35 +54,16 @@ const LINKS = {
   linkedSystems: { table: "risk_systems", column: "system_id" },
 } as const;
 
-function toRisk(r: Record<string, unknown>, links: RiskLinks): RiskRecord {
-  const hasCost = r.cost_most_likely != null;
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    kind: r.kind as RiskKind,
-    number: Number(r.number),
-    title: String(r.title),
-    description: String(r.description ?? ""),
-    cause: String(r.cause ?? ""),
-    effect: String(r.effect ?? ""),
-    category: r.category as RiskCategory,
-    ownerId: Number(r.owner_id),
-    likelihood: Number(r.likelihood),
-    impact: Number(r.impact),
-    costExposure: hasCost ? { min: Number(r.cost_min), mostLikely: Number(r.cost_most_likely), max: Number(r.cost_max), probability: Number(r.probability) } : null,
-    scheduleDays: r.schedule_days == null ? null : Number(r.schedule_days),
-    status: r.status as RiskStatus,
-    audience: r.audience as RecordAudience,
-    impactNow: String(r.impact_now ?? ""),
-    action: String(r.action ?? ""),
-    dueDate: r.due_date == null ? null : String(r.due_date),
-    fromRiskId: r.from_risk_id == null ? null : Number(r.from_risk_id),
-    ...links,
-    version: Number(r.version),
-    createdAt: (r.created_at as Date).toISOString(),
-    updatedAt: (r.updated_at as Date).toISOString(),
-  };
-}
+/** A risk's cost exposure is stored only with its most likely cost. */
+const toCostExposure = (r: Row): RiskRecord["costExposure"] =>
+  r.cost_most_likely == null ? null : { min: Number(r.cost_min), mostLikely: Number(r.cost_most_likely), max: Number(r.cost_max), probability: Number(r.probability) };
+
+const readRisk = readRow<Omit<RiskRecord, keyof RiskLinks>>({
+  id: num(), projectId: num(), kind: oneOf<RiskKind>(), number: num(), title: text(), description: text(), cause: text(), effect: text(), category: oneOf<RiskCategory>(),
+  ownerId: num(), likelihood: num(), impact: num(), costExposure: toCostExposure, scheduleDays: numOrNull(), status: oneOf<RiskStatus>(), audience: oneOf<RecordAudience>(),
+  impactNow: text(), action: text(), dueDate: textOrNull(), fromRiskId: numOrNull(), version: num(), createdAt: instant(), updatedAt: instant(),
+});
+const toRisk = (r: Row, links: RiskLinks): RiskRecord => ({ ...readRisk(r), ...links });
 
 function riskRow(f: Partial<RiskFields>): Record<string, unknown> {
   const row: Record<string, unknown> = {};
@@ -142,10 +124,7 @@ export async function findRisk(q: Q, id: number, audiences: readonly RecordAudie
 }
 
 /** The project a risk belongs to (any audience), or null. */
-export async function findRiskProjectId(q: Q, id: number): Promise<number | null> {
-  const r = await q("risks").where({ id }).first("project_id");
-  return r ? Number(r.project_id) : null;
-}
+export const findRiskProjectId = (q: Q, id: number) => projectIdOf(q, "risks", id);
 
 /** Risks and issues of the project among these ids, of these audiences (for other records' links). */
 export async function findRisksOfProject(q: Q, projectId: number, ids: readonly number[], audiences: readonly RecordAudience[]): Promise<RiskRecord[]> {
@@ -173,11 +152,7 @@ export async function insertRisk(q: Q, r: RiskFields & { projectId: number; kind
 }
 
 /** Optimistic concurrency: changes the row only while it still has `version` (0 = someone else saved first). */
-export function updateRisk(q: Q, id: number, version: number, fields: Partial<RiskFields>, at: Date): Promise<number> {
-  return q("risks")
-    .where({ id, version })
-    .update({ ...riskRow(fields), version: version + 1, updated_at: at });
-}
+export const updateRisk = (q: Q, id: number, version: number, fields: Partial<RiskFields>, at: Date) => updateVersioned(q, "risks", id, version, riskRow(fields), at);
 
 export async function replaceRiskLinks(q: Q, riskId: number, links: Partial<RiskLinks>): Promise<void> {
   for (const [key, { table, column }] of Object.entries(LINKS) as Array<[keyof RiskLinks, { table: string; column: string }]>) {
@@ -208,17 +183,7 @@ export interface MitigationRecord extends MitigationFields {
   version: number;
 }
 
-function toMitigation(r: Record<string, unknown>): MitigationRecord {
-  return {
-    id: Number(r.id),
-    riskId: Number(r.risk_id),
-    description: String(r.description),
-    ownerId: Number(r.owner_id),
-    dueDate: r.due_date == null ? null : String(r.due_date),
-    status: r.status as ActionStatus,
-    version: Number(r.version),
-  };
-}
+const toMitigation = readRow<MitigationRecord>({ id: num(), riskId: num(), description: text(), ownerId: num(), dueDate: textOrNull(), status: oneOf<ActionStatus>(), version: num() });
 
 function mitigationRow(f: Partial<MitigationFields>): Record<string, unknown> {
   const row: Record<string, unknown> = { description: f.description, owner_id: f.ownerId, due_date: f.dueDate, status: f.status };
@@ -244,11 +209,7 @@ export async function insertMitigation(q: Q, riskId: number, f: MitigationFields
   return Number(id);
 }
 
-export function updateMitigation(q: Q, id: number, version: number, fields: Partial<MitigationFields>, at: Date): Promise<number> {
-  return q("risk_mitigations")
-    .where({ id, version })
-    .update({ ...mitigationRow(fields), version: version + 1, updated_at: at });
-}
+export const updateMitigation = (q: Q, id: number, version: number, fields: Partial<MitigationFields>, at: Date) => updateVersioned(q, "risk_mitigations", id, version, mitigationRow(fields), at);
 
 export async function deleteMitigation(q: Q, id: number): Promise<void> {
   await q("risk_mitigations").where({ id }).delete();

@@ -2,6 +2,7 @@ import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { SiteAreaKind } from "#shared/schemas/site-plan.ts";
 import { insertRecordEvents, type NewRecordEvent } from "../core/record-events.ts";
+import { num, oneOf, projectIdOf, readRow, text, updateVersioned } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -27,20 +28,7 @@ export interface SiteAreaRecord extends SiteAreaFields {
   version: number;
 }
 
-function toRecord(r: Record<string, unknown>): SiteAreaRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    name: String(r.name),
-    kind: r.kind as SiteAreaKind,
-    audience: r.audience as Audience,
-    x: Number(r.x),
-    y: Number(r.y),
-    w: Number(r.w),
-    h: Number(r.h),
-    version: Number(r.version),
-  };
-}
+const toRecord = readRow<SiteAreaRecord>({ id: num(), projectId: num(), name: text(), kind: oneOf<SiteAreaKind>(), audience: oneOf<Audience>(), x: num(), y: num(), w: num(), h: num(), version: num() });
 
 /** A project's areas of these audiences, top-left first (the order a reader's eye and a screen reader take them). */
 export async function listAreas(q: Q, projectId: number, audiences: readonly Audience[]): Promise<SiteAreaRecord[]> {
@@ -56,10 +44,7 @@ export async function findArea(q: Q, id: number, opts: { forUpdate?: boolean } =
   return row ? toRecord(row) : null;
 }
 
-export async function findAreaProjectId(q: Q, id: number): Promise<number | null> {
-  const row = (await q("site_areas").where({ id }).first("project_id")) as { project_id: number } | undefined;
-  return row ? Number(row.project_id) : null;
-}
+export const findAreaProjectId = (q: Q, id: number) => projectIdOf(q, "site_areas", id);
 
 export async function insertArea(q: Q, projectId: number, f: SiteAreaFields, at: Date): Promise<number> {
   const [id] = await q("site_areas").insert({ project_id: projectId, ...f, created_at: at, updated_at: at });
@@ -67,11 +52,7 @@ export async function insertArea(q: Q, projectId: number, f: SiteAreaFields, at:
 }
 
 /** Writes the fields when the row is still at `version`; how many rows changed (0 = someone else wrote first). */
-export async function updateArea(q: Q, id: number, version: number, f: Partial<SiteAreaFields>, at: Date): Promise<number> {
-  return q("site_areas")
-    .where({ id, version })
-    .update({ ...f, version: version + 1, updated_at: at });
-}
+export const updateArea = (q: Q, id: number, version: number, f: Partial<SiteAreaFields>, at: Date) => updateVersioned(q, "site_areas", id, version, f, at);
 
 export async function deleteArea(q: Q, id: number): Promise<void> {
   await q("site_areas").where({ id }).delete();

@@ -1,5 +1,6 @@
 import type { Knex } from "knex";
 import type { Frequency, Interest, SubscriberAudience, SubscriberFilterQuery, SubscriberStatus, Topics } from "#shared/schemas/subscribers.ts";
+import { date, dateOrNull, instant, instantOrNull, json, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -33,39 +34,14 @@ export interface SubscriberRecord {
   updatedAt: Date;
 }
 
-const date = (v: unknown): Date | null => (v == null ? null : (v as Date));
-const str = (v: unknown): string | null => (v == null ? null : String(v));
 
-function toSubscriber(r: Record<string, unknown>): SubscriberRecord {
-  return {
-    id: Number(r.id),
-    projectId: Number(r.project_id),
-    userId: r.user_id == null ? null : Number(r.user_id),
-    email: String(r.email),
-    emailHash: String(r.email_hash),
-    name: String(r.name),
-    organisation: str(r.organisation),
-    interest: r.interest as Interest,
-    audience: r.audience as SubscriberAudience,
-    frequency: r.frequency as Frequency,
-    topics: r.topics == null ? null : (JSON.parse(String(r.topics)) as Topics),
-    topicsKey: String(r.topics_key),
-    status: r.status as SubscriberStatus,
-    statusChangedAt: date(r.status_changed_at),
-    consentAt: date(r.consent_at),
-    consentIp: str(r.consent_ip),
-    consentVersion: str(r.consent_version),
-    consentSource: str(r.consent_source),
-    confirmNonce: str(r.confirm_nonce),
-    pendingSince: date(r.pending_since),
-    confirmedAt: date(r.confirmed_at),
-    confirmIp: str(r.confirm_ip),
-    unsubscribedAt: date(r.unsubscribed_at),
-    lastDigestAt: date(r.last_digest_at),
-    createdAt: r.created_at as Date,
-    updatedAt: r.updated_at as Date,
-  };
-}
+const toSubscriber = readRow<SubscriberRecord>({
+  id: num(), projectId: num(), userId: numOrNull(), email: text(), emailHash: text(), name: text(), organisation: textOrNull(), interest: oneOf<Interest>(),
+  audience: oneOf<SubscriberAudience>(), frequency: oneOf<Frequency>(), topics: json<Topics | null>(null), topicsKey: text(), status: oneOf<SubscriberStatus>(),
+  statusChangedAt: dateOrNull(), consentAt: dateOrNull(), consentIp: textOrNull(), consentVersion: textOrNull(), consentSource: textOrNull(),
+  confirmNonce: textOrNull(), pendingSince: dateOrNull(), confirmedAt: dateOrNull(), confirmIp: textOrNull(), unsubscribedAt: dateOrNull(),
+  lastDigestAt: dateOrNull(), createdAt: date(), updatedAt: date(),
+});
 
 function base(q: Q) {
   return q("subscribers as s").select("s.*");
@@ -335,18 +311,14 @@ export async function skipQueuedJobs(q: Q, subscriberIds: number[], reason: stri
   await q("subscriber_mail_jobs").whereIn("subscriber_id", subscriberIds).andWhere({ status: "queued" }).update({ status: "skipped", last_error: reason, lease_until: null });
 }
 
+const toMailJob = readRow<{ subscriberId: number; kind: string; status: string; attempts: number; createdAt: string; sentAt: string | null; messageId: string | null }>({
+  subscriberId: num(), kind: text(), status: text(), attempts: num(), createdAt: instant(), sentAt: instantOrNull(), messageId: textOrNull(),
+});
+
 export async function listMailJobsOf(q: Q, subscriberIds: number[]) {
   if (subscriberIds.length === 0) return [];
   const rows = await q("subscriber_mail_jobs").whereIn("subscriber_id", subscriberIds).orderBy("id");
-  return rows.map((r: Record<string, unknown>) => ({
-    subscriberId: Number(r.subscriber_id),
-    kind: String(r.kind),
-    status: String(r.status),
-    attempts: Number(r.attempts),
-    createdAt: (r.created_at as Date).toISOString(),
-    sentAt: r.sent_at ? (r.sent_at as Date).toISOString() : null,
-    messageId: str(r.message_id),
-  }));
+  return rows.map(toMailJob);
 }
 
 /** Two requests for one new address at once: one hits the unique key or a deadlock and can simply run again. */

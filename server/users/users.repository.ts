@@ -1,6 +1,7 @@
 import type { Knex } from "knex";
 import type { Role } from "#shared/schemas/common.ts";
 import type { InvitationRow, UserRow } from "#shared/schemas/users.ts";
+import { columnsOf, date, dateOrNull, num, numOrNull, oneOf, readRow, text } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -16,19 +17,10 @@ export interface UserRecord {
   organisationId: number | null;
 }
 
-function toUser(r: Record<string, unknown>): UserRecord {
-  return {
-    id: Number(r.id),
-    email: String(r.email),
-    name: String(r.name),
-    role: r.role as Role,
-    passwordHash: String(r.password_hash),
-    disabledAt: (r.disabled_at as Date | null) ?? null,
-    lastSignInAt: (r.last_sign_in_at as Date | null) ?? null,
-    createdAt: r.created_at as Date,
-    organisationId: r.organisation_id == null ? null : Number(r.organisation_id),
-  };
-}
+const toUser = readRow<UserRecord>({
+  id: num(), email: text(), name: text(), role: oneOf<Role>(), passwordHash: text(), disabledAt: dateOrNull(), lastSignInAt: dateOrNull(), createdAt: date(),
+  organisationId: numOrNull(),
+});
 
 export function toUserRow(u: UserRecord, organisations: ReadonlyMap<number, Organisation>): UserRow {
   return {
@@ -82,13 +74,7 @@ export async function updateUser(
   id: number,
   patch: Partial<{ role: Role; disabledAt: Date | null; passwordHash: string; lastSignInAt: Date; name: string }>,
 ): Promise<void> {
-  const row: Record<string, unknown> = { updated_at: new Date() };
-  if (patch.role !== undefined) row.role = patch.role;
-  if (patch.disabledAt !== undefined) row.disabled_at = patch.disabledAt;
-  if (patch.passwordHash !== undefined) row.password_hash = patch.passwordHash;
-  if (patch.lastSignInAt !== undefined) row.last_sign_in_at = patch.lastSignInAt;
-  if (patch.name !== undefined) row.name = patch.name;
-  await q("users").where({ id }).update(row);
+  await q("users").where({ id }).update({ ...columnsOf(patch, ["role", "disabledAt", "passwordHash", "lastSignInAt", "name"]), updated_at: new Date() });
 }
 
 /** Sets or clears a user's organisation. */
@@ -151,19 +137,10 @@ export interface InvitationRecord {
   createdAt: Date;
 }
 
-function toInvitation(r: Record<string, unknown>): InvitationRecord {
-  return {
-    id: Number(r.id),
-    email: String(r.email),
-    role: r.role as Role,
-    tokenHash: String(r.token_hash),
-    invitedBy: r.invited_by == null ? null : Number(r.invited_by),
-    expiresAt: r.expires_at as Date,
-    acceptedAt: (r.accepted_at as Date | null) ?? null,
-    revokedAt: (r.revoked_at as Date | null) ?? null,
-    createdAt: r.created_at as Date,
-  };
-}
+const toInvitation = readRow<InvitationRecord>({
+  id: num(), email: text(), role: oneOf<Role>(), tokenHash: text(), invitedBy: numOrNull(), expiresAt: date(), acceptedAt: dateOrNull(), revokedAt: dateOrNull(),
+  createdAt: date(),
+});
 
 export async function insertInvitation(
   q: Q,
