@@ -1,5 +1,6 @@
 import type { Knex } from "knex";
 import type { AuditEvent } from "#shared/schemas/users.ts";
+import { countOf } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -39,8 +40,7 @@ export async function listAuditEvents(
     if (f.before) query.where("id", "<", f.before);
     return query;
   };
-  const [rows, countRow] = await Promise.all([matching().orderBy("id", "desc").offset(window.offset).limit(window.limit), matching().count({ n: "*" }).first()]);
-  const total = Number((countRow as { n?: number } | undefined)?.n ?? 0);
+  const [rows, total] = await Promise.all([matching().orderBy("id", "desc").offset(window.offset).limit(window.limit), countOf(matching())]);
   const items = rows.map((r: Record<string, unknown>) => ({
     id: Number(r.id),
     at: (r.at as Date).toISOString(),

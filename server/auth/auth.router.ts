@@ -16,6 +16,7 @@ import { AppError } from "../core/app-error.ts";
 import { actorOf } from "../core/auth.ts";
 import type { CsrfGuard } from "../core/csrf.ts";
 import { requestLimit } from "../core/request-limit.ts";
+import { route } from "../core/route.ts";
 import type { SignInDelays } from "../rate-limit/sign-in-delays.service.ts";
 import type { AuthService } from "./auth.service.ts";
 
@@ -112,10 +113,7 @@ export function authRouter(deps: {
     res.set("Cache-Control", "no-store").json({ user: req.user });
   });
 
-  r.get("/auth/invitations/:token", async (req, res) => {
-    const { token } = TokenParamSchema.parse(req.params);
-    res.json(await auth.describeInvitation(token));
-  });
+  r.get("/auth/invitations/:token", route({ params: TokenParamSchema }, ({ params }) => auth.describeInvitation(params.token)));
 
   r.post("/auth/invitations/:token/accept", perIp, async (req, res) => {
     const { token } = TokenParamSchema.parse(req.params);
@@ -126,18 +124,24 @@ export function authRouter(deps: {
     res.status(201).json({ user });
   });
 
-  r.post("/auth/password-reset", resetRequestsPerIp, async (req, res) => {
-    const { email } = ResetRequestInputSchema.parse(req.body);
-    await auth.requestPasswordReset(email, actorOf(req));
-    res.status(202).json({ ok: true, message: "If that address has an account, a reset link is on its way." });
-  });
+  r.post(
+    "/auth/password-reset",
+    resetRequestsPerIp,
+    route({ body: ResetRequestInputSchema, status: 202 }, async ({ body, actor }) => {
+      await auth.requestPasswordReset(body.email, actor);
+      return { ok: true, message: "If that address has an account, a reset link is on its way." };
+    }),
+  );
 
   // Asked by the reset page before it shows the form; the link stays unspent.
-  r.get("/auth/password-reset/:token", async (req, res) => {
-    const { token } = TokenParamSchema.parse(req.params);
-    await auth.checkPasswordReset(token);
-    res.set("Cache-Control", "no-store").json({ ok: true });
-  });
+  r.get(
+    "/auth/password-reset/:token",
+    route({ params: TokenParamSchema }, async ({ params, res }) => {
+      await auth.checkPasswordReset(params.token);
+      res.set("Cache-Control", "no-store");
+      return { ok: true };
+    }),
+  );
 
   r.post("/auth/password-reset/:token", perIp, async (req, res) => {
     const { token } = TokenParamSchema.parse(req.params);

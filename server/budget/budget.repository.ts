@@ -3,7 +3,7 @@ import type { BudgetChangeStatus } from "#shared/schemas/budget.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
 import { insertRecordEvents, listRecordEvents, type NewRecordEvent } from "../core/record-events.ts";
-import { bool, instant, num, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
+import { bool, firstRow, instant, num, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -91,9 +91,7 @@ export async function listChanges(q: Q, projectId: number, audiences: readonly R
 
 /** One change when the viewer may see it; `forUpdate` locks its row for the rest of the transaction. */
 export async function findChange(q: Q, id: number, audiences: readonly RecordAudience[], opts: { forUpdate?: boolean } = {}): Promise<ChangeRecord | null> {
-  const query = visibleTo(q("budget_changes as c").where("c.id", id), audiences).first("c.*");
-  if (opts.forUpdate) query.forUpdate();
-  const r = (await query) as Record<string, unknown> | undefined;
+  const r = await firstRow(visibleTo(q("budget_changes as c").where("c.id", id), audiences).select("c.*"), opts);
   return r ? (await withLinks(q, [r]))[0]! : null;
 }
 

@@ -2,7 +2,8 @@ import { Router } from "express";
 import { z } from "zod";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { AppError } from "../core/app-error.ts";
-import { actorOf, requireRole } from "../core/auth.ts";
+import { requireRole } from "../core/auth.ts";
+import { optionalBody, route } from "../core/route.ts";
 import type { CalendarsService } from "./calendars.service.ts";
 
 const CALENDAR_TYPE = "text/calendar; charset=utf-8";
@@ -14,26 +15,18 @@ const NoBodySchema = z.strictObject({});
 /** The personal feeds' API (signed-in investors and staff), under /api. */
 export function calendarFeedsRouter(calendars: CalendarsService): Router {
   const r = Router();
-  r.post("/projects/:slug/calendar-feed", requireRole(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    NoBodySchema.parse(req.body ?? {});
-    res.status(201).json(await calendars.createFeed(slug, actorOf(req)));
-  });
-  r.delete("/projects/:slug/calendar-feed", requireRole(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    await calendars.revokeFeed(slug, actorOf(req));
-    res.status(204).end();
-  });
+  const project = { params: SlugParamSchema };
+  r.post("/projects/:slug/calendar-feed", requireRole(), route({ ...project, body: optionalBody(NoBodySchema), status: 201 }, ({ params, actor }) => calendars.createFeed(params.slug, actor)));
+  r.delete("/projects/:slug/calendar-feed", requireRole(), route({ ...project, status: 204 }, ({ params, actor }) => calendars.revokeFeed(params.slug, actor)));
   return r;
 }
 
 /** The calendar files, mounted at the root: the public one, and personal ones whose token is the credential. */
 export function calendarFilesRouter(calendars: CalendarsService): Router {
   const r = Router();
-  r.get("/projects/:slug/calendar.ics", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    res.set("Cache-Control", PUBLIC_CACHE).type(CALENDAR_TYPE).send(await calendars.publicCalendar(slug));
-  });
+  r.get("/projects/:slug/calendar.ics", route({ params: SlugParamSchema }, async ({ params, res }) => {
+    res.set("Cache-Control", PUBLIC_CACHE).type(CALENDAR_TYPE).send(await calendars.publicCalendar(params.slug));
+  }));
   r.get("/calendars/:file", async (req, res) => {
     const parsed = FeedFileSchema.safeParse(req.params);
     if (!parsed.success) throw new AppError("not_found", "That calendar was not found.", 404);

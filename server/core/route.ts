@@ -14,6 +14,8 @@ export interface RouteParts {
   body?: z.ZodType;
   /** The answer's status: 200 by default; 204 sends no body (whatever the use case returned). */
   status?: 200 | 201 | 202 | 204;
+  /** Headers the answer carries (a cache rule of its own, `noindex`), set once the request is read. */
+  headers?: Record<string, string>;
 }
 
 type Parsed<S> = S extends z.ZodType ? z.output<S> : undefined;
@@ -30,13 +32,16 @@ export interface RouteInput<P extends RouteParts> {
 
 /**
  * The usual route: parse the parts, run the use case, answer its result as JSON with the given
- * status. A use case that has answered by itself (a file, a redirect, a CSV) is left alone.
+ * status. A use case that has answered by itself before returning (`send`, `redirect`, a CSV) is
+ * left alone. A piped stream has not answered yet when the use case returns (its headers go with
+ * the first chunk), so a route that streams a file stays hand-written.
  */
 export function route<P extends RouteParts>(parts: P, run: (input: RouteInput<P>) => unknown): RequestHandler {
   return async (req, res) => {
     const params = parts.params?.parse(req.params);
     const query = parts.query?.parse({ ...req.query });
     const body = parts.body?.parse(req.body);
+    if (parts.headers) res.set(parts.headers);
     const result = await run({ params, query, body, actor: actorOf(req), req, res } as RouteInput<P>);
     if (res.headersSent) return;
     if (parts.status === 204) res.status(204).end();

@@ -68,6 +68,18 @@ export function columnsOf<F extends object>(fields: F, keys: readonly (keyof F &
 
 type Q = Knex | Knex.Transaction;
 
+/** How many rows `query` finds. */
+export async function countOf(query: Knex.QueryBuilder): Promise<number> {
+  const r = (await query.count({ n: "*" }).first()) as { n?: number | string } | undefined;
+  return Number(r?.n ?? 0);
+}
+
+/** The first row `query` finds (`forUpdate` locks it for the rest of the transaction), or undefined. */
+export async function firstRow(query: Knex.QueryBuilder, opts: { forUpdate?: boolean } = {}): Promise<Row | undefined> {
+  if (opts.forUpdate) query.forUpdate();
+  return (await query.first()) as Row | undefined;
+}
+
 /**
  * Optimistic concurrency: the row changes only while it still has `version`, and its version goes
  * up by one. Returns the number of rows changed (0 = someone else saved first).

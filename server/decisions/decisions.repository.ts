@@ -2,7 +2,7 @@ import type { Knex } from "knex";
 import type { DecisionStatus } from "#shared/schemas/decisions.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
-import { instant, json, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
+import { columnsOf, firstRow, instant, json, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -71,26 +71,10 @@ const readDecision = readRow<Omit<DecisionRecord, keyof DecisionLinks>>({
 });
 const toDecision = (r: Row, links: DecisionLinks): DecisionRecord => ({ ...readDecision(r), ...links });
 
+const DECISION_KEYS = ["title", "question", "background", "recommendedOption", "recommendation", "decider", "neededBy", "audience", "status", "chosenOption", "outcome", "decidedBy", "decidedOn", "outcomeRecordedBy", "withdrawnReason"] as const;
+
 function decisionRow(f: Partial<DecisionFields & DecisionClose>): Record<string, unknown> {
-  const row: Record<string, unknown> = {
-    title: f.title,
-    question: f.question,
-    background: f.background,
-    options: f.options === undefined ? undefined : JSON.stringify(f.options),
-    recommended_option: f.recommendedOption,
-    recommendation: f.recommendation,
-    decider: f.decider,
-    needed_by: f.neededBy,
-    audience: f.audience,
-    status: f.status,
-    chosen_option: f.chosenOption,
-    outcome: f.outcome,
-    decided_by: f.decidedBy,
-    decided_on: f.decidedOn,
-    outcome_recorded_by: f.outcomeRecordedBy,
-    withdrawn_reason: f.withdrawnReason,
-  };
-  return Object.fromEntries(Object.entries(row).filter(([, v]) => v !== undefined));
+  return { ...columnsOf(f, DECISION_KEYS), ...(f.options === undefined ? {} : { options: JSON.stringify(f.options) }) };
 }
 
 /** The one audience filter of the decisions' reads. */
@@ -115,9 +99,7 @@ export async function listDecisions(q: Q, projectId: number, audiences: readonly
 
 /** One decision when it is of these audiences; `forUpdate` locks its row for the rest of the transaction. */
 export async function findDecision(q: Q, id: number, audiences: readonly RecordAudience[], opts: { forUpdate?: boolean } = {}): Promise<DecisionRecord | null> {
-  const query = visibleTo(q("decisions").where({ id }), audiences).first();
-  if (opts.forUpdate) query.forUpdate();
-  const r = (await query) as Record<string, unknown> | undefined;
+  const r = await firstRow(visibleTo(q("decisions").where({ id }), audiences), opts);
   return r ? (await decisionsFrom(q, [r]))[0]! : null;
 }
 

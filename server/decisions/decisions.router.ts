@@ -2,7 +2,8 @@ import { Router } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { DecisionCreateInputSchema, DecisionListQuerySchema, DecisionOutcomeInputSchema, DecisionPatchInputSchema, DecisionWithdrawInputSchema } from "#shared/schemas/decisions.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
-import { actorOf, requireRole } from "../core/auth.ts";
+import { requireRole } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { DecisionsService } from "./decisions.service.ts";
 
 const readers = () => requireRole();
@@ -15,40 +16,16 @@ const writers = () => requireRole("lead", "admin");
  */
 export function decisionsRouter(decisions: DecisionsService): Router {
   const r = Router();
+  const project = { params: SlugParamSchema };
+  const item = { params: IdParamSchema };
 
-  r.get("/projects/:slug/decisions", readers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = DecisionListQuerySchema.parse({ ...req.query });
-    res.json(await decisions.list(slug, query, actorOf(req)));
-  });
-  r.post("/projects/:slug/decisions", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = DecisionCreateInputSchema.parse(req.body);
-    res.status(201).json(await decisions.create(slug, input, actorOf(req)));
-  });
-  r.get("/decisions/:id", readers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await decisions.get(id, actorOf(req)));
-  });
-  r.get("/decisions/:id/events", readers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await decisions.events(id, actorOf(req)));
-  });
-  r.patch("/decisions/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = DecisionPatchInputSchema.parse(req.body);
-    res.json(await decisions.patch(id, input, actorOf(req)));
-  });
-  r.post("/decisions/:id/outcome", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = DecisionOutcomeInputSchema.parse(req.body);
-    res.json(await decisions.recordOutcome(id, input, actorOf(req)));
-  });
-  r.post("/decisions/:id/withdraw", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = DecisionWithdrawInputSchema.parse(req.body);
-    res.json(await decisions.withdraw(id, input, actorOf(req)));
-  });
+  r.get("/projects/:slug/decisions", readers(), route({ ...project, query: DecisionListQuerySchema }, ({ params, query, actor }) => decisions.list(params.slug, query, actor)));
+  r.post("/projects/:slug/decisions", writers(), route({ ...project, body: DecisionCreateInputSchema, status: 201 }, ({ params, body, actor }) => decisions.create(params.slug, body, actor)));
+  r.get("/decisions/:id", readers(), route(item, ({ params, actor }) => decisions.get(params.id, actor)));
+  r.get("/decisions/:id/events", readers(), route(item, ({ params, actor }) => decisions.events(params.id, actor)));
+  r.patch("/decisions/:id", writers(), route({ ...item, body: DecisionPatchInputSchema }, ({ params, body, actor }) => decisions.patch(params.id, body, actor)));
+  r.post("/decisions/:id/outcome", writers(), route({ ...item, body: DecisionOutcomeInputSchema }, ({ params, body, actor }) => decisions.recordOutcome(params.id, body, actor)));
+  r.post("/decisions/:id/withdraw", writers(), route({ ...item, body: DecisionWithdrawInputSchema }, ({ params, body, actor }) => decisions.withdraw(params.id, body, actor)));
 
   return r;
 }

@@ -6,22 +6,8 @@ import { closedDecision, invalid, referenceOf, type DecisionsContext } from "./d
 import type { DecisionReadUseCases } from "./decisions.reads.ts";
 
 /** The fields a request's events and audit entries list: its columns and its links. */
-function writtenOf(d: DecisionFields & DecisionLinks): Record<string, unknown> {
-  return {
-    title: d.title,
-    question: d.question,
-    background: d.background,
-    options: d.options,
-    recommendedOption: d.recommendedOption,
-    recommendation: d.recommendation,
-    decider: d.decider,
-    neededBy: d.neededBy,
-    audience: d.audience,
-    linkedMilestones: d.linkedMilestones,
-    linkedRisks: d.linkedRisks,
-    documentIds: d.documentIds,
-  };
-}
+const WRITTEN = ["title", "question", "background", "options", "recommendedOption", "recommendation", "decider", "neededBy", "audience", "linkedMilestones", "linkedRisks", "documentIds"] as const;
+const writtenOf = (d: DecisionFields & DecisionLinks): Record<string, unknown> => Object.fromEntries(WRITTEN.map((key) => [key, d[key]]));
 
 const ALL_FIELDS = new Set(["options", "recommendedOption", "linkedMilestones", "linkedRisks", "documentIds"]);
 const ALL_AUDIENCES = ["investor", "internal"] as const;

@@ -2,7 +2,7 @@ import type { Knex } from "knex";
 import type { DigestCounts, DigestRunStatus } from "#shared/schemas/digests.ts";
 import type { Frequency } from "#shared/schemas/subscribers.ts";
 import { parseItemRefs, type DigestItemRef } from "./digests.items.ts";
-import { bool, date, dateOrNull, num, numOrNull, oneOf, readRow, text, textOrNull, type Row } from "../db/rows.ts";
+import { bool, countOf, date, dateOrNull, num, numOrNull, oneOf, readRow, text, textOrNull, type Row } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -346,9 +346,9 @@ const archiveColumns = (q: Q) => ["d.id", "d.subscriber_id", "d.content_id", "d.
 /** These subscribers' received digests, newest first, one page, and how many there are in all. */
 export async function listArchivedDeliveries(q: Q, subscriberIds: readonly number[], page: { limit: number; offset: number }): Promise<{ rows: ArchivedDelivery[]; total: number }> {
   if (subscriberIds.length === 0) return { rows: [], total: 0 };
-  const count = await archiveQuery(q, subscriberIds).count({ n: "*" }).first();
+  const total = await countOf(archiveQuery(q, subscriberIds));
   const rows = await archiveQuery(q, subscriberIds).orderBy("d.sent_at", "desc").orderBy("d.id", "desc").limit(page.limit).offset(page.offset).select(archiveColumns(q));
-  return { rows: rows.map(toArchived), total: Number((count as { n: number } | undefined)?.n ?? 0) };
+  return { rows: rows.map(toArchived), total };
 }
 
 /** One received digest of these subscribers, or null (another reader's, skipped, failed or unknown). */

@@ -117,6 +117,12 @@ export async function cleanPdf(data: Buffer, maxPages: number): Promise<{ bytes:
   };
 
   const note = (what: string) => removed.add(what);
+  /** Takes `key` out of `dict` when it is there, and says what went. */
+  const strip = (dict: PDFDict | undefined, key: string, what: string) => {
+    if (!dict?.has(PDFName.of(key))) return;
+    dict.delete(PDFName.of(key));
+    note(what);
+  };
 
   // The catalog: the open action, its additional actions, document JavaScript, embedded files, XFA.
   if (catalog.has(PDFName.of("OpenAction"))) {
@@ -127,24 +133,11 @@ export async function cleanPdf(data: Buffer, maxPages: number): Promise<{ bytes:
       note(`open action (${[...new Set(active)].join(", ")})`);
     }
   }
-  if (catalog.has(PDFName.of("AA"))) {
-    catalog.delete(PDFName.of("AA"));
-    note("document additional actions");
-  }
+  strip(catalog, "AA", "document additional actions");
   const names = resolveDict(catalog.get(PDFName.of("Names")));
-  if (names?.has(PDFName.of("JavaScript"))) {
-    names.delete(PDFName.of("JavaScript"));
-    note("document JavaScript");
-  }
-  if (names?.has(PDFName.of("EmbeddedFiles"))) {
-    names.delete(PDFName.of("EmbeddedFiles"));
-    note("embedded files");
-  }
-  const acroForm = resolveDict(catalog.get(PDFName.of("AcroForm")));
-  if (acroForm?.has(PDFName.of("XFA"))) {
-    acroForm.delete(PDFName.of("XFA"));
-    note("XFA form");
-  }
+  strip(names, "JavaScript", "document JavaScript");
+  strip(names, "EmbeddedFiles", "embedded files");
+  strip(resolveDict(catalog.get(PDFName.of("AcroForm"))), "XFA", "XFA form");
 
   // Every other dictionary: pages, annotations, form fields, bookmarks. One sweep finds them all.
   for (const [, object] of ctx.enumerateIndirectObjects()) {
@@ -152,10 +145,7 @@ export async function cleanPdf(data: Buffer, maxPages: number): Promise<{ bytes:
     if (!dict) continue;
     const type = nameOf(dict.get(PDFName.of("Type")));
     const subtype = nameOf(dict.get(PDFName.of("Subtype")));
-    if (dict.has(PDFName.of("AA"))) {
-      dict.delete(PDFName.of("AA"));
-      note(type === "Page" ? "page additional actions" : "additional actions");
-    }
+    strip(dict, "AA", type === "Page" ? "page additional actions" : "additional actions");
     if (dict.has(PDFName.of("A"))) {
       const active = activeIn(dict.get(PDFName.of("A")));
       if (active.length > 0) {

@@ -3,7 +3,7 @@ import type { DocumentCategory, DocumentFileType, ViewKind } from "#shared/schem
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
 import { insertRecordEvents, toRecordEvent, type NewRecordEvent } from "../core/record-events.ts";
-import { columnsOf, date, json, num, numOrNull, oneOf, readRow, text, textOrNull, type Row } from "../db/rows.ts";
+import { columnsOf, countOf, date, firstRow, json, num, numOrNull, oneOf, readRow, text, textOrNull, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -99,9 +99,7 @@ export async function listDocuments(q: Q, projectId: number, scope: DocumentScop
 
 /** One document if the scope may read it (null otherwise: the caller answers 404 either way). */
 export async function findDocument(q: Q, id: number, scope: DocumentScope, opts: { forUpdate?: boolean } = {}): Promise<DocumentRecord | null> {
-  const query = whereVisible(q("documents as d").where("d.id", id).first("d.*"), scope);
-  if (opts.forUpdate) query.forUpdate();
-  const row = (await query) as Record<string, unknown> | undefined;
+  const row = await firstRow(whereVisible(q("documents as d").where("d.id", id).select("d.*"), scope), opts);
   if (!row) return null;
   return toDocument(row, (await organisationsOf(q, [id])).get(id) ?? []);
 }
@@ -153,8 +151,7 @@ export async function insertVersion(q: Q, documentId: number, v: VersionFields):
 
 /** How many versions keep a stored file (a key no version names may be removed from storage). */
 export async function countVersionsWithKey(q: Q, storageKey: string): Promise<number> {
-  const row = (await q("document_versions").where({ storage_key: storageKey }).count({ n: "*" }).first()) as { n: number | string } | undefined;
-  return Number(row?.n ?? 0);
+  return countOf(q("document_versions").where({ storage_key: storageKey }));
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -4,12 +4,14 @@ import { IdParamSchema } from "#shared/schemas/common.ts";
 import { EnquiryInputSchema, EnquiryListQuerySchema, EnquiryPatchSchema } from "#shared/schemas/enquiries.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { requestLimit } from "../core/request-limit.ts";
-import { actorOf, requireStaff } from "../core/auth.ts";
+import { requireStaff } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import { ENQUIRY_ACCEPTED, type EnquiriesService } from "./enquiries.service.ts";
 
 export function enquiriesRouter(deps: { enquiries: EnquiriesService; limit: { perIp: number; windowMs: number }; store: Store }): Router {
   const { enquiries } = deps;
   const r = Router();
+  const item = { params: IdParamSchema };
 
   // A second spam guard beside the honeypot, shared by every app process through MariaDB.
   const perIp = requestLimit({
@@ -19,28 +21,14 @@ export function enquiriesRouter(deps: { enquiries: EnquiriesService; limit: { pe
     message: "Too many enquiries from this network. Wait an hour, or write to the operator directly.",
   });
 
-  r.post("/projects/:slug/enquiries", perIp, async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = EnquiryInputSchema.parse(req.body);
-    await enquiries.submit(slug, input, actorOf(req));
-    res.status(202).json(ENQUIRY_ACCEPTED);
-  });
+  r.post("/projects/:slug/enquiries", perIp, route({ params: SlugParamSchema, body: EnquiryInputSchema, status: 202 }, async ({ params, body, actor }) => {
+    await enquiries.submit(params.slug, body, actor);
+    return ENQUIRY_ACCEPTED;
+  }));
 
-  r.get("/enquiries", requireStaff(), async (req, res) => {
-    const query = EnquiryListQuerySchema.parse({ ...req.query });
-    res.json(await enquiries.list(query));
-  });
-  r.get("/enquiries/owners", requireStaff(), async (_req, res) => {
-    res.json(await enquiries.owners());
-  });
-  r.get("/enquiries/:id", requireStaff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await enquiries.get(id));
-  });
-  r.patch("/enquiries/:id", requireStaff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const patch = EnquiryPatchSchema.parse(req.body);
-    res.json(await enquiries.update(id, patch));
-  });
+  r.get("/enquiries", requireStaff(), route({ query: EnquiryListQuerySchema }, ({ query }) => enquiries.list(query)));
+  r.get("/enquiries/owners", requireStaff(), route({}, () => enquiries.owners()));
+  r.get("/enquiries/:id", requireStaff(), route(item, ({ params }) => enquiries.get(params.id)));
+  r.patch("/enquiries/:id", requireStaff(), route({ ...item, body: EnquiryPatchSchema }, ({ params, body }) => enquiries.update(params.id, body)));
   return r;
 }

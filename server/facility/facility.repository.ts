@@ -12,7 +12,7 @@ import {
   type UnitStage,
 } from "#shared/schemas/facility.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
-import { num, numOrNull, oneOf, oneOfOrNull, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
+import { firstRow, num, numOrNull, oneOf, oneOfOrNull, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -318,11 +318,7 @@ export const deleteFeature = (q: Q, id: number) => deleteRow(q, "site_features",
 type FacilityTable = "capacity_blocks" | "plant_systems" | "plant_units" | "site_features";
 
 /** One row by id; `forUpdate` locks it for the rest of the transaction. */
-async function findRow(q: Q, table: FacilityTable, id: number, opts: { forUpdate?: boolean }): Promise<Record<string, unknown> | undefined> {
-  const query = q(table).where({ id }).first();
-  if (opts.forUpdate) query.forUpdate();
-  return (await query) as Record<string, unknown> | undefined;
-}
+const findRow = (q: Q, table: FacilityTable, id: number, opts: { forUpdate?: boolean }) => firstRow(q(table).where({ id }), opts);
 
 /**
  * Optimistic concurrency: changes the row only while it still has `version`, and its version goes

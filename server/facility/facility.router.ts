@@ -1,4 +1,4 @@
-import { Router, type RequestHandler } from "express";
+import { Router } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import {
   BlockCreateInputSchema,
@@ -15,8 +15,8 @@ import {
   UnitStageInputSchema,
 } from "#shared/schemas/facility.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
-import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
-import type { Actor } from "../core/types.ts";
+import { requireRole, requireStaff } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { FacilityService } from "./facility.service.ts";
 
 const writers = () => requireRole("lead", "admin");
@@ -28,75 +28,31 @@ const writers = () => requireRole("lead", "admin");
  */
 export function facilityRouter(facility: FacilityService): Router {
   const r = Router();
+  const project = { params: SlugParamSchema };
+  const item = { params: IdParamSchema };
 
-  r.get("/projects/:slug/facility", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = FacilityQuerySchema.parse({ ...req.query });
-    res.json(await facility.facility(slug, query, actorOf(req)));
-  });
-  r.get("/projects/:slug/facility/events", requireStaff(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const range = FacilityEventsQuerySchema.parse({ ...req.query });
-    res.json(await facility.projectEvents(slug, range));
-  });
+  r.get("/projects/:slug/facility", route({ ...project, query: FacilityQuerySchema }, ({ params, query, actor }) => facility.facility(params.slug, query, actor)));
+  r.get("/projects/:slug/facility/events", requireStaff(), route({ ...project, query: FacilityEventsQuerySchema }, ({ params, query }) => facility.projectEvents(params.slug, query)));
 
-  r.put("/projects/:slug/facility/settings", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    res.set("Cache-Control", "private, no-store").json(await facility.putSettings(slug, FacilitySettingsInputSchema.parse(req.body), actorOf(req)));
-  });
-  r.post("/projects/:slug/facility/blocks", writers(), createInProject(BlockCreateInputSchema, facility.createBlock));
-  r.patch("/facility/blocks/:id", writers(), writeEntry(BlockPatchInputSchema, facility.patchBlock));
-  r.delete("/facility/blocks/:id", writers(), deleteEntry(facility.deleteBlock));
+  r.put("/projects/:slug/facility/settings", writers(), route({ ...project, body: FacilitySettingsInputSchema, headers: { "Cache-Control": "private, no-store" } }, ({ params, body, actor }) => facility.putSettings(params.slug, body, actor)));
+  r.post("/projects/:slug/facility/blocks", writers(), route({ ...project, body: BlockCreateInputSchema, status: 201 }, ({ params, body, actor }) => facility.createBlock(params.slug, body, actor)));
+  r.patch("/facility/blocks/:id", writers(), route({ ...item, body: BlockPatchInputSchema }, ({ params, body, actor }) => facility.patchBlock(params.id, body, actor)));
+  r.delete("/facility/blocks/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => facility.deleteBlock(params.id, actor)));
 
-  r.post("/projects/:slug/facility/systems", writers(), createInProject(SystemCreateInputSchema, facility.createSystem));
-  r.patch("/facility/systems/:id", writers(), writeEntry(SystemPatchInputSchema, facility.patchSystem));
-  r.delete("/facility/systems/:id", writers(), deleteEntry(facility.deleteSystem));
+  r.post("/projects/:slug/facility/systems", writers(), route({ ...project, body: SystemCreateInputSchema, status: 201 }, ({ params, body, actor }) => facility.createSystem(params.slug, body, actor)));
+  r.patch("/facility/systems/:id", writers(), route({ ...item, body: SystemPatchInputSchema }, ({ params, body, actor }) => facility.patchSystem(params.id, body, actor)));
+  r.delete("/facility/systems/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => facility.deleteSystem(params.id, actor)));
 
-  r.post("/facility/systems/:id/units", writers(), writeEntry(UnitCreateInputSchema, facility.createUnit, 201));
-  r.patch("/facility/units/:id", writers(), writeEntry(UnitPatchInputSchema, facility.patchUnit));
-  r.post("/facility/units/:id/stage", writers(), writeEntry(UnitStageInputSchema, facility.setUnitStage));
-  r.get("/facility/units/:id/events", async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await facility.unitEvents(id, actorOf(req)));
-  });
-  r.delete("/facility/units/:id", writers(), deleteEntry(facility.deleteUnit));
+  // A new unit of the system `:id`.
+  r.post("/facility/systems/:id/units", writers(), route({ ...item, body: UnitCreateInputSchema, status: 201 }, ({ params, body, actor }) => facility.createUnit(params.id, body, actor)));
+  r.patch("/facility/units/:id", writers(), route({ ...item, body: UnitPatchInputSchema }, ({ params, body, actor }) => facility.patchUnit(params.id, body, actor)));
+  r.post("/facility/units/:id/stage", writers(), route({ ...item, body: UnitStageInputSchema }, ({ params, body, actor }) => facility.setUnitStage(params.id, body, actor)));
+  r.get("/facility/units/:id/events", route(item, ({ params, actor }) => facility.unitEvents(params.id, actor)));
+  r.delete("/facility/units/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => facility.deleteUnit(params.id, actor)));
 
-  r.post("/projects/:slug/facility/features", writers(), createInProject(FeatureCreateInputSchema, facility.createFeature));
-  r.patch("/facility/features/:id", writers(), writeEntry(FeaturePatchInputSchema, facility.patchFeature));
-  r.delete("/facility/features/:id", writers(), deleteEntry(facility.deleteFeature));
+  r.post("/projects/:slug/facility/features", writers(), route({ ...project, body: FeatureCreateInputSchema, status: 201 }, ({ params, body, actor }) => facility.createFeature(params.slug, body, actor)));
+  r.patch("/facility/features/:id", writers(), route({ ...item, body: FeaturePatchInputSchema }, ({ params, body, actor }) => facility.patchFeature(params.id, body, actor)));
+  r.delete("/facility/features/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => facility.deleteFeature(params.id, actor)));
 
   return r;
-}
-
-/** What a write's body is parsed with (a schema from #shared/schemas/facility.ts). */
-interface BodySchema<I> {
-  parse(body: unknown): I;
-}
-
-// Every write route is the same adapter: the path's slug or id and the body parsed, one call
-// to the service, its answer sent. A new entry answers 201, a delete 204 with no body.
-
-/** A new block, system or feature in the project named by `:slug`. */
-function createInProject<I>(schema: BodySchema<I>, create: (slug: string, input: I, actor: Actor) => Promise<unknown>): RequestHandler {
-  return async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    res.status(201).json(await create(slug, schema.parse(req.body), actorOf(req)));
-  };
-}
-
-/** A write to the entry `:id` (or, answering 201, a new unit of the system `:id`). */
-function writeEntry<I>(schema: BodySchema<I>, write: (id: number, input: I, actor: Actor) => Promise<unknown>, status: 200 | 201 = 200): RequestHandler {
-  return async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.status(status).json(await write(id, schema.parse(req.body), actorOf(req)));
-  };
-}
-
-/** Deletes the entry `:id`. */
-function deleteEntry(remove: (id: number, actor: Actor) => Promise<void>): RequestHandler {
-  return async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await remove(id, actorOf(req));
-    res.status(204).end();
-  };
 }

@@ -1,6 +1,6 @@
 import type { Knex } from "knex";
 import type { OutboxMessage } from "#shared/schemas/outbox.ts";
-import { instant, json, num, readRow, text } from "../db/rows.ts";
+import { countOf, instant, json, num, readRow, text } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -62,11 +62,8 @@ function baseQuery(q: Q) {
 /** One page of messages, newest first, with how many match in all. */
 export async function listMessages(q: Q, f: { to?: string }, window: { offset: number; limit: number }): Promise<{ items: OutboxMessage[]; total: number }> {
   const toRecipient = (query: Knex.QueryBuilder) => (f.to ? query.whereExists(q("mail_recipients as x").whereRaw("x.message_id = m.id").andWhere("x.address", f.to)) : query);
-  const [rows, countRow] = await Promise.all([
-    toRecipient(baseQuery(q)).orderBy("m.id", "desc").offset(window.offset).limit(window.limit),
-    toRecipient(q("mail_messages as m")).count({ n: "*" }).first(),
-  ]);
-  return { items: rows.map(toMessage), total: Number((countRow as { n?: number } | undefined)?.n ?? 0) };
+  const [rows, total] = await Promise.all([toRecipient(baseQuery(q)).orderBy("m.id", "desc").offset(window.offset).limit(window.limit), countOf(toRecipient(q("mail_messages as m")))]);
+  return { items: rows.map(toMessage), total };
 }
 
 export async function findMessage(q: Q, id: number): Promise<OutboxMessage | null> {

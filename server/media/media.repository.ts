@@ -3,7 +3,7 @@ import type { Audience } from "#shared/schemas/common.ts";
 import type { MediaListFilters, MediaStatus, MediaTags, Sensitivity, TagKind, VariantFormat } from "#shared/schemas/media.ts";
 import type { System } from "#shared/schemas/programme.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
-import { bool, columnsOf, date, dateOrNull, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
+import { bool, columnsOf, countOf, date, dateOrNull, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -106,8 +106,7 @@ export async function findMediaBySha(q: Q, projectId: number, sha256: string): P
 }
 
 export async function countItemsWithOriginal(q: Q, originalKey: string): Promise<number> {
-  const r = await q("media_items").where({ original_key: originalKey }).count({ n: "*" }).first();
-  return Number(r?.n ?? 0);
+  return countOf(q("media_items").where({ original_key: originalKey }));
 }
 
 export function escapeLike(s: string): string {
@@ -150,7 +149,7 @@ export async function listMedia(
     const like = `%${escapeLike(f.q)}%`;
     base.where((w) => w.where("i.original_name", "like", like).orWhere("i.caption", "like", like).orWhere("i.alt_text", "like", like));
   }
-  const countRow = await base.clone().count({ n: "*" }).first();
+  const total = await countOf(base.clone());
   const ids = (await base
     .clone()
     .select("i.id")
@@ -159,7 +158,7 @@ export async function listMedia(
     .limit(page.limit)) as Array<{ id: number }>;
   const records = await findMediaByIds(q, ids.map((r) => Number(r.id)));
   const byId = new Map(records.map((r) => [r.id, r]));
-  return { items: ids.map((r) => byId.get(Number(r.id))!).filter(Boolean), total: Number(countRow?.n ?? 0) };
+  return { items: ids.map((r) => byId.get(Number(r.id))!).filter(Boolean), total };
 }
 
 /** The unreviewed photos of a project, those flagged for review first, then oldest first. */
@@ -264,8 +263,7 @@ export async function variantsOf(q: Q, ids: readonly number[]): Promise<Map<numb
 }
 
 export async function countVariantsWithKey(q: Q, key: string): Promise<number> {
-  const r = await q("media_variants").where({ storage_key: key }).count({ n: "*" }).first();
-  return Number(r?.n ?? 0);
+  return countOf(q("media_variants").where({ storage_key: key }));
 }
 
 /** Who is asking for a derivative: the three audiences the files' read path knows. */
@@ -327,8 +325,7 @@ export async function setOriginalBytes(q: Q, id: number, bytes: number): Promise
 }
 
 export async function countMediaOfProject(q: Q, projectId: number): Promise<number> {
-  const r = await q("media_items").where({ project_id: projectId }).count({ n: "*" }).first();
-  return Number(r?.n ?? 0);
+  return countOf(q("media_items").where({ project_id: projectId }));
 }
 
 // Gallery

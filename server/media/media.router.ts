@@ -7,6 +7,7 @@ import { ThenAndNowQuerySchema } from "#shared/schemas/writing-help.ts";
 import { BulkTagInputSchema, GalleryQuerySchema, MediaListQuerySchema, MediaPatchInputSchema, ProjectQuerySchema, ReviewInputSchema, SignedVariantQuerySchema } from "#shared/schemas/media.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireRole } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { MediaService } from "./media.service.ts";
 import type { StoredFile, UploadArea } from "./media.storage.ts";
 
@@ -50,10 +51,9 @@ export function mediaRouter(media: MediaService, uploads: UploadArea): Router {
   const receive = uploads.receiver({ maxFileBytes: media.limits.maxFileBytes, maxFiles: media.limits.maxFiles });
   const receiveFiles: RequestHandler = (req, res, next) => receive(req, res, (err?: unknown) => next(err ? uploadError(err, media.limits) : undefined));
 
-  r.get("/media", staff(), async (req, res) => {
-    const query = MediaListQuerySchema.parse({ ...req.query });
-    res.json(await media.list(query));
-  });
+  const item = { params: IdParamSchema };
+
+  r.get("/media", staff(), route({ query: MediaListQuerySchema }, ({ query }) => media.list(query)));
   r.post("/media", staff(), receiveFiles, async (req, res) => {
     const files = uploads.filesOf(req.files);
     const body = (req.body ?? {}) as Record<string, unknown>;
@@ -68,53 +68,26 @@ export function mediaRouter(media: MediaService, uploads: UploadArea): Router {
     const results = await media.upload({ project, files }, actorOf(req));
     res.status(201).json(results);
   });
-  r.get("/media/review", reviewers(), async (req, res) => {
-    const { project } = ProjectQuerySchema.parse({ ...req.query });
-    res.json(await media.reviewQueue(project));
-  });
+  r.get("/media/review", reviewers(), route({ query: ProjectQuerySchema }, ({ query }) => media.reviewQueue(query.project)));
   // The public gallery: what a visitor may see, or an investor's wider view when signed in.
-  r.get("/projects/:slug/gallery", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const filters = GalleryQuerySchema.parse(req.query);
-    const audiences = req.user ? (["public", "investor"] as const) : (["public"] as const);
-    res.set("Cache-Control", req.user ? "private, no-cache" : "public, max-age=60");
-    res.json(await media.gallery(slug, [...audiences], filters));
-  });
+  r.get(
+    "/projects/:slug/gallery",
+    route({ params: SlugParamSchema, query: GalleryQuerySchema }, ({ params, query, req, res }) => {
+      const audiences = req.user ? (["public", "investor"] as const) : (["public"] as const);
+      res.set("Cache-Control", req.user ? "private, no-cache" : "public, max-age=60");
+      return media.gallery(params.slug, [...audiences], query);
+    }),
+  );
 
   // Then-and-now pairs found among the project's photos, for a story of one audience (decision 063).
-  r.get("/projects/:slug/then-and-now", staff(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = ThenAndNowQuerySchema.parse({ ...req.query });
-    res.set("Cache-Control", "private, no-store");
-    res.json(await media.thenAndNow(slug, query));
-  });
+  r.get("/projects/:slug/then-and-now", staff(), route({ params: SlugParamSchema, query: ThenAndNowQuerySchema, headers: { "Cache-Control": "private, no-store" } }, ({ params, query }) => media.thenAndNow(params.slug, query)));
 
-  r.get("/media/vocabulary", staff(), async (req, res) => {
-    const { project } = ProjectQuerySchema.parse({ ...req.query });
-    res.json(await media.vocabulary(project));
-  });
-  r.post("/media/bulk-tags", staff(), async (req, res) => {
-    const input = BulkTagInputSchema.parse(req.body);
-    res.json(await media.bulkTag(input));
-  });
-  r.get("/media/:id", staff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await media.get(id));
-  });
-  r.patch("/media/:id", staff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const patch = MediaPatchInputSchema.parse(req.body);
-    res.json(await media.update(id, patch, actorOf(req)));
-  });
-  r.post("/media/:id/review", reviewers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = ReviewInputSchema.parse(req.body);
-    res.json(await media.review(id, input, actorOf(req)));
-  });
-  r.post("/media/:id/retry", staff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await media.retry(id));
-  });
+  r.get("/media/vocabulary", staff(), route({ query: ProjectQuerySchema }, ({ query }) => media.vocabulary(query.project)));
+  r.post("/media/bulk-tags", staff(), route({ body: BulkTagInputSchema }, ({ body }) => media.bulkTag(body)));
+  r.get("/media/:id", staff(), route(item, ({ params }) => media.get(params.id)));
+  r.patch("/media/:id", staff(), route({ ...item, body: MediaPatchInputSchema }, ({ params, body, actor }) => media.update(params.id, body, actor)));
+  r.post("/media/:id/review", reviewers(), route({ ...item, body: ReviewInputSchema }, ({ params, body, actor }) => media.review(params.id, body, actor)));
+  r.post("/media/:id/retry", staff(), route(item, ({ params }) => media.retry(params.id)));
   r.get("/media/:id/original", staff(), async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);
     const file = await media.original(id);

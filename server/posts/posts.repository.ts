@@ -7,6 +7,7 @@ import type { Viewer } from "#shared/domain/audience.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
 import { visibleContent } from "../publishing/publishing.audience.ts";
 import { changedColumns, newDraftColumns, toWorkflowRecord, WORKFLOW_COLUMNS, type WorkflowRecord, type WorkflowUpdate } from "../publishing/publishing.columns.ts";
+import { countOf, firstRow } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -76,9 +77,7 @@ export async function updatePost(q: Q, id: number, expectVersion: number | null,
 }
 
 export async function findPostById(q: Q, id: number, opts: { forUpdate?: boolean } = {}): Promise<PostRecord | null> {
-  const query = q("posts as p").where("p.id", id).first("p.*");
-  if (opts.forUpdate) query.forUpdate();
-  const r = await query;
+  const r = await firstRow(q("posts as p").where("p.id", id).select("p.*"), opts);
   return r ? toRecord(r) : null;
 }
 
@@ -114,8 +113,7 @@ export async function listPosts(q: Q, projectId: number, viewer: Viewer, f: List
     if (f.q) query.whereRaw("MATCH (p.title, p.summary, p.plain_text) AGAINST (? IN NATURAL LANGUAGE MODE)", [f.q]);
     return query;
   };
-  const countRow = await base().count({ n: "*" }).first();
-  const total = Number(countRow?.n ?? 0);
+  const total = await countOf(base());
   if (total === 0) return { rows: [], total };
   const query = base().select(LIST_COLUMNS);
   if (f.q) query.orderByRaw("MATCH (p.title, p.summary, p.plain_text) AGAINST (? IN NATURAL LANGUAGE MODE) DESC", [f.q]);

@@ -1,7 +1,7 @@
 import { Router } from "express";
 import { PostCreateInputSchema, PostListQuerySchema, PostPatchInputSchema, PostSlugParamsSchema } from "#shared/schemas/posts.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
-import { actorOf } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import { cacheForReader, publishingRouter } from "../publishing/publishing.router.ts";
 import type { PostsService } from "./posts.service.ts";
 
@@ -13,13 +13,15 @@ import type { PostsService } from "./posts.service.ts";
 export function postsRouter(posts: PostsService): Router {
   const r = Router();
 
-  r.get("/projects/:slug/posts", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = PostListQuerySchema.parse({ ...req.query });
-    const { items, total } = await posts.list(slug, query, actorOf(req));
-    cacheForReader(req, res);
-    res.set("X-Total-Count", String(total)).json(items);
-  });
+  r.get(
+    "/projects/:slug/posts",
+    route({ params: SlugParamSchema, query: PostListQuerySchema }, async ({ params, query, actor, req, res }) => {
+      const { items, total } = await posts.list(params.slug, query, actor);
+      cacheForReader(req, res);
+      res.set("X-Total-Count", String(total));
+      return items;
+    }),
+  );
 
   r.use(
     publishingRouter(

@@ -1,13 +1,12 @@
 import type { MilestoneEventFieldName, MilestoneEventRow } from "#shared/schemas/programme.ts";
 import { visibleTo, type Q, type Viewer } from "./programme.repository.ts";
-import { instant, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
+import { countOf, instant, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 // The history of the programme: every change of a tracked field of a milestone is an event.
 
 /** How many events were recorded after the milestone was entered (creation writes its own at `created_at`). */
 export async function countEventsSince(q: Q, milestoneId: number, since: Date): Promise<number> {
-  const r = await q("milestone_events").where({ milestone_id: milestoneId }).where("at", ">", since).count({ n: "*" }).first();
-  return Number(r?.n ?? 0);
+  return countOf(q("milestone_events").where({ milestone_id: milestoneId }).where("at", ">", since));
 }
 
 export interface NewMilestoneEvent {

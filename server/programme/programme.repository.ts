@@ -2,7 +2,7 @@ import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import { MILESTONE_FIELD_NAMES, MILESTONE_FIELDS, milestoneColumn, type MilestoneFieldKind, type MilestoneFieldName, type MilestoneFieldValues, type System } from "#shared/schemas/programme.ts";
 import { audiencesFor, type Viewer } from "#shared/domain/audience.ts";
-import { projectIdOf, updateVersioned } from "../db/rows.ts";
+import { firstRow, projectIdOf, updateVersioned } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -179,9 +179,7 @@ export async function existingMilestoneIds(q: Q, projectId: number, ids: readonl
 
 /** One milestone (removed or not), when the viewer may see it; `forUpdate` locks the row for the rest of the transaction. */
 export async function findMilestone(q: Q, id: number, viewer: Viewer, opts: { forUpdate?: boolean } = {}): Promise<MilestoneRecord | null> {
-  const query = visibleTo(milestoneQuery(q).where("m.id", id), "m.audience", viewer).first();
-  if (opts.forUpdate) query.forUpdate();
-  const r = (await query) as Record<string, unknown> | undefined;
+  const r = await firstRow(visibleTo(milestoneQuery(q).where("m.id", id), "m.audience", viewer), opts);
   if (!r) return null;
   const deps = await dependenciesOf(q, [id], viewer);
   return toMilestone(r, deps.get(id) ?? []);

@@ -16,7 +16,8 @@ import {
   ShiftInputSchema,
 } from "#shared/schemas/programme.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
-import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
+import { requireRole, requireStaff } from "../core/auth.ts";
+import { optionalBody, route } from "../core/route.ts";
 import type { ProgrammeService } from "./programme.service.ts";
 
 const writers = () => requireRole("lead", "admin");
@@ -28,109 +29,42 @@ const staffAndInvestors = () => requireRole("admin", "lead", "marketing", "inves
  */
 export function programmeRouter(programme: ProgrammeService): Router {
   const r = Router();
+  const project = { params: SlugParamSchema };
+  const item = { params: IdParamSchema };
 
-  r.get("/projects/:slug/milestones.csv", requireStaff(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const { filename, csv } = await programme.exportCsv(slug);
-    res.type("text/csv; charset=utf-8").attachment(filename).send(csv);
-  });
-  r.post("/projects/:slug/milestones/import", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const { csv } = CsvImportInputSchema.parse(req.body);
-    res.json(await programme.importCsv(slug, csv, actorOf(req)));
-  });
-  r.post("/projects/:slug/milestones/shift", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = ShiftInputSchema.parse(req.body);
-    res.json(await programme.shift(slug, input, actorOf(req)));
-  });
-  r.get("/projects/:slug/milestones", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = MilestoneListQuerySchema.parse({ ...req.query });
-    res.json(await programme.list(slug, query, actorOf(req)));
-  });
-  r.post("/projects/:slug/milestones", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = MilestoneCreateInputSchema.parse(req.body);
-    res.status(201).json(await programme.create(slug, input, actorOf(req)));
-  });
+  r.get(
+    "/projects/:slug/milestones.csv",
+    requireStaff(),
+    route(project, async ({ params, res }) => {
+      const { filename, csv } = await programme.exportCsv(params.slug);
+      res.type("text/csv; charset=utf-8").attachment(filename).send(csv);
+    }),
+  );
+  r.post("/projects/:slug/milestones/import", writers(), route({ ...project, body: CsvImportInputSchema }, ({ params, body, actor }) => programme.importCsv(params.slug, body.csv, actor)));
+  r.post("/projects/:slug/milestones/shift", writers(), route({ ...project, body: ShiftInputSchema }, ({ params, body, actor }) => programme.shift(params.slug, body, actor)));
+  r.get("/projects/:slug/milestones", route({ ...project, query: MilestoneListQuerySchema }, ({ params, query, actor }) => programme.list(params.slug, query, actor)));
+  r.post("/projects/:slug/milestones", writers(), route({ ...project, body: MilestoneCreateInputSchema, status: 201 }, ({ params, body, actor }) => programme.create(params.slug, body, actor)));
 
-  r.patch("/milestones/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = MilestonePatchInputSchema.parse(req.body);
-    res.json(await programme.patch(id, input, actorOf(req)));
-  });
+  r.patch("/milestones/:id", writers(), route({ ...item, body: MilestonePatchInputSchema }, ({ params, body, actor }) => programme.patch(params.id, body, actor)));
   // Only a milestone entered by mistake is deleted; one on record answers 409 `on_record` and is
   // removed from the programme instead (POST …/remove, with a reason), keeping its history.
-  r.delete("/milestones/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = MilestoneDeleteInputSchema.parse(req.body ?? {});
-    await programme.delete(id, input, actorOf(req));
-    res.status(204).end();
-  });
-  r.post("/milestones/:id/remove", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = MilestoneRemovalInputSchema.parse(req.body ?? {});
-    res.json(await programme.removeFromProgramme(id, input, actorOf(req)));
-  });
-  r.post("/milestones/:id/restore", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = MilestoneRemovalInputSchema.parse(req.body ?? {});
-    res.json(await programme.restore(id, input, actorOf(req)));
-  });
-  r.get("/milestones/:id/events", async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await programme.events(id, actorOf(req)));
-  });
-  r.get("/milestones/:id/drivers", async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await programme.drivers(id, actorOf(req)));
-  });
+  r.delete("/milestones/:id", writers(), route({ ...item, body: optionalBody(MilestoneDeleteInputSchema), status: 204 }, ({ params, body, actor }) => programme.delete(params.id, body, actor)));
+  r.post("/milestones/:id/remove", writers(), route({ ...item, body: optionalBody(MilestoneRemovalInputSchema) }, ({ params, body, actor }) => programme.removeFromProgramme(params.id, body, actor)));
+  r.post("/milestones/:id/restore", writers(), route({ ...item, body: optionalBody(MilestoneRemovalInputSchema) }, ({ params, body, actor }) => programme.restore(params.id, body, actor)));
+  r.get("/milestones/:id/events", route(item, ({ params, actor }) => programme.events(params.id, actor)));
+  r.get("/milestones/:id/drivers", route(item, ({ params, actor }) => programme.drivers(params.id, actor)));
 
-  r.get("/projects/:slug/changes", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const range = RangeQuerySchema.parse({ ...req.query });
-    res.json(await programme.changes(slug, range, actorOf(req)));
-  });
-  r.get("/projects/:slug/moves", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const range = RangeQuerySchema.parse({ ...req.query });
-    res.json(await programme.moves(slug, range, actorOf(req)));
-  });
-  r.get("/projects/:slug/health", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = HealthQuerySchema.parse({ ...req.query });
-    res.json(await programme.health(slug, query, actorOf(req)));
-  });
-  r.get("/projects/:slug/curve", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const query = CurveQuerySchema.parse({ ...req.query });
-    res.json(await programme.curve(slug, query, actorOf(req)));
-  });
+  r.get("/projects/:slug/changes", route({ ...project, query: RangeQuerySchema }, ({ params, query, actor }) => programme.changes(params.slug, query, actor)));
+  r.get("/projects/:slug/moves", route({ ...project, query: RangeQuerySchema }, ({ params, query, actor }) => programme.moves(params.slug, query, actor)));
+  r.get("/projects/:slug/health", route({ ...project, query: HealthQuerySchema }, ({ params, query, actor }) => programme.health(params.slug, query, actor)));
+  r.get("/projects/:slug/curve", route({ ...project, query: CurveQuerySchema }, ({ params, query, actor }) => programme.curve(params.slug, query, actor)));
 
-  r.get("/projects/:slug/baselines", staffAndInvestors(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    res.json(await programme.baselines(slug, actorOf(req)));
-  });
-  r.get("/projects/:slug/baselines/:number", staffAndInvestors(), async (req, res) => {
-    const { slug, number } = BaselineParamSchema.parse(req.params);
-    res.json(await programme.baseline(slug, number, actorOf(req)));
-  });
-  r.post("/projects/:slug/baselines", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = BaselineInputSchema.parse(req.body);
-    res.status(201).json(await programme.rebaseline(slug, input, actorOf(req)));
-  });
+  r.get("/projects/:slug/baselines", staffAndInvestors(), route(project, ({ params, actor }) => programme.baselines(params.slug, actor)));
+  r.get("/projects/:slug/baselines/:number", staffAndInvestors(), route({ params: BaselineParamSchema }, ({ params, actor }) => programme.baseline(params.slug, params.number, actor)));
+  r.post("/projects/:slug/baselines", writers(), route({ ...project, body: BaselineInputSchema, status: 201 }, ({ params, body, actor }) => programme.rebaseline(params.slug, body, actor)));
 
-  r.get("/projects/:slug/cost-actuals", staffAndInvestors(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    res.json(await programme.costActuals(slug));
-  });
-  r.post("/projects/:slug/cost-actuals", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = CostActualInputSchema.parse(req.body);
-    res.status(201).json(await programme.addCostActual(slug, input, actorOf(req)));
-  });
+  r.get("/projects/:slug/cost-actuals", staffAndInvestors(), route(project, ({ params }) => programme.costActuals(params.slug)));
+  r.post("/projects/:slug/cost-actuals", writers(), route({ ...project, body: CostActualInputSchema, status: 201 }, ({ params, body, actor }) => programme.addCostActual(params.slug, body, actor)));
 
   return r;
 }

@@ -3,7 +3,8 @@ import type { z } from "zod";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { DiffQuerySchema, ReturnInputSchema, RevisionParamsSchema, ScheduleInputSchema, type PublishingEvent, type RevisionDiff, type RevisionSummary, type ScheduleInput, type WorkflowResult } from "#shared/schemas/publishing.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
-import { actorOf, requireRole } from "../core/auth.ts";
+import { requireRole } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { Actor } from "../core/types.ts";
 
 const staff = () => requireRole("admin", "lead", "marketing");
@@ -60,67 +61,46 @@ export interface PublishedRoutes<CreateInput, PatchInput, ItemParam extends stri
 export function publishingRouter<Detail, CreateInput, PatchInput, ItemParam extends string>(routes: PublishedRoutes<CreateInput, PatchInput, ItemParam>, service: PublishedService<Detail, CreateInput, PatchInput>): Router {
   const r = Router();
   const { plural, page } = routes;
+  const item = { params: IdParamSchema };
+  const revision = { params: RevisionParamsSchema };
 
-  r.get(`/projects/:slug/${plural}/:${routes.itemParam}`, async (req, res) => {
-    const params = routes.slugParams.parse(req.params);
-    const { slug } = params;
-    const found = await service.getBySlug(slug, params[routes.itemParam], actorOf(req));
-    cacheForReader(req, res);
-    if (found && typeof found === "object" && "redirectTo" in found) {
-      // fetch() follows the Location to the current address; the body names the page to show.
-      res
-        .status(301)
-        .location(`/api/projects/${slug}/${plural}/${found.redirectTo}`)
-        .json({ redirectTo: `/projects/${slug}/${page}/${found.redirectTo}` });
-      return;
-    }
-    res.json(found);
-  });
-  r.post(`/projects/:slug/${plural}`, staff(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = routes.createInput.parse(req.body);
-    res.status(201).json(await service.create(slug, input, actorOf(req)));
-  });
+  r.get(
+    `/projects/:slug/${plural}/:${routes.itemParam}`,
+    route({ params: routes.slugParams }, async ({ params, actor, req, res }) => {
+      const { slug } = params;
+      const found = await service.getBySlug(slug, params[routes.itemParam], actor);
+      cacheForReader(req, res);
+      if (found && typeof found === "object" && "redirectTo" in found) {
+        // fetch() follows the Location to the current address; the body names the page to show.
+        res
+          .status(301)
+          .location(`/api/projects/${slug}/${plural}/${found.redirectTo}`)
+          .json({ redirectTo: `/projects/${slug}/${page}/${found.redirectTo}` });
+        return;
+      }
+      return found;
+    }),
+  );
+  r.post(`/projects/:slug/${plural}`, staff(), route({ params: SlugParamSchema, body: routes.createInput, status: 201 }, ({ params, body, actor }) => service.create(params.slug, body, actor)));
 
-  r.get(`/${plural}/:id`, staff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.set("Cache-Control", "private, no-cache").json(await service.getById(id, actorOf(req)));
-  });
-  r.patch(`/${plural}/:id`, staff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = routes.patchInput.parse(req.body);
-    res.json(await service.patch(id, input, actorOf(req)));
-  });
-  r.get(`/${plural}/:id/revisions`, staff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await service.revisions(id));
-  });
-  r.get(`/${plural}/:id/history`, staff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await service.history(id));
-  });
-  r.get(`/${plural}/:id/revisions/:n/diff`, staff(), async (req, res) => {
-    const { id, n } = RevisionParamsSchema.parse(req.params);
-    const { against } = DiffQuerySchema.parse({ ...req.query });
-    res.json(await service.diff(id, n, against));
-  });
-  r.post(`/${plural}/:id/revisions/:n/restore`, staff(), async (req, res) => {
-    const { id, n } = RevisionParamsSchema.parse(req.params);
-    res.json(await service.restore(id, n, actorOf(req)));
-  });
+  r.get(
+    `/${plural}/:id`,
+    staff(),
+    route({ ...item, headers: { "Cache-Control": "private, no-cache" } }, ({ params, actor }) => service.getById(params.id, actor)),
+  );
+  r.patch(`/${plural}/:id`, staff(), route({ ...item, body: routes.patchInput }, ({ params, body, actor }) => service.patch(params.id, body, actor)));
+  r.get(`/${plural}/:id/revisions`, staff(), route(item, ({ params }) => service.revisions(params.id)));
+  r.get(`/${plural}/:id/history`, staff(), route(item, ({ params }) => service.history(params.id)));
+  r.get(`/${plural}/:id/revisions/:n/diff`, staff(), route({ ...revision, query: DiffQuerySchema }, ({ params, query }) => service.diff(params.id, params.n, query.against)));
+  r.post(`/${plural}/:id/revisions/:n/restore`, staff(), route(revision, ({ params, actor }) => service.restore(params.id, params.n, actor)));
 
   // The workflow steps: each reads the id (and its own input) and answers `{ id, status }`.
-  const step = (action: string, who: ReturnType<typeof staff>, run: (id: number, req: Request) => Promise<WorkflowResult>) =>
-    r.post(`/${plural}/:id/${action}`, who, async (req, res) => {
-      const { id } = IdParamSchema.parse(req.params);
-      res.json(await run(id, req));
-    });
-  step("submit", staff(), (id, req) => service.submit(id, actorOf(req)));
-  step("approve", approvers(), (id, req) => service.approve(id, actorOf(req)));
-  step("return", approvers(), (id, req) => service.returnToDraft(id, ReturnInputSchema.parse(req.body).comment, actorOf(req)));
-  step("publish", approvers(), (id, req) => service.publish(id, actorOf(req)));
-  step("schedule", approvers(), (id, req) => service.schedule(id, ScheduleInputSchema.parse(req.body).at, actorOf(req)));
-  step("withdraw", approvers(), (id, req) => service.withdraw(id, actorOf(req)));
+  r.post(`/${plural}/:id/submit`, staff(), route(item, ({ params, actor }) => service.submit(params.id, actor)));
+  r.post(`/${plural}/:id/approve`, approvers(), route(item, ({ params, actor }) => service.approve(params.id, actor)));
+  r.post(`/${plural}/:id/return`, approvers(), route({ ...item, body: ReturnInputSchema }, ({ params, body, actor }) => service.returnToDraft(params.id, body.comment, actor)));
+  r.post(`/${plural}/:id/publish`, approvers(), route(item, ({ params, actor }) => service.publish(params.id, actor)));
+  r.post(`/${plural}/:id/schedule`, approvers(), route({ ...item, body: ScheduleInputSchema }, ({ params, body, actor }) => service.schedule(params.id, body.at, actor)));
+  r.post(`/${plural}/:id/withdraw`, approvers(), route(item, ({ params, actor }) => service.withdraw(params.id, actor)));
 
   return r;
 }

@@ -3,7 +3,7 @@ import type { ReportState } from "#shared/schemas/reports.ts";
 import type { RecordAudience } from "#shared/schemas/risks.ts";
 import { insertRecordEvents, listRecordEvents, type NewRecordEvent } from "../core/record-events.ts";
 import { retryOnDeadlock } from "../db/retry.ts";
-import { date, dateOrNull, json, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull } from "../db/rows.ts";
+import { countOf, date, dateOrNull, firstRow, json, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -54,9 +54,7 @@ export async function listReports(q: Q, projectId: number, scope: ReportScope): 
 }
 
 export async function findReport(q: Q, id: number, scope: ReportScope, opts: { forUpdate?: boolean } = {}): Promise<ReportRecord | null> {
-  const query = scoped(q("reports").where({ id }), scope);
-  if (opts.forUpdate) query.forUpdate();
-  const row = (await query.first()) as Record<string, unknown> | undefined;
+  const row = await firstRow(scoped(q("reports").where({ id }), scope), opts);
   return row ? toReport(row) : null;
 }
 
@@ -122,8 +120,7 @@ export async function insertNotices(q: Q, reportId: number, readers: ReadonlyArr
 }
 
 async function countNotices(q: Q, reportId: number): Promise<number> {
-  const r = (await q("report_notices").where({ report_id: reportId }).count({ n: "*" }).first()) as { n: number | string } | undefined;
-  return Number(r?.n ?? 0);
+  return countOf(q("report_notices").where({ report_id: reportId }));
 }
 
 export interface ClaimedNotice {

@@ -2,7 +2,8 @@ import { Router, type Request, type Response } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { ReviewAnswerInputSchema, ReviewLinkInputSchema, ReviewRevisionQuerySchema, ReviewTokenParamSchema, type ReviewContentKind } from "#shared/schemas/review-links.ts";
 import { AppError } from "../core/app-error.ts";
-import { actorOf, requireStaff } from "../core/auth.ts";
+import { requireStaff } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { ReviewClient, ReviewLinksService } from "./review-links.service.ts";
 
 const NEVER_STORED = "private, no-store";
@@ -32,28 +33,21 @@ function forReviewer(res: Response): Response {
  */
 export function reviewLinksRouter(reviewLinks: ReviewLinksService): Router {
   const r = Router();
+  const item = { params: IdParamSchema };
 
   const kinds: Array<[string, ReviewContentKind]> = [
     ["/posts/:id/review-links", "post"],
     ["/stories/:id/review-links", "story"],
   ];
   for (const [path, kind] of kinds) {
-    r.post(path, requireStaff(), async (req, res) => {
-      const { id } = IdParamSchema.parse(req.params);
-      const input = ReviewLinkInputSchema.parse(req.body);
-      res.status(201).set("Cache-Control", NEVER_STORED).json(await reviewLinks.create(kind, id, input, actorOf(req)));
-    });
-    r.get(path, requireStaff(), async (req, res) => {
-      const { id } = IdParamSchema.parse(req.params);
-      res.set("Cache-Control", NEVER_STORED).json(await reviewLinks.list(kind, id));
-    });
+    r.post(path, requireStaff(), route({ ...item, body: ReviewLinkInputSchema, status: 201, headers: { "Cache-Control": NEVER_STORED } }, ({ params, body, actor }) => reviewLinks.create(kind, params.id, body, actor)));
+    r.get(path, requireStaff(), route({ ...item, headers: { "Cache-Control": NEVER_STORED } }, ({ params }) => reviewLinks.list(kind, params.id)));
   }
 
-  r.delete("/review-links/:id", requireStaff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await reviewLinks.revoke(id, actorOf(req));
-    res.status(204).set("Cache-Control", NEVER_STORED).end();
-  });
+  r.delete("/review-links/:id", requireStaff(), route({ ...item, status: 204 }, async ({ params, actor, res }) => {
+    await reviewLinks.revoke(params.id, actor);
+    res.set("Cache-Control", NEVER_STORED);
+  }));
 
   r.get("/review/:token", async (req, res) => {
     forReviewer(res);

@@ -1,5 +1,6 @@
 import { insertRecordEvents, listFieldEventsIn, listRecordEvents, toRecordEvent, type NewRecordEvent, type RecordEventRow } from "../core/record-events.ts";
 import type { Q } from "./risks.repository.ts";
+import { countOf } from "../db/rows.ts";
 
 // The register's history: every write is an event (a field's change, from → to, who, when, a
 // note), so a score as it stood on any day, and what moved in a window, are queries. The rows
@@ -25,6 +26,5 @@ export async function listLevelEvents(q: Q, riskIds: readonly number[]): Promise
 
 /** How many events a risk has beyond its creation (a risk with any is on record). */
 export async function countEventsBeyondCreation(q: Q, riskId: number): Promise<number> {
-  const r = (await q("risk_events").where({ risk_id: riskId }).whereNot({ field: "created" }).count({ n: "*" }).first()) as { n: number | string } | undefined;
-  return Number(r?.n ?? 0);
+  return countOf(q("risk_events").where({ risk_id: riskId }).whereNot({ field: "created" }));
 }

@@ -1,7 +1,7 @@
 import type { Knex } from "knex";
 import type { ActionStatus, CostExposure, RecordAudience, RiskCategory, RiskKind, RiskStatus } from "#shared/schemas/risks.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
-import { instant, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
+import { columnsOf, firstRow, instant, num, numOrNull, oneOf, projectIdOf, readRow, text, textOrNull, updateVersioned, type Row } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -65,30 +65,12 @@ const readRisk = readRow<Omit<RiskRecord, keyof RiskLinks>>({
 });
 const toRisk = (r: Row, links: RiskLinks): RiskRecord => ({ ...readRisk(r), ...links });
 
+const RISK_KEYS = ["title", "description", "cause", "effect", "category", "ownerId", "likelihood", "impact", "scheduleDays", "status", "audience", "impactNow", "action", "dueDate"] as const;
+
 function riskRow(f: Partial<RiskFields>): Record<string, unknown> {
-  const row: Record<string, unknown> = {};
-  const set = (column: string, value: unknown) => {
-    if (value !== undefined) row[column] = value;
-  };
-  set("title", f.title);
-  set("description", f.description);
-  set("cause", f.cause);
-  set("effect", f.effect);
-  set("category", f.category);
-  set("owner_id", f.ownerId);
-  set("likelihood", f.likelihood);
-  set("impact", f.impact);
-  if (f.costExposure !== undefined) {
-    const c = f.costExposure;
-    Object.assign(row, { cost_min: c?.min ?? null, cost_most_likely: c?.mostLikely ?? null, cost_max: c?.max ?? null, probability: c?.probability ?? null });
-  }
-  set("schedule_days", f.scheduleDays);
-  set("status", f.status);
-  set("audience", f.audience);
-  set("impact_now", f.impactNow);
-  set("action", f.action);
-  set("due_date", f.dueDate);
-  return row;
+  const c = f.costExposure;
+  const cost = c === undefined ? {} : { cost_min: c?.min ?? null, cost_most_likely: c?.mostLikely ?? null, cost_max: c?.max ?? null, probability: c?.probability ?? null };
+  return { ...columnsOf(f, RISK_KEYS), ...cost };
 }
 
 /** The one audience filter of the register's reads. */
@@ -117,9 +99,7 @@ export async function listRisks(q: Q, projectId: number, audiences: readonly Rec
 
 /** One risk or issue when it is of these audiences; `forUpdate` locks its row for the rest of the transaction. */
 export async function findRisk(q: Q, id: number, audiences: readonly RecordAudience[], opts: { forUpdate?: boolean } = {}): Promise<RiskRecord | null> {
-  const query = visibleTo(q("risks").where({ id }), audiences).first();
-  if (opts.forUpdate) query.forUpdate();
-  const r = (await query) as Record<string, unknown> | undefined;
+  const r = await firstRow(visibleTo(q("risks").where({ id }), audiences), opts);
   return r ? (await risksFrom(q, [r]))[0]! : null;
 }
 
@@ -185,10 +165,7 @@ export interface MitigationRecord extends MitigationFields {
 
 const toMitigation = readRow<MitigationRecord>({ id: num(), riskId: num(), description: text(), ownerId: num(), dueDate: textOrNull(), status: oneOf<ActionStatus>(), version: num() });
 
-function mitigationRow(f: Partial<MitigationFields>): Record<string, unknown> {
-  const row: Record<string, unknown> = { description: f.description, owner_id: f.ownerId, due_date: f.dueDate, status: f.status };
-  return Object.fromEntries(Object.entries(row).filter(([, v]) => v !== undefined));
-}
+const mitigationRow = (f: Partial<MitigationFields>) => columnsOf(f, ["description", "ownerId", "dueDate", "status"]);
 
 /** The mitigation actions of these risks, each risk's in the order they were entered. */
 export async function listMitigations(q: Q, riskIds: readonly number[]): Promise<MitigationRecord[]> {
@@ -197,9 +174,7 @@ export async function listMitigations(q: Q, riskIds: readonly number[]): Promise
 }
 
 export async function findMitigation(q: Q, id: number, opts: { forUpdate?: boolean } = {}): Promise<MitigationRecord | null> {
-  const query = q("risk_mitigations").where({ id }).first();
-  if (opts.forUpdate) query.forUpdate();
-  const r = (await query) as Record<string, unknown> | undefined;
+  const r = await firstRow(q("risk_mitigations").where({ id }), opts);
   return r ? toMitigation(r) : null;
 }
 

@@ -8,28 +8,8 @@ import { invalid, referenceOf, type RisksContext } from "./risks.context.ts";
 import type { RiskReadUseCases } from "./risks.reads.ts";
 
 /** The fields a risk's events and audit entries list: its columns and its links. */
-function writtenOf(r: RiskFields & RiskLinks): Record<string, unknown> {
-  return {
-    title: r.title,
-    description: r.description,
-    cause: r.cause,
-    effect: r.effect,
-    category: r.category,
-    ownerId: r.ownerId,
-    likelihood: r.likelihood,
-    impact: r.impact,
-    costExposure: r.costExposure,
-    scheduleDays: r.scheduleDays,
-    status: r.status,
-    audience: r.audience,
-    impactNow: r.impactNow,
-    action: r.action,
-    dueDate: r.dueDate,
-    linkedMilestones: r.linkedMilestones,
-    linkedBlocks: r.linkedBlocks,
-    linkedSystems: r.linkedSystems,
-  };
-}
+const WRITTEN = ["title", "description", "cause", "effect", "category", "ownerId", "likelihood", "impact", "costExposure", "scheduleDays", "status", "audience", "impactNow", "action", "dueDate", "linkedMilestones", "linkedBlocks", "linkedSystems"] as const;
+const writtenOf = (r: RiskFields & RiskLinks): Record<string, unknown> => Object.fromEntries(WRITTEN.map((key) => [key, r[key]]));
 
 const ALL_FIELDS = new Set(["likelihood", "impact", "ownerId", "linkedMilestones", "linkedBlocks", "linkedSystems"]);
 

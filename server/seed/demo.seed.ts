@@ -11,6 +11,7 @@ import { seedRecord } from "./record.seed.ts";
 import { seedDocuments } from "./documents.seed.ts";
 import { seedReports } from "./reports.seed.ts";
 import { seedSitePlan } from "./site-plan.seed.ts";
+import { countOf } from "../db/rows.ts";
 
 export const DEMO_PROJECT_SLUG = "aldermere-phase-2";
 
@@ -42,8 +43,8 @@ export async function seedDemo(db: Knex, opts: { password: string }): Promise<{ 
   // The programme is seeded once, into a project that has none: a second run, or a
   // programme the demo's users have since edited, is left alone.
   const project = await db("projects").where({ slug: DEMO_PROJECT_SLUG }).first("id");
-  const existing = await db("milestones").where({ project_id: project.id }).count({ n: "*" }).first();
-  if (Number(existing?.n ?? 0) === 0) {
+  const existing = await countOf(db("milestones").where({ project_id: project.id }));
+  if (existing === 0) {
     const lead = await db("users").where({ email: "lead@kestrel.example" }).first("id");
     const count = await seedProgramme(db, Number(project.id), { byUserId: lead ? Number(lead.id) : null });
     created.push(`programme of ${count} milestones`);

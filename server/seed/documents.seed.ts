@@ -8,6 +8,7 @@ import { createLocalDiskStorage, createUploadArea } from "../media/media.storage
 import { createProjectsService } from "../projects/projects.service.ts";
 import { createAccountsService } from "../users/users.accounts.ts";
 import { seedMediaDir } from "./media.seed.ts";
+import { countOf } from "../db/rows.ts";
 
 /**
  * The demo's document library: six invented documents (two monthly monitoring reports, a lender
@@ -109,8 +110,8 @@ export async function seedDocuments(db: Knex, projectSlug: string, opts: { media
   const project = (await db("projects").where({ slug: projectSlug }).first("id")) as { id: number } | undefined;
   if (!project) return { created: [] };
   const projectId = Number(project.id);
-  const existing = (await db("documents").where({ project_id: projectId }).count({ n: "*" }).first()) as { n: number | string } | undefined;
-  if (Number(existing?.n ?? 0) > 0) return { created: [] };
+  const existing = await countOf(db("documents").where({ project_id: projectId }));
+  if (existing > 0) return { created: [] };
 
   const lead = (await db("users").where({ email: "lead@kestrel.example" }).first("id", "name")) as { id: number; name: string } | undefined;
   const investor = (await db("users").where({ email: INVESTOR }).first("id", "organisation_id")) as { id: number; organisation_id: number | null } | undefined;

@@ -17,6 +17,7 @@ import { createReportsService } from "../reports/reports.service.ts";
 import { createRisksService } from "../risks/risks.service.ts";
 import { createAccountsService } from "../users/users.accounts.ts";
 import { seedMediaDir } from "./media.seed.ts";
+import { countOf } from "../db/rows.ts";
 
 /**
  * The demo's monthly reports: the last two full months, each drafted, given a line of the lead's
@@ -47,8 +48,8 @@ const NO_MAIL: Mailer = {
 export async function seedReports(db: Knex, projectSlug: string, opts: { mediaDir?: string; today?: DateTime } = {}): Promise<{ created: string[] }> {
   const project = (await db("projects").where({ slug: projectSlug }).first("id")) as { id: number } | undefined;
   if (!project) return { created: [] };
-  const existing = (await db("reports").where({ project_id: project.id }).count({ n: "*" }).first()) as { n: number | string } | undefined;
-  if (Number(existing?.n ?? 0) > 0) return { created: [] };
+  const existing = await countOf(db("reports").where({ project_id: project.id }));
+  if (existing > 0) return { created: [] };
   const lead = (await db("users").where({ email: LEAD }).first("id", "name")) as { id: number; name: string } | undefined;
   if (!lead) return { created: [] };
   const actor: Actor = { user: { id: Number(lead.id), email: LEAD, name: String(lead.name), role: "lead" }, ip: null };

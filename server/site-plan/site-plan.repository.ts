@@ -2,7 +2,7 @@ import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { SiteAreaKind } from "#shared/schemas/site-plan.ts";
 import { insertRecordEvents, type NewRecordEvent } from "../core/record-events.ts";
-import { num, oneOf, projectIdOf, readRow, text, updateVersioned } from "../db/rows.ts";
+import { firstRow, num, oneOf, projectIdOf, readRow, text, updateVersioned } from "../db/rows.ts";
 
 export type Q = Knex | Knex.Transaction;
 
@@ -38,9 +38,7 @@ export async function listAreas(q: Q, projectId: number, audiences: readonly Aud
 
 /** One area (any audience: only staff write); `forUpdate` locks its row for the rest of the transaction. */
 export async function findArea(q: Q, id: number, opts: { forUpdate?: boolean } = {}): Promise<SiteAreaRecord | null> {
-  const query = q("site_areas").where({ id }).first();
-  if (opts.forUpdate) query.forUpdate();
-  const row = (await query) as Record<string, unknown> | undefined;
+  const row = await firstRow(q("site_areas").where({ id }), opts);
   return row ? toRecord(row) : null;
 }
 

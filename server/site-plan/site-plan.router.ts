@@ -2,7 +2,8 @@ import { Router } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { SiteAreaCreateInputSchema, SiteAreaPatchInputSchema } from "#shared/schemas/site-plan.ts";
-import { actorOf, requireRole } from "../core/auth.ts";
+import { requireRole } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { SitePlanService } from "./site-plan.service.ts";
 
 const writers = () => requireRole("lead", "admin");
@@ -13,26 +14,13 @@ const writers = () => requireRole("lead", "admin");
  */
 export function sitePlanRouter(sitePlan: SitePlanService): Router {
   const r = Router();
+  const project = { params: SlugParamSchema };
+  const item = { params: IdParamSchema };
 
-  r.get("/projects/:slug/site-plan", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    res.json(await sitePlan.plan(slug, actorOf(req)));
-  });
-  r.post("/projects/:slug/site-areas", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = SiteAreaCreateInputSchema.parse(req.body);
-    res.status(201).json(await sitePlan.create(slug, input, actorOf(req)));
-  });
-  r.patch("/site-areas/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = SiteAreaPatchInputSchema.parse(req.body);
-    res.json(await sitePlan.patch(id, input, actorOf(req)));
-  });
-  r.delete("/site-areas/:id", writers(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    await sitePlan.delete(id, actorOf(req));
-    res.status(204).end();
-  });
+  r.get("/projects/:slug/site-plan", route(project, ({ params, actor }) => sitePlan.plan(params.slug, actor)));
+  r.post("/projects/:slug/site-areas", writers(), route({ ...project, body: SiteAreaCreateInputSchema, status: 201 }, ({ params, body, actor }) => sitePlan.create(params.slug, body, actor)));
+  r.patch("/site-areas/:id", writers(), route({ ...item, body: SiteAreaPatchInputSchema }, ({ params, body, actor }) => sitePlan.patch(params.id, body, actor)));
+  r.delete("/site-areas/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => sitePlan.delete(params.id, actor)));
 
   return r;
 }

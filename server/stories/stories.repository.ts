@@ -4,6 +4,7 @@ import type { StoryItemInput } from "#shared/schemas/stories.ts";
 import type { Viewer } from "#shared/domain/audience.ts";
 import { visibleContent } from "../publishing/publishing.audience.ts";
 import { changedColumns, newDraftColumns, toWorkflowRecord, type WorkflowRecord, type WorkflowUpdate } from "../publishing/publishing.columns.ts";
+import { firstRow } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -47,9 +48,7 @@ export async function updateStory(q: Q, id: number, changes: StoryUpdate, at: Da
 }
 
 export async function findStoryById(q: Q, id: number, opts: { forUpdate?: boolean } = {}): Promise<StoryRecord | null> {
-  const query = q("stories as s").where("s.id", id).first("s.*");
-  if (opts.forUpdate) query.forUpdate();
-  const r = await query;
+  const r = await firstRow(q("stories as s").where("s.id", id).select("s.*"), opts);
   return r ? toRecord(r) : null;
 }
 

@@ -1,7 +1,7 @@
 import { Router } from "express";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { StoryCreateInputSchema, StoryPatchInputSchema, StorySlugParamsSchema } from "#shared/schemas/stories.ts";
-import { actorOf } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import { cacheForReader, publishingRouter } from "../publishing/publishing.router.ts";
 import type { StoriesService } from "./stories.service.ts";
 
@@ -13,12 +13,14 @@ import type { StoriesService } from "./stories.service.ts";
 export function storiesRouter(stories: StoriesService): Router {
   const r = Router();
 
-  r.get("/projects/:slug/stories", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const list = await stories.list(slug, actorOf(req));
-    cacheForReader(req, res);
-    res.json(list);
-  });
+  r.get(
+    "/projects/:slug/stories",
+    route({ params: SlugParamSchema }, async ({ params, actor, req, res }) => {
+      const list = await stories.list(params.slug, actor);
+      cacheForReader(req, res);
+      return list;
+    }),
+  );
 
   r.use(
     publishingRouter(

@@ -1,6 +1,6 @@
 import type { Knex } from "knex";
 import type { Frequency, Interest, SubscriberAudience, SubscriberFilterQuery, SubscriberStatus, Topics } from "#shared/schemas/subscribers.ts";
-import { date, dateOrNull, instant, instantOrNull, json, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
+import { countOf, date, dateOrNull, instant, instantOrNull, json, num, numOrNull, oneOf, readRow, text, textOrNull } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -194,8 +194,7 @@ export async function listSubscribers(q: Q, f: SubscriberFilter, window: { offse
   const query = filtered(q, f).orderBy([{ column: "s.created_at", order: "desc" }, { column: "s.id", order: "desc" }]);
   if (window !== null) query.offset(window.offset).limit(window.limit);
   const rows = (await query).map(toSubscriber);
-  const countRow = await filtered(q, f).clearSelect().count({ n: "*" }).first();
-  return { rows, total: Number((countRow as { n?: number } | undefined)?.n ?? rows.length) };
+  return { rows, total: await countOf(filtered(q, f).clearSelect()) };
 }
 
 /** Every email address of a project already on its list (for imports). */

@@ -17,7 +17,8 @@ import {
 } from "#shared/schemas/subscribers.ts";
 import { AppError } from "../core/app-error.ts";
 import { requestLimit } from "../core/request-limit.ts";
-import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
+import { requireRole, requireStaff } from "../core/auth.ts";
+import { optionalBody, route } from "../core/route.ts";
 import { SUBSCRIPTION_ACCEPTED } from "./subscribers.lifecycle.ts";
 import type { SubscribersService } from "./subscribers.service.ts";
 
@@ -53,85 +54,60 @@ export function subscribersRouter(deps: {
     { standardHeaders: false, skip: (req) => addressOf(req) === "", keyGenerator: (req) => addressOf(req) },
   );
 
-  r.get("/projects/:slug/subscription-options", async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    res.json(await subscribers.options(slug));
-  });
+  const link = { params: SubscriberTokenParamSchema };
+  const item = { params: IdParamSchema };
 
-  r.post("/subscriptions", perIp, perAddress, async (req, res) => {
-    const input = SubscriptionInputSchema.parse(req.body);
-    await subscribers.subscribe(input, actorOf(req));
-    res.status(202).set("Cache-Control", "no-store").json(SUBSCRIPTION_ACCEPTED);
-  });
+  r.get("/projects/:slug/subscription-options", route({ params: SlugParamSchema }, ({ params }) => subscribers.options(params.slug)));
 
-  r.get("/subscriptions/confirm/:token", async (req, res) => {
-    res.set("Cache-Control", "no-store").json(await subscribers.describeConfirmation(tokenOf(req)));
-  });
-  r.post("/subscriptions/confirm/:token", async (req, res) => {
-    const token = tokenOf(req);
-    EmptyInputSchema.parse(req.body ?? {});
-    res.json(await subscribers.confirm(token, actorOf(req)));
-  });
+  r.post(
+    "/subscriptions",
+    perIp,
+    perAddress,
+    route({ body: SubscriptionInputSchema, status: 202 }, async ({ body, actor, res }) => {
+      await subscribers.subscribe(body, actor);
+      res.set("Cache-Control", "no-store");
+      return SUBSCRIPTION_ACCEPTED;
+    }),
+  );
 
-  r.get("/subscriptions/preferences/:token", async (req, res) => {
-    res.set("Cache-Control", "no-store").json(await subscribers.describePreferences(tokenOf(req)));
-  });
-  r.patch("/subscriptions/preferences/:token", async (req, res) => {
-    const token = tokenOf(req);
-    const patch = PreferencesInputSchema.parse(req.body);
-    res.json(await subscribers.updatePreferences(token, patch));
-  });
-  r.post("/subscriptions/preferences/:token/unsubscribe", async (req, res) => {
-    const token = tokenOf(req);
-    EmptyInputSchema.parse(req.body ?? {});
-    res.json(await subscribers.unsubscribeWithPreferencesLink(token));
-  });
+  r.get("/subscriptions/confirm/:token", route({ ...link, headers: { "Cache-Control": "no-store" } }, ({ params }) => subscribers.describeConfirmation(params.token)));
+  r.post("/subscriptions/confirm/:token", route({ ...link, body: optionalBody(EmptyInputSchema) }, ({ params, actor }) => subscribers.confirm(params.token, actor)));
 
-  r.get("/subscriptions/unsubscribe/:token", async (req, res) => {
-    res.set("Cache-Control", "no-store").json(await subscribers.describeUnsubscribe(tokenOf(req)));
-  });
-  r.post("/subscriptions/unsubscribe/:token", async (req, res) => {
-    const token = tokenOf(req);
-    EmptyInputSchema.parse(req.body ?? {});
-    res.json(await subscribers.unsubscribe(token));
-  });
+  r.get("/subscriptions/preferences/:token", route({ ...link, headers: { "Cache-Control": "no-store" } }, ({ params }) => subscribers.describePreferences(params.token)));
+  r.patch("/subscriptions/preferences/:token", route({ ...link, body: PreferencesInputSchema }, ({ params, body }) => subscribers.updatePreferences(params.token, body)));
+  r.post("/subscriptions/preferences/:token/unsubscribe", route({ ...link, body: optionalBody(EmptyInputSchema) }, ({ params }) => subscribers.unsubscribeWithPreferencesLink(params.token)));
 
-  r.get("/investors/digest", requireRole("investor"), async (req, res) => {
-    res.json(await subscribers.investorDigest(req.user!));
-  });
-  r.patch("/investors/digest/:slug", requireRole("investor"), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const input = InvestorDigestInputSchema.parse(req.body);
-    res.json(await subscribers.setInvestorDigest(req.user!, slug, input, actorOf(req)));
-  });
+  r.get("/subscriptions/unsubscribe/:token", route({ ...link, headers: { "Cache-Control": "no-store" } }, ({ params }) => subscribers.describeUnsubscribe(params.token)));
+  r.post("/subscriptions/unsubscribe/:token", route({ ...link, body: optionalBody(EmptyInputSchema) }, ({ params }) => subscribers.unsubscribe(params.token)));
 
-  r.get("/subscribers", requireStaff(), async (req, res) => {
-    const query = SubscriberListQuerySchema.parse({ ...req.query });
-    res.json(await subscribers.list(query));
-  });
-  r.get("/subscribers/export.csv", requireStaff(), async (req, res) => {
-    const query = SubscriberFilterQuerySchema.parse({ ...req.query });
-    const csv = await subscribers.exportCsv(query);
-    res
-      .status(200)
-      .type("text/csv; charset=utf-8")
-      .set("Cache-Control", "no-store")
-      .attachment(`subscribers-${new Date().toISOString().slice(0, 10)}.csv`)
-      .send(csv);
-  });
-  r.post("/subscribers/import", requireStaff(), async (req, res) => {
-    const input = SubscriberImportInputSchema.parse(req.body);
-    res.json(await subscribers.importCsv(input));
-  });
-  r.get("/subscribers/:id/export", requireStaff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const data = await subscribers.personData(id);
-    res.set("Cache-Control", "no-store").attachment(`subscriber-${id}.json`).json(data);
-  });
-  r.delete("/subscribers/:id", requireStaff(), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    res.json(await subscribers.erase(id));
-  });
+  r.get("/investors/digest", requireRole("investor"), route({}, ({ actor }) => subscribers.investorDigest(actor.user!)));
+  r.patch("/investors/digest/:slug", requireRole("investor"), route({ params: SlugParamSchema, body: InvestorDigestInputSchema }, ({ params, body, actor }) => subscribers.setInvestorDigest(actor.user!, params.slug, body, actor)));
+
+  r.get("/subscribers", requireStaff(), route({ query: SubscriberListQuerySchema }, ({ query }) => subscribers.list(query)));
+  r.get(
+    "/subscribers/export.csv",
+    requireStaff(),
+    route({ query: SubscriberFilterQuerySchema }, async ({ query, res }) => {
+      const csv = await subscribers.exportCsv(query);
+      res
+        .status(200)
+        .type("text/csv; charset=utf-8")
+        .set("Cache-Control", "no-store")
+        .attachment(`subscribers-${new Date().toISOString().slice(0, 10)}.csv`)
+        .send(csv);
+    }),
+  );
+  r.post("/subscribers/import", requireStaff(), route({ body: SubscriberImportInputSchema }, ({ body }) => subscribers.importCsv(body)));
+  r.get(
+    "/subscribers/:id/export",
+    requireStaff(),
+    route(item, async ({ params, res }) => {
+      const data = await subscribers.personData(params.id);
+      res.set("Cache-Control", "no-store").attachment(`subscriber-${params.id}.json`);
+      return data;
+    }),
+  );
+  r.delete("/subscribers/:id", requireStaff(), route(item, ({ params }) => subscribers.erase(params.id)));
 
   return r;
 }

@@ -1,7 +1,7 @@
 import type { Knex } from "knex";
 import type { Role } from "#shared/schemas/common.ts";
 import type { InvitationRow, UserRow } from "#shared/schemas/users.ts";
-import { columnsOf, date, dateOrNull, num, numOrNull, oneOf, readRow, text } from "../db/rows.ts";
+import { columnsOf, countOf, date, dateOrNull, num, numOrNull, oneOf, readRow, text } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -83,8 +83,7 @@ export async function setUserOrganisation(q: Q, id: number, organisationId: numb
 }
 
 export async function countActiveAdmins(q: Q): Promise<number> {
-  const r = await q("users").where({ role: "admin" }).whereNull("disabled_at").count({ n: "*" }).first();
-  return Number(r?.n ?? 0);
+  return countOf(q("users").where({ role: "admin" }).whereNull("disabled_at"));
 }
 
 // Organisations of investor accounts

@@ -2,42 +2,22 @@ import { Router } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
 import { OrganisationInputSchema, UserOrganisationInputSchema } from "#shared/schemas/documents.ts";
 import { InviteInputSchema, UserUpdateInputSchema } from "#shared/schemas/users.ts";
-import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
+import { requireRole, requireStaff } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { UsersService } from "./users.service.ts";
 
 export function usersRouter(users: UsersService): Router {
   const r = Router();
-  r.get("/users", requireRole("admin"), async (_req, res) => {
-    res.json(await users.list());
-  });
+  const item = { params: IdParamSchema };
+  r.get("/users", requireRole("admin"), route({}, () => users.list()));
   // Who may own a risk or an action: staff pick owners from it (names only, no addresses).
-  r.get("/users/staff", requireStaff(), async (_req, res) => {
-    res.json(await users.listStaff());
-  });
-  r.get("/users/invitations", requireRole("admin"), async (_req, res) => {
-    res.json(await users.listInvitations());
-  });
-  r.post("/users/invitations", requireRole("admin"), async (req, res) => {
-    const input = InviteInputSchema.parse(req.body);
-    res.status(201).json(await users.invite(input, actorOf(req)));
-  });
-  r.patch("/users/:id", requireRole("admin"), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const patch = UserUpdateInputSchema.parse(req.body);
-    res.json(await users.update(id, patch, actorOf(req)));
-  });
-  r.patch("/users/:id/organisation", requireRole("admin"), async (req, res) => {
-    const { id } = IdParamSchema.parse(req.params);
-    const input = UserOrganisationInputSchema.parse(req.body);
-    res.json(await users.setOrganisation(id, input, actorOf(req)));
-  });
+  r.get("/users/staff", requireStaff(), route({}, () => users.listStaff()));
+  r.get("/users/invitations", requireRole("admin"), route({}, () => users.listInvitations()));
+  r.post("/users/invitations", requireRole("admin"), route({ body: InviteInputSchema, status: 201 }, ({ body, actor }) => users.invite(body, actor)));
+  r.patch("/users/:id", requireRole("admin"), route({ ...item, body: UserUpdateInputSchema }, ({ params, body, actor }) => users.update(params.id, body, actor)));
+  r.patch("/users/:id/organisation", requireRole("admin"), route({ ...item, body: UserOrganisationInputSchema }, ({ params, body, actor }) => users.setOrganisation(params.id, body, actor)));
   // Investor organisations: staff read them (limiting a document names some); admins add them.
-  r.get("/organisations", requireStaff(), async (_req, res) => {
-    res.json(await users.listOrganisations());
-  });
-  r.post("/organisations", requireRole("admin"), async (req, res) => {
-    const input = OrganisationInputSchema.parse(req.body);
-    res.status(201).json(await users.createOrganisation(input, actorOf(req)));
-  });
+  r.get("/organisations", requireStaff(), route({}, () => users.listOrganisations()));
+  r.post("/organisations", requireRole("admin"), route({ body: OrganisationInputSchema, status: 201 }, ({ body, actor }) => users.createOrganisation(body, actor)));
   return r;
 }

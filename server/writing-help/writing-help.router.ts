@@ -1,7 +1,8 @@
 import { Router } from "express";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { DraftFromSuggestionInputSchema, DraftSuggestionQuerySchema } from "#shared/schemas/writing-help.ts";
-import { actorOf, requireRole } from "../core/auth.ts";
+import { requireRole } from "../core/auth.ts";
+import { route } from "../core/route.ts";
 import type { WritingHelpService } from "./writing-help.service.ts";
 
 /** Those who start updates: leads, marketing and administrators (decision 061). */
@@ -10,17 +11,10 @@ const writers = () => requireRole("lead", "marketing", "admin");
 /** Help for the people who write: the draft suggested by the programme, and a draft made from it. */
 export function writingHelpRouter(writingHelp: WritingHelpService): Router {
   const r = Router();
+  const project = { params: SlugParamSchema };
 
-  r.get("/projects/:slug/draft-suggestion", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const { audience } = DraftSuggestionQuerySchema.parse({ ...req.query });
-    res.json(await writingHelp.suggestion(slug, audience, actorOf(req)));
-  });
-  r.post("/projects/:slug/draft-suggestion/draft", writers(), async (req, res) => {
-    const { slug } = SlugParamSchema.parse(req.params);
-    const { audience } = DraftFromSuggestionInputSchema.parse(req.body);
-    res.status(201).json(await writingHelp.createDraft(slug, audience, actorOf(req)));
-  });
+  r.get("/projects/:slug/draft-suggestion", writers(), route({ ...project, query: DraftSuggestionQuerySchema }, ({ params, query, actor }) => writingHelp.suggestion(params.slug, query.audience, actor)));
+  r.post("/projects/:slug/draft-suggestion/draft", writers(), route({ ...project, body: DraftFromSuggestionInputSchema, status: 201 }, ({ params, body, actor }) => writingHelp.createDraft(params.slug, body.audience, actor)));
 
   return r;
 }
