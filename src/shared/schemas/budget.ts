@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { CalendarDateSchema } from "./common.ts";
-import { RecordAudienceSchema } from "./risks.ts";
+import { RecordAudienceSchema, recordEventShape } from "./risks.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -131,6 +131,6 @@ const BudgetPositionSchema = z.object({
 });
 export type BudgetPosition = z.infer<typeof BudgetPositionSchema>;
 
-const BudgetEventSchema = z.object({ id: z.number(), changeId: z.number().nullable(), field: z.string(), from: z.string().nullable(), to: z.string().nullable(), at: z.string(), by: z.string().nullable(), note: z.string().nullable() });
+const BudgetEventSchema = z.object({ id: z.number(), changeId: z.number().nullable(), ...recordEventShape });
 
 export const BUDGET_ANSWERS = { change: BudgetChangeAnswerSchema, position: BudgetPositionSchema, event: BudgetEventSchema } as const;

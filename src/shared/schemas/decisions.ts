@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { CalendarDateSchema } from "./common.ts";
-import { RecordAudienceSchema } from "./risks.ts";
+import { RecordAudienceSchema, recordEventShape } from "./risks.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -105,7 +105,7 @@ const DecisionAnswerSchema = z.object({
 });
 export type DecisionAnswer = z.infer<typeof DecisionAnswerSchema>;
 
-const DecisionEventSchema = z.object({ id: z.number(), decisionId: z.number(), field: z.string(), from: z.string().nullable(), to: z.string().nullable(), at: z.string(), by: z.string().nullable(), note: z.string().nullable() });
+const DecisionEventSchema = z.object({ id: z.number(), decisionId: z.number(), ...recordEventShape });
 export type DecisionEvent = z.infer<typeof DecisionEventSchema>;
 
 export const DECISIONS_ANSWERS = { decision: DecisionAnswerSchema, event: DecisionEventSchema } as const;

@@ -1,6 +1,8 @@
 import { z } from "zod";
+import { IdParamSchema } from "./common.ts";
+import { pageAnswerShape } from "./paging.ts";
 import { ProjectSchema } from "./projects.ts";
-import { FrequencySchema } from "./subscribers.ts";
+import { FrequencySchema, SubscriberRowSchema } from "./subscribers.ts";
 import { plainText } from "./text.ts";
 
 /**
@@ -11,8 +13,13 @@ import { plainText } from "./text.ts";
 export const DigestRunStatusSchema = z.enum(["queued", "running", "done", "failed", "paused"]);
 export type DigestRunStatus = z.infer<typeof DigestRunStatusSchema>;
 
+/** The project a run or a test message is for, by its address. */
+const ProjectSlug = plainText({ error: "is required" }).min(1, "is required").max(120);
+/** `?project=`: one project's runs only, by its address. */
+const ProjectFilter = plainText().min(1).max(120).optional();
+
 export const DigestRunInputSchema = z.strictObject({
-  projectSlug: plainText({ error: "is required" }).min(1, "is required").max(120),
+  projectSlug: ProjectSlug,
   frequency: z.enum(["weekly", "monthly"], { error: "must be weekly or monthly" }),
   /** The moment the run stands for (default now): the window is the ISO week or month before it. */
   at: z.iso.datetime({ offset: true, error: "must be an ISO 8601 date-time" }).optional(),
@@ -20,17 +27,17 @@ export const DigestRunInputSchema = z.strictObject({
 export type DigestRunInput = z.infer<typeof DigestRunInputSchema>;
 
 export const DigestTestInputSchema = z.strictObject({
-  projectSlug: plainText({ error: "is required" }).min(1, "is required").max(120),
+  projectSlug: ProjectSlug,
   audience: z.enum(["public", "investor"]).default("public"),
 });
 export type DigestTestInput = z.infer<typeof DigestTestInputSchema>;
 
 export const DigestRunListQuerySchema = z.strictObject({
-  project: plainText().min(1).max(120).optional(),
+  project: ProjectFilter,
   limit: z.coerce.number().int().min(1).max(200).default(50),
 });
 
-export const DigestUpcomingQuerySchema = z.strictObject({ project: plainText().min(1).max(120).optional() });
+export const DigestUpcomingQuerySchema = z.strictObject({ project: ProjectFilter });
 
 export const DigestPreviewQuerySchema = z.strictObject({ subscriberId: z.coerce.number({ error: "must be a number" }).int().positive() });
 
@@ -81,7 +88,7 @@ export type DigestUpcoming = z.infer<typeof DigestUpcomingSchema>;
 
 /** GET /api/digests/preview?subscriberId= */
 export const DigestPreviewSchema = z.object({
-  subscriber: z.object({ id: z.number(), email: z.string(), audience: z.enum(["public", "investor"]), frequency: FrequencySchema }),
+  subscriber: SubscriberRowSchema.pick({ id: true, email: true, audience: true, frequency: true }),
   windowStart: z.string(),
   windowEnd: z.string(),
   /** False when there is nothing to say: no e-mail would be sent. */
@@ -106,12 +113,12 @@ export const DIGEST_ARCHIVE_PAGE_SIZE = 20;
 
 /** The signed preferences link is the credential; the signature check, not the shape, decides (a link not ours is 404). */
 export const DigestArchiveLinkParamSchema = z.strictObject({ token: z.string().min(1).max(500) });
-export const DigestArchiveCopyParamSchema = DigestArchiveLinkParamSchema.extend({ id: z.coerce.number().int().positive() });
+export const DigestArchiveCopyParamSchema = DigestArchiveLinkParamSchema.extend({ id: IdParamSchema.shape.id });
 
 /** One sent digest in the list: when, what about, the window it covered, and where to read it. */
 export const DigestArchiveItemSchema = z.object({
   id: z.number(),
-  project: z.object({ slug: z.string(), name: z.string() }),
+  project: ProjectSchema.pick({ slug: true, name: true }),
   frequency: FrequencySchema,
   subject: z.string(),
   sentAt: z.string(),
@@ -125,12 +132,7 @@ export const DigestArchiveItemSchema = z.object({
 });
 export type DigestArchiveItem = z.infer<typeof DigestArchiveItemSchema>;
 
-export const DigestArchivePageSchema = z.object({
-  items: z.array(DigestArchiveItemSchema),
-  total: z.number(),
-  page: z.number(),
-  pageSize: z.number(),
-});
+export const DigestArchivePageSchema = z.object({ items: z.array(DigestArchiveItemSchema), ...pageAnswerShape });
 export type DigestArchivePage = z.infer<typeof DigestArchivePageSchema>;
 
 /**

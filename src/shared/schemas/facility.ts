@@ -168,11 +168,17 @@ export const UNIT_STAGES = ["ordered", "delivered", "installed", "L1", "L2", "L3
 export const UnitStageSchema = z.enum(UNIT_STAGES);
 export type UnitStage = z.infer<typeof UnitStageSchema>;
 
-export const UnitCreateInputSchema = z.strictObject({
+const UNIT_FIELDS = {
   label: Name,
-  tag: plainText().max(80).default(""),
+  tag: plainText().max(80),
   /** Which independent system (1 … independentSystems) the unit belongs to. */
-  train: z.number().int().min(1).max(4).default(1),
+  train: z.number().int().min(1).max(4),
+} as const;
+
+export const UnitCreateInputSchema = z.strictObject({
+  ...UNIT_FIELDS,
+  tag: UNIT_FIELDS.tag.default(""),
+  train: UNIT_FIELDS.train.default(1),
   stage: UnitStageSchema.default("ordered"),
   /** The day on site the stage was reached (default: today in the project's time zone). */
   on: CalendarDateSchema.optional(),
@@ -180,12 +186,8 @@ export const UnitCreateInputSchema = z.strictObject({
 });
 export type UnitCreateInput = z.infer<typeof UnitCreateInputSchema>;
 
-export const UnitPatchInputSchema = z.strictObject({
-  label: Name.optional(),
-  tag: plainText().max(80).optional(),
-  train: z.number().int().min(1).max(4).optional(),
-  version: z.number().int().positive(),
-});
+/** PATCH: the label, tag or train (the stage moves by POST …/units/:id/stage). */
+export const UnitPatchInputSchema = z.strictObject({ ...z.object(UNIT_FIELDS).partial().shape, version: z.number().int().positive() });
 export type UnitPatchInput = z.infer<typeof UnitPatchInputSchema>;
 
 /** POST …/units/:id/stage: a stage that goes backwards needs a note (422 otherwise). */

@@ -1,7 +1,8 @@
 import { z } from "zod";
 import { CalendarDateSchema } from "./common.ts";
+import { pageAnswerShape } from "./paging.ts";
 import { SystemSchema, type System } from "./programme.ts";
-import { ProjectSchema } from "./projects.ts";
+import { ProjectSchema, SlugParamSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -93,7 +94,7 @@ export const ReviewInputSchema = z.strictObject({
 export type ReviewInput = z.infer<typeof ReviewInputSchema>;
 
 const QueryBool = z.enum(["true", "false", "1", "0"]).transform((v) => v === "true" || v === "1");
-const ProjectSlug = z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address").max(100);
+const ProjectSlug = SlugParamSchema.shape.slug;
 
 /** GET /api/media: the library, filtered and paginated. */
 export const MediaListQuerySchema = z
@@ -173,12 +174,7 @@ export const MediaItemSchema = z.object({
 export type MediaItem = z.infer<typeof MediaItemSchema>;
 
 /** GET /api/media */
-export const MediaListResponseSchema = z.object({
-  items: z.array(MediaItemSchema),
-  total: z.number(),
-  page: z.number(),
-  pageSize: z.number(),
-});
+export const MediaListResponseSchema = z.object({ items: z.array(MediaItemSchema), ...pageAnswerShape });
 export type MediaListResponse = z.infer<typeof MediaListResponseSchema>;
 
 /** POST /api/media/bulk-tags: how many photos changed, and each as it is now. */
@@ -186,13 +182,7 @@ export const BulkTagResultSchema = z.object({ updated: z.number(), items: z.arra
 export type BulkTagResult = z.infer<typeof BulkTagResultSchema>;
 
 /** What POST /api/media answers for each file, in the order sent. */
-export const MediaUploadResultSchema = z.object({
-  id: z.number(),
-  status: MediaStatusSchema,
-  name: z.string(),
-  width: z.number(),
-  height: z.number(),
-  takenAt: z.string().nullable(),
+export const MediaUploadResultSchema = MediaItemSchema.pick({ id: true, status: true, name: true, width: true, height: true, takenAt: true }).extend({
   /** Set when the same bytes were already in the project's library: that item is offered instead. */
   duplicateOf: z.number().nullable(),
 });
@@ -219,22 +209,31 @@ export const MediaVocabularySchema = z.object({
 export type MediaVocabulary = z.infer<typeof MediaVocabularySchema>;
 
 /** What a page, a feed or an e-mail needs to render a photo as `<picture>`. */
-export const MediaPictureSchema = z.object({
-  id: z.number(),
-  width: z.number(),
-  height: z.number(),
-  altText: z.string().nullable(),
-  caption: z.string().nullable(),
-  credit: z.string().nullable(),
-  placeholder: z.string().nullable(),
-  dominantColor: z.string().nullable(),
-  takenAt: z.string().nullable(),
-  focal: FocalSchema,
-  isIllustration: z.boolean(),
+export const MediaPictureSchema = MediaItemSchema.pick({
+  id: true,
+  width: true,
+  height: true,
+  altText: true,
+  caption: true,
+  credit: true,
+  placeholder: true,
+  dominantColor: true,
+  takenAt: true,
+  focal: true,
+  isIllustration: true,
+}).extend({
   /** Each list in ascending width; empty until the photo is processed. */
   sources: z.record(VariantFormatSchema, z.array(PictureVariantSchema)),
 });
 export type MediaPicture = z.infer<typeof MediaPictureSchema>;
+
+/** `?block=&plant=` of the public lists (the gallery, updates): what is tagged with that capacity block or plant system. */
+export const facilityTagQueryShape = {
+  /** Tagged with this capacity block (id); 404 when the reader may not see it. */
+  block: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a block's id").optional(),
+  /** Tagged with this plant system (id); 404 when the reader may not see it. */
+  plant: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a plant system's id").optional(),
+};
 
 /**
  * GET /api/projects/:slug/gallery filters. `block` / `plant`: photos tagged with that capacity
@@ -243,8 +242,7 @@ export type MediaPicture = z.infer<typeof MediaPictureSchema>;
 export const GalleryQuerySchema = z.strictObject({
   area: plainText().max(100).optional(),
   system: SystemSchema.optional(),
-  block: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a block's id").optional(),
-  plant: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a plant system's id").optional(),
+  ...facilityTagQueryShape,
   month: z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, "must be a month as YYYY-MM").optional(),
 });
 export type GalleryQuery = z.infer<typeof GalleryQuerySchema>;

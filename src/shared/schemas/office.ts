@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { ProjectSchema } from "./projects.ts";
 
 /**
  * What the office overview lists as waiting, in the order it lists them. Each kind is asked of
@@ -13,7 +14,7 @@ export type WaitingKind = z.infer<typeof WaitingKindSchema>;
 /** One piece of waiting work in one project: `count` is at least 1 (nothing waiting is not listed). */
 export const WaitingItemSchema = z.object({
   kind: WaitingKindSchema,
-  project: z.object({ slug: z.string(), name: z.string(), timeZone: z.string() }),
+  project: ProjectSchema.pick({ slug: true, name: true, timeZone: true }),
   count: z.number().int().min(1),
   /** Digests due: when the first of them is sent (ISO instant); null for the other kinds. */
   nextAt: z.string().nullable(),

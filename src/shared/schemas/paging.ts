@@ -20,6 +20,14 @@ export function pageQueryShape(defaultPageSize: number) {
   };
 }
 
+/** What one page of a list answers beside its rows: how many match in all, which page this is, and how many rows a page holds. */
+export const pageAnswerShape = {
+  /** Every match. */
+  total: z.number(),
+  page: z.number(),
+  pageSize: z.number(),
+};
+
 /** Rows to skip and to take for one page. */
 export function pageWindow({ page, pageSize }: { page: number; pageSize: number }): { offset: number; limit: number } {
   return { offset: (page - 1) * pageSize, limit: pageSize };

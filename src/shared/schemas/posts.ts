@@ -1,7 +1,8 @@
 import { z } from "zod";
 import { AudienceSchema, type Audience } from "./common.ts";
-import type { MediaPicture } from "./media.ts";
-import { ContentSlugSchema, PostStatusSchema, type PostStatus, type PublishingProblem, type RevisionSummary } from "./publishing.ts";
+import { facilityTagQueryShape, type MediaPicture } from "./media.ts";
+import { SlugParamSchema } from "./projects.ts";
+import { ContentSlugParamSchema, ContentSlugSchema, PostStatusSchema, type PostStatus, type PublishingProblem, type RevisionSummary } from "./publishing.ts";
 import { RichTextDocSchema, type RichTextDoc } from "./rich-text.ts";
 import { multilineText, plainText } from "./text.ts";
 
@@ -35,16 +36,25 @@ const Title = plainText({ error: "is required" }).min(1, "is required").max(200,
 const Summary = multilineText().max(600, "must be at most 600 characters");
 const MediaId = z.number().int().positive();
 
-/** POST /api/projects/:slug/posts (marketing, lead, admin) → 201 `{ id, slug, status }`. Without `slug`, one is made from the title. */
-export const PostCreateInputSchema = z.strictObject({
+const POST_FIELDS = {
   title: Title,
-  summary: Summary.default(""),
+  summary: Summary,
   body: RichTextDocSchema,
   audience: AudienceSchema,
-  coverMediaId: MediaId.nullable().optional(),
-  milestoneIds: z.array(z.number().int().positive()).max(50).optional(),
-  tags: z.array(PostTagSchema).max(30).optional(),
-  slug: ContentSlugSchema.optional(),
+  coverMediaId: MediaId.nullable(),
+  milestoneIds: z.array(z.number().int().positive()).max(50),
+  tags: z.array(PostTagSchema).max(30),
+  slug: ContentSlugSchema,
+} as const;
+
+/** POST /api/projects/:slug/posts (marketing, lead, admin) → 201 `{ id, slug, status }`. Without `slug`, one is made from the title. */
+export const PostCreateInputSchema = z.strictObject({
+  ...POST_FIELDS,
+  summary: POST_FIELDS.summary.default(""),
+  coverMediaId: POST_FIELDS.coverMediaId.optional(),
+  milestoneIds: POST_FIELDS.milestoneIds.optional(),
+  tags: POST_FIELDS.tags.optional(),
+  slug: POST_FIELDS.slug.optional(),
 });
 export type PostCreateInput = z.infer<typeof PostCreateInputSchema>;
 
@@ -58,14 +68,7 @@ export type PostCreateInput = z.infer<typeof PostCreateInputSchema>;
 export const PostPatchInputSchema = z
   .strictObject({
     version: z.number().int().min(1).optional(),
-    title: Title.optional(),
-    summary: Summary.optional(),
-    body: RichTextDocSchema.optional(),
-    audience: AudienceSchema.optional(),
-    coverMediaId: MediaId.nullable().optional(),
-    milestoneIds: z.array(z.number().int().positive()).max(50).optional(),
-    tags: z.array(PostTagSchema).max(30).optional(),
-    slug: ContentSlugSchema.optional(),
+    ...z.object(POST_FIELDS).partial().shape,
     note: plainText().max(500).optional(),
   })
   .refine((v) => Object.keys(v).some((k) => k !== "version" && k !== "note"), { message: "change at least one field" });
@@ -75,20 +78,14 @@ export type PostPatchInput = z.infer<typeof PostPatchInputSchema>;
 export const PostListQuerySchema = z.strictObject({
   page: z.coerce.number({ error: "must be a number" }).int().min(1).max(10_000).default(1),
   tag: plainText().min(1).max(100).optional(),
-  /** Updates tagged with this capacity block (id); 404 when the reader may not see it. */
-  block: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a block's id").optional(),
-  /** Updates tagged with this plant system (id); 404 when the reader may not see it. */
-  plant: z.coerce.number({ error: "must be a number" }).int("must be a whole number").positive("must be a plant system's id").optional(),
+  ...facilityTagQueryShape,
   q: plainText().min(1, "is empty").max(200, "must be at most 200 characters").optional(),
   status: PostStatusSchema.optional(),
   audience: AudienceSchema.optional(),
 });
 export type PostListQuery = z.infer<typeof PostListQuerySchema>;
 
-export const PostSlugParamsSchema = z.strictObject({
-  slug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address").max(100),
-  postSlug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid address").max(120),
-});
+export const PostSlugParamsSchema = SlugParamSchema.extend({ postSlug: ContentSlugParamSchema });
 
 /** Photos are described by the media module (pictureFor); re-exported for the pages that import posts only. */
 export type { MediaPicture, PictureVariant } from "./media.ts";

@@ -3,6 +3,7 @@ import { AudienceSchema, CalendarDateSchema } from "./common.ts";
 import type { MilestoneInput, MilestoneStatus, ProgrammeHealth } from "../domain/programme-health.ts";
 import type { DrivingLink, ProjectDrivers } from "../domain/programme-dependencies.ts";
 import type { MilestoneMove } from "../domain/programme-changes.ts";
+import { SlugParamSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -259,10 +260,7 @@ export const CsvImportInputSchema = z.strictObject({
   csv: multilineText({ error: "is required", trim: false }).min(1, "is empty").max(2_000_000, "is too large"),
 });
 
-export const BaselineParamSchema = z.strictObject({
-  slug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address").max(100),
-  number: z.coerce.number().int().positive(),
-});
+export const BaselineParamSchema = SlugParamSchema.extend({ number: z.coerce.number().int().positive() });
 
 /** One milestone's plan in a baseline version (GET /api/projects/:slug/baselines/:number). */
 const BaselineSnapshotMilestoneSchema = MilestoneFieldsSchema.pick({ name: true, audience: true, plannedStart: true, baselineFinish: true, weight: true }).extend({

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { FocalSchema, MediaPictureSchema } from "./media.ts";
+import { ProjectSchema } from "./projects.ts";
 
 /**
  * The project's hero photograph and the home page's builds (docs/decisions/055-hero-home-gallery.md).
@@ -29,12 +30,7 @@ export const HeroSchema = z.object({
 export type Hero = z.infer<typeof HeroSchema>;
 
 /** One build on the home page: its picture (hero, else the latest cover), the headline figure and the next ready-for-service date. */
-export const HomeBuildSchema = z.object({
-  slug: z.string(),
-  name: z.string(),
-  operatorName: z.string(),
-  locationLabel: z.string(),
-  description: z.string(),
+export const HomeBuildSchema = ProjectSchema.pick({ slug: true, name: true, operatorName: true, locationLabel: true, description: true }).extend({
   picture: MediaPictureSchema.nullable(),
   /** Where the picture came from: the chosen hero, or the latest public update's cover. */
   pictureIs: z.enum(["hero", "cover"]).nullable(),

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { CalendarDateSchema } from "./common.ts";
+import { CalendarDateSchema, IdParamSchema } from "./common.ts";
 import { multilineText } from "./text.ts";
 
 /**
@@ -29,6 +29,9 @@ export const ContentSlugSchema = z
   .max(120, "must be at most 120 characters")
   .regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "may hold only lower-case letters, digits and single hyphens");
 
+/** The same address in a page's path (`:postSlug`, `:storySlug`), checked as it comes. */
+export const ContentSlugParamSchema = z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid address").max(120);
+
 /** POST …/:id/return (lead, admin): back to draft with the reviewer's comments. */
 export const ReturnInputSchema = z.strictObject({
   comment: multilineText({ error: "say what to change" }).min(1, "say what to change").max(4000, "must be at most 4000 characters"),
@@ -50,10 +53,7 @@ export const ScheduleInputSchema = z.strictObject({
 export type ScheduleInput = z.infer<typeof ScheduleInputSchema>;
 
 /** GET …/:id/revisions/:n/diff?against=m (staff); without `against`, the revision before n. */
-export const RevisionParamsSchema = z.strictObject({
-  id: z.coerce.number().int().positive(),
-  n: z.coerce.number().int().positive(),
-});
+export const RevisionParamsSchema = IdParamSchema.extend({ n: z.coerce.number().int().positive() });
 export const DiffQuerySchema = z.strictObject({ against: z.coerce.number().int().positive().optional() });
 
 /**

@@ -65,12 +65,14 @@ const describeType = (input: unknown): string => {
   return typeof type === "string" ? `type "${type.slice(0, 40)}"` : "no type";
 };
 
+const NoAttrs = z.object({}).optional();
+
 export const RichTextMarkSchema = z.discriminatedUnion("type", [
-  z.strictObject({ type: z.literal("bold"), attrs: z.object({}).optional() }),
-  z.strictObject({ type: z.literal("italic"), attrs: z.object({}).optional() }),
-  z.strictObject({ type: z.literal("strike"), attrs: z.object({}).optional() }),
-  z.strictObject({ type: z.literal("underline"), attrs: z.object({}).optional() }),
-  z.strictObject({ type: z.literal("code"), attrs: z.object({}).optional() }),
+  z.strictObject({ type: z.literal("bold"), attrs: NoAttrs }),
+  z.strictObject({ type: z.literal("italic"), attrs: NoAttrs }),
+  z.strictObject({ type: z.literal("strike"), attrs: NoAttrs }),
+  z.strictObject({ type: z.literal("underline"), attrs: NoAttrs }),
+  z.strictObject({ type: z.literal("code"), attrs: NoAttrs }),
   z.strictObject({
     type: z.literal("link"),
     attrs: z.object({
@@ -84,8 +86,6 @@ export const RichTextMarkSchema = z.discriminatedUnion("type", [
   }),
 ], { error: (iss) => (iss.code === "invalid_union" ? `is not a mark the editor offers (${describeType(iss.input)})` : undefined) });
 export type RichTextMark = z.infer<typeof RichTextMarkSchema>;
-
-const NoAttrs = z.object({}).optional();
 
 /** The attributes of an inline image: which library photo, an optional alt override and a caption. */
 export const ImageAttrsSchema = z.object({

@@ -157,6 +157,19 @@ export const DEFAULT_RISK_SCALE: RiskScale = { likelihoodLevels: 5, impactLevels
 
 const Named = z.object({ id: z.number(), name: z.string() });
 
+/**
+ * What a row of the investor record's history says after its own id and its subject's: the field
+ * changed, from → to, when, by whom, and the note (risks, decisions and budget changes keep their events alike).
+ */
+export const recordEventShape = {
+  field: z.string(),
+  from: z.string().nullable(),
+  to: z.string().nullable(),
+  at: z.string(),
+  by: z.string().nullable(),
+  note: z.string().nullable(),
+};
+
 const MitigationAnswerSchema = z.object({
   id: z.number(),
   description: z.string(),
@@ -209,16 +222,7 @@ const RiskAnswerSchema = z.object({
 });
 export type RiskAnswer = z.infer<typeof RiskAnswerSchema>;
 
-const RiskEventSchema = z.object({
-  id: z.number(),
-  riskId: z.number(),
-  field: z.string(),
-  from: z.string().nullable(),
-  to: z.string().nullable(),
-  at: z.string(),
-  by: z.string().nullable(),
-  note: z.string().nullable(),
-});
+const RiskEventSchema = z.object({ id: z.number(), riskId: z.number(), ...recordEventShape });
 export type RiskEvent = z.infer<typeof RiskEventSchema>;
 
 /** GET /api/projects/:slug/risks/summary: the grid and totals for the investor room and the office. */

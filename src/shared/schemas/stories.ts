@@ -1,7 +1,8 @@
 import { z } from "zod";
 import { AudienceSchema, type Audience } from "./common.ts";
 import type { MediaPicture } from "./media.ts";
-import { ContentSlugSchema, type PostStatus, type PublishingProblem, type RevisionSummary } from "./publishing.ts";
+import { SlugParamSchema } from "./projects.ts";
+import { ContentSlugParamSchema, ContentSlugSchema, type PostStatus, type PublishingProblem, type RevisionSummary } from "./publishing.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -65,10 +66,7 @@ export const StoryPatchInputSchema = z
   .refine((v) => Object.keys(v).some((k) => k !== "version" && k !== "note"), { message: "change at least one field" });
 export type StoryPatchInput = z.infer<typeof StoryPatchInputSchema>;
 
-export const StorySlugParamsSchema = z.strictObject({
-  slug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid project address").max(100),
-  storySlug: z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "is not a valid address").max(120),
-});
+export const StorySlugParamsSchema = SlugParamSchema.extend({ storySlug: ContentSlugParamSchema });
 
 /**
  * One item as read. A picture is null only for staff, when the photo is missing or still

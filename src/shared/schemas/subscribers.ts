@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { EmailSchema } from "./common.ts";
 import { SystemSchema } from "./programme.ts";
-import { pageQueryShape } from "./paging.ts";
+import { pageAnswerShape, pageQueryShape } from "./paging.ts";
 import { ProjectSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
@@ -120,26 +120,45 @@ export type InvestorDigestInput = z.infer<typeof InvestorDigestInputSchema>;
 const ProjectNameSchema = ProjectSchema.pick({ slug: true, name: true });
 const ConsentWordingSchema = z.object({ version: z.string(), text: z.string() });
 /** The topics a subscriber may choose from: the project's public areas and the plant systems. */
-const TopicChoicesSchema = z.object({ areas: z.array(z.string()), systems: z.array(SystemSchema) });
-
-/** GET /api/projects/:slug/subscription-options */
-export const SubscriptionOptionsSchema = z.object({
-  project: z.object({ slug: z.string(), name: z.string(), operatorName: z.string() }),
-  consent: ConsentWordingSchema,
+const TopicChoicesSchema = z.object({
   /** Areas named by the project's public programme. */
   areas: z.array(z.string()),
   systems: z.array(SystemSchema),
 });
+
+/** A subscription as the site office lists it (GET /api/subscribers); the pages its links open show part of it. */
+export const SubscriberRowSchema = z.object({
+  id: z.number(),
+  project: ProjectNameSchema,
+  email: z.string(),
+  name: z.string(),
+  organisation: z.string().nullable(),
+  interest: InterestSchema,
+  audience: SubscriberAudienceSchema,
+  frequency: FrequencySchema,
+  topics: TopicsSchema.nullable(),
+  status: SubscriberStatusSchema,
+  /** Linked to an investor account (set in the investor room). */
+  account: z.boolean(),
+  consentAt: z.string().nullable(),
+  consentSource: z.string().nullable(),
+  consentVersion: z.string().nullable(),
+  confirmedAt: z.string().nullable(),
+  lastDigestAt: z.string().nullable(),
+  createdAt: z.string(),
+});
+export type SubscriberRow = z.infer<typeof SubscriberRowSchema>;
+
+/** GET /api/projects/:slug/subscription-options */
+export const SubscriptionOptionsSchema = z.object({
+  project: ProjectSchema.pick({ slug: true, name: true, operatorName: true }),
+  consent: ConsentWordingSchema,
+  ...TopicChoicesSchema.shape,
+});
 export type SubscriptionOptions = z.infer<typeof SubscriptionOptionsSchema>;
 
 /** GET /api/subscriptions/confirm/:token — describes the link; changes nothing. */
-export const ConfirmationViewSchema = z.object({
-  email: z.string(),
-  name: z.string(),
-  project: ProjectNameSchema,
-  status: SubscriberStatusSchema,
-  consent: ConsentWordingSchema,
-});
+export const ConfirmationViewSchema = SubscriberRowSchema.pick({ email: true, name: true, project: true, status: true }).extend({ consent: ConsentWordingSchema });
 export type ConfirmationView = z.infer<typeof ConfirmationViewSchema>;
 
 /** POST /api/subscriptions/confirm/:token */
@@ -151,25 +170,11 @@ export const ConfirmationDoneSchema = z.object({
 export type ConfirmationDone = z.infer<typeof ConfirmationDoneSchema>;
 
 /** GET and PATCH /api/subscriptions/preferences/:token */
-export const PreferencesViewSchema = z.object({
-  email: z.string(),
-  name: z.string(),
-  organisation: z.string().nullable(),
-  interest: InterestSchema,
-  frequency: FrequencySchema,
-  topics: TopicsSchema.nullable(),
-  status: SubscriberStatusSchema,
-  project: ProjectNameSchema,
-  options: TopicChoicesSchema,
-});
+export const PreferencesViewSchema = SubscriberRowSchema.pick({ email: true, name: true, organisation: true, interest: true, frequency: true, topics: true, status: true, project: true }).extend({ options: TopicChoicesSchema });
 export type PreferencesView = z.infer<typeof PreferencesViewSchema>;
 
 /** GET /api/subscriptions/unsubscribe/:token */
-export const UnsubscribeViewSchema = z.object({
-  email: z.string(),
-  project: ProjectNameSchema,
-  status: SubscriberStatusSchema,
-});
+export const UnsubscribeViewSchema = SubscriberRowSchema.pick({ email: true, project: true, status: true });
 export type UnsubscribeView = z.infer<typeof UnsubscribeViewSchema>;
 
 /** What leaving answers (from the preferences page or the unsubscribe page): the subscription's status now. */
@@ -212,36 +217,11 @@ export const SUBSCRIBER_PAGE_SIZE = 50;
 export const SubscriberListQuerySchema = SubscriberFilterQuerySchema.extend(pageQueryShape(SUBSCRIBER_PAGE_SIZE));
 export type SubscriberListQuery = z.infer<typeof SubscriberListQuerySchema>;
 
-export const SubscriberRowSchema = z.object({
-  id: z.number(),
-  project: ProjectNameSchema,
-  email: z.string(),
-  name: z.string(),
-  organisation: z.string().nullable(),
-  interest: InterestSchema,
-  audience: SubscriberAudienceSchema,
-  frequency: FrequencySchema,
-  topics: TopicsSchema.nullable(),
-  status: SubscriberStatusSchema,
-  /** Linked to an investor account (set in the investor room). */
-  account: z.boolean(),
-  consentAt: z.string().nullable(),
-  consentSource: z.string().nullable(),
-  consentVersion: z.string().nullable(),
-  confirmedAt: z.string().nullable(),
-  lastDigestAt: z.string().nullable(),
-  createdAt: z.string(),
-});
-export type SubscriberRow = z.infer<typeof SubscriberRowSchema>;
-
 /** GET /api/subscribers */
 export const SubscriberListSchema = z.object({
   /** This page's subscribers, newest first. */
   rows: z.array(SubscriberRowSchema),
-  /** Every match. */
-  total: z.number(),
-  page: z.number(),
-  pageSize: z.number(),
+  ...pageAnswerShape,
 });
 export type SubscriberList = z.infer<typeof SubscriberListSchema>;
 

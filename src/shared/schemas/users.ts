@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { UserSchema } from "./auth.ts";
 import { EmailSchema, RoleSchema } from "./common.ts";
 import { pageQueryShape } from "./paging.ts";
 import { plainText } from "./text.ts";
@@ -14,11 +15,7 @@ export const UserUpdateInputSchema = z
 export type UserUpdateInput = z.infer<typeof UserUpdateInputSchema>;
 
 /** GET /api/users (a list of these); PATCH /api/users/:id answers the changed one. */
-export const UserRowSchema = z.object({
-  id: z.number(),
-  email: z.string(),
-  name: z.string(),
-  role: RoleSchema,
+export const UserRowSchema = UserSchema.extend({
   disabled: z.boolean(),
   lastSignInAt: z.string().nullable(),
   createdAt: z.string(),
@@ -40,7 +37,7 @@ export const InvitationRowSchema = z.object({
 export type InvitationRow = z.infer<typeof InvitationRowSchema>;
 
 /** POST /api/users/invitations → 201: the invitation made (its link goes by e-mail only). */
-export const InvitationSentSchema = z.object({ id: z.number(), email: z.string(), role: RoleSchema, expiresAt: z.string() });
+export const InvitationSentSchema = InvitationRowSchema.pick({ id: true, email: true, role: true, expiresAt: true });
 export type InvitationSent = z.infer<typeof InvitationSentSchema>;
 
 /**
