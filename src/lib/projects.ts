@@ -16,6 +16,10 @@ export const projectListQueryOptions = (queryKey: QueryKey) => queryOptions({ qu
 export const projectDetailQueryOptions = (queryKey: QueryKey, slug: string) =>
   queryOptions({ queryKey, queryFn: () => api.get<Project>(`/api/projects/${slug}`), enabled: slug !== "" });
 
+/** GET /api/projects/:slug/<path> (one of the project's own reads) under the caller's key; waits while there is no slug yet. */
+export const projectReadOptions = <T>(queryKey: QueryKey, slug: string, path: string) =>
+  queryOptions({ queryKey, queryFn: () => api.get<T>(`/api/projects/${slug}/${path}`), enabled: slug !== "" });
+
 /**
  * The project a site-office page works on: `?project=` or the first one. Choosing another
  * keeps the page's other parameters.

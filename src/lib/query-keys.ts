@@ -1,13 +1,12 @@
 /**
  * The top of a feature's key factory: `feature` → `projects` (its project picker's list) and
  * `feature` → `project(slug)` (everything of one project, so invalidating that one key refreshes
- * every read of the project). A feature spreads these and adds its own kinds beneath them.
+ * every read of the project), and one key a kind of the project's reads the feature names
+ * (`feature` → `project(slug)` → `kind`). A feature spreads these and adds its other keys beside them.
  */
-export function featureKeys<const F extends string>(feature: F) {
+export function featureKeys<const F extends string, const K extends string = never>(feature: F, kinds: readonly K[] = []) {
   const all = [feature] as const;
-  return {
-    all,
-    projects: () => [...all, "projects"] as const,
-    project: (slug: string) => [...all, "project", slug] as const,
-  };
+  const project = (slug: string) => [...all, "project", slug] as const;
+  const ofProject = Object.fromEntries(kinds.map((kind) => [kind, (slug: string) => [...project(slug), kind] as const])) as { [P in K]: (slug: string) => readonly [F, "project", string, P] };
+  return { all, projects: () => [...all, "projects"] as const, project, ...ofProject };
 }

@@ -1,7 +1,6 @@
-import { queryOptions } from "@tanstack/react-query";
 import type { SiteArea, SitePlan } from "#shared/schemas/site-plan.ts";
-import { api } from "./api-client.ts";
 import { featureKeys } from "./query-keys.ts";
+import { projectReadOptions } from "./projects.ts";
 
 /*
  * The site plan as every page reads it (the office editor, the public facility and project
@@ -9,13 +8,9 @@ import { featureKeys } from "./query-keys.ts";
  * invalidate every page's copy, and features need not import one another.
  */
 
-export const sitePlanKeys = {
-  ...featureKeys("site-plan"),
-  plan: (slug: string) => [...sitePlanKeys.project(slug), "plan"] as const,
-};
+export const sitePlanKeys = featureKeys("site-plan", ["plan"]);
 
-export const sitePlanQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: sitePlanKeys.plan(slug), queryFn: () => api.get<SitePlan>(`/api/projects/${slug}/site-plan`), enabled: slug !== "" });
+export const sitePlanQueryOptions = (slug: string) => projectReadOptions<SitePlan>(sitePlanKeys.plan(slug), slug, "site-plan");
 
 /** The public part of a plan: what the public pages draw whoever reads them, as they do for the facility. */
 export function publicPlan(plan: SitePlan): SitePlan {

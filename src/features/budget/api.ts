@@ -1,37 +1,28 @@
-import { queryOptions, useQuery } from "@tanstack/react-query";
+import { useQuery } from "@tanstack/react-query";
 import type { BudgetChangeAnswer, BudgetChangeCreateInput, BudgetChangePatchInput, BudgetPosition, BudgetSettingsInput } from "#shared/schemas/budget.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { api } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 /** Keys: budget → project(slug) → kind; every write refreshes the project (a change moves the position). */
 export const budgetKeys = {
-  ...featureKeys("budget"),
-  detail: (slug: string) => [...budgetKeys.project(slug), "detail"] as const,
-  changes: (slug: string) => [...budgetKeys.project(slug), "changes"] as const,
-  position: (slug: string) => [...budgetKeys.project(slug), "position"] as const,
-  milestones: (slug: string) => [...budgetKeys.project(slug), "milestones"] as const,
-  risks: (slug: string) => [...budgetKeys.project(slug), "risks"] as const,
+  ...featureKeys("budget", ["detail", "changes", "position", "milestones", "risks"]),
   change: (id: number) => [...budgetKeys.all, "change", id] as const,
 };
 
 export const budgetProjectsQueryOptions = () => projectListQueryOptions(budgetKeys.projects());
 export const budgetProjectQueryOptions = (slug: string) => projectDetailQueryOptions(budgetKeys.detail(slug), slug);
 
-export const budgetChangesQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: budgetKeys.changes(slug), queryFn: () => api.get<BudgetChangeAnswer[]>(`/api/projects/${slug}/budget-changes`), enabled: slug !== "" });
+export const budgetChangesQueryOptions = (slug: string) => projectReadOptions<BudgetChangeAnswer[]>(budgetKeys.changes(slug), slug, "budget-changes");
 
 /** The cost position today: budgets, contingency, the estimate at completion by each method, the walk. */
-export const budgetPositionQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: budgetKeys.position(slug), queryFn: () => api.get<BudgetPosition>(`/api/projects/${slug}/budget`), enabled: slug !== "" });
+export const budgetPositionQueryOptions = (slug: string) => projectReadOptions<BudgetPosition>(budgetKeys.position(slug), slug, "budget");
 
-export const budgetMilestonesQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: budgetKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });
-export const budgetRisksQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: budgetKeys.risks(slug), queryFn: () => api.get<RiskAnswer[]>(`/api/projects/${slug}/risks`), enabled: slug !== "" });
+export const budgetMilestonesQueryOptions = (slug: string) => projectReadOptions<Milestone[]>(budgetKeys.milestones(slug), slug, "milestones");
+export const budgetRisksQueryOptions = (slug: string) => projectReadOptions<RiskAnswer[]>(budgetKeys.risks(slug), slug, "risks");
 
 export const useBudgetPosition = (slug: string) => useQuery(budgetPositionQueryOptions(slug));
 

@@ -5,17 +5,12 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { api } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 /** Keys: decisions → project(slug) → kind, and decisions → decision(id) → events. */
 export const decisionKeys = {
-  ...featureKeys("decisions"),
-  detail: (slug: string) => [...decisionKeys.project(slug), "detail"] as const,
-  list: (slug: string) => [...decisionKeys.project(slug), "list"] as const,
-  milestones: (slug: string) => [...decisionKeys.project(slug), "milestones"] as const,
-  risks: (slug: string) => [...decisionKeys.project(slug), "risks"] as const,
-  documents: (slug: string) => [...decisionKeys.project(slug), "documents"] as const,
+  ...featureKeys("decisions", ["detail", "list", "milestones", "risks", "documents"]),
   decision: (id: number) => [...decisionKeys.all, "decision", id] as const,
   events: (id: number) => [...decisionKeys.decision(id), "events"] as const,
 };
@@ -24,16 +19,12 @@ export const decisionProjectsQueryOptions = () => projectListQueryOptions(decisi
 export const decisionProjectQueryOptions = (slug: string) => projectDetailQueryOptions(decisionKeys.detail(slug), slug);
 
 /** The decisions the caller may see, as the server orders them: open first, overdue first, then by needed-by. */
-export const decisionsQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: decisionKeys.list(slug), queryFn: () => api.get<DecisionAnswer[]>(`/api/projects/${slug}/decisions`), enabled: slug !== "" });
+export const decisionsQueryOptions = (slug: string) => projectReadOptions<DecisionAnswer[]>(decisionKeys.list(slug), slug, "decisions");
 
 /** What a decision may be linked to or carry: milestones, risks, documents of the library. */
-export const decisionMilestonesQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: decisionKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });
-export const decisionRisksQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: decisionKeys.risks(slug), queryFn: () => api.get<RiskAnswer[]>(`/api/projects/${slug}/risks`), enabled: slug !== "" });
-export const decisionDocumentsQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: decisionKeys.documents(slug), queryFn: () => api.get<DocumentAnswer[]>(`/api/projects/${slug}/documents`), enabled: slug !== "" });
+export const decisionMilestonesQueryOptions = (slug: string) => projectReadOptions<Milestone[]>(decisionKeys.milestones(slug), slug, "milestones");
+export const decisionRisksQueryOptions = (slug: string) => projectReadOptions<RiskAnswer[]>(decisionKeys.risks(slug), slug, "risks");
+export const decisionDocumentsQueryOptions = (slug: string) => projectReadOptions<DocumentAnswer[]>(decisionKeys.documents(slug), slug, "documents");
 
 export const decisionEventsQueryOptions = (id: number) => queryOptions({ queryKey: decisionKeys.events(id), queryFn: () => api.get<DecisionEvent[]>(`/api/decisions/${id}/events`) });
 export const useDecisionEvents = (id: number) => useQuery(decisionEventsQueryOptions(id));

@@ -3,7 +3,7 @@ import type { z } from "zod";
 import type { DocumentAnswer, DocumentCreateFields, DocumentPatchInput, DOCUMENTS_ANSWERS, ViewLogRow } from "#shared/schemas/documents.ts";
 import { api, qs } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 /** An investor organisation, with how many investor accounts belong to it. */
@@ -11,9 +11,7 @@ export type OrganisationRow = z.infer<typeof DOCUMENTS_ANSWERS.organisation>;
 
 /** Keys: documents → project(slug) → kind; documents → document(id) → views; the organisations. */
 export const documentKeys = {
-  ...featureKeys("documents"),
-  detail: (slug: string) => [...documentKeys.project(slug), "detail"] as const,
-  list: (slug: string) => [...documentKeys.project(slug), "list"] as const,
+  ...featureKeys("documents", ["detail", "list"]),
   readerViews: (slug: string, userId: number | null) => [...documentKeys.project(slug), "views", userId] as const,
   document: (id: number) => [...documentKeys.all, "document", id] as const,
   views: (id: number) => [...documentKeys.document(id), "views"] as const,
@@ -23,8 +21,7 @@ export const documentKeys = {
 export const documentProjectsQueryOptions = () => projectListQueryOptions(documentKeys.projects());
 export const documentProjectQueryOptions = (slug: string) => projectDetailQueryOptions(documentKeys.detail(slug), slug);
 
-export const documentsQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: documentKeys.list(slug), queryFn: () => api.get<DocumentAnswer[]>(`/api/projects/${slug}/documents`), enabled: slug !== "" });
+export const documentsQueryOptions = (slug: string) => projectReadOptions<DocumentAnswer[]>(documentKeys.list(slug), slug, "documents");
 
 export const organisationsQueryOptions = () => queryOptions({ queryKey: documentKeys.organisations(), queryFn: () => api.get<OrganisationRow[]>("/api/organisations") });
 

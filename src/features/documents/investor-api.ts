@@ -1,7 +1,8 @@
 import { queryOptions } from "@tanstack/react-query";
 import type { ViewKind, ViewLogRow } from "#shared/schemas/documents.ts";
-import { api, ApiError, qs } from "../../lib/api-client.ts";
+import { ApiError, qs } from "../../lib/api-client.ts";
 import { documentKeys, documentsQueryOptions } from "./api.ts";
+import { projectReadOptions } from "../../lib/projects.ts";
 
 /** The investor room's own reads of the library, under the documents feature's keys (documents → …). */
 export const investorDocumentKeys = {
@@ -16,8 +17,7 @@ export const investorDocumentKeys = {
 export const investorDocumentsQueryOptions = (slug: string) => queryOptions({ ...documentsQueryOptions(slug), staleTime: Infinity });
 
 /** GET /api/projects/:slug/my-document-views: the reader's own views and downloads, newest first. */
-export const myDocumentViewsQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: investorDocumentKeys.myViews(slug), queryFn: () => api.get<ViewLogRow[]>(`/api/projects/${slug}/my-document-views`), enabled: slug !== "" });
+export const myDocumentViewsQueryOptions = (slug: string) => projectReadOptions<ViewLogRow[]>(investorDocumentKeys.myViews(slug), slug, "my-document-views");
 
 /** The address of a version's file: stamped for an investor, logged as a view or a download. */
 export function documentFileUrl(id: number, version: number, as: ViewKind): string {

@@ -21,7 +21,7 @@ import type {
 } from "#shared/schemas/facility.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { api, ApiError } from "../../lib/api-client.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 /**
@@ -30,11 +30,7 @@ import { featureKeys } from "../../lib/query-keys.ts";
  * readiness of every block the system serves, so nothing narrower is safe.
  */
 export const facilityKeys = {
-  ...featureKeys("facility"),
-  detail: (slug: string) => [...facilityKeys.project(slug), "detail"] as const,
-  facility: (slug: string) => [...facilityKeys.project(slug), "facility"] as const,
-  milestones: (slug: string) => [...facilityKeys.project(slug), "milestones"] as const,
-  events: (slug: string) => [...facilityKeys.project(slug), "events"] as const,
+  ...featureKeys("facility", ["detail", "facility", "milestones", "events"]),
   unit: (id: number) => [...facilityKeys.all, "unit", id] as const,
   unitEvents: (id: number) => [...facilityKeys.unit(id), "events"] as const,
 };
@@ -43,15 +39,12 @@ export const facilityProjectsQueryOptions = () => projectListQueryOptions(facili
 
 export const facilityProjectQueryOptions = (slug: string) => projectDetailQueryOptions(facilityKeys.detail(slug), slug);
 
-export const facilityQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: facilityKeys.facility(slug), queryFn: () => api.get<FacilityAnswer>(`/api/projects/${slug}/facility`), enabled: slug !== "" });
+export const facilityQueryOptions = (slug: string) => projectReadOptions<FacilityAnswer>(facilityKeys.facility(slug), slug, "facility");
 
 /** The programme's milestones: what a block may depend on, and the dates its readiness is worked from. */
-export const facilityMilestonesQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: facilityKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });
+export const facilityMilestonesQueryOptions = (slug: string) => projectReadOptions<Milestone[]>(facilityKeys.milestones(slug), slug, "milestones");
 
-export const facilityEventsQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: facilityKeys.events(slug), queryFn: () => api.get<FacilityEvent[]>(`/api/projects/${slug}/facility/events`), enabled: slug !== "" });
+export const facilityEventsQueryOptions = (slug: string) => projectReadOptions<FacilityEvent[]>(facilityKeys.events(slug), slug, "facility/events");
 
 export const unitEventsQueryOptions = (id: number) =>
   queryOptions({ queryKey: facilityKeys.unitEvents(id), queryFn: () => api.get<FacilityEvent[]>(`/api/facility/units/${id}/events`) });

@@ -8,7 +8,7 @@ import type { DraftSuggestionAnswer } from "#shared/schemas/writing-help.ts";
 import { facilityTagChoicesQueryOptions } from "../../lib/facility-tags.ts";
 import { api, getPage, qs } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions, type PickerFilters } from "../../lib/media.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import type { RevisionHooks } from "../../lib/publishing-panels.tsx";
 import { publishingApi } from "../../lib/publishing.ts";
 
@@ -60,8 +60,7 @@ export const postQueryOptions = (id: number) => queryOptions({ queryKey: postKey
 /** The capacity blocks and plant systems an update may be tagged with. */
 export const postFacilityTagsQueryOptions = (slug: string) => queryOptions({ ...facilityTagChoicesQueryOptions(postKeys.facilityTags(slug), slug), staleTime: 60_000 });
 
-export const postMilestonesQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: postKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });
+export const postMilestonesQueryOptions = (slug: string) => projectReadOptions<Milestone[]>(postKeys.milestones(slug), slug, "milestones");
 
 const mediaPickerQueryOptions = (slug: string, f: MediaPickerFilters = {}) => pickerMediaQueryOptions(postKeys.media(slug, f), slug, f);
 

@@ -18,7 +18,7 @@ import type {
 import type { DrivingLink } from "#shared/domain/programme-dependencies.ts";
 import { api, ApiError, qs } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 /** The list's filters, as the milestones route reads its query (the status date aside). */
@@ -32,13 +32,11 @@ export const REMOVED_ONLY: MilestoneFilters = { removed: "only" };
  * Invalidating a project's key refreshes every figure derived from its milestones.
  */
 export const programmeKeys = {
-  ...featureKeys("programme"),
-  detail: (slug: string) => [...programmeKeys.project(slug), "detail"] as const,
+  ...featureKeys("programme", ["detail", "baselines"]),
   milestones: (slug: string, f: MilestoneFilters = {}) => [...programmeKeys.project(slug), "milestones", f] as const,
   health: (slug: string, at?: string) => [...programmeKeys.project(slug), "health", at ?? "today"] as const,
   curve: (slug: string, range: { from: string; to: string }) => [...programmeKeys.project(slug), "curve", range] as const,
   moves: (slug: string, range: { from: string; to: string }) => [...programmeKeys.project(slug), "moves", range] as const,
-  baselines: (slug: string) => [...programmeKeys.project(slug), "baselines"] as const,
   milestone: (id: number) => [...programmeKeys.all, "milestone", id] as const,
   events: (id: number) => [...programmeKeys.milestone(id), "events"] as const,
   drivers: (id: number) => [...programmeKeys.milestone(id), "drivers"] as const,
@@ -76,8 +74,7 @@ export const movesQueryOptions = (slug: string, range: { from: string; to: strin
     enabled: slug !== "",
   });
 
-export const baselinesQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: programmeKeys.baselines(slug), queryFn: () => api.get<BaselineVersion[]>(`/api/projects/${slug}/baselines`), enabled: slug !== "" });
+export const baselinesQueryOptions = (slug: string) => projectReadOptions<BaselineVersion[]>(programmeKeys.baselines(slug), slug, "baselines");
 
 export const eventsQueryOptions = (id: number) =>
   queryOptions({ queryKey: programmeKeys.events(id), queryFn: () => api.get<MilestoneEventRow[]>(`/api/milestones/${id}/events`) });

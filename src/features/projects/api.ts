@@ -2,7 +2,7 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/r
 import type { Hero, HeroInput, Home } from "#shared/schemas/project-hero.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { api } from "../../lib/api-client.ts";
-import { projectListQueryOptions } from "../../lib/projects.ts";
+import { projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 
 export const projectKeys = {
   all: ["projects"] as const,
@@ -15,7 +15,7 @@ export const projectKeys = {
 export const projectsQueryOptions = () => projectListQueryOptions(projectKeys.list());
 export const projectQueryOptions = (slug: string) => queryOptions({ queryKey: projectKeys.detail(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`) });
 /** The project's chosen hero photograph (decision 055). */
-export const heroQueryOptions = (slug: string) => queryOptions({ queryKey: projectKeys.hero(slug), queryFn: () => api.get<Hero>(`/api/projects/${slug}/hero`), enabled: slug !== "" });
+export const heroQueryOptions = (slug: string) => projectReadOptions<Hero>(projectKeys.hero(slug), slug, "hero");
 /** The home page's builds: picture, figure and next ready-for-service date of each. */
 export const homeQueryOptions = () => queryOptions({ queryKey: projectKeys.home(), queryFn: () => api.get<Home>("/api/home") });
 

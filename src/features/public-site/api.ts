@@ -2,7 +2,7 @@ import { keepPreviousData, queryOptions, useQuery } from "@tanstack/react-query"
 import type { MediaPicture, PostDetail, PostRedirect, PostSummary } from "#shared/schemas/posts.ts";
 import type { StoryDetail, StorySummary } from "#shared/schemas/stories.ts";
 import { api, getPage, qs } from "../../lib/api-client.ts";
-import { projectDetailQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 
 /** A capacity block or plant system of the facility, by id (as the address carries it). */
 export interface FacilityFilter {
@@ -72,8 +72,7 @@ export const updateQueryOptions = (slug: string, postSlug: string) =>
     enabled: slug !== "" && postSlug !== "",
   });
 
-export const storiesQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: siteKeys.stories(slug), queryFn: () => api.get<StorySummary[]>(`/api/projects/${slug}/stories`), enabled: slug !== "" });
+export const storiesQueryOptions = (slug: string) => projectReadOptions<StorySummary[]>(siteKeys.stories(slug), slug, "stories");
 
 export const storyQueryOptions = (slug: string, storySlug: string) =>
   queryOptions({

@@ -3,6 +3,7 @@ import type { FacilityAnswer } from "#shared/schemas/facility.ts";
 import type { GalleryPhoto } from "#shared/schemas/media.ts";
 import { api } from "../../lib/api-client.ts";
 import { siteKeys } from "./api.ts";
+import { projectReadOptions } from "../../lib/projects.ts";
 
 /**
  * Keys under the public site's project key (site → project(slug) → facility …): the readers'
@@ -17,8 +18,7 @@ export const facilityReadKeys = {
 export type PhotoSubject = { kind: "block" | "plant"; id: number };
 
 /** GET /api/projects/:slug/facility: what the caller's audience may see, with the figures computed. */
-export const facilityReadQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: facilityReadKeys.facility(slug), queryFn: () => api.get<FacilityAnswer>(`/api/projects/${slug}/facility`), enabled: slug !== "" });
+export const facilityReadQueryOptions = (slug: string) => projectReadOptions<FacilityAnswer>(facilityReadKeys.facility(slug), slug, "facility");
 
 /**
  * The public gallery once, for every card: each photo names the blocks and plant systems it is

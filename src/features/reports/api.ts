@@ -3,14 +3,12 @@ import type { RichTextDoc } from "#shared/schemas/rich-text.ts";
 import type { ReportDetail, ReportListItem, ReportSection } from "#shared/schemas/reports.ts";
 import { api, ApiError, qs } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 /** Keys: reports → project(slug) → list, and reports → report(id). */
 export const reportKeys = {
-  ...featureKeys("reports"),
-  detail: (slug: string) => [...reportKeys.project(slug), "detail"] as const,
-  list: (slug: string) => [...reportKeys.project(slug), "list"] as const,
+  ...featureKeys("reports", ["detail", "list"]),
   report: (id: number) => [...reportKeys.all, "report", id] as const,
 };
 
@@ -18,8 +16,7 @@ export const reportProjectsQueryOptions = () => projectListQueryOptions(reportKe
 export const reportProjectQueryOptions = (slug: string) => projectDetailQueryOptions(reportKeys.detail(slug), slug);
 
 /** GET /api/projects/:slug/reports: the reports the caller may see (investors: issued and superseded only). */
-export const reportsQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: reportKeys.list(slug), queryFn: () => api.get<ReportListItem[]>(`/api/projects/${slug}/reports`), enabled: slug !== "" });
+export const reportsQueryOptions = (slug: string) => projectReadOptions<ReportListItem[]>(reportKeys.list(slug), slug, "reports");
 
 /** GET /api/reports/:id: the report with its figures and the commentary as sanitised HTML. */
 export const reportQueryOptions = (id: number) => queryOptions({ queryKey: reportKeys.report(id), queryFn: () => api.get<ReportDetail>(`/api/reports/${id}`), enabled: id > 0 });

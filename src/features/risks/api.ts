@@ -5,7 +5,7 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import type { MitigationInput, RiskAnswer, RiskCreateInput, RiskEvent, RiskPatchInput, RiskSummary, RiskToIssueInput } from "#shared/schemas/risks.ts";
 import { api } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 /** A staff member who may own a risk or an action. */
@@ -21,12 +21,7 @@ export interface StaffMember {
  * own history at once.
  */
 export const riskKeys = {
-  ...featureKeys("risks"),
-  detail: (slug: string) => [...riskKeys.project(slug), "detail"] as const,
-  list: (slug: string) => [...riskKeys.project(slug), "list"] as const,
-  summary: (slug: string) => [...riskKeys.project(slug), "summary"] as const,
-  milestones: (slug: string) => [...riskKeys.project(slug), "milestones"] as const,
-  facility: (slug: string) => [...riskKeys.project(slug), "facility"] as const,
+  ...featureKeys("risks", ["detail", "list", "summary", "milestones", "facility"]),
   staff: () => [...riskKeys.all, "staff"] as const,
   risk: (id: number) => [...riskKeys.all, "risk", id] as const,
   events: (id: number) => [...riskKeys.risk(id), "events"] as const,
@@ -36,18 +31,14 @@ export const riskProjectsQueryOptions = () => projectListQueryOptions(riskKeys.p
 export const riskProjectQueryOptions = (slug: string) => projectDetailQueryOptions(riskKeys.detail(slug), slug);
 
 /** Every risk and issue the caller may see (the register filters on the page). */
-export const risksQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: riskKeys.list(slug), queryFn: () => api.get<RiskAnswer[]>(`/api/projects/${slug}/risks`), enabled: slug !== "" });
+export const risksQueryOptions = (slug: string) => projectReadOptions<RiskAnswer[]>(riskKeys.list(slug), slug, "risks");
 
 /** The scale, the grid of open risks and the totals. */
-export const riskSummaryQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: riskKeys.summary(slug), queryFn: () => api.get<RiskSummary>(`/api/projects/${slug}/risks/summary`), enabled: slug !== "" });
+export const riskSummaryQueryOptions = (slug: string) => projectReadOptions<RiskSummary>(riskKeys.summary(slug), slug, "risks/summary");
 
 /** What a risk may be linked to: milestones, and the facility's blocks and systems. */
-export const riskMilestonesQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: riskKeys.milestones(slug), queryFn: () => api.get<Milestone[]>(`/api/projects/${slug}/milestones`), enabled: slug !== "" });
-export const riskFacilityQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: riskKeys.facility(slug), queryFn: () => api.get<FacilityAnswer>(`/api/projects/${slug}/facility`), enabled: slug !== "" });
+export const riskMilestonesQueryOptions = (slug: string) => projectReadOptions<Milestone[]>(riskKeys.milestones(slug), slug, "milestones");
+export const riskFacilityQueryOptions = (slug: string) => projectReadOptions<FacilityAnswer>(riskKeys.facility(slug), slug, "facility");
 
 /** The staff who may own a risk or an action. */
 export const staffQueryOptions = () => queryOptions({ queryKey: riskKeys.staff(), queryFn: () => api.get<StaffMember[]>("/api/users/staff") });

@@ -3,7 +3,7 @@ import type { RevisionSummary as StoryRevisionSummary } from "#shared/schemas/pu
 import type { StoryCreateInput, StoryDetail, StoryPatchInput, StorySummary } from "#shared/schemas/stories.ts";
 import { api } from "../../lib/api-client.ts";
 import { pickerMediaQueryOptions } from "../../lib/media.ts";
-import { projectDetailQueryOptions, projectListQueryOptions } from "../../lib/projects.ts";
+import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import type { RevisionHooks } from "../../lib/publishing-panels.tsx";
 import { publishingApi } from "../../lib/publishing.ts";
 import { thenAndNowQueryOptions, type PairFilters } from "../../lib/then-and-now.ts";
@@ -17,9 +17,8 @@ export interface StoryMediaFilters {
 
 /** Keys: stories → project(slug) → kind → params; stories → story(id) → revisions, diff, history. */
 export const storyKeys = {
-  ...featureKeys("stories"),
+  ...featureKeys("stories", ["list"]),
   projectDetail: (slug: string) => [...storyKeys.project(slug), "detail"] as const,
-  list: (slug: string) => [...storyKeys.project(slug), "list"] as const,
   media: (slug: string, f: StoryMediaFilters = {}) => [...storyKeys.project(slug), "media", f] as const,
   pairs: (slug: string, f: PairFilters) => [...storyKeys.project(slug), "then-and-now", f] as const,
   detail: (id: number) => [...storyKeys.all, "story", id] as const,
@@ -32,8 +31,7 @@ const publishing = publishingApi<StoryDetail, StoryPatchInput, StoryRevisionSumm
 
 export const storiesProjectsQueryOptions = () => projectListQueryOptions(storyKeys.projects());
 export const storiesProjectQueryOptions = (slug: string) => projectDetailQueryOptions(storyKeys.projectDetail(slug), slug);
-export const storyListQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: storyKeys.list(slug), queryFn: () => api.get<StorySummary[]>(`/api/projects/${slug}/stories`), enabled: slug !== "" });
+export const storyListQueryOptions = (slug: string) => projectReadOptions<StorySummary[]>(storyKeys.list(slug), slug, "stories");
 export const storyQueryOptions = (id: number) => queryOptions({ queryKey: storyKeys.detail(id), queryFn: () => api.get<StoryDetail>(`/api/stories/${id}`), enabled: id > 0 });
 const storyMediaQueryOptions = (slug: string, f: StoryMediaFilters = {}) => pickerMediaQueryOptions(storyKeys.media(slug, f), slug, f);
 

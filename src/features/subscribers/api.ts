@@ -21,7 +21,7 @@ import {
 import type { DigestArchiveCopy, DigestArchivePage } from "#shared/schemas/digests.ts";
 import { api, qs } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
-import { projectListQueryOptions } from "../../lib/projects.ts";
+import { projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 /** Visitors' side: the form's options and the pages opened from signed links. */
@@ -48,8 +48,7 @@ export const investorDigestKeys = {
 };
 
 export const subscriptionProjectsQueryOptions = () => projectListQueryOptions(subscriptionKeys.projects());
-export const subscriptionOptionsQueryOptions = (slug: string) =>
-  queryOptions({ queryKey: subscriptionKeys.options(slug), queryFn: () => api.get<SubscriptionOptions>(`/api/projects/${slug}/subscription-options`), enabled: slug !== "" });
+export const subscriptionOptionsQueryOptions = (slug: string) => projectReadOptions<SubscriptionOptions>(subscriptionKeys.options(slug), slug, "subscription-options");
 export const confirmationQueryOptions = (token: string) =>
   queryOptions({ queryKey: subscriptionKeys.confirmation(token), queryFn: () => api.get<ConfirmationView>(`/api/subscriptions/confirm/${token}`), retry: false });
 export const preferencesQueryOptions = (token: string) =>
