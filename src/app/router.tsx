@@ -31,14 +31,17 @@ interface LazyPage {
   ErrorBoundary?: ComponentType;
 }
 
-/** A page of a lazily loaded module: its component, its loader when it has one, and an error element of its own. */
-function page(qc: QueryClient, path: string | undefined, load: () => Promise<LazyPage>, where: Where = {}): RouteObject {
+/**
+ * A page of a lazily loaded module (`load`): the component, loader and error element `pick` takes
+ * from it, and an error element of its own.
+ */
+function page<M>(qc: QueryClient, path: string | undefined, load: () => Promise<M>, pick: (m: M) => LazyPage, where: Where = {}): RouteObject {
   return {
     ...(path === undefined ? { index: true } : { path }),
     // A route's static error element would win over the one its module brings.
     ...(where.ownErrors ? {} : { errorElement: <RouteErrorPage {...where} /> }),
     lazy: async () => {
-      const { Component, loader, ErrorBoundary } = await load();
+      const { Component, loader, ErrorBoundary } = pick(await load());
       return { Component, ...(loader ? { loader: loader(qc) as LoaderFunction } : {}), ...(where.ownErrors && ErrorBoundary ? { ErrorBoundary } : {}) };
     },
   };
@@ -80,138 +83,72 @@ export function routes(qc: QueryClient): RouteObject[] {
       HydrateFallback: FirstLoad,
       children: [
         { index: true, element: <HomePage />, loader: homeLoader(qc), errorElement: <RouteErrorPage /> },
-        page(qc, "projects/:slug", async () => {
-          const m = await import("./pages/project-home-page.tsx");
-          return { Component: m.ProjectHomePage, loader: m.projectHomeLoader };
-        }, { what: "project" }),
-        page(qc, "projects/:slug/updates", async () => ({ Component: (await site()).UpdatesPage, loader: (await site()).updatesLoader }), { what: "list of updates" }),
-        page(qc, "projects/:slug/updates/:postSlug", async () => ({ Component: (await site()).PostPage, loader: (await site()).postLoader }), { what: "update" }),
-        page(qc, "projects/:slug/gallery", async () => ({ Component: (await site()).GalleryPage, loader: (await site()).galleryLoader }), { what: "gallery" }),
-        page(qc, "projects/:slug/search", async () => {
-          const m = await import("../features/public-site/search-routes.tsx");
-          return { Component: m.SearchPage, loader: m.searchLoader };
-        }, { what: "project" }),
-        page(qc, "projects/:slug/stories/:storySlug", async () => ({ Component: (await site()).StoryPage, loader: (await site()).storyLoader }), { what: "photo story" }),
-        page(qc, "projects/:slug/timeline", async () => {
-          const m = await import("./pages/timeline-page.tsx");
-          return { Component: m.TimelinePage, loader: m.timelinePageLoader };
-        }, { what: "project" }),
-        page(qc, "projects/:slug/facility", async () => {
-          const m = await import("../features/public-site/facility-routes.tsx");
-          return { Component: m.FacilityPage, loader: m.facilityLoader };
-        }, { what: "project" }),
-        page(qc, "subscribe", async () => ({ Component: (await subscribers()).SubscribePage, loader: (await subscribers()).subscribeLoader })),
-        page(qc, "projects/:slug/subscribe", async () => ({ Component: (await subscribers()).ProjectSubscribePage, loader: (await subscribers()).projectSubscribeLoader }), { what: "project" }),
-        page(qc, "subscriptions/confirm/:token", async () => {
-          const m = await subscribers();
-          return { Component: m.ConfirmSubscriptionPage, loader: m.confirmationLoader, ErrorBoundary: m.ConfirmationLinkError };
-        }, { what: "confirmation", ownErrors: true }),
-        page(qc, "subscriptions/preferences/:token", async () => {
-          const m = await subscribers();
-          return { Component: m.PreferencesPage, loader: m.preferencesLoader, ErrorBoundary: m.PreferencesLinkError };
-        }, { what: "subscription", ownErrors: true }),
-        page(qc, "u/:token", async () => {
-          const m = await subscribers();
-          return { Component: m.OneClickUnsubscribePage, loader: m.unsubscribeLoader, ErrorBoundary: m.UnsubscribeLinkError };
-        }, { what: "subscription", ownErrors: true }),
-        page(qc, "projects/:slug/enquire", async () => {
-          const m = await enquiries();
-          return { Component: m.EnquirePage, loader: m.enquireLoader, ErrorBoundary: m.EnquireError };
-        }, { what: "project", ownErrors: true }),
+        page(qc, "projects/:slug", () => import("./pages/project-home-page.tsx"), (m) => ({ Component: m.ProjectHomePage, loader: m.projectHomeLoader }), { what: "project" }),
+        page(qc, "projects/:slug/updates", site, (m) => ({ Component: m.UpdatesPage, loader: m.updatesLoader }), { what: "list of updates" }),
+        page(qc, "projects/:slug/updates/:postSlug", site, (m) => ({ Component: m.PostPage, loader: m.postLoader }), { what: "update" }),
+        page(qc, "projects/:slug/gallery", site, (m) => ({ Component: m.GalleryPage, loader: m.galleryLoader }), { what: "gallery" }),
+        page(qc, "projects/:slug/search", () => import("../features/public-site/search-routes.tsx"), (m) => ({ Component: m.SearchPage, loader: m.searchLoader }), { what: "project" }),
+        page(qc, "projects/:slug/stories/:storySlug", site, (m) => ({ Component: m.StoryPage, loader: m.storyLoader }), { what: "photo story" }),
+        page(qc, "projects/:slug/timeline", () => import("./pages/timeline-page.tsx"), (m) => ({ Component: m.TimelinePage, loader: m.timelinePageLoader }), { what: "project" }),
+        page(qc, "projects/:slug/facility", () => import("../features/public-site/facility-routes.tsx"), (m) => ({ Component: m.FacilityPage, loader: m.facilityLoader }), { what: "project" }),
+        page(qc, "subscribe", subscribers, (m) => ({ Component: m.SubscribePage, loader: m.subscribeLoader })),
+        page(qc, "projects/:slug/subscribe", subscribers, (m) => ({ Component: m.ProjectSubscribePage, loader: m.projectSubscribeLoader }), { what: "project" }),
+        page(qc, "subscriptions/confirm/:token", subscribers, (m) => ({ Component: m.ConfirmSubscriptionPage, loader: m.confirmationLoader, ErrorBoundary: m.ConfirmationLinkError }), { what: "confirmation", ownErrors: true }),
+        page(qc, "subscriptions/preferences/:token", subscribers, (m) => ({ Component: m.PreferencesPage, loader: m.preferencesLoader, ErrorBoundary: m.PreferencesLinkError }), { what: "subscription", ownErrors: true }),
+        page(qc, "u/:token", subscribers, (m) => ({ Component: m.OneClickUnsubscribePage, loader: m.unsubscribeLoader, ErrorBoundary: m.UnsubscribeLinkError }), { what: "subscription", ownErrors: true }),
+        page(qc, "projects/:slug/enquire", enquiries, (m) => ({ Component: m.EnquirePage, loader: m.enquireLoader, ErrorBoundary: m.EnquireError }), { what: "project", ownErrors: true }),
         // A review link's page: a draft for one outside reviewer, no account needed (decision 060).
-        page(qc, "review/:token", async () => {
-          const m = await import("../features/review-links/routes.tsx");
-          return { Component: m.ReviewPage, loader: m.reviewLoader, ErrorBoundary: m.ReviewLinkError };
-        }, { what: "review link", ownErrors: true }),
-        page(qc, "sign-in", async () => ({ Component: (await auth()).SignInPage })),
-        page(qc, "invitations/:token", async () => {
-          const m = await auth();
-          return { Component: m.AcceptInvitationPage, loader: m.invitationLoader, ErrorBoundary: m.InvitationError };
-        }, { what: "invitation", ownErrors: true }),
-        page(qc, "forgot-password", async () => ({ Component: (await auth()).ForgotPasswordPage })),
-        page(qc, "reset-password/:token", async () => {
-          const m = await auth();
-          return { Component: m.ResetPasswordPage, loader: m.resetPasswordLoader, ErrorBoundary: m.ResetLinkError };
-        }, { what: "reset link", ownErrors: true }),
+        page(qc, "review/:token", () => import("../features/review-links/routes.tsx"), (m) => ({ Component: m.ReviewPage, loader: m.reviewLoader, ErrorBoundary: m.ReviewLinkError }), { what: "review link", ownErrors: true }),
+        page(qc, "sign-in", auth, (m) => ({ Component: m.SignInPage })),
+        page(qc, "invitations/:token", auth, (m) => ({ Component: m.AcceptInvitationPage, loader: m.invitationLoader, ErrorBoundary: m.InvitationError }), { what: "invitation", ownErrors: true }),
+        page(qc, "forgot-password", auth, (m) => ({ Component: m.ForgotPasswordPage })),
+        page(qc, "reset-password/:token", auth, (m) => ({ Component: m.ResetPasswordPage, loader: m.resetPasswordLoader, ErrorBoundary: m.ResetLinkError }), { what: "reset link", ownErrors: true }),
         { path: "*", element: <NotFoundPage /> },
       ],
     },
     area(qc, OFFICE, async () => (await import("./layouts/office-layout.tsx")).OfficeLayout, [
-      page(qc, undefined, async () => ({ Component: (await import("./pages/office-home.tsx")).OfficeHomePage }), OFFICE),
-      page(qc, "programme", async () => ({ Component: (await programme()).ProgrammePage, loader: (await programme()).programmeLoader }), { ...OFFICE, what: "project" }),
-      page(qc, "programme/walk", async () => ({ Component: (await programme()).SiteWalkPage, loader: (await programme()).siteWalkLoader }), { ...OFFICE, what: "project" }),
-      page(qc, "facility", async () => ({ Component: (await facility()).FacilityPage, loader: (await facility()).facilityLoader }), { ...OFFICE, what: "project" }),
-      page(qc, "facility/walk", async () => ({ Component: (await facility()).FacilityWalkPage, loader: (await facility()).facilityWalkLoader }), { ...OFFICE, what: "project" }),
-      page(qc, "site-plan", async () => {
-        const m = await import("../features/site-plan/routes.tsx");
-        return { Component: m.SitePlanPage, loader: m.sitePlanLoader };
-      }, { ...OFFICE, what: "project" }),
+      page(qc, undefined, () => import("./pages/office-home.tsx"), (m) => ({ Component: m.OfficeHomePage }), OFFICE),
+      page(qc, "programme", programme, (m) => ({ Component: m.ProgrammePage, loader: m.programmeLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "programme/walk", programme, (m) => ({ Component: m.SiteWalkPage, loader: m.siteWalkLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "facility", facility, (m) => ({ Component: m.FacilityPage, loader: m.facilityLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "facility/walk", facility, (m) => ({ Component: m.FacilityWalkPage, loader: m.facilityWalkLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "site-plan", () => import("../features/site-plan/routes.tsx"), (m) => ({ Component: m.SitePlanPage, loader: m.sitePlanLoader }), { ...OFFICE, what: "project" }),
       // The investor record's office pages: each feature in its own chunk, loaded when visited.
-      page(qc, "risks", async () => {
-        const m = await import("../features/risks/routes.tsx");
-        return { Component: m.RisksPage, loader: m.risksLoader };
-      }, { ...OFFICE, what: "project" }),
-      page(qc, "decisions", async () => {
-        const m = await import("../features/decisions/routes.tsx");
-        return { Component: m.DecisionsPage, loader: m.decisionsLoader };
-      }, { ...OFFICE, what: "project" }),
-      page(qc, "budget", async () => {
-        const m = await import("../features/budget/routes.tsx");
-        return { Component: m.BudgetPage, loader: m.budgetLoader };
-      }, { ...OFFICE, what: "project" }),
-      page(qc, "documents", async () => {
-        const m = await import("../features/documents/routes.tsx");
-        return { Component: m.DocumentsPage, loader: m.documentsLoader };
-      }, { ...OFFICE, what: "project" }),
+      page(qc, "risks", () => import("../features/risks/routes.tsx"), (m) => ({ Component: m.RisksPage, loader: m.risksLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "decisions", () => import("../features/decisions/routes.tsx"), (m) => ({ Component: m.DecisionsPage, loader: m.decisionsLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "budget", () => import("../features/budget/routes.tsx"), (m) => ({ Component: m.BudgetPage, loader: m.budgetLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "documents", () => import("../features/documents/routes.tsx"), (m) => ({ Component: m.DocumentsPage, loader: m.documentsLoader }), { ...OFFICE, what: "project" }),
       // The monthly report: its pages bring the record's charts and the updates' editor (app/pages/report-pages.tsx).
-      page(qc, "reports", async () => {
-        const m = await import("./pages/report-pages.tsx");
-        return { Component: m.OfficeReportsPage, loader: m.reportsLoader };
-      }, { ...OFFICE, what: "project" }),
-      page(qc, "reports/:id", async () => {
-        const m = await import("./pages/report-pages.tsx");
-        return { Component: m.OfficeReportPage, loader: m.reportLoader };
-      }, { ...OFFICE, what: "report" }),
-      page(qc, "media", async () => ({ Component: (await media()).MediaLibraryPage, loader: (await media()).mediaLibraryLoader }), OFFICE),
-      page(qc, "media/review", async () => ({ Component: (await media()).MediaReviewPage, loader: (await media()).mediaReviewLoader }), OFFICE),
+      page(qc, "reports", () => import("./pages/report-pages.tsx"), (m) => ({ Component: m.OfficeReportsPage, loader: m.reportsLoader }), { ...OFFICE, what: "project" }),
+      page(qc, "reports/:id", () => import("./pages/report-pages.tsx"), (m) => ({ Component: m.OfficeReportPage, loader: m.reportLoader }), { ...OFFICE, what: "report" }),
+      page(qc, "media", media, (m) => ({ Component: m.MediaLibraryPage, loader: m.mediaLibraryLoader }), OFFICE),
+      page(qc, "media/review", media, (m) => ({ Component: m.MediaReviewPage, loader: m.mediaReviewLoader }), OFFICE),
       // The project's hero photograph (decision 055): the media library's photos, the project's choice.
-      page(qc, "media/hero", async () => {
-        const m = await import("./pages/hero-page.tsx");
-        return { Component: m.HeroPhotoPage, loader: m.heroPageLoader };
-      }, OFFICE),
-      page(qc, "updates", async () => {
-        const m = await import("../features/posts/routes.tsx");
-        return { Component: m.PostsPage, loader: m.postsLoader };
-      }, OFFICE),
+      page(qc, "media/hero", () => import("./pages/hero-page.tsx"), (m) => ({ Component: m.HeroPhotoPage, loader: m.heroPageLoader }), OFFICE),
+      page(qc, "updates", () => import("../features/posts/routes.tsx"), (m) => ({ Component: m.PostsPage, loader: m.postsLoader }), OFFICE),
       // The editor (tiptap) is its own chunk: only someone opening an update loads it.
-      page(qc, "updates/:id", async () => {
-        const m = await import("../features/posts/editor-page.tsx");
-        return { Component: m.PostEditorPage, loader: m.postEditorLoader };
-      }, { ...OFFICE, what: "update" }),
-      page(qc, "stories", async () => ({ Component: (await stories()).StoriesPage, loader: (await stories()).storiesLoader }), OFFICE),
-      page(qc, "stories/:id", async () => ({ Component: (await stories()).StoryEditorPage, loader: (await stories()).storyEditorLoader }), { ...OFFICE, what: "photo story" }),
-      page(qc, "outbox", async () => ({ Component: (await outbox()).OutboxPage, loader: (await outbox()).outboxLoader }), OFFICE),
-      page(qc, "outbox/:id", async () => ({ Component: (await outbox()).OutboxMessagePage, loader: (await outbox()).outboxMessageLoader }), { ...OFFICE, what: "message" }),
-      page(qc, "subscribers", async () => ({ Component: (await subscribers()).SubscribersPage, loader: (await subscribers()).subscribersLoader }), OFFICE),
-      page(qc, "enquiries", async () => ({ Component: (await enquiries()).EnquiriesPage, loader: (await enquiries()).enquiriesLoader }), OFFICE),
-      page(qc, "digests", async () => {
-        const m = await import("../features/digests/routes.tsx");
-        return { Component: m.DigestsPage, loader: m.digestsLoader };
-      }, OFFICE),
-      page(qc, "users", async () => ({ Component: (await admin()).AdminUsersPage, loader: (await admin()).adminUsersLoader }), OFFICE),
-      page(qc, "audit", async () => ({ Component: (await admin()).AdminAuditPage, loader: (await admin()).adminAuditLoader }), OFFICE),
+      page(qc, "updates/:id", () => import("../features/posts/editor-page.tsx"), (m) => ({ Component: m.PostEditorPage, loader: m.postEditorLoader }), { ...OFFICE, what: "update" }),
+      page(qc, "stories", stories, (m) => ({ Component: m.StoriesPage, loader: m.storiesLoader }), OFFICE),
+      page(qc, "stories/:id", stories, (m) => ({ Component: m.StoryEditorPage, loader: m.storyEditorLoader }), { ...OFFICE, what: "photo story" }),
+      page(qc, "outbox", outbox, (m) => ({ Component: m.OutboxPage, loader: m.outboxLoader }), OFFICE),
+      page(qc, "outbox/:id", outbox, (m) => ({ Component: m.OutboxMessagePage, loader: m.outboxMessageLoader }), { ...OFFICE, what: "message" }),
+      page(qc, "subscribers", subscribers, (m) => ({ Component: m.SubscribersPage, loader: m.subscribersLoader }), OFFICE),
+      page(qc, "enquiries", enquiries, (m) => ({ Component: m.EnquiriesPage, loader: m.enquiriesLoader }), OFFICE),
+      page(qc, "digests", () => import("../features/digests/routes.tsx"), (m) => ({ Component: m.DigestsPage, loader: m.digestsLoader }), OFFICE),
+      page(qc, "users", admin, (m) => ({ Component: m.AdminUsersPage, loader: m.adminUsersLoader }), OFFICE),
+      page(qc, "audit", admin, (m) => ({ Component: m.AdminAuditPage, loader: m.adminAuditLoader }), OFFICE),
     ]),
     area(qc, INVESTORS, async () => (await import("./layouts/investor-layout.tsx")).InvestorLayout, [
-      page(qc, undefined, async () => ({ Component: (await investors()).InvestorHomePage, loader: (await investors()).investorHomeLoader }), INVESTORS),
-      page(qc, "digest", async () => ({ Component: (await subscribers()).InvestorDigestPage, loader: (await subscribers()).investorDigestLoader }), INVESTORS),
-      page(qc, "projects/:slug", async () => ({ Component: (await investors()).InvestorProjectPage, loader: (await investors()).investorProjectLoader }), { ...INVESTORS, what: "project" }),
-      page(qc, "projects/:slug/risks", async () => ({ Component: (await investors()).InvestorRisksPage, loader: (await investors()).investorRisksLoader }), { ...INVESTORS, what: "project" }),
-      page(qc, "projects/:slug/decisions", async () => ({ Component: (await investors()).InvestorDecisionsPage, loader: (await investors()).investorDecisionsLoader }), { ...INVESTORS, what: "project" }),
-      page(qc, "projects/:slug/cost", async () => ({ Component: (await investors()).InvestorCostPage, loader: (await investors()).investorCostLoader }), { ...INVESTORS, what: "project" }),
-      page(qc, "projects/:slug/documents", async () => ({ Component: (await investors()).InvestorDocumentsPage, loader: (await investors()).investorDocumentsLoader }), { ...INVESTORS, what: "project" }),
-      page(qc, "projects/:slug/documents/:id", async () => ({ Component: (await investors()).InvestorDocumentPage, loader: (await investors()).investorDocumentsLoader }), { ...INVESTORS, what: "document" }),
-      page(qc, "projects/:slug/reports", async () => ({ Component: (await investors()).InvestorReportsPage, loader: (await investors()).investorReportsLoader }), { ...INVESTORS, what: "project" }),
-      page(qc, "projects/:slug/reports/:id", async () => ({ Component: (await investors()).InvestorReportPage, loader: (await investors()).investorReportLoader }), { ...INVESTORS, what: "report" }),
+      page(qc, undefined, investors, (m) => ({ Component: m.InvestorHomePage, loader: m.investorHomeLoader }), INVESTORS),
+      page(qc, "digest", subscribers, (m) => ({ Component: m.InvestorDigestPage, loader: m.investorDigestLoader }), INVESTORS),
+      page(qc, "projects/:slug", investors, (m) => ({ Component: m.InvestorProjectPage, loader: m.investorProjectLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/risks", investors, (m) => ({ Component: m.InvestorRisksPage, loader: m.investorRisksLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/decisions", investors, (m) => ({ Component: m.InvestorDecisionsPage, loader: m.investorDecisionsLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/cost", investors, (m) => ({ Component: m.InvestorCostPage, loader: m.investorCostLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/documents", investors, (m) => ({ Component: m.InvestorDocumentsPage, loader: m.investorDocumentsLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/documents/:id", investors, (m) => ({ Component: m.InvestorDocumentPage, loader: m.investorDocumentsLoader }), { ...INVESTORS, what: "document" }),
+      page(qc, "projects/:slug/reports", investors, (m) => ({ Component: m.InvestorReportsPage, loader: m.investorReportsLoader }), { ...INVESTORS, what: "project" }),
+      page(qc, "projects/:slug/reports/:id", investors, (m) => ({ Component: m.InvestorReportPage, loader: m.investorReportLoader }), { ...INVESTORS, what: "report" }),
     ]),
   ];
 }

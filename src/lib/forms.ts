@@ -8,6 +8,16 @@ export function optionsOf<K extends string>(words: Record<K, string>, only?: rea
   return (only ?? (Object.keys(words) as K[])).map((k) => ({ value: k, label: words[k] }));
 }
 
+/**
+ * The named fields of `source`, and only those: a form's values read from the record it edits,
+ * e.g. `{ ...pick(block, ["name", "racks"]), dependsOn: block.dependsOn }`.
+ */
+export function pick<A extends object, K extends keyof A>(source: A, keys: readonly K[]): Pick<A, K> {
+  const picked = {} as Pick<A, K>;
+  for (const key of keys) picked[key] = source[key];
+  return picked;
+}
+
 /** An `<input type="number">`'s text as a number, or null when left empty (optional figures). */
 export const numberOrNull = (v: unknown) => (v === "" || v === null || v === undefined ? null : Number(v));
 

@@ -1,12 +1,11 @@
-import { useQuery, useSuspenseQuery, type QueryKey, type UseSuspenseQueryOptions } from "@tanstack/react-query";
+import { useQuery, useSuspenseQuery, type QueryClient, type QueryKey, type UseSuspenseQueryOptions } from "@tanstack/react-query";
 import type { ReactNode } from "react";
 import { useParams } from "react-router-dom";
 import type { User } from "#shared/schemas/auth.ts";
 import type { Project } from "#shared/schemas/projects.ts";
-import { idParam } from "./loaders.ts";
-import { useProjectParam } from "./projects.ts";
+import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "./loaders.ts";
+import { officeProjectSlug, useProjectParam, type projectListQueryOptions } from "./projects.ts";
 import { meQueryOptions } from "./session.ts";
-
 
 /** What an editor's form is opened with: the saved item (null for a new one), its project and that project's time zone. */
 export interface EditorFormProps<T> {
@@ -49,4 +48,22 @@ function NewItemEditor<T extends { projectSlug: string }, KItem extends QueryKey
   const project = useQuery(projectQuery(slug));
   if (!me || !slug) return null;
   return form({ item: null, slug, me, zone: project.data?.timeZone ?? "Europe/London" });
+}
+
+/**
+ * The editor route's loader: for staff, the saved item (`:id`) and so its project, or for a new
+ * one the project the site office has chosen; then whatever `prime` reads of that project.
+ */
+export function publishingEditorLoader<T extends { projectSlug: string }, KItem extends QueryKey>(
+  itemQuery: (id: number) => UseSuspenseQueryOptions<T, Error, T, KItem>,
+  projectsQuery: () => ReturnType<typeof projectListQueryOptions>,
+  prime: (qc: QueryClient, slug: string) => Promise<unknown>,
+): RouteLoader {
+  return (qc) =>
+    ({ params, request }) =>
+      primeWhenAllowed(qc, OFFICE_ROLES, async () => {
+        const id = idParam(params.id);
+        const slug = id > 0 ? (await qc.ensureQueryData(itemQuery(id))).projectSlug : await officeProjectSlug(qc, projectsQuery(), new URL(request.url).searchParams);
+        if (slug) await prime(qc, slug);
+      });
 }

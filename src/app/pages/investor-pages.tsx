@@ -2,6 +2,7 @@ import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
 import type { ReactNode } from "react";
 import { Link, NavLink, useParams, useSearchParams } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
+import type { Project } from "#shared/schemas/projects.ts";
 import { WHOLE_PROGRAMME_NOTE } from "#shared/domain/programme-health.ts";
 import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
 import { budgetChangesQueryOptions, budgetPositionQueryOptions } from "../../features/budget/api.ts";
@@ -67,13 +68,18 @@ function ProjectSections({ slug }: { slug: string }) {
   );
 }
 
-/** The head of every page of one build in the investor room: the build's name, a line, the sections. */
-function ProjectHead({ slug, sheet, description, actions }: { slug: string; sheet: string; description?: string; actions?: ReactNode }) {
+/**
+ * A page of one build in the investor room (`:slug`): the head every such page has (the build's
+ * name, a line, the sections), then `children` with the build's slug and the project as read.
+ */
+function SectionPage({ sheet, description, actions, children }: { sheet: string; description?: string; actions?: ReactNode; children: (slug: string, project: Project) => ReactNode }) {
+  const { slug = "" } = useParams();
   const project = useSuspenseQuery(projectQueryOptions(slug)).data;
   return (
     <>
       <PageHeader sheet={`Investor room · ${sheet}`} title={project.name} documentTitle={`${sheet} · ${project.name}`} description={description ?? project.description} actions={actions} />
       <ProjectSections slug={slug} />
+      {children(slug, project)}
     </>
   );
 }
@@ -118,26 +124,24 @@ export function InvestorHomePage() {
 }
 
 export function InvestorProjectPage() {
-  const { slug = "" } = useParams();
-  const project = useSuspenseQuery(projectQueryOptions(slug));
   return (
-    <>
-      <ProjectHead
-        slug={slug}
-        sheet="Programme and capacity"
-        actions={
-          <a href="#facility" className="text-sm font-medium underline underline-offset-4">
-            Capacity ramp and readiness ↓
-          </a>
-        }
-      />
-      <div className="flex flex-col gap-6">
-        <ReadinessAtAGlance slug={slug} />
-        <InvestorProgramme slug={slug} currency={project.data.currency} />
-        <InvestorFacility slug={slug} />
-        <CalendarFeedPanel slug={slug} />
-      </div>
-    </>
+    <SectionPage
+      sheet="Programme and capacity"
+      actions={
+        <a href="#facility" className="text-sm font-medium underline underline-offset-4">
+          Capacity ramp and readiness ↓
+        </a>
+      }
+    >
+      {(slug, project) => (
+        <div className="flex flex-col gap-6">
+          <ReadinessAtAGlance slug={slug} />
+          <InvestorProgramme slug={slug} currency={project.currency} />
+          <InvestorFacility slug={slug} />
+          <CalendarFeedPanel slug={slug} />
+        </div>
+      )}
+    </SectionPage>
   );
 }
 
@@ -154,65 +158,53 @@ function sectionLoader(roles: readonly Role[], reads: (qc: QueryClient, slug: st
 export const investorRisksLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(risksQueryOptions(slug)), qc.ensureQueryData(riskSummaryQueryOptions(slug))]);
 
 export function InvestorRisksPage() {
-  const { slug = "" } = useParams();
-  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
   return (
-    <>
-      <ProjectHead slug={slug} sheet="Risks" description="What could go wrong, who owns it and what is being done, and what has already happened. Only the risks shared with investors." />
-      <InvestorRisks slug={slug} currency={project.currency} />
-    </>
+    <SectionPage sheet="Risks" description="What could go wrong, who owns it and what is being done, and what has already happened. Only the risks shared with investors.">
+      {(slug, project) => <InvestorRisks slug={slug} currency={project.currency} />}
+    </SectionPage>
   );
 }
 
 export const investorDecisionsLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(decisionsQueryOptions(slug))]);
 
 export function InvestorDecisionsPage() {
-  const { slug = "" } = useParams();
-  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
   return (
-    <>
-      <ProjectHead slug={slug} sheet="Decisions" description="What the investors, the lender or the board are asked to decide, and by when; and what was decided." />
-      <InvestorDecisions slug={slug} currency={project.currency} />
-    </>
+    <SectionPage sheet="Decisions" description="What the investors, the lender or the board are asked to decide, and by when; and what was decided.">
+      {(slug, project) => <InvestorDecisions slug={slug} currency={project.currency} />}
+    </SectionPage>
   );
 }
 
 export const investorCostLoader = sectionLoader(MONEY_ROLES, (qc, slug) => [qc.ensureQueryData(budgetPositionQueryOptions(slug)), qc.ensureQueryData(budgetChangesQueryOptions(slug))]);
 
 export function InvestorCostPage() {
-  const { slug = "" } = useParams();
   const role = useMe().data?.role;
   const allowed = role !== undefined && MONEY_ROLES.includes(role);
   return (
-    <>
-      <ProjectHead slug={slug} sheet="Cost" description="Where the money stands: the approved budget after changes, the contingency, and what the build may cost in the end." />
-      {allowed ? <InvestorCost slug={slug} /> : <Notice title="Not shown to your role">The cost of a build is read by its investors and its project lead.</Notice>}
-    </>
+    <SectionPage sheet="Cost" description="Where the money stands: the approved budget after changes, the contingency, and what the build may cost in the end.">
+      {(slug) => (allowed ? <InvestorCost slug={slug} /> : <Notice title="Not shown to your role">The cost of a build is read by its investors and its project lead.</Notice>)}
+    </SectionPage>
   );
 }
 
 export const investorDocumentsLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(investorDocumentsQueryOptions(slug))]);
 
 export function InvestorDocumentsPage() {
-  const { slug = "" } = useParams();
-  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
   return (
-    <>
-      <ProjectHead slug={slug} sheet="Documents" description="Monitoring reports, lender packs, certificates and the other papers of the build." />
-      <InvestorDocuments slug={slug} timeZone={project.timeZone} />
-    </>
+    <SectionPage sheet="Documents" description="Monitoring reports, lender packs, certificates and the other papers of the build.">
+      {(slug, project) => <InvestorDocuments slug={slug} timeZone={project.timeZone} />}
+    </SectionPage>
   );
 }
 
 export function InvestorDocumentPage() {
-  const { slug = "", id } = useParams();
+  const { id } = useParams();
   const [search] = useSearchParams();
   const version = search.get("version");
   return (
-    <>
-      <ProjectHead slug={slug} sheet="Documents" description="Your own copy: each page carries your name, your organisation and the time." />
-      <InvestorDocument slug={slug} id={idParam(id)} version={version ? Number(version) : undefined} />
-    </>
+    <SectionPage sheet="Documents" description="Your own copy: each page carries your name, your organisation and the time.">
+      {(slug) => <InvestorDocument slug={slug} id={idParam(id)} version={version ? Number(version) : undefined} />}
+    </SectionPage>
   );
 }
 
@@ -228,29 +220,29 @@ function MoneyOnly({ children }: { children: ReactNode }) {
 }
 
 export function InvestorReportsPage() {
-  const { slug = "" } = useParams();
-  const project = useSuspenseQuery(projectQueryOptions(slug)).data;
   return (
-    <>
-      <ProjectHead slug={slug} sheet="Reports" description="The monthly report: where the build stood at each month's end, with the project lead's commentary. Read it here or as your own stamped PDF." />
-      <MoneyOnly>
-        <InvestorReports slug={slug} timeZone={project.timeZone} />
-      </MoneyOnly>
-    </>
+    <SectionPage sheet="Reports" description="The monthly report: where the build stood at each month's end, with the project lead's commentary. Read it here or as your own stamped PDF.">
+      {(slug, project) => (
+        <MoneyOnly>
+          <InvestorReports slug={slug} timeZone={project.timeZone} />
+        </MoneyOnly>
+      )}
+    </SectionPage>
   );
 }
 
 export function InvestorReportPage() {
-  const { slug = "", id } = useParams();
+  const { id } = useParams();
   const [search] = useSearchParams();
   return (
-    <>
-      <ProjectHead slug={slug} sheet="Reports" description="The report as it was issued. Your PDF copy carries your name, your organisation and the time on every page." />
-      <MoneyOnly>
-        <WithReportParts>
-          <InvestorReport slug={slug} id={idParam(id)} asPdf={search.get("as") === "pdf"} />
-        </WithReportParts>
-      </MoneyOnly>
-    </>
+    <SectionPage sheet="Reports" description="The report as it was issued. Your PDF copy carries your name, your organisation and the time on every page.">
+      {(slug) => (
+        <MoneyOnly>
+          <WithReportParts>
+            <InvestorReport slug={slug} id={idParam(id)} asPdf={search.get("as") === "pdf"} />
+          </WithReportParts>
+        </MoneyOnly>
+      )}
+    </SectionPage>
   );
 }

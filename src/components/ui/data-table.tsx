@@ -1,5 +1,5 @@
-import { flexRender, type Cell, type Row, type RowData, type Table } from "@tanstack/react-table";
-import type { ComponentProps, ReactNode } from "react";
+import { flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type Cell, type Row, type RowData, type SortingState, type Table, type TableOptions } from "@tanstack/react-table";
+import { useState, type ComponentProps, type ReactNode } from "react";
 import { useNarrow } from "../../lib/use-narrow.ts";
 
 declare module "@tanstack/react-table" {
@@ -97,6 +97,15 @@ function CardSort<T>({ table, caption }: { table: Table<T>; caption: string }) {
       </select>
     </label>
   );
+}
+
+/**
+ * A table its column heads sort, unsorted at first: `useReactTable` with the sorting kept here
+ * and the core and sorted row models given.
+ */
+export function useSortedTable<T>(options: Omit<TableOptions<T>, "getCoreRowModel" | "getSortedRowModel" | "onSortingChange">): Table<T> {
+  const [sorting, setSorting] = useState<SortingState>([]);
+  return useReactTable({ ...options, state: { ...options.state, sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
 }
 
 /**

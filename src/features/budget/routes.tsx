@@ -3,7 +3,8 @@ import { useState } from "react";
 import { Button } from "../../components/ui/button.tsx";
 import { Notice, Sheet } from "../../components/ui/sheet.tsx";
 import { formatDate } from "../../lib/format.ts";
-import { canKeepRecord, RecordPage, recordPageLoader } from "../../lib/record.tsx";
+import { officePageLoader } from "../../lib/office-page.tsx";
+import { canKeepRecord, RecordPage } from "../../lib/record.tsx";
 import { meQueryOptions } from "../../lib/session.ts";
 import { budgetChangesQueryOptions, budgetMilestonesQueryOptions, budgetPositionQueryOptions, budgetProjectQueryOptions, budgetProjectsQueryOptions, budgetRisksQueryOptions } from "./api.ts";
 import { ChangeForm } from "./components/change-form.tsx";
@@ -11,7 +12,7 @@ import { ChangeTable } from "./components/change-table.tsx";
 import { BudgetSettingsForm, PositionFigures } from "./components/position.tsx";
 
 /** `/office/budget` (lead and admin: money is not marketing's): the project, its changes and the position today. */
-export const budgetLoader = recordPageLoader(
+export const budgetLoader = officePageLoader(
   budgetProjectsQueryOptions,
   (qc, slug) => Promise.all([qc.ensureQueryData(budgetProjectQueryOptions(slug)), qc.ensureQueryData(budgetChangesQueryOptions(slug)), qc.ensureQueryData(budgetPositionQueryOptions(slug))]),
   ["lead", "admin"],

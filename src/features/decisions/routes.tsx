@@ -4,7 +4,8 @@ import { Button } from "../../components/ui/button.tsx";
 import { Notice, Sheet } from "../../components/ui/sheet.tsx";
 import { todayIn } from "../../lib/format.ts";
 import { formatDate } from "../../lib/format.ts";
-import { canKeepRecord, RecordPage, recordPageLoader } from "../../lib/record.tsx";
+import { officePageLoader } from "../../lib/office-page.tsx";
+import { canKeepRecord, RecordPage } from "../../lib/record.tsx";
 import { meQueryOptions } from "../../lib/session.ts";
 import { decisionDocumentsQueryOptions, decisionMilestonesQueryOptions, decisionProjectQueryOptions, decisionProjectsQueryOptions, decisionRisksQueryOptions, decisionsQueryOptions } from "./api.ts";
 import { OutcomeForm, WithdrawForm } from "./components/decision-actions.tsx";
@@ -13,7 +14,7 @@ import { DecisionList } from "./components/decision-list.tsx";
 import { orderDecisions } from "./words.ts";
 
 /** `/office/decisions`: the project and its requests. What a request may link to is read when a form opens. */
-export const decisionsLoader = recordPageLoader(decisionProjectsQueryOptions, (qc, slug) => Promise.all([qc.ensureQueryData(decisionProjectQueryOptions(slug)), qc.ensureQueryData(decisionsQueryOptions(slug))]));
+export const decisionsLoader = officePageLoader(decisionProjectsQueryOptions, (qc, slug) => Promise.all([qc.ensureQueryData(decisionProjectQueryOptions(slug)), qc.ensureQueryData(decisionsQueryOptions(slug))]));
 
 type Open = { what: "edit"; id: number | null } | { what: "outcome"; id: number } | { what: "withdraw"; id: number };
 

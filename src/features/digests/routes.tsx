@@ -8,6 +8,7 @@ import { Dialog } from "../../components/ui/dialog.tsx";
 import { SelectField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet, Spinner } from "../../components/ui/sheet.tsx";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { NoProjectNotice } from "../../lib/office-page.tsx";
 import { digestProjectsQueryOptions, digestRunsQueryOptions, upcomingDigestsQueryOptions, useDigestPreview, useDigestRecipients, usePauseResume, useRunDigest, useSendTest } from "./api.ts";
 
 const FREQUENCY_WORD = { immediate: "As it happens", weekly: "Weekly", monthly: "Monthly" } as const;
@@ -216,7 +217,7 @@ export function DigestsPage() {
             </Sheet>
           </>
         ) : (
-          <Notice>There is no project in this site office yet.</Notice>
+          <NoProjectNotice />
         )}
       </div>
     </>

@@ -2,7 +2,8 @@ import { useQuery, useSuspenseQuery } from "@tanstack/react-query";
 import { useState } from "react";
 import { Button } from "../../components/ui/button.tsx";
 import { Notice, Sheet } from "../../components/ui/sheet.tsx";
-import { canKeepRecord, RecordPage, recordPageLoader } from "../../lib/record.tsx";
+import { officePageLoader } from "../../lib/office-page.tsx";
+import { canKeepRecord, RecordPage } from "../../lib/record.tsx";
 import { meQueryOptions } from "../../lib/session.ts";
 import { documentProjectQueryOptions, documentProjectsQueryOptions, documentsQueryOptions, organisationsQueryOptions } from "./api.ts";
 import { EditDocumentForm, UploadForm, VersionForm } from "./components/document-forms.tsx";
@@ -10,7 +11,7 @@ import { DocumentTable } from "./components/document-table.tsx";
 import { DocumentViewsDialog, ReaderLog } from "./components/view-log.tsx";
 
 /** `/office/documents`: the project and its library. */
-export const documentsLoader = recordPageLoader(documentProjectsQueryOptions, (qc, slug) => Promise.all([qc.ensureQueryData(documentProjectQueryOptions(slug)), qc.ensureQueryData(documentsQueryOptions(slug))]));
+export const documentsLoader = officePageLoader(documentProjectsQueryOptions, (qc, slug) => Promise.all([qc.ensureQueryData(documentProjectQueryOptions(slug)), qc.ensureQueryData(documentsQueryOptions(slug))]));
 
 type Open = { what: "upload" } | { what: "edit" | "version" | "views"; id: number };
 

@@ -1,14 +1,14 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useQuery, useSuspenseQuery } from "@tanstack/react-query";
-import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
-import { useMemo, useState } from "react";
+import { createColumnHelper } from "@tanstack/react-table";
+import { useMemo } from "react";
 import { useForm } from "react-hook-form";
 import { Link, useParams, useRouteError, useSearchParams } from "react-router-dom";
 import { toast } from "sonner";
 import { z } from "zod";
 import { EnquiryPatchSchema, EnquiryStatusSchema, type EnquiryPatch, type EnquiryRow, type EnquiryStatus } from "#shared/schemas/enquiries.ts";
 import { Button } from "../../components/ui/button.tsx";
-import { DataTable } from "../../components/ui/data-table.tsx";
+import { DataTable, useSortedTable } from "../../components/ui/data-table.tsx";
 import { SelectField, TextAreaField } from "../../components/ui/field.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
@@ -176,7 +176,6 @@ export function EnquiriesPage() {
   const [params, setParams] = useSearchParams();
   const { status, open } = viewOf(params);
   const list = useSuspenseQuery(enquiriesQueryOptions({ status: status || undefined })).data;
-  const [sorting, setSorting] = useState<SortingState>([]);
   const setParam = (k: string, v: string | null) => {
     const next = new URLSearchParams(params);
     if (v) next.set(k, v);
@@ -213,7 +212,7 @@ export function EnquiriesPage() {
     ],
     [params],
   );
-  const table = useReactTable({ data: list, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  const table = useSortedTable({ data: list, columns });
   return (
     <>
       <PageHeader sheet="Site office · Enquiries" title="Enquiries" description="Capacity questions, visit requests and general questions from the public pages. Each new one is e-mailed to marketing." />

@@ -2,12 +2,12 @@ import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
 import { useState } from "react";
 import type { FeatureAnswer, FeatureKind } from "#shared/schemas/facility.ts";
 import { Button, PrimaryLink } from "../../components/ui/button.tsx";
-import { ProjectPicker } from "../../components/ui/project-picker.tsx";
-import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { Notice, Sheet } from "../../components/ui/sheet.tsx";
 import { WalkHeader } from "../../components/ui/walk-frame.tsx";
 import { formatDate } from "../../lib/format.ts";
-import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
-import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
+import type { RouteLoader } from "../../lib/loaders.ts";
+import { NoProjectNotice, OfficeProjectPage, officePageLoader } from "../../lib/office-page.tsx";
+import { useProjectParam } from "../../lib/projects.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { canEditFacility, facilityMilestonesQueryOptions, facilityProjectQueryOptions, facilityProjectsQueryOptions, facilityQueryOptions } from "./api.ts";
 import { BlockForm } from "./components/block-form.tsx";
@@ -31,11 +31,7 @@ function primeFacility(qc: QueryClient, slug: string) {
   return Promise.all([qc.ensureQueryData(facilityProjectQueryOptions(slug)), qc.ensureQueryData(facilityQueryOptions(slug)), qc.ensureQueryData(facilityMilestonesQueryOptions(slug))]);
 }
 
-const facilityPagesLoader: RouteLoader = (qc) => ({ request }) =>
-  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
-    const slug = await officeProjectSlug(qc, facilityProjectsQueryOptions(), new URL(request.url).searchParams);
-    if (slug) await primeFacility(qc, slug);
-  });
+const facilityPagesLoader = officePageLoader(facilityProjectsQueryOptions, primeFacility);
 
 /** `/office/facility`: blocks, systems with their units, and site features. */
 export const facilityLoader: RouteLoader = facilityPagesLoader;
@@ -144,23 +140,23 @@ function FacilityBody({ slug }: { slug: string }) {
 
 /** Site office › Facility: capacity blocks, plant systems with their units, site features. */
 export function FacilityPage() {
-  const { slug, choices, setSlug } = useProjectSlug();
+  const project = useProjectSlug();
   const me = useSuspenseQuery(meQueryOptions()).data;
   return (
-    <>
-      <PageHeader
-        sheet="Site office · Facility"
-        title="Facility"
-        description="What a prospect asks first: racks and kilowatts, density, when each block is ready, and how resilient the plant is today and at design."
-        actions={
-          slug && canEditFacility(me) ? (
-            <PrimaryLink to={`/office/facility/walk?project=${slug}`}>Start a plant walk</PrimaryLink>
-          ) : null
-        }
-      />
-      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="w-64" />
-      {slug ? <FacilityBody key={slug} slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
-    </>
+    <OfficeProjectPage
+      project={project}
+      pickerClassName="w-64"
+      sheet="Site office · Facility"
+      title="Facility"
+      description="What a prospect asks first: racks and kilowatts, density, when each block is ready, and how resilient the plant is today and at design."
+      actions={
+        project.slug && canEditFacility(me) ? (
+          <PrimaryLink to={`/office/facility/walk?project=${project.slug}`}>Start a plant walk</PrimaryLink>
+        ) : null
+      }
+    >
+      {(slug) => <FacilityBody slug={slug} />}
+    </OfficeProjectPage>
   );
 }
 
@@ -177,7 +173,7 @@ export function FacilityWalkPage() {
   return (
     <>
       <WalkHeader sheet="Site office · Facility" title="Plant walk" back={`/office/facility${slug ? `?project=${slug}` : ""}`} backLabel="Back to the tables" />
-      {slug ? <WalkBody slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
+      {slug ? <WalkBody slug={slug} /> : <NoProjectNotice />}
     </>
   );
 }

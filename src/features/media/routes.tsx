@@ -8,6 +8,7 @@ import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { NoProjectNotice, OfficeProjectPage } from "../../lib/office-page.tsx";
 import { officeProjectSlug } from "../../lib/projects.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { canReview, LIBRARY_PAGE_SIZE, mediaListQueryOptions, mediaProjectsQueryOptions, reviewQueueQueryOptions, vocabularyQueryOptions, type LibraryFilters } from "./api.ts";
@@ -132,31 +133,31 @@ function Library({ slug, filters, setFilters }: { slug: string; filters: Library
 
 /** Site office › Media: upload, find, tag and edit the project's photos. */
 export function MediaLibraryPage() {
-  const { slug, choices, setSlug, params, setParams } = useProjectSlug();
+  const project = useProjectSlug();
   const me = useSuspenseQuery(meQueryOptions()).data;
-  const filters = filtersFrom(params);
+  const filters = filtersFrom(project.params);
   return (
-    <>
-      <PageHeader
-        sheet="Site office · Media"
-        title="Media library"
-        description="Site photos for updates and photo stories. Location data is stripped from everything published; a project lead clears each photo before it can appear outside the site office."
-        actions={
-          canReview(me) && slug ? (
-            <>
-              <Link to={`/office/media/review?project=${slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
-                Review queue
-              </Link>
-              <Link to={`/office/media/hero?project=${slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
-                Hero photograph
-              </Link>
-            </>
-          ) : null
-        }
-      />
-      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="mb-4 w-full sm:w-72" />
-      {slug ? <Library key={slug} slug={slug} filters={filters} setFilters={(f) => setParams(toParams(slug, f))} /> : <Notice>There is no project in this site office yet.</Notice>}
-    </>
+    <OfficeProjectPage
+      project={project}
+      pickerClassName="mb-4 w-full sm:w-72"
+      sheet="Site office · Media"
+      title="Media library"
+      description="Site photos for updates and photo stories. Location data is stripped from everything published; a project lead clears each photo before it can appear outside the site office."
+      actions={
+        canReview(me) && project.slug ? (
+          <>
+            <Link to={`/office/media/review?project=${project.slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+              Review queue
+            </Link>
+            <Link to={`/office/media/hero?project=${project.slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+              Hero photograph
+            </Link>
+          </>
+        ) : null
+      }
+    >
+      {(slug) => <Library slug={slug} filters={filters} setFilters={(f) => project.setParams(toParams(slug, f))} />}
+    </OfficeProjectPage>
   );
 }
 
@@ -187,7 +188,7 @@ export function MediaReviewPage() {
       ) : slug ? (
         <Queue key={slug} slug={slug} />
       ) : (
-        <Notice>There is no project in this site office yet.</Notice>
+        <NoProjectNotice />
       )}
     </>
   );

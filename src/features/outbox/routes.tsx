@@ -1,9 +1,9 @@
 import { useQueryClient, useSuspenseQuery } from "@tanstack/react-query";
-import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
+import { createColumnHelper } from "@tanstack/react-table";
 import { useState } from "react";
 import { Link, useParams, useSearchParams } from "react-router-dom";
 import { OUTBOX_PAGE_SIZE, type OutboxMessage } from "#shared/schemas/outbox.ts";
-import { DataTable } from "../../components/ui/data-table.tsx";
+import { DataTable, useSortedTable } from "../../components/ui/data-table.tsx";
 import { Button } from "../../components/ui/button.tsx";
 import { TextField } from "../../components/ui/field.tsx";
 import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
@@ -80,8 +80,7 @@ const columns = [
 ];
 
 function OutboxTable({ rows }: { rows: OutboxMessage[] }) {
-  const [sorting, setSorting] = useState<SortingState>([]);
-  const table = useReactTable({ data: rows, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  const table = useSortedTable({ data: rows, columns });
   return <DataTable table={table} caption="Messages, newest first" />;
 }
 

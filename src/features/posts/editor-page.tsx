@@ -19,11 +19,10 @@ import { StatusMark } from "../../components/ui/status-mark.tsx";
 import { facilityChoiceLabel, type FacilityTagChoices } from "../../lib/facility-tags.ts";
 import { SYSTEM_WORD } from "../../lib/format.ts";
 import { editorStateOf } from "../../lib/publishing.ts";
-import { PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
+import { publishingEditorLoader, PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
 import { RevisionSheets } from "../../lib/publishing-panels.tsx";
 import { ReviewLinksSheet } from "../../lib/review-links-panel.tsx";
-import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
-import { officeProjectSlug } from "../../lib/projects.ts";
+import type { RouteLoader } from "../../lib/loaders.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
 import { postKeys, postFacilityTagsQueryOptions, postMilestonesQueryOptions, postQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, postRevisionHooks, useCreatePost, usePostMilestones, useSavePost, useWorkflow } from "./api.ts";
 import { DraftSuggestionPanel } from "./components/draft-suggestion-panel.tsx";
@@ -355,12 +354,9 @@ function PostForm({ post, slug, me, zone }: { post: PostDetail | null; slug: str
 }
 
 /** Primes who is signed in, the update (for `:id`) with its project, and the project's milestones for the pickers. */
-export const postEditorLoader: RouteLoader = (qc) => ({ params, request }) =>
-  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
-    const id = idParam(params.id);
-    const slug = id > 0 ? (await qc.ensureQueryData(postQueryOptions(id))).projectSlug : await officeProjectSlug(qc, postsProjectsQueryOptions(), new URL(request.url).searchParams);
-    if (slug) await Promise.all([qc.ensureQueryData(postsProjectQueryOptions(slug)), qc.prefetchQuery(postMilestonesQueryOptions(slug))]);
-  });
+export const postEditorLoader: RouteLoader = publishingEditorLoader(postQueryOptions, postsProjectsQueryOptions, (qc, slug) =>
+  Promise.all([qc.ensureQueryData(postsProjectQueryOptions(slug)), qc.prefetchQuery(postMilestonesQueryOptions(slug))]),
+);
 
 /** `/office/updates/new` and `/office/updates/:id`: the editor, the fields, revisions and the workflow. */
 export function PostEditorPage() {

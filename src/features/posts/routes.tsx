@@ -12,9 +12,10 @@ import { SelectField, TextField } from "../../components/ui/field.tsx";
 import { PublishStatusMark, PUBLISH_STATUS_WORD } from "../../components/ui/publish-status.tsx";
 import { Pager } from "../../components/ui/pager.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
-import { Notice, PageHeader } from "../../components/ui/sheet.tsx";
+import { PageHeader } from "../../components/ui/sheet.tsx";
 import { pageCount } from "../../lib/api-client.ts";
 import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import { NoProjectNotice } from "../../lib/office-page.tsx";
 import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { publishingWhen } from "../../lib/publishing.ts";
 import { AUDIENCE_WORD } from "../../lib/words.ts";
@@ -53,7 +54,7 @@ export function PostsPage() {
     return (
       <>
         <PageHeader sheet="Site office · Updates" title="Updates" description="Write what changed on site; a lead reviews and publishes it. Every save keeps a revision." />
-        <Notice>There is no project in this site office yet.</Notice>
+        <NoProjectNotice />
       </>
     );
   }

@@ -4,13 +4,13 @@ import { useMemo, useState } from "react";
 import { Link } from "react-router-dom";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { Button } from "../../components/ui/button.tsx";
-import { ProjectPicker } from "../../components/ui/project-picker.tsx";
-import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { Notice, Sheet } from "../../components/ui/sheet.tsx";
 import { StatusKey } from "../../components/ui/status-mark.tsx";
 import { WalkHeader } from "../../components/ui/walk-frame.tsx";
 import { formatDate } from "../../lib/format.ts";
-import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
-import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
+import type { RouteLoader } from "../../lib/loaders.ts";
+import { NoProjectNotice, OfficeProjectPage, officePageLoader } from "../../lib/office-page.tsx";
+import { useProjectParam } from "../../lib/projects.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { sitePlanQueryOptions } from "../../lib/site-plan.ts";
 import {
@@ -50,21 +50,13 @@ function primeProgramme(qc: QueryClient, slug: string) {
   ]);
 }
 
-function officeLoader(prime: (qc: QueryClient, slug: string) => Promise<unknown>): RouteLoader {
-  return (qc) => ({ request }) =>
-    primeWhenAllowed(qc, OFFICE_ROLES, async () => {
-      const slug = await officeProjectSlug(qc, programmeProjectsQueryOptions(), new URL(request.url).searchParams);
-      if (slug) await prime(qc, slug);
-    });
-}
-
 /** `/office/programme`: the programme, the milestones removed from it and its baseline versions. */
-export const programmeLoader: RouteLoader = officeLoader((qc, slug) =>
+export const programmeLoader: RouteLoader = officePageLoader(programmeProjectsQueryOptions, (qc, slug) =>
   Promise.all([primeProgramme(qc, slug), qc.ensureQueryData(milestonesQueryOptions(slug, REMOVED_ONLY)), qc.ensureQueryData(baselinesQueryOptions(slug))]),
 );
 
 /** `/office/programme/walk`: the programme as the table shows it. */
-export const siteWalkLoader: RouteLoader = officeLoader(primeProgramme);
+export const siteWalkLoader: RouteLoader = officePageLoader(programmeProjectsQueryOptions, primeProgramme);
 
 /** The project's programme as its route's loader primed it. */
 function useProgramme(slug: string) {
@@ -175,32 +167,32 @@ function ProgrammeEditor({ slug }: { slug: string }) {
 
 /** Site office › Programme: the milestone table, its live preview, charts, baselines and files. */
 export function ProgrammePage() {
-  const { slug, choices, setSlug } = useProjectSlug();
+  const project = useProjectSlug();
   const me = useSuspenseQuery(meQueryOptions()).data;
   return (
-    <>
-      <PageHeader
-        sheet="Site office · Programme"
-        title="Programme"
-        description="Milestones with their baseline, forecast and actual dates; the health figures are computed from them."
-        actions={
-          slug ? (
-            <>
-              {canEditProgramme(me) ? (
-                <Link to={`/office/programme/walk?project=${slug}`} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 text-[0.95rem] font-medium text-white hover:bg-[#9a3412]">
-                  Start a site walk
-                </Link>
-              ) : null}
-              <a href={milestonesCsvUrl(slug)} download className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
-                Export CSV
-              </a>
-            </>
-          ) : null
-        }
-      />
-      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="w-64" />
-      {slug ? <ProgrammeEditor key={slug} slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
-    </>
+    <OfficeProjectPage
+      project={project}
+      pickerClassName="w-64"
+      sheet="Site office · Programme"
+      title="Programme"
+      description="Milestones with their baseline, forecast and actual dates; the health figures are computed from them."
+      actions={
+        project.slug ? (
+          <>
+            {canEditProgramme(me) ? (
+              <Link to={`/office/programme/walk?project=${project.slug}`} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 text-[0.95rem] font-medium text-white hover:bg-[#9a3412]">
+                Start a site walk
+              </Link>
+            ) : null}
+            <a href={milestonesCsvUrl(project.slug)} download className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+              Export CSV
+            </a>
+          </>
+        ) : null
+      }
+    >
+      {(slug) => <ProgrammeEditor slug={slug} />}
+    </OfficeProjectPage>
   );
 }
 
@@ -219,7 +211,7 @@ export function SiteWalkPage() {
   return (
     <>
       <WalkHeader sheet="Site office · Programme" title="Site walk" back={`/office/programme${slug ? `?project=${slug}` : ""}`} backLabel="Back to the table" />
-      {slug ? <WalkBody slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
+      {slug ? <WalkBody slug={slug} /> : <NoProjectNotice />}
     </>
   );
 }

@@ -10,7 +10,8 @@ import { todayIn } from "../../lib/format.ts";
 import { ApiError } from "../../lib/api-client.ts";
 import { formatInstant } from "../../lib/format.ts";
 import { idParam, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
-import { canKeepRecord, RecordPage, recordPageLoader } from "../../lib/record.tsx";
+import { officePageLoader } from "../../lib/office-page.tsx";
+import { canKeepRecord, RecordPage } from "../../lib/record.tsx";
 import { meQueryOptions } from "../../lib/session.ts";
 import { reportPdfUrl, reportProjectQueryOptions, reportProjectsQueryOptions, reportQueryOptions, reportsQueryOptions, useSaveCommentary } from "./api.ts";
 import { CorrectDialog, IssueDialog, NewDraftDialog } from "./components/report-dialogs.tsx";
@@ -23,7 +24,7 @@ import { endedMonths, monthWords, orderReports, SECTION_TITLE } from "./words.ts
 export const REPORT_ROLES = ["lead", "admin"] as const;
 
 /** `/office/reports`: the project's reports by month. */
-export const reportsLoader = recordPageLoader(
+export const reportsLoader = officePageLoader(
   reportProjectsQueryOptions,
   (qc, slug) => Promise.all([qc.ensureQueryData(reportProjectQueryOptions(slug)), qc.ensureQueryData(reportsQueryOptions(slug))]),
   REPORT_ROLES,

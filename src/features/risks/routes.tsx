@@ -4,7 +4,8 @@ import type { RiskAnswer, RiskScale } from "#shared/schemas/risks.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { Notice, Sheet } from "../../components/ui/sheet.tsx";
 import { formatDate, formatMoney } from "../../lib/format.ts";
-import { canKeepRecord, RecordPage, recordPageLoader } from "../../lib/record.tsx";
+import { officePageLoader } from "../../lib/office-page.tsx";
+import { canKeepRecord, RecordPage } from "../../lib/record.tsx";
 import { meQueryOptions } from "../../lib/session.ts";
 import {
   riskFacilityQueryOptions,
@@ -23,7 +24,7 @@ import { RiskRegister } from "./components/risk-table.tsx";
 import { BAND_ORDER } from "./words.ts";
 
 /** `/office/risks`: the project, its register, the summary (scale, totals) and what a risk may be linked to. */
-export const risksLoader = recordPageLoader(riskProjectsQueryOptions, (qc, slug) =>
+export const risksLoader = officePageLoader(riskProjectsQueryOptions, (qc, slug) =>
   Promise.all([
     qc.ensureQueryData(riskProjectQueryOptions(slug)),
     qc.ensureQueryData(risksQueryOptions(slug)),

@@ -1,18 +1,14 @@
 import { useQuery, useSuspenseQuery } from "@tanstack/react-query";
-import { PageHeader, Sheet, Notice } from "../../components/ui/sheet.tsx";
-import { ProjectPicker } from "../../components/ui/project-picker.tsx";
-import { OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
-import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
+import { Sheet } from "../../components/ui/sheet.tsx";
+import type { RouteLoader } from "../../lib/loaders.ts";
+import { OfficeProjectPage, officePageLoader } from "../../lib/office-page.tsx";
+import { useProjectParam } from "../../lib/projects.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { areaNamesQueryOptions, canEditSitePlan, sitePlanProjectsQueryOptions, sitePlanQueryOptions } from "./api.ts";
 import { SitePlanEditor } from "./components/site-plan-editor.tsx";
 
 /** `/office/site-plan`: the project's plan, drawn and kept by leads and administrators. */
-export const sitePlanLoader: RouteLoader = (qc) => ({ request }) =>
-  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
-    const slug = await officeProjectSlug(qc, sitePlanProjectsQueryOptions(), new URL(request.url).searchParams);
-    if (slug) await qc.ensureQueryData(sitePlanQueryOptions(slug));
-  });
+export const sitePlanLoader: RouteLoader = officePageLoader(sitePlanProjectsQueryOptions, (qc, slug) => qc.ensureQueryData(sitePlanQueryOptions(slug)));
 
 function PlanBody({ slug }: { slug: string }) {
   const me = useSuspenseQuery(meQueryOptions()).data;
@@ -27,12 +23,15 @@ function PlanBody({ slug }: { slug: string }) {
 
 /** Site office › Site plan: the site's areas on a grid, each with its status from the programme. */
 export function SitePlanPage() {
-  const { slug, choices, setSlug } = useProjectParam(useSuspenseQuery(sitePlanProjectsQueryOptions()).data);
   return (
-    <>
-      <PageHeader sheet="Site office · Site plan" title="Site plan" description="The site's halls, suites, plant yard, energy centre and client areas as simple shapes on a grid. Each area's status comes from the programme's milestones tagged with its name." />
-      <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="w-64" />
-      {slug ? <PlanBody key={slug} slug={slug} /> : <Notice>There is no project in this site office yet.</Notice>}
-    </>
+    <OfficeProjectPage
+      project={useProjectParam(useSuspenseQuery(sitePlanProjectsQueryOptions()).data)}
+      pickerClassName="w-64"
+      sheet="Site office · Site plan"
+      title="Site plan"
+      description="The site's halls, suites, plant yard, energy centre and client areas as simple shapes on a grid. Each area's status comes from the programme's milestones tagged with its name."
+    >
+      {(slug) => <PlanBody slug={slug} />}
+    </OfficeProjectPage>
   );
 }

@@ -17,14 +17,15 @@ import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { PublishStatusMark } from "../../components/ui/publish-status.tsx";
 import { EditorShell } from "../../components/ui/editor-shell.tsx";
 import { AudienceSheet } from "../../components/ui/publishing-editor.tsx";
-import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
+import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { PressKitSheet } from "./components/press-kit-sheet.tsx";
-import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
-import { PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
+import { NoProjectNotice, officePageLoader } from "../../lib/office-page.tsx";
+import { useProjectParam } from "../../lib/projects.ts";
+import { publishingEditorLoader, PublishingEditorRoute } from "../../lib/publishing-editor-route.tsx";
 import { RevisionSheets } from "../../lib/publishing-panels.tsx";
 import { ReviewLinksSheet } from "../../lib/review-links-panel.tsx";
 import { editorStateOf, publishingProblemsOf, publishingWhen } from "../../lib/publishing.ts";
-import { idParam, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
+import type { RouteLoader } from "../../lib/loaders.ts";
 import { DraftAddressSchema, usePublishingDraft, WAITING_FOR } from "../../lib/use-publishing-draft.ts";
 import { storyKeys, storiesProjectQueryOptions, storiesProjectsQueryOptions, storyListQueryOptions, storyQueryOptions, storyRevisionHooks, useCreateStory, useSaveStory, useStoryWorkflow } from "./api.ts";
 import { StoryPhotoPicker } from "./components/photo-picker.tsx";
@@ -43,19 +44,10 @@ function useOfficeProject() {
   return useProjectParam(useSuspenseQuery(storiesProjectsQueryOptions()).data);
 }
 
-export const storiesLoader: RouteLoader = (qc) => ({ request }) =>
-  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
-    const slug = await officeProjectSlug(qc, storiesProjectsQueryOptions(), new URL(request.url).searchParams);
-    if (slug) await Promise.all([qc.ensureQueryData(storiesProjectQueryOptions(slug)), qc.ensureQueryData(storyListQueryOptions(slug))]);
-  });
+export const storiesLoader: RouteLoader = officePageLoader(storiesProjectsQueryOptions, (qc, slug) => Promise.all([qc.ensureQueryData(storiesProjectQueryOptions(slug)), qc.ensureQueryData(storyListQueryOptions(slug))]));
 
 /** Primes who is signed in, the story (for `:id`) and its project. */
-export const storyEditorLoader: RouteLoader = (qc) => ({ params, request }) =>
-  primeWhenAllowed(qc, OFFICE_ROLES, async () => {
-    const id = idParam(params.id);
-    const slug = id > 0 ? (await qc.ensureQueryData(storyQueryOptions(id))).projectSlug : await officeProjectSlug(qc, storiesProjectsQueryOptions(), new URL(request.url).searchParams);
-    if (slug) await qc.ensureQueryData(storiesProjectQueryOptions(slug));
-  });
+export const storyEditorLoader: RouteLoader = publishingEditorLoader(storyQueryOptions, storiesProjectsQueryOptions, (qc, slug) => qc.ensureQueryData(storiesProjectQueryOptions(slug)));
 
 /** `/office/stories`: the project's photo stories by state. */
 export function StoriesPage() {
@@ -64,7 +56,7 @@ export function StoriesPage() {
     return (
       <>
         <PageHeader sheet="Site office · Photo stories" title="Photo stories" description={STORIES_PAGE_WORDS} />
-        <Notice>There is no project in this site office yet.</Notice>
+        <NoProjectNotice />
       </>
     );
   }

@@ -1,14 +1,14 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useSuspenseQuery } from "@tanstack/react-query";
-import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
-import { useMemo, useState, type ReactNode } from "react";
+import { createColumnHelper, getCoreRowModel, useReactTable } from "@tanstack/react-table";
+import { useMemo, type ReactNode } from "react";
 import { useForm } from "react-hook-form";
 import { toast } from "sonner";
 import { RoleSchema } from "#shared/schemas/common.ts";
 import { OrganisationInputSchema } from "#shared/schemas/documents.ts";
 import { InviteInputSchema, type InvitationRow, type InviteInput, type UserRow } from "#shared/schemas/users.ts";
 import { Button } from "../../components/ui/button.tsx";
-import { DataTable } from "../../components/ui/data-table.tsx";
+import { DataTable, useSortedTable } from "../../components/ui/data-table.tsx";
 import { SelectField, SelectOptions, TextField } from "../../components/ui/field.tsx";
 import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { applyApiError, formatInstant, ROLE_LABEL } from "../../lib/format.ts";
@@ -49,7 +49,6 @@ const col = createColumnHelper<UserRow>();
 function UsersTable({ users, organisations }: { users: UserRow[]; organisations: Organisation[] }) {
   const update = useUpdateUser();
   const setOrganisation = useSetOrganisation();
-  const [sorting, setSorting] = useState<SortingState>([]);
   const columns = useMemo(
     () => [
       col.accessor("name", { header: "Name", meta: { key: true }, cell: (c) => <span className="font-medium">{c.getValue()}</span> }),
@@ -125,7 +124,7 @@ function UsersTable({ users, organisations }: { users: UserRow[]; organisations:
     ],
     [update, setOrganisation, organisations],
   );
-  const table = useReactTable({ data: users, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  const table = useSortedTable({ data: users, columns });
   return <DataTable table={table} caption="Users of the site office and investor room" />;
 }
 

@@ -10,7 +10,7 @@ import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { formatDate } from "../../../lib/format.ts";
-import { changedFields, optionsOf, saveForm } from "../../../lib/forms.ts";
+import { changedFields, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
 import { RECORD_AUDIENCE_OPTIONS } from "../../../lib/record.tsx";
 import { useCreateChange, useDeleteChange, usePatchChange } from "../api.ts";
 import { STATUS_WORD } from "../words.ts";
@@ -20,16 +20,9 @@ type Values = z.input<typeof BudgetChangeCreateInputSchema>;
 function valuesOf(c: BudgetChangeAnswer | null): Values {
   if (!c) return { description: "", detail: "", amount: Number.NaN, status: "proposed", approvedBy: null, approvedOn: null, drawsOnContingency: false, linkedMilestones: [], linkedRisks: [], audience: "internal" };
   return {
-    description: c.description,
-    detail: c.detail,
-    amount: c.amount,
-    status: c.status,
-    approvedBy: c.approvedBy,
-    approvedOn: c.approvedOn,
-    drawsOnContingency: c.drawsOnContingency,
+    ...pick(c, ["description", "detail", "amount", "status", "approvedBy", "approvedOn", "drawsOnContingency", "audience"]),
     linkedMilestones: c.linkedMilestones.map((m) => m.id),
     linkedRisks: c.linkedRisks.map((r) => r.id),
-    audience: c.audience,
   };
 }
 

@@ -1,9 +1,8 @@
-import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
-import { useState } from "react";
+import { createColumnHelper } from "@tanstack/react-table";
 import type { BudgetChangeAnswer } from "#shared/schemas/budget.ts";
 import { AudienceMark } from "../../../components/ui/audience-mark.tsx";
 import { Button } from "../../../components/ui/button.tsx";
-import { DataTable } from "../../../components/ui/data-table.tsx";
+import { DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import { signedMoney, STATUS_GLYPH, STATUS_WORD } from "../words.ts";
 
@@ -70,16 +69,12 @@ const columns = [
 
 /** The register of budget changes: signed amounts, who approved each and when, and which draw on the contingency. */
 export function ChangeTable({ changes, currency, onEdit }: { changes: BudgetChangeAnswer[]; currency: string; onEdit?: (c: BudgetChangeAnswer) => void }) {
-  const [sorting, setSorting] = useState<SortingState>([]);
-  const table = useReactTable({
+  const table = useSortedTable({
     data: changes,
     columns,
     meta: { currency, onEdit } satisfies Meta,
     getRowId: (c) => String(c.id),
-    state: { sorting, columnVisibility: { edit: Boolean(onEdit) } },
-    onSortingChange: setSorting,
-    getCoreRowModel: getCoreRowModel(),
-    getSortedRowModel: getSortedRowModel(),
+    state: { columnVisibility: { edit: Boolean(onEdit) } },
   });
   return <DataTable table={table} caption="Budget changes" empty="No budget change recorded yet." dense rowProps={(row) => ({ "data-change-id": row.original.id })} />;
 }

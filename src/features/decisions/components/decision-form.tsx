@@ -11,7 +11,7 @@ import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { formatDate } from "../../../lib/format.ts";
-import { changedFields, saveForm } from "../../../lib/forms.ts";
+import { changedFields, pick, saveForm } from "../../../lib/forms.ts";
 import { RECORD_AUDIENCE_OPTIONS } from "../../../lib/record.tsx";
 import { useCreateDecision, usePatchDecision } from "../api.ts";
 
@@ -22,18 +22,10 @@ const BLANK_OPTION = { label: "", consequence: "", cost: null };
 function valuesOf(d: DecisionAnswer | null): Values {
   if (!d) return { title: "", question: "", background: "", options: [BLANK_OPTION, BLANK_OPTION], recommendedOption: null, recommendation: "", decider: "", neededBy: "", linkedMilestones: [], linkedRisks: [], documentIds: [], audience: "investor" };
   return {
-    title: d.title,
-    question: d.question,
-    background: d.background,
-    options: d.options,
-    recommendedOption: d.recommendedOption,
-    recommendation: d.recommendation,
-    decider: d.decider,
-    neededBy: d.neededBy,
+    ...pick(d, ["title", "question", "background", "options", "recommendedOption", "recommendation", "decider", "neededBy", "audience"]),
     linkedMilestones: d.linkedMilestones.map((m) => m.id),
     linkedRisks: d.linkedRisks.map((r) => r.id),
     documentIds: d.documents.map((x) => x.id),
-    audience: d.audience,
   };
 }
 

@@ -7,7 +7,7 @@ import { FieldError, SelectField, TextField } from "../../../components/ui/field
 import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
-import { changedFields, optionsOf, saveForm } from "../../../lib/forms.ts";
+import { changedFields, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
 import { RECORD_AUDIENCE_OPTIONS } from "../../../lib/record.tsx";
 import { usePatchDocument, useUploadDocument, useUploadVersion, type OrganisationRow } from "../api.ts";
 import { CATEGORY_WORD, titleFromFileName } from "../words.ts";
@@ -17,7 +17,7 @@ type Values = z.input<typeof DocumentCreateFieldsSchema>;
 
 function valuesOf(d: DocumentAnswer | null): Values {
   if (!d) return { title: "", category: "monitoring_report", period: "", periodEnd: null, audience: "investor", organisationIds: [] };
-  return { title: d.title, category: d.category, period: d.period, periodEnd: d.periodEnd, audience: d.audience, organisationIds: d.organisations.map((o) => o.id) };
+  return { ...pick(d, ["title", "category", "period", "periodEnd", "audience"]), organisationIds: d.organisations.map((o) => o.id) };
 }
 
 /** A refused upload in words: the server's reason (415 type, 413 size, 422 encrypted or broken), said as it said it. */

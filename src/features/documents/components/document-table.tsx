@@ -1,9 +1,8 @@
-import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
-import { useState } from "react";
+import { createColumnHelper } from "@tanstack/react-table";
 import type { DocumentAnswer } from "#shared/schemas/documents.ts";
 import { AudienceMark } from "../../../components/ui/audience-mark.tsx";
 import { Button } from "../../../components/ui/button.tsx";
-import { DataTable } from "../../../components/ui/data-table.tsx";
+import { DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
 import { formatBytes, formatDate } from "../../../lib/format.ts";
 import { cleanFileUrl } from "../api.ts";
 import { CATEGORY_WORD, FILE_TYPE_WORD } from "../words.ts";
@@ -103,16 +102,6 @@ const columns = [
 
 /** The library: what each document is, who may read it, its latest version, and what intake removed from it. */
 export function DocumentTable({ documents, actions }: { documents: DocumentAnswer[]; actions: DocumentActions }) {
-  const [sorting, setSorting] = useState<SortingState>([]);
-  const table = useReactTable({
-    data: documents,
-    columns,
-    meta: actions,
-    getRowId: (d) => String(d.id),
-    state: { sorting },
-    onSortingChange: setSorting,
-    getCoreRowModel: getCoreRowModel(),
-    getSortedRowModel: getSortedRowModel(),
-  });
+  const table = useSortedTable({ data: documents, columns, meta: actions, getRowId: (d) => String(d.id) });
   return <DataTable table={table} caption="Document library" empty="No document in the library yet." dense rowProps={(row) => ({ "data-document-id": row.original.id })} />;
 }

@@ -7,13 +7,13 @@ import { SelectField, TextAreaField, TextField } from "../../../components/ui/fi
 import { formatDate } from "../../../lib/format.ts";
 import { useCreateBlock, useDeleteBlock, usePatchBlock } from "../api.ts";
 import { CONTAINMENT_WORD } from "../words.ts";
-import { AUDIENCE_OPTIONS, changedFields, FormDialog, IdPicks, optionsOf, rowEditor } from "./form-parts.tsx";
+import { AUDIENCE_OPTIONS, changedFields, FormDialog, IdPicks, optionsOf, pick, rowEditor } from "./form-parts.tsx";
 
 type Values = z.input<typeof BlockCreateInputSchema>;
 
 function valuesOf(b: BlockAnswer | null): Values {
   if (!b) return { name: "", racks: 0, itKw: 0, maxKwPerRack: 10, coolingApproach: "", containment: "none", audience: "internal", stage: "", dependsOn: [], notes: "" };
-  return { name: b.name, racks: b.racks, itKw: b.itKw, maxKwPerRack: b.maxKwPerRack, coolingApproach: b.coolingApproach, containment: b.containment, audience: b.audience, stage: b.stage, dependsOn: b.dependsOn, notes: b.notes };
+  return pick(b, ["name", "racks", "itKw", "maxKwPerRack", "coolingApproach", "containment", "audience", "stage", "dependsOn", "notes"]);
 }
 
 /** Milestones as choices, each with its finish, so the lead picks the ones that make the block ready. */

@@ -1,12 +1,11 @@
-import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
-import { useState } from "react";
+import { createColumnHelper } from "@tanstack/react-table";
 import type { BlockAnswer } from "#shared/schemas/facility.ts";
 import { AudienceMark } from "../../../components/ui/audience-mark.tsx";
-import { Button } from "../../../components/ui/button.tsx";
-import { DataTable } from "../../../components/ui/data-table.tsx";
+import { DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import { CONTAINMENT_WORD, formatFigure, signedWorkingDays } from "../words.ts";
 import { MissingList, ReadyMark } from "./stage-preview.tsx";
+import { EditButton, editColumn } from "./table-parts.tsx";
 
 interface Meta {
   onEdit?: (b: BlockAnswer) => void;
@@ -67,33 +66,20 @@ const columns = [
       );
     },
   }),
-  col.display({
-    id: "edit",
-    header: "Change",
-    meta: { actions: true },
-    cell: ({ row, table }) => {
-      const onEdit = (table.options.meta as Meta).onEdit;
-      return onEdit ? (
-        <Button size="sm" onClick={() => onEdit(row.original)} aria-label={`Edit ${row.original.name}`}>
-          Edit
-        </Button>
-      ) : null;
-    },
+  editColumn(col, (b, table) => {
+    const onEdit = (table.options.meta as Meta).onEdit;
+    return onEdit ? <EditButton name={b.name} onEdit={() => onEdit(b)} /> : null;
   }),
 ];
 
 /** The capacity blocks: size, density, dates and whether each is ready for service (and if not, what is missing). */
 export function BlockTable({ blocks, onEdit }: { blocks: BlockAnswer[]; onEdit?: (b: BlockAnswer) => void }) {
-  const [sorting, setSorting] = useState<SortingState>([]);
-  const table = useReactTable({
+  const table = useSortedTable({
     data: blocks,
     columns,
     meta: { onEdit } satisfies Meta,
     getRowId: (b) => String(b.id),
-    state: { sorting, columnVisibility: { edit: Boolean(onEdit) } },
-    onSortingChange: setSorting,
-    getCoreRowModel: getCoreRowModel(),
-    getSortedRowModel: getSortedRowModel(),
+    state: { columnVisibility: { edit: Boolean(onEdit) } },
   });
   return <DataTable table={table} caption="Capacity blocks" empty="No capacity block yet." dense rowProps={(row) => ({ "data-block-id": row.original.id })} />;
 }

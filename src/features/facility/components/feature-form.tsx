@@ -7,13 +7,13 @@ import { SelectField, TextAreaField, TextField } from "../../../components/ui/fi
 import { DateField } from "../../../components/ui/date-field.tsx";
 import { useCreateFeature, useDeleteFeature, usePatchFeature } from "../api.ts";
 import { FEATURE_KIND_WORD, FEATURE_STATUS_WORD, LAYER_WORD } from "../words.ts";
-import { AUDIENCE_OPTIONS, changedFields, FormDialog, optionsOf, rowEditor } from "./form-parts.tsx";
+import { AUDIENCE_OPTIONS, changedFields, FormDialog, optionsOf, pick, rowEditor } from "./form-parts.tsx";
 
 type Values = z.input<typeof FeatureCreateInputSchema>;
 
 function valuesOf(f: FeatureAnswer | null, kind: FeatureAnswer["kind"]): Values {
   if (!f) return { kind, name: "", detail: "", layer: kind === "security" ? "perimeter" : null, status: "planned", statusDate: null, audience: "public" };
-  return { kind: f.kind, name: f.name, detail: f.detail, layer: f.layer, status: f.status, statusDate: f.statusDate, audience: f.audience };
+  return pick(f, ["kind", "name", "detail", "layer", "status", "statusDate", "audience"]);
 }
 
 /** Creating a site feature (`feature` null, of `kind`) or editing one; the statuses offered are those of its kind. */

@@ -18,7 +18,7 @@ import { SelectField, TextAreaField, TextField } from "../../../components/ui/fi
 import { useCreateSystem, useDeleteSystem, usePatchSystem } from "../api.ts";
 import { KIND_WORD, RATING_UNIT_WORD } from "../words.ts";
 import { milestoneChoices } from "./block-form.tsx";
-import { AUDIENCE_OPTIONS, changedFields, FormDialog, IdPicks, numberOrNull, optionsOf, rowEditor } from "./form-parts.tsx";
+import { AUDIENCE_OPTIONS, changedFields, FormDialog, IdPicks, numberOrNull, optionsOf, pick, rowEditor } from "./form-parts.tsx";
 
 type Values = z.input<typeof SystemCreateInputSchema>;
 
@@ -43,7 +43,7 @@ const DESIGN_FIELDS: Partial<Record<PlantKind, Array<{ key: keyof DesignFigures;
 
 function valuesOf(s: SystemAnswer | null): Values {
   if (!s) return { name: "", kind: "cooling", audience: "internal", serves: [], neededPerSystem: 1, independentSystems: 1, ratingPerUnit: null, ratingUnit: null, design: DesignFiguresSchema.parse({}), linkedMilestones: [], notes: "" };
-  return { name: s.name, kind: s.kind, audience: s.audience, serves: s.serves, neededPerSystem: s.neededPerSystem, independentSystems: s.independentSystems, ratingPerUnit: s.ratingPerUnit, ratingUnit: s.ratingUnit, design: s.design, linkedMilestones: s.linkedMilestones, notes: s.notes };
+  return pick(s, ["name", "kind", "audience", "serves", "neededPerSystem", "independentSystems", "ratingPerUnit", "ratingUnit", "design", "linkedMilestones", "notes"]);
 }
 
 /** A PATCH of a system: a rating travels with its unit, so the server checks the pair as one. */

@@ -4,6 +4,7 @@ import { AudienceMark } from "../../../components/ui/audience-mark.tsx";
 import { Button } from "../../../components/ui/button.tsx";
 import { DataTable } from "../../../components/ui/data-table.tsx";
 import { formatFigure, formatHours, formatRating, KIND_WORD, signedKw } from "../words.ts";
+import { EditButton, editColumn } from "./table-parts.tsx";
 import { UnitRow } from "./unit-shapes.tsx";
 
 export interface SystemTableActions {
@@ -114,23 +115,16 @@ const columns = [
       );
     },
   }),
-  col.display({
-    id: "edit",
-    header: "Change",
-    meta: { actions: true },
-    cell: ({ row, table }) => {
-      const actions = metaOf(table).actions;
-      return actions ? (
-        <div className="flex flex-col gap-1">
-          <Button size="sm" onClick={() => actions.onEdit(row.original)} aria-label={`Edit ${row.original.name}`}>
-            Edit
-          </Button>
-          <Button size="sm" onClick={() => actions.onAddUnit(row.original)} aria-label={`Add a unit to ${row.original.name}`}>
-            + Unit
-          </Button>
-        </div>
-      ) : null;
-    },
+  editColumn(col, (s, table) => {
+    const actions = metaOf(table).actions;
+    return actions ? (
+      <div className="flex flex-col gap-1">
+        <EditButton name={s.name} onEdit={() => actions.onEdit(s)} />
+        <Button size="sm" onClick={() => actions.onAddUnit(s)} aria-label={`Add a unit to ${s.name}`}>
+          + Unit
+        </Button>
+      </div>
+    ) : null;
   }),
 ];
 

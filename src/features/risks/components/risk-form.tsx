@@ -10,7 +10,7 @@ import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { formatDate } from "../../../lib/format.ts";
-import { changedFields, numberOrNull, optionsOf, saveForm } from "../../../lib/forms.ts";
+import { changedFields, numberOrNull, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
 import { RECORD_AUDIENCE_OPTIONS } from "../../../lib/record.tsx";
 import { useCreateRisk, useDeleteRisk, usePatchRisk, type StaffMember } from "../api.ts";
 import { CATEGORY_WORD, KIND_WORD } from "../words.ts";
@@ -23,24 +23,11 @@ function valuesOf(r: RiskAnswer | null, ownerId: number): Values {
     return { kind: "risk", title: "", description: "", cause: "", effect: "", category: "programme", ownerId, likelihood: 3, impact: 3, costExposure: null, scheduleDays: null, linkedMilestones: [], linkedBlocks: [], linkedSystems: [], audience: "internal", impactNow: "", action: "", dueDate: null };
   }
   return {
-    kind: r.kind,
-    title: r.title,
-    description: r.description,
-    cause: r.cause,
-    effect: r.effect,
-    category: r.category,
+    ...pick(r, ["kind", "title", "description", "cause", "effect", "category", "likelihood", "impact", "costExposure", "scheduleDays", "audience", "impactNow", "action", "dueDate"]),
     ownerId: r.owner.id,
-    likelihood: r.likelihood,
-    impact: r.impact,
-    costExposure: r.costExposure,
-    scheduleDays: r.scheduleDays,
     linkedMilestones: r.linkedMilestones.map((m) => m.id),
     linkedBlocks: r.linkedBlocks.map((b) => b.id),
     linkedSystems: r.linkedSystems.map((s) => s.id),
-    audience: r.audience,
-    impactNow: r.impactNow,
-    action: r.action,
-    dueDate: r.dueDate,
   };
 }
 

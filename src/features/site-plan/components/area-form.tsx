@@ -7,7 +7,7 @@ import { SITE_GRID, type AreaCells } from "#shared/domain/site-plan.ts";
 import { SelectField, TextField } from "../../../components/ui/field.tsx";
 import { FormDialog } from "../../../components/ui/form-dialog.tsx";
 import { AREA_KIND_WORD } from "../../../components/ui/site-plan-drawing.tsx";
-import { changedFields, optionsOf, saveForm } from "../../../lib/forms.ts";
+import { changedFields, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
 import { useCreateArea, useDeleteArea, usePatchArea } from "../api.ts";
 
 type Values = z.input<typeof SiteAreaCreateInputSchema>;
@@ -17,7 +17,7 @@ const AUDIENCE_WORD = { public: "Public", investor: "For investors", internal: "
 
 function valuesOf(a: SiteArea | null, cells: AreaCells): Values {
   if (!a) return { name: "", kind: "hall", audience: "public", ...cells };
-  return { name: a.name, kind: a.kind, audience: a.audience ?? "public", x: a.x, y: a.y, w: a.w, h: a.h };
+  return { ...pick(a, ["name", "kind", "x", "y", "w", "h"]), audience: a.audience ?? "public" };
 }
 
 /**

@@ -1,9 +1,9 @@
-import { createColumnHelper, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
-import { useMemo, useState } from "react";
+import { createColumnHelper } from "@tanstack/react-table";
+import { useMemo } from "react";
 import { toast } from "sonner";
 import type { SubscriberRow } from "#shared/schemas/subscribers.ts";
 import { Button } from "../../../components/ui/button.tsx";
-import { DataTable } from "../../../components/ui/data-table.tsx";
+import { DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
 import { formatInstant } from "../../../lib/format.ts";
 import { personDataUrl, useEraseSubscriber } from "../api.ts";
 import { FREQUENCY_SHORT, INTEREST_SHORT, STATUS_LOOK, topicsWords } from "../words.ts";
@@ -12,7 +12,6 @@ const col = createColumnHelper<SubscriberRow>();
 
 export function SubscribersTable({ rows }: { rows: SubscriberRow[] }) {
   const erase = useEraseSubscriber();
-  const [sorting, setSorting] = useState<SortingState>([]);
   const columns = useMemo(
     () => [
       col.accessor("name", {
@@ -77,6 +76,6 @@ export function SubscribersTable({ rows }: { rows: SubscriberRow[] }) {
     ],
     [erase],
   );
-  const table = useReactTable({ data: rows, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  const table = useSortedTable({ data: rows, columns });
   return <DataTable table={table} caption="Subscribers" empty="No subscribers match these filters." />;
 }
