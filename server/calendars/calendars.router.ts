@@ -3,7 +3,7 @@ import { z } from "zod";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { AppError } from "../core/app-error.ts";
 import { requireRole } from "../core/auth.ts";
-import { optionalBody, route } from "../core/route.ts";
+import { optionalBody, projectPath, route } from "../core/route.ts";
 import type { CalendarsService } from "./calendars.service.ts";
 
 const CALENDAR_TYPE = "text/calendar; charset=utf-8";
@@ -15,9 +15,8 @@ const NoBodySchema = z.strictObject({});
 /** The personal feeds' API (signed-in investors and staff), under /api. */
 export function calendarFeedsRouter(calendars: CalendarsService): Router {
   const r = Router();
-  const project = { params: SlugParamSchema };
-  r.post("/projects/:slug/calendar-feed", requireRole(), route({ ...project, body: optionalBody(NoBodySchema), status: 201 }, ({ params, actor }) => calendars.createFeed(params.slug, actor)));
-  r.delete("/projects/:slug/calendar-feed", requireRole(), route({ ...project, status: 204 }, ({ params, actor }) => calendars.revokeFeed(params.slug, actor)));
+  r.post("/projects/:slug/calendar-feed", requireRole(), route({ ...projectPath, body: optionalBody(NoBodySchema), status: 201 }, ({ params, actor }) => calendars.createFeed(params.slug, actor)));
+  r.delete("/projects/:slug/calendar-feed", requireRole(), route({ ...projectPath, status: 204 }, ({ params, actor }) => calendars.revokeFeed(params.slug, actor)));
   return r;
 }
 

@@ -1,5 +1,7 @@
 import type { Request, RequestHandler, Response } from "express";
 import { z } from "zod";
+import { IdParamSchema } from "#shared/schemas/common.ts";
+import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { actorOf } from "./auth.ts";
 import type { Actor } from "./types.ts";
 
@@ -48,6 +50,10 @@ export function route<P extends RouteParts>(parts: P, run: (input: RouteInput<P>
     else res.status(parts.status ?? 200).json(result);
   };
 }
+
+/** The path of a route under one project (`/projects/:slug/…`) and under one item (`/<things>/:id…`). */
+export const projectPath = { params: SlugParamSchema };
+export const itemPath = { params: IdParamSchema };
 
 /** A body that may be left out altogether (a DELETE's optional reason): no body reads as `{}`. */
 export function optionalBody<S extends z.ZodType>(schema: S) {

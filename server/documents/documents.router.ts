@@ -14,7 +14,7 @@ import {
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireRole, requireStaff } from "../core/auth.ts";
-import { route } from "../core/route.ts";
+import { itemPath, projectPath, route } from "../core/route.ts";
 import type { UploadArea } from "../media/media.storage.ts";
 import type { DocumentsService } from "./documents.service.ts";
 
@@ -70,21 +70,19 @@ export function documentsRouter(documents: DocumentsService, uploads: UploadArea
       throw err;
     }
   };
-  const project = { params: SlugParamSchema };
-  const item = { params: IdParamSchema };
 
-  r.get("/projects/:slug/documents", signedIn(), route({ ...project, query: DocumentListQuerySchema }, ({ params, query, actor }) => documents.list(params.slug, query, actor)));
+  r.get("/projects/:slug/documents", signedIn(), route({ ...projectPath, query: DocumentListQuerySchema }, ({ params, query, actor }) => documents.list(params.slug, query, actor)));
   r.post("/projects/:slug/documents", writers(), receiveFile, async (req, res) => {
     const { input, file } = await parseForm(req, () => ({ slug: SlugParamSchema.parse(req.params).slug, fields: DocumentCreateFieldsSchema.parse(formFields(req.body)) }));
     res.status(201).json(await documents.create(input.slug, input.fields, file, actorOf(req)));
   });
-  r.get("/documents/:id", signedIn(), route(item, ({ params, actor }) => documents.get(params.id, actor)));
+  r.get("/documents/:id", signedIn(), route(itemPath, ({ params, actor }) => documents.get(params.id, actor)));
   r.post("/documents/:id/versions", writers(), receiveFile, async (req, res) => {
     const { input, file } = await parseForm(req, () => ({ id: IdParamSchema.parse(req.params).id, fields: DocumentVersionFieldsSchema.parse(formFields(req.body)) }));
     res.status(201).json(await documents.addVersion(input.id, input.fields, file, actorOf(req)));
   });
-  r.patch("/documents/:id", writers(), route({ ...item, body: DocumentPatchInputSchema }, ({ params, body, actor }) => documents.patch(params.id, body, actor)));
-  r.delete("/documents/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => documents.remove(params.id, actor)));
+  r.patch("/documents/:id", writers(), route({ ...itemPath, body: DocumentPatchInputSchema }, ({ params, body, actor }) => documents.patch(params.id, body, actor)));
+  r.delete("/documents/:id", writers(), route({ ...itemPath, status: 204 }, ({ params, actor }) => documents.remove(params.id, actor)));
 
   // The file: an investor's copy is made for them on each request and sent whole (no ranges), so
   // one request is one entry in the view log; staff get the stored original.
@@ -95,13 +93,13 @@ export function documentsRouter(documents: DocumentsService, uploads: UploadArea
     sendPrivateFile(res, file);
   });
 
-  r.get("/documents/:id/views", requireStaff(), route(item, ({ params, actor }) => documents.documentViews(params.id, actor)));
-  r.get("/projects/:slug/document-views", requireStaff(), route({ ...project, query: ViewLogQuerySchema }, async ({ params, query, actor, res }) => {
+  r.get("/documents/:id/views", requireStaff(), route(itemPath, ({ params, actor }) => documents.documentViews(params.id, actor)));
+  r.get("/projects/:slug/document-views", requireStaff(), route({ ...projectPath, query: ViewLogQuerySchema }, async ({ params, query, actor, res }) => {
     const rows = await documents.projectViews(params.slug, query, actor);
     if (query.format === "json") return rows;
     res.type("text/csv; charset=utf-8").attachment(`${params.slug}-document-views.csv`).send(documents.toCsv(rows));
   }));
-  r.get("/projects/:slug/my-document-views", requireRole("investor"), route({ ...project, query: z.strictObject({}) }, ({ params, actor }) => documents.myViews(params.slug, actor)));
+  r.get("/projects/:slug/my-document-views", requireRole("investor"), route({ ...projectPath, query: z.strictObject({}) }, ({ params, actor }) => documents.myViews(params.slug, actor)));
 
   return r;
 }

@@ -1,17 +1,15 @@
 import { Router } from "express";
 import type { Store } from "express-rate-limit";
-import { IdParamSchema } from "#shared/schemas/common.ts";
 import { EnquiryInputSchema, EnquiryListQuerySchema, EnquiryPatchSchema } from "#shared/schemas/enquiries.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { requestLimit } from "../core/request-limit.ts";
 import { requireStaff } from "../core/auth.ts";
-import { route } from "../core/route.ts";
+import { itemPath, route } from "../core/route.ts";
 import { ENQUIRY_ACCEPTED, type EnquiriesService } from "./enquiries.service.ts";
 
 export function enquiriesRouter(deps: { enquiries: EnquiriesService; limit: { perIp: number; windowMs: number }; store: Store }): Router {
   const { enquiries } = deps;
   const r = Router();
-  const item = { params: IdParamSchema };
 
   // A second spam guard beside the honeypot, shared by every app process through MariaDB.
   const perIp = requestLimit({
@@ -28,7 +26,7 @@ export function enquiriesRouter(deps: { enquiries: EnquiriesService; limit: { pe
 
   r.get("/enquiries", requireStaff(), route({ query: EnquiryListQuerySchema }, ({ query }) => enquiries.list(query)));
   r.get("/enquiries/owners", requireStaff(), route({}, () => enquiries.owners()));
-  r.get("/enquiries/:id", requireStaff(), route(item, ({ params }) => enquiries.get(params.id)));
-  r.patch("/enquiries/:id", requireStaff(), route({ ...item, body: EnquiryPatchSchema }, ({ params, body }) => enquiries.update(params.id, body)));
+  r.get("/enquiries/:id", requireStaff(), route(itemPath, ({ params }) => enquiries.get(params.id)));
+  r.patch("/enquiries/:id", requireStaff(), route({ ...itemPath, body: EnquiryPatchSchema }, ({ params, body }) => enquiries.update(params.id, body)));
   return r;
 }

@@ -1,14 +1,12 @@
 import { Router } from "express";
-import { IdParamSchema } from "#shared/schemas/common.ts";
 import { OutboxQuerySchema } from "#shared/schemas/outbox.ts";
 import { notFound, AppError } from "../core/app-error.ts";
 import { requireRole } from "../core/auth.ts";
-import { route } from "../core/route.ts";
+import { itemPath, route } from "../core/route.ts";
 import type { OutboxService } from "./mail.service.ts";
 
 export function outboxRouter(outbox: OutboxService, mailMode: "local" | "smtp"): Router {
   const r = Router();
-  const item = { params: IdParamSchema };
   // Administrators only: messages hold other people's links, and a colleague's reset link is their account.
   r.use("/outbox", requireRole("admin"), (_req, _res, next) => {
     if (mailMode !== "local") return next(new AppError("not_local_mail", "There is no outbox here: this server hands its mail to a delivery service and keeps no copies.", 404));
@@ -19,12 +17,12 @@ export function outboxRouter(outbox: OutboxService, mailMode: "local" | "smtp"):
     res.set("X-Total-Count", String(total));
     return items;
   }));
-  r.get("/outbox/:id", route(item, async ({ params }) => {
+  r.get("/outbox/:id", route(itemPath, async ({ params }) => {
     const m = await outbox.get(params.id);
     if (!m) throw notFound("That message");
     return m;
   }));
-  r.get("/outbox/:id/raw", route(item, async ({ params, res }) => {
+  r.get("/outbox/:id/raw", route(itemPath, async ({ params, res }) => {
     const raw = await outbox.raw(params.id);
     if (!raw) throw notFound("That message");
     res.type("message/rfc822").send(raw);

@@ -7,7 +7,7 @@ import { ThenAndNowQuerySchema } from "#shared/schemas/writing-help.ts";
 import { BulkTagInputSchema, GalleryQuerySchema, MediaListQuerySchema, MediaPatchInputSchema, ProjectQuerySchema, ReviewInputSchema, SignedVariantQuerySchema } from "#shared/schemas/media.ts";
 import { AppError } from "../core/app-error.ts";
 import { actorOf, requireRole } from "../core/auth.ts";
-import { route } from "../core/route.ts";
+import { itemPath, route } from "../core/route.ts";
 import type { MediaService } from "./media.service.ts";
 import type { StoredFile, UploadArea } from "./media.storage.ts";
 
@@ -51,7 +51,6 @@ export function mediaRouter(media: MediaService, uploads: UploadArea): Router {
   const receive = uploads.receiver({ maxFileBytes: media.limits.maxFileBytes, maxFiles: media.limits.maxFiles });
   const receiveFiles: RequestHandler = (req, res, next) => receive(req, res, (err?: unknown) => next(err ? uploadError(err, media.limits) : undefined));
 
-  const item = { params: IdParamSchema };
 
   r.get("/media", staff(), route({ query: MediaListQuerySchema }, ({ query }) => media.list(query)));
   r.post("/media", staff(), receiveFiles, async (req, res) => {
@@ -84,10 +83,10 @@ export function mediaRouter(media: MediaService, uploads: UploadArea): Router {
 
   r.get("/media/vocabulary", staff(), route({ query: ProjectQuerySchema }, ({ query }) => media.vocabulary(query.project)));
   r.post("/media/bulk-tags", staff(), route({ body: BulkTagInputSchema }, ({ body }) => media.bulkTag(body)));
-  r.get("/media/:id", staff(), route(item, ({ params }) => media.get(params.id)));
-  r.patch("/media/:id", staff(), route({ ...item, body: MediaPatchInputSchema }, ({ params, body, actor }) => media.update(params.id, body, actor)));
-  r.post("/media/:id/review", reviewers(), route({ ...item, body: ReviewInputSchema }, ({ params, body, actor }) => media.review(params.id, body, actor)));
-  r.post("/media/:id/retry", staff(), route(item, ({ params }) => media.retry(params.id)));
+  r.get("/media/:id", staff(), route(itemPath, ({ params }) => media.get(params.id)));
+  r.patch("/media/:id", staff(), route({ ...itemPath, body: MediaPatchInputSchema }, ({ params, body, actor }) => media.update(params.id, body, actor)));
+  r.post("/media/:id/review", reviewers(), route({ ...itemPath, body: ReviewInputSchema }, ({ params, body, actor }) => media.review(params.id, body, actor)));
+  r.post("/media/:id/retry", staff(), route(itemPath, ({ params }) => media.retry(params.id)));
   r.get("/media/:id/original", staff(), async (req, res) => {
     const { id } = IdParamSchema.parse(req.params);
     const file = await media.original(id);

@@ -6,7 +6,7 @@ import { PressKitInputSchema, PublicPressKitQuerySchema } from "#shared/schemas/
 import { NEVER_STORED } from "../core/cache-policy.ts";
 import { actorOf, requireStaff } from "../core/auth.ts";
 import { requestLimit } from "../core/request-limit.ts";
-import { route } from "../core/route.ts";
+import { projectPath, route } from "../core/route.ts";
 import type { PressKitDownload, PressKitsService } from "./press-kits.service.ts";
 
 /**
@@ -39,9 +39,8 @@ function sendKit(req: Request, res: Response, kit: PressKitDownload, cacheContro
 /** Press kits under /api: a staff kit (POST), and the project's usage terms (read by anyone, set by staff). */
 export function pressKitsRouter(pressKits: PressKitsService): Router {
   const r = Router();
-  const project = { params: SlugParamSchema };
-  r.get("/projects/:slug/press-kit/terms", route(project, ({ params }) => pressKits.usageTerms(params.slug)));
-  r.put("/projects/:slug/press-kit/terms", requireStaff(), route({ ...project, body: PressUsageTermsInputSchema }, ({ params, body, actor }) => pressKits.setUsageTerms(params.slug, body, actor)));
+  r.get("/projects/:slug/press-kit/terms", route(projectPath, ({ params }) => pressKits.usageTerms(params.slug)));
+  r.put("/projects/:slug/press-kit/terms", requireStaff(), route({ ...projectPath, body: PressUsageTermsInputSchema }, ({ params, body, actor }) => pressKits.setUsageTerms(params.slug, body, actor)));
   r.post("/projects/:slug/press-kit", requireStaff(), async (req, res) => {
     const { slug } = SlugParamSchema.parse(req.params);
     const input = PressKitInputSchema.parse(req.body);

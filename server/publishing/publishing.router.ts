@@ -1,10 +1,9 @@
 import { Router, type Request, type Response } from "express";
 import type { z } from "zod";
-import { IdParamSchema } from "#shared/schemas/common.ts";
 import { DiffQuerySchema, ReturnInputSchema, RevisionParamsSchema, ScheduleInputSchema, type PublishingEvent, type RevisionDiff, type RevisionSummary, type ScheduleInput, type WorkflowResult } from "#shared/schemas/publishing.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { requireRole } from "../core/auth.ts";
-import { route } from "../core/route.ts";
+import { itemPath, route } from "../core/route.ts";
 import type { Actor } from "../core/types.ts";
 
 const staff = () => requireRole("admin", "lead", "marketing");
@@ -61,7 +60,6 @@ export interface PublishedRoutes<CreateInput, PatchInput, ItemParam extends stri
 export function publishingRouter<Detail, CreateInput, PatchInput, ItemParam extends string>(routes: PublishedRoutes<CreateInput, PatchInput, ItemParam>, service: PublishedService<Detail, CreateInput, PatchInput>): Router {
   const r = Router();
   const { plural, page } = routes;
-  const item = { params: IdParamSchema };
   const revision = { params: RevisionParamsSchema };
 
   r.get(
@@ -86,21 +84,21 @@ export function publishingRouter<Detail, CreateInput, PatchInput, ItemParam exte
   r.get(
     `/${plural}/:id`,
     staff(),
-    route({ ...item, headers: { "Cache-Control": "private, no-cache" } }, ({ params, actor }) => service.getById(params.id, actor)),
+    route({ ...itemPath, headers: { "Cache-Control": "private, no-cache" } }, ({ params, actor }) => service.getById(params.id, actor)),
   );
-  r.patch(`/${plural}/:id`, staff(), route({ ...item, body: routes.patchInput }, ({ params, body, actor }) => service.patch(params.id, body, actor)));
-  r.get(`/${plural}/:id/revisions`, staff(), route(item, ({ params }) => service.revisions(params.id)));
-  r.get(`/${plural}/:id/history`, staff(), route(item, ({ params }) => service.history(params.id)));
+  r.patch(`/${plural}/:id`, staff(), route({ ...itemPath, body: routes.patchInput }, ({ params, body, actor }) => service.patch(params.id, body, actor)));
+  r.get(`/${plural}/:id/revisions`, staff(), route(itemPath, ({ params }) => service.revisions(params.id)));
+  r.get(`/${plural}/:id/history`, staff(), route(itemPath, ({ params }) => service.history(params.id)));
   r.get(`/${plural}/:id/revisions/:n/diff`, staff(), route({ ...revision, query: DiffQuerySchema }, ({ params, query }) => service.diff(params.id, params.n, query.against)));
   r.post(`/${plural}/:id/revisions/:n/restore`, staff(), route(revision, ({ params, actor }) => service.restore(params.id, params.n, actor)));
 
   // The workflow steps: each reads the id (and its own input) and answers `{ id, status }`.
-  r.post(`/${plural}/:id/submit`, staff(), route(item, ({ params, actor }) => service.submit(params.id, actor)));
-  r.post(`/${plural}/:id/approve`, approvers(), route(item, ({ params, actor }) => service.approve(params.id, actor)));
-  r.post(`/${plural}/:id/return`, approvers(), route({ ...item, body: ReturnInputSchema }, ({ params, body, actor }) => service.returnToDraft(params.id, body.comment, actor)));
-  r.post(`/${plural}/:id/publish`, approvers(), route(item, ({ params, actor }) => service.publish(params.id, actor)));
-  r.post(`/${plural}/:id/schedule`, approvers(), route({ ...item, body: ScheduleInputSchema }, ({ params, body, actor }) => service.schedule(params.id, body.at, actor)));
-  r.post(`/${plural}/:id/withdraw`, approvers(), route(item, ({ params, actor }) => service.withdraw(params.id, actor)));
+  r.post(`/${plural}/:id/submit`, staff(), route(itemPath, ({ params, actor }) => service.submit(params.id, actor)));
+  r.post(`/${plural}/:id/approve`, approvers(), route(itemPath, ({ params, actor }) => service.approve(params.id, actor)));
+  r.post(`/${plural}/:id/return`, approvers(), route({ ...itemPath, body: ReturnInputSchema }, ({ params, body, actor }) => service.returnToDraft(params.id, body.comment, actor)));
+  r.post(`/${plural}/:id/publish`, approvers(), route(itemPath, ({ params, actor }) => service.publish(params.id, actor)));
+  r.post(`/${plural}/:id/schedule`, approvers(), route({ ...itemPath, body: ScheduleInputSchema }, ({ params, body, actor }) => service.schedule(params.id, body.at, actor)));
+  r.post(`/${plural}/:id/withdraw`, approvers(), route(itemPath, ({ params, actor }) => service.withdraw(params.id, actor)));
 
   return r;
 }

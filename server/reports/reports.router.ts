@@ -1,9 +1,8 @@
 import { Router } from "express";
 import { IdParamSchema } from "#shared/schemas/common.ts";
-import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { ReportCorrectInputSchema, ReportCreateInputSchema, ReportIssueInputSchema, ReportPatchInputSchema, ReportPdfQuerySchema } from "#shared/schemas/reports.ts";
 import { actorOf, requireRole } from "../core/auth.ts";
-import { route } from "../core/route.ts";
+import { itemPath, projectPath, route } from "../core/route.ts";
 import { sendPrivateFile } from "../core/send-file.ts";
 import type { ReportsService } from "./reports.service.ts";
 
@@ -18,15 +17,13 @@ const writers = () => requireRole("lead", "admin");
  */
 export function reportsRouter(reports: ReportsService): Router {
   const r = Router();
-  const project = { params: SlugParamSchema };
-  const item = { params: IdParamSchema };
 
-  r.get("/projects/:slug/reports", readers(), route(project, ({ params, actor }) => reports.list(params.slug, actor)));
-  r.post("/projects/:slug/reports", writers(), route({ ...project, body: ReportCreateInputSchema, status: 201 }, ({ params, body, actor }) => reports.create(params.slug, body, actor)));
-  r.get("/reports/:id", readers(), route(item, ({ params, actor }) => reports.get(params.id, actor)));
-  r.patch("/reports/:id", writers(), route({ ...item, body: ReportPatchInputSchema }, ({ params, body, actor }) => reports.patch(params.id, body, actor)));
-  r.post("/reports/:id/issue", writers(), route({ ...item, body: ReportIssueInputSchema }, ({ params, body, actor }) => reports.issue(params.id, body, actor)));
-  r.post("/reports/:id/correct", writers(), route({ ...item, body: ReportCorrectInputSchema, status: 201 }, ({ params, body, actor }) => reports.correct(params.id, body, actor)));
+  r.get("/projects/:slug/reports", readers(), route(projectPath, ({ params, actor }) => reports.list(params.slug, actor)));
+  r.post("/projects/:slug/reports", writers(), route({ ...projectPath, body: ReportCreateInputSchema, status: 201 }, ({ params, body, actor }) => reports.create(params.slug, body, actor)));
+  r.get("/reports/:id", readers(), route(itemPath, ({ params, actor }) => reports.get(params.id, actor)));
+  r.patch("/reports/:id", writers(), route({ ...itemPath, body: ReportPatchInputSchema }, ({ params, body, actor }) => reports.patch(params.id, body, actor)));
+  r.post("/reports/:id/issue", writers(), route({ ...itemPath, body: ReportIssueInputSchema }, ({ params, body, actor }) => reports.issue(params.id, body, actor)));
+  r.post("/reports/:id/correct", writers(), route({ ...itemPath, body: ReportCorrectInputSchema, status: 201 }, ({ params, body, actor }) => reports.correct(params.id, body, actor)));
 
   // An issued report is its library document: an investor's copy is stamped for them and logged, sent whole.
   r.get("/reports/:id/pdf", readers(), async (req, res) => {

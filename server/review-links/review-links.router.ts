@@ -1,9 +1,8 @@
 import { Router, type Request, type Response } from "express";
-import { IdParamSchema } from "#shared/schemas/common.ts";
 import { ReviewAnswerInputSchema, ReviewLinkInputSchema, ReviewRevisionQuerySchema, ReviewTokenParamSchema, type ReviewContentKind } from "#shared/schemas/review-links.ts";
 import { AppError } from "../core/app-error.ts";
 import { requireStaff } from "../core/auth.ts";
-import { route } from "../core/route.ts";
+import { itemPath, route } from "../core/route.ts";
 import type { ReviewClient, ReviewLinksService } from "./review-links.service.ts";
 
 const NEVER_STORED = "private, no-store";
@@ -33,18 +32,17 @@ function forReviewer(res: Response): Response {
  */
 export function reviewLinksRouter(reviewLinks: ReviewLinksService): Router {
   const r = Router();
-  const item = { params: IdParamSchema };
 
   const kinds: Array<[string, ReviewContentKind]> = [
     ["/posts/:id/review-links", "post"],
     ["/stories/:id/review-links", "story"],
   ];
   for (const [path, kind] of kinds) {
-    r.post(path, requireStaff(), route({ ...item, body: ReviewLinkInputSchema, status: 201, headers: { "Cache-Control": NEVER_STORED } }, ({ params, body, actor }) => reviewLinks.create(kind, params.id, body, actor)));
-    r.get(path, requireStaff(), route({ ...item, headers: { "Cache-Control": NEVER_STORED } }, ({ params }) => reviewLinks.list(kind, params.id)));
+    r.post(path, requireStaff(), route({ ...itemPath, body: ReviewLinkInputSchema, status: 201, headers: { "Cache-Control": NEVER_STORED } }, ({ params, body, actor }) => reviewLinks.create(kind, params.id, body, actor)));
+    r.get(path, requireStaff(), route({ ...itemPath, headers: { "Cache-Control": NEVER_STORED } }, ({ params }) => reviewLinks.list(kind, params.id)));
   }
 
-  r.delete("/review-links/:id", requireStaff(), route({ ...item, status: 204 }, async ({ params, actor, res }) => {
+  r.delete("/review-links/:id", requireStaff(), route({ ...itemPath, status: 204 }, async ({ params, actor, res }) => {
     await reviewLinks.revoke(params.id, actor);
     res.set("Cache-Control", NEVER_STORED);
   }));

@@ -1,9 +1,7 @@
 import { Router } from "express";
-import { IdParamSchema } from "#shared/schemas/common.ts";
-import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import { SiteAreaCreateInputSchema, SiteAreaPatchInputSchema } from "#shared/schemas/site-plan.ts";
 import { requireRole } from "../core/auth.ts";
-import { route } from "../core/route.ts";
+import { itemPath, projectPath, route } from "../core/route.ts";
 import type { SitePlanService } from "./site-plan.service.ts";
 
 const writers = () => requireRole("lead", "admin");
@@ -14,13 +12,11 @@ const writers = () => requireRole("lead", "admin");
  */
 export function sitePlanRouter(sitePlan: SitePlanService): Router {
   const r = Router();
-  const project = { params: SlugParamSchema };
-  const item = { params: IdParamSchema };
 
-  r.get("/projects/:slug/site-plan", route(project, ({ params, actor }) => sitePlan.plan(params.slug, actor)));
-  r.post("/projects/:slug/site-areas", writers(), route({ ...project, body: SiteAreaCreateInputSchema, status: 201 }, ({ params, body, actor }) => sitePlan.create(params.slug, body, actor)));
-  r.patch("/site-areas/:id", writers(), route({ ...item, body: SiteAreaPatchInputSchema }, ({ params, body, actor }) => sitePlan.patch(params.id, body, actor)));
-  r.delete("/site-areas/:id", writers(), route({ ...item, status: 204 }, ({ params, actor }) => sitePlan.delete(params.id, actor)));
+  r.get("/projects/:slug/site-plan", route(projectPath, ({ params, actor }) => sitePlan.plan(params.slug, actor)));
+  r.post("/projects/:slug/site-areas", writers(), route({ ...projectPath, body: SiteAreaCreateInputSchema, status: 201 }, ({ params, body, actor }) => sitePlan.create(params.slug, body, actor)));
+  r.patch("/site-areas/:id", writers(), route({ ...itemPath, body: SiteAreaPatchInputSchema }, ({ params, body, actor }) => sitePlan.patch(params.id, body, actor)));
+  r.delete("/site-areas/:id", writers(), route({ ...itemPath, status: 204 }, ({ params, actor }) => sitePlan.delete(params.id, actor)));
 
   return r;
 }

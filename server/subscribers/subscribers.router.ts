@@ -2,7 +2,6 @@ import type { Request, RequestHandler } from "express";
 import { Router } from "express";
 import type { Store } from "express-rate-limit";
 import multer from "multer";
-import { IdParamSchema } from "#shared/schemas/common.ts";
 import { SlugParamSchema } from "#shared/schemas/projects.ts";
 import {
   EmptyInputSchema,
@@ -18,7 +17,7 @@ import {
 import { AppError } from "../core/app-error.ts";
 import { requestLimit } from "../core/request-limit.ts";
 import { requireRole, requireStaff } from "../core/auth.ts";
-import { optionalBody, route } from "../core/route.ts";
+import { itemPath, optionalBody, route } from "../core/route.ts";
 import { SUBSCRIPTION_ACCEPTED } from "./subscribers.lifecycle.ts";
 import type { SubscribersService } from "./subscribers.service.ts";
 
@@ -55,7 +54,6 @@ export function subscribersRouter(deps: {
   );
 
   const link = { params: SubscriberTokenParamSchema };
-  const item = { params: IdParamSchema };
 
   r.get("/projects/:slug/subscription-options", route({ params: SlugParamSchema }, ({ params }) => subscribers.options(params.slug)));
 
@@ -101,13 +99,13 @@ export function subscribersRouter(deps: {
   r.get(
     "/subscribers/:id/export",
     requireStaff(),
-    route(item, async ({ params, res }) => {
+    route(itemPath, async ({ params, res }) => {
       const data = await subscribers.personData(params.id);
       res.set("Cache-Control", "no-store").attachment(`subscriber-${params.id}.json`);
       return data;
     }),
   );
-  r.delete("/subscribers/:id", requireStaff(), route(item, ({ params }) => subscribers.erase(params.id)));
+  r.delete("/subscribers/:id", requireStaff(), route(itemPath, ({ params }) => subscribers.erase(params.id)));
 
   return r;
 }
