@@ -1,4 +1,5 @@
 import { useId, useState, type FormEvent, type ReactNode } from "react";
+import { Controller, type Control, type FieldPath, type FieldValues } from "react-hook-form";
 import { Button } from "./button.tsx";
 import { Dialog } from "./dialog.tsx";
 import { FieldError } from "./field.tsx";
@@ -30,6 +31,11 @@ export function IdPicks({ legend, options, value, onChange, error, empty }: { le
       <FieldError id={`${id}-error`} error={error} />
     </fieldset>
   );
+}
+
+/** `IdPicks` bound to a react-hook-form field of ids: its value, its changes and its error. */
+export function IdPicksField<V extends FieldValues>({ control, name, ...picks }: { control: Control<V>; name: FieldPath<V>; legend: string; options: ReadonlyArray<{ id: number; label: string; hint?: string }>; empty: string }) {
+  return <Controller control={control} name={name} render={({ field, fieldState }) => <IdPicks {...picks} value={(field.value as number[] | null | undefined) ?? []} onChange={field.onChange} error={fieldState.error?.message} />} />;
 }
 
 /**

@@ -6,7 +6,7 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
 import { DateField } from "../../../components/ui/date-field.tsx";
-import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
+import { FormDialog, IdPicksField } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { formatDate } from "../../../lib/format.ts";
@@ -85,16 +85,8 @@ export function ChangeForm({ slug, change, currency, milestones, risks, onClose 
       <div className="sm:col-span-2">
         <TextAreaField label="Detail" rows={2} error={errors.detail?.message} {...form.register("detail")} />
       </div>
-      <Controller
-        control={form.control}
-        name="linkedMilestones"
-        render={({ field }) => <IdPicks legend="Milestones" options={milestones.map((m) => ({ id: m.id, label: m.name, hint: formatDate(m.forecastFinish ?? m.baselineFinish) }))} value={field.value ?? []} onChange={field.onChange} error={errors.linkedMilestones?.message} empty="The programme has no milestones yet." />}
-      />
-      <Controller
-        control={form.control}
-        name="linkedRisks"
-        render={({ field }) => <IdPicks legend="Risks" options={risks.map((r) => ({ id: r.id, label: `${r.reference} ${r.title}` }))} value={field.value ?? []} onChange={field.onChange} error={errors.linkedRisks?.message} empty="The register is empty." />}
-      />
+      <IdPicksField control={form.control} name="linkedMilestones" legend="Milestones" options={milestones.map((m) => ({ id: m.id, label: m.name, hint: formatDate(m.forecastFinish ?? m.baselineFinish) }))} empty="The programme has no milestones yet." />
+      <IdPicksField control={form.control} name="linkedRisks" legend="Risks" options={risks.map((r) => ({ id: r.id, label: `${r.reference} ${r.title}` }))} empty="The register is empty." />
     </FormDialog>
   );
 }

@@ -8,7 +8,7 @@ import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { FieldError, SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
 import { DateField } from "../../../components/ui/date-field.tsx";
-import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
+import { FormDialog, IdPicksField } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import { changedFields, pick, saveForm } from "../../../lib/forms.ts";
@@ -117,24 +117,10 @@ export function DecisionForm({ slug, decision, today, currency, milestones, risk
       </div>
       <SelectField label="Audience" options={RECORD_AUDIENCE_OPTIONS} error={errors.audience?.message} {...form.register("audience")} />
       <div />
-      <Controller
-        control={form.control}
-        name="linkedMilestones"
-        render={({ field }) => (
-          <IdPicks legend="Milestones that move if it is not decided in time" options={milestones.map((m) => ({ id: m.id, label: m.name, hint: formatDate(m.forecastFinish ?? m.baselineFinish) }))} value={field.value ?? []} onChange={field.onChange} error={errors.linkedMilestones?.message} empty="The programme has no milestones yet." />
-        )}
-      />
-      <Controller
-        control={form.control}
-        name="linkedRisks"
-        render={({ field }) => <IdPicks legend="Risks it answers" options={risks.map((r) => ({ id: r.id, label: `${r.reference} ${r.title}` }))} value={field.value ?? []} onChange={field.onChange} error={errors.linkedRisks?.message} empty="The register is empty." />}
-      />
+      <IdPicksField control={form.control} name="linkedMilestones" legend="Milestones that move if it is not decided in time" options={milestones.map((m) => ({ id: m.id, label: m.name, hint: formatDate(m.forecastFinish ?? m.baselineFinish) }))} empty="The programme has no milestones yet." />
+      <IdPicksField control={form.control} name="linkedRisks" legend="Risks it answers" options={risks.map((r) => ({ id: r.id, label: `${r.reference} ${r.title}` }))} empty="The register is empty." />
       <div className="sm:col-span-2">
-        <Controller
-          control={form.control}
-          name="documentIds"
-          render={({ field }) => <IdPicks legend="Documents attached" options={documents.map((d) => ({ id: d.id, label: d.title, hint: d.period }))} value={field.value ?? []} onChange={field.onChange} error={errors.documentIds?.message} empty="The document library is empty." />}
-        />
+        <IdPicksField control={form.control} name="documentIds" legend="Documents attached" options={documents.map((d) => ({ id: d.id, label: d.title, hint: d.period }))} empty="The document library is empty." />
       </div>
     </FormDialog>
   );

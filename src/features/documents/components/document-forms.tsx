@@ -1,11 +1,11 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useState } from "react";
-import { Controller, useForm } from "react-hook-form";
+import { useForm } from "react-hook-form";
 import type { z } from "zod";
 import { DocumentCategorySchema, DocumentCreateFieldsSchema, type DocumentAnswer, type DocumentCreateFields } from "#shared/schemas/documents.ts";
 import { FieldError, SelectField, TextField } from "../../../components/ui/field.tsx";
 import { DateField } from "../../../components/ui/date-field.tsx";
-import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
+import { FormDialog, IdPicksField } from "../../../components/ui/form-dialog.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
 import { changedFields, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
 import { RECORD_AUDIENCE_OPTIONS } from "../../../lib/record.tsx";
@@ -40,20 +40,7 @@ function DocumentFields({ form, organisations }: { form: ReturnType<typeof useFo
       <DateField label="Last day of the period" error={errors.periodEnd?.message} {...form.register("periodEnd", { setValueAs: (v: string | null) => (v === "" || v === null ? null : v) })} />
       <SelectField label="Audience" options={RECORD_AUDIENCE_OPTIONS} error={errors.audience?.message} {...form.register("audience")} />
       <div className="sm:col-span-2">
-        <Controller
-          control={form.control}
-          name="organisationIds"
-          render={({ field }) => (
-            <IdPicks
-              legend="Only for these investor organisations (none ticked: every investor)"
-              options={organisations.map((o) => ({ id: o.id, label: o.name, hint: `${o.investors} investor${o.investors === 1 ? "" : "s"}` }))}
-              value={field.value ?? []}
-              onChange={field.onChange}
-              error={errors.organisationIds?.message}
-              empty="No investor organisation yet (an administrator adds them on the users page)."
-            />
-          )}
-        />
+        <IdPicksField control={form.control} name="organisationIds" legend="Only for these investor organisations (none ticked: every investor)" options={organisations.map((o) => ({ id: o.id, label: o.name, hint: `${o.investors} investor${o.investors === 1 ? "" : "s"}` }))} empty="No investor organisation yet (an administrator adds them on the users page)." />
       </div>
     </>
   );

@@ -1,5 +1,5 @@
 import { zodResolver } from "@hookform/resolvers/zod";
-import { Controller, useForm } from "react-hook-form";
+import { useForm } from "react-hook-form";
 import type { z } from "zod";
 import { BlockCreateInputSchema, ContainmentSchema, COOLING_APPROACH_SUGGESTIONS, type BlockAnswer, type BlockCreateInput } from "#shared/schemas/facility.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
@@ -7,7 +7,7 @@ import { SelectField, TextAreaField, TextField } from "../../../components/ui/fi
 import { formatDate } from "../../../lib/format.ts";
 import { useCreateBlock, useDeleteBlock, usePatchBlock } from "../api.ts";
 import { CONTAINMENT_WORD } from "../words.ts";
-import { AUDIENCE_OPTIONS, changedFields, FormDialog, IdPicks, optionsOf, pick, rowEditor } from "./form-parts.tsx";
+import { AUDIENCE_OPTIONS, changedFields, FormDialog, IdPicksField, optionsOf, pick, rowEditor } from "./form-parts.tsx";
 
 type Values = z.input<typeof BlockCreateInputSchema>;
 
@@ -51,20 +51,7 @@ export function BlockForm({ slug, block, milestones, onClose }: { slug: string; 
       </datalist>
       <SelectField label="Containment" options={optionsOf(CONTAINMENT_WORD, ContainmentSchema.options)} error={errors.containment?.message} {...form.register("containment")} />
       <div className="sm:col-span-2">
-        <Controller
-          control={form.control}
-          name="dependsOn"
-          render={({ field }) => (
-            <IdPicks
-              legend="Ready for service when these milestones are complete"
-              options={milestoneChoices(milestones)}
-              value={field.value ?? []}
-              onChange={field.onChange}
-              error={errors.dependsOn?.message}
-              empty="The programme has no milestones yet."
-            />
-          )}
-        />
+        <IdPicksField control={form.control} name="dependsOn" legend="Ready for service when these milestones are complete" options={milestoneChoices(milestones)} empty="The programme has no milestones yet." />
       </div>
       <div className="sm:col-span-2">
         <TextAreaField label="Notes for prospects" rows={3} error={errors.notes?.message} {...form.register("notes")} />

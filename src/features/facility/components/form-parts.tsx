@@ -6,7 +6,7 @@ import { AUDIENCE_WORD } from "../words.ts";
 // The editors' generic parts live in src/lib/forms.ts and src/components/ui/form-dialog.tsx
 // (the investor record's office pages use them too); the facility's editors import them here.
 export { changedFields, numberOrNull, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
-export { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
+export { FormDialog, IdPicksField } from "../../../components/ui/form-dialog.tsx";
 
 export const AUDIENCE_OPTIONS = AudienceSchema.options.map((a) => ({ value: a, label: AUDIENCE_WORD[a] }));
 

@@ -1,5 +1,5 @@
 import { zodResolver } from "@hookform/resolvers/zod";
-import { Controller, useForm, useWatch } from "react-hook-form";
+import { useForm, useWatch } from "react-hook-form";
 import type { z } from "zod";
 import {
   DesignFiguresSchema,
@@ -18,7 +18,7 @@ import { SelectField, TextAreaField, TextField } from "../../../components/ui/fi
 import { useCreateSystem, useDeleteSystem, usePatchSystem } from "../api.ts";
 import { KIND_WORD, RATING_UNIT_WORD } from "../words.ts";
 import { milestoneChoices } from "./block-form.tsx";
-import { AUDIENCE_OPTIONS, changedFields, FormDialog, IdPicks, numberOrNull, optionsOf, pick, rowEditor } from "./form-parts.tsx";
+import { AUDIENCE_OPTIONS, changedFields, FormDialog, IdPicksField, numberOrNull, optionsOf, pick, rowEditor } from "./form-parts.tsx";
 
 type Values = z.input<typeof SystemCreateInputSchema>;
 
@@ -86,20 +86,8 @@ export function SystemForm({ slug, system, blocks, milestones, onClose }: { slug
       {(DESIGN_FIELDS[kind ?? "other"] ?? []).map((f) => (
         <TextField key={f.key} label={f.label} type="number" inputMode="decimal" step="any" error={errors.design?.[f.key]?.message} {...form.register(`design.${f.key}`, { setValueAs: numberOrNull })} />
       ))}
-      <Controller
-        control={form.control}
-        name="serves"
-        render={({ field }) => (
-          <IdPicks legend="Serves the load of" options={blocks.map((b) => ({ id: b.id, label: b.name, hint: `${b.racks} racks · ${b.itKw} kW` }))} value={field.value ?? []} onChange={field.onChange} error={errors.serves?.message} empty="No capacity block yet." />
-        )}
-      />
-      <Controller
-        control={form.control}
-        name="linkedMilestones"
-        render={({ field }) => (
-          <IdPicks legend="Linked milestones" options={milestoneChoices(milestones)} value={field.value ?? []} onChange={field.onChange} error={errors.linkedMilestones?.message} empty="The programme has no milestones yet." />
-        )}
-      />
+      <IdPicksField control={form.control} name="serves" legend="Serves the load of" options={blocks.map((b) => ({ id: b.id, label: b.name, hint: `${b.racks} racks · ${b.itKw} kW` }))} empty="No capacity block yet." />
+      <IdPicksField control={form.control} name="linkedMilestones" legend="Linked milestones" options={milestoneChoices(milestones)} empty="The programme has no milestones yet." />
       <div className="sm:col-span-2">
         <TextAreaField label="Notes" rows={2} error={errors.notes?.message} {...form.register("notes")} />
       </div>

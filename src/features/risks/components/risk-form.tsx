@@ -7,7 +7,7 @@ import type { Milestone } from "#shared/schemas/programme.ts";
 import { RiskCategorySchema, RiskCreateInputSchema, type RiskAnswer, type RiskCreateInput, type RiskScale } from "#shared/schemas/risks.ts";
 import { SelectField, TextAreaField, TextField } from "../../../components/ui/field.tsx";
 import { DateField } from "../../../components/ui/date-field.tsx";
-import { FormDialog, IdPicks } from "../../../components/ui/form-dialog.tsx";
+import { FormDialog, IdPicksField } from "../../../components/ui/form-dialog.tsx";
 import { MoneyField } from "../../../components/ui/money-field.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import { changedFields, numberOrNull, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
@@ -135,24 +135,10 @@ export function RiskForm({ slug, risk, scale, staff, milestones, facility, curre
           </div>
         ) : null}
       </fieldset>
-      <Controller
-        control={form.control}
-        name="linkedMilestones"
-        render={({ field }) => (
-          <IdPicks legend="Milestones it would move" options={milestones.map((m) => ({ id: m.id, label: m.name, hint: formatDate(m.forecastFinish ?? m.baselineFinish) }))} value={field.value ?? []} onChange={field.onChange} error={errors.linkedMilestones?.message} empty="The programme has no milestones yet." />
-        )}
-      />
+      <IdPicksField control={form.control} name="linkedMilestones" legend="Milestones it would move" options={milestones.map((m) => ({ id: m.id, label: m.name, hint: formatDate(m.forecastFinish ?? m.baselineFinish) }))} empty="The programme has no milestones yet." />
       <div className="flex flex-col gap-3">
-        <Controller
-          control={form.control}
-          name="linkedBlocks"
-          render={({ field }) => <IdPicks legend="Capacity blocks" options={(facility?.blocks ?? []).map((b) => ({ id: b.id, label: b.name }))} value={field.value ?? []} onChange={field.onChange} error={errors.linkedBlocks?.message} empty="No capacity block yet." />}
-        />
-        <Controller
-          control={form.control}
-          name="linkedSystems"
-          render={({ field }) => <IdPicks legend="Plant systems" options={(facility?.systems ?? []).map((s) => ({ id: s.id, label: s.name }))} value={field.value ?? []} onChange={field.onChange} error={errors.linkedSystems?.message} empty="No plant system yet." />}
-        />
+        <IdPicksField control={form.control} name="linkedBlocks" legend="Capacity blocks" options={(facility?.blocks ?? []).map((b) => ({ id: b.id, label: b.name }))} empty="No capacity block yet." />
+        <IdPicksField control={form.control} name="linkedSystems" legend="Plant systems" options={(facility?.systems ?? []).map((s) => ({ id: s.id, label: s.name }))} empty="No plant system yet." />
       </div>
     </FormDialog>
   );
