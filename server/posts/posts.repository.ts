@@ -5,9 +5,9 @@ import type { PostStatus } from "#shared/schemas/publishing.ts";
 import type { RichTextDoc } from "#shared/schemas/rich-text.ts";
 import type { Viewer } from "#shared/domain/audience.ts";
 import { replaceChildRows } from "../core/child-rows.ts";
-import { visibleContent } from "../publishing/publishing.audience.ts";
+import { contentFinders, visibleContent } from "../publishing/publishing.audience.ts";
 import { changedColumns, newDraftColumns, toWorkflowRecord, WORKFLOW_COLUMNS, type WorkflowRecord, type WorkflowUpdate } from "../publishing/publishing.columns.ts";
-import { countOf, firstRow } from "../db/rows.ts";
+import { countOf } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -76,16 +76,10 @@ export async function updatePost(q: Q, id: number, expectVersion: number | null,
   return query.update(row);
 }
 
-export async function findPostById(q: Q, id: number, opts: { forUpdate?: boolean } = {}): Promise<PostRecord | null> {
-  const r = await firstRow(q("posts as p").where("p.id", id).select("p.*"), opts);
-  return r ? toRecord(r) : null;
-}
-
+const finders = contentFinders("posts", toRecord);
+export const findPostById = finders.byId;
 /** The post at this address that the viewer may read. */
-export async function findVisiblePostBySlug(q: Q, projectId: number, slug: string, viewer: Viewer): Promise<PostRecord | null> {
-  const r = await visibleTo(q("posts as p").where({ "p.project_id": projectId, "p.slug": slug }), viewer).first("p.*");
-  return r ? toRecord(r) : null;
-}
+export const findVisiblePostBySlug = finders.visibleBySlug;
 
 export interface ListFilter {
   page: number;

@@ -2,9 +2,8 @@ import type { Knex } from "knex";
 import type { Audience } from "#shared/schemas/common.ts";
 import type { StoryItemInput } from "#shared/schemas/stories.ts";
 import type { Viewer } from "#shared/domain/audience.ts";
-import { visibleContent } from "../publishing/publishing.audience.ts";
+import { contentFinders, visibleContent } from "../publishing/publishing.audience.ts";
 import { changedColumns, newDraftColumns, toWorkflowRecord, type WorkflowRecord, type WorkflowUpdate } from "../publishing/publishing.columns.ts";
-import { firstRow } from "../db/rows.ts";
 
 type Q = Knex | Knex.Transaction;
 
@@ -47,15 +46,9 @@ export async function updateStory(q: Q, id: number, changes: StoryUpdate, at: Da
     .update({ updated_at: at, version: q.raw("version + 1"), ...changedColumns(changes, { intro: "intro" }) });
 }
 
-export async function findStoryById(q: Q, id: number, opts: { forUpdate?: boolean } = {}): Promise<StoryRecord | null> {
-  const r = await firstRow(q("stories as s").where("s.id", id).select("s.*"), opts);
-  return r ? toRecord(r) : null;
-}
-
-export async function findVisibleStoryBySlug(q: Q, projectId: number, slug: string, viewer: Viewer): Promise<StoryRecord | null> {
-  const r = await visibleTo(q("stories as s").where({ "s.project_id": projectId, "s.slug": slug }), viewer).first("s.*");
-  return r ? toRecord(r) : null;
-}
+const finders = contentFinders("stories", toRecord);
+export const findStoryById = finders.byId;
+export const findVisibleStoryBySlug = finders.visibleBySlug;
 
 export async function listStories(q: Q, projectId: number, viewer: Viewer): Promise<StoryRecord[]> {
   const rows = await visibleTo(q("stories as s").where("s.project_id", projectId), viewer)
