@@ -66,11 +66,38 @@ export interface MatrixIds {
   issuedReport: number;
   draftReport: number;
   internalReport: number;
+  /** A published public story (made through the API): a step it has already passed is refused, and nothing changes. */
+  publishedStory: number;
+  publishedStorySlug: string;
+  /** A draft update of the matrix's own (made through the API): restoring its first revision changes no one else's. */
+  draftPost: number;
+  /** A message in the local mail sink. */
+  outboxMessage: number;
+  /** A digest the demo investor received, in their archive. */
+  investorDigest: number;
+  /** Objects each caller deletes for itself (one set a caller, investor-audience where there is an audience), so every deleting row meets a real object whoever runs first. */
+  own: Record<Caller, OwnObjects>;
+}
+
+export interface OwnObjects {
+  subscriber: number;
+  block: number;
+  system: number;
+  unit: number;
+  feature: number;
+  siteArea: number;
+  risk: number;
+  /** A risk that gains a mitigation (and so is on record); `risk` is deleted untouched. */
+  riskWithAction: number;
+  mitigation: number;
+  change: number;
+  document: number;
+  reviewLink: number;
 }
 
 export interface MatrixRow {
   method: "get" | "head" | "post" | "put" | "patch" | "delete";
-  path: string | ((ids: MatrixIds) => string);
+  path: string | ((ids: MatrixIds, caller: Caller) => string);
   body?: unknown;
   expect: Record<Caller, number>;
   /**
@@ -84,7 +111,7 @@ export interface MatrixRow {
   immutable?: boolean;
 }
 
-export const pathOf = (row: MatrixRow, ids: MatrixIds): string => (typeof row.path === "function" ? row.path(ids) : row.path);
+export const pathOf = (row: MatrixRow, ids: MatrixIds, caller: Caller = "admin"): string => (typeof row.path === "function" ? row.path(ids, caller) : row.path);
 
 const all = (status: number): Record<Caller, number> => ({ admin: status, lead: status, marketing: status, investor: status, anonymous: status });
 const adminOnly = (ok: number): Record<Caller, number> => ({ admin: ok, lead: 403, marketing: 403, investor: 403, anonymous: 401 });
@@ -110,6 +137,44 @@ const DEMO_SLUG = "aldermere-phase-2";
 
 /** Real objects of each audience (see MatrixIds): the audience rules, not just the 404 path. */
 const REAL_OBJECT_ROWS: MatrixRow[] = [
+  // Every route that names an object is called with a real one too (the test "has a row with a
+  // real object for every route that names one" holds it). Deleting rows meet each caller's own object.
+  { method: "delete", path: (ids, c) => `/api/subscribers/${ids.own[c].subscriber}`, expect: staffOnly(200) },
+  { method: "delete", path: (ids, c) => `/api/facility/units/${ids.own[c].unit}`, expect: writers(204) },
+  { method: "delete", path: (ids, c) => `/api/facility/systems/${ids.own[c].system}`, expect: writers(204) },
+  { method: "delete", path: (ids, c) => `/api/facility/blocks/${ids.own[c].block}`, expect: writers(204) },
+  { method: "delete", path: (ids, c) => `/api/facility/features/${ids.own[c].feature}`, expect: writers(204) },
+  { method: "delete", path: (ids, c) => `/api/site-areas/${ids.own[c].siteArea}`, expect: writers(204) },
+  { method: "patch", path: (ids, c) => `/api/mitigations/${ids.own[c].mitigation}`, body: {}, expect: writers(400) },
+  { method: "delete", path: (ids, c) => `/api/mitigations/${ids.own[c].mitigation}`, expect: writers(204) },
+  { method: "delete", path: (ids, c) => `/api/risks/${ids.own[c].risk}`, expect: writers(204) },
+  { method: "delete", path: (ids, c) => `/api/budget-changes/${ids.own[c].change}`, expect: writers(204) },
+  { method: "delete", path: (ids, c) => `/api/documents/${ids.own[c].document}`, expect: writers(204) },
+  { method: "delete", path: (ids, c) => `/api/review-links/${ids.own[c].reviewLink}`, expect: staffOnly(204) },
+  { method: "get", path: (ids) => `/api/outbox/${ids.outboxMessage}`, expect: adminOnly(200) },
+  { method: "get", path: (ids) => `/api/outbox/${ids.outboxMessage}/raw`, expect: adminOnly(200) },
+  { method: "get", path: (ids) => `/api/me/digests/${ids.investorDigest}`, expect: investorOnly(200) },
+  { method: "post", path: (ids) => `/api/media/${ids.unreviewedPhoto}/review`, body: {}, expect: mediaReviewers(400) },
+  // A ready photo has nothing to retry; a finished run nothing to pause or resume; a step already passed is refused.
+  { method: "post", path: (ids) => `/api/media/${ids.clearedPhoto}/retry`, expect: staffOnly(409) },
+  { method: "post", path: (ids) => `/api/digests/runs/${ids.digestRun}/pause`, expect: staffOnly(409) },
+  { method: "post", path: (ids) => `/api/digests/runs/${ids.digestRun}/resume`, expect: staffOnly(409) },
+  { method: "get", path: (ids) => `/api/posts/${ids.postInReview}/revisions/1/diff`, expect: staffOnly(200) },
+  { method: "post", path: (ids) => `/api/posts/${ids.draftPost}/revisions/1/restore`, expect: staffOnly(200) },
+  { method: "post", path: (ids) => `/api/posts/${ids.postInReview}/submit`, expect: staffOnly(409) },
+  { method: "post", path: (ids) => `/api/posts/${ids.publicPost}/approve`, expect: writers(409) },
+  { method: "post", path: (ids) => `/api/posts/${ids.publicPost}/publish`, expect: writers(409) },
+  { method: "post", path: (ids) => `/api/posts/${ids.postInReview}/withdraw`, expect: writers(409) },
+  { method: "patch", path: (ids) => `/api/stories/${ids.draftStory}`, body: {}, expect: staffOnly(400) },
+  { method: "get", path: (ids) => `/api/stories/${ids.draftStory}/history`, expect: staffOnly(200) },
+  { method: "get", path: (ids) => `/api/stories/${ids.draftStory}/revisions/1/diff`, expect: staffOnly(200) },
+  { method: "post", path: (ids) => `/api/stories/${ids.draftStory}/revisions/1/restore`, expect: staffOnly(200) },
+  { method: "post", path: (ids) => `/api/stories/${ids.publishedStory}/submit`, expect: staffOnly(409) },
+  { method: "post", path: (ids) => `/api/stories/${ids.publishedStory}/approve`, expect: writers(409) },
+  { method: "post", path: (ids) => `/api/stories/${ids.draftStory}/return`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/stories/${ids.publishedStory}/publish`, expect: writers(409) },
+  { method: "post", path: (ids) => `/api/stories/${ids.draftStory}/schedule`, body: {}, expect: writers(400) },
+  { method: "post", path: (ids) => `/api/stories/${ids.draftStory}/withdraw`, expect: writers(409) },
   // Programme: an internal milestone exists for staff only; an investor one for investors too.
   { method: "get", path: (ids) => `/api/milestones/${ids.internalMilestone}/events`, expect: staffSeeOthersNotFound(200) },
   { method: "get", path: (ids) => `/api/milestones/${ids.internalMilestone}/drivers`, expect: staffSeeOthersNotFound(200) },
@@ -497,6 +562,9 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { method: "get", path: "/robots.txt", expect: all(200) },
   { method: "get", path: "/projects/aldermere-phase-2/updates/no-such-update", expect: all(200) },
   { method: "get", path: "/projects/aldermere-phase-2/stories/no-such-story", expect: all(200) },
+  // A published public story's page is served to everyone; a draft's address gives nothing of it away (the same shell as an unknown one).
+  { method: "get", path: (ids) => `/projects/${DEMO_SLUG}/stories/${ids.publishedStorySlug}`, expect: all(200) },
+  { method: "get", path: (ids) => `/projects/${DEMO_SLUG}/stories/${ids.draftStorySlug}`, expect: all(200) },
   { method: "get", path: "/api/projects/aldermere-phase-2/gallery", expect: all(200) },
   // The home page's builds and the project's hero photograph (decision 055): read by everyone; chosen by leads and admins.
   { method: "get", path: "/api/home", expect: all(200) },

@@ -2,7 +2,9 @@ import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { DEMO, newClient, signIn, startTestApp, type Agent, type TestApp } from "../helpers/app.ts";
 import { plainPdf } from "./documents-fixtures.ts";
-import { pathOf, ROLE_MATRIX, ROLE_MATRIX_WITH_HEAD, type Caller, type MatrixIds, type MatrixRow } from "./role-matrix.table.ts";
+import { readerRows } from "../helpers/subscriber-rows.ts";
+import { postInput } from "./posts-fixtures.ts";
+import { pathOf, ROLE_MATRIX, ROLE_MATRIX_WITH_HEAD, type Caller, type MatrixIds, type MatrixRow, type OwnObjects } from "./role-matrix.table.ts";
 
 const SLUG = "aldermere-phase-2";
 let t: TestApp;
@@ -82,6 +84,27 @@ async function resolveIds(): Promise<MatrixIds> {
   const record = await matrixRecord();
   const reports = await matrixReports();
 
+  // A published story of the demo: a step it has already passed is refused.
+  const publishedRow = (await t.db("stories").where({ project_id: project.id, status: "published", audience: "public" }).orderBy("id").first("id", "slug")) as { id: number; slug: string } | undefined;
+  if (!publishedRow) throw new Error("the demo has no published public photo story");
+  const published = { id: Number(publishedRow.id), slug: publishedRow.slug };
+
+  // Made in the matrix's own project, so the demo's lists stay as seeded for the other files.
+  const recordProject = (await t.db("projects").where({ slug: record.recordSlug }).first("id")) as { id: number };
+  const draftPostRes = await marketing.agent.post(`/api/projects/${record.recordSlug}/posts`).set("X-CSRF-Token", marketing.csrf).send(postInput(null, { title: `Role matrix draft update ${Date.now()}` }));
+  if (draftPostRes.status !== 201) throw new Error(`draft update: ${draftPostRes.status} ${JSON.stringify(draftPostRes.body).slice(0, 200)}`);
+  const draftPost = draftPostRes.body as { id: number };
+
+  // A message in the mail sink, as the sink stores one.
+  const raw = "From: site@example.test\r\nTo: reader@example.test\r\nSubject: Role matrix\r\n\r\nA message.\r\n";
+  const [outboxMessage] = await t.db("mail_messages").insert({ envelope_from: "site@example.test", to_header: "reader@example.test", from_header: "site@example.test", subject: "Role matrix", text: "A message.", headers: "{}", raw: Buffer.from(raw) });
+
+  const investor = await signIn(t, DEMO.investor);
+  const archive = (await get(investor.agent, "/api/me/digests")) as { items: Array<{ id: number }> };
+  const investorDigest = pick(archive.items, "digest in the demo investor's archive", () => true).id;
+
+  const own = await ownObjects(facility.facilitySlug, record.recordSlug, documents.documentsSlug, Number(recordProject.id), inReviewRow.id);
+
   return {
     internalMilestone: pick(milestones, "internal milestone", (m) => m.audience === "internal").id,
     investorMilestone: pick(milestones, "investor milestone", (m) => m.audience === "investor").id,
@@ -108,7 +131,57 @@ async function resolveIds(): Promise<MatrixIds> {
     ...documents,
     ...record,
     ...reports,
+    publishedStory: Number(published.id),
+    publishedStorySlug: published.slug,
+    draftPost: Number(draftPost.id),
+    outboxMessage: Number(outboxMessage),
+    investorDigest: Number(investorDigest),
+    own,
   };
+}
+
+/** One set of objects for each caller to delete for itself, made through the API (investor audience where there is one). */
+async function ownObjects(facilitySlug: string, recordSlug: string, documentsSlug: string, projectId: number, postInReview: number): Promise<Record<Caller, OwnObjects>> {
+  const lead = await signIn(t, DEMO.lead);
+  const leadId = Number(((await t.db("users").where({ email: DEMO.lead }).first("id")) as { id: number }).id);
+  const post = async (path: string, body: object): Promise<number> => {
+    const res = await lead.agent.post(path).set("X-CSRF-Token", lead.csrf).send(body);
+    if (res.status !== 201) throw new Error(`${path}: ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
+    return Number(res.body.id);
+  };
+  const pdf = await plainPdf(1, "Matrix own document");
+  const sets = {} as Record<Caller, OwnObjects>;
+  for (const [i, caller] of callers.entries()) {
+    const tag = `${caller} ${Date.now().toString(36)}`;
+    const [subscriber] = await t.db("subscribers").insert(readerRows(projectId, 1, `own-${caller}-${Date.now().toString(36)}.example.test`, Date.now()));
+    const system = await post(`/api/projects/${facilitySlug}/facility/systems`, { name: `Own fans (${tag})`, kind: "air_movement", audience: "investor", neededPerSystem: 1 });
+    const newRisk = () => post(`/api/projects/${recordSlug}/risks`, { title: `Own risk (${tag})`, category: "supply_chain", ownerId: leadId, likelihood: 2, impact: 2, audience: "investor" });
+    const [risk, riskWithAction] = [await newRisk(), await newRisk()];
+    const document = await lead.agent
+      .post(`/api/projects/${documentsSlug}/documents`)
+      .set("X-CSRF-Token", lead.csrf)
+      .field("title", `Own certificate (${tag})`)
+      .field("category", "certificate")
+      .field("audience", "investor")
+      .field("organisationIds", "[]")
+      .attach("file", pdf, "own.pdf");
+    if (document.status !== 201) throw new Error(`own document: ${document.status} ${JSON.stringify(document.body).slice(0, 200)}`);
+    sets[caller] = {
+      subscriber: Number(subscriber),
+      block: await post(`/api/projects/${facilitySlug}/facility/blocks`, { name: `Own hall (${tag})`, racks: 10, itKw: 100, maxKwPerRack: 10, audience: "investor" }),
+      system,
+      unit: await post(`/api/facility/systems/${system}/units`, { label: `Fan ${i + 1}` }),
+      feature: await post(`/api/projects/${facilitySlug}/facility/features`, { kind: "client", name: `Own room (${tag})`, status: "planned", audience: "investor" }),
+      siteArea: await post(`/api/projects/${facilitySlug}/site-areas`, { name: `Own yard (${tag})`, kind: "hall", audience: "investor", x: 2 + 3 * i, y: 2, w: 2, h: 2 }),
+      risk,
+      riskWithAction,
+      mitigation: await post(`/api/risks/${riskWithAction}/mitigations`, { description: `Own action (${tag})`, ownerId: leadId }),
+      change: await post(`/api/projects/${recordSlug}/budget-changes`, { description: `Own change (${tag})`, amount: 1_000, audience: "investor" }),
+      document: Number(document.body.id),
+      reviewLink: await post(`/api/posts/${postInReview}/review-links`, { name: `Own Reviewer ${i + 1}`, email: `own.reviewer.${caller}@example.test` }),
+    };
+  }
+  return sets;
 }
 
 /** Monthly reports of the matrix's own, made through the API in a project of its own: an issued investor report, a draft, an issued internal report. */
@@ -242,7 +315,7 @@ describe("role matrix: every route × every caller", () => {
       const rows = [...ROLE_MATRIX_WITH_HEAD].sort((a, b) => Number(a.path === "/api/auth/logout") - Number(b.path === "/api/auth/logout"));
       const { agent, csrf } = await clientFor(caller);
       for (const row of rows) {
-        const path = pathOf(row, ids);
+        const path = pathOf(row, ids, caller);
         let req = agent[row.method](path).set("X-CSRF-Token", csrf);
         if (row.body !== undefined) req = req.send(row.body as object);
         const res = await req;
@@ -263,6 +336,47 @@ describe("role matrix: every route × every caller", () => {
     const heads = ROLE_MATRIX_WITH_HEAD.filter((r) => r.method === "head");
     expect(gets.length).toBeGreaterThan(50);
     expect(heads.map((r) => [pathOf(r, ids), r.expect])).toEqual(gets.map((r) => [pathOf(r, ids), r.expect]));
+  });
+});
+
+/** Every route the app serves, as Express holds them: method and path pattern (`/api/risks/:id`). */
+function servedRoutes(): Array<{ method: string; pattern: string }> {
+  type Layer = { rawPath?: unknown; route?: { path: string; methods: Record<string, boolean> }; handle?: { stack?: Layer[] } };
+  const out: Array<{ method: string; pattern: string }> = [];
+  const walk = (stack: Layer[], prefix: string) => {
+    for (const layer of stack) {
+      if (layer.route) for (const method of Object.keys(layer.route.methods)) out.push({ method, pattern: prefix + layer.route.path });
+      else if (layer.handle?.stack) walk(layer.handle.stack, prefix + (typeof layer.rawPath === "string" && layer.rawPath !== "/" ? layer.rawPath : ""));
+    }
+  };
+  walk((t.plumbline.app as unknown as { router: { stack: Layer[] } }).router.stack, "");
+  return out;
+}
+
+const matches = (pattern: string, path: string) => new RegExp(`^${pattern.replace(/\./g, "\\.").replace(/:[A-Za-z]+/g, "[^/]+")}$`).test(path.split("?")[0]!);
+
+describe("role matrix: coverage", () => {
+  // The single-page fallback serves every other page path; the page rows name those paths.
+  const served = () => servedRoutes().filter((r) => r.pattern !== "/{*splat}");
+
+  it("has a row for every route the app serves", () => {
+    const routes = served();
+    expect(routes.length).toBeGreaterThan(200);
+    const missing = routes.filter((r) => !ROLE_MATRIX.some((row) => row.method === r.method && matches(r.pattern, pathOf(row, ids))));
+    expect(missing).toEqual([]);
+  });
+
+  it("has a row with a real object for every route that names one", () => {
+    // A row meets a real object when its path comes from `MatrixIds` (the seeded demo, or objects
+    // made through the API) or names the demo's own (its slug, milestone 1, user 1); a made-up id
+    // or name proves only the 404. Secret links are called here with a link of the right shape
+    // whose signature is wrong; their own tests open real ones, which only their owner is given.
+    const unknown = /999999999|no-such|does-not-exist|nonexistent/;
+    const real = ROLE_MATRIX.filter((row) => typeof row.path === "function" || !unknown.test(row.path));
+    const missing = served()
+      .filter((r) => r.pattern.includes(":"))
+      .filter((r) => !real.some((row) => row.method === r.method && callers.every((c) => matches(r.pattern, pathOf(row, ids, c)))));
+    expect(missing).toEqual([]);
   });
 });
 
