@@ -1,11 +1,10 @@
 import { useQuery, useSuspenseQuery } from "@tanstack/react-query";
 import { useState } from "react";
 import { Button } from "../../components/ui/button.tsx";
-import { Notice, Sheet } from "../../components/ui/sheet.tsx";
+import { Sheet } from "../../components/ui/sheet.tsx";
 import { formatDate } from "../../lib/format.ts";
 import { officePageLoader } from "../../lib/office-page.tsx";
-import { canKeepRecord, RecordPage } from "../../lib/record.tsx";
-import { meQueryOptions } from "../../lib/session.ts";
+import { RecordPage } from "../../lib/record.tsx";
 import { budgetChangesQueryOptions, budgetMilestonesQueryOptions, budgetPositionQueryOptions, budgetProjectQueryOptions, budgetProjectsQueryOptions, budgetRisksQueryOptions } from "./api.ts";
 import { ChangeForm } from "./components/change-form.tsx";
 import { ChangeTable } from "./components/change-table.tsx";
@@ -56,10 +55,5 @@ function BudgetBody({ slug }: { slug: string }) {
 
 /** Site office › Budget: changes, contingency and the estimate at completion (lead and admin). */
 export function BudgetPage() {
-  const me = useSuspenseQuery(meQueryOptions()).data;
-  return (
-    <RecordPage projects={budgetProjectsQueryOptions} sheet="Site office · Budget" title="Budget and contingency" description="The original budget, approved changes, the contingency and the projected final cost, with the reasoning behind each figure.">
-      {(slug) => (canKeepRecord(me) ? <BudgetBody slug={slug} /> : <Notice>The budget is kept by project leads and administrators; money figures are not shared with other roles.</Notice>)}
-    </RecordPage>
-  );
+  return <RecordPage projects={budgetProjectsQueryOptions} sheet="Site office · Budget" title="Budget and contingency" description="The original budget, approved changes, the contingency and the projected final cost, with the reasoning behind each figure." body={BudgetBody} keepersOnly="The budget is kept by project leads and administrators; money figures are not shared with other roles." />;
 }

@@ -73,9 +73,5 @@ function DecisionsBody({ slug }: { slug: string }) {
 
 /** Site office › Decisions: what the investors, lender or board are asked to decide, and by when. */
 export function DecisionsPage() {
-  return (
-    <RecordPage projects={decisionProjectsQueryOptions} sheet="Site office · Decisions" title="Decisions needed" description="Requests to the investors, the lender or the board: the options, the recommendation, the date it is needed by, and the outcome once decided.">
-      {(slug) => <DecisionsBody slug={slug} />}
-    </RecordPage>
-  );
+  return <RecordPage projects={decisionProjectsQueryOptions} sheet="Site office · Decisions" title="Decisions needed" description="Requests to the investors, the lender or the board: the options, the recommendation, the date it is needed by, and the outcome once decided." body={DecisionsBody} />;
 }

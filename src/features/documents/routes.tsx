@@ -65,9 +65,5 @@ function DocumentsBody({ slug }: { slug: string }) {
 
 /** Site office › Documents: the library, its versions, and the log of who opened what. */
 export function DocumentsPage() {
-  return (
-    <RecordPage projects={documentProjectsQueryOptions} sheet="Site office · Documents" title="Documents" description="Monitoring reports, lender packs, certificates and other papers for investors, each copy traceable to its reader.">
-      {(slug) => <DocumentsBody slug={slug} />}
-    </RecordPage>
-  );
+  return <RecordPage projects={documentProjectsQueryOptions} sheet="Site office · Documents" title="Documents" description="Monitoring reports, lender packs, certificates and other papers for investors, each copy traceable to its reader." body={DocumentsBody} />;
 }

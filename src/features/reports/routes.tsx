@@ -73,11 +73,7 @@ function ReportsBody({ slug }: { slug: string }) {
 
 /** Site office › Reports: the monthly investor report, drafted from the record, issued, corrected. */
 export function ReportsPage() {
-  return (
-    <RecordPage projects={reportProjectsQueryOptions} sheet="Site office · Reports" title="Monthly reports" description="The investors' monthly report, drawn from the record as it stood at each month's end. Draft it, add your commentary, preview the PDF, issue it.">
-      {(slug) => <ReportsBody slug={slug} />}
-    </RecordPage>
-  );
+  return <RecordPage projects={reportProjectsQueryOptions} sheet="Site office · Reports" title="Monthly reports" description="The investors' monthly report, drawn from the record as it stood at each month's end. Draft it, add your commentary, preview the PDF, issue it." body={ReportsBody} />;
 }
 
 export const reportLoader: RouteLoader = (qc) => ({ params }) => primeWhenAllowed(qc, REPORT_ROLES, () => qc.ensureQueryData(reportQueryOptions(idParam(params.id))));

@@ -134,9 +134,5 @@ function RisksBody({ slug }: { slug: string }) {
 
 /** Site office › Risks: the register of risks and issues. */
 export function RisksPage() {
-  return (
-    <RecordPage projects={riskProjectsQueryOptions} sheet="Site office · Risks" title="Risks and issues" description="What could go wrong, who owns it, what is being done, and what has already happened.">
-      {(slug) => <RisksBody slug={slug} />}
-    </RecordPage>
-  );
+  return <RecordPage projects={riskProjectsQueryOptions} sheet="Site office · Risks" title="Risks and issues" description="What could go wrong, who owns it, what is being done, and what has already happened." body={RisksBody} />;
 }

@@ -1,6 +1,6 @@
 import { z } from "zod";
-import { CalendarDateSchema } from "./common.ts";
-import { RecordAudienceSchema, recordEventShape } from "./risks.ts";
+import { CalendarDateSchema, NamedSchema, patchShape } from "./common.ts";
+import { RecordAudienceSchema, recordEventShape, RiskRefSchema } from "./risks.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -57,11 +57,7 @@ export const BudgetChangeCreateInputSchema = z
 export type BudgetChangeCreateInput = z.infer<typeof BudgetChangeCreateInputSchema>;
 
 /** PATCH: approval completeness is checked by the service against the stored row merged with the patch. */
-export const BudgetChangePatchInputSchema = z.strictObject({
-  ...z.object(CHANGE_FIELDS).partial().shape,
-  note: Text.optional(),
-  version: z.number().int().positive(),
-});
+export const BudgetChangePatchInputSchema = z.strictObject({ ...patchShape(CHANGE_FIELDS), note: Text.optional() });
 export type BudgetChangePatchInput = z.infer<typeof BudgetChangePatchInputSchema>;
 
 export const BudgetChangeListQuerySchema = z.strictObject({ status: BudgetChangeStatusSchema.optional() });
@@ -74,22 +70,13 @@ export const BudgetSettingsInputSchema = z.strictObject({
 });
 export type BudgetSettingsInput = z.infer<typeof BudgetSettingsInputSchema>;
 
-const Named = z.object({ id: z.number(), name: z.string() });
-
 const BudgetChangeAnswerSchema = z.object({
   id: z.number(),
   /** C-001 … per project. */
   reference: z.string(),
-  description: z.string(),
-  detail: z.string(),
-  amount: z.number(),
-  status: BudgetChangeStatusSchema,
-  approvedBy: z.string().nullable(),
-  approvedOn: z.string().nullable(),
-  drawsOnContingency: z.boolean(),
-  linkedMilestones: z.array(Named),
-  linkedRisks: z.array(z.object({ id: z.number(), reference: z.string(), title: z.string() })),
-  audience: RecordAudienceSchema,
+  ...CHANGE_FIELDS,
+  linkedMilestones: z.array(NamedSchema),
+  linkedRisks: z.array(RiskRefSchema),
   version: z.number(),
   updatedAt: z.string(),
 });

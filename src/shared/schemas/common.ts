@@ -8,6 +8,20 @@ export const STAFF_ROLES = ["admin", "lead", "marketing"] as const satisfies rea
 export const AudienceSchema = z.enum(["public", "investor", "internal"]);
 export type Audience = z.infer<typeof AudienceSchema>;
 
+/** The version a write read: a stale one is refused with 409. */
+export const VersionSchema = z.number().int().positive();
+
+/**
+ * A PATCH body's fields: any subset of the entity's fields, without their defaults (a field left
+ * out keeps its stored value), and the version read.
+ */
+export function patchShape<S extends z.ZodRawShape>(fields: S) {
+  return { ...z.object(fields).partial().shape, version: VersionSchema };
+}
+
+/** A linked record as an answer names it. */
+export const NamedSchema = z.object({ id: z.number(), name: z.string() });
+
 export const IdParamSchema = z.strictObject({ id: z.coerce.number().int().positive() });
 
 export const EmailSchema = z

@@ -1,6 +1,6 @@
 import { z } from "zod";
-import { CalendarDateSchema } from "./common.ts";
-import { RecordAudienceSchema, recordEventShape } from "./risks.ts";
+import { CalendarDateSchema, NamedSchema, patchShape, VersionSchema } from "./common.ts";
+import { RecordAudienceSchema, recordEventShape, RiskRefSchema } from "./risks.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -53,11 +53,7 @@ export const DecisionCreateInputSchema = z.strictObject({
 });
 export type DecisionCreateInput = z.infer<typeof DecisionCreateInputSchema>;
 
-export const DecisionPatchInputSchema = z.strictObject({
-  ...z.object(DECISION_FIELDS).partial().shape,
-  note: Text.optional(),
-  version: z.number().int().positive(),
-});
+export const DecisionPatchInputSchema = z.strictObject({ ...patchShape(DECISION_FIELDS), note: Text.optional() });
 export type DecisionPatchInput = z.infer<typeof DecisionPatchInputSchema>;
 
 /** POST /api/decisions/:id/outcome: records the decision (status → decided). */
@@ -67,39 +63,29 @@ export const DecisionOutcomeInputSchema = z.strictObject({
   /** Who decided, in words (a committee, the lender, a named person). */
   decidedBy: plainText().min(1, "is required").max(120),
   decidedOn: CalendarDateSchema,
-  version: z.number().int().positive(),
+  version: VersionSchema,
 });
 export type DecisionOutcomeInput = z.infer<typeof DecisionOutcomeInputSchema>;
 
 /** POST /api/decisions/:id/withdraw */
-export const DecisionWithdrawInputSchema = z.strictObject({ reason: Text.min(1, "is required"), version: z.number().int().positive() });
+export const DecisionWithdrawInputSchema = z.strictObject({ reason: Text.min(1, "is required"), version: VersionSchema });
 
 export const DecisionListQuerySchema = z.strictObject({ status: DecisionStatusSchema.optional() });
-
-const Named = z.object({ id: z.number(), name: z.string() });
 
 const DecisionAnswerSchema = z.object({
   id: z.number(),
   /** D-001 … per project. */
   reference: z.string(),
-  title: z.string(),
-  question: z.string(),
-  background: z.string(),
-  options: z.array(z.object({ label: z.string(), consequence: z.string(), cost: z.number().nullable() })),
-  recommendedOption: z.number().nullable(),
-  recommendation: z.string(),
-  decider: z.string(),
-  neededBy: z.string(),
+  ...z.object(DECISION_FIELDS).omit({ documentIds: true }).shape,
   /** Days from today (project time zone) to neededBy; negative when overdue; null once decided or withdrawn. */
   daysLeft: z.number().nullable(),
   overdue: z.boolean(),
   status: DecisionStatusSchema,
   outcome: z.object({ chosenOption: z.number().nullable(), text: z.string(), decidedBy: z.string(), decidedOn: z.string(), recordedBy: z.string().nullable() }).nullable(),
   withdrawnReason: z.string().nullable(),
-  linkedMilestones: z.array(Named),
-  linkedRisks: z.array(z.object({ id: z.number(), reference: z.string(), title: z.string() })),
+  linkedMilestones: z.array(NamedSchema),
+  linkedRisks: z.array(RiskRefSchema),
   documents: z.array(z.object({ id: z.number(), title: z.string() })),
-  audience: RecordAudienceSchema,
   version: z.number(),
   updatedAt: z.string(),
 });

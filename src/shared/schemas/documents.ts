@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { CalendarDateSchema } from "./common.ts";
+import { CalendarDateSchema, NamedSchema, patchShape } from "./common.ts";
 import { RecordAudienceSchema } from "./risks.ts";
 import { plainText } from "./text.ts";
 
@@ -39,7 +39,7 @@ export const DocumentCreateFieldsSchema = z.strictObject({
 });
 export type DocumentCreateFields = z.infer<typeof DocumentCreateFieldsSchema>;
 
-export const DocumentPatchInputSchema = z.strictObject({ ...z.object(DOCUMENT_FIELDS).partial().shape, version: z.number().int().positive() });
+export const DocumentPatchInputSchema = z.strictObject(patchShape(DOCUMENT_FIELDS));
 export type DocumentPatchInput = z.infer<typeof DocumentPatchInputSchema>;
 
 /** The form fields of POST /api/documents/:id/versions (multipart, with `file`). */
@@ -78,13 +78,9 @@ const VersionAnswerSchema = z.object({
 
 const DocumentAnswerSchema = z.object({
   id: z.number(),
-  title: z.string(),
-  category: DocumentCategorySchema,
-  period: z.string(),
-  periodEnd: z.string().nullable(),
-  audience: RecordAudienceSchema,
+  ...z.object(DOCUMENT_FIELDS).omit({ organisationIds: true }).shape,
   /** Staff see the organisations it is limited to; investors an empty list. */
-  organisations: z.array(z.object({ id: z.number(), name: z.string() })),
+  organisations: z.array(NamedSchema),
   latestVersion: VersionAnswerSchema,
   /** Staff: every version; investors: every version too (each served stamped). */
   versions: z.array(VersionAnswerSchema),

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { AudienceSchema, CalendarDateSchema } from "./common.ts";
+import { AudienceSchema, CalendarDateSchema, patchShape, VersionSchema } from "./common.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -58,7 +58,7 @@ export const BlockCreateInputSchema = z.strictObject({
 });
 export type BlockCreateInput = z.infer<typeof BlockCreateInputSchema>;
 /** PATCH: any subset, with the version read (409 when someone saved in between). */
-export const BlockPatchInputSchema = z.strictObject({ ...z.object(BLOCK_FIELDS).partial().shape, version: z.number().int().positive() });
+export const BlockPatchInputSchema = z.strictObject(patchShape(BLOCK_FIELDS));
 export type BlockPatchInput = z.infer<typeof BlockPatchInputSchema>;
 
 // ---------------------------------------------------------------------------------------------
@@ -152,10 +152,9 @@ export const SystemCreateInputSchema = z
 export type SystemCreateInput = z.infer<typeof SystemCreateInputSchema>;
 /** PATCH: rating and unit, when either is sent, are checked together against the stored pair by the service. */
 export const SystemPatchInputSchema = z.strictObject({
-  ...z.object(SYSTEM_FIELDS).partial().shape,
+  ...patchShape(SYSTEM_FIELDS),
   // Without defaults: a figure left out of a PATCH keeps its stored value.
   design: z.strictObject(DESIGN_FIELDS).partial().optional(),
-  version: z.number().int().positive(),
 });
 export type SystemPatchInput = z.infer<typeof SystemPatchInputSchema>;
 
@@ -187,7 +186,7 @@ export const UnitCreateInputSchema = z.strictObject({
 export type UnitCreateInput = z.infer<typeof UnitCreateInputSchema>;
 
 /** PATCH: the label, tag or train (the stage moves by POST …/units/:id/stage). */
-export const UnitPatchInputSchema = z.strictObject({ ...z.object(UNIT_FIELDS).partial().shape, version: z.number().int().positive() });
+export const UnitPatchInputSchema = z.strictObject(patchShape(UNIT_FIELDS));
 export type UnitPatchInput = z.infer<typeof UnitPatchInputSchema>;
 
 /** POST …/units/:id/stage: a stage that goes backwards needs a note (422 otherwise). */
@@ -195,7 +194,7 @@ export const UnitStageInputSchema = z.strictObject({
   stage: UnitStageSchema,
   on: CalendarDateSchema.optional(),
   note: Notes.optional(),
-  version: z.number().int().positive(),
+  version: VersionSchema,
 });
 export type UnitStageInput = z.infer<typeof UnitStageInputSchema>;
 
@@ -245,10 +244,7 @@ export const FeatureCreateInputSchema = z
   .superRefine(featureFits);
 export type FeatureCreateInput = z.infer<typeof FeatureCreateInputSchema>;
 /** PATCH: the kind is fixed once created; status and layer are checked against it by the service. */
-export const FeaturePatchInputSchema = z.strictObject({
-  ...z.object(FEATURE_FIELDS).omit({ kind: true }).partial().shape,
-  version: z.number().int().positive(),
-});
+export const FeaturePatchInputSchema = z.strictObject(patchShape(z.object(FEATURE_FIELDS).omit({ kind: true }).shape));
 export type FeaturePatchInput = z.infer<typeof FeaturePatchInputSchema>;
 
 /** GET /api/projects/:slug/facility?at=YYYY-MM-DD (staff only may ask for another day). */
@@ -267,9 +263,7 @@ const Instant = z.string();
 
 const UnitAnswerSchema = z.object({
   id: z.number(),
-  label: z.string(),
-  tag: z.string(),
-  train: z.number(),
+  ...UNIT_FIELDS,
   /** ordered | delivered | installed | commissioned */
   status: z.enum(["ordered", "delivered", "installed", "commissioned"]),
   /** 1 … 5 when commissioned, else null. */
@@ -317,15 +311,7 @@ const FuelAnswerSchema = z.object({
 
 const BlockAnswerSchema = z.object({
   id: z.number(),
-  name: z.string(),
-  racks: z.number(),
-  itKw: z.number(),
-  maxKwPerRack: z.number(),
-  coolingApproach: z.string(),
-  containment: ContainmentSchema,
-  audience: AudienceSchema,
-  stage: z.string(),
-  notes: z.string(),
+  ...BLOCK_FIELDS,
   /** Only the milestones the caller may see. */
   dependsOn: z.array(z.number()),
   baselineReadyDate: z.string().nullable(),
@@ -342,17 +328,7 @@ export type BlockAnswer = z.infer<typeof BlockAnswerSchema>;
 
 const SystemAnswerSchema = z.object({
   id: z.number(),
-  name: z.string(),
-  kind: PlantKindSchema,
-  audience: AudienceSchema,
-  serves: z.array(z.number()),
-  neededPerSystem: z.number(),
-  independentSystems: z.number(),
-  ratingPerUnit: z.number().nullable(),
-  ratingUnit: RatingUnitSchema.nullable(),
-  design: DesignFiguresSchema,
-  linkedMilestones: z.array(z.number()),
-  notes: z.string(),
+  ...SYSTEM_FIELDS,
   units: z.array(UnitAnswerSchema),
   redundancy: RedundancyAnswerSchema,
   heat: HeatAnswerSchema.optional(),
@@ -361,17 +337,7 @@ const SystemAnswerSchema = z.object({
 });
 export type SystemAnswer = z.infer<typeof SystemAnswerSchema>;
 
-const FeatureAnswerSchema = z.object({
-  id: z.number(),
-  kind: FeatureKindSchema,
-  name: z.string(),
-  detail: z.string(),
-  layer: SecurityLayerSchema.nullable(),
-  status: FeatureStatusSchema,
-  statusDate: z.string().nullable(),
-  audience: AudienceSchema,
-  version: z.number(),
-});
+const FeatureAnswerSchema = z.object({ id: z.number(), ...FEATURE_FIELDS, version: z.number() });
 export type FeatureAnswer = z.infer<typeof FeatureAnswerSchema>;
 
 const RampPointSchema = z.object({ date: z.string(), racksBaseline: z.number(), racksForecast: z.number(), kwBaseline: z.number(), kwForecast: z.number() });

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { VersionSchema } from "./common.ts";
 import { RichTextDocSchema } from "./rich-text.ts";
 import { RecordAudienceSchema } from "./risks.ts";
 import { plainText } from "./text.ts";
@@ -30,14 +31,14 @@ export type ReportCreateInput = z.infer<typeof ReportCreateInputSchema>;
 export const ReportPatchInputSchema = z.strictObject({
   commentary: z.partialRecord(ReportSectionSchema, RichTextDocSchema.nullable()).optional(),
   audience: RecordAudienceSchema.optional(),
-  version: z.number().int().positive(),
+  version: VersionSchema,
 });
 export type ReportPatchInput = z.infer<typeof ReportPatchInputSchema>;
 
 /** POST /api/reports/:id/issue (lead, admin): freezes figures and PDF, notifies readers once. */
-export const ReportIssueInputSchema = z.strictObject({ version: z.number().int().positive() });
+export const ReportIssueInputSchema = z.strictObject({ version: VersionSchema });
 /** POST /api/reports/:id/correct (issued only): a new draft that will supersede it, saying what changed. */
-export const ReportCorrectInputSchema = z.strictObject({ note: plainText().min(1, "is required").max(2000), version: z.number().int().positive() });
+export const ReportCorrectInputSchema = z.strictObject({ note: plainText().min(1, "is required").max(2000), version: VersionSchema });
 
 /** GET /api/reports/:id/pdf?as=view|download (investors always stamped; drafts: staff preview). */
 export const ReportPdfQuerySchema = z.strictObject({ as: z.enum(["view", "download"]).default("download") });

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { CalendarDateSchema } from "./common.ts";
+import { CalendarDateSchema, NamedSchema, patchShape, VersionSchema } from "./common.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -88,12 +88,7 @@ export const RiskCreateInputSchema = z.strictObject({
 export type RiskCreateInput = z.infer<typeof RiskCreateInputSchema>;
 
 /** PATCH: any subset plus `status` and an optional note for the event; `version` read (409 when stale). */
-export const RiskPatchInputSchema = z.strictObject({
-  ...z.object(RISK_FIELDS).partial().shape,
-  status: RiskStatusSchema.optional(),
-  note: Text.optional(),
-  version: z.number().int().positive(),
-});
+export const RiskPatchInputSchema = z.strictObject({ ...patchShape(RISK_FIELDS), status: RiskStatusSchema.optional(), note: Text.optional() });
 export type RiskPatchInput = z.infer<typeof RiskPatchInputSchema>;
 
 /** POST /api/risks/:id/issue: the risk happened; an issue is opened from it and the risk marked `became_issue`. */
@@ -102,7 +97,7 @@ export const RiskToIssueInputSchema = z.strictObject({
   action: Text.default(""),
   dueDate: CalendarDateSchema.nullable().default(null),
   note: Text.optional(),
-  version: z.number().int().positive(),
+  version: VersionSchema,
 });
 export type RiskToIssueInput = z.infer<typeof RiskToIssueInputSchema>;
 
@@ -119,7 +114,7 @@ export const MitigationInputSchema = z.strictObject({
 });
 export type MitigationInput = z.infer<typeof MitigationInputSchema>;
 /** PATCH: any subset (no defaults: a field left out keeps its value); `version` read (409 when stale). */
-export const MitigationPatchInputSchema = z.strictObject({ ...z.object(MITIGATION_FIELDS).partial().shape, version: z.number().int().positive() });
+export const MitigationPatchInputSchema = z.strictObject(patchShape(MITIGATION_FIELDS));
 export type MitigationPatchInput = z.infer<typeof MitigationPatchInputSchema>;
 
 /** GET /api/projects/:slug/risks?status&category&ownerId&band&kind&since — filters all optional. */
@@ -155,7 +150,10 @@ export const DEFAULT_RISK_SCALE: RiskScale = { likelihoodLevels: 5, impactLevels
 // Answers
 // ---------------------------------------------------------------------------------------------
 
-const Named = z.object({ id: z.number(), name: z.string() });
+const Named = NamedSchema;
+
+/** A risk as other records link it: its id, reference and title. */
+export const RiskRefSchema = z.object({ id: z.number(), reference: z.string(), title: z.string() });
 
 /**
  * What a row of the investor record's history says after its own id and its subject's: the field
@@ -170,49 +168,29 @@ export const recordEventShape = {
   note: z.string().nullable(),
 };
 
-const MitigationAnswerSchema = z.object({
-  id: z.number(),
-  description: z.string(),
-  owner: Named,
-  dueDate: z.string().nullable(),
-  status: ActionStatusSchema,
-  overdue: z.boolean(),
-  version: z.number(),
-});
+const MitigationAnswerSchema = z.object({ id: z.number(), ...z.object(MITIGATION_FIELDS).omit({ ownerId: true }).shape, owner: Named, overdue: z.boolean(), version: z.number() });
 
 const RiskAnswerSchema = z.object({
   id: z.number(),
   kind: RiskKindSchema,
   /** R-001 for risks, I-001 for issues, per project. */
   reference: z.string(),
-  title: z.string(),
-  description: z.string(),
-  cause: z.string(),
-  effect: z.string(),
-  category: RiskCategorySchema,
+  ...z.object(RISK_FIELDS).omit({ ownerId: true }).shape,
   owner: Named,
-  likelihood: z.number(),
-  impact: z.number(),
   score: z.number(),
   band: RiskBandSchema,
   trend: RiskTrendSchema,
   /** The score at the start of the window (null when the item is newer). */
   scoreAtWindowStart: z.number().nullable(),
-  costExposure: z.object({ min: z.number(), mostLikely: z.number(), max: z.number(), probability: z.number() }).nullable(),
   /** probability × most likely, minor units. */
   expectedCost: z.number().nullable(),
   /** probability × (min + 4·most likely + max) / 6, minor units. */
   expectedCostPert: z.number().nullable(),
-  scheduleDays: z.number().nullable(),
   /** Only the linked milestones, blocks and systems the caller may see. */
   linkedMilestones: z.array(Named),
   linkedBlocks: z.array(Named),
   linkedSystems: z.array(Named),
   status: RiskStatusSchema,
-  audience: RecordAudienceSchema,
-  impactNow: z.string(),
-  action: z.string(),
-  dueDate: z.string().nullable(),
   /** For an issue opened from a risk, the risk's id and reference; for such a risk, its issue's. */
   fromRisk: z.object({ id: z.number(), reference: z.string() }).nullable(),
   issue: z.object({ id: z.number(), reference: z.string() }).nullable(),

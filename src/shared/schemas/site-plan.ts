@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { AudienceSchema } from "./common.ts";
+import { AudienceSchema, patchShape } from "./common.ts";
 import { MilestoneStatusSchema } from "./programme.ts";
 import { plainText } from "./text.ts";
 import { SITE_GRID } from "../domain/site-plan.ts";
@@ -36,7 +36,7 @@ export const SiteAreaCreateInputSchema = z.strictObject(AREA_FIELDS);
 export type SiteAreaCreateInput = z.infer<typeof SiteAreaCreateInputSchema>;
 
 /** PATCH /api/site-areas/:id: any of the fields, with the version the editor loaded (409 when stale). */
-export const SiteAreaPatchInputSchema = z.strictObject({ ...z.object(AREA_FIELDS).partial().shape, version: z.number().int().positive() });
+export const SiteAreaPatchInputSchema = z.strictObject(patchShape(AREA_FIELDS));
 export type SiteAreaPatchInput = z.infer<typeof SiteAreaPatchInputSchema>;
 
 /** One area as a caller sees it; `version` only for staff, who edit. */
