@@ -125,11 +125,12 @@ export function pageCount(total: number, pageSize: number): number {
 }
 
 /**
- * GET a list whose total comes in `X-Total-Count` (the posts contract). `api.get` returns
- * bodies only, so this reads the header itself and raises the same error type.
+ * GET one page of a list whose total comes in `X-Total-Count` (the posts contract), `query` its
+ * filters; page 1 is left out of the address, so the first page and the plain list are one read.
+ * `api.get` returns bodies only, so this reads the header itself and raises the same error type.
  */
-export async function getPage<T>(path: string): Promise<Page<T>> {
-  const res = await transport(path, { headers: { Accept: "application/json" }, credentials: "same-origin" });
+export async function getPage<T>(path: string, { page, ...query }: Record<string, string | number | boolean | undefined | null> & { page?: number } = {}): Promise<Page<T>> {
+  const res = await transport(`${path}${qs({ ...query, page: page && page > 1 ? page : undefined })}`, { headers: { Accept: "application/json" }, credentials: "same-origin" });
   const body: unknown = (res.headers.get("content-type") ?? "").includes("json") ? await res.json() : null;
   if (!res.ok) {
     const err = (body as ApiErrorBody | null)?.error;

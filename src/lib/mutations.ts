@@ -9,3 +9,12 @@ export function useRefreshingMutation<TData, TVars = void>(queryKey: QueryKey, o
   const qc = useQueryClient();
   return useMutation({ ...options, onSuccess: () => qc.invalidateQueries({ queryKey }) });
 }
+
+/**
+ * A write of a record feature: it refreshes every read under `queryKey` (the feature's whole key,
+ * so a list's order, a record and its history move together) and shows its own error where it was
+ * made, not as a toast (quiet).
+ */
+export function useQuietWrite<TData, TVars>(queryKey: QueryKey, mutationFn: (vars: TVars) => Promise<TData>) {
+  return useRefreshingMutation<TData, TVars>(queryKey, { mutationFn, meta: { quiet: true } });
+}

@@ -174,6 +174,7 @@ const ANSWERS = new Set([
   "media.RefusedFileSchema",
   "outbox.OutboxMessageSchema",
   "press-kits.PressUsageTermsSchema",
+  "projects.ProjectRefSchema",
   "projects.ProjectSchema",
   "review-links.ReviewLinkCreatedSchema",
   "review-links.ReviewLinkEventSchema",

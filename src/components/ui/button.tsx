@@ -10,6 +10,12 @@ const styles: Record<Variant, string> = {
   danger: "bg-sheet text-bad border border-bad hover:bg-[#fbeaea]",
 };
 
+/** A button's look, for a link that acts as one (a download, another page) as well as for buttons. */
+export function buttonClass(variant: Variant = "secondary", size: "sm" | "md" = "md"): string {
+  const pad = size === "sm" ? "px-2.5 py-1 text-sm" : "px-4 py-2 text-[0.95rem]";
+  return `inline-flex items-center justify-center gap-2 rounded-sm font-medium transition-colors ${pad} ${styles[variant]}`;
+}
+
 export interface ButtonProps extends ButtonHTMLAttributes<HTMLButtonElement> {
   variant?: Variant;
   size?: "sm" | "md";
@@ -20,14 +26,13 @@ export const Button = forwardRef<HTMLButtonElement, ButtonProps>(function Button
   { variant = "secondary", size = "md", busy = false, className = "", children, disabled, ...rest },
   ref,
 ) {
-  const pad = size === "sm" ? "px-2.5 py-1 text-sm" : "px-4 py-2 text-[0.95rem]";
   return (
     <button
       ref={ref}
       type="button"
       disabled={disabled || busy}
       aria-busy={busy || undefined}
-      className={`inline-flex items-center justify-center gap-2 rounded-sm font-medium transition-colors disabled:cursor-not-allowed disabled:opacity-60 ${pad} ${styles[variant]} ${className}`}
+      className={`${buttonClass(variant, size)} disabled:cursor-not-allowed disabled:opacity-60 ${className}`}
       {...rest}
     >
       {busy ? <span aria-hidden className="inline-block size-3 animate-spin rounded-full border-2 border-current border-r-transparent" /> : null}
@@ -36,11 +41,19 @@ export const Button = forwardRef<HTMLButtonElement, ButtonProps>(function Button
   );
 });
 
-/** A link drawn as the main action of a page head ("New update"). */
-export function PrimaryLink({ to, children }: { to: string; children: ReactNode }) {
+/** A link to another page drawn as a button; `primary` for the main action of a page head ("New update"). */
+export function ButtonLink({ to, variant = "secondary", children }: { to: string; variant?: Variant; children: ReactNode }) {
   return (
-    <Link to={to} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 font-medium text-white hover:bg-[#9a3412]">
+    <Link to={to} className={buttonClass(variant)}>
       {children}
     </Link>
+  );
+}
+
+export function PrimaryLink({ to, children }: { to: string; children: ReactNode }) {
+  return (
+    <ButtonLink to={to} variant="primary">
+      {children}
+    </ButtonLink>
   );
 }

@@ -1,4 +1,5 @@
 import type { UseQueryResult } from "@tanstack/react-query";
+import type { ReactNode } from "react";
 import { formatInstant } from "../../lib/format.ts";
 import { Notice, Spinner } from "./sheet.tsx";
 
@@ -13,14 +14,33 @@ export interface RecordedChange {
   note: string | null;
 }
 
+const asRecorded = (_: RecordedChange, v: string | null) => v ?? "none";
+
 /**
  * A record's history as the server keeps it, newest first, read through `events` (its query):
- * each change named in the feature's words (`fieldWord`), with the instant on the project's clock.
+ * each change named in the feature's words (`fieldWord`), its values as `value` words them, with
+ * the instant on the project's clock; `aside` adds a note after a change's values.
  */
-export function ChangeHistory({ events, fieldWord, timeZone, testId }: { events: UseQueryResult<RecordedChange[]>; fieldWord: Readonly<Record<string, string>>; timeZone: string; testId?: string }) {
+export function ChangeHistory<E extends RecordedChange>({
+  events,
+  fieldWord,
+  timeZone,
+  testId,
+  value = asRecorded,
+  aside,
+  empty = "No change recorded yet.",
+}: {
+  events: UseQueryResult<E[]>;
+  fieldWord: Readonly<Record<string, string>>;
+  timeZone: string;
+  testId?: string;
+  value?: (e: E, v: string | null) => string;
+  aside?: (e: E) => ReactNode;
+  empty?: string;
+}) {
   if (events.isPending) return <Spinner label="Loading the history" />;
   if (events.isError) return <Notice tone="error">{events.error.message}</Notice>;
-  if (events.data.length === 0) return <p className="text-sm text-ink-soft">No change recorded yet.</p>;
+  if (events.data.length === 0) return <p className="text-sm text-ink-soft">{empty}</p>;
   return (
     <ol className="flex flex-col divide-y divide-rule text-sm" aria-label="Changes, newest first" data-testid={testId}>
       {[...events.data].sort((a, b) => b.at.localeCompare(a.at) || b.id - a.id).map((e) => (
@@ -28,9 +48,10 @@ export function ChangeHistory({ events, fieldWord, timeZone, testId }: { events:
           <span className="font-medium">{fieldWord[e.field] ?? e.field}</span>
           {e.from !== null || e.to !== null ? (
             <>
-              : {e.from ?? "none"} → <span className="font-semibold">{e.to ?? "none"}</span>
+              : {value(e, e.from)} → <span className="font-semibold">{value(e, e.to)}</span>
             </>
           ) : null}
+          {aside?.(e)}
           <span className="block text-xs text-ink-faint">
             {formatInstant(e.at, timeZone)}
             {e.by ? ` · ${e.by}` : ""}

@@ -1,11 +1,8 @@
 import { queryOptions } from "@tanstack/react-query";
-import { AUDIT_PAGE_SIZE, type AuditEvent } from "#shared/schemas/users.ts";
-import { getPage, qs } from "../../lib/api-client.ts";
+import { AUDIT_PAGE_SIZE, type AuditEvent, type AuditQuery } from "#shared/schemas/users.ts";
+import { getPage } from "../../lib/api-client.ts";
 
-export interface AuditFilter {
-  action?: string;
-  page?: number;
-}
+export type AuditFilter = Partial<Pick<AuditQuery, "action" | "page">>;
 
 export const auditKeys = {
   all: ["audit"] as const,
@@ -16,5 +13,5 @@ export const auditKeys = {
 export const auditQueryOptions = (f: AuditFilter = {}) =>
   queryOptions({
     queryKey: auditKeys.list(f),
-    queryFn: () => getPage<AuditEvent>(`/api/audit${qs({ action: f.action, page: f.page && f.page > 1 ? f.page : undefined, pageSize: AUDIT_PAGE_SIZE })}`),
+    queryFn: () => getPage<AuditEvent>("/api/audit", { action: f.action, page: f.page, pageSize: AUDIT_PAGE_SIZE }),
   });

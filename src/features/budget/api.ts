@@ -3,7 +3,7 @@ import type { BudgetChangeAnswer, BudgetChangeCreateInput, BudgetChangePatchInpu
 import type { Milestone } from "#shared/schemas/programme.ts";
 import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { api } from "../../lib/api-client.ts";
-import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { useQuietWrite } from "../../lib/mutations.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
@@ -26,7 +26,7 @@ export const budgetRisksQueryOptions = (slug: string) => projectReadOptions<Risk
 
 export const useBudgetPosition = (slug: string) => useQuery(budgetPositionQueryOptions(slug));
 
-const useBudgetWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useRefreshingMutation<R, V>(budgetKeys.all, { mutationFn, meta: { quiet: true } });
+const useBudgetWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useQuietWrite<R, V>(budgetKeys.all, mutationFn);
 
 export const useCreateChange = (slug: string) => useBudgetWrite((input: BudgetChangeCreateInput) => api.post<BudgetChangeAnswer>(`/api/projects/${slug}/budget-changes`, input));
 export const usePatchChange = () => useBudgetWrite(({ id, patch }: { id: number; patch: BudgetChangePatchInput }) => api.patch<BudgetChangeAnswer>(`/api/budget-changes/${id}`, patch));

@@ -1,12 +1,12 @@
-import { queryOptions, useQuery } from "@tanstack/react-query";
+import { useQuery } from "@tanstack/react-query";
 import type { DecisionAnswer, DecisionCreateInput, DecisionEvent, DecisionOutcomeInput, DecisionPatchInput } from "#shared/schemas/decisions.ts";
 import type { DocumentAnswer } from "#shared/schemas/documents.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { api } from "../../lib/api-client.ts";
-import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { useQuietWrite } from "../../lib/mutations.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
-import { featureKeys } from "../../lib/query-keys.ts";
+import { featureKeys, readOptions } from "../../lib/query-keys.ts";
 
 /** Keys: decisions → project(slug) → kind, and decisions → decision(id) → events. */
 export const decisionKeys = {
@@ -26,11 +26,11 @@ export const decisionMilestonesQueryOptions = (slug: string) => projectReadOptio
 export const decisionRisksQueryOptions = (slug: string) => projectReadOptions<RiskAnswer[]>(decisionKeys.risks(slug), slug, "risks");
 export const decisionDocumentsQueryOptions = (slug: string) => projectReadOptions<DocumentAnswer[]>(decisionKeys.documents(slug), slug, "documents");
 
-export const decisionEventsQueryOptions = (id: number) => queryOptions({ queryKey: decisionKeys.events(id), queryFn: () => api.get<DecisionEvent[]>(`/api/decisions/${id}/events`) });
+export const decisionEventsQueryOptions = (id: number) => readOptions<DecisionEvent[]>(decisionKeys.events(id), `/api/decisions/${id}/events`);
 export const useDecisionEvents = (id: number) => useQuery(decisionEventsQueryOptions(id));
 
 // A write refreshes the whole feature: the list's order, days left and the decision's history move together.
-const useDecisionWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useRefreshingMutation<R, V>(decisionKeys.all, { mutationFn, meta: { quiet: true } });
+const useDecisionWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useQuietWrite<R, V>(decisionKeys.all, mutationFn);
 
 export const useCreateDecision = (slug: string) => useDecisionWrite((input: DecisionCreateInput) => api.post<DecisionAnswer>(`/api/projects/${slug}/decisions`, input));
 export const usePatchDecision = () => useDecisionWrite(({ id, patch }: { id: number; patch: DecisionPatchInput }) => api.patch<DecisionAnswer>(`/api/decisions/${id}`, patch));

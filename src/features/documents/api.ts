@@ -2,9 +2,9 @@ import { queryOptions, useQuery } from "@tanstack/react-query";
 import type { z } from "zod";
 import type { DocumentAnswer, DocumentCreateFields, DocumentPatchInput, DOCUMENTS_ANSWERS, ViewLogRow } from "#shared/schemas/documents.ts";
 import { api, qs } from "../../lib/api-client.ts";
-import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { useQuietWrite } from "../../lib/mutations.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
-import { featureKeys } from "../../lib/query-keys.ts";
+import { featureKeys, readOptions } from "../../lib/query-keys.ts";
 
 /** An investor organisation, with how many investor accounts belong to it. */
 export type OrganisationRow = z.infer<typeof DOCUMENTS_ANSWERS.organisation>;
@@ -23,10 +23,10 @@ export const documentProjectQueryOptions = (slug: string) => projectDetailQueryO
 
 export const documentsQueryOptions = (slug: string) => projectReadOptions<DocumentAnswer[]>(documentKeys.list(slug), slug, "documents");
 
-export const organisationsQueryOptions = () => queryOptions({ queryKey: documentKeys.organisations(), queryFn: () => api.get<OrganisationRow[]>("/api/organisations") });
+export const organisationsQueryOptions = () => readOptions<OrganisationRow[]>(documentKeys.organisations(), "/api/organisations");
 
 /** The view log of one document, every reader. */
-export const documentViewsQueryOptions = (id: number) => queryOptions({ queryKey: documentKeys.views(id), queryFn: () => api.get<ViewLogRow[]>(`/api/documents/${id}/views`) });
+export const documentViewsQueryOptions = (id: number) => readOptions<ViewLogRow[]>(documentKeys.views(id), `/api/documents/${id}/views`);
 export const useDocumentViews = (id: number) => useQuery(documentViewsQueryOptions(id));
 
 /** The view log of the project, of one reader or of all. */
@@ -51,7 +51,7 @@ function formOf(file: File, fields: Record<string, unknown>): FormData {
   return body;
 }
 
-const useDocumentWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useRefreshingMutation<R, V>(documentKeys.all, { mutationFn, meta: { quiet: true } });
+const useDocumentWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useQuietWrite<R, V>(documentKeys.all, mutationFn);
 
 export const useUploadDocument = (slug: string) =>
   useDocumentWrite(({ file, fields }: { file: File; fields: DocumentCreateFields }) => api.post<DocumentAnswer>(`/api/projects/${slug}/documents`, formOf(file, fields)));

@@ -4,6 +4,7 @@ import type { FacilityAnswer } from "#shared/schemas/facility.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { api, qs } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { readOptions } from "../../lib/query-keys.ts";
 
 export const enquiryKeys = {
   all: ["enquiries"] as const,
@@ -17,9 +18,9 @@ export const enquiryKeys = {
 /** The project an enquiry is about: its name, and whether visits are offered. */
 export const enquiryProjectQueryOptions = (slug: string) => queryOptions({ queryKey: enquiryKeys.project(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`), retry: false });
 /** The project's capacity blocks the caller may see: an enquiry "about this block" is pre-filled from one. */
-export const enquiryFacilityQueryOptions = (slug: string) => queryOptions({ queryKey: enquiryKeys.facility(slug), queryFn: () => api.get<FacilityAnswer>(`/api/projects/${slug}/facility`) });
+export const enquiryFacilityQueryOptions = (slug: string) => readOptions<FacilityAnswer>(enquiryKeys.facility(slug), `/api/projects/${slug}/facility`);
 export const enquiriesQueryOptions = (f: EnquiryListQuery) => queryOptions({ queryKey: enquiryKeys.list(f), queryFn: () => api.get<EnquiryRow[]>(`/api/enquiries${qs(f)}`) });
-export const enquiryQueryOptions = (id: number) => queryOptions({ queryKey: enquiryKeys.detail(id), queryFn: () => api.get<EnquiryRow>(`/api/enquiries/${id}`) });
+export const enquiryQueryOptions = (id: number) => readOptions<EnquiryRow>(enquiryKeys.detail(id), `/api/enquiries/${id}`);
 export const enquiryOwnersQueryOptions = () => queryOptions({ queryKey: enquiryKeys.owners(), queryFn: () => api.get<EnquiryOwner[]>("/api/enquiries/owners"), staleTime: 5 * 60_000 });
 
 export function useSendEnquiry(slug: string) {

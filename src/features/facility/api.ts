@@ -1,4 +1,4 @@
-import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { User } from "#shared/schemas/auth.ts";
 import type {
   BlockAnswer,
@@ -22,7 +22,7 @@ import type {
 import type { Milestone } from "#shared/schemas/programme.ts";
 import { api, ApiError } from "../../lib/api-client.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
-import { featureKeys } from "../../lib/query-keys.ts";
+import { featureKeys, readOptions } from "../../lib/query-keys.ts";
 
 /**
  * Keys: facility → project(slug) → kind, and facility → unit(id) → events. Every write
@@ -47,7 +47,7 @@ export const facilityMilestonesQueryOptions = (slug: string) => projectReadOptio
 export const facilityEventsQueryOptions = (slug: string) => projectReadOptions<FacilityEvent[]>(facilityKeys.events(slug), slug, "facility/events");
 
 export const unitEventsQueryOptions = (id: number) =>
-  queryOptions({ queryKey: facilityKeys.unitEvents(id), queryFn: () => api.get<FacilityEvent[]>(`/api/facility/units/${id}/events`) });
+  readOptions<FacilityEvent[]>(facilityKeys.unitEvents(id), `/api/facility/units/${id}/events`);
 
 export const useFacilityEvents = (slug: string) => useQuery(facilityEventsQueryOptions(slug));
 export const useUnitEvents = (id: number) => useQuery(unitEventsQueryOptions(id));

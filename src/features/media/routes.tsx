@@ -1,9 +1,9 @@
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { Link, useSearchParams } from "react-router-dom";
+import { useSearchParams } from "react-router-dom";
 import { SensitivitySchema, type MediaItem } from "#shared/schemas/media.ts";
 import { SystemSchema } from "#shared/schemas/programme.ts";
-import { Button } from "../../components/ui/button.tsx";
+import { Button, ButtonLink } from "../../components/ui/button.tsx";
 import { ProjectPicker } from "../../components/ui/project-picker.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
@@ -146,12 +146,12 @@ export function MediaLibraryPage() {
       actions={
         canReview(me) && project.slug ? (
           <>
-            <Link to={`/office/media/review?project=${project.slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+            <ButtonLink to={`/office/media/review?project=${project.slug}`}>
               Review queue
-            </Link>
-            <Link to={`/office/media/hero?project=${project.slug}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+            </ButtonLink>
+            <ButtonLink to={`/office/media/hero?project=${project.slug}`}>
               Hero photograph
-            </Link>
+            </ButtonLink>
           </>
         ) : null
       }
@@ -177,9 +177,9 @@ export function MediaReviewPage() {
         title="Photo review"
         description="Only cleared photos can appear in public or investor content. Restricted photos stay in the site office."
         actions={
-          <Link to={`/office/media${slug ? `?project=${slug}` : ""}`} className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+          <ButtonLink to={`/office/media${slug ? `?project=${slug}` : ""}`}>
             Back to the library
-          </Link>
+          </ButtonLink>
         }
       />
       <ProjectPicker choices={choices} slug={slug} setSlug={setSlug} className="mb-4 w-full sm:w-72" />

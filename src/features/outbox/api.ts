@@ -1,11 +1,9 @@
 import { queryOptions } from "@tanstack/react-query";
-import { OUTBOX_PAGE_SIZE, type OutboxMessage } from "#shared/schemas/outbox.ts";
-import { api, getPage, qs } from "../../lib/api-client.ts";
+import { OUTBOX_PAGE_SIZE, type OutboxMessage, type OutboxQuery } from "#shared/schemas/outbox.ts";
+import { getPage } from "../../lib/api-client.ts";
+import { readOptions } from "../../lib/query-keys.ts";
 
-export interface OutboxFilter {
-  to?: string;
-  page?: number;
-}
+export type OutboxFilter = Partial<Pick<OutboxQuery, "to" | "page">>;
 
 export const outboxKeys = {
   all: ["outbox"] as const,
@@ -17,9 +15,9 @@ export const outboxKeys = {
 export const outboxListQueryOptions = (f: OutboxFilter = {}) =>
   queryOptions({
     queryKey: outboxKeys.list(f),
-    queryFn: () => getPage<OutboxMessage>(`/api/outbox${qs({ to: f.to, page: f.page && f.page > 1 ? f.page : undefined, pageSize: OUTBOX_PAGE_SIZE })}`),
+    queryFn: () => getPage<OutboxMessage>("/api/outbox", { to: f.to, page: f.page, pageSize: OUTBOX_PAGE_SIZE }),
     staleTime: 5_000,
   });
 
 export const outboxMessageQueryOptions = (id: number) =>
-  queryOptions({ queryKey: outboxKeys.detail(id), queryFn: () => api.get<OutboxMessage>(`/api/outbox/${id}`) });
+  readOptions<OutboxMessage>(outboxKeys.detail(id), `/api/outbox/${id}`);

@@ -50,7 +50,7 @@ export const postsProjectQueryOptions = (slug: string) => projectDetailQueryOpti
 export const postListQueryOptions = (slug: string, f: PostListFilters = {}) =>
   queryOptions({
     queryKey: postKeys.list(slug, f),
-    queryFn: () => getPage<PostSummary>(`/api/projects/${slug}/posts${qs({ page: f.page && f.page > 1 ? f.page : undefined, status: f.status, audience: f.audience, tag: f.tag, q: f.q })}`),
+    queryFn: () => getPage<PostSummary>(`/api/projects/${slug}/posts`, { page: f.page, status: f.status, audience: f.audience, tag: f.tag, q: f.q }),
     enabled: slug !== "",
   });
 

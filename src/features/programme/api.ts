@@ -19,7 +19,7 @@ import type { DrivingLink } from "#shared/domain/programme-dependencies.ts";
 import { api, ApiError, qs } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
-import { featureKeys } from "../../lib/query-keys.ts";
+import { featureKeys, readOptions } from "../../lib/query-keys.ts";
 
 /** The list's filters, as the milestones route reads its query (the status date aside). */
 export type MilestoneFilters = Omit<z.input<typeof MilestoneListQuerySchema>, "at">;
@@ -77,10 +77,10 @@ export const movesQueryOptions = (slug: string, range: { from: string; to: strin
 export const baselinesQueryOptions = (slug: string) => projectReadOptions<BaselineVersion[]>(programmeKeys.baselines(slug), slug, "baselines");
 
 export const eventsQueryOptions = (id: number) =>
-  queryOptions({ queryKey: programmeKeys.events(id), queryFn: () => api.get<MilestoneEventRow[]>(`/api/milestones/${id}/events`) });
+  readOptions<MilestoneEventRow[]>(programmeKeys.events(id), `/api/milestones/${id}/events`);
 
 export const driversQueryOptions = (id: number) =>
-  queryOptions({ queryKey: programmeKeys.drivers(id), queryFn: () => api.get<DrivingLink[]>(`/api/milestones/${id}/drivers`) });
+  readOptions<DrivingLink[]>(programmeKeys.drivers(id), `/api/milestones/${id}/drivers`);
 
 export const useMilestones = (slug: string, f: MilestoneFilters = {}) => useQuery(milestonesQueryOptions(slug, f));
 export const useHealth = (slug: string, at?: string) => useQuery(healthQueryOptions(slug, at));

@@ -1,9 +1,8 @@
 import { useQuery, useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
 import type { RowSelectionState } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
-import { Link } from "react-router-dom";
 import type { Milestone } from "#shared/schemas/programme.ts";
-import { Button } from "../../components/ui/button.tsx";
+import { Button, buttonClass, PrimaryLink } from "../../components/ui/button.tsx";
 import { Notice, Sheet } from "../../components/ui/sheet.tsx";
 import { StatusKey } from "../../components/ui/status-mark.tsx";
 import { WalkHeader } from "../../components/ui/walk-frame.tsx";
@@ -180,11 +179,9 @@ export function ProgrammePage() {
         project.slug ? (
           <>
             {canEditProgramme(me) ? (
-              <Link to={`/office/programme/walk?project=${project.slug}`} className="inline-flex items-center rounded-sm border border-accent bg-accent px-4 py-2 text-[0.95rem] font-medium text-white hover:bg-[#9a3412]">
-                Start a site walk
-              </Link>
+              <PrimaryLink to={`/office/programme/walk?project=${project.slug}`}>Start a site walk</PrimaryLink>
             ) : null}
-            <a href={milestonesCsvUrl(project.slug)} download className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper">
+            <a href={milestonesCsvUrl(project.slug)} download className={buttonClass()}>
               Export CSV
             </a>
           </>

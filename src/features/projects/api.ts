@@ -1,8 +1,9 @@
-import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { Hero, HeroInput, Home } from "#shared/schemas/project-hero.ts";
 import type { Project } from "#shared/schemas/projects.ts";
 import { api } from "../../lib/api-client.ts";
 import { projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
+import { readOptions } from "../../lib/query-keys.ts";
 
 export const projectKeys = {
   all: ["projects"] as const,
@@ -13,11 +14,11 @@ export const projectKeys = {
 };
 
 export const projectsQueryOptions = () => projectListQueryOptions(projectKeys.list());
-export const projectQueryOptions = (slug: string) => queryOptions({ queryKey: projectKeys.detail(slug), queryFn: () => api.get<Project>(`/api/projects/${slug}`) });
+export const projectQueryOptions = (slug: string) => readOptions<Project>(projectKeys.detail(slug), `/api/projects/${slug}`);
 /** The project's chosen hero photograph (decision 055). */
 export const heroQueryOptions = (slug: string) => projectReadOptions<Hero>(projectKeys.hero(slug), slug, "hero");
 /** The home page's builds: picture, figure and next ready-for-service date of each. */
-export const homeQueryOptions = () => queryOptions({ queryKey: projectKeys.home(), queryFn: () => api.get<Home>("/api/home") });
+export const homeQueryOptions = () => readOptions<Home>(projectKeys.home(), "/api/home");
 
 export const useProjects = () => useQuery(projectsQueryOptions());
 export const useHero = (slug: string) => useQuery(heroQueryOptions(slug));

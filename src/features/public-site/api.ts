@@ -60,7 +60,7 @@ export const siteProjectQueryOptions = (slug: string) => projectDetailQueryOptio
 export const updatesQueryOptions = (slug: string, f: UpdateFilters = {}) =>
   queryOptions({
     queryKey: siteKeys.updates(slug, f),
-    queryFn: () => getPage<PostSummary>(`/api/projects/${slug}/posts${qs({ page: f.page && f.page > 1 ? f.page : undefined, tag: f.tag, block: f.block, plant: f.plant, q: f.q, status: "published" })}`),
+    queryFn: () => getPage<PostSummary>(`/api/projects/${slug}/posts`, { page: f.page, tag: f.tag, block: f.block, plant: f.plant, q: f.q, status: "published" }),
     enabled: slug !== "",
   });
 

@@ -2,7 +2,7 @@ import { queryOptions } from "@tanstack/react-query";
 import type { RichTextDoc } from "#shared/schemas/rich-text.ts";
 import type { ReportDetail, ReportListItem, ReportSection } from "#shared/schemas/reports.ts";
 import { api, ApiError, qs } from "../../lib/api-client.ts";
-import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { useQuietWrite } from "../../lib/mutations.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
@@ -25,7 +25,7 @@ export const reportQueryOptions = (id: number) => queryOptions({ queryKey: repor
 export const reportPdfUrl = (id: number, as: "view" | "download") => `/api/reports/${id}/pdf${qs({ as })}`;
 
 // A write refreshes the whole feature: the list's states and the report's figures move together.
-const useReportWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useRefreshingMutation<R, V>(reportKeys.all, { mutationFn, meta: { quiet: true } });
+const useReportWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useQuietWrite<R, V>(reportKeys.all, mutationFn);
 
 export const useCreateReport = (slug: string) => useReportWrite((month: string) => api.post<ReportDetail>(`/api/projects/${slug}/reports`, { month }));
 export const useSaveCommentary = () =>

@@ -1,12 +1,12 @@
-import { queryOptions, useQuery } from "@tanstack/react-query";
+import { useQuery } from "@tanstack/react-query";
 import type { User } from "#shared/schemas/auth.ts";
 import type { FacilityAnswer } from "#shared/schemas/facility.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import type { MitigationInput, RiskAnswer, RiskCreateInput, RiskEvent, RiskPatchInput, RiskSummary, RiskToIssueInput } from "#shared/schemas/risks.ts";
 import { api } from "../../lib/api-client.ts";
-import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { useQuietWrite } from "../../lib/mutations.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
-import { featureKeys } from "../../lib/query-keys.ts";
+import { featureKeys, readOptions } from "../../lib/query-keys.ts";
 
 /** A staff member who may own a risk or an action. */
 export interface StaffMember {
@@ -41,12 +41,12 @@ export const riskMilestonesQueryOptions = (slug: string) => projectReadOptions<M
 export const riskFacilityQueryOptions = (slug: string) => projectReadOptions<FacilityAnswer>(riskKeys.facility(slug), slug, "facility");
 
 /** The staff who may own a risk or an action. */
-export const staffQueryOptions = () => queryOptions({ queryKey: riskKeys.staff(), queryFn: () => api.get<StaffMember[]>("/api/users/staff") });
+export const staffQueryOptions = () => readOptions<StaffMember[]>(riskKeys.staff(), "/api/users/staff");
 
-export const riskEventsQueryOptions = (id: number) => queryOptions({ queryKey: riskKeys.events(id), queryFn: () => api.get<RiskEvent[]>(`/api/risks/${id}/events`) });
+export const riskEventsQueryOptions = (id: number) => readOptions<RiskEvent[]>(riskKeys.events(id), `/api/risks/${id}/events`);
 export const useRiskEvents = (id: number) => useQuery(riskEventsQueryOptions(id));
 
-const useRiskWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useRefreshingMutation<R, V>(riskKeys.all, { mutationFn, meta: { quiet: true } });
+const useRiskWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useQuietWrite<R, V>(riskKeys.all, mutationFn);
 
 export const useCreateRisk = (slug: string) => useRiskWrite((input: RiskCreateInput) => api.post<RiskAnswer>(`/api/projects/${slug}/risks`, input));
 export const usePatchRisk = () => useRiskWrite(({ id, patch }: { id: number; patch: RiskPatchInput }) => api.patch<RiskAnswer>(`/api/risks/${id}`, patch));

@@ -22,7 +22,7 @@ import type { DigestArchiveCopy, DigestArchivePage } from "#shared/schemas/diges
 import { api, qs } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
 import { projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
-import { featureKeys } from "../../lib/query-keys.ts";
+import { featureKeys, readOptions } from "../../lib/query-keys.ts";
 
 /** Visitors' side: the form's options and the pages opened from signed links. */
 export const subscriptionKeys = {
@@ -61,7 +61,7 @@ export const subscribersQueryOptions = (f: SubscriberOfficeQuery) =>
     queryKey: subscriberKeys.list(f),
     queryFn: () => api.get<SubscriberList>(`/api/subscribers${qs({ ...f, page: f.page && f.page > 1 ? f.page : undefined, pageSize: SUBSCRIBER_PAGE_SIZE })}`),
   });
-export const investorDigestQueryOptions = () => queryOptions({ queryKey: investorDigestKeys.mine(), queryFn: () => api.get<InvestorDigestSetting[]>("/api/investors/digest") });
+export const investorDigestQueryOptions = () => readOptions<InvestorDigestSetting[]>(investorDigestKeys.mine(), "/api/investors/digest");
 
 /** The export link of the current filters (a download, not a query). */
 export const subscribersCsvUrl = (f: SubscriberFilterQuery) => `/api/subscribers/export.csv${qs(f)}`;
@@ -114,4 +114,4 @@ export const pastDigestsQueryOptions = (token: string, page: number) =>
 export const pastDigestQueryOptions = (token: string, id: number) =>
   queryOptions({ queryKey: digestArchiveKeys.copyByLink(token, id), queryFn: () => api.get<DigestArchiveCopy>(`/api/subscriptions/preferences/${token}/digests/${id}`), retry: false });
 export const myDigestsQueryOptions = (page: number) => queryOptions({ queryKey: digestArchiveKeys.mine(page), queryFn: () => api.get<DigestArchivePage>(`/api/me/digests${qs({ page })}`) });
-export const myDigestQueryOptions = (id: number) => queryOptions({ queryKey: digestArchiveKeys.myCopy(id), queryFn: () => api.get<DigestArchiveCopy>(`/api/me/digests/${id}`) });
+export const myDigestQueryOptions = (id: number) => readOptions<DigestArchiveCopy>(digestArchiveKeys.myCopy(id), `/api/me/digests/${id}`);

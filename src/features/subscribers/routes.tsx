@@ -16,7 +16,7 @@ import {
   type PreferencesView,
   type SubscriberFilterQuery,
 } from "#shared/schemas/subscribers.ts";
-import { Button } from "../../components/ui/button.tsx";
+import { Button, buttonClass } from "../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../components/ui/field.tsx";
 import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
@@ -450,7 +450,7 @@ export function SubscribersPage() {
         title="Subscribers"
         description="Who receives progress e-mails, on what consent. Unconfirmed addresses receive nothing but their confirmation and are forgotten after 30 days."
         actions={
-          <a className="inline-flex items-center rounded-sm border border-ink bg-sheet px-4 py-2 text-[0.95rem] font-medium hover:bg-paper" href={subscribersCsvUrl(query)} download>
+          <a className={buttonClass()} href={subscribersCsvUrl(query)} download>
             Export CSV
           </a>
         }

@@ -1,9 +1,9 @@
-import { queryOptions } from "@tanstack/react-query";
 import type { z } from "zod";
 import type { DOCUMENTS_ANSWERS, OrganisationInputSchema } from "#shared/schemas/documents.ts";
 import type { InvitationRow, InvitationSent, InviteInput, UserRow, UserUpdateInput } from "#shared/schemas/users.ts";
 import { api } from "../../lib/api-client.ts";
 import { useRefreshingMutation } from "../../lib/mutations.ts";
+import { readOptions } from "../../lib/query-keys.ts";
 
 export const userKeys = {
   all: ["users"] as const,
@@ -12,8 +12,8 @@ export const userKeys = {
   organisations: () => [...userKeys.all, "organisations"] as const,
 };
 
-export const usersQueryOptions = () => queryOptions({ queryKey: userKeys.list(), queryFn: () => api.get<UserRow[]>("/api/users") });
-export const invitationsQueryOptions = () => queryOptions({ queryKey: userKeys.invitations(), queryFn: () => api.get<InvitationRow[]>("/api/users/invitations") });
+export const usersQueryOptions = () => readOptions<UserRow[]>(userKeys.list(), "/api/users");
+export const invitationsQueryOptions = () => readOptions<InvitationRow[]>(userKeys.invitations(), "/api/users/invitations");
 
 export const useInvite = () => useRefreshingMutation(userKeys.all, { mutationFn: (input: InviteInput) => api.post<InvitationSent>("/api/users/invitations", input) });
 
@@ -22,7 +22,7 @@ export const useUpdateUser = () =>
 
 /** Investor organisations (documents may be limited to some), each with its number of investors. */
 export type Organisation = z.infer<typeof DOCUMENTS_ANSWERS.organisation>;
-export const organisationsQueryOptions = () => queryOptions({ queryKey: userKeys.organisations(), queryFn: () => api.get<Organisation[]>("/api/organisations") });
+export const organisationsQueryOptions = () => readOptions<Organisation[]>(userKeys.organisations(), "/api/organisations");
 
 export const useCreateOrganisation = () => useRefreshingMutation(userKeys.all, { mutationFn: (input: z.infer<typeof OrganisationInputSchema>) => api.post<Organisation>("/api/organisations", input) });
 

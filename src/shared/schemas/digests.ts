@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { IdParamSchema } from "./common.ts";
 import { pageAnswerShape } from "./paging.ts";
-import { ProjectSchema } from "./projects.ts";
+import { ProjectRefSchema, ProjectSchema } from "./projects.ts";
 import { FrequencySchema, SubscriberRowSchema } from "./subscribers.ts";
 import { plainText } from "./text.ts";
 
@@ -43,6 +43,9 @@ export const DigestPreviewQuerySchema = z.strictObject({ subscriberId: z.coerce.
 
 export const DigestWebParamSchema = z.strictObject({ token: z.string().min(10).max(400) });
 
+/** The period of news a digest run covers, as UTC instants. */
+const windowShape = { windowStart: z.string(), windowEnd: z.string() };
+
 export const DigestCountsSchema = z.object({
   total: z.number(),
   queued: z.number(),
@@ -55,12 +58,11 @@ export type DigestCounts = z.infer<typeof DigestCountsSchema>;
 /** GET /api/digests/runs (a list of these), GET /api/digests/runs/:id, and what pause and resume answer. */
 export const DigestRunSummarySchema = z.object({
   id: z.number(),
-  project: ProjectSchema.pick({ slug: true, name: true }),
+  project: ProjectRefSchema,
   frequency: FrequencySchema,
   status: DigestRunStatusSchema,
   test: z.boolean(),
-  windowStart: z.string(),
-  windowEnd: z.string(),
+  ...windowShape,
   counts: DigestCountsSchema,
   createdAt: z.string(),
   startedAt: z.string().nullable(),
@@ -80,8 +82,7 @@ export const DigestUpcomingSchema = z.object({
   frequency: FrequencySchema.exclude(["immediate"]),
   /** When the run starts (UTC instant). */
   at: z.string(),
-  windowStart: z.string(),
-  windowEnd: z.string(),
+  ...windowShape,
   recipients: z.number(),
 });
 export type DigestUpcoming = z.infer<typeof DigestUpcomingSchema>;
@@ -89,8 +90,7 @@ export type DigestUpcoming = z.infer<typeof DigestUpcomingSchema>;
 /** GET /api/digests/preview?subscriberId= */
 export const DigestPreviewSchema = z.object({
   subscriber: SubscriberRowSchema.pick({ id: true, email: true, audience: true, frequency: true }),
-  windowStart: z.string(),
-  windowEnd: z.string(),
+  ...windowShape,
   /** False when there is nothing to say: no e-mail would be sent. */
   wouldSend: z.boolean(),
   subject: z.string(),
@@ -118,12 +118,11 @@ export const DigestArchiveCopyParamSchema = DigestArchiveLinkParamSchema.extend(
 /** One sent digest in the list: when, what about, the window it covered, and where to read it. */
 export const DigestArchiveItemSchema = z.object({
   id: z.number(),
-  project: ProjectSchema.pick({ slug: true, name: true }),
+  project: ProjectRefSchema,
   frequency: FrequencySchema,
   subject: z.string(),
   sentAt: z.string(),
-  windowStart: z.string(),
-  windowEnd: z.string(),
+  ...windowShape,
   /** The days the window covered, in the project's time zone (YYYY-MM-DD). */
   firstDay: z.string(),
   lastDay: z.string(),

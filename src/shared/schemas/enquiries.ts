@@ -1,6 +1,6 @@
 import { z } from "zod";
-import { CalendarDateSchema, EmailSchema, STAFF_ROLES } from "./common.ts";
-import { ProjectSchema } from "./projects.ts";
+import { CalendarDateSchema, EmailSchema, NamedSchema, STAFF_ROLES } from "./common.ts";
+import { ProjectRefSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -91,7 +91,7 @@ export type EnquiryPatch = z.infer<typeof EnquiryPatchSchema>;
 /** GET /api/enquiries (a list of these), GET and PATCH /api/enquiries/:id. */
 export const EnquiryRowSchema = z.object({
   id: z.number(),
-  project: ProjectSchema.pick({ slug: true, name: true }),
+  project: ProjectRefSchema,
   kind: EnquiryKindSchema,
   name: z.string(),
   email: z.string(),
@@ -104,7 +104,7 @@ export const EnquiryRowSchema = z.object({
   preferredDates: z.array(z.string()),
   partySize: z.number().nullable(),
   status: EnquiryStatusSchema,
-  owner: z.object({ id: z.number(), name: z.string() }).nullable(),
+  owner: NamedSchema.nullable(),
   notes: z.string(),
   createdAt: z.string(),
   updatedAt: z.string(),

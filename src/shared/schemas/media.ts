@@ -60,16 +60,18 @@ const OptionalText = (max: number, lines: "one" | "several") =>
     .transform((s) => (s === "" ? null : s))
     .nullable();
 
+/** What the office writes about a photo: its words, its point of interest and who may see it. */
+const DESCRIPTION_FIELDS = {
+  altText: OptionalText(1000, "several"),
+  caption: OptionalText(2000, "several"),
+  credit: OptionalText(200, "one"),
+  focal: FocalSchema,
+  sensitivity: SensitivitySchema,
+} as const;
+
 /** PATCH /api/media/:id. `sensitivity` is for leads and admins only (403 otherwise). */
 export const MediaPatchInputSchema = z
-  .strictObject({
-    altText: OptionalText(1000, "several").optional(),
-    caption: OptionalText(2000, "several").optional(),
-    credit: OptionalText(200, "one").optional(),
-    tags: MediaTagsPatchSchema.optional(),
-    focal: FocalSchema.optional(),
-    sensitivity: SensitivitySchema.optional(),
-  })
+  .strictObject({ ...z.object(DESCRIPTION_FIELDS).partial().shape, tags: MediaTagsPatchSchema.optional() })
   .refine((v) => Object.keys(v).length > 0, { message: "name at least one field to change", path: ["_"] });
 export type MediaPatchInput = z.infer<typeof MediaPatchInputSchema>;
 
@@ -153,11 +155,7 @@ export const MediaItemSchema = z.object({
   takenAt: z.string().nullable(),
   /** Whether the original carried location data; the coordinates themselves are never kept. */
   hadGps: z.boolean(),
-  altText: z.string().nullable(),
-  caption: z.string().nullable(),
-  credit: z.string().nullable(),
-  focal: FocalSchema,
-  sensitivity: SensitivitySchema,
+  ...DESCRIPTION_FIELDS,
   flaggedForReview: z.boolean(),
   reviewedAt: z.string().nullable(),
   reviewedBy: z.string().nullable(),

@@ -28,3 +28,6 @@ export const ProjectSchema = z.object({
   settings: ProjectSettingsSchema,
 });
 export type Project = z.infer<typeof ProjectSchema>;
+
+/** A project as other answers name it: its slug and name. */
+export const ProjectRefSchema = ProjectSchema.pick({ slug: true, name: true });

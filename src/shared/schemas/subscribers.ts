@@ -2,7 +2,7 @@ import { z } from "zod";
 import { EmailSchema } from "./common.ts";
 import { SystemSchema } from "./programme.ts";
 import { pageAnswerShape, pageQueryShape } from "./paging.ts";
-import { ProjectSchema } from "./projects.ts";
+import { ProjectRefSchema, ProjectSchema } from "./projects.ts";
 import { multilineText, plainText } from "./text.ts";
 
 /**
@@ -117,7 +117,6 @@ export const InvestorDigestInputSchema = z.strictObject({
 export type InvestorDigestInput = z.infer<typeof InvestorDigestInputSchema>;
 
 /** The project a subscription is about, as the pages name it. */
-const ProjectNameSchema = ProjectSchema.pick({ slug: true, name: true });
 const ConsentWordingSchema = z.object({ version: z.string(), text: z.string() });
 /** The topics a subscriber may choose from: the project's public areas and the plant systems. */
 const TopicChoicesSchema = z.object({
@@ -129,13 +128,10 @@ const TopicChoicesSchema = z.object({
 /** A subscription as the site office lists it (GET /api/subscribers); the pages its links open show part of it. */
 export const SubscriberRowSchema = z.object({
   id: z.number(),
-  project: ProjectNameSchema,
-  email: z.string(),
-  name: z.string(),
+  project: ProjectRefSchema,
+  ...SubscriptionInputSchema.pick({ email: true, name: true, interest: true, frequency: true }).shape,
   organisation: z.string().nullable(),
-  interest: InterestSchema,
   audience: SubscriberAudienceSchema,
-  frequency: FrequencySchema,
   topics: TopicsSchema.nullable(),
   status: SubscriberStatusSchema,
   /** Linked to an investor account (set in the investor room). */
@@ -183,7 +179,7 @@ export type SubscriptionStatusResult = z.infer<typeof SubscriptionStatusResultSc
 
 /** GET /api/investors/digest (one per project), PATCH /api/investors/digest/:slug */
 export const InvestorDigestSettingSchema = z.object({
-  project: ProjectNameSchema,
+  project: ProjectRefSchema,
   enabled: z.boolean(),
   frequency: FrequencySchema,
   topics: TopicsSchema.nullable(),

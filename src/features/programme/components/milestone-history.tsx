@@ -1,9 +1,10 @@
 import { useEffect, useRef, type ReactNode } from "react";
 import type { Milestone, MilestoneEventRow } from "#shared/schemas/programme.ts";
 import { Button } from "../../../components/ui/button.tsx";
+import { ChangeHistory } from "../../../components/ui/change-history.tsx";
 import { Notice, Spinner } from "../../../components/ui/sheet.tsx";
 import { StatusMark } from "../../../components/ui/status-mark.tsx";
-import { formatDate, formatInstant, SYSTEM_WORD } from "../../../lib/format.ts";
+import { formatDate, SYSTEM_WORD } from "../../../lib/format.ts";
 import { useMilestoneDrivers, useMilestoneEvents } from "../api.ts";
 import { AUDIENCE_WORD, FIELD_WORD, signedDays } from "../words.ts";
 import { MilestoneRemoval } from "./milestone-removal.tsx";
@@ -50,26 +51,15 @@ function DrivingChain({ id }: { id: number }) {
 }
 
 function History({ id, timeZone }: { id: number; timeZone: string }) {
-  const events = useMilestoneEvents(id);
-  if (events.isPending) return <Spinner label="Loading the history" />;
-  if (events.isError) return <Notice tone="error">{events.error.message}</Notice>;
-  if (events.data.length === 0) return <p className="text-sm text-ink-soft">No change has been recorded since the milestone was created.</p>;
   return (
-    <ol className="flex flex-col divide-y divide-rule text-sm" aria-label="Changes, newest first">
-      {events.data.map((e) => (
-        <li key={e.id} className="py-2">
-          <p>
-            <span className="font-medium">{FIELD_WORD[e.field] ?? e.field}</span>: {valueOf(e, e.from)} → <span className="font-semibold">{valueOf(e, e.to)}</span>
-            {e.baselineVersion ? <span className="ml-1 text-xs text-ink-faint">(baseline v{e.baselineVersion})</span> : null}
-          </p>
-          <p className="text-xs text-ink-faint">
-            {formatInstant(e.at, timeZone)}
-            {e.by ? ` · ${e.by}` : ""}
-          </p>
-          {e.note ? <p className="mt-0.5 font-serif text-ink-soft">“{e.note}”</p> : null}
-        </li>
-      ))}
-    </ol>
+    <ChangeHistory
+      events={useMilestoneEvents(id)}
+      fieldWord={FIELD_WORD}
+      timeZone={timeZone}
+      value={valueOf}
+      aside={(e) => (e.baselineVersion ? <span className="ml-1 text-xs text-ink-faint">(baseline v{e.baselineVersion})</span> : null)}
+      empty="No change has been recorded since the milestone was created."
+    />
   );
 }
 
