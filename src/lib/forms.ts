@@ -1,7 +1,8 @@
-import type { FieldValues, UseFormSetError } from "react-hook-form";
+import type { FormEvent } from "react";
+import type { FieldValues, Path, UseFormReturn, UseFormSetError } from "react-hook-form";
 import { toast } from "sonner";
 import { ApiError } from "./api-client.ts";
-import { applyFieldErrors } from "./format.ts";
+import { applyApiError, applyFieldErrors } from "./format.ts";
 
 /** Options of a select from a word map: `{ value, label }` in the map's order. */
 export function optionsOf<K extends string>(words: Record<K, string>, only?: readonly K[]) {
@@ -54,3 +55,27 @@ export async function saveForm<V extends FieldValues>(setError: UseFormSetError<
     return false;
   }
 }
+
+/**
+ * A form's submit handler: `send` runs with the checked values; a refusal from the server goes to
+ * the fields it names, or else beside `fallback` (when given). Any other failure is left to the
+ * mutation cache, which reports it.
+ */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- the form's context type plays no part here
+export function submitting<TF extends FieldValues, TT>(form: UseFormReturn<TF, any, TT>, send: (values: TT) => Promise<unknown>, fallback?: Path<TF>) {
+  return form.handleSubmit(async (values) => {
+    try {
+      await send(values);
+    } catch (e) {
+      applyApiError(e, form.setError, fallback);
+    }
+  });
+}
+
+/** The submit handler of a plain form (no form library): the page stays, and `act` runs. */
+export const onSubmitted =
+  (act: () => void) =>
+  (e: FormEvent): void => {
+    e.preventDefault();
+    act();
+  };

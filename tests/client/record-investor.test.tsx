@@ -86,7 +86,7 @@ describe("the investor room's Risks", () => {
 
   it("lists the top risks by score, rising before falling on a tie, with owner, mitigation, trend and what they affect", () => {
     expect(topRisks(RISKS).map((r) => r.reference)).toEqual(["R-001", "R-003", "R-002"]);
-    renderWithApp(<InvestorRisks slug={SLUG} currency="GBP" />, {
+    renderWithApp(<InvestorRisks slug={SLUG} project={{ currency: "GBP" }} />, {
       data: [
         [riskKeys.list(SLUG), RISKS],
         [riskKeys.summary(SLUG), summaryOf(RISKS)],
@@ -112,7 +112,7 @@ describe("the investor room's Risks", () => {
   });
 
   it("shows no money to a caller the summary gives none (marketing)", () => {
-    renderWithApp(<InvestorRisks slug={SLUG} currency="GBP" />, {
+    renderWithApp(<InvestorRisks slug={SLUG} project={{ currency: "GBP" }} />, {
       data: [
         [riskKeys.list(SLUG), RISKS],
         [riskKeys.summary(SLUG), { ...summaryOf(RISKS), totalExpectedCost: null, totalExpectedCostPert: null, contingencyRemaining: null }],
@@ -159,7 +159,7 @@ describe("the investor room's Decisions", () => {
       decision({ id: 3, neededBy: "2027-02-01", daysLeft: 1 }),
       decision({ id: 4, neededBy: "2026-11-20", status: "decided", outcome: { chosenOption: 0, text: "Hire the temporary chiller.", decidedBy: "Investors' committee", decidedOn: "2026-11-18", recordedBy: "Project lead" } }),
     ];
-    renderWithApp(<InvestorDecisions slug={SLUG} currency="GBP" />, { data: [[decisionKeys.list(SLUG), list]] });
+    renderWithApp(<InvestorDecisions slug={SLUG} project={{ currency: "GBP" }} />, { data: [[decisionKeys.list(SLUG), list]] });
     const open = screen.getAllByTestId("open-decision");
     expect(open.map((d) => d.getAttribute("data-decision-id"))).toEqual(["2", "1", "3"]);
     expect(within(open[0]!).getByTestId("days-left").textContent).toBe("3 days overdue");
@@ -271,7 +271,7 @@ describe("the investor room's Documents", () => {
       ["monitoring_report", [1, 3]],
       ["certificate", [2]],
     ]);
-    renderWithApp(<InvestorDocuments slug={SLUG} timeZone="Europe/London" />, { data: [[documentKeys.list(SLUG), docs]] });
+    renderWithApp(<InvestorDocuments slug={SLUG} project={{ timeZone: "Europe/London" }} />, { data: [[documentKeys.list(SLUG), docs]] });
     const items = screen.getAllByTestId("document");
     expect(items.map((i) => i.getAttribute("data-document-id"))).toEqual(["1", "3", "2"]);
     expect(within(items[0]!).getByTestId("new-mark").textContent).toBe("New since your last visit");

@@ -40,7 +40,7 @@ function renderPage(list: DigestArchivePage, copies: Array<[number, DigestArchiv
   return renderWithApp(<PreferencesPage />, {
     path: "/subscriptions/preferences/:token",
     route: `/subscriptions/preferences/${TOKEN}`,
-    data: [[subscriptionKeys.preferences(TOKEN), view], [digestArchiveKeys.byLink(TOKEN, 1), list], ...copies.map(([id, c]) => [digestArchiveKeys.copyByLink(TOKEN, id), c] as [readonly unknown[], unknown])],
+    data: [[subscriptionKeys.link("preferences", TOKEN), view], [digestArchiveKeys.byLink(TOKEN, 1), list], ...copies.map(([id, c]) => [digestArchiveKeys.copyByLink(TOKEN, id), c] as [readonly unknown[], unknown])],
   });
 }
 

@@ -1,5 +1,5 @@
 import { useSuspenseQuery, type QueryClient } from "@tanstack/react-query";
-import type { ReactNode } from "react";
+import type { ComponentType, ReactNode } from "react";
 import { Link, NavLink, useParams, useSearchParams } from "react-router-dom";
 import type { Role } from "#shared/schemas/common.ts";
 import type { Project } from "#shared/schemas/projects.ts";
@@ -72,14 +72,15 @@ function ProjectSections({ slug }: { slug: string }) {
  * A page of one build in the investor room (`:slug`): the head every such page has (the build's
  * name, a line, the sections), then `children` with the build's slug and the project as read.
  */
-function SectionPage({ sheet, description, actions, children }: { sheet: string; description?: string; actions?: ReactNode; children: (slug: string, project: Project) => ReactNode }) {
+/** A section of a project in the investor room: its head, the sections' links, and the body (`body`, or `children` given the slug and project). */
+function SectionPage({ sheet, description, actions, body: Body, children }: { sheet: string; description?: string; actions?: ReactNode; body?: ComponentType<{ slug: string; project: Project }>; children?: (slug: string, project: Project) => ReactNode }) {
   const { slug = "" } = useParams();
   const project = useSuspenseQuery(projectQueryOptions(slug)).data;
   return (
     <>
       <PageHeader sheet={`Investor room · ${sheet}`} title={project.name} documentTitle={`${sheet} · ${project.name}`} description={description ?? project.description} actions={actions} />
       <ProjectSections slug={slug} />
-      {children(slug, project)}
+      {Body ? <Body slug={slug} project={project} /> : children?.(slug, project)}
     </>
   );
 }
@@ -158,21 +159,13 @@ function sectionLoader(roles: readonly Role[], reads: (qc: QueryClient, slug: st
 export const investorRisksLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(risksQueryOptions(slug)), qc.ensureQueryData(riskSummaryQueryOptions(slug))]);
 
 export function InvestorRisksPage() {
-  return (
-    <SectionPage sheet="Risks" description="What could go wrong, who owns it and what is being done, and what has already happened. Only the risks shared with investors.">
-      {(slug, project) => <InvestorRisks slug={slug} currency={project.currency} />}
-    </SectionPage>
-  );
+  return <SectionPage sheet="Risks" description="What could go wrong, who owns it and what is being done, and what has already happened. Only the risks shared with investors." body={InvestorRisks} />;
 }
 
 export const investorDecisionsLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(decisionsQueryOptions(slug))]);
 
 export function InvestorDecisionsPage() {
-  return (
-    <SectionPage sheet="Decisions" description="What the investors, the lender or the board are asked to decide, and by when; and what was decided.">
-      {(slug, project) => <InvestorDecisions slug={slug} currency={project.currency} />}
-    </SectionPage>
-  );
+  return <SectionPage sheet="Decisions" description="What the investors, the lender or the board are asked to decide, and by when; and what was decided." body={InvestorDecisions} />;
 }
 
 export const investorCostLoader = sectionLoader(MONEY_ROLES, (qc, slug) => [qc.ensureQueryData(budgetPositionQueryOptions(slug)), qc.ensureQueryData(budgetChangesQueryOptions(slug))]);
@@ -190,11 +183,7 @@ export function InvestorCostPage() {
 export const investorDocumentsLoader = sectionLoader(INVESTOR_ROLES, (qc, slug) => [qc.ensureQueryData(investorDocumentsQueryOptions(slug))]);
 
 export function InvestorDocumentsPage() {
-  return (
-    <SectionPage sheet="Documents" description="Monitoring reports, lender packs, certificates and the other papers of the build.">
-      {(slug, project) => <InvestorDocuments slug={slug} timeZone={project.timeZone} />}
-    </SectionPage>
-  );
+  return <SectionPage sheet="Documents" description="Monitoring reports, lender packs, certificates and the other papers of the build." body={InvestorDocuments} />;
 }
 
 export function InvestorDocumentPage() {

@@ -1,4 +1,4 @@
-import { flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type Cell, type Row, type RowData, type SortingState, type Table, type TableOptions } from "@tanstack/react-table";
+import { flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type Cell, type ColumnHelper, type Row, type RowData, type SortingState, type Table, type TableOptions } from "@tanstack/react-table";
 import { useState, type ComponentProps, type ReactNode } from "react";
 import { useNarrow } from "../../lib/use-narrow.ts";
 
@@ -18,6 +18,14 @@ type RowProps = ComponentProps<"tr"> & Record<`data-${string}`, string | number>
 
 const isActionsColumn = (column: { id: string; columnDef: { meta?: { actions?: boolean } } }) => column.id === "actions" || column.columnDef.meta?.actions === true;
 const isActions = <T,>(cell: Cell<T, unknown>) => isActionsColumn(cell.column);
+
+/**
+ * The column of a row's buttons and links: kept in view when a wide table scrolls, last on a
+ * phone's card. `cell` draws them for the row; `id` lets a table hide the column by name.
+ */
+export function actionsColumn<T>(col: ColumnHelper<T>, cell: (row: T, table: Table<T>) => ReactNode, { id = "actions", header = "" }: { id?: string; header?: string | (() => ReactNode) } = {}) {
+  return col.display({ id, header, meta: { actions: true }, cell: ({ row, table }) => cell(row.original, table) });
+}
 // The actions column stays in view at the right edge when a wide table scrolls sideways.
 const STICKY = "sticky right-0 bg-sheet shadow-[-1px_0_0_var(--color-rule)]";
 

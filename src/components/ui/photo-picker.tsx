@@ -5,6 +5,7 @@ import { TextField } from "./field.tsx";
 import { Pager } from "./pager.tsx";
 import { PhotoChoiceGrid, type PhotoChoice } from "./photo-choice.tsx";
 import { Notice, Spinner } from "./sheet.tsx";
+import { onSubmitted } from "../../lib/forms.ts";
 
 /**
  * A dialog that chooses one photo of a library: a search, the grid of photos, and pages.
@@ -54,10 +55,7 @@ export function PhotoPickerDialog({
     <Dialog open={open} title={title} onClose={onClose} wide>
       <form
         className="mb-4 flex flex-wrap items-end gap-3"
-        onSubmit={(e) => {
-          e.preventDefault();
-          onSearch(q.trim());
-        }}
+        onSubmit={onSubmitted(() => onSearch(q.trim()))}
       >
         <div className="min-w-48 flex-1">
           <TextField label="Search the library" type="search" value={q} onChange={(e) => setQ(e.target.value)} placeholder={searchPlaceholder} />

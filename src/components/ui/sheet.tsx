@@ -37,11 +37,11 @@ export function PageHeader({ sheet, title, description, actions, documentTitle }
   );
 }
 
-export function Notice({ tone = "info", title, children }: { tone?: "info" | "caution" | "error"; title?: string; children: ReactNode }) {
+export function Notice({ tone = "info", title, testId, children }: { tone?: "info" | "caution" | "error"; title?: string; testId?: string; children: ReactNode }) {
   const mark = tone === "error" ? "✕" : tone === "caution" ? "!" : "i";
   const border = tone === "error" ? "border-bad" : tone === "caution" ? "border-watch" : "border-ink-soft";
   return (
-    <div role={tone === "error" ? "alert" : "note"} className={`flex gap-3 border-l-4 ${border} bg-sheet px-4 py-3`}>
+    <div role={tone === "error" ? "alert" : "note"} className={`flex gap-3 border-l-4 ${border} bg-sheet px-4 py-3`} data-testid={testId}>
       <span aria-hidden className={`mt-0.5 flex size-5 shrink-0 items-center justify-center border text-xs font-bold ${border}`}>
         {mark}
       </span>

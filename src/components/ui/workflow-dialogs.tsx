@@ -6,6 +6,7 @@ import { parseTypedTime } from "#shared/domain/locale-dates.ts";
 import { todayIn } from "../../lib/format.ts";
 import { Dialog } from "./dialog.tsx";
 import { TextAreaField, TextField } from "./field.tsx";
+import { onSubmitted } from "../../lib/forms.ts";
 
 /**
  * The dialogs of the publishing workflow shared by updates and photo stories: scheduling on the
@@ -39,10 +40,7 @@ export function ScheduleDialog({ timeZone, busy, error, onClose, onSchedule }: {
     >
       <form
         className="flex flex-col gap-3"
-        onSubmit={(e) => {
-          e.preventDefault();
-          onSchedule({ date, time });
-        }}
+        onSubmit={onSubmitted(() => onSchedule({ date, time }))}
       >
         <p className="text-sm">
           Times are on the project's clock: <strong data-testid="schedule-zone">{zone}</strong>.

@@ -9,11 +9,12 @@ import { Button } from "../../components/ui/button.tsx";
 import { TextField } from "../../components/ui/field.tsx";
 import { Notice } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
-import { applyApiError, ROLE_LABEL } from "../../lib/format.ts";
+import { ROLE_LABEL } from "../../lib/format.ts";
 import type { RouteLoader } from "../../lib/loaders.ts";
 import { useTitle } from "../../lib/use-title.ts";
 import { homeFor, invitationQueryOptions, resetLinkQueryOptions, useAcceptInvitation, useLogin, useRequestReset, useResetPassword } from "./api.ts";
 import { safeReturnAddress } from "./return-address.ts";
+import { submitting } from "../../lib/forms.ts";
 
 function AuthCard({ title, lead, children }: { title: string; lead?: string; children: React.ReactNode }) {
   useTitle(title, "Plumbline");
@@ -36,13 +37,9 @@ export function SignInPage() {
   const navigate = useNavigate();
   const login = useLogin();
   const form = useForm<LoginInput>({ resolver: zodResolver(LoginInputSchema), defaultValues: { email: "", password: "" } });
-  const onSubmit = form.handleSubmit(async (values) => {
-    try {
-      const { user } = await login.mutateAsync(values);
-      navigate(safeReturnAddress(params.get("next")) ?? homeFor(user), { replace: true });
-    } catch (e) {
-      applyApiError(e, form.setError);
-    }
+  const onSubmit = submitting(form, async (values) => {
+    const { user } = await login.mutateAsync(values);
+    navigate(safeReturnAddress(params.get("next")) ?? homeFor(user), { replace: true });
   });
   const err = login.error instanceof ApiError && !Object.keys(login.error.fields).length ? login.error : null;
   return (
@@ -118,14 +115,10 @@ export function AcceptInvitationPage() {
   const invitation = useSuspenseQuery(invitationQueryOptions(token));
   const accept = useAcceptInvitation(token);
   const form = useForm<z.infer<typeof AcceptFormSchema>>({ resolver: zodResolver(AcceptFormSchema), defaultValues: { name: "", password: "", confirm: "" } });
-  const onSubmit = form.handleSubmit(async ({ name, password }) => {
-    try {
-      const { user } = await accept.mutateAsync({ name, password });
-      navigate(homeFor(user), { replace: true });
-    } catch (e) {
-      applyApiError(e, form.setError, "password");
-    }
-  });
+  const onSubmit = submitting(form, async ({ name, password }) => {
+    const { user } = await accept.mutateAsync({ name, password });
+    navigate(homeFor(user), { replace: true });
+  }, "password");
   return (
     <AuthCard title="Accept your invitation" lead={`${invitation.data.email} · ${ROLE_LABEL[invitation.data.role]}`}>
       <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
@@ -149,14 +142,10 @@ export function ForgotPasswordPage() {
   const request = useRequestReset();
   const [sent, setSent] = useState<string | null>(null);
   const form = useForm<{ email: string }>({ resolver: zodResolver(ResetRequestInputSchema), defaultValues: { email: "" } });
-  const onSubmit = form.handleSubmit(async (v) => {
-    try {
-      const r = await request.mutateAsync(v);
-      setSent(r.message);
-    } catch (e) {
-      applyApiError(e, form.setError, "email");
-    }
-  });
+  const onSubmit = submitting(form, async (v) => {
+    const r = await request.mutateAsync(v);
+    setSent(r.message);
+  }, "email");
   return (
     <AuthCard title="Reset your password" lead="We will e-mail a link that works once, for one hour.">
       {sent ? (
@@ -190,14 +179,10 @@ export function ResetPasswordPage() {
   const navigate = useNavigate();
   const reset = useResetPassword(token);
   const form = useForm<z.infer<typeof ResetFormSchema>>({ resolver: zodResolver(ResetFormSchema), defaultValues: { password: "", confirm: "" } });
-  const onSubmit = form.handleSubmit(async ({ password }) => {
-    try {
-      const { user } = await reset.mutateAsync({ password });
-      navigate(homeFor(user), { replace: true });
-    } catch (e) {
-      applyApiError(e, form.setError, "password");
-    }
-  });
+  const onSubmit = submitting(form, async ({ password }) => {
+    const { user } = await reset.mutateAsync({ password });
+    navigate(homeFor(user), { replace: true });
+  }, "password");
   return (
     <AuthCard title="Choose a new password" lead="Setting it signs you out on every other device.">
       <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">

@@ -1,12 +1,11 @@
-import { useQuery } from "@tanstack/react-query";
 import type { DecisionAnswer, DecisionCreateInput, DecisionEvent, DecisionOutcomeInput, DecisionPatchInput } from "#shared/schemas/decisions.ts";
 import type { DocumentAnswer } from "#shared/schemas/documents.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import type { RiskAnswer } from "#shared/schemas/risks.ts";
 import { api } from "../../lib/api-client.ts";
-import { useQuietWrite } from "../../lib/mutations.ts";
+import { recordApi } from "../../lib/record-api.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
-import { featureKeys, readOptions } from "../../lib/query-keys.ts";
+import { featureKeys } from "../../lib/query-keys.ts";
 
 /** Keys: decisions → project(slug) → kind, and decisions → decision(id) → events. */
 export const decisionKeys = {
@@ -26,13 +25,9 @@ export const decisionMilestonesQueryOptions = (slug: string) => projectReadOptio
 export const decisionRisksQueryOptions = (slug: string) => projectReadOptions<RiskAnswer[]>(decisionKeys.risks(slug), slug, "risks");
 export const decisionDocumentsQueryOptions = (slug: string) => projectReadOptions<DocumentAnswer[]>(decisionKeys.documents(slug), slug, "documents");
 
-export const decisionEventsQueryOptions = (id: number) => readOptions<DecisionEvent[]>(decisionKeys.events(id), `/api/decisions/${id}/events`);
-export const useDecisionEvents = (id: number) => useQuery(decisionEventsQueryOptions(id));
+const record = recordApi<DecisionAnswer, DecisionEvent, DecisionCreateInput, DecisionPatchInput>("decisions", decisionKeys);
+export const { eventsQueryOptions: decisionEventsQueryOptions, useEvents: useDecisionEvents, useCreate: useCreateDecision, usePatch: usePatchDecision } = record;
+const useDecisionWrite = record.useWrite;
 
-// A write refreshes the whole feature: the list's order, days left and the decision's history move together.
-const useDecisionWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useQuietWrite<R, V>(decisionKeys.all, mutationFn);
-
-export const useCreateDecision = (slug: string) => useDecisionWrite((input: DecisionCreateInput) => api.post<DecisionAnswer>(`/api/projects/${slug}/decisions`, input));
-export const usePatchDecision = () => useDecisionWrite(({ id, patch }: { id: number; patch: DecisionPatchInput }) => api.patch<DecisionAnswer>(`/api/decisions/${id}`, patch));
 export const useRecordOutcome = () => useDecisionWrite(({ id, input }: { id: number; input: DecisionOutcomeInput }) => api.post<DecisionAnswer>(`/api/decisions/${id}/outcome`, input));
 export const useWithdrawDecision = () => useDecisionWrite(({ id, reason, version }: { id: number; reason: string; version: number }) => api.post<DecisionAnswer>(`/api/decisions/${id}/withdraw`, { reason, version }));

@@ -1,4 +1,5 @@
 import { useSuspenseQuery } from "@tanstack/react-query";
+import type { Project } from "#shared/schemas/projects.ts";
 import type { DecisionAnswer } from "#shared/schemas/decisions.ts";
 import { Sheet } from "../../components/ui/sheet.tsx";
 import { formatDate, formatMoney } from "../../lib/format.ts";
@@ -127,7 +128,7 @@ function ClosedDecision({ decision, currency }: { decision: DecisionAnswer; curr
  * and by when — overdue ones first, in words — with the options, their consequence and cost, the
  * recommendation and who decides; decided and withdrawn ones keep their record below.
  */
-export function InvestorDecisions({ slug, currency }: { slug: string; currency: string }) {
+export function InvestorDecisions({ slug, project: { currency } }: { slug: string; project: Pick<Project, "currency"> }) {
   const decisions = useSuspenseQuery(decisionsQueryOptions(slug)).data;
   const ordered = orderDecisions(decisions);
   const open = ordered.filter((d) => d.status === "open");

@@ -7,11 +7,8 @@ import { projectListQueryOptions } from "../../lib/projects.ts";
 import { featureKeys } from "../../lib/query-keys.ts";
 
 export const digestKeys = {
-  ...featureKeys("digests"),
-  runs: (project: string) => [...digestKeys.all, "runs", project] as const,
-  upcoming: (project: string) => [...digestKeys.all, "upcoming", project] as const,
+  ...featureKeys("digests", ["runs", "upcoming", "recipients"]),
   preview: (subscriberId: number) => [...digestKeys.all, "preview", subscriberId] as const,
-  recipients: (project: string) => [...digestKeys.all, "recipients", project] as const,
 };
 
 const sending = (runs: DigestRunSummary[] | undefined) => Boolean(runs?.some((r) => r.status === "running" || r.status === "queued"));

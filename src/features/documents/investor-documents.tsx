@@ -1,6 +1,7 @@
 import { useQuery, useSuspenseQuery } from "@tanstack/react-query";
 import { lazy, Suspense, useEffect, useState } from "react";
 import { Link } from "react-router-dom";
+import type { Project } from "#shared/schemas/projects.ts";
 import type { DocumentAnswer, DocumentCategory, ViewLogRow } from "#shared/schemas/documents.ts";
 import { Notice, Sheet, Spinner } from "../../components/ui/sheet.tsx";
 import { formatDate, formatInstant } from "../../lib/format.ts";
@@ -124,7 +125,7 @@ function ViewingHistory({ slug, timeZone }: { slug: string; timeZone: string }) 
  * visit, every version, a reader in the page and a download — each copy stamped with the reader's
  * name by the server — and the reader's own viewing history.
  */
-export function InvestorDocuments({ slug, timeZone }: { slug: string; timeZone: string }) {
+export function InvestorDocuments({ slug, project: { timeZone } }: { slug: string; project: Pick<Project, "timeZone"> }) {
   const documents = useSuspenseQuery(investorDocumentsQueryOptions(slug)).data;
   const groups = byCategory(documents);
   const fresh = documents.filter((d) => d.newSinceLastVisit).length;

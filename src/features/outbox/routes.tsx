@@ -13,6 +13,7 @@ import { formatInstant } from "../../lib/format.ts";
 import { primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { outboxListQueryOptions, outboxMessageQueryOptions } from "./api.ts";
+import { onSubmitted } from "../../lib/forms.ts";
 
 /**
  * The outbox holds other people's sign-in links (resets, invitations), so only administrators
@@ -112,10 +113,7 @@ function OutboxList({ to, page }: { to: string; page: number }) {
       />
       <form
         className="mb-4 flex flex-wrap items-end gap-2"
-        onSubmit={(e) => {
-          e.preventDefault();
-          setParams(draft ? { to: draft } : {});
-        }}
+        onSubmit={onSubmitted(() => setParams(draft ? { to: draft } : {}))}
       >
         <div className="min-w-60 flex-1">
           <TextField label="Recipient" type="email" placeholder="name@example.com" value={draft} onChange={(e) => setDraft(e.target.value)} />

@@ -30,6 +30,7 @@ import { FixPhotoDialog } from "./components/fix-photo-dialog.tsx";
 import { MediaPickerDialog } from "./components/media-picker.tsx";
 import { MilestonePickerDialog } from "./components/milestone-picker.tsx";
 import { RichTextEditor } from "./components/rich-text-editor.tsx";
+import { onSubmitted } from "../../lib/forms.ts";
 
 interface Draft {
   title: string;
@@ -100,12 +101,11 @@ function TagPicker({ tags, areas, facility, onChange }: { tags: PostTag[]; areas
       )}
       <form
         className="flex items-end gap-2"
-        onSubmit={(e) => {
-          e.preventDefault();
+        onSubmit={onSubmitted(() => {
           const v = newArea.trim();
           if (v && !has({ kind: "area", value: v })) onChange([...tags, { kind: "area", value: v }]);
           setNewArea("");
-        }}
+        })}
       >
         <div className="flex-1">
           <TextField label="Another area" value={newArea} onChange={(e) => setNewArea(e.target.value)} placeholder="e.g. Hall 2B" />

@@ -20,6 +20,7 @@ import { officeProjectSlug, useProjectParam } from "../../lib/projects.ts";
 import { publishingWhen } from "../../lib/publishing.ts";
 import { AUDIENCE_WORD } from "../../lib/words.ts";
 import { postListQueryOptions, postsProjectQueryOptions, postsProjectsQueryOptions, type PostListFilters } from "./api.ts";
+import { onSubmitted } from "../../lib/forms.ts";
 
 /** The project the site office is working on: `?project=` or the first one. */
 export function useOfficeProject() {
@@ -130,10 +131,7 @@ function ProjectPosts({ slug, choices, setSlug }: ReturnType<typeof useOfficePro
       <div className="mb-4 flex flex-wrap items-end gap-3">
         <form
           className="flex min-w-60 flex-1 items-end gap-2"
-          onSubmit={(e) => {
-            e.preventDefault();
-            set({ q: draftQ.trim() || undefined });
-          }}
+          onSubmit={onSubmitted(() => set({ q: draftQ.trim() || undefined }))}
         >
           <div className="flex-1">
             <TextField label="Search titles and text" type="search" value={draftQ} onChange={(e) => setDraftQ(e.target.value)} />

@@ -1,10 +1,9 @@
-import { useQuery } from "@tanstack/react-query";
 import type { User } from "#shared/schemas/auth.ts";
 import type { FacilityAnswer } from "#shared/schemas/facility.ts";
 import type { Milestone } from "#shared/schemas/programme.ts";
 import type { MitigationInput, RiskAnswer, RiskCreateInput, RiskEvent, RiskPatchInput, RiskSummary, RiskToIssueInput } from "#shared/schemas/risks.ts";
 import { api } from "../../lib/api-client.ts";
-import { useQuietWrite } from "../../lib/mutations.ts";
+import { recordApi } from "../../lib/record-api.ts";
 import { projectDetailQueryOptions, projectListQueryOptions, projectReadOptions } from "../../lib/projects.ts";
 import { featureKeys, readOptions } from "../../lib/query-keys.ts";
 
@@ -43,13 +42,10 @@ export const riskFacilityQueryOptions = (slug: string) => projectReadOptions<Fac
 /** The staff who may own a risk or an action. */
 export const staffQueryOptions = () => readOptions<StaffMember[]>(riskKeys.staff(), "/api/users/staff");
 
-export const riskEventsQueryOptions = (id: number) => readOptions<RiskEvent[]>(riskKeys.events(id), `/api/risks/${id}/events`);
-export const useRiskEvents = (id: number) => useQuery(riskEventsQueryOptions(id));
+const record = recordApi<RiskAnswer, RiskEvent, RiskCreateInput, RiskPatchInput>("risks", riskKeys);
+export const { eventsQueryOptions: riskEventsQueryOptions, useEvents: useRiskEvents, useCreate: useCreateRisk, usePatch: usePatchRisk } = record;
+const useRiskWrite = record.useWrite;
 
-const useRiskWrite = <V, R>(mutationFn: (v: V) => Promise<R>) => useQuietWrite<R, V>(riskKeys.all, mutationFn);
-
-export const useCreateRisk = (slug: string) => useRiskWrite((input: RiskCreateInput) => api.post<RiskAnswer>(`/api/projects/${slug}/risks`, input));
-export const usePatchRisk = () => useRiskWrite(({ id, patch }: { id: number; patch: RiskPatchInput }) => api.patch<RiskAnswer>(`/api/risks/${id}`, patch));
 export const useRiskToIssue = () => useRiskWrite(({ id, input }: { id: number; input: RiskToIssueInput }) => api.post<RiskAnswer>(`/api/risks/${id}/issue`, input));
 export const useDeleteRisk = () => useRiskWrite(({ id }: { id: number }) => api.delete<void>(`/api/risks/${id}`));
 export const useAddMitigation = () => useRiskWrite(({ riskId, input }: { riskId: number; input: MitigationInput }) => api.post<unknown>(`/api/risks/${riskId}/mitigations`, input));

@@ -1,5 +1,6 @@
 import { useSuspenseQuery } from "@tanstack/react-query";
 import { lazy, Suspense, useState } from "react";
+import type { Project } from "#shared/schemas/projects.ts";
 import type { RiskAnswer, RiskSummary } from "#shared/schemas/risks.ts";
 import { Button } from "../../components/ui/button.tsx";
 import { Sheet, Spinner } from "../../components/ui/sheet.tsx";
@@ -175,7 +176,7 @@ function Exposure({ summary, currency }: { summary: RiskSummary; currency: strin
  * risks by score with owner, mitigation, trend and what they affect, the open issues, and the
  * expected cost of the open risks against the contingency left. Only what the caller may see.
  */
-export function InvestorRisks({ slug, currency }: { slug: string; currency: string }) {
+export function InvestorRisks({ slug, project: { currency } }: { slug: string; project: Pick<Project, "currency"> }) {
   const risks = useSuspenseQuery(risksQueryOptions(slug)).data;
   const summary = useSuspenseQuery(riskSummaryQueryOptions(slug)).data;
   const [all, setAll] = useState(false);

@@ -26,12 +26,16 @@ import { featureKeys, readOptions } from "../../lib/query-keys.ts";
 
 /** Visitors' side: the form's options and the pages opened from signed links. */
 export const subscriptionKeys = {
-  ...featureKeys("subscriptions"),
-  options: (slug: string) => [...subscriptionKeys.all, "options", slug] as const,
-  confirmation: (token: string) => [...subscriptionKeys.all, "confirmation", token] as const,
-  preferences: (token: string) => [...subscriptionKeys.all, "preferences", token] as const,
-  unsubscribe: (token: string) => [...subscriptionKeys.all, "unsubscribe", token] as const,
+  ...featureKeys("subscriptions", ["options"]),
+  /** A page opened from a signed link, by the link's kind and token. */
+  link: (kind: LinkKind, token: string) => [...subscriptionKeys.all, kind, token] as const,
 };
+
+type LinkKind = "confirm" | "preferences" | "unsubscribe";
+
+/** The read behind a page opened from a signed link: once only, as a refused link stays refused. */
+const linkReadOptions = <T>(kind: LinkKind, token: string) =>
+  queryOptions({ queryKey: subscriptionKeys.link(kind, token), queryFn: () => api.get<T>(`/api/subscriptions/${kind}/${token}`), retry: false });
 
 /** The site office's list: its filters and the page (from the address). */
 export type SubscriberOfficeQuery = SubscriberFilterQuery & { page?: number };
@@ -49,12 +53,9 @@ export const investorDigestKeys = {
 
 export const subscriptionProjectsQueryOptions = () => projectListQueryOptions(subscriptionKeys.projects());
 export const subscriptionOptionsQueryOptions = (slug: string) => projectReadOptions<SubscriptionOptions>(subscriptionKeys.options(slug), slug, "subscription-options");
-export const confirmationQueryOptions = (token: string) =>
-  queryOptions({ queryKey: subscriptionKeys.confirmation(token), queryFn: () => api.get<ConfirmationView>(`/api/subscriptions/confirm/${token}`), retry: false });
-export const preferencesQueryOptions = (token: string) =>
-  queryOptions({ queryKey: subscriptionKeys.preferences(token), queryFn: () => api.get<PreferencesView>(`/api/subscriptions/preferences/${token}`), retry: false });
-export const unsubscribeQueryOptions = (token: string) =>
-  queryOptions({ queryKey: subscriptionKeys.unsubscribe(token), queryFn: () => api.get<UnsubscribeView>(`/api/subscriptions/unsubscribe/${token}`), retry: false });
+export const confirmationQueryOptions = (token: string) => linkReadOptions<ConfirmationView>("confirm", token);
+export const preferencesQueryOptions = (token: string) => linkReadOptions<PreferencesView>("preferences", token);
+export const unsubscribeQueryOptions = (token: string) => linkReadOptions<UnsubscribeView>("unsubscribe", token);
 /** One page (SUBSCRIBER_PAGE_SIZE rows) of the office list, newest first, with the total. */
 export const subscribersQueryOptions = (f: SubscriberOfficeQuery) =>
   queryOptions({
@@ -72,22 +73,22 @@ export function useSubscribe() {
 }
 
 export const useConfirm = (token: string) =>
-  useRefreshingMutation(subscriptionKeys.confirmation(token), { mutationFn: () => api.post<ConfirmationDone>(`/api/subscriptions/confirm/${token}`, {}), meta: { quiet: true } });
+  useRefreshingMutation(subscriptionKeys.link("confirm", token), { mutationFn: () => api.post<ConfirmationDone>(`/api/subscriptions/confirm/${token}`, {}), meta: { quiet: true } });
 
 export function useUpdatePreferences(token: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (patch: PreferencesInput) => api.patch<PreferencesView>(`/api/subscriptions/preferences/${token}`, patch),
     meta: { quiet: true },
-    onSuccess: (view) => qc.setQueryData(subscriptionKeys.preferences(token), view),
+    onSuccess: (view) => qc.setQueryData(subscriptionKeys.link("preferences", token), view),
   });
 }
 
 export const useLeaveFromPreferences = (token: string) =>
-  useRefreshingMutation(subscriptionKeys.preferences(token), { mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/preferences/${token}/unsubscribe`, {}) });
+  useRefreshingMutation(subscriptionKeys.link("preferences", token), { mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/preferences/${token}/unsubscribe`, {}) });
 
 export const useUnsubscribe = (token: string) =>
-  useRefreshingMutation(subscriptionKeys.unsubscribe(token), { mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/unsubscribe/${token}`, {}) });
+  useRefreshingMutation(subscriptionKeys.link("unsubscribe", token), { mutationFn: () => api.post<SubscriptionStatusResult>(`/api/subscriptions/unsubscribe/${token}`, {}) });
 
 export const useSetInvestorDigest = () =>
   useRefreshingMutation(investorDigestKeys.all, {

@@ -1,5 +1,5 @@
 import { zodResolver } from "@hookform/resolvers/zod";
-import { useSuspenseQuery } from "@tanstack/react-query";
+import { useSuspenseQuery, type QueryKey, type UseSuspenseQueryOptions } from "@tanstack/react-query";
 import { useDeferredValue, useState, type ReactNode } from "react";
 import { Controller, useForm } from "react-hook-form";
 import { Link, useParams, useRouteError, useSearchParams } from "react-router-dom";
@@ -21,7 +21,7 @@ import { SelectField, TextField } from "../../components/ui/field.tsx";
 import { pageFromParams, UrlPager } from "../../components/ui/pager.tsx";
 import { Notice, PageHeader, Sheet } from "../../components/ui/sheet.tsx";
 import { ApiError } from "../../lib/api-client.ts";
-import { applyApiError, SYSTEM_WORD } from "../../lib/format.ts";
+import { SYSTEM_WORD } from "../../lib/format.ts";
 import { INVESTOR_ROLES, OFFICE_ROLES, primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { meQueryOptions } from "../../lib/session.ts";
 import { useTitle } from "../../lib/use-title.ts";
@@ -51,6 +51,7 @@ import { SubscribeForm } from "./components/subscribe-form.tsx";
 import { SubscribersTable } from "./components/subscribers-table.tsx";
 import { TopicsPicker } from "./components/topics-picker.tsx";
 import { FREQUENCY_SHORT, FREQUENCY_WORD, INTEREST_SHORT, STATUS_LOOK } from "./words.ts";
+import { submitting } from "../../lib/forms.ts";
 
 /** One column on the paper, for the pages a visitor reaches from a form or an e-mail. */
 function PublicSheet({ label, title, lead, children, documentTitle }: { label: string; title: string; lead?: ReactNode; children: ReactNode; documentTitle?: string }) {
@@ -158,13 +159,18 @@ export function SubscribePage() {
   );
 }
 
+/** The token in the address of a page opened from a signed link, and what the link shows. */
+function useLinkView<T, K extends QueryKey>(read: (token: string) => UseSuspenseQueryOptions<T, Error, T, K>): { token: string; view: T } {
+  const { token = "" } = useParams();
+  return { token, view: useSuspenseQuery(read(token)).data };
+}
+
 /**
  * /subscriptions/confirm/:token — opening the page changes nothing (mail scanners open
  * links); only the button confirms.
  */
 export function ConfirmSubscriptionPage() {
-  const { token = "" } = useParams();
-  const v = useSuspenseQuery(confirmationQueryOptions(token)).data;
+  const { token, view: v } = useLinkView(confirmationQueryOptions);
   const confirm = useConfirm(token);
   if (confirm.isSuccess) {
     return (
@@ -213,14 +219,10 @@ function PreferencesForm({ token, view }: { token: string; view: PreferencesView
     resolver: zodResolver(PreferencesInputSchema),
     defaultValues: { name: view.name, organisation: view.organisation ?? "", frequency: view.frequency, topics: view.topics },
   });
-  const onSubmit = form.handleSubmit(async (v) => {
-    try {
-      await update.mutateAsync(v);
-      toast.success("Preferences saved");
-    } catch (e) {
-      applyApiError(e, form.setError, "frequency");
-    }
-  });
+  const onSubmit = submitting(form, async (v) => {
+    await update.mutateAsync(v);
+    toast.success("Preferences saved");
+  }, "frequency");
   const errors = form.formState.errors;
   return (
     <div className="flex flex-col gap-6">
@@ -250,8 +252,7 @@ function PreferencesForm({ token, view }: { token: string; view: PreferencesView
 
 /** /subscriptions/preferences/:token — no sign-in: the signed link is the key. */
 export function PreferencesPage() {
-  const { token = "" } = useParams();
-  const v = useSuspenseQuery(preferencesQueryOptions(token)).data;
+  const { token, view: v } = useLinkView(preferencesQueryOptions);
   const look = STATUS_LOOK[v.status];
   return (
     <PublicSheet label={v.project.name} title="Your preferences" lead={`${v.email} · ${INTEREST_SHORT[v.interest]}`}>
@@ -284,8 +285,7 @@ export function PreferencesPage() {
 
 /** /u/:token — what a person sees opening the one-click link; the mail client's POST needs no page. */
 export function OneClickUnsubscribePage() {
-  const { token = "" } = useParams();
-  const v = useSuspenseQuery(unsubscribeQueryOptions(token)).data;
+  const { token, view: v } = useLinkView(unsubscribeQueryOptions);
   const leave = useUnsubscribe(token);
   const gone = leave.isSuccess || v.status === "unsubscribed";
   return (
@@ -319,14 +319,10 @@ function InvestorDigestForm({ setting }: { setting: InvestorDigestSetting }) {
     resolver: zodResolver(InvestorDigestInputSchema),
     defaultValues: { enabled: setting.enabled, frequency: setting.frequency, topics: setting.topics },
   });
-  const onSubmit = form.handleSubmit(async (v) => {
-    try {
-      await save.mutateAsync({ slug: setting.project.slug, ...v });
-      toast.success(v.enabled ? "Digest saved" : "Digest turned off");
-    } catch (e) {
-      applyApiError(e, form.setError, "frequency");
-    }
-  });
+  const onSubmit = submitting(form, async (v) => {
+    await save.mutateAsync({ slug: setting.project.slug, ...v });
+    toast.success(v.enabled ? "Digest saved" : "Digest turned off");
+  }, "frequency");
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
       <label className="flex items-center gap-2 text-sm font-medium">

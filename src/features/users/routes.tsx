@@ -8,12 +8,13 @@ import { RoleSchema } from "#shared/schemas/common.ts";
 import { OrganisationInputSchema } from "#shared/schemas/documents.ts";
 import { InviteInputSchema, type InvitationRow, type InviteInput, type UserRow } from "#shared/schemas/users.ts";
 import { Button } from "../../components/ui/button.tsx";
-import { DataTable, useSortedTable } from "../../components/ui/data-table.tsx";
+import { actionsColumn, DataTable, useSortedTable } from "../../components/ui/data-table.tsx";
 import { SelectField, SelectOptions, TextField } from "../../components/ui/field.tsx";
 import { PageHeader, Sheet } from "../../components/ui/sheet.tsx";
-import { applyApiError, formatInstant, ROLE_LABEL } from "../../lib/format.ts";
+import { formatInstant, ROLE_LABEL } from "../../lib/format.ts";
 import { primeWhenAllowed, type RouteLoader } from "../../lib/loaders.ts";
 import { invitationsQueryOptions, organisationsQueryOptions, useCreateOrganisation, useInvite, useSetOrganisation, useUpdateUser, usersQueryOptions, type Organisation } from "./api.ts";
+import { submitting } from "../../lib/forms.ts";
 
 /** The users page is for administrators (the route says so); only theirs is primed. */
 export const usersLoader: RouteLoader = (qc) => () =>
@@ -24,14 +25,10 @@ const roleOptions = RoleSchema.options.map((r) => ({ value: r, label: ROLE_LABEL
 function InviteForm() {
   const invite = useInvite();
   const form = useForm<InviteInput>({ resolver: zodResolver(InviteInputSchema), defaultValues: { email: "", role: "marketing" } });
-  const onSubmit = form.handleSubmit(async (v) => {
-    try {
-      await invite.mutateAsync(v);
-      toast.success(`Invitation sent to ${v.email}`);
-      form.reset({ email: "", role: v.role });
-    } catch (e) {
-      applyApiError(e, form.setError);
-    }
+  const onSubmit = submitting(form, async (v) => {
+    await invite.mutateAsync(v);
+    toast.success(`Invitation sent to ${v.email}`);
+    form.reset({ email: "", role: v.role });
   });
   return (
     <form onSubmit={onSubmit} noValidate className="grid gap-3 sm:grid-cols-[1fr_12rem_auto] sm:items-end">
@@ -102,25 +99,18 @@ function UsersTable({ users, organisations }: { users: UserRow[]; organisations:
           ),
       }),
       col.accessor("lastSignInAt", { header: "Last sign-in", cell: (c) => <span className="whitespace-nowrap">{formatInstant(c.getValue())}</span> }),
-      col.display({
-        id: "actions",
-        header: "",
-        cell: (c) => {
-          const u = c.row.original;
-          return (
-            <Button
-              size="sm"
-              variant={u.disabled ? "secondary" : "danger"}
-              onClick={() => {
-                if (!u.disabled && !window.confirm(`Disable ${u.email}? They are signed out at once.`)) return;
-                update.mutate({ id: u.id, disabled: !u.disabled }, { onSuccess: () => toast.success(u.disabled ? "Account enabled" : "Account disabled and signed out") });
-              }}
-            >
-              {u.disabled ? "Enable" : "Disable"}
-            </Button>
-          );
-        },
-      }),
+      actionsColumn(col, (u) => (
+        <Button
+          size="sm"
+          variant={u.disabled ? "secondary" : "danger"}
+          onClick={() => {
+            if (!u.disabled && !window.confirm(`Disable ${u.email}? They are signed out at once.`)) return;
+            update.mutate({ id: u.id, disabled: !u.disabled }, { onSuccess: () => toast.success(u.disabled ? "Account enabled" : "Account disabled and signed out") });
+          }}
+        >
+          {u.disabled ? "Enable" : "Disable"}
+        </Button>
+      )),
     ],
     [update, setOrganisation, organisations],
   );
@@ -146,15 +136,11 @@ function InvitationsTable({ rows }: { rows: InvitationRow[] }) {
 function OrganisationsSection({ organisations }: { organisations: Organisation[] }) {
   const create = useCreateOrganisation();
   const form = useForm<{ name: string }>({ resolver: zodResolver(OrganisationInputSchema), defaultValues: { name: "" } });
-  const onSubmit = form.handleSubmit(async (v) => {
-    try {
-      await create.mutateAsync(v);
-      toast.success(`${v.name} added`);
-      form.reset({ name: "" });
-    } catch (e) {
-      applyApiError(e, form.setError, "name");
-    }
-  });
+  const onSubmit = submitting(form, async (v) => {
+    await create.mutateAsync(v);
+    toast.success(`${v.name} added`);
+    form.reset({ name: "" });
+  }, "name");
   return (
     <div className="flex flex-col gap-3">
       {organisations.length === 0 ? (

@@ -2,7 +2,7 @@ import { createColumnHelper } from "@tanstack/react-table";
 import type { BudgetChangeAnswer } from "#shared/schemas/budget.ts";
 import { AudienceMark } from "../../../components/ui/audience-mark.tsx";
 import { Button } from "../../../components/ui/button.tsx";
-import { DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
+import { actionsColumn, DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
 import { formatDate } from "../../../lib/format.ts";
 import { signedMoney, STATUS_GLYPH, STATUS_WORD } from "../words.ts";
 
@@ -52,19 +52,18 @@ const columns = [
   }),
   col.accessor("drawsOnContingency", { header: "Contingency", cell: (c) => (c.getValue() ? <span className="whitespace-nowrap">Draws on it</span> : "—") }),
   col.accessor("audience", { header: "Audience", cell: (c) => <AudienceMark audience={c.getValue()} /> }),
-  col.display({
-    id: "edit",
-    header: () => <span className="sr-only">Edit</span>,
-    meta: { actions: true },
-    cell: ({ row, table }) => {
+  actionsColumn(
+    col,
+    (c, table) => {
       const onEdit = metaOf(table).onEdit;
       return onEdit ? (
-        <Button size="sm" onClick={() => onEdit(row.original)} aria-label={`Edit ${row.original.reference}`}>
+        <Button size="sm" onClick={() => onEdit(c)} aria-label={`Edit ${c.reference}`}>
           Edit
         </Button>
       ) : null;
     },
-  }),
+    { id: "edit", header: () => <span className="sr-only">Edit</span> },
+  ),
 ];
 
 /** The register of budget changes: signed amounts, who approved each and when, and which draw on the contingency. */

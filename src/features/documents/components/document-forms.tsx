@@ -7,7 +7,7 @@ import { FieldError, SelectField, TextField } from "../../../components/ui/field
 import { DateField } from "../../../components/ui/date-field.tsx";
 import { FormDialog, IdPicksField } from "../../../components/ui/form-dialog.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
-import { changedFields, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
+import { changedFields, onSubmitted, optionsOf, pick, saveForm } from "../../../lib/forms.ts";
 import { RECORD_AUDIENCE_OPTIONS } from "../../../lib/record.tsx";
 import { usePatchDocument, useUploadDocument, useUploadVersion, type OrganisationRow } from "../api.ts";
 import { CATEGORY_WORD, titleFromFileName } from "../words.ts";
@@ -105,11 +105,10 @@ export function VersionForm({ doc, onClose }: { doc: DocumentAnswer; onClose: ()
       onClose={onClose}
       busy={upload.isPending}
       submitLabel={`Upload version ${doc.latestVersion.number + 1}`}
-      onSubmit={(e) => {
-        e.preventDefault();
+      onSubmit={onSubmitted(() => {
         if (!file) return setRefusal("Choose a file to upload.");
         upload.mutate({ id: doc.id, file, note }, { onSuccess: onClose, onError: (err) => setRefusal(refusalWords(err)) });
-      }}
+      })}
     >
       <div className="sm:col-span-2">
         <FileDrop

@@ -1,8 +1,8 @@
 import { createColumnHelper } from "@tanstack/react-table";
 import type { DocumentAnswer } from "#shared/schemas/documents.ts";
 import { AudienceMark } from "../../../components/ui/audience-mark.tsx";
-import { Button } from "../../../components/ui/button.tsx";
-import { DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
+import { Button, buttonClass } from "../../../components/ui/button.tsx";
+import { actionsColumn, DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
 import { formatBytes, formatDate } from "../../../lib/format.ts";
 import { cleanFileUrl } from "../api.ts";
 import { CATEGORY_WORD, FILE_TYPE_WORD } from "../words.ts";
@@ -70,15 +70,13 @@ const columns = [
       );
     },
   }),
-  col.display({
-    id: "actions",
-    header: "Actions",
-    cell: ({ row, table }) => {
+  actionsColumn(
+    col,
+    (d, table) => {
       const a = actionsOf(table);
-      const d = row.original;
       return (
         <div className="flex flex-wrap gap-1">
-          <a className="inline-flex items-center rounded-sm border border-ink px-2.5 py-1 text-sm font-medium hover:bg-paper" href={cleanFileUrl(d.id, { as: "download" })} aria-label={`Download the clean original of ${d.title}`}>
+          <a className={buttonClass("secondary", "sm")} href={cleanFileUrl(d.id, { as: "download" })} aria-label={`Download the clean original of ${d.title}`}>
             Original
           </a>
           <Button size="sm" onClick={() => a.onViews(d)} aria-label={`View log of ${d.title}`}>
@@ -97,7 +95,8 @@ const columns = [
         </div>
       );
     },
-  }),
+    { header: "Actions" },
+  ),
 ];
 
 /** The library: what each document is, who may read it, its latest version, and what intake removed from it. */

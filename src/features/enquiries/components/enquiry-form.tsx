@@ -9,9 +9,9 @@ import { TextAreaField, TextField } from "../../../components/ui/field.tsx";
 import { DateField } from "../../../components/ui/date-field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
-import { applyApiError } from "../../../lib/format.ts";
 import { useSendEnquiry } from "../api.ts";
 import { VisitRules } from "./visit-rules.tsx";
+import { submitting } from "../../../lib/forms.ts";
 
 type Values = z.input<typeof EnquiryInputSchema>;
 type Errors = Record<string, { message?: string } | Array<{ message?: string } | undefined> | undefined>;
@@ -99,22 +99,12 @@ export function EnquiryForm({ project, about: given }: { project: Project; about
     const e = errors[name];
     return Array.isArray(e) ? undefined : e?.message;
   };
-  const onSubmit = form.handleSubmit(async (v) => {
-    try {
-      const input = v as z.output<typeof EnquiryInputSchema>;
-      const r = await send.mutateAsync(about ? { ...input, message: [aboutLine(about), input.message?.trim()].filter(Boolean).join("\n\n") } : input);
-      setDone(r.message);
-    } catch (e) {
-      applyApiError(e, form.setError, "message");
-    }
-  });
-  if (done) {
-    return (
-      <div data-testid="enquiry-done">
-        <Notice title="Enquiry sent">{done}</Notice>
-      </div>
-    );
-  }
+  const onSubmit = submitting(form, async (v) => {
+    const input = v as z.output<typeof EnquiryInputSchema>;
+    const r = await send.mutateAsync(about ? { ...input, message: [aboutLine(about), input.message?.trim()].filter(Boolean).join("\n\n") } : input);
+    setDone(r.message);
+  }, "message");
+  if (done) return <Notice title="Enquiry sent" testId="enquiry-done">{done}</Notice>;
   const number = { setValueAs: (v: string) => (v === "" ? Number.NaN : Number(v)) };
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-5">

@@ -13,6 +13,7 @@ import { EditorDataContext, type EditorData } from "./editor-context.ts";
 import { MediaPickerDialog } from "./media-picker.tsx";
 import { MilestoneBlock, PostImage } from "./editor-nodes.tsx";
 import { MilestonePickerDialog } from "./milestone-picker.tsx";
+import { onSubmitted } from "../../../lib/forms.ts";
 
 /** The editor's node set: exactly what src/shared/schemas/rich-text.ts accepts. */
 function extensions() {
@@ -147,10 +148,7 @@ function LinkDialog({ editor, open, onClose }: { editor: Editor; open: boolean; 
       }
     >
       <form
-        onSubmit={(e) => {
-          e.preventDefault();
-          apply();
-        }}
+        onSubmit={onSubmitted(() => apply())}
       >
         <TextField label="Address" value={href} onChange={(e) => setHref(e.target.value)} placeholder="https://… or /projects/…" error={error} hint="An http(s) or mailto address, or a path on this site. Leave empty to remove the link." />
       </form>

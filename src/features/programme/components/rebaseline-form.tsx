@@ -7,10 +7,11 @@ import { BaselineInputSchema, type Milestone } from "#shared/schemas/programme.t
 import type { ProgrammeSettings } from "#shared/domain/programme-health.ts";
 import { Button } from "../../../components/ui/button.tsx";
 import { TextAreaField } from "../../../components/ui/field.tsx";
-import { applyApiError, formatInstant } from "../../../lib/format.ts";
+import { formatInstant } from "../../../lib/format.ts";
 import { baselinesQueryOptions, useRebaseline } from "../api.ts";
 import { previewDrafts, rebaselineDrafts } from "../preview.ts";
 import { HealthPreview } from "./health-preview.tsx";
+import { submitting } from "../../../lib/forms.ts";
 
 /** The baseline versions, as the page's loader primed them. */
 function Versions({ slug, timeZone }: { slug: string; timeZone: string }) {
@@ -43,14 +44,10 @@ export function RebaselineForm({ slug, milestones, settings, at, timeZone, edita
   const form = useForm({ resolver: zodResolver(BaselineInputSchema), defaultValues: { reason: "", adoptForecasts: true, overrides: [] } });
   const adopt = useWatch({ control: form.control, name: "adoptForecasts" });
   const preview = useMemo(() => (adopt ? previewDrafts(milestones, rebaselineDrafts(milestones), settings, at) : null), [adopt, milestones, settings, at]);
-  const onSubmit = form.handleSubmit(async (v) => {
-    try {
-      const r = await rebaseline.mutateAsync(v);
-      toast.success(`Baseline v${r.number} recorded`);
-      form.reset({ reason: "", adoptForecasts: true, overrides: [] });
-    } catch (e) {
-      applyApiError(e, form.setError);
-    }
+  const onSubmit = submitting(form, async (v) => {
+    const r = await rebaseline.mutateAsync(v);
+    toast.success(`Baseline v${r.number} recorded`);
+    form.reset({ reason: "", adoptForecasts: true, overrides: [] });
   });
   return (
     <div className="grid gap-6 lg:grid-cols-2">

@@ -7,11 +7,11 @@ import { Button } from "../../../components/ui/button.tsx";
 import { SelectField, TextField } from "../../../components/ui/field.tsx";
 import { Notice } from "../../../components/ui/sheet.tsx";
 import { ApiError } from "../../../lib/api-client.ts";
-import { applyApiError } from "../../../lib/format.ts";
 import { useSubscribe } from "../api.ts";
 import { FREQUENCY_WORD, INTEREST_WORD } from "../words.ts";
 import { ConsentNote } from "./consent-note.tsx";
 import { TopicsPicker } from "./topics-picker.tsx";
+import { submitting } from "../../../lib/forms.ts";
 
 type Values = z.input<typeof SubscriptionInputSchema>;
 
@@ -27,21 +27,11 @@ export function SubscribeForm({ options }: { options: SubscriptionOptions }) {
     defaultValues: { email: "", name: "", organisation: "", interest: "prospect", frequency: "weekly", topics: null, projectSlug: options.project.slug },
   });
   const errors = form.formState.errors;
-  const onSubmit = form.handleSubmit(async (v) => {
-    try {
-      const r = await subscribe.mutateAsync({ ...v, projectSlug: options.project.slug });
-      setDone(r.message);
-    } catch (e) {
-      applyApiError(e, form.setError, "email");
-    }
-  });
-  if (done) {
-    return (
-      <div data-testid="subscribe-done">
-        <Notice title="Check your inbox">{done}</Notice>
-      </div>
-    );
-  }
+  const onSubmit = submitting(form, async (v) => {
+    const r = await subscribe.mutateAsync({ ...v, projectSlug: options.project.slug });
+    setDone(r.message);
+  }, "email");
+  if (done) return <Notice title="Check your inbox" testId="subscribe-done">{done}</Notice>;
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
       <TextField label="E-mail address" type="email" autoComplete="email" error={errors.email?.message} {...form.register("email")} />

@@ -2,8 +2,8 @@ import { createColumnHelper } from "@tanstack/react-table";
 import { useMemo } from "react";
 import { toast } from "sonner";
 import type { SubscriberRow } from "#shared/schemas/subscribers.ts";
-import { Button } from "../../../components/ui/button.tsx";
-import { DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
+import { Button, buttonClass } from "../../../components/ui/button.tsx";
+import { actionsColumn, DataTable, useSortedTable } from "../../../components/ui/data-table.tsx";
 import { formatInstant } from "../../../lib/format.ts";
 import { personDataUrl, useEraseSubscriber } from "../api.ts";
 import { FREQUENCY_SHORT, INTEREST_SHORT, STATUS_LOOK, topicsWords } from "../words.ts";
@@ -48,31 +48,24 @@ export function SubscribersTable({ rows }: { rows: SubscriberRow[] }) {
           </div>
         ),
       }),
-      col.display({
-        id: "actions",
-        header: "",
-        cell: (c) => {
-          const s = c.row.original;
-          return (
-            <div className="flex flex-wrap gap-2">
-              <a className="inline-flex items-center rounded-sm border border-ink px-2.5 py-1 text-sm font-medium hover:bg-paper" href={personDataUrl(s.id)} download aria-label={`Data of ${s.email} as JSON`}>
-                Data
-              </a>
-              <Button
-                size="sm"
-                variant="danger"
-                aria-label={`Erase ${s.email}`}
-                onClick={() => {
-                  if (!window.confirm(`Erase ${s.email}? Every subscription and enquiry of this address goes; only a hash stays, so it is not added again.`)) return;
-                  erase.mutate(s.id, { onSuccess: (r) => toast.success(`Erased: ${r.erased.subscriptions} subscriptions, ${r.erased.enquiries} enquiries`) });
-                }}
-              >
-                Erase
-              </Button>
-            </div>
-          );
-        },
-      }),
+      actionsColumn(col, (s) => (
+        <div className="flex flex-wrap gap-2">
+          <a className={buttonClass("secondary", "sm")} href={personDataUrl(s.id)} download aria-label={`Data of ${s.email} as JSON`}>
+            Data
+          </a>
+          <Button
+            size="sm"
+            variant="danger"
+            aria-label={`Erase ${s.email}`}
+            onClick={() => {
+              if (!window.confirm(`Erase ${s.email}? Every subscription and enquiry of this address goes; only a hash stays, so it is not added again.`)) return;
+              erase.mutate(s.id, { onSuccess: (r) => toast.success(`Erased: ${r.erased.subscriptions} subscriptions, ${r.erased.enquiries} enquiries`) });
+            }}
+          >
+            Erase
+          </Button>
+        </div>
+      )),
     ],
     [erase],
   );
