@@ -61,8 +61,7 @@ export async function saveForm<V extends FieldValues>(setError: UseFormSetError<
  * the fields it names, or else beside `fallback` (when given). Any other failure is left to the
  * mutation cache, which reports it.
  */
-// eslint-disable-next-line @typescript-eslint/no-explicit-any -- the form's context type plays no part here
-export function submitting<TF extends FieldValues, TT>(form: UseFormReturn<TF, any, TT>, send: (values: TT) => Promise<unknown>, fallback?: Path<TF>) {
+export function submitting<TF extends FieldValues, TT>(form: UseFormReturn<TF, unknown, TT>, send: (values: TT) => Promise<unknown>, fallback?: Path<TF>) {
   return form.handleSubmit(async (values) => {
     try {
       await send(values);
