@@ -134,6 +134,8 @@ export interface UploadFigures {
   inS3: number;
   servedFromS3: number;
   seconds: number;
+  /** Photos read as ready before their worker's log line had arrived (the wait below covers them). */
+  linesLate: number;
 }
 
 /** Uploads `count` photos through the load balancer; the workers make their derivatives in S3. */
@@ -147,7 +149,13 @@ export async function uploadsProcessedOnce(layout: Layout, count = 20): Promise<
     return Number(n?.n) === ids.length;
   }, 120_000);
   const seconds = (Date.now() - t0) / 1000;
-  // Each worker logs "media processed" once per photo it made derivatives of.
+  // Each worker logs "media processed" once per photo it made derivatives of. The line is
+  // written after the row is committed and reaches this process through a pipe, so the row
+  // can be read as ready a moment before its line arrives: wait (a bounded while) for every
+  // photo's line before counting. A photo whose line never comes is counted as not processed.
+  const logged = () => new Set(layout.workers.flatMap((w) => w.log.filter((l) => l.msg === "media processed").map((l) => Number(l.mediaId))));
+  const linesLate = ids.filter((id) => !logged().has(id)).length;
+  await until("every processed photo's log line", async () => ids.every((id) => logged().has(id)), 10_000).catch(() => undefined);
   const perWorker: Record<string, number> = {};
   const times = new Map<number, number>();
   for (const w of layout.workers) {
@@ -175,6 +183,7 @@ export async function uploadsProcessedOnce(layout: Layout, count = 20): Promise<
     inS3,
     servedFromS3: Math.round((servedFromS3 / Math.min(12, keys.length)) * keys.length),
     seconds,
+    linesLate,
   };
 }
 
@@ -211,10 +220,11 @@ export async function scheduledPostOnce(layout: Layout): Promise<ScheduledFigure
       visibleAfter[w.name] = (Date.now() - publishedAt) / 1000;
     }),
   );
+  // The worker's log line follows its commit through a pipe: wait (bounded) for it before counting.
+  const publishedLines = (w: (typeof layout.workers)[number]) => w.log.filter((l) => l.msg === "scheduled publication" && Array.isArray(l.published) && (l.published as unknown[]).map(Number).includes(created.id)).length;
+  await until("the publication's log line", async () => layout.workers.some((w) => publishedLines(w) > 0), 10_000).catch(() => undefined);
   const publishedBy: Record<string, number> = {};
-  for (const w of layout.workers) {
-    publishedBy[w.name] = w.log.filter((l) => l.msg === "scheduled publication" && Array.isArray(l.published) && (l.published as unknown[]).map(Number).includes(created.id)).length;
-  }
+  for (const w of layout.workers) publishedBy[w.name] = publishedLines(w);
   const events = await layout.db("publishing_events").where({ owner_type: "post", owner_id: created.id, to_status: "published" }).count({ n: "*" }).first();
   return { publishedEvents: Number(events?.n), publishedBy, visibleAfter };
 }

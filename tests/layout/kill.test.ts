@@ -42,7 +42,7 @@ describe("several processes behind HAProxy on a Galera cluster and S3", () => {
 
   it("processes each of 20 uploads exactly once and serves them from S3", async () => {
     const f = await uploadsProcessedOnce(layout, 20);
-    say(`uploads: ${f.uploads} in ${f.seconds.toFixed(1)} s; processed once ${f.processedOnce}, more than once ${f.processedTwice}; per worker ${JSON.stringify(f.perWorker)}; derivatives in S3 ${f.inS3}, served from S3 ${f.servedFromS3}`);
+    say(`uploads: ${f.uploads} in ${f.seconds.toFixed(1)} s; processed once ${f.processedOnce}, more than once ${f.processedTwice}; per worker ${JSON.stringify(f.perWorker)}; derivatives in S3 ${f.inS3}, served from S3 ${f.servedFromS3}; log lines arriving after the row read ready ${f.linesLate}`);
     expect(f.uploads).toBe(20);
     expect(f.processedOnce).toBe(20);
     expect(f.processedTwice).toBe(0);
