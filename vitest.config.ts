@@ -76,6 +76,8 @@ export default defineConfig({
           name: "layout",
           include: ["tests/layout/**/*.test.ts"],
           environment: "node",
+          // As for the server projects (decision 066); the app processes it starts inherit it.
+          env: { AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED: "true" },
           setupFiles: ["tests/setup/fail-on-console-error.ts"],
           fileParallelism: false,
           testTimeout: 180_000,

@@ -6,6 +6,7 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import { createWriteStream, type WriteStream } from "node:fs";
 import path from "node:path";
+import { StringDecoder } from "node:string_decoder";
 import { fileURLToPath } from "node:url";
 
 export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
@@ -69,12 +70,20 @@ export async function startAppProcess(opts: StartProcessOptions): Promise<AppPro
   });
   const out: WriteStream | null = opts.logFile ? createWriteStream(opts.logFile, { flags: "a" }) : null;
   const log: AppProcess["log"] = [];
-  let rest = "";
-  const onData = (chunk: Buffer) => {
-    out?.write(chunk);
-    rest += chunk.toString("utf8");
-    const lines = rest.split("\n");
-    rest = lines.pop() ?? "";
+  // One unfinished line per stream: a chunk of stderr arriving between two chunks of one stdout
+  // line must not be glued into it (the line would no longer parse, and its message be lost).
+  const lineReader = () => {
+    let rest = "";
+    const text = new StringDecoder("utf8"); // a character split across two chunks stays whole
+    return (chunk: Buffer) => {
+      out?.write(chunk);
+      rest += text.write(chunk);
+      const lines = rest.split("\n");
+      rest = lines.pop() ?? "";
+      keep(lines);
+    };
+  };
+  const keep = (lines: string[]) => {
     for (const line of lines) {
       if (!line.trim()) continue;
       try {
@@ -86,8 +95,8 @@ export async function startAppProcess(opts: StartProcessOptions): Promise<AppPro
       if (log.length > 5_000) log.splice(200, 1_000);
     }
   };
-  child.stdout!.on("data", onData);
-  child.stderr!.on("data", onData);
+  child.stdout!.on("data", lineReader());
+  child.stderr!.on("data", lineReader());
   running.add(child);
   const exited = new Promise<void>((resolve) => child.once("exit", () => resolve()));
   void exited.then(() => running.delete(child));
